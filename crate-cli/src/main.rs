@@ -1,0 +1,2 @@
+//! The ramulus command line (stub).
+fn main() {}

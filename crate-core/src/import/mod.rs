@@ -1,0 +1,1 @@
+//! Importers (stub, being written).

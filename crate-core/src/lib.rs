@@ -1,0 +1,20 @@
+//! Ramulus core: grows branching transport networks on a lattice (`growth`), measures them
+//! (`metrics`), and reads and writes them (`import`, `record`, `svg`). No I/O, clock, threads or
+//! platform code lives here: callers pass bytes and parameters in and get values back.
+#![deny(missing_docs)]
+
+pub mod digest;
+pub mod growth;
+pub mod import;
+pub mod mask;
+pub mod metrics;
+pub mod network;
+pub mod params;
+pub mod presets;
+pub mod record;
+pub mod segments;
+pub mod svg;
+
+pub use growth::{Growth, StepReport, StopReason};
+pub use network::{Network, Node, Topology, NO_PARENT};
+pub use params::{Joining, ParamError, Params, Root};

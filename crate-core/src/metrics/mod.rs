@@ -1,0 +1,1 @@
+//! Metrics of a `Network` (stub, being written).

@@ -1,0 +1,173 @@
+//! `Network`: a grown or imported forest in physical units, the one input of every metric and
+//! exporter, plus `Topology` (children, traversal order, flows) derived from it.
+
+use serde::{Deserialize, Serialize};
+
+/// Marks a root in `Node::parent`.
+pub const NO_PARENT: u32 = u32::MAX;
+
+/// One node of a network.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Node {
+    /// x in physical units, growing to the right.
+    pub x: f64,
+    /// y in physical units, growing down the page.
+    pub y: f64,
+    /// Index of the downstream neighbour, or `NO_PARENT` for a root.
+    pub parent: u32,
+    /// Flow this node adds itself, in physical area units (cell area for a leaf cell; runoff
+    /// coefficient times cell area for a site cell; 0 for a junction off the cell centres).
+    pub weight: f64,
+}
+
+impl Node {
+    /// Whether this node is a root.
+    pub fn is_root(&self) -> bool {
+        self.parent == NO_PARENT
+    }
+}
+
+/// A forest of nodes; segment `i` runs from node `i` to its parent (flow goes downstream).
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+pub struct Network {
+    /// The nodes; parents may come before or after their children.
+    pub nodes: Vec<Node>,
+    /// Area of the leaf or site the network drains, in squared units.
+    pub area: f64,
+    /// Length unit name (`mm`, `m`, ...).
+    pub units: String,
+    /// Lattice cell size in `units` (0 when not grown on a lattice).
+    pub cell_size: f64,
+    /// Occupied cells, for the outline metrics; empty when not grown on a lattice.
+    pub cells: CellSet,
+}
+
+/// The occupied cells of a lattice, as column-row pairs.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+pub struct CellSet {
+    /// Lattice width in cells.
+    pub width: u32,
+    /// Lattice height in cells.
+    pub height: u32,
+    /// Occupied cells, as row-major indices.
+    pub occupied: Vec<u32>,
+}
+
+/// Structure derived from a `Network`: children, a root-first order, and segment flows.
+#[derive(Clone, Debug)]
+pub struct Topology {
+    /// Children (upstream neighbours) of each node, in increasing index order.
+    pub children: Vec<Vec<u32>>,
+    /// Every node reachable from a root, parents before children (breadth first from roots in
+    /// index order).
+    pub order: Vec<u32>,
+    /// Flow through segment `i` (node `i` to its parent): the weights of node `i` and of every
+    /// node upstream of it. Roots hold the total flow of their tree.
+    pub flow: Vec<f64>,
+    /// Length of segment `i`, 0 for roots.
+    pub length: Vec<f64>,
+}
+
+/// Why a list of nodes is not a forest.
+#[derive(Clone, Debug, PartialEq)]
+pub enum TopologyError {
+    /// A parent index points past the end of the node list.
+    ParentOutOfRange {
+        /// The node whose parent is wrong.
+        node: usize,
+        /// The parent index it names.
+        parent: u32,
+    },
+    /// Following parents from this node never reaches a root.
+    Cycle {
+        /// A node on or leading into the cycle.
+        node: usize,
+    },
+    /// A coordinate or weight is NaN or infinite.
+    NotFinite {
+        /// The node holding the value.
+        node: usize,
+    },
+}
+
+impl std::fmt::Display for TopologyError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            TopologyError::ParentOutOfRange { node, parent } => {
+                write!(f, "node {node} names parent {parent}, which does not exist")
+            }
+            TopologyError::Cycle { node } => {
+                write!(f, "node {node} lies on a cycle: following parents never reaches a root")
+            }
+            TopologyError::NotFinite { node } => {
+                write!(f, "node {node} has a coordinate or weight that is not a finite number")
+            }
+        }
+    }
+}
+
+impl std::error::Error for TopologyError {}
+
+impl Network {
+    /// Derives children, order and flows; fails when the nodes are not a forest.
+    pub fn topology(&self) -> Result<Topology, TopologyError> {
+        let count = self.nodes.len();
+        let mut children = vec![Vec::new(); count];
+        for (index, node) in self.nodes.iter().enumerate() {
+            if !node.x.is_finite() || !node.y.is_finite() || !node.weight.is_finite() {
+                return Err(TopologyError::NotFinite { node: index });
+            }
+            if node.parent != NO_PARENT {
+                if node.parent as usize >= count {
+                    return Err(TopologyError::ParentOutOfRange { node: index, parent: node.parent });
+                }
+                children[node.parent as usize].push(index as u32);
+            }
+        }
+        let mut order = Vec::with_capacity(count);
+        for (index, node) in self.nodes.iter().enumerate() {
+            if node.is_root() {
+                order.push(index as u32);
+            }
+        }
+        let mut head = 0;
+        while head < order.len() {
+            let node = order[head] as usize;
+            head += 1;
+            order.extend_from_slice(&children[node]);
+        }
+        if order.len() != count {
+            let mut seen = vec![false; count];
+            for &node in &order {
+                seen[node as usize] = true;
+            }
+            let node = seen.iter().position(|&reached| !reached).unwrap_or(0);
+            return Err(TopologyError::Cycle { node });
+        }
+        let mut flow: Vec<f64> = self.nodes.iter().map(|node| node.weight).collect();
+        for &node in order.iter().rev() {
+            let parent = self.nodes[node as usize].parent;
+            if parent != NO_PARENT {
+                flow[parent as usize] += flow[node as usize];
+            }
+        }
+        let length = self
+            .nodes
+            .iter()
+            .map(|node| {
+                if node.is_root() {
+                    0.0
+                } else {
+                    let parent = &self.nodes[node.parent as usize];
+                    libm::hypot(node.x - parent.x, node.y - parent.y)
+                }
+            })
+            .collect();
+        Ok(Topology { children, order, flow, length })
+    }
+
+    /// Number of segments (non-root nodes).
+    pub fn segment_count(&self) -> usize {
+        self.nodes.iter().filter(|node| !node.is_root()).count()
+    }
+}

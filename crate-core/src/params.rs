@@ -1,0 +1,335 @@
+//! Growth parameters (`Params`), their validation (`ParamError`) and the lattice size limit.
+//!
+//! Every field is documented with its unit, default and allowed range. The JSON keys are the
+//! field names; unknown keys are rejected so that a typo never passes silently.
+
+use serde::{Deserialize, Serialize};
+
+use crate::mask::MaskGrid;
+
+/// Largest lattice accepted, in cells (keeps memory under about 2.5 GB at 100 bytes a cell).
+pub const MAX_CELLS: u64 = 25_000_000;
+
+/// Largest search radius, in cells.
+pub const MAX_RADIUS: f64 = 12.0;
+
+/// Every parameter of a run. JSON keys equal the field names.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct Params {
+    /// Lattice width in cells. Default 120; 1 ..= 20000, and `width * height <= 25,000,000`.
+    pub width: u32,
+    /// Lattice height in cells (rows counted from the top). Default 120; 1 ..= 20000.
+    pub height: u32,
+    /// Side of one cell in physical units. Default 0.15; > 0 and finite.
+    pub cell_size: f64,
+    /// Name of the physical length unit: `mm` (leaves) or `m` (sites); also `cm`, `um`, `ft`.
+    pub units: String,
+    /// Roots (a petiole base, an outlet): cells with their outflow directions. At least one.
+    pub roots: Vec<Root>,
+    /// Seed of the random generator (ChaCha8). Default 1.
+    pub seed: u64,
+    /// Cell budget: growth stops after this many cells, roots included. Default 10000; >= 1.
+    pub cells: u64,
+    /// Search radius in cells: how far a new cell may reach to attach. Default 4; 1 ..= 12.
+    pub radius: f64,
+    /// Node jitter, as a fraction of a cell in x and in y. Default 0.35; 0 ..= 0.49.
+    pub jitter: f64,
+    /// Weight of the length term. Default 1; >= 0.
+    pub w_len: f64,
+    /// Weight of the junction-angle term. Default 1; >= 0.
+    pub w_turn: f64,
+    /// Weight of the branched-transport term. Default 0.5; >= 0.
+    pub w_flow: f64,
+    /// Exponent of branched transport, a segment carrying q costs `q^alpha * length`. Default 0.5; 0 ..= 1.
+    pub alpha: f64,
+    /// Weight of the supply-distance term. Default 0; >= 0.
+    pub w_path: f64,
+    /// Weight of the uphill (terrain) term; sites only. Default 0; >= 0.
+    pub w_grade: f64,
+    /// Rule that picks the next cell. Default `weighted`.
+    pub joining: Joining,
+    /// Temperature of weighted joining, in cost units. Default 0.5; > 0.
+    pub temperature: f64,
+    /// Open growth: stop when no frontier cell costs less than this. Default none (off); finite.
+    pub threshold: Option<f64>,
+    /// Whether a new cell may attach to the interior of a segment, splitting it. Default false.
+    pub attach_to_segments: bool,
+    /// Width exponent: width ~ flow^(1/gamma); 3 is Murray's law, 2 area-preserving. Default 3; 1 ..= 10.
+    pub gamma: f64,
+    /// Width of a one-cell veinlet, as a fraction of the cell size. Default 0.12; > 0 ..= 1.
+    pub tip_width: f64,
+    /// Preferred branching angle in degrees; none gives the plain `1 - cos(phi)` penalty.
+    /// Default none; 0 ..= 150.
+    pub branch_angle: Option<f64>,
+    /// Anisotropy of the supply-distance term: lengths along a root's outflow axis count
+    /// `1 / elongation`. Default 1 (isotropic); 1 ..= 10.
+    pub elongation: f64,
+    /// Terrain rise per unit run along +x (m/m), for the uphill term. Default 0; -1 ..= 1.
+    pub grade_x: f64,
+    /// Terrain rise per unit run along +y, i.e. down the page (m/m). Default 0; -1 ..= 1.
+    pub grade_y: f64,
+    /// Runoff coefficient of every cell (sites); a cell's flow weight. Default 1; > 0 ..= 1.
+    pub runoff: f64,
+    /// Flows and transport costs are recomputed exactly whenever the network has grown by this
+    /// fraction since the last refresh. Default 0.05; 0.001 ..= 1.
+    pub refresh: f64,
+    /// Allowed region as a polygon of `[x, y]` points in cell coordinates; none allows the whole
+    /// lattice. A cell is allowed when its centre lies inside.
+    pub outline: Option<Vec<[f64; 2]>>,
+    /// Obstacles: polygons in cell coordinates whose cells are never occupied.
+    pub obstacles: Vec<Vec<[f64; 2]>>,
+    /// Allowed cells from an image (run-length coded, see `mask`); none allows every cell.
+    pub mask: Option<MaskGrid>,
+}
+
+/// A root of one tree: a cell and the direction its flow leaves the network.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Root {
+    /// Column of the root cell, 0 at the left.
+    pub x: u32,
+    /// Row of the root cell, 0 at the top.
+    pub y: u32,
+    /// Outflow direction `[dx, dy]` in lattice axes (y down); need not be unit length.
+    pub outflow: [f64; 2],
+}
+
+/// The rule that picks which frontier cell joins next.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Joining {
+    /// The cheapest frontier cell, ties to the oldest frontier slot (deterministic).
+    Cheapest,
+    /// A frontier cell drawn with probability proportional to `exp(-(C - C_min) / T)`.
+    Weighted,
+    /// A frontier cell drawn uniformly (Eden growth).
+    Uniform,
+}
+
+/// A parameter that fails validation: which one, its value, and what is allowed.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ParamError {
+    /// The parameter key, e.g. `alpha` or `roots[1].x`.
+    pub key: String,
+    /// The offending value as text.
+    pub value: String,
+    /// What would be accepted.
+    pub allowed: String,
+}
+
+impl std::fmt::Display for ParamError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "parameter `{}` = {}: {}", self.key, self.value, self.allowed)
+    }
+}
+
+impl std::error::Error for ParamError {}
+
+impl Default for Params {
+    fn default() -> Self {
+        Params {
+            width: 120,
+            height: 120,
+            cell_size: 0.15,
+            units: "mm".to_string(),
+            roots: vec![Root { x: 60, y: 100, outflow: [0.0, 1.0] }],
+            seed: 1,
+            cells: 10_000,
+            radius: 4.0,
+            jitter: 0.35,
+            w_len: 1.0,
+            w_turn: 1.0,
+            w_flow: 0.5,
+            alpha: 0.5,
+            w_path: 0.0,
+            w_grade: 0.0,
+            joining: Joining::Weighted,
+            temperature: 0.5,
+            threshold: None,
+            attach_to_segments: false,
+            gamma: 3.0,
+            tip_width: 0.12,
+            branch_angle: None,
+            elongation: 1.0,
+            grade_x: 0.0,
+            grade_y: 0.0,
+            runoff: 1.0,
+            refresh: 0.05,
+            outline: None,
+            obstacles: Vec::new(),
+            mask: None,
+        }
+    }
+}
+
+/// Physical length units that the exporters know how to label.
+pub const UNITS: [&str; 5] = ["um", "mm", "cm", "m", "ft"];
+
+impl Params {
+    /// Parses parameters from JSON text; unknown keys and wrong types are errors naming the key.
+    pub fn from_json(text: &str) -> Result<Params, ParamError> {
+        serde_json::from_str(text).map_err(|error| ParamError {
+            key: "(json)".to_string(),
+            value: format!("line {} column {}", error.line(), error.column()),
+            allowed: error.to_string(),
+        })
+    }
+
+    /// Whether the run is a drainage site (lengths in metres or feet) rather than a leaf.
+    pub fn is_site(&self) -> bool {
+        self.units == "m" || self.units == "ft"
+    }
+
+    /// Checks every parameter; the first failure is returned, naming the key.
+    pub fn validate(&self) -> Result<(), ParamError> {
+        check_range("width", self.width as f64, 1.0, 20_000.0)?;
+        check_range("height", self.height as f64, 1.0, 20_000.0)?;
+        let total = self.width as u64 * self.height as u64;
+        if total > MAX_CELLS {
+            return Err(ParamError {
+                key: "width * height".into(),
+                value: format!("{} x {} = {} cells", self.width, self.height, total),
+                allowed: format!("at most {MAX_CELLS} cells fit in memory"),
+            });
+        }
+        check_positive("cell_size", self.cell_size)?;
+        if !UNITS.contains(&self.units.as_str()) {
+            return Err(ParamError {
+                key: "units".into(),
+                value: format!("{:?}", self.units),
+                allowed: format!("one of {}", UNITS.join(", ")),
+            });
+        }
+        if self.roots.is_empty() {
+            return Err(ParamError {
+                key: "roots".into(),
+                value: "[]".into(),
+                allowed: "at least one root".into(),
+            });
+        }
+        for (index, root) in self.roots.iter().enumerate() {
+            let key = |field: &str| format!("roots[{index}].{field}");
+            if root.x >= self.width {
+                return Err(ParamError {
+                    key: key("x"),
+                    value: root.x.to_string(),
+                    allowed: format!("0 ..= {} (inside the lattice)", self.width - 1),
+                });
+            }
+            if root.y >= self.height {
+                return Err(ParamError {
+                    key: key("y"),
+                    value: root.y.to_string(),
+                    allowed: format!("0 ..= {} (inside the lattice)", self.height - 1),
+                });
+            }
+            let [dx, dy] = root.outflow;
+            if !dx.is_finite() || !dy.is_finite() || (dx == 0.0 && dy == 0.0) {
+                return Err(ParamError {
+                    key: key("outflow"),
+                    value: format!("[{dx}, {dy}]"),
+                    allowed: "a finite, non-zero direction [dx, dy]".into(),
+                });
+            }
+        }
+        if self.cells == 0 {
+            return Err(ParamError {
+                key: "cells".into(),
+                value: "0".into(),
+                allowed: "at least 1".into(),
+            });
+        }
+        check_range("radius", self.radius, 1.0, MAX_RADIUS)?;
+        check_range("jitter", self.jitter, 0.0, 0.49)?;
+        for (key, value) in [
+            ("w_len", self.w_len),
+            ("w_turn", self.w_turn),
+            ("w_flow", self.w_flow),
+            ("w_path", self.w_path),
+            ("w_grade", self.w_grade),
+        ] {
+            check_range(key, value, 0.0, 1.0e6)?;
+        }
+        check_range("alpha", self.alpha, 0.0, 1.0)?;
+        check_positive("temperature", self.temperature)?;
+        if let Some(threshold) = self.threshold {
+            check_range("threshold", threshold, -1.0e12, 1.0e12)?;
+        }
+        check_range("gamma", self.gamma, 1.0, 10.0)?;
+        check_positive("tip_width", self.tip_width)?;
+        check_range("tip_width", self.tip_width, 0.0, 1.0)?;
+        if let Some(angle) = self.branch_angle {
+            check_range("branch_angle", angle, 0.0, 150.0)?;
+        }
+        check_range("elongation", self.elongation, 1.0, 10.0)?;
+        check_range("grade_x", self.grade_x, -1.0, 1.0)?;
+        check_range("grade_y", self.grade_y, -1.0, 1.0)?;
+        check_positive("runoff", self.runoff)?;
+        check_range("runoff", self.runoff, 0.0, 1.0)?;
+        check_range("refresh", self.refresh, 0.001, 1.0)?;
+        if let Some(outline) = &self.outline {
+            check_polygon("outline", outline)?;
+        }
+        for (index, obstacle) in self.obstacles.iter().enumerate() {
+            check_polygon(&format!("obstacles[{index}]"), obstacle)?;
+        }
+        if let Some(mask) = &self.mask {
+            mask.validate(self.width, self.height)?;
+        }
+        Ok(())
+    }
+}
+
+fn check_range(key: &str, value: f64, low: f64, high: f64) -> Result<(), ParamError> {
+    if value.is_finite() && value >= low && value <= high {
+        return Ok(());
+    }
+    Err(ParamError {
+        key: key.to_string(),
+        value: format_number(value),
+        allowed: format!("a finite number in [{}, {}]", format_number(low), format_number(high)),
+    })
+}
+
+fn check_positive(key: &str, value: f64) -> Result<(), ParamError> {
+    if value.is_finite() && value > 0.0 {
+        return Ok(());
+    }
+    Err(ParamError {
+        key: key.to_string(),
+        value: format_number(value),
+        allowed: "a finite number greater than 0".into(),
+    })
+}
+
+fn check_polygon(key: &str, points: &[[f64; 2]]) -> Result<(), ParamError> {
+    if points.len() < 3 {
+        return Err(ParamError {
+            key: key.to_string(),
+            value: format!("{} points", points.len()),
+            allowed: "a polygon of at least 3 [x, y] points".into(),
+        });
+    }
+    for (index, point) in points.iter().enumerate() {
+        if !point[0].is_finite() || !point[1].is_finite() {
+            return Err(ParamError {
+                key: format!("{key}[{index}]"),
+                value: format!("[{}, {}]", point[0], point[1]),
+                allowed: "finite coordinates in cells".into(),
+            });
+        }
+    }
+    Ok(())
+}
+
+/// Formats a number for an error message (`NaN`, `inf` and `-inf` stay readable).
+pub(crate) fn format_number(value: f64) -> String {
+    if value.is_nan() {
+        "NaN".to_string()
+    } else if value.is_infinite() {
+        if value > 0.0 { "inf" } else { "-inf" }.to_string()
+    } else {
+        format!("{value}")
+    }
+}

@@ -1,0 +1,1 @@
+//! SVG export (stub, being written).

@@ -1,0 +1,1 @@
+//! Browser layer (stub).
