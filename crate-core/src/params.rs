@@ -65,6 +65,9 @@ pub struct Params {
     /// Anisotropy of the supply-distance term: lengths along a root's outflow axis count
     /// `1 / elongation`. Default 1 (isotropic); 1 ..= 10.
     pub elongation: f64,
+    /// Supply distance of flow running back against a root's outflow axis (growth behind the
+    /// root) counts this many times. Default 1; 1 ..= 10.
+    pub rear_cost: f64,
     /// Terrain rise per unit run along +x (m/m), for the uphill term. Default 0; -1 ..= 1.
     pub grade_x: f64,
     /// Terrain rise per unit run along +y, i.e. down the page (m/m). Default 0; -1 ..= 1.
@@ -152,6 +155,7 @@ impl Default for Params {
             tip_width: 0.12,
             branch_angle: None,
             elongation: 1.0,
+            rear_cost: 1.0,
             grade_x: 0.0,
             grade_y: 0.0,
             runoff: 1.0,
@@ -263,6 +267,7 @@ impl Params {
             check_range("branch_angle", angle, 0.0, 150.0)?;
         }
         check_range("elongation", self.elongation, 1.0, 10.0)?;
+        check_range("rear_cost", self.rear_cost, 1.0, 10.0)?;
         check_range("grade_x", self.grade_x, -1.0, 1.0)?;
         check_range("grade_y", self.grade_y, -1.0, 1.0)?;
         check_positive("runoff", self.runoff)?;

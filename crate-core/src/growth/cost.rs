@@ -1,0 +1,188 @@
+//! `CostModel`: the cost of joining a cell to an attachment point, term by term, in lattice
+//! units (lengths in cells, flows in cell weights).
+
+use crate::params::Params;
+
+/// Everything about an attachment point that the cost needs.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Anchor {
+    /// Position in cells.
+    pub x: f64,
+    /// Position in cells.
+    pub y: f64,
+    /// Unit downstream direction at the point (towards its parent; a root's outflow).
+    pub down_x: f64,
+    /// Unit downstream direction at the point.
+    pub down_y: f64,
+    /// Supply distance from the point to its root (anisotropic, cells).
+    pub dist: f64,
+    /// Marginal transport cost `D_alpha` of carrying one more cell from the point to the root.
+    pub transport: f64,
+    /// Unit outflow axis of the point's root (for `elongation`).
+    pub axis_x: f64,
+    /// Unit outflow axis of the point's root.
+    pub axis_y: f64,
+    /// Whether the point is a vein tip (no upstream segment yet): extending a tip always
+    /// prefers going straight on.
+    pub is_tip: bool,
+}
+
+/// Weights and constants of the cost formula.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct CostModel {
+    pub w_len: f64,
+    pub w_turn: f64,
+    pub w_flow: f64,
+    pub w_path: f64,
+    pub w_grade: f64,
+    /// Inverse of `elongation`: scale of lengths whose flow runs along the outflow axis.
+    pub along_scale: f64,
+    /// `rear_cost`: scale of lengths whose flow runs against the outflow axis.
+    pub rear_scale: f64,
+    /// cos and sin of the preferred branching angle, when one is set.
+    pub preferred: Option<(f64, f64)>,
+    pub grade_x: f64,
+    pub grade_y: f64,
+}
+
+impl CostModel {
+    pub fn new(params: &Params) -> CostModel {
+        let preferred = params.branch_angle.map(|degrees| {
+            let radians = degrees.to_radians();
+            (libm::cos(radians), libm::sin(radians))
+        });
+        CostModel {
+            w_len: params.w_len,
+            w_turn: params.w_turn,
+            w_flow: params.w_flow,
+            w_path: params.w_path,
+            w_grade: params.w_grade,
+            along_scale: 1.0 / params.elongation,
+            rear_scale: params.rear_cost,
+            preferred,
+            grade_x: params.grade_x,
+            grade_y: params.grade_y,
+        }
+    }
+
+    /// Cost of joining the cell at `(x, y)` to `anchor`:
+    /// `w_len * len + w_turn * turn + w_flow * D + w_path * (dist + len_aniso) + w_grade * uphill`.
+    pub fn cost(&self, x: f64, y: f64, anchor: &Anchor) -> f64 {
+        let vx = anchor.x - x;
+        let vy = anchor.y - y;
+        let length = (vx * vx + vy * vy).sqrt();
+        let mut cost = self.w_len * length;
+        if self.w_turn > 0.0 && length > 0.0 {
+            cost += self.w_turn * self.turn(vx / length, vy / length, anchor);
+        }
+        if self.w_flow > 0.0 {
+            cost += self.w_flow * anchor.transport;
+        }
+        if self.w_path > 0.0 {
+            cost += self.w_path * (anchor.dist + self.supply_length(vx, vy, anchor.axis_x, anchor.axis_y));
+        }
+        if self.w_grade > 0.0 {
+            // Rise of the anchor over the cell, in percent of one cell length.
+            let rise = self.grade_x * vx + self.grade_y * vy;
+            if rise > 0.0 {
+                cost += self.w_grade * 100.0 * rise;
+            }
+        }
+        cost
+    }
+
+    /// Junction-angle penalty for flow leaving the cell along unit `(fx, fy)`:
+    /// `1 - cos(phi)`, or with a preferred angle `theta0` at a non-tip, `1 - cos(phi - theta0)`.
+    pub fn turn(&self, fx: f64, fy: f64, anchor: &Anchor) -> f64 {
+        let cos_phi = (fx * anchor.down_x + fy * anchor.down_y).clamp(-1.0, 1.0);
+        match self.preferred {
+            Some((cos_pref, sin_pref)) if !anchor.is_tip => {
+                let sin_phi = (1.0 - cos_phi * cos_phi).max(0.0).sqrt();
+                1.0 - (cos_phi * cos_pref + sin_phi * sin_pref)
+            }
+            _ => 1.0 - cos_phi,
+        }
+    }
+
+    /// Length of the flow vector `(vx, vy)` with its component along the root's outflow axis
+    /// scaled by `1 / elongation` (flow heading out through the root) or by `rear_cost` (flow
+    /// heading back against the outflow, i.e. growth behind the root).
+    pub fn supply_length(&self, vx: f64, vy: f64, axis_x: f64, axis_y: f64) -> f64 {
+        if self.along_scale == 1.0 && self.rear_scale == 1.0 {
+            return (vx * vx + vy * vy).sqrt();
+        }
+        let mut along = vx * axis_x + vy * axis_y;
+        along *= if along >= 0.0 { self.along_scale } else { self.rear_scale };
+        let across = vx * axis_y - vy * axis_x;
+        (along * along + across * across).sqrt()
+    }
+}
+
+/// Marginal branched-transport cost of adding flow `extra` to a segment carrying `flow`:
+/// `(flow + extra)^alpha - flow^alpha` (Gilbert 1967; Xia 2003).
+pub(crate) fn marginal(flow: f64, extra: f64, alpha: f64) -> f64 {
+    libm::pow(flow + extra, alpha) - libm::pow(flow, alpha)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn anchor(down_x: f64, down_y: f64) -> Anchor {
+        Anchor {
+            x: 0.0,
+            y: 0.0,
+            down_x,
+            down_y,
+            dist: 0.0,
+            transport: 0.0,
+            axis_x: 0.0,
+            axis_y: 1.0,
+            is_tip: false,
+        }
+    }
+
+    #[test]
+    fn turn_is_zero_straight_on_and_one_at_right_angles() {
+        let model = CostModel::new(&Params::default());
+        // Flow from the cell to the anchor goes +y, the anchor drains +y: straight on.
+        assert_eq!(model.turn(0.0, 1.0, &anchor(0.0, 1.0)), 0.0);
+        assert!((model.turn(1.0, 0.0, &anchor(0.0, 1.0)) - 1.0).abs() < 1e-15);
+        assert!((model.turn(0.0, -1.0, &anchor(0.0, 1.0)) - 2.0).abs() < 1e-15);
+    }
+
+    #[test]
+    fn preferred_angle_costs_nothing_at_that_angle() {
+        let params = Params { branch_angle: Some(60.0), ..Params::default() };
+        let model = CostModel::new(&params);
+        let radians = 60f64.to_radians();
+        let (fx, fy) = (radians.sin(), radians.cos());
+        assert!(model.turn(fx, fy, &anchor(0.0, 1.0)).abs() < 1e-12);
+    }
+
+    #[test]
+    fn marginal_cost_limits() {
+        // alpha = 1: every cell pays its own way, marginal = extra.
+        assert_eq!(marginal(7.0, 1.0, 1.0), 1.0);
+        // alpha = 0: joining an existing flow is free.
+        assert_eq!(marginal(7.0, 1.0, 0.0), 0.0);
+        // alpha = 1/2: sqrt(4) - sqrt(3).
+        assert!((marginal(3.0, 1.0, 0.5) - (2.0 - 3f64.sqrt())).abs() < 1e-15);
+    }
+
+    #[test]
+    fn elongation_shortens_lengths_along_the_axis() {
+        let params = Params { elongation: 2.0, ..Params::default() };
+        let model = CostModel::new(&params);
+        assert!((model.supply_length(0.0, 4.0, 0.0, 1.0) - 2.0).abs() < 1e-15);
+        assert!((model.supply_length(4.0, 0.0, 0.0, 1.0) - 4.0).abs() < 1e-15);
+    }
+
+    #[test]
+    fn rear_cost_lengthens_flow_against_the_outflow() {
+        let params = Params { rear_cost: 3.0, ..Params::default() };
+        let model = CostModel::new(&params);
+        assert!((model.supply_length(0.0, -2.0, 0.0, 1.0) - 6.0).abs() < 1e-15);
+        assert!((model.supply_length(0.0, 2.0, 0.0, 1.0) - 2.0).abs() < 1e-15);
+    }
+}

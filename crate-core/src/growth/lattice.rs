@@ -1,0 +1,113 @@
+//! `Lattice`: cell states (blocked, free, frontier slot, node), jittered cell positions and the
+//! neighbourhood offsets of the search radius.
+
+use rand_chacha::ChaCha8Rng;
+use rand_core::{RngCore, SeedableRng};
+
+use crate::params::Params;
+
+/// Cell that may never be occupied.
+pub(crate) const BLOCKED: u32 = u32::MAX;
+/// Allowed empty cell not yet within reach.
+pub(crate) const FREE: u32 = u32::MAX - 1;
+/// Set on the state of a frontier cell; the low bits hold its frontier slot. States below this
+/// tag are node indices.
+pub(crate) const FRONTIER_TAG: u32 = 1 << 31;
+
+/// The lattice of one run. Positions are in cells: cell `(i, j)` has its centre at
+/// `(i + 0.5, j + 0.5)`, moved by its jitter.
+pub(crate) struct Lattice {
+    width: usize,
+    height: usize,
+    /// State of each cell, row-major.
+    pub state: Vec<u32>,
+    /// Jitter of each cell in cells, `[dx, dy]`, each in `[-jitter, jitter)`.
+    jitter: Vec<[f32; 2]>,
+    /// Offsets `(dx, dy)` with `dx^2 + dy^2 <= radius^2`, nearest first, excluding `(0, 0)`.
+    pub offsets: Vec<(i32, i32)>,
+}
+
+impl Lattice {
+    /// Builds the lattice; the jitter comes from ChaCha8 stream 0 of the seed, in row-major
+    /// order, two draws a cell.
+    pub fn new(params: &Params, allowed: &[bool]) -> Lattice {
+        let width = params.width as usize;
+        let height = params.height as usize;
+        let state = allowed.iter().map(|&ok| if ok { FREE } else { BLOCKED }).collect();
+        let jitter = if params.jitter > 0.0 {
+            let mut random = ChaCha8Rng::seed_from_u64(params.seed);
+            random.set_stream(0);
+            let amplitude = params.jitter;
+            (0..width * height)
+                .map(|_| {
+                    let mut draw = || {
+                        let unit = (random.next_u32() >> 8) as f64 * (1.0 / (1u32 << 24) as f64);
+                        ((2.0 * unit - 1.0) * amplitude) as f32
+                    };
+                    let dx = draw();
+                    let dy = draw();
+                    [dx, dy]
+                })
+                .collect()
+        } else {
+            Vec::new()
+        };
+        let reach = params.radius.floor() as i32;
+        let squared = params.radius * params.radius;
+        let mut offsets = Vec::new();
+        for dy in -reach..=reach {
+            for dx in -reach..=reach {
+                let distance = (dx * dx + dy * dy) as f64;
+                if (dx, dy) != (0, 0) && distance <= squared {
+                    offsets.push((dx, dy));
+                }
+            }
+        }
+        offsets.sort_by_key(|&(dx, dy)| (dx * dx + dy * dy, dy, dx));
+        Lattice { width, height, state, jitter, offsets }
+    }
+
+    pub fn cell_total(&self) -> usize {
+        self.width * self.height
+    }
+
+    pub fn cell_index(&self, column: u32, row: u32) -> usize {
+        row as usize * self.width + column as usize
+    }
+
+    pub fn column_row(&self, cell: usize) -> (i32, i32) {
+        ((cell % self.width) as i32, (cell / self.width) as i32)
+    }
+
+    /// The cell containing a position (clamped to the lattice).
+    pub fn cell_at(&self, x: f64, y: f64) -> usize {
+        let column = (x.floor().max(0.0) as usize).min(self.width - 1);
+        let row = (y.floor().max(0.0) as usize).min(self.height - 1);
+        row * self.width + column
+    }
+
+    /// The neighbour at an offset, if inside the lattice.
+    #[inline]
+    pub fn neighbour(&self, column: i32, row: i32, dx: i32, dy: i32) -> Option<usize> {
+        let (x, y) = (column + dx, row + dy);
+        if x < 0 || y < 0 || x as usize >= self.width || y as usize >= self.height {
+            return None;
+        }
+        Some(y as usize * self.width + x as usize)
+    }
+
+    /// Jittered position of a cell's node, in cells.
+    #[inline]
+    pub fn position(&self, cell: usize) -> (f64, f64) {
+        let column = (cell % self.width) as f64 + 0.5;
+        let row = (cell / self.width) as f64 + 0.5;
+        match self.jitter.get(cell) {
+            Some(&[dx, dy]) => (column + dx as f64, row + dy as f64),
+            None => (column, row),
+        }
+    }
+
+    pub fn heap_bytes(&self) -> usize {
+        self.state.capacity() * 4 + self.jitter.capacity() * 8 + self.offsets.capacity() * 8
+    }
+}
