@@ -12,6 +12,7 @@ pub mod network;
 pub mod params;
 pub mod presets;
 pub mod record;
+pub mod run;
 pub mod segments;
 pub mod svg;
 

@@ -36,7 +36,11 @@ impl MaskGrid {
             }
         }
         runs.push(length);
-        MaskGrid { width, height, runs }
+        MaskGrid {
+            width,
+            height,
+            runs,
+        }
     }
 
     /// Decodes to a row-major boolean image; `None` when the runs do not add up to the size.

@@ -97,10 +97,16 @@ impl std::fmt::Display for TopologyError {
                 write!(f, "node {node} names parent {parent}, which does not exist")
             }
             TopologyError::Cycle { node } => {
-                write!(f, "node {node} lies on a cycle: following parents never reaches a root")
+                write!(
+                    f,
+                    "node {node} lies on a cycle: following parents never reaches a root"
+                )
             }
             TopologyError::NotFinite { node } => {
-                write!(f, "node {node} has a coordinate or weight that is not a finite number")
+                write!(
+                    f,
+                    "node {node} has a coordinate or weight that is not a finite number"
+                )
             }
         }
     }
@@ -119,7 +125,10 @@ impl Network {
             }
             if node.parent != NO_PARENT {
                 if node.parent as usize >= count {
-                    return Err(TopologyError::ParentOutOfRange { node: index, parent: node.parent });
+                    return Err(TopologyError::ParentOutOfRange {
+                        node: index,
+                        parent: node.parent,
+                    });
                 }
                 children[node.parent as usize].push(index as u32);
             }
@@ -163,7 +172,12 @@ impl Network {
                 }
             })
             .collect();
-        Ok(Topology { children, order, flow, length })
+        Ok(Topology {
+            children,
+            order,
+            flow,
+            length,
+        })
     }
 
     /// Number of segments (non-root nodes).

@@ -123,7 +123,11 @@ pub struct ParamError {
 
 impl std::fmt::Display for ParamError {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(f, "parameter `{}` = {}: {}", self.key, self.value, self.allowed)
+        write!(
+            f,
+            "parameter `{}` = {}: {}",
+            self.key, self.value, self.allowed
+        )
     }
 }
 
@@ -136,7 +140,11 @@ impl Default for Params {
             height: 120,
             cell_size: 0.15,
             units: "mm".to_string(),
-            roots: vec![Root { x: 60, y: 100, outflow: [0.0, 1.0] }],
+            roots: vec![Root {
+                x: 60,
+                y: 100,
+                outflow: [0.0, 1.0],
+            }],
             seed: 1,
             cells: 10_000,
             radius: 4.0,
@@ -173,9 +181,45 @@ pub const UNITS: [&str; 5] = ["um", "mm", "cm", "m", "ft"];
 impl Params {
     /// Parses parameters from JSON text; unknown keys and wrong types are errors naming the key.
     pub fn from_json(text: &str) -> Result<Params, ParamError> {
-        serde_json::from_str(text).map_err(|error| ParamError {
+        let value: serde_json::Value = serde_json::from_str(text).map_err(|error| ParamError {
             key: "(json)".to_string(),
             value: format!("line {} column {}", error.line(), error.column()),
+            allowed: error.to_string(),
+        })?;
+        Params::from_json_value(value)
+    }
+
+    /// Builds parameters from a JSON object; missing keys take their defaults. A wrong type or
+    /// an unknown key gives an error naming that key.
+    pub fn from_json_value(value: serde_json::Value) -> Result<Params, ParamError> {
+        let error = match serde_json::from_value::<Params>(value.clone()) {
+            Ok(params) => return Ok(params),
+            Err(error) => error,
+        };
+        let serde_json::Value::Object(map) = &value else {
+            return Err(ParamError {
+                key: "(parameters)".into(),
+                value: short_text(&value.to_string()),
+                allowed: "a JSON object of parameters".into(),
+            });
+        };
+        // Try each key alone on top of the defaults to find the one that fails.
+        for (key, entry) in map {
+            let mut single = serde_json::Map::new();
+            single.insert(key.clone(), entry.clone());
+            if let Err(key_error) =
+                serde_json::from_value::<Params>(serde_json::Value::Object(single))
+            {
+                return Err(ParamError {
+                    key: key.clone(),
+                    value: short_text(&entry.to_string()),
+                    allowed: key_error.to_string(),
+                });
+            }
+        }
+        Err(ParamError {
+            key: "(parameters)".into(),
+            value: String::new(),
             allowed: error.to_string(),
         })
     }
@@ -293,7 +337,11 @@ fn check_range(key: &str, value: f64, low: f64, high: f64) -> Result<(), ParamEr
     Err(ParamError {
         key: key.to_string(),
         value: format_number(value),
-        allowed: format!("a finite number in [{}, {}]", format_number(low), format_number(high)),
+        allowed: format!(
+            "a finite number in [{}, {}]",
+            format_number(low),
+            format_number(high)
+        ),
     })
 }
 
@@ -326,6 +374,15 @@ fn check_polygon(key: &str, points: &[[f64; 2]]) -> Result<(), ParamError> {
         }
     }
     Ok(())
+}
+
+/// Shortens a value for an error message.
+fn short_text(text: &str) -> String {
+    if text.chars().count() <= 60 {
+        return text.to_string();
+    }
+    let head: String = text.chars().take(57).collect();
+    format!("{head}...")
 }
 
 /// Formats a number for an error message (`NaN`, `inf` and `-inf` stay readable).

@@ -48,7 +48,10 @@ pub fn presets() -> Vec<Preset> {
 
 /// The parameters of a preset by name.
 pub fn preset(name: &str) -> Option<Params> {
-    presets().into_iter().find(|preset| preset.name == name).map(|preset| preset.params)
+    presets()
+        .into_iter()
+        .find(|preset| preset.name == name)
+        .map(|preset| preset.params)
 }
 
 fn leaf_base() -> Params {
@@ -73,7 +76,11 @@ fn broad_leaf() -> Params {
     Params {
         width: 220,
         height: 300,
-        roots: vec![Root { x: 110, y: 270, outflow: [0.0, 1.0] }],
+        roots: vec![Root {
+            x: 110,
+            y: 270,
+            outflow: [0.0, 1.0],
+        }],
         seed: 7,
         threshold: Some(10.0),
         elongation: 3.0,
@@ -87,7 +94,11 @@ fn narrow_leaf() -> Params {
     Params {
         width: 160,
         height: 340,
-        roots: vec![Root { x: 80, y: 315, outflow: [0.0, 1.0] }],
+        roots: vec![Root {
+            x: 80,
+            y: 315,
+            outflow: [0.0, 1.0],
+        }],
         seed: 11,
         threshold: Some(9.0),
         elongation: 5.0,
@@ -101,7 +112,11 @@ fn filled_outline() -> Params {
     Params {
         width: 200,
         height: 220,
-        roots: vec![Root { x: 100, y: 174, outflow: [0.0, 1.0] }],
+        roots: vec![Root {
+            x: 100,
+            y: 174,
+            outflow: [0.0, 1.0],
+        }],
         seed: 3,
         cells: 200 * 220,
         w_path: 0.0,
@@ -114,7 +129,13 @@ fn filled_outline() -> Params {
 
 /// A heart-shaped (cordate) outline with its notch at `(centre_x, notch_y)`, `half_width` wide
 /// on each side and `length` from notch to tip, as `points` polygon vertices in cell coordinates.
-fn heart_outline(centre_x: f64, notch_y: f64, half_width: f64, length: f64, points: usize) -> Vec<[f64; 2]> {
+fn heart_outline(
+    centre_x: f64,
+    notch_y: f64,
+    half_width: f64,
+    length: f64,
+    points: usize,
+) -> Vec<[f64; 2]> {
     // The heart curve x = sin^3 t, y = (13 cos t - 5 cos 2t - 2 cos 3t - cos 4t) / 17 has its
     // tip at y = -1 (t = pi) and its notch at y = 5/17 (t = 0); it is drawn tip up, lobes down.
     let notch = 5.0 / 17.0;
@@ -124,7 +145,9 @@ fn heart_outline(centre_x: f64, notch_y: f64, half_width: f64, length: f64, poin
             let t = index as f64 / points as f64 * std::f64::consts::TAU;
             let sine = libm::sin(t);
             let x = sine * sine * sine;
-            let y = (13.0 * libm::cos(t) - 5.0 * libm::cos(2.0 * t) - 2.0 * libm::cos(3.0 * t)
+            let y = (13.0 * libm::cos(t)
+                - 5.0 * libm::cos(2.0 * t)
+                - 2.0 * libm::cos(3.0 * t)
                 - libm::cos(4.0 * t))
                 / 17.0;
             [centre_x + half_width * x, notch_y + (y - notch) * scale]
@@ -138,7 +161,11 @@ fn drainage_site() -> Params {
         height: 100,
         cell_size: 2.0,
         units: "m".into(),
-        roots: vec![Root { x: 0, y: 80, outflow: [-1.0, 0.0] }],
+        roots: vec![Root {
+            x: 0,
+            y: 80,
+            outflow: [-1.0, 0.0],
+        }],
         seed: 5,
         cells: 15_000,
         radius: 4.0,
@@ -166,7 +193,11 @@ fn spanning_tree() -> Params {
         height: 80,
         cell_size: 1.0,
         units: "mm".into(),
-        roots: vec![Root { x: 40, y: 40, outflow: [0.0, 1.0] }],
+        roots: vec![Root {
+            x: 40,
+            y: 40,
+            outflow: [0.0, 1.0],
+        }],
         seed: 1,
         cells: 6400,
         radius: 1.5,

@@ -45,7 +45,12 @@ impl SegmentTable {
                 }
             })
             .collect();
-        SegmentTable { flow: topology.flow.clone(), width, order, length: topology.length.clone() }
+        SegmentTable {
+            flow: topology.flow.clone(),
+            width,
+            order,
+            length: topology.length.clone(),
+        }
     }
 }
 
@@ -59,9 +64,20 @@ pub fn strahler_orders(network: &Network, topology: &Topology) -> Vec<u32> {
         if children.is_empty() {
             continue;
         }
-        let highest = children.iter().map(|&child| order[child as usize]).max().unwrap_or(1);
-        let at_highest = children.iter().filter(|&&child| order[child as usize] == highest).count();
-        order[node] = if at_highest >= 2 { highest + 1 } else { highest };
+        let highest = children
+            .iter()
+            .map(|&child| order[child as usize])
+            .max()
+            .unwrap_or(1);
+        let at_highest = children
+            .iter()
+            .filter(|&&child| order[child as usize] == highest)
+            .count();
+        order[node] = if at_highest >= 2 {
+            highest + 1
+        } else {
+            highest
+        };
     }
     order
 }

@@ -79,7 +79,8 @@ impl CostModel {
             cost += self.w_flow * anchor.transport;
         }
         if self.w_path > 0.0 {
-            cost += self.w_path * (anchor.dist + self.supply_length(vx, vy, anchor.axis_x, anchor.axis_y));
+            cost += self.w_path
+                * (anchor.dist + self.supply_length(vx, vy, anchor.axis_x, anchor.axis_y));
         }
         if self.w_grade > 0.0 {
             // Rise of the anchor over the cell, in percent of one cell length.
@@ -112,7 +113,11 @@ impl CostModel {
             return (vx * vx + vy * vy).sqrt();
         }
         let mut along = vx * axis_x + vy * axis_y;
-        along *= if along >= 0.0 { self.along_scale } else { self.rear_scale };
+        along *= if along >= 0.0 {
+            self.along_scale
+        } else {
+            self.rear_scale
+        };
         let across = vx * axis_y - vy * axis_x;
         (along * along + across * across).sqrt()
     }
@@ -153,7 +158,10 @@ mod tests {
 
     #[test]
     fn preferred_angle_costs_nothing_at_that_angle() {
-        let params = Params { branch_angle: Some(60.0), ..Params::default() };
+        let params = Params {
+            branch_angle: Some(60.0),
+            ..Params::default()
+        };
         let model = CostModel::new(&params);
         let radians = 60f64.to_radians();
         let (fx, fy) = (radians.sin(), radians.cos());
@@ -172,7 +180,10 @@ mod tests {
 
     #[test]
     fn elongation_shortens_lengths_along_the_axis() {
-        let params = Params { elongation: 2.0, ..Params::default() };
+        let params = Params {
+            elongation: 2.0,
+            ..Params::default()
+        };
         let model = CostModel::new(&params);
         assert!((model.supply_length(0.0, 4.0, 0.0, 1.0) - 2.0).abs() < 1e-15);
         assert!((model.supply_length(4.0, 0.0, 0.0, 1.0) - 4.0).abs() < 1e-15);
@@ -180,7 +191,10 @@ mod tests {
 
     #[test]
     fn rear_cost_lengthens_flow_against_the_outflow() {
-        let params = Params { rear_cost: 3.0, ..Params::default() };
+        let params = Params {
+            rear_cost: 3.0,
+            ..Params::default()
+        };
         let model = CostModel::new(&params);
         assert!((model.supply_length(0.0, -2.0, 0.0, 1.0) - 6.0).abs() < 1e-15);
         assert!((model.supply_length(0.0, 2.0, 0.0, 1.0) - 2.0).abs() < 1e-15);

@@ -61,7 +61,8 @@ impl Frontier {
 
     /// Bytes held, for the memory benchmark.
     pub fn heap_bytes(&self) -> usize {
-        self.capacity * 2 * (8 + 4 + 8) + self.slots.capacity() * std::mem::size_of::<Slot>()
+        self.capacity * 2 * (8 + 4 + 8)
+            + self.slots.capacity() * std::mem::size_of::<Slot>()
             + self.free.capacity() * 4
     }
 
@@ -160,7 +161,11 @@ impl Frontier {
     fn combine(&mut self, node: usize) {
         let left = 2 * node;
         let right = left + 1;
-        let pick = if self.min_cost[right] < self.min_cost[left] { right } else { left };
+        let pick = if self.min_cost[right] < self.min_cost[left] {
+            right
+        } else {
+            left
+        };
         self.min_cost[node] = self.min_cost[pick];
         self.min_slot[node] = self.min_slot[pick];
         self.weight_sum[node] = self.weight_sum[left] + self.weight_sum[right];
@@ -198,7 +203,15 @@ mod tests {
     use super::*;
 
     fn slot(cell: u32, cost: f64) -> Slot {
-        Slot { cell, cost, best: Attachment { target: 0, segment_parent: NONE, along: 0.0 } }
+        Slot {
+            cell,
+            cost,
+            best: Attachment {
+                target: 0,
+                segment_parent: NONE,
+                along: 0.0,
+            },
+        }
     }
 
     #[test]

@@ -33,7 +33,10 @@ impl Lattice {
     pub fn new(params: &Params, allowed: &[bool]) -> Lattice {
         let width = params.width as usize;
         let height = params.height as usize;
-        let state = allowed.iter().map(|&ok| if ok { FREE } else { BLOCKED }).collect();
+        let state = allowed
+            .iter()
+            .map(|&ok| if ok { FREE } else { BLOCKED })
+            .collect();
         let jitter = if params.jitter > 0.0 {
             let mut random = ChaCha8Rng::seed_from_u64(params.seed);
             random.set_stream(0);
@@ -64,7 +67,13 @@ impl Lattice {
             }
         }
         offsets.sort_by_key(|&(dx, dy)| (dx * dx + dy * dy, dy, dx));
-        Lattice { width, height, state, jitter, offsets }
+        Lattice {
+            width,
+            height,
+            state,
+            jitter,
+            offsets,
+        }
     }
 
     pub fn cell_total(&self) -> usize {

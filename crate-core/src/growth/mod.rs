@@ -187,7 +187,10 @@ impl Growth {
                 Err(reason) => self.stopped = Some(reason),
             }
         }
-        StepReport { added, stopped: self.stopped }
+        StepReport {
+            added,
+            stopped: self.stopped,
+        }
     }
 
     /// Grows to the end (a stop rule) and returns why it stopped.
@@ -243,16 +246,29 @@ impl Growth {
                 x: self.x[index] * size,
                 y: self.y[index] * size,
                 parent: self.parent[index],
-                weight: if self.cell_of[index] == NONE { 0.0 } else { weight },
+                weight: if self.cell_of[index] == NONE {
+                    0.0
+                } else {
+                    weight
+                },
             })
             .collect();
-        let occupied = self.cell_of.iter().copied().filter(|&cell| cell != NONE).collect();
+        let occupied = self
+            .cell_of
+            .iter()
+            .copied()
+            .filter(|&cell| cell != NONE)
+            .collect();
         Network {
             nodes,
             area: self.cell_count as f64 * cell_area,
             units: self.params.units.clone(),
             cell_size: size,
-            cells: CellSet { width: self.params.width, height: self.params.height, occupied },
+            cells: CellSet {
+                width: self.params.width,
+                height: self.params.height,
+                occupied,
+            },
         }
     }
 }
@@ -262,7 +278,17 @@ impl Growth {
     fn add_root(&mut self, cell: usize, root_index: u32) {
         let (x, y) = self.lattice.position(cell);
         let (axis_x, axis_y) = self.axes[root_index as usize];
-        let node = self.push_node(x, y, NO_PARENT, axis_x, axis_y, 0.0, 0.0, root_index, cell as u32);
+        let node = self.push_node(
+            x,
+            y,
+            NO_PARENT,
+            axis_x,
+            axis_y,
+            0.0,
+            0.0,
+            root_index,
+            cell as u32,
+        );
         self.flow[node as usize] = self.cell_weight;
         self.occupy(cell, node);
     }
@@ -321,14 +347,20 @@ impl Growth {
         let segment = self.params.attach_to_segments && self.parent[node as usize] != NO_PARENT;
         for offset_index in 0..self.lattice.offsets.len() {
             let (dx, dy) = self.lattice.offsets[offset_index];
-            let Some(cell) = self.lattice.neighbour(column, row, dx, dy) else { continue };
+            let Some(cell) = self.lattice.neighbour(column, row, dx, dy) else {
+                continue;
+            };
             let state = self.lattice.state[cell];
             if state == BLOCKED || state < FRONTIER_TAG {
                 continue;
             }
             let (cx, cy) = self.lattice.position(cell);
             let mut best_cost = self.model.cost(cx, cy, &node_anchor);
-            let mut best = Attachment { target: node, segment_parent: NONE, along: 0.0 };
+            let mut best = Attachment {
+                target: node,
+                segment_parent: NONE,
+                along: 0.0,
+            };
             if segment {
                 if let Some((cost, attachment)) = self.best_on_segment(cx, cy, node) {
                     if cost < best_cost {
@@ -338,7 +370,11 @@ impl Growth {
                 }
             }
             if state == FREE {
-                let slot = Slot { cell: cell as u32, cost: best_cost, best };
+                let slot = Slot {
+                    cell: cell as u32,
+                    cost: best_cost,
+                    best,
+                };
                 let weight = self.weight(best_cost);
                 let index = self.frontier.insert(slot, weight);
                 self.lattice.state[cell] = FRONTIER_TAG | index;
@@ -383,7 +419,10 @@ impl Growth {
             y,
             down_x: self.down_x[index],
             down_y: self.down_y[index],
-            dist: self.dist[parent] + self.model.supply_length(to_parent_x, to_parent_y, axis_x, axis_y),
+            dist: self.dist[parent]
+                + self
+                    .model
+                    .supply_length(to_parent_x, to_parent_y, axis_x, axis_y),
             transport: self.transport[parent]
                 + rest * marginal(self.flow[index], self.cell_weight, self.params.alpha),
             axis_x,
@@ -418,7 +457,14 @@ impl Growth {
             let anchor = self.segment_anchor(node, along);
             let cost = self.model.cost(cx, cy, &anchor);
             if best.is_none_or(|(best_cost, _)| cost < best_cost) {
-                best = Some((cost, Attachment { target: node, segment_parent: parent, along }));
+                best = Some((
+                    cost,
+                    Attachment {
+                        target: node,
+                        segment_parent: parent,
+                        along,
+                    },
+                ));
             }
         }
         best
@@ -435,7 +481,9 @@ impl Growth {
             }
         };
         for &(dx, dy) in &self.lattice.offsets {
-            let Some(other) = self.lattice.neighbour(column, row, dx, dy) else { continue };
+            let Some(other) = self.lattice.neighbour(column, row, dx, dy) else {
+                continue;
+            };
             let state = self.lattice.state[other];
             let mut candidates = [NONE; 2];
             if state < FRONTIER_TAG {
@@ -448,13 +496,24 @@ impl Growth {
                 let mut node = first;
                 while node != NONE {
                     let cost = self.model.cost(cx, cy, &self.node_anchor(node));
-                    consider(cost, Attachment { target: node, segment_parent: NONE, along: 0.0 });
+                    consider(
+                        cost,
+                        Attachment {
+                            target: node,
+                            segment_parent: NONE,
+                            along: 0.0,
+                        },
+                    );
                     if self.params.attach_to_segments {
                         if let Some((cost, attachment)) = self.best_on_segment(cx, cy, node) {
                             consider(cost, attachment);
                         }
                     }
-                    node = if kind == 1 { self.junction_next[node as usize] } else { NONE };
+                    node = if kind == 1 {
+                        self.junction_next[node as usize]
+                    } else {
+                        NONE
+                    };
                 }
             }
         }
@@ -498,9 +557,9 @@ impl Growth {
             match joining {
                 Joining::Cheapest => 0.0,
                 Joining::Uniform => 1.0,
-                Joining::Weighted => libm::exp(
-                    ((reference - slot.cost) / temperature).min(WEIGHT_CEILING_EXPONENT),
-                ),
+                Joining::Weighted => {
+                    libm::exp(((reference - slot.cost) / temperature).min(WEIGHT_CEILING_EXPONENT))
+                }
             }
         });
     }
@@ -511,7 +570,11 @@ impl Growth {
             let Some((cheapest_slot, cheapest_cost)) = self.frontier.cheapest() else {
                 return Err(StopReason::Full);
             };
-            if self.params.threshold.is_some_and(|threshold| cheapest_cost >= threshold) {
+            if self
+                .params
+                .threshold
+                .is_some_and(|threshold| cheapest_cost >= threshold)
+            {
                 return Err(StopReason::Threshold);
             }
             let slot_index = match self.params.joining {
@@ -540,7 +603,12 @@ impl Growth {
                 return Ok((slot_index, slot.best));
             };
             let still_valid = attachment == slot.best || cost <= slot.cost + 1e-12;
-            if still_valid && !self.params.threshold.is_some_and(|threshold| cost >= threshold) {
+            if still_valid
+                && !self
+                    .params
+                    .threshold
+                    .is_some_and(|threshold| cost >= threshold)
+            {
                 return Ok((slot_index, attachment));
             }
             let weight = self.weight(cost);
@@ -560,14 +628,27 @@ impl Growth {
         let t = target as usize;
         let (vx, vy) = (self.x[t] - cx, self.y[t] - cy);
         let length = (vx * vx + vy * vy).sqrt();
-        let (down_x, down_y) =
-            if length > 0.0 { (vx / length, vy / length) } else { (self.down_x[t], self.down_y[t]) };
+        let (down_x, down_y) = if length > 0.0 {
+            (vx / length, vy / length)
+        } else {
+            (self.down_x[t], self.down_y[t])
+        };
         let root = self.root_of[t];
         let (axis_x, axis_y) = self.axes[root as usize];
         let dist = self.dist[t] + self.model.supply_length(vx, vy, axis_x, axis_y);
-        let transport =
-            self.transport[t] + length * marginal(self.cell_weight, self.cell_weight, self.params.alpha);
-        let node = self.push_node(cx, cy, target, down_x, down_y, dist, transport, root, cell as u32);
+        let transport = self.transport[t]
+            + length * marginal(self.cell_weight, self.cell_weight, self.params.alpha);
+        let node = self.push_node(
+            cx,
+            cy,
+            target,
+            down_x,
+            down_y,
+            dist,
+            transport,
+            root,
+            cell as u32,
+        );
         self.flow[node as usize] = self.cell_weight;
         self.occupy(cell, node);
         self.maybe_refresh();
@@ -622,7 +703,8 @@ impl Growth {
             }
             let (cx, cy) = self.lattice.position(slot.cell as usize);
             let best = slot.best;
-            let split = best.segment_parent != NONE && self.parent[best.target as usize] != best.segment_parent;
+            let split = best.segment_parent != NONE
+                && self.parent[best.target as usize] != best.segment_parent;
             let cost = if split {
                 match self.best_from_scratch(slot.cell as usize) {
                     Some((cost, attachment)) => {
@@ -634,7 +716,8 @@ impl Growth {
             } else if best.segment_parent == NONE {
                 self.model.cost(cx, cy, &self.node_anchor(best.target))
             } else {
-                self.model.cost(cx, cy, &self.segment_anchor(best.target, best.along))
+                self.model
+                    .cost(cx, cy, &self.segment_anchor(best.target, best.along))
             };
             self.frontier.slots[index].cost = cost;
         }
@@ -673,14 +756,21 @@ impl Growth {
         while head < self.scratch_order.len() {
             let node = self.scratch_order[head] as usize;
             head += 1;
-            let (start, end) = (self.scratch_start[node] as usize, self.scratch_start[node + 1] as usize);
+            let (start, end) = (
+                self.scratch_start[node] as usize,
+                self.scratch_start[node + 1] as usize,
+            );
             for position in start..end {
                 let child = self.scratch_children[position];
                 self.scratch_order.push(child);
             }
         }
         for node in 0..count {
-            self.flow[node] = if self.cell_of[node] == NONE { 0.0 } else { self.cell_weight };
+            self.flow[node] = if self.cell_of[node] == NONE {
+                0.0
+            } else {
+                self.cell_weight
+            };
         }
         for &node in self.scratch_order.iter().rev() {
             let parent = self.parent[node as usize];
@@ -700,7 +790,8 @@ impl Growth {
             let parent = parent as usize;
             let (vx, vy) = (self.x[parent] - self.x[node], self.y[parent] - self.y[node]);
             let length = (vx * vx + vy * vy).sqrt();
-            self.transport[node] = self.transport[parent] + length * marginal(self.flow[node], extra, alpha);
+            self.transport[node] =
+                self.transport[parent] + length * marginal(self.flow[node], extra, alpha);
         }
     }
 }

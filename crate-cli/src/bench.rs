@@ -1,0 +1,168 @@
+//! `ramulus bench`: growth speed and memory figures (cells per second, peak bytes per cell,
+//! scaling between sizes), measured with a counting global allocator. Prints figures; it
+//! never fails on slowness.
+
+use std::alloc::{GlobalAlloc, Layout, System};
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::time::Instant;
+
+use ramulus_core::growth::Growth;
+use ramulus_core::params::{Joining, Params, Root};
+
+use crate::options::CliError;
+
+static CURRENT: AtomicUsize = AtomicUsize::new(0);
+static PEAK: AtomicUsize = AtomicUsize::new(0);
+
+/// The system allocator, counting live and peak bytes.
+pub struct CountingAllocator;
+
+unsafe impl GlobalAlloc for CountingAllocator {
+    unsafe fn alloc(&self, layout: Layout) -> *mut u8 {
+        let pointer = unsafe { System.alloc(layout) };
+        if !pointer.is_null() {
+            let now = CURRENT.fetch_add(layout.size(), Ordering::Relaxed) + layout.size();
+            PEAK.fetch_max(now, Ordering::Relaxed);
+        }
+        pointer
+    }
+
+    unsafe fn dealloc(&self, pointer: *mut u8, layout: Layout) {
+        unsafe { System.dealloc(pointer, layout) };
+        CURRENT.fetch_sub(layout.size(), Ordering::Relaxed);
+    }
+}
+
+struct Case {
+    name: String,
+    params: Params,
+}
+
+struct Figures {
+    cells: u64,
+    seconds: f64,
+    peak_bytes: usize,
+}
+
+fn measure(case: &Case) -> Result<Figures, CliError> {
+    let baseline = CURRENT.load(Ordering::Relaxed);
+    PEAK.store(baseline, Ordering::Relaxed);
+    let start = Instant::now();
+    let mut growth =
+        Growth::new(&case.params).map_err(|error| CliError::Failed(error.to_string()))?;
+    growth.run();
+    let seconds = start.elapsed().as_secs_f64();
+    let cells = growth.cell_count();
+    drop(growth);
+    let peak_bytes = PEAK.load(Ordering::Relaxed).saturating_sub(baseline);
+    Ok(Figures {
+        cells,
+        seconds,
+        peak_bytes,
+    })
+}
+
+/// Cheapest-first pure length on a full square lattice (Prim's minimum spanning tree).
+fn pure_length(side: u32) -> Params {
+    Params {
+        width: side,
+        height: side,
+        cell_size: 1.0,
+        roots: vec![Root {
+            x: side / 2,
+            y: side / 2,
+            outflow: [0.0, 1.0],
+        }],
+        cells: side as u64 * side as u64,
+        radius: 1.5,
+        jitter: 0.0,
+        w_turn: 0.0,
+        w_flow: 0.0,
+        w_path: 0.0,
+        joining: Joining::Cheapest,
+        ..Params::default()
+    }
+}
+
+/// The full cost model: weighted joining, jitter, turn, flow and path terms, radius 4.
+fn full_model(cells: u64) -> Params {
+    let side = ((cells as f64 * 1.6).sqrt() as u32).max(20);
+    Params {
+        width: side,
+        height: side,
+        cell_size: 0.15,
+        roots: vec![Root {
+            x: side / 2,
+            y: side / 2,
+            outflow: [0.0, 1.0],
+        }],
+        cells,
+        radius: 4.0,
+        jitter: 0.4,
+        w_len: 1.0,
+        w_turn: 1.0,
+        w_flow: 0.5,
+        alpha: 0.5,
+        w_path: 0.05,
+        joining: Joining::Weighted,
+        temperature: 0.5,
+        ..Params::default()
+    }
+}
+
+/// Runs the benchmark cases and prints one line of figures per case.
+pub fn run(arguments: &[String]) -> Result<(), CliError> {
+    let quick = arguments.iter().any(|argument| argument == "--quick");
+    if let Some(other) = arguments
+        .iter()
+        .find(|argument| argument.as_str() != "--quick")
+    {
+        return Err(CliError::Usage(format!(
+            "unknown option `{other}` for `bench`"
+        )));
+    }
+    let (side, small, large) = if quick {
+        (300, 25_000, 100_000)
+    } else {
+        (1000, 100_000, 400_000)
+    };
+    let cases = [
+        Case {
+            name: format!("cheapest, pure length, {side} x {side} full lattice, radius 1.5"),
+            params: pure_length(side),
+        },
+        Case {
+            name: format!("full cost model, weighted, {small} cells"),
+            params: full_model(small),
+        },
+        Case {
+            name: format!("full cost model, weighted, {large} cells"),
+            params: full_model(large),
+        },
+    ];
+    println!(
+        "{:<58} {:>9} {:>9} {:>12} {:>10} {:>10}",
+        "case", "cells", "seconds", "cells/s", "peak MiB", "bytes/cell"
+    );
+    let mut results = Vec::new();
+    for case in &cases {
+        let figures = measure(case)?;
+        println!(
+            "{:<58} {:>9} {:>9.3} {:>12.0} {:>10.1} {:>10.1}",
+            case.name,
+            figures.cells,
+            figures.seconds,
+            figures.cells as f64 / figures.seconds,
+            figures.peak_bytes as f64 / (1024.0 * 1024.0),
+            figures.peak_bytes as f64 / figures.cells as f64
+        );
+        results.push(figures);
+    }
+    let (small, large) = (&results[1], &results[2]);
+    println!(
+        "scaling: {:.1} x the cells took {:.2} x the time",
+        large.cells as f64 / small.cells as f64,
+        large.seconds / small.seconds
+    );
+    Ok(())
+}

@@ -1,0 +1,209 @@
+//! The `grow`, `measure` and `presets` commands: read inputs, call the core, print results.
+
+use ramulus_core::growth::Growth;
+use ramulus_core::import::mask_from_bytes;
+use ramulus_core::metrics::{metrics_table, Metrics};
+use ramulus_core::params::Params;
+use ramulus_core::presets::presets as all_presets;
+use ramulus_core::record::{make_record, read_record, write_record};
+use ramulus_core::run::{RunView, SITE_CAUTION};
+use ramulus_core::svg::{render_svg, Colouring, SvgOptions};
+use serde_json::json;
+
+use crate::options::{assemble_params, CliError, GrowOptions};
+
+fn read_text(path: &str) -> Result<String, CliError> {
+    std::fs::read_to_string(path)
+        .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))
+}
+
+fn write_file(path: &str, text: &str) -> Result<(), CliError> {
+    std::fs::write(path, text)
+        .map_err(|error| CliError::Failed(format!("{path}: cannot write: {error}")))
+}
+
+/// `ramulus grow`.
+pub fn grow(arguments: &[String]) -> Result<(), CliError> {
+    let options = GrowOptions::parse(arguments)?;
+    let file_text = match &options.params_file {
+        Some(path) => Some((path.as_str(), read_text(path)?)),
+        None => None,
+    };
+    let mut params = assemble_params(
+        options.preset.as_deref(),
+        file_text
+            .as_ref()
+            .map(|(path, text)| (*path, text.as_str())),
+        &options.sets,
+    )?;
+    if let Some(path) = &options.mask_file {
+        let bytes = std::fs::read(path)
+            .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))?;
+        let mask = mask_from_bytes(&bytes)
+            .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+        params.width = mask.width;
+        params.height = mask.height;
+        params.mask = Some(mask);
+        params
+            .validate()
+            .map_err(|error| CliError::Failed(format!("with mask {path}: {error}")))?;
+    }
+    let colour = match options.colour.as_deref() {
+        None | Some("order") => Colouring::ByOrder,
+        Some("flow") => Colouring::ByFlow,
+        Some("plain") => Colouring::Plain,
+        Some(other) => {
+            return Err(CliError::Usage(format!(
+                "`--colour {other}`: use order, flow or plain"
+            )))
+        }
+    };
+    let mut growth = Growth::new(&params).map_err(|error| CliError::Failed(error.to_string()))?;
+    let stopped = growth.run();
+    let view = RunView::new(growth.network(), &params).map_err(|error| {
+        CliError::Failed(format!("internal: grown network is not a forest: {error}"))
+    })?;
+    if let Some(path) = &options.record_file {
+        let record = make_record(&view, &params, Some(stop_name(stopped)));
+        write_file(path, &write_record(&record))?;
+    }
+    if let Some(path) = &options.svg_file {
+        let svg = render_svg(
+            &view.network,
+            &view.table,
+            &svg_options(&params, &view, colour),
+        );
+        write_file(path, &svg)?;
+    }
+    if options.json {
+        let output = json!({
+            "digest": view.digest,
+            "cells": growth.cell_count(),
+            "nodes": view.network.nodes.len(),
+            "segments": view.network.segment_count(),
+            "total_length": view.metrics.total_length,
+            "units": params.units,
+            "stopped": stop_name(stopped),
+            "metrics": view.metrics,
+            "caution": params.is_site().then_some(SITE_CAUTION),
+        });
+        println!("{output}");
+    } else {
+        println!("stopped: {stopped}");
+        println!(
+            "cells: {}   segments: {}   digest: {}",
+            growth.cell_count(),
+            view.network.segment_count(),
+            view.digest
+        );
+        print_table(&view.metrics, &params.units);
+        if params.is_site() {
+            println!("\nCAUTION: {SITE_CAUTION}");
+        }
+    }
+    Ok(())
+}
+
+fn stop_name(reason: ramulus_core::StopReason) -> String {
+    serde_json::to_value(reason)
+        .ok()
+        .and_then(|value| value.as_str().map(str::to_string))
+        .unwrap_or_default()
+}
+
+fn svg_options(params: &Params, view: &RunView, colour: Colouring) -> SvgOptions {
+    let metadata = json!({ "params": params, "seed": params.seed, "digest": view.digest });
+    SvgOptions {
+        colour,
+        title: format!(
+            "Ramulus network, seed {}, digest {}",
+            params.seed, view.digest
+        ),
+        metadata_json: metadata.to_string(),
+        digest: view.digest.clone(),
+        caution: params.is_site().then(|| SITE_CAUTION.to_string()),
+        margin: params.cell_size * 2.0,
+    }
+}
+
+fn print_table(metrics: &Metrics, units: &str) {
+    let rows = metrics_table(metrics, units);
+    let label_width = rows.iter().map(|row| row.0.len()).max().unwrap_or(0);
+    let value_width = rows.iter().map(|row| row.1.len()).max().unwrap_or(0);
+    for (label, value, unit) in rows {
+        println!("  {label:<label_width$}  {value:>value_width$}  {unit}");
+    }
+}
+
+/// `ramulus measure RECORD.json`.
+pub fn measure_record(path: &str, as_json: bool) -> Result<(), CliError> {
+    let text = read_text(path)?;
+    let (record, network) =
+        read_record(&text).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+    let alpha = record.params.as_ref().map_or(0.5, |params| params.alpha);
+    let metrics = ramulus_core::metrics::measure(&network, alpha)
+        .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+    let digest = ramulus_core::digest::digest_hex(&network);
+    if as_json {
+        println!(
+            "{}",
+            json!({ "digest": digest, "segments": network.segment_count(), "total_length": metrics.total_length, "metrics": metrics })
+        );
+    } else {
+        println!(
+            "digest: {digest}{}",
+            if digest == record.digest {
+                ""
+            } else {
+                "  (differs from the digest stored in the record)"
+            }
+        );
+        print_table(&metrics, &network.units);
+    }
+    Ok(())
+}
+
+/// `ramulus measure` argument handling.
+pub fn measure(arguments: &[String]) -> Result<(), CliError> {
+    let mut path = None;
+    let mut as_json = false;
+    for argument in arguments {
+        match argument.as_str() {
+            "--json" => as_json = true,
+            flag if flag.starts_with("--") => {
+                return Err(CliError::Usage(format!(
+                    "unknown option `{flag}` for `measure`"
+                )))
+            }
+            file => path = Some(file.to_string()),
+        }
+    }
+    let path = path.ok_or_else(|| CliError::Usage("`measure` needs a RECORD.json".into()))?;
+    measure_record(&path, as_json)
+}
+
+/// `ramulus presets`.
+pub fn presets(arguments: &[String]) -> Result<(), CliError> {
+    let as_json = arguments.iter().any(|argument| argument == "--json");
+    if let Some(other) = arguments
+        .iter()
+        .find(|argument| argument.as_str() != "--json")
+    {
+        return Err(CliError::Usage(format!(
+            "unknown option `{other}` for `presets`"
+        )));
+    }
+    if as_json {
+        let list: Vec<_> = all_presets()
+            .into_iter()
+            .map(|preset| json!({ "name": preset.name, "description": preset.description, "params": preset.params }))
+            .collect();
+        println!("{}", serde_json::Value::Array(list));
+        return Ok(());
+    }
+    for preset in all_presets() {
+        let params = serde_json::to_string(&preset.params).unwrap_or_default();
+        println!("{}: {}\n  {params}\n", preset.name, preset.description);
+    }
+    Ok(())
+}
