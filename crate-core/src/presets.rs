@@ -114,7 +114,7 @@ fn filled_outline() -> Params {
         height: 220,
         roots: vec![Root {
             x: 100,
-            y: 174,
+            y: 162,
             outflow: [0.0, 1.0],
         }],
         seed: 3,

@@ -232,8 +232,6 @@ struct Frame {
     width: f64,
     /// Bottom of the drawing area (the band starts here).
     drawing_bottom: f64,
-    /// Width of the network itself (for the scale bar).
-    network_width: f64,
     /// Radius of root circles.
     root_radius: f64,
     /// Decimals for coordinates (about 6 significant digits of the view size).
@@ -286,11 +284,6 @@ impl Frame {
             y0: finite_or_zero(y0),
             width: finite_or_zero(width),
             drawing_bottom: finite_or_zero(y0 + height),
-            network_width: if network_width > 0.0 {
-                network_width
-            } else {
-                base
-            },
             root_radius,
             decimals,
         }
@@ -301,10 +294,10 @@ impl Frame {
     }
 }
 
-/// Font size in physical units: about 2.5 mm on paper, kept between 2 % and 6 % of the width.
+/// Font size in physical units: about 2.5 mm on paper, kept between 2 % and 4.5 % of the width.
 fn font_size(frame: &Frame, paper_mm_per_unit: Option<f64>) -> f64 {
     let low = 0.02 * frame.width;
-    let high = 0.06 * frame.width;
+    let high = 0.045 * frame.width;
     let font = match paper_mm_per_unit {
         Some(scale) if scale > 0.0 && scale.is_finite() => 2.5 / scale,
         _ => 0.035 * frame.width,
@@ -392,15 +385,36 @@ impl Page {
     }
 }
 
-/// A legend entry: an optional swatch and a label.
+/// A legend entry: pieces laid side by side and never split across lines.
 struct LegendItem {
-    swatch: Option<Swatch>,
-    label: String,
+    pieces: Vec<Piece>,
 }
 
-enum Swatch {
+/// Part of a legend entry.
+enum Piece {
+    /// A short stroke in a colour.
     Line(String),
+    /// A root marker.
     Circle,
+    /// A label.
+    Text(String),
+}
+
+impl LegendItem {
+    fn text(label: impl Into<String>) -> LegendItem {
+        LegendItem {
+            pieces: vec![Piece::Text(label.into())],
+        }
+    }
+}
+
+/// Width of a legend piece, in font sizes (text is estimated at 0.6 font sizes a character).
+fn piece_width(piece: &Piece) -> f64 {
+    match piece {
+        Piece::Line(_) => 1.3,
+        Piece::Circle => 1.1,
+        Piece::Text(label) => 0.3 + 0.6 * label.chars().count() as f64,
+    }
 }
 
 /// The annotation band under the drawing, already written as SVG.
@@ -432,13 +446,13 @@ impl Band {
         let mut baseline = frame.drawing_bottom + line_gap;
 
         // Scale bar.
-        let length = round_length(frame.network_width / 5.0);
+        let length = round_length(frame.width / 5.0);
         let bar_end = left + length;
         let label = format!("{} {}", significant(length), units);
-        let _ = write!(
+        let _ = writeln!(
             svg,
             "<path class=\"scale-bar\" d=\"M{} {}V{}H{}V{}\" fill=\"none\" stroke=\"{TEXT}\" \
-             stroke-width=\"{}\"/>\n",
+             stroke-width=\"{}\"/>",
             c(left),
             c(baseline - 0.5 * font),
             c(baseline),
@@ -474,60 +488,53 @@ impl Band {
         let mut x = left;
         baseline += line_gap;
         for item in &items {
-            let swatch_width = if item.swatch.is_some() {
-                1.6 * font
-            } else {
-                0.0
-            };
-            let item_width = swatch_width + item.label.chars().count() as f64 * char_width;
+            let item_width: f64 = item.pieces.iter().map(piece_width).sum::<f64>() * font;
             if x > left && x + item_width > right {
                 x = left;
                 baseline += line_gap;
             }
             let middle = baseline - 0.35 * font;
-            match &item.swatch {
-                Some(Swatch::Line(colour)) => {
-                    let _ = writeln!(
-                        svg,
-                        "<line class=\"legend-swatch\" x1=\"{}\" y1=\"{}\" x2=\"{}\" y2=\"{}\" \
-                         stroke=\"{colour}\" stroke-width=\"{}\" stroke-linecap=\"round\"/>",
-                        c(x + 0.2 * font),
-                        c(middle),
-                        c(x + 1.2 * font),
-                        c(middle),
-                        significant(0.45 * font),
-                    );
+            for piece in &item.pieces {
+                match piece {
+                    Piece::Line(colour) => {
+                        let _ = writeln!(
+                            svg,
+                            "<line class=\"legend-swatch\" x1=\"{}\" y1=\"{}\" x2=\"{}\" \
+                             y2=\"{}\" stroke=\"{colour}\" stroke-width=\"{}\" \
+                             stroke-linecap=\"round\"/>",
+                            c(x + 0.3 * font),
+                            c(middle),
+                            c(x + 1.0 * font),
+                            c(middle),
+                            significant(0.45 * font),
+                        );
+                    }
+                    Piece::Circle => {
+                        let _ = writeln!(
+                            svg,
+                            "<circle class=\"legend-swatch\" cx=\"{}\" cy=\"{}\" r=\"{}\" \
+                             fill=\"{ROOT_FILL}\" stroke=\"{TEXT}\" stroke-width=\"{}\"/>",
+                            c(x + 0.5 * font),
+                            c(middle),
+                            significant(0.3 * font),
+                            significant(0.1 * font),
+                        );
+                    }
+                    Piece::Text(label) => {
+                        text_element(
+                            &mut svg,
+                            frame,
+                            "legend",
+                            x + 0.25 * font,
+                            baseline,
+                            label,
+                            false,
+                        );
+                    }
                 }
-                Some(Swatch::Circle) => {
-                    let _ = writeln!(
-                        svg,
-                        "<circle class=\"legend-swatch\" cx=\"{}\" cy=\"{}\" r=\"{}\" \
-                         fill=\"{ROOT_FILL}\" stroke=\"{TEXT}\" stroke-width=\"{}\"/>",
-                        c(x + 0.7 * font),
-                        c(middle),
-                        significant(0.3 * font),
-                        significant(0.1 * font),
-                    );
-                }
-                None => {}
+                x += piece_width(piece) * font;
             }
-            if !item.label.is_empty() {
-                text_element(
-                    &mut svg,
-                    frame,
-                    "legend",
-                    x + swatch_width,
-                    baseline,
-                    &item.label,
-                    false,
-                );
-            }
-            x += item_width
-                + if item.label.is_empty() {
-                    0.0
-                } else {
-                    1.0 * font
-                };
+            x += 0.9 * font;
         }
 
         // Caution.
@@ -554,10 +561,7 @@ fn legend_items(drawing: &Drawing, colouring: Colouring, units: &str) -> Vec<Leg
     let mut items = Vec::new();
     match colouring {
         Colouring::ByOrder if drawing.max_order > 0 => {
-            items.push(LegendItem {
-                swatch: None,
-                label: "Strahler order".to_string(),
-            });
+            items.push(LegendItem::text("Strahler order"));
             let shown = drawing.max_order.min(ORDER_COLOURS.len() as u32);
             for order in 1..=shown {
                 let plus = if order == shown && drawing.max_order > shown {
@@ -566,45 +570,39 @@ fn legend_items(drawing: &Drawing, colouring: Colouring, units: &str) -> Vec<Leg
                     ""
                 };
                 items.push(LegendItem {
-                    swatch: Some(Swatch::Line(order_colour(order).to_string())),
-                    label: format!("{order}{plus}"),
+                    pieces: vec![
+                        Piece::Line(order_colour(order).to_string()),
+                        Piece::Text(format!("{order}{plus}")),
+                    ],
                 });
             }
         }
         Colouring::ByFlow => {
             if let Some((low, high)) = drawing.flow_range {
-                items.push(LegendItem {
-                    swatch: None,
-                    label: format!("flow ({units}\u{b2})"),
-                });
-                items.push(LegendItem {
-                    swatch: None,
-                    label: significant(low),
-                });
-                let steps = if high > low { 5 } else { 1 };
-                for step in 0..steps {
-                    let t = if steps == 1 {
-                        1.0
-                    } else {
-                        step as f64 / (steps - 1) as f64
-                    };
-                    items.push(LegendItem {
-                        swatch: Some(Swatch::Line(flow_colour(t))),
-                        label: String::new(),
-                    });
+                items.push(LegendItem::text(format!("flow ({units}\u{b2})")));
+                let mut pieces = vec![Piece::Text(significant_digits(low, 3))];
+                if high > low {
+                    pieces.extend((0..5).map(|step| Piece::Line(flow_colour(step as f64 / 4.0))));
+                    pieces.push(Piece::Text(significant_digits(high, 3)));
+                } else {
+                    pieces.push(Piece::Line(flow_colour(1.0)));
                 }
-                items.push(LegendItem {
-                    swatch: None,
-                    label: significant(high),
-                });
+                items.push(LegendItem { pieces });
             }
+        }
+        Colouring::Plain if !drawing.segments.is_empty() => {
+            items.push(LegendItem {
+                pieces: vec![
+                    Piece::Line(PLAIN.to_string()),
+                    Piece::Text("segment (width to scale)".to_string()),
+                ],
+            });
         }
         Colouring::ByOrder | Colouring::Plain => {}
     }
     if !drawing.roots.is_empty() {
         items.push(LegendItem {
-            swatch: Some(Swatch::Circle),
-            label: "root".to_string(),
+            pieces: vec![Piece::Circle, Piece::Text("root".to_string())],
         });
     }
     items
@@ -863,11 +861,17 @@ fn finite_or_zero(value: f64) -> f64 {
 
 /// A number with 6 significant digits, without exponent or trailing zeros; non-finite gives 0.
 fn significant(value: f64) -> String {
+    significant_digits(value, 6)
+}
+
+/// A number with `digits` significant digits (whole numbers keep all theirs), without exponent
+/// or trailing zeros; non-finite gives 0.
+fn significant_digits(value: f64, digits: u32) -> String {
     if !value.is_finite() || value == 0.0 {
         return "0".to_string();
     }
     let magnitude = libm::floor(libm::log10(libm::fabs(value)));
-    let decimals = (5.0 - magnitude).clamp(0.0, 20.0) as usize;
+    let decimals = (f64::from(digits) - 1.0 - magnitude).clamp(0.0, 20.0) as usize;
     fixed(value, decimals)
 }
 
@@ -935,6 +939,8 @@ mod tests {
         assert_eq!(significant(-2.5e-7), "-0.00000025");
         assert_eq!(significant(f64::NAN), "0");
         assert_eq!(fixed(-0.000_01, 3), "0");
+        assert_eq!(significant_digits(26_959.2, 3), "26959");
+        assert_eq!(significant_digits(1.4175, 3), "1.42");
     }
 
     #[test]

@@ -1,1 +1,112 @@
-//! Browser layer (stub).
+//! Browser layer over `ramulus-core`: one opaque `Simulation` handle that the page creates from
+//! parameter JSON, steps, and reads (digest, metrics, SVG, run record). Errors come back as
+//! readable strings; nothing here computes.
+
+use ramulus_core::growth::Growth;
+use ramulus_core::params::Params;
+use ramulus_core::presets::presets;
+use ramulus_core::record::{make_record, write_record};
+use ramulus_core::run::{RunView, SITE_CAUTION};
+use ramulus_core::svg::{render_svg, Colouring, SvgOptions};
+use wasm_bindgen::prelude::*;
+
+/// A growing network held in wasm memory.
+#[wasm_bindgen]
+pub struct Simulation {
+    growth: Growth,
+}
+
+#[wasm_bindgen]
+impl Simulation {
+    /// Creates a run from parameter JSON; an invalid parameter gives an error naming it.
+    #[wasm_bindgen(constructor)]
+    pub fn new(params_json: &str) -> Result<Simulation, JsError> {
+        console_error_panic_hook::set_once();
+        let params =
+            Params::from_json(params_json).map_err(|error| JsError::new(&error.to_string()))?;
+        let growth = Growth::new(&params).map_err(|error| JsError::new(&error.to_string()))?;
+        Ok(Simulation { growth })
+    }
+
+    /// Adds up to `count` cells; returns how many were added.
+    pub fn step(&mut self, count: u32) -> u32 {
+        self.growth.step(count as u64).added as u32
+    }
+
+    /// Whether growth has stopped.
+    pub fn finished(&self) -> bool {
+        self.growth.stopped().is_some()
+    }
+
+    /// Cells grown so far.
+    pub fn cells(&self) -> u32 {
+        self.growth.cell_count() as u32
+    }
+
+    /// Digest of the network so far (16 hex digits).
+    pub fn digest(&self) -> String {
+        ramulus_core::digest::digest_hex(&self.growth.network())
+    }
+
+    /// Metrics of the network so far, as JSON.
+    pub fn metrics_json(&self) -> Result<String, JsError> {
+        let view = self.view()?;
+        serde_json::to_string(&view.metrics).map_err(|error| JsError::new(&error.to_string()))
+    }
+
+    /// The network as SVG, coloured by `order`, `flow` or `plain`.
+    pub fn svg(&self, colouring: &str) -> Result<String, JsError> {
+        let view = self.view()?;
+        let params = self.growth.params();
+        let colour = match colouring {
+            "flow" => Colouring::ByFlow,
+            "plain" => Colouring::Plain,
+            _ => Colouring::ByOrder,
+        };
+        let metadata =
+            serde_json::json!({ "params": params, "seed": params.seed, "digest": view.digest });
+        let options = SvgOptions {
+            colour,
+            title: format!(
+                "Ramulus network, seed {}, digest {}",
+                params.seed, view.digest
+            ),
+            metadata_json: metadata.to_string(),
+            digest: view.digest.clone(),
+            caution: params.is_site().then(|| SITE_CAUTION.to_string()),
+            margin: params.cell_size * 2.0,
+        };
+        Ok(render_svg(&view.network, &view.table, &options))
+    }
+
+    /// The JSON run record.
+    pub fn record_json(&self) -> Result<String, JsError> {
+        let view = self.view()?;
+        let stopped = self
+            .growth
+            .stopped()
+            .map(|reason| format!("{reason:?}").to_lowercase());
+        Ok(write_record(&make_record(
+            &view,
+            self.growth.params(),
+            stopped,
+        )))
+    }
+}
+
+impl Simulation {
+    fn view(&self) -> Result<RunView, JsError> {
+        RunView::new(self.growth.network(), self.growth.params())
+            .map_err(|error| JsError::new(&error.to_string()))
+    }
+}
+
+/// Every preset as a JSON array of `{name, description, params}`.
+#[wasm_bindgen]
+pub fn presets_json() -> String {
+    let list: Vec<_> = presets()
+        .into_iter()
+        .map(|preset| serde_json::json!({ "name": preset.name, "description": preset.description, "params": preset.params }))
+        .collect();
+    serde_json::Value::Array(list).to_string()
+}

@@ -312,6 +312,11 @@ fn leaf_units_give_true_size() {
     let [_, _, width, height] = view_box(&document);
     assert!(close(millimetres(&document, "width"), width, 1e-5));
     assert!(close(millimetres(&document, "height"), height, 1e-5));
+    assert!(
+        texts(&document).contains(&"true size"),
+        "{:?}",
+        texts(&document)
+    );
 
     let mut in_cm = leaf.clone();
     in_cm.units = "cm".to_string();
@@ -415,7 +420,7 @@ fn scale_bar_is_round_and_about_a_fifth() {
         [1.0, 2.0, 5.0].iter().any(|&m| close(m, mantissa, 1e-9)),
         "{length}"
     );
-    // The network is 150 m wide: a fifth is 30 m, and the nearest round length is 20 or 50.
+    // The drawing is about 150 m wide: a fifth is 30 m; the nearest round length is 20 or 50.
     assert!((15.0..=60.0).contains(&length), "{length}");
     assert_eq!(with_class(&document, "scale-bar").count(), 1);
 }

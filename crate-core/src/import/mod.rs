@@ -210,7 +210,7 @@ pub(crate) fn check_size(
     height: u64,
 ) -> Result<(u32, u32), ImportError> {
     let cells = width.checked_mul(height);
-    let fits = matches!(cells, Some(cells) if cells >= 1 && cells <= crate::params::MAX_CELLS);
+    let fits = matches!(cells, Some(cells) if (1..=crate::params::MAX_CELLS).contains(&cells));
     match (fits, u32::try_from(width), u32::try_from(height)) {
         (true, Ok(width), Ok(height)) => Ok((width, height)),
         _ => Err(ImportError::BadSize {
