@@ -14,7 +14,7 @@ use ramulus_core::run::RunView;
 /// Random valid parameters on small lattices: every joining rule, 1 to 3 roots, optional
 /// threshold, preferred angle, segment attachment and scattered mask.
 fn valid_params() -> impl Strategy<Value = Params> {
-    let lattice = (3u32..18, 3u32..18);
+    let lattice = (3u32..24, 3u32..24);
     let weights = (
         0.0..3.0f64,
         0.0..3.0f64,
@@ -140,7 +140,7 @@ fn close(actual: f64, expected: f64, tolerance: f64) -> bool {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 40, ..ProptestConfig::default() })]
+    #![proptest_config(ProptestConfig { cases: 48, ..ProptestConfig::default() })]
 
     /// Structure: a forest with one parent per non-root node, the roots on their cells, cells
     /// inside the allowed region, distinct, and within the budget; flows conserved (flow of a

@@ -1,0 +1,13 @@
+#!/usr/bin/env bash
+# Redraws the preset pictures in docs/presets/ (README): SVG from `ramulus grow`, then PNG with
+# rsvg-convert (Debian package librsvg2-bin).
+set -euo pipefail
+cd "$(dirname "$0")/.."
+cargo build --release -q -p ramulus-cli
+command -v rsvg-convert >/dev/null || apt-get install -y librsvg2-bin
+work="$(mktemp -d)"
+for preset in broad-leaf narrow-leaf filled-outline drainage-site spanning-tree; do
+  target/release/ramulus grow --preset "$preset" --svg "$work/$preset.svg" > /dev/null
+  rsvg-convert -w 420 "$work/$preset.svg" -o "docs/presets/$preset.png"
+done
+rm -rf "$work"
