@@ -1,0 +1,64 @@
+// Cross-platform determinism: the wasm build, run under node, must give the same digest as the
+// native `ramulus` binary for every preset and for varied parameter sets (joining rules, seeds).
+// Run by `./x test` after `./x build`; uses node's built-in test runner.
+import { test } from 'node:test';
+import assert from 'node:assert/strict';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { execFileSync } from 'node:child_process';
+import { fileURLToPath } from 'node:url';
+import path from 'node:path';
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
+const glue = await import(path.join(root, 'www/pkg/ramulus_web.js'));
+glue.initSync({ module: readFileSync(path.join(root, 'www/pkg/ramulus_web_bg.wasm')) });
+const native = path.join(root, 'target/release/ramulus');
+
+const scratch = mkdtempSync(path.join(tmpdir(), 'ramulus-digests-'));
+
+function nativeRun(params, name) {
+  const file = path.join(scratch, `${name.replace(/\W+/g, '-')}.json`);
+  writeFileSync(file, JSON.stringify(params));
+  const output = execFileSync(native, ['grow', '--params', file, '--json']);
+  return JSON.parse(output.toString());
+}
+
+function wasmRun(params) {
+  const simulation = new glue.Simulation(JSON.stringify(params));
+  while (!simulation.finished()) simulation.step(997);
+  const result = { digest: simulation.digest(), cells: simulation.cells() };
+  simulation.free();
+  return result;
+}
+
+const presets = JSON.parse(glue.presets_json());
+const cases = presets.map((preset) => ({ name: `preset ${preset.name}`, params: preset.params }));
+const base = { width: 60, height: 50, roots: [{ x: 30, y: 45, outflow: [0, 1] }], cells: 2000 };
+const variants = [
+  { joining: 'cheapest' },
+  { joining: 'uniform', seed: 2 },
+  { joining: 'weighted', seed: 3, temperature: 0.2 },
+  { joining: 'weighted', seed: 4, attach_to_segments: true },
+  { joining: 'weighted', seed: 5, branch_angle: 60, w_path: 0.1, threshold: 7 },
+  { joining: 'weighted', seed: 6, alpha: 0.0, w_flow: 1 },
+  { joining: 'weighted', seed: 7, alpha: 1.0, w_flow: 1, refresh: 0.01 },
+  { joining: 'uniform', seed: 8, jitter: 0.49, attach_to_segments: true },
+  { joining: 'cheapest', seed: 9, jitter: 0.2, w_turn: 2, elongation: 3, rear_cost: 4, w_path: 0.2 },
+  { joining: 'weighted', seed: 10, units: 'm', cell_size: 2, w_grade: 1, grade_x: 0.02, grade_y: -0.01, runoff: 0.4 },
+  { joining: 'weighted', seed: 11, roots: [{ x: 5, y: 5, outflow: [-1, 0] }, { x: 55, y: 40, outflow: [1, 1] }] },
+  { joining: 'weighted', seed: 12, obstacles: [[[20, 10], [40, 10], [40, 30], [20, 30]]] },
+  { joining: 'weighted', seed: 13, outline: [[2, 2], [58, 4], [30, 49]], roots: [{ x: 30, y: 20, outflow: [0, 1] }] },
+  { joining: 'uniform', seed: 14, radius: 1 },
+  { joining: 'weighted', seed: 2 ** 40 + 17, radius: 6.5, gamma: 2 },
+  { joining: 'weighted', seed: 16, temperature: 5, cells: 3000 },
+];
+variants.forEach((variant, index) => cases.push({ name: `variant ${index}`, params: { ...base, ...variant } }));
+
+for (const { name, params } of cases) {
+  test(`wasm digest equals native digest: ${name}`, () => {
+    const expected = nativeRun(params, name);
+    const actual = wasmRun(params);
+    assert.equal(actual.cells, expected.cells);
+    assert.equal(actual.digest, expected.digest);
+  });
+}
