@@ -192,6 +192,13 @@ impl Params {
     /// Builds parameters from a JSON object; missing keys take their defaults. A wrong type or
     /// an unknown key gives an error naming that key.
     pub fn from_json_value(value: serde_json::Value) -> Result<Params, ParamError> {
+        if !value.is_object() {
+            return Err(ParamError {
+                key: "(parameters)".into(),
+                value: short_text(&value.to_string()),
+                allowed: "a JSON object of parameters".into(),
+            });
+        }
         let error = match serde_json::from_value::<Params>(value.clone()) {
             Ok(params) => return Ok(params),
             Err(error) => error,

@@ -223,8 +223,8 @@ proptest! {
                 prop_assert!(hops <= count, "parents form a cycle");
             }
         }
-        for index in 0..count {
-            prop_assert!(close(topology.flow[index], walked[index], 1e-9));
+        for (index, &walked_flow) in walked.iter().enumerate() {
+            prop_assert!(close(topology.flow[index], walked_flow, 1e-9));
             let upstream: f64 = topology.children[index]
                 .iter()
                 .map(|&child| topology.flow[child as usize])

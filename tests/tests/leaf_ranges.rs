@@ -49,7 +49,10 @@ fn leaf_presets_grow_a_sizeable_blade() {
             (5_000..=params.cells as usize).contains(&cells),
             "{name}: {cells} cells"
         );
-        assert_eq!(view.network.units, "mm", "{name}: leaves are measured in mm");
+        assert_eq!(
+            view.network.units, "mm",
+            "{name}: leaves are measured in mm"
+        );
     }
 }
 
@@ -137,8 +140,14 @@ fn leaf_root_sits_at_the_base() {
             .filter(|&&cell| cell % width == root.x)
             .map(|&cell| cell / width)
             .collect();
-        let top = *midline_rows.iter().min().expect("the root column is occupied");
-        let bottom = *midline_rows.iter().max().expect("the root column is occupied");
+        let top = *midline_rows
+            .iter()
+            .min()
+            .expect("the root column is occupied");
+        let bottom = *midline_rows
+            .iter()
+            .max()
+            .expect("the root column is occupied");
         let along_midline = (root.y - top) as f64 / (bottom - top) as f64;
         assert!(
             along_midline >= 0.8,
@@ -166,8 +175,14 @@ fn narrow_leaf_is_longer_than_wide() {
     let (left, right, top, bottom) = cell_box(&view);
     let ratio = (bottom - top + 1) as f64 / (right - left + 1) as f64;
     assert!(ratio > 1.2, "narrow-leaf: length / width = {ratio}");
-    let aspect = view.metrics.aspect_ratio.expect("cells are not on one line");
-    assert!(aspect > 1.2, "narrow-leaf: covariance aspect ratio {aspect}");
+    let aspect = view
+        .metrics
+        .aspect_ratio
+        .expect("cells are not on one line");
+    assert!(
+        aspect > 1.2,
+        "narrow-leaf: covariance aspect ratio {aspect}"
+    );
 }
 
 /// The drainage site grows around its building: no node lies in an obstacle cell (a cell whose
@@ -181,8 +196,14 @@ fn drainage_site_keeps_obstacles_empty() {
     for obstacle in &params.obstacles {
         let xs = obstacle.iter().map(|point| point[0]);
         let ys = obstacle.iter().map(|point| point[1]);
-        let (x0, x1) = (xs.clone().fold(f64::MAX, f64::min), xs.fold(f64::MIN, f64::max));
-        let (y0, y1) = (ys.clone().fold(f64::MAX, f64::min), ys.fold(f64::MIN, f64::max));
+        let (x0, x1) = (
+            xs.clone().fold(f64::MAX, f64::min),
+            xs.fold(f64::MIN, f64::max),
+        );
+        let (y0, y1) = (
+            ys.clone().fold(f64::MAX, f64::min),
+            ys.fold(f64::MIN, f64::max),
+        );
         assert_eq!(obstacle.len(), 4, "the preset's obstacle is a rectangle");
         let inside = |column: f64, row: f64| {
             let (cx, cy) = (column + 0.5, row + 0.5);

@@ -19,7 +19,10 @@ fn rejected(params: &Params) -> ParamError {
 fn check_error(error: &ParamError, key: &str, mentions: &[&str]) {
     let message = error.to_string();
     assert_eq!(error.key, key, "wrong key in: {message}");
-    assert!(message.contains(key), "message does not name `{key}`: {message}");
+    assert!(
+        message.contains(key),
+        "message does not name `{key}`: {message}"
+    );
     for mention in mentions {
         assert!(
             message.contains(mention),
@@ -57,7 +60,11 @@ fn float_fields() -> Vec<(&'static str, Setter, &'static [&'static str])> {
         ("threshold", |p, v| p.threshold = Some(v), &[]),
         ("gamma", |p, v| p.gamma = v, &["1", "10"]),
         ("tip_width", |p, v| p.tip_width = v, &["0"]),
-        ("branch_angle", |p, v| p.branch_angle = Some(v), &["0", "150"]),
+        (
+            "branch_angle",
+            |p, v| p.branch_angle = Some(v),
+            &["0", "150"],
+        ),
         ("elongation", |p, v| p.elongation = v, &["1", "10"]),
         ("rear_cost", |p, v| p.rear_cost = v, &["1", "10"]),
         ("grade_x", |p, v| p.grade_x = v, &["-1", "1"]),
@@ -389,7 +396,10 @@ fn json_errors_name_the_key() {
 fn json_that_is_not_an_object_is_rejected() {
     for text in ["[1, 2]", "[]", "3", "\"broad-leaf\"", "null"] {
         match Params::from_json(text) {
-            Ok(params) => panic!("{text} was read as parameters: {}x{}", params.width, params.height),
+            Ok(params) => panic!(
+                "{text} was read as parameters: {}x{}",
+                params.width, params.height
+            ),
             Err(error) => assert!(
                 error.to_string().contains("object"),
                 "{text}: message does not ask for an object: {error}"

@@ -1,0 +1,309 @@
+//! Runs the real `ramulus` binary: JSON output, determinism, error messages that name the bad
+//! parameter or file without a panic, masks, run records read back by `measure`, the preset
+//! list and SVG export.
+
+use std::path::PathBuf;
+use std::process::Command;
+use std::sync::atomic::{AtomicUsize, Ordering};
+
+use serde_json::Value;
+
+/// Exit status, stdout and stderr of one run of the binary.
+struct Outcome {
+    success: bool,
+    code: Option<i32>,
+    stdout: String,
+    stderr: String,
+}
+
+fn ramulus(arguments: &[&str]) -> Outcome {
+    let output = Command::new(env!("CARGO_BIN_EXE_ramulus"))
+        .args(arguments)
+        .env_remove("RUST_BACKTRACE")
+        .output()
+        .expect("the ramulus binary runs");
+    Outcome {
+        success: output.status.success(),
+        code: output.status.code(),
+        stdout: String::from_utf8_lossy(&output.stdout).into_owned(),
+        stderr: String::from_utf8_lossy(&output.stderr).into_owned(),
+    }
+}
+
+/// A path in the system temporary directory, unique to this process and call.
+fn temp_path(stem: &str, extension: &str) -> PathBuf {
+    static COUNTER: AtomicUsize = AtomicUsize::new(0);
+    let serial = COUNTER.fetch_add(1, Ordering::SeqCst);
+    std::env::temp_dir().join(format!(
+        "ramulus-cli-test-{}-{serial}-{stem}.{extension}",
+        std::process::id()
+    ))
+}
+
+/// Removes a temporary file when dropped, also when the test fails.
+struct TempFile(PathBuf);
+
+impl TempFile {
+    fn new(stem: &str, extension: &str) -> TempFile {
+        TempFile(temp_path(stem, extension))
+    }
+
+    fn path(&self) -> &str {
+        self.0.to_str().expect("temporary paths are UTF-8")
+    }
+}
+
+impl Drop for TempFile {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_file(&self.0);
+    }
+}
+
+/// Parses stdout as exactly one JSON value (nothing else before or after it).
+fn single_json(stdout: &str) -> Value {
+    let values: Vec<Value> = serde_json::Deserializer::from_str(stdout)
+        .into_iter::<Value>()
+        .collect::<Result<_, _>>()
+        .unwrap_or_else(|error| panic!("stdout is not JSON ({error}): {stdout}"));
+    assert_eq!(values.len(), 1, "expected one JSON value, got: {stdout}");
+    values.into_iter().next().expect("one value")
+}
+
+/// A failed run: non-zero exit, a message on stderr holding every one of `mentions`, and no
+/// sign of a panic.
+fn check_failure(outcome: &Outcome, mentions: &[&str]) {
+    assert!(
+        !outcome.success,
+        "expected failure, got success: {}",
+        outcome.stdout
+    );
+    assert_ne!(outcome.code, Some(0));
+    // A Rust panic exits with 101; the command line turns every error into 1 or 2.
+    assert_ne!(outcome.code, Some(101), "panicked: {}", outcome.stderr);
+    for sign in ["panicked", "RUST_BACKTRACE", "stack backtrace"] {
+        assert!(
+            !outcome.stderr.contains(sign),
+            "stderr shows a panic: {}",
+            outcome.stderr
+        );
+    }
+    for mention in mentions {
+        assert!(
+            outcome.stderr.contains(mention),
+            "stderr does not mention {mention:?}: {}",
+            outcome.stderr
+        );
+    }
+}
+
+fn grow_json(arguments: &[&str]) -> Value {
+    let outcome = ramulus(arguments);
+    assert!(outcome.success, "grow failed: {}", outcome.stderr);
+    single_json(&outcome.stdout)
+}
+
+/// `--json` prints one object with the digest, counts, total length and metrics. The
+/// spanning-tree preset fills an 80 x 80 lattice of unit cells (budget 6400) cheapest first by
+/// pure length: Prim's algorithm (Prim 1957), whose tree on a full grid uses only unit steps, so
+/// it has 6399 segments and total length 6399.
+#[test]
+fn grow_json_prints_one_object_with_the_summary() {
+    let value = grow_json(&["grow", "--preset", "spanning-tree", "--json"]);
+    let object = value.as_object().expect("a JSON object");
+    let digest = object["digest"].as_str().expect("digest is text");
+    assert_eq!(digest.len(), 16);
+    assert!(digest.chars().all(|c| c.is_ascii_hexdigit()));
+    assert_eq!(object["cells"].as_u64(), Some(6400));
+    assert_eq!(object["segments"].as_u64(), Some(6399));
+    let total = object["total_length"].as_f64().expect("total length");
+    assert!(
+        (total - 6399.0).abs() <= 1e-9 * 6399.0,
+        "total length {total}"
+    );
+    let metrics = object["metrics"].as_object().expect("metrics object");
+    assert_eq!(metrics["total_length"].as_f64(), Some(total));
+    assert_eq!(metrics["segment_count"].as_u64(), Some(6399));
+}
+
+#[test]
+fn growing_twice_gives_the_same_digest() {
+    let first = grow_json(&["grow", "--preset", "spanning-tree", "--json"]);
+    let second = grow_json(&["grow", "--preset", "spanning-tree", "--json"]);
+    assert_eq!(first["digest"], second["digest"]);
+    // A weighted-random preset is reproducible from its seed too, and another seed differs.
+    let args = ["grow", "--preset", "drainage-site", "--json"];
+    let a = grow_json(&args);
+    let b = grow_json(&args);
+    assert_eq!(a["digest"], b["digest"]);
+    let c = grow_json(&[
+        "grow",
+        "--preset",
+        "drainage-site",
+        "--set",
+        "seed=6",
+        "--json",
+    ]);
+    assert_ne!(a["digest"], c["digest"]);
+}
+
+/// alpha lies in [0, 1] (branched transport, Xia 2003).
+#[test]
+fn an_invalid_value_is_named_without_a_panic() {
+    let outcome = ramulus(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--set",
+        "alpha=2",
+        "--json",
+    ]);
+    check_failure(&outcome, &["alpha", "2"]);
+    assert!(
+        outcome.stdout.trim().is_empty(),
+        "stdout: {}",
+        outcome.stdout
+    );
+
+    let outcome = ramulus(&["grow", "--preset", "spanning-tree", "--set", "jitter=0.5"]);
+    check_failure(&outcome, &["jitter", "0.5"]);
+}
+
+#[test]
+fn an_unknown_key_is_named() {
+    let outcome = ramulus(&["grow", "--preset", "spanning-tree", "--set", "nosuchkey=1"]);
+    check_failure(&outcome, &["nosuchkey"]);
+    let outcome = ramulus(&["grow", "--preset", "no-such-preset"]);
+    check_failure(&outcome, &["no-such-preset", "spanning-tree"]);
+}
+
+#[test]
+fn a_missing_params_file_is_named() {
+    let missing = temp_path("missing-params", "json");
+    let path = missing.to_str().expect("UTF-8 path");
+    let outcome = ramulus(&["grow", "--params", path]);
+    check_failure(&outcome, &[path]);
+    let outcome = ramulus(&["measure", path]);
+    check_failure(&outcome, &[path]);
+}
+
+#[test]
+fn a_params_file_with_a_bad_key_is_named() {
+    let file = TempFile::new("bad-params", "json");
+    std::fs::write(&file.0, r#"{"width": 30, "heigth": 30}"#).expect("write params");
+    let outcome = ramulus(&["grow", "--params", file.path()]);
+    check_failure(&outcome, &["heigth"]);
+}
+
+/// A plain PBM (Netpbm P1: `1` = black = allowed) of 5 x 3 sets the lattice to 5 x 3. Its 11
+/// allowed cells (4 + 2 + 5 by row) are joined by unit steps, so the spanning tree (Prim 1957)
+/// has 10 unit segments.
+#[test]
+fn a_mask_sets_the_lattice_size() {
+    let mask = TempFile::new("mask", "pbm");
+    std::fs::write(
+        &mask.0,
+        "P1\n# test mask\n5 3\n1 1 1 0 1\n0 1 0 0 1\n1 1 1 1 1\n",
+    )
+    .expect("write mask");
+    let record = TempFile::new("mask-record", "json");
+    let value = grow_json(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--mask",
+        mask.path(),
+        "--set",
+        r#"roots=[{"x": 0, "y": 0, "outflow": [0, 1]}]"#,
+        "--record",
+        record.path(),
+        "--json",
+    ]);
+    assert_eq!(value["cells"].as_u64(), Some(11));
+    assert_eq!(value["segments"].as_u64(), Some(10));
+    let total = value["total_length"].as_f64().expect("total length");
+    assert!((total - 10.0).abs() <= 1e-9 * 10.0, "total length {total}");
+    let text = std::fs::read_to_string(&record.0).expect("record written");
+    let stored: Value = serde_json::from_str(&text).expect("record is JSON");
+    assert_eq!(stored["params"]["width"].as_u64(), Some(5));
+    assert_eq!(stored["params"]["height"].as_u64(), Some(3));
+    assert!(stored["params"]["mask"].is_object());
+
+    // A root outside the 5 x 3 mask is an error naming it.
+    let outcome = ramulus(&["grow", "--preset", "spanning-tree", "--mask", mask.path()]);
+    check_failure(&outcome, &["roots[0]"]);
+}
+
+#[test]
+fn a_record_measures_back_to_the_same_digest() {
+    let record = TempFile::new("record", "json");
+    let grown = grow_json(&[
+        "grow",
+        "--preset",
+        "drainage-site",
+        "--record",
+        record.path(),
+        "--json",
+    ]);
+    let measured = ramulus(&["measure", record.path(), "--json"]);
+    assert!(measured.success, "measure failed: {}", measured.stderr);
+    let measured = single_json(&measured.stdout);
+    assert_eq!(measured["digest"], grown["digest"]);
+    assert_eq!(measured["segments"], grown["segments"]);
+    let (a, b) = (
+        grown["total_length"].as_f64().expect("grown total"),
+        measured["total_length"].as_f64().expect("measured total"),
+    );
+    assert!((a - b).abs() <= 1e-12 * a, "total length {a} vs {b}");
+}
+
+#[test]
+fn presets_json_lists_every_preset() {
+    let outcome = ramulus(&["presets", "--json"]);
+    assert!(outcome.success, "presets failed: {}", outcome.stderr);
+    let value = single_json(&outcome.stdout);
+    let list = value.as_array().expect("a JSON array");
+    let expected = ramulus_core::presets::presets();
+    assert_eq!(list.len(), expected.len());
+    for preset in &expected {
+        let entry = list
+            .iter()
+            .find(|entry| entry["name"] == preset.name)
+            .unwrap_or_else(|| panic!("preset {} not listed", preset.name));
+        assert!(entry["description"].as_str().is_some_and(|d| !d.is_empty()));
+        let params = ramulus_core::params::Params::from_json_value(entry["params"].clone())
+            .unwrap_or_else(|error| panic!("{}: params do not read back: {error}", preset.name));
+        assert_eq!(params, preset.params, "{}: params differ", preset.name);
+    }
+    for name in [
+        "broad-leaf",
+        "narrow-leaf",
+        "filled-outline",
+        "drainage-site",
+        "spanning-tree",
+    ] {
+        assert!(list.iter().any(|entry| entry["name"] == name), "{name}");
+    }
+}
+
+#[test]
+fn svg_export_writes_an_svg_file() {
+    let svg = TempFile::new("network", "svg");
+    let outcome = ramulus(&["grow", "--preset", "spanning-tree", "--svg", svg.path()]);
+    assert!(outcome.success, "grow failed: {}", outcome.stderr);
+    let text = std::fs::read_to_string(&svg.0).expect("svg written");
+    let start = text.trim_start();
+    assert!(
+        start.starts_with("<svg") || start.starts_with("<?xml"),
+        "starts with: {}",
+        &start[..start.len().min(80)]
+    );
+    assert!(text.trim_end().ends_with("</svg>"));
+}
+
+#[test]
+fn usage_errors_exit_non_zero_without_a_panic() {
+    check_failure(&ramulus(&["frobnicate"]), &["frobnicate"]);
+    check_failure(&ramulus(&["grow", "--set"]), &["--set"]);
+    check_failure(&ramulus(&["grow", "--set", "alpha"]), &["alpha"]);
+    check_failure(&ramulus(&["measure"]), &["measure"]);
+}
