@@ -127,11 +127,18 @@ fn svg_options(params: &Params, view: &RunView, colour: Colouring) -> SvgOptions
 }
 
 fn print_table(metrics: &Metrics, units: &str) {
+    // Long values (the angle histogram) go on their own line so the columns stay narrow.
+    const LONG: usize = 24;
     let rows = metrics_table(metrics, units);
-    let label_width = rows.iter().map(|row| row.0.len()).max().unwrap_or(0);
-    let value_width = rows.iter().map(|row| row.1.len()).max().unwrap_or(0);
+    let short = rows.iter().filter(|row| row.1.len() <= LONG);
+    let label_width = short.clone().map(|row| row.0.len()).max().unwrap_or(0);
+    let value_width = short.map(|row| row.1.len()).max().unwrap_or(0);
     for (label, value, unit) in rows {
-        println!("  {label:<label_width$}  {value:>value_width$}  {unit}");
+        if value.len() > LONG {
+            println!("  {label} ({unit}):\n    {value}");
+        } else {
+            println!("  {label:<label_width$}  {value:>value_width$}  {unit}");
+        }
     }
 }
 
