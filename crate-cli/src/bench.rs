@@ -140,14 +140,19 @@ pub fn run(arguments: &[String]) -> Result<(), CliError> {
             params: full_model(large),
         },
     ];
-    println!(
+    say!(
         "{:<58} {:>9} {:>9} {:>12} {:>10} {:>10}",
-        "case", "cells", "seconds", "cells/s", "peak MiB", "bytes/cell"
+        "case",
+        "cells",
+        "seconds",
+        "cells/s",
+        "peak MiB",
+        "bytes/cell"
     );
     let mut results = Vec::new();
     for case in &cases {
         let figures = measure(case)?;
-        println!(
+        say!(
             "{:<58} {:>9} {:>9.3} {:>12.0} {:>10.1} {:>10.1}",
             case.name,
             figures.cells,
@@ -159,7 +164,7 @@ pub fn run(arguments: &[String]) -> Result<(), CliError> {
         results.push(figures);
     }
     let (small, large) = (&results[1], &results[2]);
-    println!(
+    say!(
         "scaling: {:.1} x the cells took {:.2} x the time",
         large.cells as f64 / small.cells as f64,
         large.seconds / small.seconds

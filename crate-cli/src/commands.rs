@@ -87,10 +87,10 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
             "metrics": view.metrics,
             "caution": params.is_site().then_some(SITE_CAUTION),
         });
-        println!("{output}");
+        say!("{output}");
     } else {
-        println!("stopped: {stopped}");
-        println!(
+        say!("stopped: {stopped}");
+        say!(
             "cells: {}   segments: {}   digest: {}",
             growth.cell_count(),
             view.network.segment_count(),
@@ -98,7 +98,7 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
         );
         print_table(&view.metrics, &params.units);
         if params.is_site() {
-            println!("\nCAUTION: {SITE_CAUTION}");
+            say!("\nCAUTION: {SITE_CAUTION}");
         }
     }
     Ok(())
@@ -135,9 +135,9 @@ fn print_table(metrics: &Metrics, units: &str) {
     let value_width = short.map(|row| row.1.len()).max().unwrap_or(0);
     for (label, value, unit) in rows {
         if value.len() > LONG {
-            println!("  {label} ({unit}):\n    {value}");
+            say!("  {label} ({unit}):\n    {value}");
         } else {
-            println!("  {label:<label_width$}  {value:>value_width$}  {unit}");
+            say!("  {label:<label_width$}  {value:>value_width$}  {unit}");
         }
     }
 }
@@ -152,12 +152,12 @@ pub fn measure_record(path: &str, as_json: bool) -> Result<(), CliError> {
         .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
     let digest = ramulus_core::digest::digest_hex(&network);
     if as_json {
-        println!(
+        say!(
             "{}",
             json!({ "digest": digest, "segments": network.segment_count(), "total_length": metrics.total_length, "metrics": metrics })
         );
     } else {
-        println!(
+        say!(
             "digest: {digest}{}",
             if digest == record.digest {
                 ""
@@ -205,12 +205,12 @@ pub fn presets(arguments: &[String]) -> Result<(), CliError> {
             .into_iter()
             .map(|preset| json!({ "name": preset.name, "description": preset.description, "params": preset.params }))
             .collect();
-        println!("{}", serde_json::Value::Array(list));
+        say!("{}", serde_json::Value::Array(list));
         return Ok(());
     }
     for preset in all_presets() {
         let params = serde_json::to_string(&preset.params).unwrap_or_default();
-        println!("{}: {}\n  {params}\n", preset.name, preset.description);
+        say!("{}: {}\n  {params}\n", preset.name, preset.description);
     }
     Ok(())
 }

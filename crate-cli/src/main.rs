@@ -1,6 +1,15 @@
 //! The `ramulus` command line: parses arguments, reads and writes files, and hands everything
 //! else to `ramulus-core`. Only this crate turns errors into messages and exit codes.
 
+/// Prints a line on stdout, ignoring a closed pipe (e.g. `ramulus grow | head`) instead of
+/// panicking.
+macro_rules! say {
+    ($($argument:tt)*) => {{
+        use std::io::Write as _;
+        let _ = writeln!(std::io::stdout(), $($argument)*);
+    }};
+}
+
 mod bench;
 mod commands;
 mod options;
@@ -38,7 +47,7 @@ fn main() -> ExitCode {
         "presets" => commands::presets(rest),
         "bench" => bench::run(rest),
         "help" | "--help" | "-h" => {
-            println!("{USAGE}");
+            say!("{USAGE}");
             Ok(())
         }
         other => Err(options::CliError::Usage(format!(

@@ -59,13 +59,6 @@ impl Frontier {
         self.live
     }
 
-    /// Bytes held, for the memory benchmark.
-    pub fn heap_bytes(&self) -> usize {
-        self.capacity * 2 * (8 + 4 + 8)
-            + self.slots.capacity() * std::mem::size_of::<Slot>()
-            + self.free.capacity() * 4
-    }
-
     /// Adds a cell; returns its slot.
     pub fn insert(&mut self, slot: Slot, weight: f64) -> u32 {
         let index = match self.free.pop() {

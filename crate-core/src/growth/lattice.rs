@@ -115,8 +115,4 @@ impl Lattice {
             None => (column, row),
         }
     }
-
-    pub fn heap_bytes(&self) -> usize {
-        self.state.capacity() * 4 + self.jitter.capacity() * 8 + self.offsets.capacity() * 8
-    }
 }

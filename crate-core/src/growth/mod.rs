@@ -238,15 +238,6 @@ impl Growth {
         self.frontier.len()
     }
 
-    /// Approximate bytes held by the grower's own buffers (for the memory benchmark).
-    pub fn heap_bytes(&self) -> usize {
-        let node_bytes = self.x.capacity() * 8 * 7 + self.parent.capacity() * 4 * 4;
-        node_bytes
-            + self.lattice.heap_bytes()
-            + self.frontier.heap_bytes()
-            + (self.junction_head.capacity() + self.junction_next.capacity()) * 4
-    }
-
     /// The network so far in physical units: node `i` of the grower is node `i` here.
     pub fn network(&self) -> Network {
         let size = self.params.cell_size;
