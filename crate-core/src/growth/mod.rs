@@ -604,7 +604,7 @@ impl Growth {
             let Some((cost, attachment)) = self.best_from_scratch(slot.cell as usize) else {
                 return Ok((slot_index, slot.best));
             };
-            let still_valid = attachment == slot.best || cost <= slot.cost + 1e-12;
+            let still_valid = cost <= slot.cost + 1e-12;
             if still_valid
                 && !self
                     .params
