@@ -3,11 +3,10 @@
 use ramulus_core::growth::Growth;
 use ramulus_core::import::mask_from_bytes;
 use ramulus_core::metrics::{metrics_table, Metrics};
-use ramulus_core::params::Params;
 use ramulus_core::presets::presets as all_presets;
 use ramulus_core::record::{make_record, read_record, write_record};
 use ramulus_core::run::{RunView, SITE_CAUTION};
-use ramulus_core::svg::{render_svg, Colouring, SvgOptions};
+use ramulus_core::svg::Colouring;
 use serde_json::json;
 
 use crate::options::{assemble_params, CliError, GrowOptions};
@@ -68,11 +67,7 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
         write_file(path, &write_record(&record))?;
     }
     if let Some(path) = &options.svg_file {
-        let svg = render_svg(
-            &view.network,
-            &view.table,
-            &svg_options(&params, &view, colour),
-        );
+        let svg = view.svg(&params, colour);
         write_file(path, &svg)?;
     }
     if options.json {
@@ -105,25 +100,7 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
 }
 
 fn stop_name(reason: ramulus_core::StopReason) -> String {
-    serde_json::to_value(reason)
-        .ok()
-        .and_then(|value| value.as_str().map(str::to_string))
-        .unwrap_or_default()
-}
-
-fn svg_options(params: &Params, view: &RunView, colour: Colouring) -> SvgOptions {
-    let metadata = json!({ "params": params, "seed": params.seed, "digest": view.digest });
-    SvgOptions {
-        colour,
-        title: format!(
-            "Ramulus network, seed {}, digest {}",
-            params.seed, view.digest
-        ),
-        metadata_json: metadata.to_string(),
-        digest: view.digest.clone(),
-        caution: params.is_site().then(|| SITE_CAUTION.to_string()),
-        margin: params.cell_size * 2.0,
-    }
+    reason.name().to_string()
 }
 
 fn print_table(metrics: &Metrics, units: &str) {

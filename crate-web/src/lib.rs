@@ -6,8 +6,8 @@ use ramulus_core::growth::Growth;
 use ramulus_core::params::Params;
 use ramulus_core::presets::presets;
 use ramulus_core::record::{make_record, write_record};
-use ramulus_core::run::{RunView, SITE_CAUTION};
-use ramulus_core::svg::{render_svg, Colouring, SvgOptions};
+use ramulus_core::run::RunView;
+use ramulus_core::svg::Colouring;
 use wasm_bindgen::prelude::*;
 
 /// A growing network held in wasm memory.
@@ -63,20 +63,7 @@ impl Simulation {
             "plain" => Colouring::Plain,
             _ => Colouring::ByOrder,
         };
-        let metadata =
-            serde_json::json!({ "params": params, "seed": params.seed, "digest": view.digest });
-        let options = SvgOptions {
-            colour,
-            title: format!(
-                "Ramulus network, seed {}, digest {}",
-                params.seed, view.digest
-            ),
-            metadata_json: metadata.to_string(),
-            digest: view.digest.clone(),
-            caution: params.is_site().then(|| SITE_CAUTION.to_string()),
-            margin: params.cell_size * 2.0,
-        };
-        Ok(render_svg(&view.network, &view.table, &options))
+        Ok(view.svg(params, colour))
     }
 
     /// The JSON run record.
@@ -85,7 +72,7 @@ impl Simulation {
         let stopped = self
             .growth
             .stopped()
-            .map(|reason| format!("{reason:?}").to_lowercase());
+            .map(|reason| reason.name().to_string());
         Ok(write_record(&make_record(
             &view,
             self.growth.params(),

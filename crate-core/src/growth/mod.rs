@@ -43,6 +43,17 @@ impl std::fmt::Display for StopReason {
     }
 }
 
+impl StopReason {
+    /// The reason's short name as used in JSON (`budget`, `full`, `threshold`).
+    pub fn name(self) -> &'static str {
+        match self {
+            StopReason::Budget => "budget",
+            StopReason::Full => "full",
+            StopReason::Threshold => "threshold",
+        }
+    }
+}
+
 /// What one call of `step` did.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct StepReport {
