@@ -97,3 +97,20 @@ pub fn presets_json() -> String {
         .collect();
     serde_json::Value::Array(list).to_string()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn presets_json_lists_every_core_preset_with_parameters_that_parse_back() {
+        let list: Vec<serde_json::Value> = serde_json::from_str(&presets_json()).unwrap();
+        let core = presets();
+        assert_eq!(list.len(), core.len());
+        for (entry, preset) in list.iter().zip(&core) {
+            assert_eq!(entry["name"], preset.name);
+            let params = Params::from_json_value(entry["params"].clone()).unwrap();
+            assert_eq!(params, preset.params);
+        }
+    }
+}
