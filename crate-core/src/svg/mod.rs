@@ -1,0 +1,407 @@
+//! SVG export: `render_svg` draws a `Network` with its `SegmentTable` widths at true scale,
+//! coloured by Strahler order, by flow or plainly (`Colouring`), with a scale bar, a legend and
+//! the run's metadata, as set by `SvgOptions`.
+//!
+//! Layout: the viewBox is in the network's physical units (y down, as in `Network`). The
+//! drawing sits at the top; a band below it holds the scale bar, the map scale or "true size",
+//! the legend and the optional caution. Segments are `<line class="segment">` elements drawn
+//! thinnest first, so that major veins or trunks lie on top; roots are circles.
+
+use std::fmt::Write;
+
+use serde::{Deserialize, Serialize};
+
+use crate::network::Network;
+use crate::segments::SegmentTable;
+
+mod format;
+mod legend;
+mod page;
+mod palette;
+
+use format::*;
+use legend::*;
+use page::*;
+use palette::*;
+
+/// How segments are coloured.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Colouring {
+    /// By Strahler order, with colours from the colour-blind-safe palette of Okabe & Ito (2008).
+    ByOrder,
+    /// By the logarithm of flow, on a ramp whose lightness falls steadily from low to high flow.
+    ByFlow,
+    /// Every segment dark grey.
+    Plain,
+}
+
+/// What `render_svg` draws besides the network.
+#[derive(Clone, Debug, PartialEq)]
+pub struct SvgOptions {
+    /// Segment colouring. Default `ByOrder`.
+    pub colour: Colouring,
+    /// Document title (the `<title>` element). Default "Ramulus network".
+    pub title: String,
+    /// The run's parameters, seed and digest as JSON text, kept verbatim (XML-escaped) in
+    /// `<metadata>`. Default `{}`.
+    pub metadata_json: String,
+    /// The network digest (see `digest::digest_hex`), also kept in `<metadata>`. Default empty.
+    pub digest: String,
+    /// A caution drawn as visible text under the drawing (used for drainage sites). Default none.
+    pub caution: Option<String>,
+    /// Blank border around the network, in the network's length units; negative or non-finite
+    /// values count as 0. Half the widest stroke is always added. Default 0.
+    pub margin: f64,
+}
+
+impl Default for SvgOptions {
+    fn default() -> Self {
+        SvgOptions {
+            colour: Colouring::ByOrder,
+            title: "Ramulus network".to_string(),
+            metadata_json: "{}".to_string(),
+            digest: String::new(),
+            caution: None,
+            margin: 0.0,
+        }
+    }
+}
+
+/// Namespace of the element inside `<metadata>` that holds the run's JSON.
+pub const METADATA_NAMESPACE: &str = "urn:ramulus:run:1";
+
+/// Renders the network as a standalone SVG document.
+///
+/// Segment `i` (node `i` to its parent) is drawn with stroke width `table.width[i]`; segments
+/// whose parent is out of range or whose ends are not finite are left out, as are table
+/// entries that are missing (width 0, order 1, flow 0 are used instead). Never panics.
+pub fn render_svg(network: &Network, table: &SegmentTable, options: &SvgOptions) -> String {
+    let drawing = Drawing::collect(network, table);
+    let frame = Frame::new(&drawing, network, options);
+    let units = network.units.as_str();
+    let paper = PaperUnit::of(units);
+    let denominators = map_scale_candidates();
+    let (band, page) = match paper {
+        PaperUnit::TrueSize { mm_per_unit } => {
+            let font = font_size(&frame, Some(mm_per_unit));
+            let band = Band::layout(&drawing, &frame, options, units, font, "true size");
+            let page = Page::paper(&frame, &band, mm_per_unit);
+            (band, page)
+        }
+        PaperUnit::Map { mm_per_unit } => {
+            let mut chosen = None;
+            for &denominator in &denominators {
+                let paper_mm = mm_per_unit / denominator as f64;
+                let font = font_size(&frame, Some(paper_mm));
+                let note = format!("scale 1:{denominator}");
+                let band = Band::layout(&drawing, &frame, options, units, font, &note);
+                let page = Page::paper(&frame, &band, paper_mm);
+                let fits = page.width_mm <= 1000.0 && page.height_mm <= 1000.0;
+                chosen = Some((band, page));
+                if fits {
+                    break;
+                }
+            }
+            match chosen {
+                Some(chosen) => chosen,
+                None => {
+                    let font = font_size(&frame, None);
+                    let band = Band::layout(&drawing, &frame, options, units, font, "");
+                    let page = Page::screen(&frame, &band);
+                    (band, page)
+                }
+            }
+        }
+        PaperUnit::Unknown => {
+            let font = font_size(&frame, None);
+            let band = Band::layout(&drawing, &frame, options, units, font, "");
+            let page = Page::screen(&frame, &band);
+            (band, page)
+        }
+    };
+    write_document(&drawing, &frame, &band, &page, network, options)
+}
+
+/// One drawable segment.
+struct Segment {
+    child: usize,
+    parent: usize,
+    width: f64,
+    flow: f64,
+    order: u32,
+}
+
+/// The drawable parts of a network and their extent.
+struct Drawing {
+    nodes: Vec<(f64, f64)>,
+    segments: Vec<Segment>,
+    roots: Vec<(usize, f64)>,
+    /// `[min x, min y, max x, max y]` of finite nodes, or `None` when there are none.
+    bounds: Option<[f64; 4]>,
+    widest: f64,
+    max_order: u32,
+    /// Smallest and largest positive flow over segments.
+    flow_range: Option<(f64, f64)>,
+}
+
+impl Drawing {
+    fn collect(network: &Network, table: &SegmentTable) -> Drawing {
+        let nodes: Vec<(f64, f64)> = network.nodes.iter().map(|node| (node.x, node.y)).collect();
+        let finite = |index: usize| {
+            nodes
+                .get(index)
+                .is_some_and(|&(x, y)| x.is_finite() && y.is_finite())
+        };
+        let width_of = |index: usize| {
+            let width = table.width.get(index).copied().unwrap_or(0.0);
+            if width.is_finite() && width > 0.0 {
+                width
+            } else {
+                0.0
+            }
+        };
+        let mut segments = Vec::new();
+        let mut roots = Vec::new();
+        for (index, node) in network.nodes.iter().enumerate() {
+            if !finite(index) {
+                continue;
+            }
+            if node.is_root() {
+                roots.push((index, width_of(index)));
+                continue;
+            }
+            let parent = node.parent as usize;
+            if !finite(parent) {
+                continue;
+            }
+            let flow = table.flow.get(index).copied().unwrap_or(0.0);
+            segments.push(Segment {
+                child: index,
+                parent,
+                width: width_of(index),
+                flow: if flow.is_finite() { flow } else { 0.0 },
+                order: table.order.get(index).copied().unwrap_or(1).max(1),
+            });
+        }
+        // Thin and low-flow segments first, so thick ones are drawn on top.
+        segments.sort_by(|a, b| {
+            a.width
+                .total_cmp(&b.width)
+                .then(a.flow.total_cmp(&b.flow))
+                .then(a.child.cmp(&b.child))
+        });
+        let mut bounds: Option<[f64; 4]> = None;
+        for (index, &(x, y)) in nodes.iter().enumerate() {
+            if !finite(index) {
+                continue;
+            }
+            bounds = Some(match bounds {
+                None => [x, y, x, y],
+                Some([x0, y0, x1, y1]) => [x0.min(x), y0.min(y), x1.max(x), y1.max(y)],
+            });
+        }
+        let widest = segments
+            .iter()
+            .map(|segment| segment.width)
+            .chain(roots.iter().map(|&(_, width)| width))
+            .fold(0.0, f64::max);
+        let max_order = segments
+            .iter()
+            .map(|segment| segment.order)
+            .max()
+            .unwrap_or(0);
+        let mut flow_range: Option<(f64, f64)> = None;
+        for segment in &segments {
+            if segment.flow > 0.0 {
+                flow_range = Some(match flow_range {
+                    None => (segment.flow, segment.flow),
+                    Some((low, high)) => (low.min(segment.flow), high.max(segment.flow)),
+                });
+            }
+        }
+        Drawing {
+            nodes,
+            segments,
+            roots,
+            bounds,
+            widest,
+            max_order,
+            flow_range,
+        }
+    }
+}
+
+/// Writes the whole document.
+fn write_document(
+    drawing: &Drawing,
+    frame: &Frame,
+    band: &Band,
+    page: &Page,
+    network: &Network,
+    options: &SvgOptions,
+) -> String {
+    let c = |value: f64| frame.coordinate(value);
+    let mut svg = String::with_capacity(1024 + 160 * drawing.segments.len() + band.svg.len());
+    svg.push_str("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n");
+    let _ = writeln!(
+        svg,
+        "<svg xmlns=\"http://www.w3.org/2000/svg\" version=\"1.1\" width=\"{}\" height=\"{}\" \
+         viewBox=\"{} {} {} {}\">",
+        page.width_attribute,
+        page.height_attribute,
+        c(frame.x0),
+        c(frame.y0),
+        c(frame.width),
+        c(band.view_height(frame)),
+    );
+    let _ = writeln!(svg, "<title>{}</title>", escape_text(&options.title));
+    let _ = writeln!(
+        svg,
+        "<desc>Branching network: {} segments, {} roots; lengths in {}; segment stroke widths \
+         are true to scale.</desc>",
+        drawing.segments.len(),
+        drawing.roots.len(),
+        escape_text(&network.units),
+    );
+    let _ = writeln!(
+        svg,
+        "<metadata><ramulus:run xmlns:ramulus=\"{METADATA_NAMESPACE}\" ramulus:digest=\"{}\">{}\
+         </ramulus:run></metadata>",
+        escape_attribute(&options.digest),
+        escape_text(&options.metadata_json),
+    );
+    let _ = writeln!(svg, "<rect class=\"background\" x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"#ffffff\"/>",
+        c(frame.x0),
+        c(frame.y0),
+        c(frame.width),
+        c(band.view_height(frame)),
+    );
+
+    // Segments.
+    svg.push_str("<g class=\"network\" fill=\"none\">\n");
+    let flow_colour_of = |flow: f64| match drawing.flow_range {
+        Some((low, high)) if flow > 0.0 && high > low => {
+            let t = (libm::log(flow) - libm::log(low)) / (libm::log(high) - libm::log(low));
+            flow_colour(if t.is_finite() { t } else { 0.0 })
+        }
+        Some(_) if flow > 0.0 => flow_colour(1.0),
+        _ => flow_colour(0.0),
+    };
+    for segment in &drawing.segments {
+        let (x1, y1) = drawing
+            .nodes
+            .get(segment.child)
+            .copied()
+            .unwrap_or((0.0, 0.0));
+        let (x2, y2) = drawing
+            .nodes
+            .get(segment.parent)
+            .copied()
+            .unwrap_or((0.0, 0.0));
+        let colour = match options.colour {
+            Colouring::ByOrder => order_colour(segment.order).to_string(),
+            Colouring::ByFlow => flow_colour_of(segment.flow),
+            Colouring::Plain => PLAIN.to_string(),
+        };
+        let _ = writeln!(
+            svg,
+            "<line class=\"segment\" x1=\"{}\" y1=\"{}\" x2=\"{}\" y2=\"{}\" stroke=\"{colour}\" \
+             stroke-width=\"{}\" stroke-linecap=\"round\"/>",
+            c(x1),
+            c(y1),
+            c(x2),
+            c(y2),
+            significant(segment.width),
+        );
+    }
+    for &(index, _) in &drawing.roots {
+        let (x, y) = drawing.nodes.get(index).copied().unwrap_or((0.0, 0.0));
+        let _ = writeln!(
+            svg,
+            "<circle class=\"root\" cx=\"{}\" cy=\"{}\" r=\"{}\" fill=\"{ROOT_FILL}\" \
+             stroke=\"{TEXT}\" stroke-width=\"{}\"/>",
+            c(x),
+            c(y),
+            significant(frame.root_radius),
+            significant(0.35 * frame.root_radius),
+        );
+    }
+    svg.push_str("</g>\n");
+
+    // Annotation band.
+    let _ = writeln!(
+        svg,
+        "<g class=\"annotation\" font-family=\"sans-serif\" font-size=\"{}\" fill=\"{TEXT}\">",
+        significant(band.font),
+    );
+    svg.push_str(&band.svg);
+    svg.push_str("</g>\n</svg>\n");
+    svg
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn numbers_are_compact() {
+        assert_eq!(significant(0.0), "0");
+        assert_eq!(significant(1.0), "1");
+        assert_eq!(significant(0.123_456_789), "0.123457");
+        assert_eq!(significant(-2.5e-7), "-0.00000025");
+        assert_eq!(significant(f64::NAN), "0");
+        assert_eq!(fixed(-0.000_01, 3), "0");
+        assert_eq!(significant_digits(26_959.2, 3), "26959");
+        assert_eq!(significant_digits(1.4175, 3), "1.42");
+    }
+
+    #[test]
+    fn round_lengths() {
+        assert_eq!(round_length(0.9), 1.0);
+        assert_eq!(round_length(3.5), 5.0);
+        assert_eq!(round_length(2.9), 2.0);
+        assert_eq!(round_length(170.0), 200.0);
+        assert_eq!(round_length(0.0), 1.0);
+    }
+
+    #[test]
+    fn escapes_all_five() {
+        assert_eq!(escape_text("a<b>&\"c'"), "a&lt;b&gt;&amp;&quot;c&apos;");
+        assert_eq!(escape_attribute("x\ny"), "x&#10;y");
+        assert_eq!(escape_text("\u{7}"), "\u{fffd}");
+    }
+
+    /// Relative luminance (WCAG 2 definition) of a `#rrggbb` colour.
+    fn relative_luminance(colour: &str) -> f64 {
+        let channel = |offset: usize| {
+            let value = u8::from_str_radix(&colour[offset..offset + 2], 16).unwrap() as f64 / 255.0;
+            if value <= 0.04045 {
+                value / 12.92
+            } else {
+                ((value + 0.055) / 1.055).powf(2.4)
+            }
+        };
+        0.2126 * channel(1) + 0.7152 * channel(3) + 0.0722 * channel(5)
+    }
+
+    #[test]
+    fn flow_ramp_darkens_steadily() {
+        let mut previous = f64::INFINITY;
+        for step in 0..=20 {
+            let colour = flow_colour(step as f64 / 20.0);
+            let luminance = relative_luminance(&colour);
+            assert!(luminance < previous, "step {step}: {colour} is not darker");
+            previous = luminance;
+        }
+    }
+
+    #[test]
+    fn wrapping_keeps_words() {
+        assert_eq!(
+            wrap("one two three four", 9),
+            vec!["one two", "three", "four"]
+        );
+        assert_eq!(wrap("", 9), Vec::<String>::new());
+    }
+}

@@ -1,0 +1,73 @@
+//! Colours of the SVG drawing: Okabe-Ito order colours (Okabe & Ito 2008) and the flow ramp.
+
+/// Text and outline colour.
+pub(super) const TEXT: &str = "#222222";
+
+/// Fill of root markers.
+pub(super) const ROOT_FILL: &str = "#ffffff";
+
+/// Colour of `Colouring::Plain`.
+pub(super) const PLAIN: &str = "#404040";
+
+/// Strahler orders 1, 2, ... in colours of Okabe & Ito (2008), "Color Universal Design";
+/// yellow is left out as it is too faint on white. Orders past the end use the last colour.
+pub(super) const ORDER_COLOURS: [&str; 7] = [
+    "#56b4e9", // sky blue
+    "#009e73", // bluish green
+    "#e69f00", // orange
+    "#0072b2", // blue
+    "#d55e00", // vermilion
+    "#cc79a7", // reddish purple
+    "#000000", // black
+];
+
+pub(super) fn order_colour(order: u32) -> &'static str {
+    let index = (order.max(1) - 1) as usize;
+    ORDER_COLOURS[index.min(ORDER_COLOURS.len() - 1)]
+}
+
+/// The flow ramp at `t` in [0, 1] (0 = least flow): a path through the OKLab colour space
+/// (Ottosson 2020) whose lightness falls linearly from 0.87 to 0.30 while the hue turns from
+/// yellow-green through teal to blue, so light thin veinlets recede and dark trunks stand out.
+pub(super) fn flow_colour(t: f64) -> String {
+    let t = if t.is_finite() {
+        t.clamp(0.0, 1.0)
+    } else {
+        0.0
+    };
+    let lightness = 0.87 - 0.57 * t;
+    let hue = (110.0 + 165.0 * t).to_radians();
+    let mut chroma = 0.09 + 0.05 * libm::sin(std::f64::consts::PI * t);
+    let mut rgb = oklab_to_linear_srgb(lightness, chroma * libm::cos(hue), chroma * libm::sin(hue));
+    // Pull chroma in until the colour lies inside the sRGB gamut.
+    for _ in 0..40 {
+        if rgb.iter().all(|&channel| (0.0..=1.0).contains(&channel)) {
+            break;
+        }
+        chroma *= 0.9;
+        rgb = oklab_to_linear_srgb(lightness, chroma * libm::cos(hue), chroma * libm::sin(hue));
+    }
+    let [red, green, blue] = rgb.map(|channel| {
+        let channel = channel.clamp(0.0, 1.0);
+        let encoded = if channel <= 0.003_130_8 {
+            12.92 * channel
+        } else {
+            1.055 * libm::pow(channel, 1.0 / 2.4) - 0.055
+        };
+        libm::round(encoded.clamp(0.0, 1.0) * 255.0) as u8
+    });
+    format!("#{red:02x}{green:02x}{blue:02x}")
+}
+
+/// OKLab to linear sRGB (Ottosson 2020, "A perceptual color space for image processing").
+pub(super) fn oklab_to_linear_srgb(lightness: f64, a: f64, b: f64) -> [f64; 3] {
+    let l = lightness + 0.396_337_777_4 * a + 0.215_803_757_3 * b;
+    let m = lightness - 0.105_561_345_8 * a - 0.063_854_172_8 * b;
+    let s = lightness - 0.089_484_177_5 * a - 1.291_485_548_0 * b;
+    let (l, m, s) = (l * l * l, m * m * m, s * s * s);
+    [
+        4.076_741_662_1 * l - 3.307_711_591_3 * m + 0.230_969_929_2 * s,
+        -1.268_438_004_6 * l + 2.609_757_401_1 * m - 0.341_319_396_5 * s,
+        -0.004_196_086_3 * l - 0.703_418_614_7 * m + 1.707_614_701_0 * s,
+    ]
+}
