@@ -1,0 +1,187 @@
+//! Attachment search: offering a new node to the cells within reach, anchors at nodes and
+//! segment interiors, and recomputing a cell's best attachment from scratch.
+
+use super::*;
+
+impl Growth {
+    /// Offers `node` (and its segment, when segments may be joined) to the cells within the
+    /// search radius of `centre_cell`.
+    pub(super) fn offer(&mut self, centre_cell: usize, node: u32) {
+        let (column, row) = self.lattice.column_row(centre_cell);
+        let node_anchor = self.node_anchor(node);
+        let segment = self.params.attach_to_segments && self.parent[node as usize] != NO_PARENT;
+        for offset_index in 0..self.lattice.offsets.len() {
+            let (dx, dy) = self.lattice.offsets[offset_index];
+            let Some(cell) = self.lattice.neighbour(column, row, dx, dy) else {
+                continue;
+            };
+            let state = self.lattice.state[cell];
+            if state == BLOCKED || state < FRONTIER_TAG {
+                continue;
+            }
+            let (cx, cy) = self.lattice.position(cell);
+            let mut best_cost = self.model.cost(cx, cy, &node_anchor);
+            let mut best = Attachment {
+                target: node,
+                segment_parent: NONE,
+                along: 0.0,
+            };
+            if segment {
+                if let Some((cost, attachment)) = self.best_on_segment(cx, cy, node) {
+                    if cost < best_cost {
+                        best_cost = cost;
+                        best = attachment;
+                    }
+                }
+            }
+            if state == FREE {
+                let slot = Slot {
+                    cell: cell as u32,
+                    cost: best_cost,
+                    best,
+                };
+                let weight = self.weight(best_cost);
+                let index = self.frontier.insert(slot, weight);
+                self.lattice.state[cell] = FRONTIER_TAG | index;
+            } else {
+                let index = state & !FRONTIER_TAG;
+                if best_cost < self.frontier.slots[index as usize].cost {
+                    let weight = self.weight(best_cost);
+                    self.frontier.update(index, best_cost, best, weight);
+                }
+            }
+        }
+    }
+
+    pub(super) fn node_anchor(&self, node: u32) -> Anchor {
+        let index = node as usize;
+        let (axis_x, axis_y) = self.axes[self.root_of[index] as usize];
+        Anchor {
+            x: self.x[index],
+            y: self.y[index],
+            down_x: self.down_x[index],
+            down_y: self.down_y[index],
+            dist: self.dist[index],
+            transport: self.transport[index],
+            axis_x,
+            axis_y,
+            is_tip: self.child_count[index] == 0,
+        }
+    }
+
+    /// The anchor at fraction `along` of the segment from `node` to its parent.
+    pub(super) fn segment_anchor(&self, node: u32, along: f64) -> Anchor {
+        let index = node as usize;
+        let parent = self.parent[index] as usize;
+        let x = self.x[index] + along * (self.x[parent] - self.x[index]);
+        let y = self.y[index] + along * (self.y[parent] - self.y[index]);
+        let (axis_x, axis_y) = self.axes[self.root_of[index] as usize];
+        let to_parent_x = self.x[parent] - x;
+        let to_parent_y = self.y[parent] - y;
+        let rest = (to_parent_x * to_parent_x + to_parent_y * to_parent_y).sqrt();
+        Anchor {
+            x,
+            y,
+            down_x: self.down_x[index],
+            down_y: self.down_y[index],
+            dist: self.dist[parent]
+                + self
+                    .model
+                    .supply_length(to_parent_x, to_parent_y, axis_x, axis_y),
+            transport: self.transport[parent]
+                + rest * marginal(self.flow[index], self.cell_weight, self.params.alpha),
+            axis_x,
+            axis_y,
+            is_tip: false,
+        }
+    }
+
+    /// Cheapest interior point of the segment `node -> parent` for a cell at `(cx, cy)`: the
+    /// foot of the perpendicular, and the point that makes a 45 degree junction downstream.
+    pub(super) fn best_on_segment(&self, cx: f64, cy: f64, node: u32) -> Option<(f64, Attachment)> {
+        let index = node as usize;
+        let parent = self.parent[index];
+        if parent == NO_PARENT {
+            return None;
+        }
+        let (ax, ay) = (self.x[index], self.y[index]);
+        let (bx, by) = (self.x[parent as usize], self.y[parent as usize]);
+        let (sx, sy) = (bx - ax, by - ay);
+        let squared = sx * sx + sy * sy;
+        if squared <= 0.0 {
+            return None;
+        }
+        let length = squared.sqrt();
+        let foot = ((cx - ax) * sx + (cy - ay) * sy) / squared;
+        let cross = ((cx - ax) * sy - (cy - ay) * sx).abs() / length;
+        let mut best: Option<(f64, Attachment)> = None;
+        for along in [foot, foot + cross / length] {
+            if !(0.05..=0.95).contains(&along) {
+                continue;
+            }
+            let anchor = self.segment_anchor(node, along);
+            let cost = self.model.cost(cx, cy, &anchor);
+            if best.is_none_or(|(best_cost, _)| cost < best_cost) {
+                best = Some((
+                    cost,
+                    Attachment {
+                        target: node,
+                        segment_parent: parent,
+                        along,
+                    },
+                ));
+            }
+        }
+        best
+    }
+
+    /// Recomputes a cell's best attachment from every node and segment within reach.
+    pub(super) fn best_from_scratch(&self, cell: usize) -> Option<(f64, Attachment)> {
+        let (column, row) = self.lattice.column_row(cell);
+        let (cx, cy) = self.lattice.position(cell);
+        let mut best: Option<(f64, Attachment)> = None;
+        let mut consider = |cost: f64, attachment: Attachment| {
+            if best.is_none_or(|(best_cost, _)| cost < best_cost) {
+                best = Some((cost, attachment));
+            }
+        };
+        for &(dx, dy) in &self.lattice.offsets {
+            let Some(other) = self.lattice.neighbour(column, row, dx, dy) else {
+                continue;
+            };
+            let state = self.lattice.state[other];
+            let mut candidates = [NONE; 2];
+            if state < FRONTIER_TAG {
+                candidates[0] = state;
+            }
+            if self.params.attach_to_segments {
+                candidates[1] = self.junction_head[other];
+            }
+            for (kind, &first) in candidates.iter().enumerate() {
+                let mut node = first;
+                while node != NONE {
+                    let cost = self.model.cost(cx, cy, &self.node_anchor(node));
+                    consider(
+                        cost,
+                        Attachment {
+                            target: node,
+                            segment_parent: NONE,
+                            along: 0.0,
+                        },
+                    );
+                    if self.params.attach_to_segments {
+                        if let Some((cost, attachment)) = self.best_on_segment(cx, cy, node) {
+                            consider(cost, attachment);
+                        }
+                    }
+                    node = if kind == 1 {
+                        self.junction_next[node as usize]
+                    } else {
+                        NONE
+                    };
+                }
+            }
+        }
+        best
+    }
+}

@@ -1,0 +1,107 @@
+//! The joining rules: weights for weighted and uniform joining, rescaling, and picking the next
+//! cell (with the re-check of stale attachments).
+
+use super::*;
+
+impl Growth {
+    /// Joining weight of a cost under the current rule (0 when not eligible).
+    pub(super) fn weight(&mut self, cost: f64) -> f64 {
+        if let Some(threshold) = self.params.threshold {
+            if cost >= threshold {
+                return 0.0;
+            }
+        }
+        match self.params.joining {
+            Joining::Cheapest => 0.0,
+            Joining::Uniform => 1.0,
+            Joining::Weighted => {
+                if self.weight_reference.is_nan() {
+                    self.weight_reference = cost;
+                }
+                let exponent = (self.weight_reference - cost) / self.params.temperature;
+                libm::exp(exponent.min(WEIGHT_CEILING_EXPONENT))
+            }
+        }
+    }
+
+    /// Rescales weighted-joining weights against the cheapest current cost.
+    pub(super) fn reweigh(&mut self) {
+        self.weight_reference = match self.frontier.cheapest() {
+            Some((_, cost)) => cost,
+            None => return,
+        };
+        let reference = self.weight_reference;
+        let temperature = self.params.temperature;
+        let threshold = self.params.threshold;
+        let joining = self.params.joining;
+        self.frontier.reweigh(|slot| {
+            if threshold.is_some_and(|threshold| slot.cost >= threshold) {
+                return 0.0;
+            }
+            match joining {
+                Joining::Cheapest => 0.0,
+                Joining::Uniform => 1.0,
+                Joining::Weighted => {
+                    libm::exp(((reference - slot.cost) / temperature).min(WEIGHT_CEILING_EXPONENT))
+                }
+            }
+        });
+    }
+
+    /// Picks the next cell by the joining rule, re-checking stale attachments.
+    pub(super) fn pick(&mut self) -> Result<(u32, Attachment), StopReason> {
+        loop {
+            let Some((cheapest_slot, cheapest_cost)) = self.frontier.cheapest() else {
+                return Err(StopReason::Full);
+            };
+            if self
+                .params
+                .threshold
+                .is_some_and(|threshold| cheapest_cost >= threshold)
+            {
+                return Err(StopReason::Threshold);
+            }
+            let slot_index = match self.params.joining {
+                Joining::Cheapest => cheapest_slot,
+                Joining::Uniform | Joining::Weighted => {
+                    let mut total = self.frontier.total_weight();
+                    let drifted = self.params.joining == Joining::Weighted
+                        && (self.weight_reference - cheapest_cost) / self.params.temperature
+                            > WEIGHT_CEILING_EXPONENT * 0.5;
+                    if total <= WEIGHT_FLOOR || !total.is_finite() || drifted {
+                        self.reweigh();
+                        total = self.frontier.total_weight();
+                    }
+                    if total <= 0.0 {
+                        return Err(StopReason::Threshold);
+                    }
+                    let target = unit_interval(&mut self.random) * total;
+                    self.frontier.pick_by_weight(target)
+                }
+            };
+            let slot = self.frontier.slots[slot_index as usize];
+            if !self.recheck {
+                return Ok((slot_index, slot.best));
+            }
+            let Some((cost, attachment)) = self.best_from_scratch(slot.cell as usize) else {
+                return Ok((slot_index, slot.best));
+            };
+            let still_valid = cost <= slot.cost + 1e-12;
+            if still_valid
+                && !self
+                    .params
+                    .threshold
+                    .is_some_and(|threshold| cost >= threshold)
+            {
+                return Ok((slot_index, attachment));
+            }
+            let weight = self.weight(cost);
+            self.frontier.update(slot_index, cost, attachment, weight);
+        }
+    }
+}
+
+/// A uniform draw in [0, 1) from the top 53 bits of one 64-bit output.
+fn unit_interval(random: &mut ChaCha8Rng) -> f64 {
+    (random.next_u64() >> 11) as f64 * (1.0 / (1u64 << 53) as f64)
+}

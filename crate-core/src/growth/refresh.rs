@@ -1,0 +1,117 @@
+//! The exact refresh of flows and transport costs, and the re-pricing of the frontier after it.
+
+use super::*;
+
+impl Growth {
+    /// Recomputes flows and transport costs exactly when the network has grown by `refresh`
+    /// since the last time, then re-prices every frontier cell's stored attachment.
+    pub(super) fn maybe_refresh(&mut self) {
+        if self.params.w_flow == 0.0 {
+            return;
+        }
+        let nodes = self.x.len();
+        let due = self.last_refresh_nodes as f64 * (1.0 + self.params.refresh);
+        if (nodes as f64) < due.max(self.last_refresh_nodes as f64 + 8.0) {
+            return;
+        }
+        self.last_refresh_nodes = nodes;
+        self.refresh_flows();
+        for index in 0..self.frontier.slots.len() {
+            let slot = self.frontier.slots[index];
+            if slot.cell == NONE {
+                continue;
+            }
+            let (cx, cy) = self.lattice.position(slot.cell as usize);
+            let best = slot.best;
+            let split = best.segment_parent != NONE
+                && self.parent[best.target as usize] != best.segment_parent;
+            let cost = if split {
+                match self.best_from_scratch(slot.cell as usize) {
+                    Some((cost, attachment)) => {
+                        self.frontier.slots[index].best = attachment;
+                        cost
+                    }
+                    None => f64::INFINITY,
+                }
+            } else if best.segment_parent == NONE {
+                self.model.cost(cx, cy, &self.node_anchor(best.target))
+            } else {
+                self.model
+                    .cost(cx, cy, &self.segment_anchor(best.target, best.along))
+            };
+            self.frontier.slots[index].cost = cost;
+        }
+        self.reweigh();
+    }
+
+    pub(super) fn refresh_flows(&mut self) {
+        let count = self.x.len();
+        // Children in compressed rows, then a breadth-first order from the roots.
+        self.scratch_start.clear();
+        self.scratch_start.resize(count + 1, 0);
+        for &parent in &self.parent {
+            if parent != NO_PARENT {
+                self.scratch_start[parent as usize + 1] += 1;
+            }
+        }
+        for index in 0..count {
+            self.scratch_start[index + 1] += self.scratch_start[index];
+        }
+        self.scratch_children.clear();
+        self.scratch_children.resize(count, 0);
+        let mut fill: Vec<u32> = self.scratch_start[..count].to_vec();
+        for (node, &parent) in self.parent.iter().enumerate() {
+            if parent != NO_PARENT {
+                self.scratch_children[fill[parent as usize] as usize] = node as u32;
+                fill[parent as usize] += 1;
+            }
+        }
+        self.scratch_order.clear();
+        for (node, &parent) in self.parent.iter().enumerate() {
+            if parent == NO_PARENT {
+                self.scratch_order.push(node as u32);
+            }
+        }
+        let mut head = 0;
+        while head < self.scratch_order.len() {
+            let node = self.scratch_order[head] as usize;
+            head += 1;
+            let (start, end) = (
+                self.scratch_start[node] as usize,
+                self.scratch_start[node + 1] as usize,
+            );
+            for position in start..end {
+                let child = self.scratch_children[position];
+                self.scratch_order.push(child);
+            }
+        }
+        for node in 0..count {
+            self.flow[node] = if self.cell_of[node] == NONE {
+                0.0
+            } else {
+                self.cell_weight
+            };
+        }
+        for &node in self.scratch_order.iter().rev() {
+            let parent = self.parent[node as usize];
+            if parent != NO_PARENT {
+                self.flow[parent as usize] += self.flow[node as usize];
+            }
+        }
+        let alpha = self.params.alpha;
+        let extra = self.cell_weight;
+        for &node in &self.scratch_order {
+            let node = node as usize;
+            let parent = self.parent[node];
+            if parent == NO_PARENT {
+                self.transport[node] = 0.0;
+                continue;
+            }
+            let parent = parent as usize;
+            let (vx, vy) = (self.x[parent] - self.x[node], self.y[parent] - self.y[node]);
+            let length = (vx * vx + vy * vy).sqrt();
+            self.transport[node] =
+                self.transport[parent] + length * marginal(self.flow[node], extra, alpha);
+        }
+    }
+}
