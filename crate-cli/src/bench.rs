@@ -112,15 +112,7 @@ fn full_model(cells: u64) -> Params {
 
 /// Runs the benchmark cases and prints one line of figures per case.
 pub fn run(arguments: &[String]) -> Result<(), CliError> {
-    let quick = arguments.iter().any(|argument| argument == "--quick");
-    if let Some(other) = arguments
-        .iter()
-        .find(|argument| argument.as_str() != "--quick")
-    {
-        return Err(CliError::Usage(format!(
-            "unknown option `{other}` for `bench`"
-        )));
-    }
+    let quick = crate::options::only_flags(arguments, &["--quick"], "bench")?.contains(&"--quick");
     let (side, small, large) = if quick {
         (300, 25_000, 100_000)
     } else {

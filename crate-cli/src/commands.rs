@@ -9,7 +9,7 @@ use ramulus_core::run::{RunView, SITE_CAUTION};
 use ramulus_core::svg::Colouring;
 use serde_json::json;
 
-use crate::options::{assemble_params, CliError, GrowOptions};
+use crate::options::{assemble_params, only_flags, CliError, GrowOptions};
 
 fn read_text(path: &str) -> Result<String, CliError> {
     std::fs::read_to_string(path)
@@ -63,7 +63,7 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
         CliError::Failed(format!("internal: grown network is not a forest: {error}"))
     })?;
     if let Some(path) = &options.record_file {
-        let record = make_record(&view, &params, Some(stop_name(stopped)));
+        let record = make_record(&view, &params, Some(stopped.name().to_string()));
         write_file(path, &write_record(&record))?;
     }
     if let Some(path) = &options.svg_file {
@@ -78,7 +78,7 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
             "segments": view.network.segment_count(),
             "total_length": view.metrics.total_length,
             "units": params.units,
-            "stopped": stop_name(stopped),
+            "stopped": stopped.name(),
             "metrics": view.metrics,
             "caution": params.is_site().then_some(SITE_CAUTION),
         });
@@ -97,10 +97,6 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
         }
     }
     Ok(())
-}
-
-fn stop_name(reason: ramulus_core::StopReason) -> String {
-    reason.name().to_string()
 }
 
 fn print_table(metrics: &Metrics, units: &str) {
@@ -168,21 +164,12 @@ pub fn measure(arguments: &[String]) -> Result<(), CliError> {
 
 /// `ramulus presets`.
 pub fn presets(arguments: &[String]) -> Result<(), CliError> {
-    let as_json = arguments.iter().any(|argument| argument == "--json");
-    if let Some(other) = arguments
-        .iter()
-        .find(|argument| argument.as_str() != "--json")
-    {
-        return Err(CliError::Usage(format!(
-            "unknown option `{other}` for `presets`"
-        )));
-    }
+    let as_json = only_flags(arguments, &["--json"], "presets")?.contains(&"--json");
     if as_json {
-        let list: Vec<_> = all_presets()
-            .into_iter()
-            .map(|preset| json!({ "name": preset.name, "description": preset.description, "params": preset.params }))
-            .collect();
-        say!("{}", serde_json::Value::Array(list));
+        say!(
+            "{}",
+            serde_json::to_string(&all_presets()).unwrap_or_default()
+        );
         return Ok(());
     }
     for preset in all_presets() {

@@ -117,3 +117,23 @@ pub fn assemble_params(
         .map_err(|error| CliError::Failed(error.to_string()))?;
     Ok(params)
 }
+
+/// Checks that every argument is one of `allowed` flags; returns the flags given.
+pub fn only_flags<'a>(
+    arguments: &[String],
+    allowed: &[&'a str],
+    command: &str,
+) -> Result<Vec<&'a str>, CliError> {
+    let mut given = Vec::new();
+    for argument in arguments {
+        match allowed.iter().find(|flag| **flag == argument.as_str()) {
+            Some(flag) => given.push(*flag),
+            None => {
+                return Err(CliError::Usage(format!(
+                    "unknown option `{argument}` for `{command}`"
+                )))
+            }
+        }
+    }
+    Ok(given)
+}

@@ -295,6 +295,17 @@ impl Params {
                 allowed: "at least 1".into(),
             });
         }
+        // The budget counts the roots, which are all planted at once: it must hold them.
+        if self.cells < self.roots.len() as u64 {
+            return Err(ParamError {
+                key: "cells".into(),
+                value: self.cells.to_string(),
+                allowed: format!(
+                    "at least the number of roots ({}), since the budget counts the roots",
+                    self.roots.len()
+                ),
+            });
+        }
         check_range("radius", self.radius, 1.0, MAX_RADIUS)?;
         check_range("jitter", self.jitter, 0.0, 0.49)?;
         for (key, value) in [

@@ -2,10 +2,12 @@
 //! from the costs, a leaf that fills a given outline, a drainage site, and the spanning-tree
 //! reference.
 
+use serde::Serialize;
+
 use crate::params::{Joining, Params, Root};
 
 /// A named set of parameters with a one-line description.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Preset {
     /// Short name used on the command line and in links.
     pub name: &'static str,

@@ -5,7 +5,7 @@ use crate::digest::digest_hex;
 use crate::metrics::{measure_with, Metrics};
 use crate::network::{Network, Topology, TopologyError};
 use crate::params::Params;
-use crate::segments::{strahler_orders, SegmentTable, WidthRule};
+use crate::segments::{SegmentTable, WidthRule};
 use crate::svg::{render_svg, Colouring, SvgOptions};
 
 /// A network together with its derived values.
@@ -28,8 +28,7 @@ impl RunView {
     pub fn new(network: Network, params: &Params) -> Result<RunView, TopologyError> {
         let topology = network.topology()?;
         let rule = width_rule(params);
-        let mut table = SegmentTable::compute(&network, &topology, rule);
-        table.order = strahler_orders(&network, &topology);
+        let table = SegmentTable::compute(&network, &topology, rule);
         let metrics = measure_with(&network, &topology, &table.order, params.alpha);
         let digest = digest_hex(&network);
         Ok(RunView {

@@ -91,11 +91,7 @@ impl Simulation {
 /// Every preset as a JSON array of `{name, description, params}`.
 #[wasm_bindgen]
 pub fn presets_json() -> String {
-    let list: Vec<_> = presets()
-        .into_iter()
-        .map(|preset| serde_json::json!({ "name": preset.name, "description": preset.description, "params": preset.params }))
-        .collect();
-    serde_json::Value::Array(list).to_string()
+    serde_json::to_string(&presets()).unwrap_or_else(|_| "[]".to_string())
 }
 
 #[cfg(test)]

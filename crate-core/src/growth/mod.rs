@@ -112,17 +112,6 @@ impl Growth {
     /// Validates the parameters and plants the roots. Fails with an error naming the parameter.
     pub fn new(params: &Params) -> Result<Growth, ParamError> {
         params.validate()?;
-        // The budget counts the roots, which are all planted at once: it must hold them.
-        if params.cells < params.roots.len() as u64 {
-            return Err(ParamError {
-                key: "cells".into(),
-                value: params.cells.to_string(),
-                allowed: format!(
-                    "at least the number of roots ({}), since the budget counts the roots",
-                    params.roots.len()
-                ),
-            });
-        }
         let allowed = allowed_cells(params);
         if !allowed.iter().any(|&cell| cell) {
             return Err(ParamError {
