@@ -2,6 +2,7 @@
 
 use ramulus_core::growth::Growth;
 use ramulus_core::import::mask_from_bytes;
+use ramulus_core::link::{decode_link, encode_link};
 use ramulus_core::metrics::{metrics_table, Metrics};
 use ramulus_core::presets::presets as all_presets;
 use ramulus_core::record::{make_record, read_record, write_record};
@@ -28,7 +29,15 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
         Some(path) => Some((path.as_str(), read_text(path)?)),
         None => None,
     };
+    let link_params = options.link.as_deref().map(|text| {
+        let read = decode_link(text);
+        for problem in &read.problems {
+            eprintln!("warning: {problem}");
+        }
+        read.params
+    });
     let mut params = assemble_params(
+        link_params,
         options.preset.as_deref(),
         file_text
             .as_ref()
@@ -81,6 +90,7 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
             "stopped": stopped.name(),
             "metrics": view.metrics,
             "caution": params.is_site().then_some(SITE_CAUTION),
+            "link": format!("#{}", encode_link(&params)),
         });
         say!("{output}");
     } else {

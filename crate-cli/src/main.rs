@@ -23,16 +23,18 @@ const USAGE: &str = "\
 ramulus: grow, measure and export branching transport networks
 
 usage:
-  ramulus grow [--preset NAME] [--params FILE.json] [--set KEY=VALUE]... [--mask FILE]
+  ramulus grow [--preset NAME | --params FILE.json | --link LINK] [--set KEY=VALUE]... [--mask FILE]
                [--record OUT.json] [--svg OUT.svg] [--colour order|flow|plain] [--json]
   ramulus measure RECORD.json [--json]
   ramulus presets [--json]
   ramulus bench [--quick]
 
 `grow` starts from the preset (default: broad-leaf) or, with --params, from defaults plus the
-file's keys; each --set KEY=VALUE then overrides one key (VALUE is JSON, or else a string).
+file's keys, or, with --link, from a run link copied from the page (a whole URL or its #fragment;
+a damaged field takes its default, with a warning on stderr); each --set KEY=VALUE then
+overrides one key (VALUE is JSON, or else a string).
 --mask reads a PBM (P1/P4, black = allowed) or PNG (dark = allowed) image; its size sets the
-lattice. With --json exactly one JSON object is printed on stdout.";
+lattice. With --json exactly one JSON object is printed on stdout; its `link` opens the run on the page.";
 
 fn main() -> ExitCode {
     let arguments: Vec<String> = std::env::args().skip(1).collect();

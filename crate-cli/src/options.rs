@@ -20,6 +20,7 @@ pub struct GrowOptions {
     pub params_file: Option<String>,
     pub sets: Vec<String>,
     pub mask_file: Option<String>,
+    pub link: Option<String>,
     pub record_file: Option<String>,
     pub svg_file: Option<String>,
     pub colour: Option<String>,
@@ -44,6 +45,7 @@ impl GrowOptions {
                 "--params" => options.params_file = Some(value()?),
                 "--set" => options.sets.push(value()?),
                 "--mask" => options.mask_file = Some(value()?),
+                "--link" => options.link = Some(value()?),
                 "--record" => options.record_file = Some(value()?),
                 "--svg" => options.svg_file = Some(value()?),
                 "--colour" | "--color" => options.colour = Some(value()?),
@@ -56,17 +58,25 @@ impl GrowOptions {
             }
             index += 1;
         }
+        if options.link.is_some() && (options.preset.is_some() || options.params_file.is_some()) {
+            return Err(CliError::Usage(
+                "`--link` holds every parameter: give it without `--preset` or `--params`".into(),
+            ));
+        }
         Ok(options)
     }
 }
 
-/// Assembles parameters: preset (or defaults when a file is given), file keys, then `--set`s.
+/// Assembles parameters: a link's parameters, or a preset (or defaults when a file is given),
+/// then file keys, then `--set`s.
 pub fn assemble_params(
+    link_params: Option<Params>,
     preset_name: Option<&str>,
     file_text: Option<(&str, &str)>,
     sets: &[String],
 ) -> Result<Params, CliError> {
     let base = match (preset_name, file_text) {
+        _ if link_params.is_some() => link_params.unwrap_or_default(),
         (Some(name), _) => preset(name).ok_or_else(|| {
             let names: Vec<&str> = ramulus_core::presets::presets()
                 .iter()

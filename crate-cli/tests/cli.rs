@@ -307,3 +307,34 @@ fn usage_errors_exit_non_zero_without_a_panic() {
     check_failure(&ramulus(&["grow", "--set", "alpha"]), &["alpha"]);
     check_failure(&ramulus(&["measure"]), &["measure"]);
 }
+
+/// The `link` printed by `--json` grows the same run when handed back through `--link`, as a
+/// bare fragment or inside a whole URL; `--set` still overrides one key on top of a link.
+#[test]
+fn a_printed_link_grows_the_same_run() {
+    let first = grow_json(&["grow", "--preset", "spanning-tree", "--json"]);
+    let link = first["link"].as_str().expect("link is text");
+    assert!(link.starts_with("#v=1&"), "{link}");
+    let again = grow_json(&["grow", "--link", link, "--json"]);
+    assert_eq!(again["digest"], first["digest"]);
+    let url = format!("http://127.0.0.1:8080/{link}");
+    let from_url = grow_json(&["grow", "--link", &url, "--json"]);
+    assert_eq!(from_url["digest"], first["digest"]);
+    let other = grow_json(&["grow", "--link", link, "--set", "cells=100", "--json"]);
+    assert_eq!(other["cells"].as_u64(), Some(100));
+}
+
+/// A damaged field warns on stderr, naming the field, and the run still grows; `--link`
+/// together with `--preset` is a usage error.
+#[test]
+fn a_damaged_link_warns_and_a_link_with_a_preset_is_refused() {
+    let first = grow_json(&["grow", "--preset", "spanning-tree", "--json"]);
+    let link = first["link"].as_str().expect("link is text");
+    let damaged = link.replace("&alpha=", "&alpha=oops");
+    let outcome = ramulus(&["grow", "--link", &damaged, "--json"]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    assert!(outcome.stderr.contains("`alpha`"), "{}", outcome.stderr);
+    let outcome = ramulus(&["grow", "--link", link, "--preset", "broad-leaf"]);
+    assert_eq!(outcome.code, Some(2));
+    assert!(outcome.stderr.contains("--link"), "{}", outcome.stderr);
+}

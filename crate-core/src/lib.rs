@@ -6,6 +6,7 @@
 pub mod digest;
 pub mod growth;
 pub mod import;
+pub mod link;
 pub mod mask;
 pub mod metrics;
 pub mod network;
@@ -13,6 +14,7 @@ pub mod params;
 pub mod presets;
 pub mod record;
 pub mod run;
+pub mod schema;
 pub mod segments;
 pub mod svg;
 
