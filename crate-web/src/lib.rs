@@ -1,102 +1,133 @@
-//! Browser layer over `ramulus-core`: one opaque `Simulation` handle that the page creates from
-//! parameter JSON, steps, and reads (digest, metrics, SVG, run record). Errors come back as
-//! readable strings; nothing here computes.
+//! Browser layer over `ramulus-core`: the `Simulation` handle (`simulation`) with typed-array
+//! views of its geometry (`geometry`), plus free functions for presets, the parameter schema,
+//! run links and colours. Errors come back as readable strings; nothing here computes.
 
-use ramulus_core::growth::Growth;
-use ramulus_core::params::Params;
+use ramulus_core::import::mask_from_bytes;
+use ramulus_core::link::{decode_link, encode_link, field_text, set_field};
 use ramulus_core::presets::presets;
-use ramulus_core::record::{make_record, write_record};
-use ramulus_core::run::RunView;
-use ramulus_core::svg::Colouring;
+use ramulus_core::run::SITE_CAUTION;
+use ramulus_core::schema::fields;
+use ramulus_core::svg::colour_scheme;
+use serde_json::json;
 use wasm_bindgen::prelude::*;
 
-/// A growing network held in wasm memory.
-#[wasm_bindgen]
-pub struct Simulation {
-    growth: Growth,
-}
+mod geometry;
+mod simulation;
 
-#[wasm_bindgen]
-impl Simulation {
-    /// Creates a run from parameter JSON; an invalid parameter gives an error naming it.
-    #[wasm_bindgen(constructor)]
-    pub fn new(params_json: &str) -> Result<Simulation, JsError> {
-        console_error_panic_hook::set_once();
-        let params =
-            Params::from_json(params_json).map_err(|error| JsError::new(&error.to_string()))?;
-        let growth = Growth::new(&params).map_err(|error| JsError::new(&error.to_string()))?;
-        Ok(Simulation { growth })
-    }
+pub use simulation::Simulation;
 
-    /// Adds up to `count` cells; returns how many were added.
-    pub fn step(&mut self, count: u32) -> u32 {
-        self.growth.step(count as u64).added as u32
-    }
-
-    /// Whether growth has stopped.
-    pub fn finished(&self) -> bool {
-        self.growth.stopped().is_some()
-    }
-
-    /// Cells grown so far.
-    pub fn cells(&self) -> u32 {
-        self.growth.cell_count() as u32
-    }
-
-    /// Digest of the network so far (16 hex digits).
-    pub fn digest(&self) -> String {
-        ramulus_core::digest::digest_hex(&self.growth.network())
-    }
-
-    /// Metrics of the network so far, as JSON.
-    pub fn metrics_json(&self) -> Result<String, JsError> {
-        let view = self.view()?;
-        serde_json::to_string(&view.metrics).map_err(|error| JsError::new(&error.to_string()))
-    }
-
-    /// The network as SVG, coloured by `order`, `flow` or `plain`.
-    pub fn svg(&self, colouring: &str) -> Result<String, JsError> {
-        let view = self.view()?;
-        let params = self.growth.params();
-        let colour = match colouring {
-            "flow" => Colouring::ByFlow,
-            "plain" => Colouring::Plain,
-            _ => Colouring::ByOrder,
-        };
-        Ok(view.svg(params, colour))
-    }
-
-    /// The JSON run record.
-    pub fn record_json(&self) -> Result<String, JsError> {
-        let view = self.view()?;
-        let stopped = self
-            .growth
-            .stopped()
-            .map(|reason| reason.name().to_string());
-        Ok(write_record(&make_record(
-            &view,
-            self.growth.params(),
-            stopped,
-        )))
-    }
-}
-
-impl Simulation {
-    fn view(&self) -> Result<RunView, JsError> {
-        RunView::new(self.growth.network(), self.growth.params())
-            .map_err(|error| JsError::new(&error.to_string()))
-    }
-}
-
-/// Every preset as a JSON array of `{name, description, params}`.
+/// Every preset as a JSON array of `{name, description, params, link}`.
 #[wasm_bindgen]
 pub fn presets_json() -> String {
-    serde_json::to_string(&presets()).unwrap_or_else(|_| "[]".to_string())
+    let list: Vec<serde_json::Value> = presets()
+        .iter()
+        .map(|preset| {
+            json!({
+                "name": preset.name,
+                "description": preset.description,
+                "params": preset.params,
+                "link": encode_link(&preset.params),
+            })
+        })
+        .collect();
+    serde_json::Value::Array(list).to_string()
+}
+
+/// The parameter form's fields (key, group, label, unit, kind, bounds, help) as JSON.
+#[wasm_bindgen]
+pub fn schema_json() -> String {
+    serde_json::to_string(&fields()).unwrap_or_else(|_| "[]".to_string())
+}
+
+/// Reads a link and returns JSON `{link, version, problems: [{key, value, message}], fields:
+/// {key: text}}`, where `link` is the repaired fragment that grows exactly these fields.
+#[wasm_bindgen]
+pub fn read_link(text: &str) -> String {
+    console_error_panic_hook::set_once();
+    let read = decode_link(text);
+    link_summary(&read.params, read.version, &read.problems)
+}
+
+/// Sets one field of a (valid) link from text. Returns JSON `{link, fields}` with the new
+/// link, or `{error: {key, message}}` naming the field at fault, leaving the link unchanged.
+#[wasm_bindgen]
+pub fn set_link_field(link: &str, key: &str, text: &str) -> String {
+    let mut params = decode_link(link).params;
+    if let Err(message) = set_field(&mut params, key, text) {
+        return json!({ "error": { "key": key, "message": message } }).to_string();
+    }
+    if let Err(error) = params.validate() {
+        let message = format!("{} is not allowed: {}", error.value, error.allowed);
+        return json!({ "error": { "key": error.key, "message": message } }).to_string();
+    }
+    link_summary(&params, ramulus_core::link::LINK_VERSION, &[])
+}
+
+/// Applies an image mask (PNG or PBM bytes, dark = allowed) to a link: the image's size sets
+/// the lattice. Returns JSON like `set_link_field`.
+#[wasm_bindgen]
+pub fn set_link_mask(link: &str, image: &[u8]) -> String {
+    let mut params = decode_link(link).params;
+    let mask = match mask_from_bytes(image) {
+        Ok(mask) => mask,
+        Err(error) => {
+            return json!({ "error": { "key": "mask", "message": error.to_string() } }).to_string()
+        }
+    };
+    params.width = mask.width;
+    params.height = mask.height;
+    params.mask = Some(mask);
+    if let Err(error) = params.validate() {
+        let message = format!(
+            "with this {} x {} image, {} = {} is not allowed: {}",
+            params.width, params.height, error.key, error.value, error.allowed
+        );
+        return json!({ "error": { "key": error.key, "message": message } }).to_string();
+    }
+    link_summary(&params, ramulus_core::link::LINK_VERSION, &[])
+}
+
+/// Colours shared with the SVG export: `{order: [...], flow: [...], plain}`.
+#[wasm_bindgen]
+pub fn colours_json() -> String {
+    serde_json::to_string(&colour_scheme()).unwrap_or_else(|_| "{}".to_string())
+}
+
+/// The caution every drainage-site output carries.
+#[wasm_bindgen]
+pub fn site_caution() -> String {
+    SITE_CAUTION.to_string()
+}
+
+fn link_summary(
+    params: &ramulus_core::params::Params,
+    version: u32,
+    problems: &[ramulus_core::link::LinkProblem],
+) -> String {
+    let field_texts: serde_json::Map<String, serde_json::Value> = fields()
+        .iter()
+        .map(|spec| {
+            let text = field_text(params, spec.key).unwrap_or_default();
+            (spec.key.to_string(), serde_json::Value::String(text))
+        })
+        .collect();
+    let problems: Vec<serde_json::Value> = problems
+        .iter()
+        .map(|problem| json!({ "key": problem.key, "value": problem.value, "message": problem.message }))
+        .collect();
+    json!({
+        "link": encode_link(params),
+        "version": version,
+        "problems": problems,
+        "fields": field_texts,
+    })
+    .to_string()
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use ramulus_core::params::Params;
 
     #[test]
     fn presets_json_lists_every_core_preset_with_parameters_that_parse_back() {
@@ -107,6 +138,23 @@ mod tests {
             assert_eq!(entry["name"], preset.name);
             let params = Params::from_json_value(entry["params"].clone()).unwrap();
             assert_eq!(params, preset.params);
+            let link = entry["link"].as_str().unwrap();
+            assert_eq!(decode_link(link).params, preset.params);
         }
+    }
+
+    #[test]
+    fn setting_a_field_names_the_field_a_bad_value_breaks() {
+        let link = encode_link(&presets()[0].params);
+        let out: serde_json::Value =
+            serde_json::from_str(&set_link_field(&link, "alpha", "2")).unwrap();
+        assert_eq!(out["error"]["key"], "alpha");
+        let out: serde_json::Value =
+            serde_json::from_str(&set_link_field(&link, "alpha", "0.25")).unwrap();
+        assert_eq!(out["fields"]["alpha"], "0.25");
+        assert_eq!(
+            decode_link(out["link"].as_str().unwrap()).params.alpha,
+            0.25
+        );
     }
 }

@@ -1,11 +1,15 @@
 // Cross-platform determinism: the wasm build, run under node, must give the same digest as the
-// native `ramulus` binary for every preset and for varied parameter sets (joining rules, seeds).
+// native `ramulus` binary for every preset and for varied parameter sets (joining rules, fixed
+// and fresh random seeds). The native run prints its link; the wasm run starts from that link,
+// as the page does. Also checks the link text against the WHATWG URL standard's
+// `URLSearchParams`, the parser every browser uses for `key=value&...` text.
 // Run by `./x test` after `./x build`; uses node's built-in test runner.
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { execFileSync } from 'node:child_process';
+import { randomInt } from 'node:crypto';
 import { fileURLToPath } from 'node:url';
 import path from 'node:path';
 
@@ -23,8 +27,8 @@ function nativeRun(params, name) {
   return JSON.parse(output.toString());
 }
 
-function wasmRun(params) {
-  const simulation = new glue.Simulation(JSON.stringify(params));
+function wasmRun(link) {
+  const simulation = new glue.Simulation(link);
   while (!simulation.finished()) simulation.step(997);
   const result = { digest: simulation.digest(), cells: simulation.cells() };
   simulation.free();
@@ -53,12 +57,33 @@ const variants = [
   { joining: 'weighted', seed: 16, temperature: 5, cells: 3000 },
 ];
 variants.forEach((variant, index) => cases.push({ name: `variant ${index}`, params: { ...base, ...variant } }));
+// Fresh random seeds on every run, one per joining rule, named in the test title to reproduce.
+for (const joining of ['cheapest', 'weighted', 'uniform']) {
+  const seed = randomInt(0, 2 ** 47);
+  cases.push({ name: `random seed ${seed}, ${joining}`, params: { ...base, joining, seed, jitter: 0.3 } });
+}
 
 for (const { name, params } of cases) {
   test(`wasm digest equals native digest: ${name}`, () => {
     const expected = nativeRun(params, name);
-    const actual = wasmRun(params);
+    const actual = wasmRun(expected.link);
     assert.equal(actual.cells, expected.cells);
     assert.equal(actual.digest, expected.digest);
   });
 }
+
+test('link text reads the same through URLSearchParams as through the core', () => {
+  for (const preset of presets) {
+    const read = JSON.parse(glue.read_link(`#${preset.link}`));
+    assert.deepEqual(read.problems, []);
+    const standard = new URLSearchParams(preset.link);
+    assert.equal(standard.get('v'), '1');
+    for (const [key, text] of Object.entries(read.fields)) {
+      assert.equal(standard.get(key), text, `${preset.name}: ${key}`);
+    }
+  }
+  // A unit with characters outside the plain set must be %-escaped so the standard decodes it.
+  const damaged = JSON.parse(glue.read_link('#v=1&units=m%26m%20x'));
+  assert.equal(damaged.problems[0].key, 'units');
+  assert.equal(damaged.problems[0].value, 'm&m x');
+});

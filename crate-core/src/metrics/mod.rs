@@ -25,7 +25,7 @@ mod table;
 mod tortuosity;
 mod transport;
 
-pub use table::metrics_table;
+pub use table::{metrics_csv, metrics_table};
 
 /// Number of bins of the branching-angle histogram.
 pub const ANGLE_HISTOGRAM_BINS: usize = 18;

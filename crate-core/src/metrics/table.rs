@@ -16,6 +16,48 @@ const NO_UNIT: &str = "-";
 /// notation outside 0.001 to 1,000,000), counts are whole numbers, and undefined values read
 /// `n/a`. Per-order rows follow the maximum Strahler order, lowest order first.
 pub fn metrics_table(metrics: &Metrics, units: &str) -> Vec<(String, String, String)> {
+    rows(metrics, units, format_number)
+}
+
+/// The rows of `metrics_table` as CSV (RFC 4180: comma separated, CRLF line ends, fields with
+/// a comma, quote or line break quoted), header `metric,value,unit`, with every value at full
+/// precision (shortest text that reads back to the same `f64`) instead of four digits.
+pub fn metrics_csv(metrics: &Metrics, units: &str) -> String {
+    let mut csv = String::from("metric,value,unit\r\n");
+    for (label, value, unit) in rows(metrics, units, format_precise) {
+        let line = [label, value, unit]
+            .map(|field| csv_field(&field))
+            .join(",");
+        csv.push_str(&line);
+        csv.push_str("\r\n");
+    }
+    csv
+}
+
+fn csv_field(text: &str) -> String {
+    if text.contains([',', '"', '\r', '\n']) {
+        format!("\"{}\"", text.replace('"', "\"\""))
+    } else {
+        text.to_string()
+    }
+}
+
+/// Shortest round-trip text, or `n/a` when not finite.
+fn format_precise(value: f64) -> String {
+    if value.is_finite() {
+        format!("{value}")
+    } else {
+        UNDEFINED_TEXT.to_string()
+    }
+}
+
+fn rows(
+    metrics: &Metrics,
+    units: &str,
+    format_number: fn(f64) -> String,
+) -> Vec<(String, String, String)> {
+    let format_optional =
+        |value: Option<f64>| value.map_or_else(|| UNDEFINED_TEXT.to_string(), format_number);
     let unit = if units.is_empty() { "unit" } else { units };
     let area_unit = format!("{unit}^2");
     let per_area_unit = format!("1/{unit}^2");
@@ -137,11 +179,6 @@ pub fn metrics_table(metrics: &Metrics, units: &str) -> Vec<(String, String, Str
     rows
 }
 
-/// A value with four significant digits, or `n/a` when undefined.
-fn format_optional(value: Option<f64>) -> String {
-    value.map_or_else(|| UNDEFINED_TEXT.to_string(), format_number)
-}
-
 /// Four significant digits: fixed notation from 0.001 up to 1,000,000, scientific outside.
 fn format_number(value: f64) -> String {
     if !value.is_finite() {
@@ -173,6 +210,6 @@ mod tests {
         assert_eq!(format_number(12345.6), "12346");
         assert_eq!(format_number(0.0), "0");
         assert_eq!(format_number(2.5e7), "2.500e7");
-        assert_eq!(format_optional(None), "n/a");
+        assert_eq!(format_precise(f64::NAN), "n/a");
     }
 }

@@ -19,6 +19,8 @@ mod legend;
 mod page;
 mod palette;
 
+pub use palette::{colour_scheme, ColourScheme, FLOW_RAMP_STEPS};
+
 use format::*;
 use legend::*;
 use page::*;

@@ -71,3 +71,29 @@ pub(super) fn oklab_to_linear_srgb(lightness: f64, a: f64, b: f64) -> [f64; 3] {
         -0.004_196_086_3 * l - 0.703_418_614_7 * m + 1.707_614_701_0 * s,
     ]
 }
+
+/// Number of steps of the flow ramp handed to the page.
+pub const FLOW_RAMP_STEPS: usize = 32;
+
+/// The colours the page draws with, the same as the SVG's, so screen and export agree.
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct ColourScheme {
+    /// Strahler orders 1, 2, ...; orders past the end use the last colour.
+    pub order: Vec<&'static str>,
+    /// The flow ramp sampled at `FLOW_RAMP_STEPS` evenly spaced points from least to most flow
+    /// (position from the logarithm of flow between the smallest and largest positive flow).
+    pub flow: Vec<String>,
+    /// Colour of plain drawing.
+    pub plain: &'static str,
+}
+
+/// The page's colours.
+pub fn colour_scheme() -> ColourScheme {
+    ColourScheme {
+        order: ORDER_COLOURS.to_vec(),
+        flow: (0..FLOW_RAMP_STEPS)
+            .map(|step| flow_colour(step as f64 / (FLOW_RAMP_STEPS - 1) as f64))
+            .collect(),
+        plain: PLAIN,
+    }
+}
