@@ -1,70 +1,518 @@
-// Ramulus page entry: loads the wasm module, fills the preset list, grows a run to its end and
-// shows the core's SVG drawing and digest. Holds no simulation logic.
-import init, { Simulation, presets_json } from './pkg/ramulus_web.js';
+// Page entry: loads the wasm module and wires the setup form, the growth loop, the canvas, the
+// readings, exports and the run link in the URL fragment together. Holds no simulation logic:
+// every parameter check, link and measurement comes from the core through pkg/.
+import init, * as core from './pkg/ramulus_web.js';
+import { NetworkView } from './draw.js';
+import { ParameterForm } from './form.js';
+import { download, forgetRecord, keepRecord, keptRecord, renderPng } from './keep.js';
+import { clearReadings, showReadings } from './readings.js';
+import { readGeometry, Runner } from './runner.js';
+
+const ANIMATE_KEY = 'ramulus.animate';
+const DEFAULT_START = 'broad-leaf';
+const STOP_TEXT = {
+  budget: 'cell budget reached',
+  full: 'no free cell left',
+  threshold: 'no cell left below the stop threshold',
+  saved: 'network as saved in the record',
+};
 
 const byId = (id) => document.getElementById(id);
-let lastSvg = null;
-
-function showStatus(text) {
-  byId('status').textContent = text;
-}
+const state = {
+  link: '',
+  simulation: null,
+  frame: null,
+  geometry: null,
+  presets: [],
+  colours: null,
+  memory: null,
+};
+let view;
+let form;
+let runner;
 
 async function start() {
-  await init();
-  const presets = JSON.parse(presets_json());
-  const select = byId('preset');
-  for (const preset of presets) {
-    const option = document.createElement('option');
-    option.value = preset.name;
-    option.textContent = preset.name;
-    select.append(option);
-  }
-  const describe = () => {
-    const preset = presets.find((p) => p.name === select.value);
-    byId('preset-about').textContent = preset.description;
-    byId('seed').value = String(preset.params.seed);
-  };
-  select.addEventListener('change', describe);
-  describe();
-  byId('grow').addEventListener('click', () => grow(presets));
-  byId('save-svg').addEventListener('click', saveSvg);
-  grow(presets);
+  const wasm = await init();
+  state.memory = wasm.memory;
+  state.presets = JSON.parse(core.presets_json());
+  state.colours = JSON.parse(core.colours_json());
+  const schema = JSON.parse(core.schema_json());
+
+  view = new NetworkView(byId('canvas'), state.colours);
+  form = new ParameterForm(byId('form'), byId('param-seed'), schema, commitField);
+  runner = new Runner({ redraw, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying });
+  window.ramulusPage = { runner, view, state };
+
+  fillStartList();
+  wireControls();
+  wireCanvas();
+  wireKeep();
+  showKept();
+  byId('animate').checked = readAnimatePreference();
+
+  window.addEventListener('hashchange', () => {
+    const fragment = location.hash.replace(/^#/, '');
+    if (fragment && fragment !== state.link) openLink(fragment);
+  });
+  const fragment = location.hash.replace(/^#/, '');
+  openLink(fragment || presetLink(DEFAULT_START));
 }
 
-function grow(presets) {
-  const preset = presets.find((p) => p.name === byId('preset').value);
-  const params = { ...preset.params, seed: Number(byId('seed').value) };
-  let simulation;
-  try {
-    simulation = new Simulation(JSON.stringify(params));
-  } catch (error) {
-    showStatus(`Cannot start: ${error.message ?? error}`);
+// ---- run links ----------------------------------------------------------------------------
+
+/// Opens a link: reports damaged fields, fills the form, writes the repaired link to the
+/// address bar, and grows the run to its end (animated or not, as the user prefers).
+function openLink(text) {
+  clearNotices();
+  form.clearErrors();
+  const read = JSON.parse(core.read_link(text));
+  for (const problem of read.problems) {
+    const shown = problem.value === '' ? '' : ` = "${problem.value}"`;
+    notice(`This link's field "${problem.key}"${shown} could not be used: ${problem.message}.`);
+    form.setError(problem.key, `From the link: ${problem.message}.`);
+  }
+  applyLink(read.link, read.fields);
+  startRun();
+}
+
+function applyLink(link, fields) {
+  state.link = link;
+  form.show(fields);
+  history.replaceState(null, '', `#${link}`);
+  byId('link-text').value = location.href;
+  const match = state.presets.find((preset) => preset.link === link);
+  byId('start-from').value = match ? match.name : '';
+  byId('start-about').textContent = match ? match.description : 'Your own settings.';
+}
+
+function presetLink(name) {
+  return (state.presets.find((preset) => preset.name === name) ?? state.presets[0]).link;
+}
+
+/// One field edited in the form: the core checks it; a rejected value stays in its field
+/// with the message beside it, and the run is left as it was.
+function commitField(key, text) {
+  const result = JSON.parse(core.set_link_field(state.link, key, text));
+  if (result.error) {
+    form.clearError(key);
+    const message = `${result.error.message}.`;
+    const shownOnField = form.setError(result.error.key, message);
+    if (result.error.key !== key) {
+      form.setError(key, `This value does not fit with "${result.error.key}": ${message}`);
+    } else if (!shownOnField) {
+      notice(`${key}: ${message}`);
+    }
     return;
   }
+  form.clearErrors();
+  clearNotices();
+  applyLink(result.link, result.fields);
+  startRun();
+}
+
+// ---- the run --------------------------------------------------------------------------------
+
+function startRun(simulation = null) {
+  if (state.simulation) state.simulation.free();
+  state.simulation = null;
+  state.geometry = null;
+  try {
+    state.simulation = simulation ?? new core.Simulation(state.link);
+  } catch (error) {
+    notice(`The run cannot start: ${messageOf(error)}`);
+    return;
+  }
+  state.frame = JSON.parse(state.simulation.frame_json());
+  view.setFrame(state.frame);
+  view.fit();
+  showCaution(state.frame.site);
+  byId('digest').textContent = 'growing…';
+  byId('digest-note').textContent = '';
+  clearReadings('Readings appear when growth pauses or ends.');
+  setExports(false);
+  const mode = byId('animate').checked ? 'animate' : 'quiet';
+  runner.start(state.simulation, mode);
+  if (state.simulation.finished()) onFinished();
+}
+
+function redraw() {
+  const simulation = state.simulation;
+  if (!simulation) return view.draw();
   const started = performance.now();
-  while (!simulation.finished()) simulation.step(20000);
-  const seconds = (performance.now() - started) / 1000;
-  lastSvg = simulation.svg('order');
-  const url = URL.createObjectURL(new Blob([lastSvg], { type: 'image/svg+xml' }));
-  byId('picture').src = url;
-  byId('digest').textContent = simulation.digest();
-  showStatus(`${simulation.cells()} cells grown in ${seconds.toFixed(2)} s`);
+  state.geometry = readGeometry(simulation, state.memory);
+  view.setGeometry(state.geometry);
+  view.resize();
+  view.draw();
+  showLegend();
+  return performance.now() - started;
+}
+
+function showProgress() {
+  const simulation = state.simulation;
+  if (!simulation) return;
+  const cells = simulation.cells();
+  const budget = simulation.budget();
+  byId('progress').max = budget;
+  byId('progress').value = cells;
+  const reason = simulation.stop_reason();
+  const ending = reason ? `, stopped: ${STOP_TEXT[reason] ?? reason}` : '';
+  byId('progress-text').textContent =
+    `${cells.toLocaleString('en')} of ${budget.toLocaleString('en')} cells${ending}`;
+}
+
+function onPaused() {
+  showReadingsNow();
+  byId('digest').textContent = 'paused (the digest is shown when the run ends)';
+  setExports(true);
+}
+
+function onFinished() {
+  const simulation = state.simulation;
+  if (!simulation) return;
+  redraw();
+  showProgress();
+  showReadingsNow();
+  const digest = simulation.digest();
+  byId('digest').textContent = digest;
+  const recorded = simulation.recorded_digest();
+  if (recorded) {
+    byId('digest-note').textContent = recorded === digest
+      ? 'equals the digest saved in the record'
+      : `differs from the digest saved in the record (${recorded})`;
+  }
+  setExports(true);
+}
+
+function showReadingsNow() {
+  try {
+    showReadings(state.simulation, state.frame.units);
+  } catch (error) {
+    clearReadings(`Readings failed: ${messageOf(error)}`);
+  }
+}
+
+function showPlaying(playing) {
+  const button = byId('play');
+  button.textContent = playing ? 'Hold' : 'Grow';
+  button.setAttribute('aria-pressed', String(playing));
+  if (playing) setExports(false);
+}
+
+function setExports(enabled) {
+  for (const id of ['save-svg', 'save-png', 'save-record', 'save-csv']) byId(id).disabled = !enabled;
+}
+
+function showCaution(site) {
   const caution = byId('caution');
-  const isSite = params.units === 'm' || params.units === 'ft';
-  caution.hidden = !isSite;
-  caution.textContent = isSite
-    ? 'Concept layout only: not a drainage design. Check against local codes and have a licensed engineer design the system.'
-    : '';
-  byId('save-svg').disabled = false;
-  simulation.free();
+  caution.hidden = !site;
+  caution.textContent = site ? `Caution: ${core.site_caution()}` : '';
 }
 
-function saveSvg() {
-  if (!lastSvg) return;
-  const link = document.createElement('a');
-  link.href = URL.createObjectURL(new Blob([lastSvg], { type: 'image/svg+xml' }));
-  link.download = 'ramulus-network.svg';
-  link.click();
+function showLegend() {
+  const legend = byId('legend');
+  legend.replaceChildren();
+  const swatch = (colour, text) => {
+    const item = document.createElement('span');
+    item.className = 'swatch';
+    const box = document.createElement('i');
+    box.style.background = colour;
+    item.append(box, document.createTextNode(text));
+    legend.append(item);
+  };
+  if (view.colouring === 'order') {
+    const highest = Math.max(1, state.geometry?.maxOrder ?? 1);
+    const colours = state.colours.order;
+    for (let order = 1; order <= Math.min(highest, colours.length); order += 1) {
+      const last = order === colours.length && highest > order;
+      swatch(colours[order - 1], last ? `order ${order}+` : `order ${order}`);
+    }
+  } else if (view.colouring === 'flow') {
+    const ramp = state.colours.flow;
+    swatch(ramp[0], 'least flow');
+    swatch(ramp[Math.floor(ramp.length / 2)], '');
+    swatch(ramp[ramp.length - 1], 'most flow');
+  }
 }
 
-start().catch((error) => showStatus(`The page could not start: ${error.message ?? error}`));
+// ---- controls -------------------------------------------------------------------------------
+
+function fillStartList() {
+  const select = byId('start-from');
+  const custom = document.createElement('option');
+  custom.value = '';
+  custom.textContent = '(your own settings)';
+  custom.disabled = true;
+  select.append(custom);
+  for (const preset of state.presets) {
+    const option = document.createElement('option');
+    option.value = preset.name;
+    option.textContent = preset.name.replace('-', ' ');
+    select.append(option);
+  }
+  select.addEventListener('change', () => {
+    if (select.value) {
+      clearNotices();
+      form.clearErrors();
+      openLink(presetLink(select.value));
+    }
+  });
+}
+
+function wireControls() {
+  byId('play').addEventListener('click', () => runner.toggle());
+  byId('step').addEventListener('click', () => runner.stepOnce());
+  byId('restart').addEventListener('click', () => startRun());
+  byId('pace').addEventListener('change', (event) => {
+    runner.pace = Number(event.target.value);
+  });
+  byId('colouring').addEventListener('change', (event) => {
+    view.colouring = event.target.value;
+    redraw();
+  });
+  byId('animate').addEventListener('change', (event) => {
+    try {
+      localStorage.setItem(ANIMATE_KEY, event.target.checked ? 'yes' : 'no');
+    } catch {
+      // Without storage the choice lasts until the page closes.
+    }
+  });
+  byId('new-seed').addEventListener('click', () => {
+    const words = crypto.getRandomValues(new Uint32Array(2));
+    // 53 bits, so the seed is also an exact JavaScript number wherever it is read.
+    const seed = (words[0] & 0x1fffff) * 2 ** 32 + words[1];
+    commitField('seed', String(seed));
+  });
+  byId('mask-file').addEventListener('change', async (event) => {
+    const file = event.target.files[0];
+    event.target.value = '';
+    if (!file) return;
+    const bytes = new Uint8Array(await file.arrayBuffer());
+    const result = JSON.parse(core.set_link_mask(state.link, bytes));
+    if (result.error) {
+      notice(`${file.name}: ${result.error.message}`);
+      return;
+    }
+    clearNotices();
+    form.clearErrors();
+    applyLink(result.link, result.fields);
+    startRun();
+  });
+}
+
+function wireCanvas() {
+  const canvas = byId('canvas');
+  const probe = byId('probe');
+  new ResizeObserver(() => {
+    view.resize();
+    view.draw();
+  }).observe(canvas);
+
+  let drag = null;
+  canvas.addEventListener('pointerdown', (event) => {
+    drag = { x: event.clientX, y: event.clientY, moved: false };
+    canvas.setPointerCapture(event.pointerId);
+  });
+  canvas.addEventListener('pointermove', (event) => {
+    if (drag) {
+      const dx = event.clientX - drag.x;
+      const dy = event.clientY - drag.y;
+      if (drag.moved || Math.hypot(dx, dy) > 3) {
+        drag.moved = true;
+        const ratio = view.ratio();
+        view.pan(dx * ratio, dy * ratio);
+        drag.x = event.clientX;
+        drag.y = event.clientY;
+        view.draw();
+        probe.hidden = true;
+      }
+      return;
+    }
+    if (event.pointerType === 'mouse') showProbe(event);
+  });
+  canvas.addEventListener('pointerup', (event) => {
+    if (drag && !drag.moved) showProbe(event);
+    drag = null;
+  });
+  canvas.addEventListener('pointerleave', () => {
+    if (!drag) probe.hidden = true;
+  });
+  canvas.addEventListener('wheel', (event) => {
+    event.preventDefault();
+    const rect = canvas.getBoundingClientRect();
+    const ratio = view.ratio();
+    view.zoom(Math.exp(-event.deltaY * 0.0015), (event.clientX - rect.left) * ratio, (event.clientY - rect.top) * ratio);
+    view.draw();
+  }, { passive: false });
+  canvas.addEventListener('keydown', (event) => {
+    const step = 40 * view.ratio();
+    const actions = {
+      '+': () => view.zoom(1.25),
+      '=': () => view.zoom(1.25),
+      '-': () => view.zoom(0.8),
+      0: () => view.fit(),
+      ArrowLeft: () => view.pan(step, 0),
+      ArrowRight: () => view.pan(-step, 0),
+      ArrowUp: () => view.pan(0, step),
+      ArrowDown: () => view.pan(0, -step),
+    };
+    const action = actions[event.key];
+    if (action) {
+      event.preventDefault();
+      action();
+      view.draw();
+    }
+  });
+  byId('zoom-in').addEventListener('click', () => { view.zoom(1.25); view.draw(); });
+  byId('zoom-out').addEventListener('click', () => { view.zoom(0.8); view.draw(); });
+  byId('zoom-fit').addEventListener('click', () => { view.fit(); view.draw(); });
+}
+
+/// Shows order, flow, width and length of the segment under the pointer.
+function showProbe(event) {
+  const probe = byId('probe');
+  const canvas = byId('canvas');
+  const rect = canvas.getBoundingClientRect();
+  const x = event.clientX - rect.left;
+  const y = event.clientY - rect.top;
+  const index = view.segmentAt(x, y);
+  const g = state.geometry;
+  if (index < 0 || !g) {
+    probe.hidden = true;
+    return;
+  }
+  const units = state.frame.units;
+  probe.textContent = [
+    `Strahler order ${g.orders[index]}`,
+    `flow ${significant(g.flows[index])} ${units}²`,
+    `width ${significant(g.widths[index])} ${units}`,
+    `length ${significant(g.lengths[index])} ${units}`,
+  ].join('\n');
+  probe.style.left = `${Math.min(x + 14, rect.width - 170)}px`;
+  probe.style.top = `${Math.min(y + 14, rect.height - 80)}px`;
+  probe.hidden = false;
+}
+
+function significant(value) {
+  return Number(value.toPrecision(4)).toString();
+}
+
+// ---- keep and share -------------------------------------------------------------------------
+
+function wireKeep() {
+  byId('copy-link').addEventListener('click', async () => {
+    const input = byId('link-text');
+    input.value = location.href;
+    try {
+      await navigator.clipboard.writeText(location.href);
+      byId('copy-link').textContent = 'Copied';
+      setTimeout(() => { byId('copy-link').textContent = 'Copy link'; }, 1500);
+    } catch {
+      input.select();
+      notice('Copying was not allowed here: the link is selected, copy it with the keyboard.');
+    }
+  });
+  const name = (extension) => `ramulus-${state.simulation?.digest() ?? 'run'}.${extension}`;
+  byId('save-svg').addEventListener('click', () => {
+    guarded(() => download(name('svg'), state.simulation.svg(view.colouring), 'image/svg+xml'));
+  });
+  byId('save-png').addEventListener('click', () => {
+    const caution = state.frame.site ? core.site_caution() : '';
+    renderPng(state.geometry, state.frame, state.colours, view.colouring, caution)
+      .then((blob) => download(name('png'), blob))
+      .catch((error) => notice(`PNG export failed: ${messageOf(error)}`));
+  });
+  byId('save-record').addEventListener('click', () => {
+    guarded(() => download(name('json'), state.simulation.record_json(), 'application/json'));
+  });
+  byId('save-csv').addEventListener('click', () => {
+    guarded(() => download(name('csv'), state.simulation.metrics_csv(), 'text/csv'));
+  });
+  byId('record-file').addEventListener('change', async (event) => {
+    const file = event.target.files[0];
+    event.target.value = '';
+    if (file) openRecord(await file.text(), file.name, true);
+  });
+  byId('open-stored').addEventListener('click', () => {
+    const kept = keptRecord();
+    if (kept) openRecord(kept.text, 'kept record', false);
+  });
+  byId('forget-stored').addEventListener('click', () => {
+    forgetRecord();
+    showKept();
+  });
+}
+
+function openRecord(text, source, keep) {
+  let simulation;
+  try {
+    simulation = core.Simulation.from_record(text);
+  } catch (error) {
+    notice(`${source}: not a run record this page can open: ${messageOf(error)}`);
+    return;
+  }
+  clearNotices();
+  form.clearErrors();
+  if (keep) {
+    const problem = keepRecord(text, `${source}, digest ${simulation.recorded_digest()}`);
+    if (problem) notice(problem);
+    showKept();
+  }
+  const link = simulation.link();
+  if (link) {
+    const read = JSON.parse(core.read_link(link));
+    applyLink(read.link, read.fields);
+  }
+  startRun(simulation);
+}
+
+function showKept() {
+  const kept = keptRecord();
+  byId('stored').textContent = kept
+    ? `Kept in this browser: ${kept.summary} (kept ${kept.kept.slice(0, 16).replace('T', ' ')}).`
+    : 'No run record kept in this browser.';
+  byId('open-stored').hidden = !kept;
+  byId('forget-stored').hidden = !kept;
+}
+
+// ---- messages -------------------------------------------------------------------------------
+
+function notice(text) {
+  const item = document.createElement('p');
+  item.textContent = text;
+  const dismiss = document.createElement('button');
+  dismiss.type = 'button';
+  dismiss.textContent = 'Dismiss';
+  dismiss.addEventListener('click', () => item.remove());
+  item.append(' ', dismiss);
+  byId('notices').append(item);
+}
+
+function clearNotices() {
+  byId('notices').replaceChildren();
+}
+
+function guarded(action) {
+  try {
+    action();
+  } catch (error) {
+    notice(`Export failed: ${messageOf(error)}`);
+  }
+}
+
+function messageOf(error) {
+  return error?.message ?? String(error);
+}
+
+function readAnimatePreference() {
+  try {
+    return localStorage.getItem(ANIMATE_KEY) !== 'no';
+  } catch {
+    return true;
+  }
+}
+
+start().catch((error) => {
+  const message = document.createElement('p');
+  message.textContent = `The page could not start: ${messageOf(error)}`;
+  byId('notices').append(message);
+});

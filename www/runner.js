@@ -1,0 +1,168 @@
+// The growth loop: steps the simulation in slices that fit a frame budget, redraws as often as
+// drawing cost allows, and reports progress, pauses and the end of the run. Also reads the
+// geometry views out of wasm memory. Keeps timing figures for the page benchmark.
+
+// Milliseconds of growth per animation frame (of about 16.7 ms at 60 frames a second), which
+// leaves the rest of the frame for drawing and the browser (common practice, no source).
+const STEP_BUDGET_MS = 8;
+// Milliseconds of growth between yields when growing without animation.
+const QUIET_CHUNK_MS = 40;
+
+/// Typed-array views of the simulation's geometry, valid until wasm memory next grows.
+export function readGeometry(simulation, memory) {
+  const count = simulation.update_geometry();
+  const buffer = memory.buffer;
+  return {
+    count,
+    ends: new Float32Array(buffer, simulation.ends_ptr(), 4 * count),
+    widths: new Float32Array(buffer, simulation.widths_ptr(), count),
+    orders: new Uint32Array(buffer, simulation.orders_ptr(), count),
+    flows: new Float32Array(buffer, simulation.flows_ptr(), count),
+    lengths: new Float32Array(buffer, simulation.lengths_ptr(), count),
+    flowLow: simulation.flow_low(),
+    flowHigh: simulation.flow_high(),
+    maxOrder: simulation.max_order(),
+  };
+}
+
+export class Runner {
+  /// `hooks`: `redraw()` (returns draw ms), `progress()`, `paused()`, `finished()`,
+  /// `playing(bool)`.
+  constructor(hooks) {
+    this.hooks = hooks;
+    this.simulation = null;
+    this.playingNow = false;
+    this.slice = 256;
+    this.pace = 0; // cells per second; 0 = as fast as the frame budget allows
+    this.carry = 0;
+    this.lastTick = 0;
+    this.lastDraw = 0;
+    this.drawCostMs = 0;
+    this.generation = 0;
+    this.stats = freshStats();
+  }
+
+  get playing() {
+    return this.playingNow;
+  }
+
+  /// Takes a new simulation; `mode` is `animate`, `quiet` (grow to the end without drawing
+  /// in between) or `hold` (wait for the user).
+  start(simulation, mode) {
+    this.stop();
+    this.generation += 1;
+    this.simulation = simulation;
+    this.slice = 256;
+    this.stats = freshStats();
+    this.hooks.redraw();
+    this.hooks.progress();
+    if (mode === 'animate') this.play();
+    else if (mode === 'quiet') this.growQuietly(this.generation);
+  }
+
+  play() {
+    if (!this.simulation || this.simulation.finished()) return;
+    this.playingNow = true;
+    this.hooks.playing(true);
+    this.lastTick = performance.now();
+    this.carry = 0;
+    requestAnimationFrame((time) => this.tick(time, this.generation));
+  }
+
+  pause() {
+    if (!this.playingNow) return;
+    this.stop();
+    this.hooks.redraw();
+    this.hooks.paused();
+  }
+
+  toggle() {
+    if (this.playingNow) this.pause();
+    else this.play();
+  }
+
+  stop() {
+    this.playingNow = false;
+    this.hooks.playing(false);
+  }
+
+  /// Grows one slice (a fiftieth of the budget, at least one cell) and shows it.
+  stepOnce() {
+    const simulation = this.simulation;
+    if (!simulation || simulation.finished()) return;
+    this.stop();
+    simulation.step(Math.max(1, Math.round(simulation.budget() / 50)));
+    this.hooks.redraw();
+    this.hooks.progress();
+    if (simulation.finished()) this.hooks.finished();
+    else this.hooks.paused();
+  }
+
+  tick(now, generation) {
+    if (!this.playingNow || generation !== this.generation) return;
+    const simulation = this.simulation;
+    const frameStart = performance.now();
+    let allowance = Infinity;
+    if (this.pace > 0) {
+      this.carry += (this.pace * Math.min(now - this.lastTick, 100)) / 1000;
+      allowance = Math.floor(this.carry);
+      this.carry -= allowance;
+    }
+    this.lastTick = now;
+    let added = 0;
+    while (!simulation.finished() && added < allowance) {
+      const sliceStart = performance.now();
+      if (sliceStart - frameStart >= STEP_BUDGET_MS) break;
+      const count = Math.min(this.slice, allowance - added);
+      added += simulation.step(count);
+      const took = performance.now() - sliceStart;
+      if (took < 1 && this.slice < 1 << 20) this.slice *= 2;
+      else if (took > 3 && this.slice > 16) this.slice = Math.floor(this.slice / 2);
+    }
+    const stepMs = performance.now() - frameStart;
+    this.stats.frames += 1;
+    this.stats.cells += added;
+    this.stats.stepMs += stepMs;
+    this.stats.maxStepMs = Math.max(this.stats.maxStepMs, stepMs);
+    if (stepMs > 16.7) this.stats.overBudget += 1;
+    if (this.stats.firstTick === 0) this.stats.firstTick = frameStart;
+    this.stats.lastTick = performance.now();
+    const finished = simulation.finished();
+    // Redraw when drawing has had its share: at most a third of the time goes to drawing.
+    if (finished || now - this.lastDraw >= Math.min(3 * this.drawCostMs, 1000)) {
+      this.drawCostMs = this.hooks.redraw();
+      this.lastDraw = performance.now();
+      this.stats.draws += 1;
+    }
+    this.hooks.progress();
+    if (finished) {
+      this.stop();
+      this.hooks.finished();
+      return;
+    }
+    requestAnimationFrame((time) => this.tick(time, generation));
+  }
+
+  growQuietly(generation) {
+    const simulation = this.simulation;
+    const chunk = () => {
+      if (generation !== this.generation) return;
+      const started = performance.now();
+      while (!simulation.finished() && performance.now() - started < QUIET_CHUNK_MS) {
+        simulation.step(4096);
+      }
+      this.hooks.progress();
+      if (simulation.finished()) {
+        this.hooks.redraw();
+        this.hooks.finished();
+      } else {
+        setTimeout(chunk, 0);
+      }
+    };
+    setTimeout(chunk, 0);
+  }
+}
+
+function freshStats() {
+  return { frames: 0, cells: 0, stepMs: 0, maxStepMs: 0, overBudget: 0, draws: 0, firstTick: 0, lastTick: 0 };
+}
