@@ -112,7 +112,9 @@ fn full_model(cells: u64) -> Params {
 
 /// Runs the benchmark cases and prints one line of figures per case.
 pub fn run(arguments: &[String]) -> Result<(), CliError> {
-    let quick = crate::options::only_flags(arguments, &["--quick"], "bench")?.contains(&"--quick");
+    let flags = crate::options::only_flags(arguments, &["--quick", "--json"], "bench")?;
+    let quick = flags.contains(&"--quick");
+    let as_json = flags.contains(&"--json");
     let (side, small, large) = if quick {
         (300, 25_000, 100_000)
     } else {
@@ -132,6 +134,21 @@ pub fn run(arguments: &[String]) -> Result<(), CliError> {
             params: full_model(large),
         },
     ];
+    if as_json {
+        // One object per case with its run link, so other builds (wasm) can time the same runs.
+        let mut list = Vec::new();
+        for case in &cases {
+            let figures = measure(case)?;
+            list.push(serde_json::json!({
+                "case": case.name,
+                "link": ramulus_core::link::encode_link(&case.params),
+                "cells": figures.cells,
+                "seconds": figures.seconds,
+            }));
+        }
+        say!("{}", serde_json::Value::Array(list));
+        return Ok(());
+    }
     say!(
         "{:<58} {:>9} {:>9} {:>12} {:>10} {:>10}",
         "case",

@@ -27,7 +27,7 @@ usage:
                [--record OUT.json] [--svg OUT.svg] [--colour order|flow|plain] [--json]
   ramulus measure RECORD.json [--json]
   ramulus presets [--json]
-  ramulus bench [--quick]
+  ramulus bench [--quick] [--json]
 
 `grow` starts from the preset (default: broad-leaf) or, with --params, from defaults plus the
 file's keys, or, with --link, from a run link copied from the page (a whole URL or its #fragment;

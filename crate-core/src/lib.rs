@@ -11,6 +11,7 @@ pub mod mask;
 pub mod metrics;
 pub mod network;
 pub mod params;
+pub mod power;
 pub mod presets;
 pub mod record;
 pub mod run;

@@ -8,7 +8,7 @@ use ramulus_core::metrics::{metrics_csv, metrics_table};
 use ramulus_core::network::Network;
 use ramulus_core::params::Params;
 use ramulus_core::record::{make_record, read_record, write_record};
-use ramulus_core::run::{width_rule, RunView};
+use ramulus_core::run::{width_rule, RunView, SITE_CAUTION};
 use ramulus_core::svg::Colouring;
 use wasm_bindgen::prelude::*;
 
@@ -192,7 +192,8 @@ impl Simulation {
     /// Metrics as CSV at full precision.
     pub fn metrics_csv(&self) -> Result<String, JsError> {
         let view = self.view()?;
-        Ok(metrics_csv(&view.metrics, &self.params.units))
+        let caution = self.params.is_site().then_some(SITE_CAUTION);
+        Ok(metrics_csv(&view.metrics, &self.params.units, caution))
     }
 
     /// The network as SVG, coloured by `order`, `flow` or `plain`.

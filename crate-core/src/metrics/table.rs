@@ -21,10 +21,15 @@ pub fn metrics_table(metrics: &Metrics, units: &str) -> Vec<(String, String, Str
 
 /// The rows of `metrics_table` as CSV (RFC 4180: comma separated, CRLF line ends, fields with
 /// a comma, quote or line break quoted), header `metric,value,unit`, with every value at full
-/// precision (shortest text that reads back to the same `f64`) instead of four digits.
-pub fn metrics_csv(metrics: &Metrics, units: &str) -> String {
+/// precision (shortest text that reads back to the same `f64`) instead of four digits. A
+/// `caution` (drainage sites) becomes a last row `caution,<text>,-`.
+pub fn metrics_csv(metrics: &Metrics, units: &str, caution: Option<&str>) -> String {
     let mut csv = String::from("metric,value,unit\r\n");
-    for (label, value, unit) in rows(metrics, units, format_precise) {
+    let mut all = rows(metrics, units, format_precise);
+    if let Some(text) = caution {
+        all.push(("caution".into(), text.into(), NO_UNIT.into()));
+    }
+    for (label, value, unit) in all {
         let line = [label, value, unit]
             .map(|field| csv_field(&field))
             .join(",");
