@@ -1,8 +1,10 @@
 // Exports (SVG from the core, PNG from the canvas drawing, run record, metrics CSV), opening a
-// run record, and keeping the last opened record in local storage across reloads.
+// run record, and keeping the last opened record in the browser's storage across reloads.
 import { NetworkView } from './draw.js';
 
-const STORE_KEY = 'ramulus.kept-record.v1';
+const DATABASE = 'ramulus';
+const STORE = 'kept';
+const RECORD_KEY = 'last-opened-record';
 const PNG_LONG_SIDE = 2400;
 
 /// Offers `text` or a Blob as a file download.
@@ -67,32 +69,53 @@ function wrapText(ctx, text, x, y, maxWidth, lineHeight) {
   if (line) ctx.fillText(line, x, y);
 }
 
-/// Keeps a record's text; returns an error message, or '' when kept.
-export function keepRecord(text, summary) {
+/// Keeps a record's text in the browser's IndexedDB (records of large runs exceed the few
+/// megabytes that localStorage holds). Resolves to an error message, or '' when kept.
+export async function keepRecord(text, summary) {
   try {
-    localStorage.setItem(STORE_KEY, JSON.stringify({ text, summary, kept: new Date().toISOString() }));
+    await withStore('readwrite', (store) => store.put({ text, summary, kept: new Date().toISOString() }, RECORD_KEY));
     return '';
   } catch (error) {
-    return `The record is open but too large to keep across reloads (${error.name}).`;
+    return `The record is open but could not be kept across reloads (${error?.name ?? error}).`;
   }
 }
 
 /// The kept record `{text, summary, kept}`, or null.
-export function keptRecord() {
+export async function keptRecord() {
   try {
-    const raw = localStorage.getItem(STORE_KEY);
-    if (!raw) return null;
-    const kept = JSON.parse(raw);
-    return typeof kept.text === 'string' ? kept : null;
+    const kept = await withStore('readonly', (store) => store.get(RECORD_KEY));
+    return kept && typeof kept.text === 'string' ? kept : null;
   } catch {
     return null;
   }
 }
 
-export function forgetRecord() {
+export async function forgetRecord() {
   try {
-    localStorage.removeItem(STORE_KEY);
+    await withStore('readwrite', (store) => store.delete(RECORD_KEY));
   } catch {
     // Storage may be disabled; there is then nothing to forget.
   }
+}
+
+/// Runs one request on the object store and resolves to its result.
+function withStore(mode, makeRequest) {
+  return new Promise((resolve, reject) => {
+    const opening = indexedDB.open(DATABASE, 1);
+    opening.onupgradeneeded = () => opening.result.createObjectStore(STORE);
+    opening.onerror = () => reject(opening.error);
+    opening.onsuccess = () => {
+      const database = opening.result;
+      const transaction = database.transaction(STORE, mode);
+      const request = makeRequest(transaction.objectStore(STORE));
+      transaction.oncomplete = () => {
+        database.close();
+        resolve(request.result);
+      };
+      transaction.onerror = () => {
+        database.close();
+        reject(transaction.error);
+      };
+    };
+  });
 }

@@ -432,17 +432,17 @@ function wireKeep() {
     event.target.value = '';
     if (file) openRecord(await file.text(), file.name, true);
   });
-  byId('open-stored').addEventListener('click', () => {
-    const kept = keptRecord();
+  byId('open-stored').addEventListener('click', async () => {
+    const kept = await keptRecord();
     if (kept) openRecord(kept.text, 'kept record', false);
   });
-  byId('forget-stored').addEventListener('click', () => {
-    forgetRecord();
-    showKept();
+  byId('forget-stored').addEventListener('click', async () => {
+    await forgetRecord();
+    await showKept();
   });
 }
 
-function openRecord(text, source, keep) {
+async function openRecord(text, source, keep) {
   let simulation;
   try {
     simulation = core.Simulation.from_record(text);
@@ -452,21 +452,22 @@ function openRecord(text, source, keep) {
   }
   clearNotices();
   form.clearErrors();
-  if (keep) {
-    const problem = keepRecord(text, `${source}, digest ${simulation.recorded_digest()}`);
-    if (problem) notice(problem);
-    showKept();
-  }
+  const summary = `${source}, digest ${simulation.recorded_digest()}`;
   const link = simulation.link();
   if (link) {
     const read = JSON.parse(core.read_link(link));
     applyLink(read.link, read.fields);
   }
   startRun(simulation);
+  if (keep) {
+    const problem = await keepRecord(text, summary);
+    if (problem) notice(problem);
+    await showKept();
+  }
 }
 
-function showKept() {
-  const kept = keptRecord();
+async function showKept() {
+  const kept = await keptRecord();
   byId('stored').textContent = kept
     ? `Kept in this browser: ${kept.summary} (kept ${kept.kept.slice(0, 16).replace('T', ' ')}).`
     : 'No run record kept in this browser.';

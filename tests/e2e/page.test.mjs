@@ -1,0 +1,231 @@
+// End-to-end tests of the page in a real headless Chromium (Debian's, driven by
+// playwright-core). References outside the page: the native `ramulus` binary for digests and
+// segment counts, the browser's own XML parser for the SVG, Python's csv module (RFC 4180
+// reader) for the CSV, and the PNG signature of the PNG specification (ISO/IEC 15948, 5.2).
+// Screenshots of the main states go to artifacts/e2e/.
+import { after, before, test } from 'node:test';
+import assert from 'node:assert/strict';
+import { execFileSync } from 'node:child_process';
+import { readFileSync } from 'node:fs';
+import {
+  finishedDigest, fragmentOf, launchBrowser, nativeRun, newPage, screenshot, serveSite, tabTo,
+} from './support.mjs';
+
+let site;
+let context;
+
+before(async () => {
+  site = await serveSite();
+  context = await launchBrowser();
+});
+
+after(async () => {
+  await context?.close();
+  site?.close();
+});
+
+test('the page loads without console errors and grows the first leaf to its end', async () => {
+  const page = await newPage(context);
+  await page.goto(site.url);
+  const digest = await finishedDigest(page);
+  const native = nativeRun(await fragmentOf(page));
+  assert.equal(digest, native.digest);
+  const progress = await page.textContent('#progress-text');
+  assert.match(progress, new RegExp(`^${native.cells.toLocaleString('en')} of `));
+  assert.ok((await page.locator('#metrics tbody tr').count()) > 20, 'readings table filled');
+  await screenshot(page, '01-first-leaf');
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});
+
+test('a preset played to its end shows the digest the native command line prints', async () => {
+  const page = await newPage(context);
+  await page.goto(site.url);
+  await finishedDigest(page);
+  for (const name of ['narrow-leaf', 'drainage-site']) {
+    await page.selectOption('#start-from', name);
+    const digest = await finishedDigest(page);
+    const fragment = await fragmentOf(page);
+    assert.equal(digest, nativeRun(fragment).digest, name);
+    await screenshot(page, `02-${name}`);
+  }
+  // The drainage site carries the caution.
+  assert.match(await page.textContent('#caution'), /licensed engineer/);
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});
+
+test('the SVG export parses as XML and holds one segment element per segment', async () => {
+  const page = await newPage(context);
+  await page.goto(site.url);
+  await finishedDigest(page);
+  const native = nativeRun(await fragmentOf(page));
+  const [download] = await Promise.all([page.waitForEvent('download'), page.click('#save-svg')]);
+  const text = readFileSync(await download.path(), 'utf8');
+  const parsed = await page.evaluate((svg) => {
+    const document = new DOMParser().parseFromString(svg, 'image/svg+xml');
+    return {
+      error: document.getElementsByTagName('parsererror').length,
+      root: document.documentElement.localName,
+      segments: document.querySelectorAll('.segment').length,
+      width: document.documentElement.getAttribute('width'),
+    };
+  }, text);
+  assert.equal(parsed.error, 0);
+  assert.equal(parsed.root, 'svg');
+  assert.equal(parsed.segments, native.segments);
+  assert.match(parsed.width, /mm$/, 'a leaf is drawn at true size in millimetres');
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});
+
+test('a copied link opened in a new page reproduces the digest', async () => {
+  const page = await newPage(context);
+  await page.goto(site.url);
+  await page.selectOption('#start-from', 'narrow-leaf');
+  await page.fill('#param-seed', '90210');
+  await page.press('#param-seed', 'Tab');
+  const digest = await finishedDigest(page);
+  await page.click('#copy-link');
+  const copied = await page.evaluate(() => navigator.clipboard.readText());
+  assert.match(copied, /#v=1&seed=90210&/);
+  const other = await newPage(context);
+  await other.goto(copied);
+  assert.equal(await finishedDigest(other), digest);
+  assert.equal(digest, nativeRun(copied).digest);
+  assert.deepEqual(page.errors, []);
+  assert.deepEqual(other.errors, []);
+  await page.close();
+  await other.close();
+});
+
+test('a damaged fragment names the bad fields, falls back to defaults and still grows', async () => {
+  const page = await newPage(context);
+  await page.goto(site.url);
+  await page.selectOption('#start-from', 'narrow-leaf');
+  await finishedDigest(page);
+  const damaged = (await fragmentOf(page))
+    .replace('alpha=0.5', 'alpha=banana')
+    .replace('joining=weighted', 'joining=%ZZ');
+  const fresh = await newPage(context);
+  await fresh.goto(`${site.url}#${damaged}`);
+  const digest = await finishedDigest(fresh);
+  const notices = await fresh.textContent('#notices');
+  assert.match(notices, /"alpha"/);
+  assert.match(notices, /"joining"/);
+  assert.equal(await fresh.isVisible('#error-alpha'), true);
+  assert.equal(await fresh.inputValue('#param-alpha'), '0.5', 'alpha back at its default');
+  assert.equal(digest, nativeRun(damaged).digest, 'the native reader falls back the same way');
+  await screenshot(fresh, '03-damaged-link');
+  assert.deepEqual(fresh.errors, []);
+  await page.close();
+  await fresh.close();
+});
+
+test('a rejected value stays in its field with a message; an accepted one regrows', async () => {
+  const page = await newPage(context);
+  await page.goto(site.url);
+  await finishedDigest(page);
+  const before = await fragmentOf(page);
+  await page.fill('#param-alpha', '7');
+  await page.press('#param-alpha', 'Tab');
+  assert.match(await page.textContent('#error-alpha'), /0, 1/);
+  assert.equal(await page.inputValue('#param-alpha'), '7', 'what the user typed is kept');
+  assert.equal(await fragmentOf(page), before, 'the run link is unchanged');
+  await screenshot(page, '04-rejected-value');
+  await page.fill('#param-alpha', '0.3');
+  await page.press('#param-alpha', 'Tab');
+  const digest = await finishedDigest(page);
+  const fragment = await fragmentOf(page);
+  assert.match(fragment, /&alpha=0\.3&/);
+  assert.equal(await page.isVisible('#error-alpha'), false);
+  assert.equal(digest, nativeRun(fragment).digest);
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});
+
+test('play, pause and step work from the keyboard alone', async () => {
+  const page = await newPage(context);
+  // At the slow pace (2,000 cells a second) the first leaf takes about ten seconds.
+  await page.goto(site.url);
+  await finishedDigest(page);
+  await tabTo(page, 'pace');
+  await page.keyboard.press('ArrowUp');
+  await page.keyboard.press('ArrowUp');
+  assert.equal(await page.inputValue('#pace'), '2000');
+  await tabTo(page, 'restart');
+  await page.keyboard.press('Enter');
+  await page.keyboard.press('Shift+Tab');
+  await page.keyboard.press('Shift+Tab');
+  assert.equal(await page.evaluate(() => document.activeElement.id), 'play');
+  assert.equal(await page.getAttribute('#play', 'aria-pressed'), 'true');
+  await page.keyboard.press('Enter');
+  assert.equal(await page.getAttribute('#play', 'aria-pressed'), 'false');
+  const paused = await page.evaluate(() => window.ramulusPage.state.simulation.cells());
+  await page.waitForTimeout(300);
+  assert.equal(await page.evaluate(() => window.ramulusPage.state.simulation.cells()), paused);
+  await page.keyboard.press('Space');
+  assert.equal(await page.getAttribute('#play', 'aria-pressed'), 'true');
+  await page.keyboard.press('Space');
+  assert.equal(await page.getAttribute('#play', 'aria-pressed'), 'false');
+  const before = await page.evaluate(() => window.ramulusPage.state.simulation.cells());
+  await page.keyboard.press('Tab');
+  assert.equal(await page.evaluate(() => document.activeElement.id), 'step');
+  await page.keyboard.press('Enter');
+  const afterStep = await page.evaluate(() => window.ramulusPage.state.simulation.cells());
+  assert.ok(afterStep > before, `one step grew cells: ${before} -> ${afterStep}`);
+  await screenshot(page, '05-paused-by-keyboard');
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});
+
+test('CSV, PNG and run record exports; a record reopens and is kept across reloads', async () => {
+  const page = await newPage(context);
+  await page.goto(site.url);
+  const digest = await finishedDigest(page);
+  const save = async (id) => {
+    const [download] = await Promise.all([page.waitForEvent('download'), page.click(id)]);
+    return download.path();
+  };
+  const csvPath = await save('#save-csv');
+  const rows = JSON.parse(execFileSync('python3', ['-c',
+    'import csv, json, sys; print(json.dumps(list(csv.reader(open(sys.argv[1], newline="")))))', csvPath]).toString());
+  assert.deepEqual(rows[0], ['metric', 'value', 'unit']);
+  assert.ok(rows.every((row) => row.length === 3), 'three fields in every row');
+  const density = rows.find((row) => row[0] === 'vein density');
+  assert.ok(Number(density[1]) > 0, 'vein density is a number');
+  const png = readFileSync(await save('#save-png'));
+  assert.deepEqual([...png.subarray(0, 8)], [0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]);
+  const recordPath = await save('#save-record');
+  assert.equal(JSON.parse(readFileSync(recordPath, 'utf8')).digest, digest);
+
+  await page.reload();
+  await finishedDigest(page);
+  await page.setInputFiles('#record-file', recordPath);
+  await page.waitForFunction(() => document.getElementById('digest-note').textContent !== '');
+  assert.equal(await finishedDigest(page), digest);
+  assert.match(await page.textContent('#digest-note'), /equals the digest saved/);
+  await page.reload();
+  await finishedDigest(page);
+  await page.waitForSelector('#open-stored', { state: 'visible', timeout: 10000 });
+  assert.match(await page.textContent('#stored'), new RegExp(digest));
+  await page.click('#forget-stored');
+  await page.waitForSelector('#open-stored', { state: 'hidden', timeout: 10000 });
+  await page.reload();
+  await finishedDigest(page);
+  assert.match(await page.textContent('#stored'), /No run record kept/);
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});
+
+test('a file that is not a run record gets a message and the run stays', async () => {
+  const page = await newPage(context);
+  await page.goto(site.url);
+  const digest = await finishedDigest(page);
+  await page.setInputFiles('#record-file', { name: 'notes.json', mimeType: 'application/json', buffer: Buffer.from('{"format": "shopping-list"}') });
+  await page.waitForFunction(() => document.getElementById('notices').textContent.includes('notes.json'));
+  assert.match(await page.textContent('#notices'), /not a run record/);
+  assert.equal(await page.textContent('[data-role="digest"]'), digest);
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});
