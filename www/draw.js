@@ -1,6 +1,8 @@
 // Canvas drawing of a network from typed-array views into wasm memory: widths to scale,
 // colouring by order, flow or plain, zoom and pan, a scale bar, and finding the segment under
-// the pointer. Holds no simulation logic.
+// the pointer. Lines at most RASTER_MAX_PX wide (the great majority of a network's segments)
+// are rasterised by the core into a pixel buffer in wasm memory (see `source` below); wider
+// ones are stroked by the canvas on top. Holds no simulation logic.
 
 // Draw every line at least this wide in device pixels, so that true-scale veinlets thinner
 // than a pixel stay visible (common practice, no source).
@@ -9,6 +11,9 @@ const MIN_LINE_PX = 0.75;
 const BUCKETS_PER_DOUBLING = 3;
 const BUCKET_OFFSET = 8;
 const BUCKET_COUNT = 48;
+// Lines up to this width in device pixels are rasterised by the core; wider ones are stroked.
+const RASTER_MAX_PX = 1.6;
+const BACKGROUND = 0xfffdf8;
 
 export class NetworkView {
   constructor(canvas, colours) {
@@ -22,10 +27,24 @@ export class NetworkView {
     this.fitted = true;
     this.geometry = null;
     this.colouring = 'order';
+    // `{ raster(width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background)`
+    // -> ImageData, `colours(colouring)` -> Uint8Array of palette indices }, set by the page.
+    this.source = null;
     this.keys = new Uint16Array(0);
     this.sorted = new Uint32Array(0);
     this.lastDrawMs = 0;
     this.pixelRatio = 0; // 0: follow the screen's devicePixelRatio
+    // Called when the geometry views were detached by wasm memory growth; returns new views.
+    this.renewGeometry = null;
+  }
+
+  /// The geometry, with fresh views if wasm memory grew since they were taken.
+  liveGeometry() {
+    const g = this.geometry;
+    if (g && g.count > 0 && g.widths.length === 0 && this.renewGeometry) {
+      this.geometry = this.renewGeometry(g);
+    }
+    return this.geometry;
   }
 
   ratio() {
@@ -89,10 +108,14 @@ export class NetworkView {
     const started = performance.now();
     const ctx = this.context;
     ctx.setTransform(1, 0, 0, 1, 0, 0);
-    ctx.fillStyle = '#fffdf8';
-    ctx.fillRect(0, 0, this.canvas.width, this.canvas.height);
+    const geometry = this.liveGeometry();
+    if (geometry && geometry.count > 0 && this.source) {
+      this.drawSegments(ctx);
+    } else {
+      ctx.fillStyle = '#fffdf8';
+      ctx.fillRect(0, 0, this.canvas.width, this.canvas.height);
+    }
     this.drawFrame(ctx);
-    if (this.geometry && this.geometry.count > 0) this.drawSegments(ctx);
     this.drawScaleBar(ctx);
     this.lastDrawMs = performance.now() - started;
     return this.lastDrawMs;
@@ -111,22 +134,6 @@ export class NetworkView {
     ctx.setLineDash([]);
   }
 
-  /// Colour index of segment `i` under the current colouring.
-  colourIndex(i) {
-    const g = this.geometry;
-    if (this.colouring === 'order') {
-      return Math.min(g.orders[i], this.colours.order.length) - 1;
-    }
-    if (this.colouring === 'flow') {
-      const steps = this.colours.flow.length;
-      const flow = g.flows[i];
-      if (!(flow > 0) || !(g.flowHigh > g.flowLow)) return flow > 0 ? steps - 1 : 0;
-      const t = (Math.log(flow) - Math.log(g.flowLow)) / (Math.log(g.flowHigh) - Math.log(g.flowLow));
-      return Math.min(steps - 1, Math.max(0, Math.round(t * (steps - 1))));
-    }
-    return 0;
-  }
-
   palette() {
     if (this.colouring === 'order') return this.colours.order;
     if (this.colouring === 'flow') return this.colours.flow;
@@ -134,7 +141,16 @@ export class NetworkView {
   }
 
   drawSegments(ctx) {
-    const g = this.geometry;
+    const w = this.canvas.width;
+    const h = this.canvas.height;
+    const s = this.scale;
+    const ox = this.offsetX;
+    const oy = this.offsetY;
+    const image = this.source.raster(w, h, s, ox, oy, this.colouring, MIN_LINE_PX, RASTER_MAX_PX, BACKGROUND);
+    ctx.putImageData(image, 0, 0);
+    // The wasm calls may have grown wasm memory: take the geometry views afresh after them.
+    const colourOf = this.source.colours(this.colouring);
+    const g = this.liveGeometry();
     const n = g.count;
     const palette = this.palette();
     const keyCount = palette.length * BUCKET_COUNT;
@@ -144,28 +160,23 @@ export class NetworkView {
     }
     const counts = new Uint32Array(keyCount + 1);
     const { ends, widths } = g;
-    const s = this.scale;
-    const ox = this.offsetX;
-    const oy = this.offsetY;
-    const w = this.canvas.width;
-    const h = this.canvas.height;
     const NONE = 0xffff;
-    // Key = bucket * colours + colour, so thin lines are stroked first and trunks lie on top.
+    // Wide lines get a key = bucket * colours + colour, so thinner strokes come first and
+    // trunks lie on top.
     for (let i = 0; i < n; i += 1) {
+      this.keys[i] = NONE;
+      const px = widths[i] * s;
+      if (px <= RASTER_MAX_PX) continue;
       const x0 = ends[4 * i] * s + ox;
       const y0 = ends[4 * i + 1] * s + oy;
       const x1 = ends[4 * i + 2] * s + ox;
       const y1 = ends[4 * i + 3] * s + oy;
-      const px = Math.max(widths[i] * s, MIN_LINE_PX);
       const off = (x0 < -px && x1 < -px) || (y0 < -px && y1 < -px)
         || (x0 > w + px && x1 > w + px) || (y0 > h + px && y1 > h + px);
-      if (off || (x0 === x1 && y0 === y1)) {
-        this.keys[i] = NONE;
-        continue;
-      }
+      if (off || (x0 === x1 && y0 === y1)) continue;
       let bucket = Math.round(Math.log2(px) * BUCKETS_PER_DOUBLING) + BUCKET_OFFSET;
       bucket = Math.min(BUCKET_COUNT - 1, Math.max(0, bucket));
-      const key = bucket * palette.length + this.colourIndex(i);
+      const key = bucket * palette.length + colourOf[i];
       this.keys[i] = key;
       counts[key + 1] += 1;
     }
@@ -183,7 +194,7 @@ export class NetworkView {
       if (from === to) continue;
       const bucket = Math.floor(key / palette.length);
       ctx.strokeStyle = palette[key % palette.length];
-      ctx.lineWidth = Math.max(MIN_LINE_PX, 2 ** ((bucket - BUCKET_OFFSET) / BUCKETS_PER_DOUBLING));
+      ctx.lineWidth = 2 ** ((bucket - BUCKET_OFFSET) / BUCKETS_PER_DOUBLING);
       ctx.beginPath();
       for (let j = from; j < to; j += 1) {
         const i = this.sorted[j];
@@ -220,8 +231,8 @@ export class NetworkView {
 
   /// The segment nearest to CSS point (cx, cy) within `reach` CSS pixels, or -1.
   segmentAt(cx, cy, reach = 6) {
-    const g = this.geometry;
-    if (!g) return -1;
+    const g = this.liveGeometry();
+    if (!g || g.widths.length === 0) return -1;
     const ratio = this.ratio();
     const x = (cx * ratio - this.offsetX) / this.scale;
     const y = (cy * ratio - this.offsetY) / this.scale;

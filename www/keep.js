@@ -22,7 +22,7 @@ export function download(name, content, type) {
 
 /// Draws the whole lattice at a fixed size on a white page, with the caution for sites, and
 /// resolves to a PNG Blob.
-export function renderPng(geometry, frame, colours, colouring, caution) {
+export function renderPng(geometry, source, renewGeometry, frame, colours, colouring, caution) {
   const aspect = frame.height / Math.max(frame.width, 1e-12);
   const width = aspect > 1 ? Math.round(PNG_LONG_SIDE / aspect) : PNG_LONG_SIDE;
   const drawingHeight = aspect > 1 ? PNG_LONG_SIDE : Math.round(PNG_LONG_SIDE * aspect);
@@ -35,6 +35,8 @@ export function renderPng(geometry, frame, colours, colouring, caution) {
   drawing.height = drawingHeight;
   const view = new NetworkView(drawing, colours);
   view.pixelRatio = 2.5;
+  view.source = source;
+  view.renewGeometry = renewGeometry;
   view.colouring = colouring;
   view.setFrame(frame);
   view.fit();

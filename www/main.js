@@ -6,7 +6,7 @@ import { NetworkView } from './draw.js';
 import { ParameterForm } from './form.js';
 import { download, forgetRecord, keepRecord, keptRecord, renderPng } from './keep.js';
 import { clearReadings, showReadings } from './readings.js';
-import { readGeometry, Runner } from './runner.js';
+import { readGeometry, Runner, viewsOf } from './runner.js';
 
 const ANIMATE_KEY = 'ramulus.animate';
 const DEFAULT_START = 'broad-leaf';
@@ -39,6 +39,8 @@ async function start() {
   const schema = JSON.parse(core.schema_json());
 
   view = new NetworkView(byId('canvas'), state.colours);
+  view.renewGeometry = renewGeometry;
+  view.source = pixelSource();
   form = new ParameterForm(byId('form'), byId('param-seed'), schema, commitField);
   runner = new Runner({ redraw, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying });
   window.ramulusPage = { runner, view, state };
@@ -145,6 +147,27 @@ function redraw() {
   view.draw();
   showLegend();
   return performance.now() - started;
+}
+
+/// The core's raster drawing and colour indices of the current run, for NetworkView.
+function pixelSource() {
+  return {
+    raster(width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background) {
+      const address = state.simulation.raster(width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background);
+      const bytes = new Uint8ClampedArray(state.memory.buffer, address, width * height * 4);
+      return new ImageData(bytes, width, height);
+    },
+    colours(colouring) {
+      const address = state.simulation.colours_ptr(colouring);
+      return new Uint8Array(state.memory.buffer, address, state.geometry.count);
+    },
+  };
+}
+
+function renewGeometry(geometry) {
+  if (!state.simulation) return null;
+  state.geometry = { ...geometry, ...viewsOf(state.simulation, state.memory, geometry.count) };
+  return state.geometry;
 }
 
 function showProgress() {
@@ -375,7 +398,7 @@ function showProbe(event) {
   const x = event.clientX - rect.left;
   const y = event.clientY - rect.top;
   const index = view.segmentAt(x, y);
-  const g = state.geometry;
+  const g = view.liveGeometry();
   if (index < 0 || !g) {
     probe.hidden = true;
     return;
@@ -417,7 +440,7 @@ function wireKeep() {
   });
   byId('save-png').addEventListener('click', () => {
     const caution = state.frame.site ? core.site_caution() : '';
-    renderPng(state.geometry, state.frame, state.colours, view.colouring, caution)
+    renderPng(view.liveGeometry(), view.source, renewGeometry, state.frame, state.colours, view.colouring, caution)
       .then((blob) => download(name('png'), blob))
       .catch((error) => notice(`PNG export failed: ${messageOf(error)}`));
   });

@@ -8,20 +8,29 @@ const STEP_BUDGET_MS = 8;
 // Milliseconds of growth between yields when growing without animation.
 const QUIET_CHUNK_MS = 40;
 
-/// Typed-array views of the simulation's geometry, valid until wasm memory next grows.
+/// Refills the simulation's geometry and returns typed-array views of it.
 export function readGeometry(simulation, memory) {
   const count = simulation.update_geometry();
-  const buffer = memory.buffer;
   return {
     count,
+    flowLow: simulation.flow_low(),
+    flowHigh: simulation.flow_high(),
+    maxOrder: simulation.max_order(),
+    ...viewsOf(simulation, memory, count),
+  };
+}
+
+/// Views of the geometry already filled. Any wasm call that allocates may grow wasm memory,
+/// which detaches every view (their length drops to 0): then take fresh views with this; the
+/// data itself has not moved.
+export function viewsOf(simulation, memory, count) {
+  const buffer = memory.buffer;
+  return {
     ends: new Float32Array(buffer, simulation.ends_ptr(), 4 * count),
     widths: new Float32Array(buffer, simulation.widths_ptr(), count),
     orders: new Uint32Array(buffer, simulation.orders_ptr(), count),
     flows: new Float32Array(buffer, simulation.flows_ptr(), count),
     lengths: new Float32Array(buffer, simulation.lengths_ptr(), count),
-    flowLow: simulation.flow_low(),
-    flowHigh: simulation.flow_high(),
-    maxOrder: simulation.max_order(),
   };
 }
 
@@ -32,7 +41,7 @@ export class Runner {
     this.hooks = hooks;
     this.simulation = null;
     this.playingNow = false;
-    this.slice = 256;
+    this.msPerCell = 0.01;
     this.pace = 0; // cells per second; 0 = as fast as the frame budget allows
     this.carry = 0;
     this.lastTick = 0;
@@ -52,7 +61,7 @@ export class Runner {
     this.stop();
     this.generation += 1;
     this.simulation = simulation;
-    this.slice = 256;
+    this.msPerCell = 0.01;
     this.stats = freshStats();
     this.hooks.redraw();
     this.hooks.progress();
@@ -109,15 +118,20 @@ export class Runner {
       this.carry -= allowance;
     }
     this.lastTick = now;
+    // Each slice is sized from the measured time per cell so that the frame's growth ends
+    // inside its budget; the estimate follows the run as its cells get dearer.
     let added = 0;
     while (!simulation.finished() && added < allowance) {
+      const left = STEP_BUDGET_MS - (performance.now() - frameStart);
+      if (left <= 0.5) break;
+      const count = Math.max(1, Math.min(allowance - added, Math.floor(left / this.msPerCell)));
       const sliceStart = performance.now();
-      if (sliceStart - frameStart >= STEP_BUDGET_MS) break;
-      const count = Math.min(this.slice, allowance - added);
-      added += simulation.step(count);
-      const took = performance.now() - sliceStart;
-      if (took < 1 && this.slice < 1 << 20) this.slice *= 2;
-      else if (took > 3 && this.slice > 16) this.slice = Math.floor(this.slice / 2);
+      const grown = simulation.step(count);
+      added += grown;
+      if (grown > 0) {
+        const perCell = (performance.now() - sliceStart) / grown;
+        this.msPerCell = 0.7 * this.msPerCell + 0.3 * Math.max(perCell, 1e-5);
+      }
     }
     const stepMs = performance.now() - frameStart;
     this.stats.frames += 1;

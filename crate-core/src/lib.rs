@@ -13,6 +13,7 @@ pub mod network;
 pub mod params;
 pub mod power;
 pub mod presets;
+pub mod raster;
 pub mod record;
 pub mod run;
 pub mod schema;

@@ -12,6 +12,8 @@ use ramulus_core::run::{width_rule, RunView, SITE_CAUTION};
 use ramulus_core::svg::Colouring;
 use wasm_bindgen::prelude::*;
 
+use ramulus_core::raster::RasterView;
+
 use crate::geometry::Geometry;
 
 /// Where the network comes from.
@@ -248,6 +250,44 @@ impl Simulation {
     /// Length per entry.
     pub fn lengths_ptr(&self) -> *const f32 {
         self.geometry.lengths.as_ptr()
+    }
+
+    /// Palette index of every entry under `colouring` (`order`, `flow`, `plain`), one byte each.
+    pub fn colours_ptr(&mut self, colouring: &str) -> *const u8 {
+        self.geometry.colour_indices(colouring).as_ptr()
+    }
+
+    /// Draws the thin segments (on-screen width at most `max_px`) into a `width` x `height`
+    /// RGBA buffer over the `background` colour (0xRRGGBB) and returns its address; pixel =
+    /// coordinate * `scale` + offset. Wider segments are left for the page to stroke on top.
+    #[allow(clippy::too_many_arguments)]
+    pub fn raster(
+        &mut self,
+        width: u32,
+        height: u32,
+        scale: f64,
+        offset_x: f64,
+        offset_y: f64,
+        colouring: &str,
+        min_px: f64,
+        max_px: f64,
+        background: u32,
+    ) -> *const u8 {
+        let view = RasterView {
+            width,
+            height,
+            scale,
+            offset_x,
+            offset_y,
+        };
+        let rgb = [
+            (background >> 16) as u8,
+            (background >> 8) as u8,
+            background as u8,
+        ];
+        self.geometry
+            .raster(view, colouring, min_px, max_px, rgb)
+            .as_ptr()
     }
 
     /// Smallest positive flow in the geometry (0 when none).

@@ -1,0 +1,68 @@
+// Benchmark, not a test: page figures in headless Chromium (software drawing, no GPU).
+//  1. Drawing: one full frame of a network of over 200,000 segments (target: at most 16 ms),
+//     and the time to refill the geometry views from the core before it.
+//  2. Growth while animating: cells per second on the page at the fastest pace, and how long
+//     the growth step took per frame (target: at least 20,000 cells a second, with each
+//     frame's growth inside its 8 ms budget so frames are not dropped on its account).
+// Prints figures; never fails on slowness. Usage: node tests/e2e/bench-page.mjs
+import { finishedDigest, launchBrowser, newPage, serveSite } from './support.mjs';
+
+const DRAW_ROUNDS = 15;
+
+// 500 x 420 lattice filled cheapest first with jitter: 210,000 cells, 209,999 segments.
+const BIG = 'v=1&width=500&height=420&cell_size=0.1&roots=250,410,0,1&cells=210000&joining=cheapest'
+  + '&radius=1.5&jitter=0.3&w_turn=0&w_flow=0&w_path=0&seed=3';
+// The engine benchmark's full cost model at 100,000 cells (see `ramulus bench`).
+const ANIMATED = 'v=1&width=400&height=400&cell_size=0.15&roots=200,200,0,1&cells=100000'
+  + '&joining=weighted&temperature=0.5&radius=4&jitter=0.4&w_len=1&w_turn=1&w_flow=0.5'
+  + '&alpha=0.5&w_path=0.05&seed=1';
+
+const site = await serveSite();
+const context = await launchBrowser({ width: 1500, height: 1000 });
+try {
+  const page = await newPage(context);
+  await page.addInitScript(() => localStorage.setItem('ramulus.animate', 'no'));
+  await page.goto(`${site.url}#${BIG}`);
+  await finishedDigest(page, 300000);
+  const draw = await page.evaluate((rounds) => {
+    const { view, state, runner } = window.ramulusPage;
+    const geometryTimes = [];
+    const drawTimes = [];
+    for (let round = 0; round < rounds; round += 1) {
+      const started = performance.now();
+      runner.hooks.redraw();
+      geometryTimes.push(performance.now() - started - view.lastDrawMs);
+      drawTimes.push(view.lastDrawMs);
+    }
+    return {
+      segments: state.geometry.count - 1,
+      canvas: `${view.canvas.width} x ${view.canvas.height}`,
+      geometryTimes,
+      drawTimes,
+    };
+  }, DRAW_ROUNDS);
+  console.log(`drawing, ${draw.segments} segments on a ${draw.canvas} canvas, ${DRAW_ROUNDS} frames (target: draw at most 16 ms):`);
+  console.log(`  draw ms      ${summary(draw.drawTimes)}`);
+  console.log(`  geometry ms  ${summary(draw.geometryTimes)}  (refilling the views from the core)`);
+  await page.close();
+
+  const animated = await newPage(context);
+  await animated.addInitScript(() => localStorage.setItem('ramulus.animate', 'yes'));
+  await animated.goto(`${site.url}#${ANIMATED}`);
+  await finishedDigest(animated, 300000);
+  const stats = await animated.evaluate(() => window.ramulusPage.runner.stats);
+  const seconds = (stats.lastTick - stats.firstTick) / 1000;
+  console.log(`growth while animating, full cost model, ${stats.cells} cells (target: at least 20,000 cells/s):`);
+  console.log(`  ${Math.round(stats.cells / seconds)} cells/s over ${seconds.toFixed(2)} s, ${stats.frames} frames, ${stats.draws} redraws`);
+  console.log(`  growth step per frame: mean ${(stats.stepMs / stats.frames).toFixed(2)} ms, max ${stats.maxStepMs.toFixed(2)} ms, frames whose step exceeded 16.7 ms: ${stats.overBudget}`);
+  await animated.close();
+} finally {
+  await context.close();
+  site.close();
+}
+
+function summary(times) {
+  const sorted = [...times].sort((a, b) => a - b);
+  const median = sorted[Math.floor(sorted.length / 2)];
+  return `min ${sorted[0].toFixed(1)}  median ${median.toFixed(1)}  max ${sorted.at(-1).toFixed(1)}`;
+}
