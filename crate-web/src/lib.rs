@@ -63,6 +63,24 @@ pub fn set_link_field(link: &str, key: &str, text: &str) -> String {
     link_summary(&params, ramulus_core::link::LINK_VERSION, &[])
 }
 
+/// The link of a parameter JSON object (keys as in the run record and `ramulus presets`);
+/// missing keys take their defaults. Returns JSON `{link, fields}` or `{error: {key, message}}`.
+#[wasm_bindgen]
+pub fn link_from_params(params_json: &str) -> String {
+    let params = match ramulus_core::params::Params::from_json(params_json) {
+        Ok(params) => params,
+        Err(error) => {
+            let message = format!("{}: {}", error.value, error.allowed);
+            return json!({ "error": { "key": error.key, "message": message } }).to_string();
+        }
+    };
+    if let Err(error) = params.validate() {
+        let message = format!("{} is not allowed: {}", error.value, error.allowed);
+        return json!({ "error": { "key": error.key, "message": message } }).to_string();
+    }
+    link_summary(&params, ramulus_core::link::LINK_VERSION, &[])
+}
+
 /// Applies an image mask (PNG or PBM bytes, dark = allowed) to a link: the image's size sets
 /// the lattice. Returns JSON like `set_link_field`.
 #[wasm_bindgen]
@@ -156,5 +174,16 @@ mod tests {
             decode_link(out["link"].as_str().unwrap()).params.alpha,
             0.25
         );
+    }
+
+    #[test]
+    fn parameter_json_becomes_the_same_link_as_the_core_writes() {
+        let preset = &presets()[3];
+        let text = serde_json::to_string(&preset.params).unwrap();
+        let out: serde_json::Value = serde_json::from_str(&link_from_params(&text)).unwrap();
+        assert_eq!(out["link"], encode_link(&preset.params));
+        let out: serde_json::Value =
+            serde_json::from_str(&link_from_params(r#"{"gamma": 0.5}"#)).unwrap();
+        assert_eq!(out["error"]["key"], "gamma");
     }
 }

@@ -155,6 +155,12 @@ impl Simulation {
         }
     }
 
+    /// The run's parameters as JSON (the seed as a JSON number: read it from `link` where a
+    /// seed above 2^53 must stay exact in JavaScript).
+    pub fn params_json(&self) -> String {
+        serde_json::to_string(&self.params).unwrap_or_default()
+    }
+
     /// Physical extent and units as JSON: `{width, height, units, cell_size, site}`.
     pub fn frame_json(&self) -> String {
         let (width, height) = match &self.source {

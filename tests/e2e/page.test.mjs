@@ -229,3 +229,28 @@ test('a file that is not a run record gets a message and the run stays', async (
   assert.deepEqual(page.errors, []);
   await page.close();
 });
+
+test('an image mask sets the lattice to its size; a broken image is named', async () => {
+  const page = await newPage(context);
+  await page.goto(site.url);
+  await finishedDigest(page);
+  // A plain PBM (Netpbm P1: "1" = black = allowed), 40 x 30 cells, the left half allowed.
+  const rows = Array.from({ length: 30 }, () => `${'1 '.repeat(20)}${'0 '.repeat(20)}`.trim());
+  const pbm = `P1\n40 30\n${rows.join('\n')}\n`;
+  await page.click('summary:text-is("Shape")');
+  await page.fill('#param-roots', '10,28,0,1');
+  await page.press('#param-roots', 'Tab');
+  await page.setInputFiles('#mask-file', { name: 'half.pbm', mimeType: 'image/x-portable-bitmap', buffer: Buffer.from(pbm) });
+  await page.waitForFunction(() => document.getElementById('param-width').value === '40');
+  const digest = await finishedDigest(page);
+  assert.equal(await page.inputValue('#param-height'), '30');
+  assert.match(await page.inputValue('#param-mask'), /40 × 30/);
+  const native = nativeRun(await fragmentOf(page));
+  assert.equal(digest, native.digest);
+  assert.ok(native.cells <= 20 * 30, `only the allowed half can fill: ${native.cells} cells`);
+  await page.setInputFiles('#mask-file', { name: 'broken.pbm', mimeType: 'image/x-portable-bitmap', buffer: Buffer.from('P1\n40 30\n1 0 x') });
+  await page.waitForFunction(() => document.getElementById('notices').textContent.includes('broken.pbm'));
+  assert.equal(await page.inputValue('#param-width'), '40', 'the run is left as it was');
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});
