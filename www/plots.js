@@ -219,15 +219,9 @@ export function drawHortonPlot(canvas, metrics, units) {
 
   // Integer order ticks.
   const orderStep = Math.max(1, Math.ceil((maxOrder - minOrder + 1) / 12));
-  ctx.textAlign = 'center';
-  ctx.textBaseline = 'top';
-  for (let w = Math.ceil(minOrder); w <= maxOrder; w += orderStep) {
-    const x = toX(w);
-    ctx.strokeStyle = INK;
-    line(ctx, x, box.bottom, x, box.bottom + 5);
-    ctx.fillStyle = INK;
-    ctx.fillText(String(w), x, box.bottom + 8);
-  }
+  const orderTicks = [];
+  for (let w = Math.ceil(minOrder); w <= maxOrder; w += orderStep) orderTicks.push(w);
+  drawXTicks(ctx, box, orderTicks, toX);
   frame(ctx, box);
 
   // Fitted lines only where the core reports a ratio; points drawn on top.
@@ -330,15 +324,7 @@ export function drawAngleHistogram(canvas, metrics) {
   });
 
   // Angle ticks every 30 degrees.
-  ctx.textAlign = 'center';
-  ctx.textBaseline = 'top';
-  for (let deg = 0; deg <= 180; deg += 30) {
-    const x = toX(deg);
-    ctx.strokeStyle = INK;
-    line(ctx, x, box.bottom, x, box.bottom + 5);
-    ctx.fillStyle = INK;
-    ctx.fillText(String(deg), x, box.bottom + 8);
-  }
+  drawXTicks(ctx, box, [0, 30, 60, 90, 120, 150, 180], toX);
   frame(ctx, box);
 
   // Dashed line at the mean.
@@ -384,4 +370,17 @@ export function plotSummary(metrics, units) {
     angles = `Angle histogram: ${parts.join(', ')}.`;
   }
   return `${horton} ${angles}`;
+}
+
+/** Tick marks and labels under the plot box at the given x values. */
+function drawXTicks(ctx, box, values, toX) {
+  ctx.textAlign = 'center';
+  ctx.textBaseline = 'top';
+  for (const value of values) {
+    const x = toX(value);
+    ctx.strokeStyle = INK;
+    line(ctx, x, box.bottom, x, box.bottom + 5);
+    ctx.fillStyle = INK;
+    ctx.fillText(String(value), x, box.bottom + 8);
+  }
 }

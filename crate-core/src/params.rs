@@ -133,6 +133,8 @@ impl std::fmt::Display for ParamError {
 
 impl std::error::Error for ParamError {}
 
+/// Defaults of every key. Run links of format version 1 fill missing keys from their own
+/// frozen copy (`link::version_1_defaults`), so a change here never changes an old link.
 impl Default for Params {
     fn default() -> Self {
         Params {
