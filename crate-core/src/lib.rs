@@ -4,6 +4,7 @@
 #![deny(missing_docs)]
 
 pub mod digest;
+pub mod fast_libm;
 pub mod growth;
 pub mod import;
 pub mod link;
@@ -11,7 +12,6 @@ pub mod mask;
 pub mod metrics;
 pub mod network;
 pub mod params;
-pub mod power;
 pub mod presets;
 pub mod raster;
 pub mod record;
@@ -21,5 +21,5 @@ pub mod segments;
 pub mod svg;
 
 pub use growth::{Growth, StepReport, StopReason};
-pub use network::{Network, Node, Topology, NO_PARENT};
+pub use network::{Children, Network, Node, Topology, NO_PARENT};
 pub use params::{Joining, ParamError, Params, Root};

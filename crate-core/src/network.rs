@@ -57,7 +57,7 @@ pub struct CellSet {
 #[derive(Clone, Debug)]
 pub struct Topology {
     /// Children (upstream neighbours) of each node, in increasing index order.
-    pub children: Vec<Vec<u32>>,
+    pub children: Children,
     /// Every node reachable from a root, parents before children (breadth first from roots in
     /// index order).
     pub order: Vec<u32>,
@@ -66,6 +66,76 @@ pub struct Topology {
     pub flow: Vec<f64>,
     /// Length of segment `i`, 0 for roots.
     pub length: Vec<f64>,
+}
+
+/// The children of every node in compressed rows: one list of child indices, grouped by
+/// parent, and where each parent's group starts (one allocation however many nodes).
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Children {
+    /// `start[i] .. start[i + 1]` is node `i`'s group in `list`; `node count + 1` entries.
+    start: Vec<u32>,
+    /// Child indices, grouped by parent, each group in increasing index order.
+    list: Vec<u32>,
+}
+
+impl Children {
+    /// Groups the nodes by parent (`NO_PARENT` or an index below `parents.len()`; others are
+    /// left out).
+    pub fn from_parents(parents: impl Iterator<Item = u32> + Clone, count: usize) -> Children {
+        let mut start = vec![0u32; count + 1];
+        for parent in parents.clone() {
+            if (parent as usize) < count {
+                start[parent as usize + 1] += 1;
+            }
+        }
+        for index in 0..count {
+            start[index + 1] += start[index];
+        }
+        let mut fill = start[..count].to_vec();
+        let mut list = vec![0u32; start[count] as usize];
+        for (node, parent) in parents.enumerate() {
+            if (parent as usize) < count {
+                list[fill[parent as usize] as usize] = node as u32;
+                fill[parent as usize] += 1;
+            }
+        }
+        Children { start, list }
+    }
+
+    /// The children of `node`; empty for a node out of range.
+    pub fn of(&self, node: usize) -> &[u32] {
+        self.get(node).unwrap_or(&[])
+    }
+
+    /// The children of `node`, or `None` when out of range.
+    pub fn get(&self, node: usize) -> Option<&[u32]> {
+        let from = *self.start.get(node)? as usize;
+        let to = *self.start.get(node + 1)? as usize;
+        self.list.get(from..to)
+    }
+
+    /// Number of nodes.
+    pub fn len(&self) -> usize {
+        self.start.len().saturating_sub(1)
+    }
+
+    /// Whether there are no nodes.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// The children of every node in index order.
+    pub fn iter(&self) -> impl Iterator<Item = &[u32]> {
+        (0..self.len()).map(|node| self.of(node))
+    }
+}
+
+impl std::ops::Index<usize> for Children {
+    type Output = [u32];
+
+    fn index(&self, node: usize) -> &[u32] {
+        self.of(node)
+    }
 }
 
 /// Why a list of nodes is not a forest.
@@ -118,7 +188,6 @@ impl Network {
     /// Derives children, order and flows; fails when the nodes are not a forest.
     pub fn topology(&self) -> Result<Topology, TopologyError> {
         let count = self.nodes.len();
-        let mut children = vec![Vec::new(); count];
         for (index, node) in self.nodes.iter().enumerate() {
             if !node.x.is_finite() || !node.y.is_finite() || !node.weight.is_finite() {
                 return Err(TopologyError::NotFinite { node: index });
@@ -130,9 +199,9 @@ impl Network {
                         parent: node.parent,
                     });
                 }
-                children[node.parent as usize].push(index as u32);
             }
         }
+        let children = Children::from_parents(self.nodes.iter().map(|node| node.parent), count);
         let mut order = Vec::with_capacity(count);
         for (index, node) in self.nodes.iter().enumerate() {
             if node.is_root() {
@@ -143,7 +212,7 @@ impl Network {
         while head < order.len() {
             let node = order[head] as usize;
             head += 1;
-            order.extend_from_slice(&children[node]);
+            order.extend_from_slice(children.of(node));
         }
         if order.len() != count {
             let mut seen = vec![false; count];
@@ -168,7 +237,7 @@ impl Network {
                     0.0
                 } else {
                     let parent = &self.nodes[node.parent as usize];
-                    libm::hypot(node.x - parent.x, node.y - parent.y)
+                    crate::fast_libm::hypot(node.x - parent.x, node.y - parent.y)
                 }
             })
             .collect();

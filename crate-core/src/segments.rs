@@ -41,7 +41,7 @@ impl SegmentTable {
                 if flow <= 0.0 || rule.reference_flow <= 0.0 {
                     0.0
                 } else {
-                    rule.base_width * crate::power::pow(flow / rule.reference_flow, exponent)
+                    rule.base_width * crate::fast_libm::pow(flow / rule.reference_flow, exponent)
                 }
             })
             .collect();

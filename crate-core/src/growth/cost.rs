@@ -126,7 +126,7 @@ impl CostModel {
 /// Marginal branched-transport cost of adding flow `extra` to a segment carrying `flow`:
 /// `(flow + extra)^alpha - flow^alpha` (Gilbert 1967; Xia 2003).
 pub(crate) fn marginal(flow: f64, extra: f64, alpha: f64) -> f64 {
-    crate::power::pow(flow + extra, alpha) - crate::power::pow(flow, alpha)
+    crate::fast_libm::pow(flow + extra, alpha) - crate::fast_libm::pow(flow, alpha)
 }
 
 #[cfg(test)]

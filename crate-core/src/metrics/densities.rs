@@ -34,7 +34,7 @@ pub(crate) fn count_lengths_and_degrees(
         tip_count: 0,
     };
     for (index, node) in network.nodes.iter().enumerate() {
-        let child_count = topology.children.get(index).map_or(0, Vec::len);
+        let child_count = topology.children.get(index).map_or(0, <[u32]>::len);
         let is_root = node.is_root();
         let degree = child_count + usize::from(!is_root);
         if is_root {

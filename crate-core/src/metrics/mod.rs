@@ -178,7 +178,7 @@ pub fn measure_with(network: &Network, topology: &Topology, orders: &[u32], alph
                 cells: network.cells.clone(),
             };
             let empty_topology = Topology {
-                children: Vec::new(),
+                children: Default::default(),
                 order: Vec::new(),
                 flow: Vec::new(),
                 length: Vec::new(),

@@ -29,7 +29,7 @@ pub(crate) fn mean_tortuosity(network: &Network, topology: &Topology) -> Option<
         let Some(root_node) = network.nodes.get(root) else {
             continue;
         };
-        let straight = libm::hypot(current.x - root_node.x, current.y - root_node.y);
+        let straight = crate::fast_libm::hypot(current.x - root_node.x, current.y - root_node.y);
         if current.weight > 0.0 && straight > 0.0 {
             ratio_sum += path_length[node] / straight;
             ratio_count += 1;

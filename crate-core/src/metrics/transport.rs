@@ -19,7 +19,7 @@ pub(crate) fn transport_cost(network: &Network, topology: &Topology, alpha: f64)
         let flow = topology.flow.get(index).copied().unwrap_or(0.0);
         let length = topology.length.get(index).copied().unwrap_or(0.0);
         if flow > 0.0 {
-            cost += crate::power::pow(flow, alpha) * length;
+            cost += crate::fast_libm::pow(flow, alpha) * length;
         }
     }
     cost.is_finite().then_some(cost)
