@@ -192,13 +192,11 @@ impl Network {
             if !node.x.is_finite() || !node.y.is_finite() || !node.weight.is_finite() {
                 return Err(TopologyError::NotFinite { node: index });
             }
-            if node.parent != NO_PARENT {
-                if node.parent as usize >= count {
-                    return Err(TopologyError::ParentOutOfRange {
-                        node: index,
-                        parent: node.parent,
-                    });
-                }
+            if node.parent != NO_PARENT && node.parent as usize >= count {
+                return Err(TopologyError::ParentOutOfRange {
+                    node: index,
+                    parent: node.parent,
+                });
             }
         }
         let children = Children::from_parents(self.nodes.iter().map(|node| node.parent), count);
