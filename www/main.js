@@ -118,6 +118,7 @@ function startRun(simulation = null) {
   if (state.simulation) state.simulation.free();
   state.simulation = null;
   state.geometry = null;
+  view.setGeometry(null);
   try {
     state.simulation = simulation ?? new core.Simulation(state.link);
   } catch (error) {
