@@ -48,6 +48,7 @@ export class Runner {
     this.lastDraw = 0;
     this.drawCostMs = 0;
     this.generation = 0;
+    this.quiet = false; // growing to the end without drawing (see growQuietly)
     this.stats = freshStats();
   }
 
@@ -59,6 +60,7 @@ export class Runner {
   /// in between) or `hold` (wait for the user).
   start(simulation, mode) {
     this.stop();
+    this.quiet = false;
     this.generation += 1;
     this.simulation = simulation;
     this.msPerCell = 0.01;
@@ -70,7 +72,7 @@ export class Runner {
   }
 
   play() {
-    if (!this.simulation || this.simulation.finished()) return;
+    if (!this.simulation || this.simulation.finished() || this.quiet) return;
     this.playingNow = true;
     this.hooks.playing(true);
     this.lastTick = performance.now();
@@ -159,6 +161,7 @@ export class Runner {
 
   growQuietly(generation) {
     const simulation = this.simulation;
+    this.quiet = true;
     const chunk = () => {
       if (generation !== this.generation) return;
       const started = performance.now();
@@ -167,6 +170,7 @@ export class Runner {
       }
       this.hooks.progress();
       if (simulation.finished()) {
+        this.quiet = false;
         this.hooks.redraw();
         this.hooks.finished();
       } else {
