@@ -54,11 +54,10 @@ pub fn read_link(text: &str) -> String {
 pub fn set_link_field(link: &str, key: &str, text: &str) -> String {
     let mut params = decode_link(link).params;
     if let Err(message) = set_field(&mut params, key, text) {
-        return json!({ "error": { "key": key, "message": message } }).to_string();
+        return field_error(key, &message);
     }
     if let Err(error) = params.validate() {
-        let message = format!("{} is not allowed: {}", error.value, error.allowed);
-        return json!({ "error": { "key": error.key, "message": message } }).to_string();
+        return invalid(&error);
     }
     link_summary(&params, ramulus_core::link::LINK_VERSION, &[])
 }
@@ -71,12 +70,11 @@ pub fn link_from_params(params_json: &str) -> String {
         Ok(params) => params,
         Err(error) => {
             let message = format!("{}: {}", error.value, error.allowed);
-            return json!({ "error": { "key": error.key, "message": message } }).to_string();
+            return field_error(&error.key, &message);
         }
     };
     if let Err(error) = params.validate() {
-        let message = format!("{} is not allowed: {}", error.value, error.allowed);
-        return json!({ "error": { "key": error.key, "message": message } }).to_string();
+        return invalid(&error);
     }
     link_summary(&params, ramulus_core::link::LINK_VERSION, &[])
 }
@@ -88,9 +86,7 @@ pub fn set_link_mask(link: &str, image: &[u8]) -> String {
     let mut params = decode_link(link).params;
     let mask = match mask_from_bytes(image) {
         Ok(mask) => mask,
-        Err(error) => {
-            return json!({ "error": { "key": "mask", "message": error.to_string() } }).to_string()
-        }
+        Err(error) => return field_error("mask", &error.to_string()),
     };
     params.width = mask.width;
     params.height = mask.height;
@@ -100,7 +96,7 @@ pub fn set_link_mask(link: &str, image: &[u8]) -> String {
             "with this {} x {} image, {} = {} is not allowed: {}",
             params.width, params.height, error.key, error.value, error.allowed
         );
-        return json!({ "error": { "key": error.key, "message": message } }).to_string();
+        return field_error(&error.key, &message);
     }
     link_summary(&params, ramulus_core::link::LINK_VERSION, &[])
 }
@@ -115,6 +111,19 @@ pub fn colours_json() -> String {
 #[wasm_bindgen]
 pub fn site_caution() -> String {
     SITE_CAUTION.to_string()
+}
+
+/// The JSON `{error: {key, message}}` that names the field at fault.
+fn field_error(key: &str, message: &str) -> String {
+    json!({ "error": { "key": key, "message": message } }).to_string()
+}
+
+/// Rejection of parameters that parse but do not validate.
+fn invalid(error: &ramulus_core::ParamError) -> String {
+    field_error(
+        &error.key,
+        &format!("{} is not allowed: {}", error.value, error.allowed),
+    )
 }
 
 fn link_summary(
