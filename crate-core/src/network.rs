@@ -82,7 +82,17 @@ impl Children {
     /// Groups the nodes by parent (`NO_PARENT` or an index below `parents.len()`; others are
     /// left out).
     pub fn from_parents(parents: impl Iterator<Item = u32> + Clone, count: usize) -> Children {
-        let mut start = vec![0u32; count + 1];
+        let mut children = Children::default();
+        children.rebuild(parents, count);
+        children
+    }
+
+    /// Regroups in place, reusing the allocations (the growth engine does this at every flow
+    /// refresh).
+    pub fn rebuild(&mut self, parents: impl Iterator<Item = u32> + Clone, count: usize) {
+        let start = &mut self.start;
+        start.clear();
+        start.resize(count + 1, 0);
         for parent in parents.clone() {
             if (parent as usize) < count {
                 start[parent as usize + 1] += 1;
@@ -91,15 +101,20 @@ impl Children {
         for index in 0..count {
             start[index + 1] += start[index];
         }
-        let mut fill = start[..count].to_vec();
-        let mut list = vec![0u32; start[count] as usize];
+        self.list.clear();
+        self.list.resize(start[count] as usize, 0);
+        // Fill each group from its start, then shift the starts back one group.
         for (node, parent) in parents.enumerate() {
             if (parent as usize) < count {
-                list[fill[parent as usize] as usize] = node as u32;
-                fill[parent as usize] += 1;
+                let slot = &mut start[parent as usize];
+                self.list[*slot as usize] = node as u32;
+                *slot += 1;
             }
         }
-        Children { start, list }
+        for index in (1..=count).rev() {
+            start[index] = start[index - 1];
+        }
+        start[0] = 0;
     }
 
     /// The children of `node`; empty for a node out of range.

@@ -98,8 +98,7 @@ pub struct Growth {
     weight_reference: f64,
     last_refresh_nodes: usize,
     scratch_order: Vec<u32>,
-    scratch_start: Vec<u32>,
-    scratch_children: Vec<u32>,
+    scratch_children: crate::network::Children,
     stopped: Option<StopReason>,
 }
 
@@ -149,8 +148,7 @@ impl Growth {
             weight_reference: f64::NAN,
             last_refresh_nodes: 0,
             scratch_order: Vec::new(),
-            scratch_start: Vec::new(),
-            scratch_children: Vec::new(),
+            scratch_children: Default::default(),
             stopped: None,
         };
         if params.attach_to_segments {

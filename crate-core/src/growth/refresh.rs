@@ -47,25 +47,8 @@ impl Growth {
     pub(super) fn refresh_flows(&mut self) {
         let count = self.x.len();
         // Children in compressed rows, then a breadth-first order from the roots.
-        self.scratch_start.clear();
-        self.scratch_start.resize(count + 1, 0);
-        for &parent in &self.parent {
-            if parent != NO_PARENT {
-                self.scratch_start[parent as usize + 1] += 1;
-            }
-        }
-        for index in 0..count {
-            self.scratch_start[index + 1] += self.scratch_start[index];
-        }
-        self.scratch_children.clear();
-        self.scratch_children.resize(count, 0);
-        let mut fill: Vec<u32> = self.scratch_start[..count].to_vec();
-        for (node, &parent) in self.parent.iter().enumerate() {
-            if parent != NO_PARENT {
-                self.scratch_children[fill[parent as usize] as usize] = node as u32;
-                fill[parent as usize] += 1;
-            }
-        }
+        self.scratch_children
+            .rebuild(self.parent.iter().copied(), count);
         self.scratch_order.clear();
         for (node, &parent) in self.parent.iter().enumerate() {
             if parent == NO_PARENT {
@@ -76,14 +59,8 @@ impl Growth {
         while head < self.scratch_order.len() {
             let node = self.scratch_order[head] as usize;
             head += 1;
-            let (start, end) = (
-                self.scratch_start[node] as usize,
-                self.scratch_start[node + 1] as usize,
-            );
-            for position in start..end {
-                let child = self.scratch_children[position];
-                self.scratch_order.push(child);
-            }
+            self.scratch_order
+                .extend_from_slice(self.scratch_children.of(node));
         }
         for node in 0..count {
             self.flow[node] = if self.cell_of[node] == NONE {
