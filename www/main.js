@@ -193,7 +193,7 @@ function onPaused() {
 function onFinished() {
   const simulation = state.simulation;
   if (!simulation) return;
-  redraw();
+  // The runner has already redrawn the final network.
   showProgress();
   showReadingsNow();
   const digest = simulation.digest();
@@ -290,8 +290,10 @@ function wireControls() {
     runner.pace = Number(event.target.value);
   });
   byId('colouring').addEventListener('change', (event) => {
+    // Same network, other colours: no need to refill the geometry.
     view.colouring = event.target.value;
-    redraw();
+    view.draw();
+    showLegend();
   });
   byId('animate').addEventListener('change', (event) => {
     try {

@@ -68,7 +68,7 @@ export class Runner {
     this.hooks.redraw();
     this.hooks.progress();
     if (mode === 'animate') this.play();
-    else if (mode === 'quiet') this.growQuietly(this.generation);
+    else if (mode === 'quiet' && !simulation.finished()) this.growQuietly(this.generation);
   }
 
   play() {

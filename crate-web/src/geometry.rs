@@ -29,6 +29,8 @@ pub struct Geometry {
     pub colours: Vec<u8>,
     /// The colouring `colours` was computed for (empty when stale).
     pub colouring: String,
+    /// RGB of each palette index under `colouring`.
+    pub palette: Vec<[u8; 3]>,
     /// RGBA pixels of the last raster.
     pub pixels: Vec<u8>,
     /// Entries in an order where neighbours lie close together, for `raster`.
@@ -39,7 +41,7 @@ pub struct Geometry {
 const DRAW_ORDER_GRID: usize = 128;
 
 /// Page colourings: `order`, `flow` or `plain`.
-pub fn palette(colouring: &str) -> Vec<[u8; 3]> {
+fn palette(colouring: &str) -> Vec<[u8; 3]> {
     let scheme = colour_scheme();
     let hex: Vec<String> = match colouring {
         "order" => scheme
@@ -107,7 +109,8 @@ impl Geometry {
     /// SVG export's rule); plain takes 0.
     pub fn colour_indices(&mut self, colouring: &str) -> &[u8] {
         if self.colouring != colouring || self.colours.len() != self.len() {
-            let order_colours = colour_scheme().order.len() as u32;
+            self.palette = palette(colouring);
+            let order_colours = self.palette.len() as u32;
             let (low, high) = self.flow_range;
             let steps = FLOW_RAMP_STEPS as f64 - 1.0;
             let span = libm::log(high) - libm::log(low);
@@ -148,12 +151,12 @@ impl Geometry {
         let size = view.width as usize * view.height as usize * 4;
         self.pixels.resize(size, 0);
         fill(&mut self.pixels, background);
-        let palette = palette(colouring);
         self.colour_indices(colouring);
         let Geometry {
             ends,
             widths,
             colours,
+            palette,
             pixels,
             draw_order,
             ..
