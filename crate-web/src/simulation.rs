@@ -31,6 +31,9 @@ pub struct Simulation {
     source: Source,
     geometry: Geometry,
     recorded_digest: Option<String>,
+    /// Everything derived from the network as it stands (metrics, SVG, record share it);
+    /// dropped whenever the network changes.
+    view_cache: Option<RunView>,
 }
 
 #[wasm_bindgen]
@@ -48,6 +51,7 @@ impl Simulation {
             source: Source::Growing(Box::new(growth)),
             geometry: Geometry::default(),
             recorded_digest: None,
+            view_cache: None,
         })
     }
 
@@ -81,11 +85,13 @@ impl Simulation {
             source,
             geometry: Geometry::default(),
             recorded_digest: Some(record.digest),
+            view_cache: None,
         })
     }
 
     /// Starts the run again from its first cell.
     pub fn reset(&mut self) -> Result<(), JsError> {
+        self.view_cache = None;
         if let Source::Growing(growth) = &mut self.source {
             **growth =
                 Growth::new(&self.params).map_err(|error| JsError::new(&error.to_string()))?;
@@ -95,10 +101,14 @@ impl Simulation {
 
     /// Adds up to `count` cells; returns how many were added.
     pub fn step(&mut self, count: u32) -> u32 {
-        match &mut self.source {
+        let added = match &mut self.source {
             Source::Growing(growth) => growth.step(count as u64).added as u32,
             Source::Fixed(_) => 0,
+        };
+        if added > 0 {
+            self.view_cache = None;
         }
+        added
     }
 
     /// Whether growth has stopped.
@@ -185,27 +195,27 @@ impl Simulation {
     }
 
     /// Metrics of the network so far, as JSON.
-    pub fn metrics_json(&self) -> Result<String, JsError> {
+    pub fn metrics_json(&mut self) -> Result<String, JsError> {
         let view = self.view()?;
         serde_json::to_string(&view.metrics).map_err(|error| JsError::new(&error.to_string()))
     }
 
     /// Metrics as labelled rows `[[label, value, unit], ...]` (four significant digits).
-    pub fn metrics_rows_json(&self) -> Result<String, JsError> {
-        let view = self.view()?;
-        let rows = metrics_table(&view.metrics, &self.params.units);
+    pub fn metrics_rows_json(&mut self) -> Result<String, JsError> {
+        let units = self.params.units.clone();
+        let rows = metrics_table(&self.view()?.metrics, &units);
         serde_json::to_string(&rows).map_err(|error| JsError::new(&error.to_string()))
     }
 
     /// Metrics as CSV at full precision.
-    pub fn metrics_csv(&self) -> Result<String, JsError> {
-        let view = self.view()?;
+    pub fn metrics_csv(&mut self) -> Result<String, JsError> {
+        let units = self.params.units.clone();
         let caution = self.params.is_site().then_some(SITE_CAUTION);
-        Ok(metrics_csv(&view.metrics, &self.params.units, caution))
+        Ok(metrics_csv(&self.view()?.metrics, &units, caution))
     }
 
     /// The network as SVG, coloured by `order`, `flow` or `plain`.
-    pub fn svg(&self, colouring: &str) -> Result<String, JsError> {
+    pub fn svg(&mut self, colouring: &str) -> Result<String, JsError> {
         let colour = match colouring {
             "order" => Colouring::ByOrder,
             "flow" => Colouring::ByFlow,
@@ -216,14 +226,23 @@ impl Simulation {
                 )))
             }
         };
-        Ok(self.view()?.svg(&self.params, colour))
+        self.view()?;
+        let view = self
+            .view_cache
+            .as_ref()
+            .ok_or_else(|| JsError::new("derived view missing"))?;
+        Ok(view.svg(&self.params, colour))
     }
 
     /// The JSON run record.
-    pub fn record_json(&self) -> Result<String, JsError> {
-        let view = self.view()?;
+    pub fn record_json(&mut self) -> Result<String, JsError> {
         let stopped = Some(self.stop_reason()).filter(|reason| !reason.is_empty());
-        Ok(write_record(&make_record(&view, &self.params, stopped)))
+        self.view()?;
+        let view = self
+            .view_cache
+            .as_ref()
+            .ok_or_else(|| JsError::new("derived view missing"))?;
+        Ok(write_record(&make_record(view, &self.params, stopped)))
     }
 
     /// Refills the geometry buffers from the network so far; returns the entry count.
@@ -320,7 +339,15 @@ impl Simulation {
         }
     }
 
-    fn view(&self) -> Result<RunView, JsError> {
-        RunView::new(self.network(), &self.params).map_err(|error| JsError::new(&error.to_string()))
+    /// The derived view of the network as it stands, computed once per change of the network.
+    fn view(&mut self) -> Result<&RunView, JsError> {
+        if self.view_cache.is_none() {
+            let view = RunView::new(self.network(), &self.params)
+                .map_err(|error| JsError::new(&error.to_string()))?;
+            self.view_cache = Some(view);
+        }
+        self.view_cache
+            .as_ref()
+            .ok_or_else(|| JsError::new("derived view missing"))
     }
 }
