@@ -226,7 +226,7 @@ export class NetworkView {
     ctx.stroke();
     ctx.fillStyle = '#1d2a24';
     ctx.font = `${12 * ratio}px system-ui, sans-serif`;
-    ctx.fillText(`${formatLength(length)} ${this.frame.units}`, x, y - 8 * ratio);
+    ctx.fillText(`${fourDigits(length)} ${this.frame.units}`, x, y - 8 * ratio);
   }
 
   /// The segment nearest to CSS point (cx, cy) within `reach` CSS pixels, or -1.
@@ -260,8 +260,8 @@ export class NetworkView {
   }
 }
 
-/// Up to four significant digits without trailing zeros.
-export function formatLength(value) {
+/// Up to four significant digits without trailing zeros (exponent form outside 1e-3 .. 1e5).
+export function fourDigits(value) {
   if (value === 0) return '0';
   if (Math.abs(value) >= 1e5 || Math.abs(value) < 1e-3) return value.toExponential(2);
   return String(Number(value.toPrecision(4)));

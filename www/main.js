@@ -2,7 +2,7 @@
 // readings, exports and the run link in the URL fragment together. Holds no simulation logic:
 // every parameter check, link and measurement comes from the core through pkg/.
 import init, * as core from './pkg/ramulus_web.js';
-import { NetworkView } from './draw.js';
+import { fourDigits, NetworkView } from './draw.js';
 import { ParameterForm } from './form.js';
 import { download, forgetRecord, keepRecord, keptRecord, renderPng } from './keep.js';
 import { clearReadings, showReadings } from './readings.js';
@@ -409,17 +409,13 @@ function showProbe(event) {
   const units = state.frame.units;
   probe.textContent = [
     `Strahler order ${g.orders[index]}`,
-    `flow ${significant(g.flows[index])} ${units}²`,
-    `width ${significant(g.widths[index])} ${units}`,
-    `length ${significant(g.lengths[index])} ${units}`,
+    `flow ${fourDigits(g.flows[index])} ${units}²`,
+    `width ${fourDigits(g.widths[index])} ${units}`,
+    `length ${fourDigits(g.lengths[index])} ${units}`,
   ].join('\n');
   probe.style.left = `${Math.min(x + 14, rect.width - 170)}px`;
   probe.style.top = `${Math.min(y + 14, rect.height - 80)}px`;
   probe.hidden = false;
-}
-
-function significant(value) {
-  return Number(value.toPrecision(4)).toString();
 }
 
 // ---- keep and share -------------------------------------------------------------------------
