@@ -2,6 +2,7 @@
 //! scaling between sizes), measured with a counting global allocator. Prints figures; it
 //! never fails on slowness.
 
+use ramulus_core::params::{CostWeights, Domain, RunControl};
 use std::alloc::{GlobalAlloc, Layout, System};
 use std::sync::atomic::{AtomicUsize, Ordering};
 use std::time::Instant;
@@ -65,21 +66,30 @@ fn measure(case: &Case) -> Result<Figures, CliError> {
 /// Cheapest-first pure length on a full square lattice (Prim's minimum spanning tree).
 fn pure_length(side: u32) -> Params {
     Params {
-        width: side,
-        height: side,
-        cell_size: 1.0,
-        roots: vec![Root {
-            x: side / 2,
-            y: side / 2,
-            outflow: [0.0, 1.0],
-        }],
-        cells: side as u64 * side as u64,
-        radius: 1.5,
-        jitter: 0.0,
-        w_turn: 0.0,
-        w_flow: 0.0,
-        w_path: 0.0,
-        joining: Joining::Cheapest,
+        domain: Domain {
+            width: side,
+            height: side,
+            cell_size: 1.0,
+            roots: vec![Root {
+                x: side / 2,
+                y: side / 2,
+                outflow: [0.0, 1.0],
+            }],
+            jitter: 0.0,
+            ..Domain::default()
+        },
+        costs: CostWeights {
+            w_turn: 0.0,
+            w_flow: 0.0,
+            w_path: 0.0,
+            ..CostWeights::default()
+        },
+        run: RunControl {
+            cells: side as u64 * side as u64,
+            radius: 1.5,
+            joining: Joining::Cheapest,
+            ..RunControl::default()
+        },
         ..Params::default()
     }
 }
@@ -88,24 +98,33 @@ fn pure_length(side: u32) -> Params {
 fn full_model(cells: u64) -> Params {
     let side = ((cells as f64 * 1.6).sqrt() as u32).max(20);
     Params {
-        width: side,
-        height: side,
-        cell_size: 0.15,
-        roots: vec![Root {
-            x: side / 2,
-            y: side / 2,
-            outflow: [0.0, 1.0],
-        }],
-        cells,
-        radius: 4.0,
-        jitter: 0.4,
-        w_len: 1.0,
-        w_turn: 1.0,
-        w_flow: 0.5,
-        alpha: 0.5,
-        w_path: 0.05,
-        joining: Joining::Weighted,
-        temperature: 0.5,
+        domain: Domain {
+            width: side,
+            height: side,
+            cell_size: 0.15,
+            roots: vec![Root {
+                x: side / 2,
+                y: side / 2,
+                outflow: [0.0, 1.0],
+            }],
+            jitter: 0.4,
+            ..Domain::default()
+        },
+        costs: CostWeights {
+            w_len: 1.0,
+            w_turn: 1.0,
+            w_flow: 0.5,
+            alpha: 0.5,
+            w_path: 0.05,
+            ..CostWeights::default()
+        },
+        run: RunControl {
+            cells,
+            radius: 4.0,
+            joining: Joining::Weighted,
+            temperature: 0.5,
+            ..RunControl::default()
+        },
         ..Params::default()
     }
 }

@@ -49,9 +49,9 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
             .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))?;
         let mask = mask_from_bytes(&bytes)
             .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
-        params.width = mask.width;
-        params.height = mask.height;
-        params.mask = Some(mask);
+        params.domain.width = mask.width;
+        params.domain.height = mask.height;
+        params.domain.mask = Some(mask);
         params
             .validate()
             .map_err(|error| CliError::Failed(format!("with mask {path}: {error}")))?;
@@ -86,7 +86,7 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
             "nodes": view.network.nodes.len(),
             "segments": view.network.segment_count(),
             "total_length": view.metrics.total_length,
-            "units": params.units,
+            "units": params.domain.units,
             "stopped": stopped.name(),
             "metrics": view.metrics,
             "caution": params.is_site().then_some(SITE_CAUTION),
@@ -101,7 +101,7 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
             view.network.segment_count(),
             view.digest
         );
-        print_table(&view.metrics, &params.units);
+        print_table(&view.metrics, &params.domain.units);
         if params.is_site() {
             say!("\nCAUTION: {SITE_CAUTION}");
         }
@@ -130,7 +130,10 @@ pub fn measure_record(path: &str, as_json: bool) -> Result<(), CliError> {
     let text = read_text(path)?;
     let (record, network) =
         read_record(&text).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
-    let alpha = record.params.as_ref().map_or(0.5, |params| params.alpha);
+    let alpha = record
+        .params
+        .as_ref()
+        .map_or(0.5, |params| params.costs.alpha);
     let metrics = ramulus_core::metrics::measure(&network, alpha)
         .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
     let digest = ramulus_core::digest::digest_hex(&network);

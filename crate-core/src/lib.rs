@@ -22,4 +22,4 @@ pub mod svg;
 
 pub use growth::{Growth, StepReport, StopReason};
 pub use network::{Children, Network, Node, Topology, NO_PARENT};
-pub use params::{Joining, ParamError, Params, Root};
+pub use params::{CostWeights, Domain, Joining, ParamError, Params, Root, RunControl, Widths};

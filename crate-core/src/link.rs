@@ -11,6 +11,7 @@
 //! `Params::default` later never changes what an old link grows.
 
 use crate::mask::MaskGrid;
+use crate::params::{CostWeights, Domain, RunControl, Widths};
 use crate::params::{Joining, Params, Root};
 use crate::schema::fields;
 
@@ -115,52 +116,61 @@ pub fn decode_link(text: &str) -> LinkRead {
 /// The defaults of format version 1, frozen: keys missing from a version 1 link take these.
 pub fn version_1_defaults() -> Params {
     Params {
-        width: 120,
-        height: 120,
-        cell_size: 0.15,
-        units: "mm".to_string(),
-        roots: vec![Root {
-            x: 60,
-            y: 100,
-            outflow: [0.0, 1.0],
-        }],
-        seed: 1,
-        cells: 10_000,
-        radius: 4.0,
-        jitter: 0.35,
-        w_len: 1.0,
-        w_turn: 1.0,
-        w_flow: 0.5,
-        alpha: 0.5,
-        w_path: 0.0,
-        w_grade: 0.0,
-        joining: Joining::Weighted,
-        temperature: 0.5,
-        threshold: None,
-        attach_to_segments: false,
-        gamma: 3.0,
-        tip_width: 0.12,
-        branch_angle: None,
-        elongation: 1.0,
-        rear_cost: 1.0,
-        grade_x: 0.0,
-        grade_y: 0.0,
-        runoff: 1.0,
-        refresh: 0.05,
-        outline: None,
-        obstacles: Vec::new(),
-        mask: None,
+        domain: Domain {
+            width: 120,
+            height: 120,
+            cell_size: 0.15,
+            units: "mm".to_string(),
+            roots: vec![Root {
+                x: 60,
+                y: 100,
+                outflow: [0.0, 1.0],
+            }],
+            jitter: 0.35,
+            grade_x: 0.0,
+            grade_y: 0.0,
+            runoff: 1.0,
+            outline: None,
+            obstacles: Vec::new(),
+            mask: None,
+        },
+        costs: CostWeights {
+            w_len: 1.0,
+            w_turn: 1.0,
+            w_flow: 0.5,
+            alpha: 0.5,
+            w_path: 0.0,
+            w_grade: 0.0,
+            branch_angle: None,
+            elongation: 1.0,
+            rear_cost: 1.0,
+        },
+        run: RunControl {
+            seed: 1,
+            cells: 10_000,
+            radius: 4.0,
+            joining: Joining::Weighted,
+            temperature: 0.5,
+            threshold: None,
+            attach_to_segments: false,
+            refresh: 0.05,
+        },
+        widths: Widths {
+            gamma: 3.0,
+            tip_width: 0.12,
+        },
     }
 }
 
 /// One field as link text; `None` for an unknown key.
 pub fn field_text(params: &Params, key: &str) -> Option<String> {
     let text = match key {
-        "width" => params.width.to_string(),
-        "height" => params.height.to_string(),
-        "cell_size" => number(params.cell_size),
-        "units" => params.units.clone(),
+        "width" => params.domain.width.to_string(),
+        "height" => params.domain.height.to_string(),
+        "cell_size" => number(params.domain.cell_size),
+        "units" => params.domain.units.clone(),
         "roots" => params
+            .domain
             .roots
             .iter()
             .map(|root| {
@@ -174,40 +184,41 @@ pub fn field_text(params: &Params, key: &str) -> Option<String> {
             })
             .collect::<Vec<_>>()
             .join(";"),
-        "seed" => params.seed.to_string(),
-        "cells" => params.cells.to_string(),
-        "radius" => number(params.radius),
-        "jitter" => number(params.jitter),
-        "w_len" => number(params.w_len),
-        "w_turn" => number(params.w_turn),
-        "w_flow" => number(params.w_flow),
-        "alpha" => number(params.alpha),
-        "w_path" => number(params.w_path),
-        "w_grade" => number(params.w_grade),
-        "joining" => joining_name(params.joining).to_string(),
-        "temperature" => number(params.temperature),
-        "threshold" => optional(params.threshold),
-        "attach_to_segments" => params.attach_to_segments.to_string(),
-        "gamma" => number(params.gamma),
-        "tip_width" => number(params.tip_width),
-        "branch_angle" => optional(params.branch_angle),
-        "elongation" => number(params.elongation),
-        "rear_cost" => number(params.rear_cost),
-        "grade_x" => number(params.grade_x),
-        "grade_y" => number(params.grade_y),
-        "runoff" => number(params.runoff),
-        "refresh" => number(params.refresh),
-        "outline" => match &params.outline {
+        "seed" => params.run.seed.to_string(),
+        "cells" => params.run.cells.to_string(),
+        "radius" => number(params.run.radius),
+        "jitter" => number(params.domain.jitter),
+        "w_len" => number(params.costs.w_len),
+        "w_turn" => number(params.costs.w_turn),
+        "w_flow" => number(params.costs.w_flow),
+        "alpha" => number(params.costs.alpha),
+        "w_path" => number(params.costs.w_path),
+        "w_grade" => number(params.costs.w_grade),
+        "joining" => joining_name(params.run.joining).to_string(),
+        "temperature" => number(params.run.temperature),
+        "threshold" => optional(params.run.threshold),
+        "attach_to_segments" => params.run.attach_to_segments.to_string(),
+        "gamma" => number(params.widths.gamma),
+        "tip_width" => number(params.widths.tip_width),
+        "branch_angle" => optional(params.costs.branch_angle),
+        "elongation" => number(params.costs.elongation),
+        "rear_cost" => number(params.costs.rear_cost),
+        "grade_x" => number(params.domain.grade_x),
+        "grade_y" => number(params.domain.grade_y),
+        "runoff" => number(params.domain.runoff),
+        "refresh" => number(params.run.refresh),
+        "outline" => match &params.domain.outline {
             Some(points) => polygon_text(points),
             None => "none".to_string(),
         },
         "obstacles" => params
+            .domain
             .obstacles
             .iter()
             .map(|polygon| polygon_text(polygon))
             .collect::<Vec<_>>()
             .join("~"),
-        "mask" => match &params.mask {
+        "mask" => match &params.domain.mask {
             Some(mask) => format!(
                 "{}x{}:{}",
                 mask.width,
@@ -230,49 +241,49 @@ pub fn field_text(params: &Params, key: &str) -> Option<String> {
 pub fn set_field(params: &mut Params, key: &str, text: &str) -> Result<(), String> {
     let text = text.trim();
     match key {
-        "width" => params.width = whole(text)?,
-        "height" => params.height = whole(text)?,
-        "cell_size" => params.cell_size = real(text)?,
-        "units" => params.units = text.to_string(),
-        "roots" => params.roots = roots(text)?,
-        "seed" => params.seed = whole(text)?,
-        "cells" => params.cells = whole(text)?,
-        "radius" => params.radius = real(text)?,
-        "jitter" => params.jitter = real(text)?,
-        "w_len" => params.w_len = real(text)?,
-        "w_turn" => params.w_turn = real(text)?,
-        "w_flow" => params.w_flow = real(text)?,
-        "alpha" => params.alpha = real(text)?,
-        "w_path" => params.w_path = real(text)?,
-        "w_grade" => params.w_grade = real(text)?,
-        "joining" => params.joining = joining(text)?,
-        "temperature" => params.temperature = real(text)?,
-        "threshold" => params.threshold = optional_real(text)?,
-        "attach_to_segments" => params.attach_to_segments = flag(text)?,
-        "gamma" => params.gamma = real(text)?,
-        "tip_width" => params.tip_width = real(text)?,
-        "branch_angle" => params.branch_angle = optional_real(text)?,
-        "elongation" => params.elongation = real(text)?,
-        "rear_cost" => params.rear_cost = real(text)?,
-        "grade_x" => params.grade_x = real(text)?,
-        "grade_y" => params.grade_y = real(text)?,
-        "runoff" => params.runoff = real(text)?,
-        "refresh" => params.refresh = real(text)?,
+        "width" => params.domain.width = whole(text)?,
+        "height" => params.domain.height = whole(text)?,
+        "cell_size" => params.domain.cell_size = real(text)?,
+        "units" => params.domain.units = text.to_string(),
+        "roots" => params.domain.roots = roots(text)?,
+        "seed" => params.run.seed = whole(text)?,
+        "cells" => params.run.cells = whole(text)?,
+        "radius" => params.run.radius = real(text)?,
+        "jitter" => params.domain.jitter = real(text)?,
+        "w_len" => params.costs.w_len = real(text)?,
+        "w_turn" => params.costs.w_turn = real(text)?,
+        "w_flow" => params.costs.w_flow = real(text)?,
+        "alpha" => params.costs.alpha = real(text)?,
+        "w_path" => params.costs.w_path = real(text)?,
+        "w_grade" => params.costs.w_grade = real(text)?,
+        "joining" => params.run.joining = joining(text)?,
+        "temperature" => params.run.temperature = real(text)?,
+        "threshold" => params.run.threshold = optional_real(text)?,
+        "attach_to_segments" => params.run.attach_to_segments = flag(text)?,
+        "gamma" => params.widths.gamma = real(text)?,
+        "tip_width" => params.widths.tip_width = real(text)?,
+        "branch_angle" => params.costs.branch_angle = optional_real(text)?,
+        "elongation" => params.costs.elongation = real(text)?,
+        "rear_cost" => params.costs.rear_cost = real(text)?,
+        "grade_x" => params.domain.grade_x = real(text)?,
+        "grade_y" => params.domain.grade_y = real(text)?,
+        "runoff" => params.domain.runoff = real(text)?,
+        "refresh" => params.run.refresh = real(text)?,
         "outline" => {
-            params.outline = if text == "none" || text.is_empty() {
+            params.domain.outline = if text == "none" || text.is_empty() {
                 None
             } else {
                 Some(polygon(text)?)
             }
         }
         "obstacles" => {
-            params.obstacles = text
+            params.domain.obstacles = text
                 .split('~')
                 .filter(|part| !part.trim().is_empty())
                 .map(polygon)
                 .collect::<Result<_, _>>()?
         }
-        "mask" => params.mask = mask(text)?,
+        "mask" => params.domain.mask = mask(text)?,
         _ => return Err(format!("`{key}` is not a parameter")),
     }
     Ok(())

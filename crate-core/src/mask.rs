@@ -102,16 +102,16 @@ pub fn point_in_polygon(x: f64, y: f64, polygon: &[[f64; 2]]) -> bool {
 /// by the mask (if any), and outside every obstacle. Cell `(i, j)` has its centre at
 /// `(i + 0.5, j + 0.5)` in cell coordinates.
 pub fn allowed_cells(params: &Params) -> Vec<bool> {
-    let width = params.width as usize;
-    let height = params.height as usize;
-    let mut allowed = match params.mask.as_ref().and_then(MaskGrid::to_bits) {
+    let width = params.domain.width as usize;
+    let height = params.domain.height as usize;
+    let mut allowed = match params.domain.mask.as_ref().and_then(MaskGrid::to_bits) {
         Some(bits) => bits,
         None => vec![true; width * height],
     };
-    if let Some(outline) = &params.outline {
+    if let Some(outline) = &params.domain.outline {
         fill_polygon(&mut allowed, width, height, outline, false);
     }
-    for obstacle in &params.obstacles {
+    for obstacle in &params.domain.obstacles {
         fill_polygon(&mut allowed, width, height, obstacle, true);
     }
     allowed

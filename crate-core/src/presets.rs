@@ -2,6 +2,7 @@
 //! from the costs, a leaf that fills a given outline, a drainage site, and the spanning-tree
 //! reference.
 
+use crate::params::{CostWeights, Domain, RunControl, Widths};
 use serde::Serialize;
 
 use crate::params::{Joining, Params, Root};
@@ -58,73 +59,109 @@ pub fn preset(name: &str) -> Option<Params> {
 
 fn leaf_base() -> Params {
     Params {
-        cell_size: 0.15,
-        units: "mm".into(),
-        cells: 80_000,
-        radius: 4.0,
-        jitter: 0.4,
-        w_len: 1.0,
-        w_turn: 1.5,
-        w_flow: 0.1,
-        alpha: 0.5,
-        w_path: 0.1,
-        joining: Joining::Weighted,
-        temperature: 0.5,
+        domain: Domain {
+            cell_size: 0.15,
+            units: "mm".into(),
+            jitter: 0.4,
+            ..Domain::default()
+        },
+        costs: CostWeights {
+            w_len: 1.0,
+            w_turn: 1.5,
+            w_flow: 0.1,
+            alpha: 0.5,
+            w_path: 0.1,
+            ..CostWeights::default()
+        },
+        run: RunControl {
+            cells: 80_000,
+            radius: 4.0,
+            joining: Joining::Weighted,
+            temperature: 0.5,
+            ..RunControl::default()
+        },
         ..Params::default()
     }
 }
 
 fn broad_leaf() -> Params {
     Params {
-        width: 220,
-        height: 300,
-        roots: vec![Root {
-            x: 110,
-            y: 270,
-            outflow: [0.0, 1.0],
-        }],
-        seed: 7,
-        threshold: Some(10.0),
-        elongation: 3.0,
-        rear_cost: 3.0,
-        branch_angle: Some(50.0),
+        domain: Domain {
+            width: 220,
+            height: 300,
+            roots: vec![Root {
+                x: 110,
+                y: 270,
+                outflow: [0.0, 1.0],
+            }],
+            ..leaf_base().domain
+        },
+        costs: CostWeights {
+            elongation: 3.0,
+            rear_cost: 3.0,
+            branch_angle: Some(50.0),
+            ..leaf_base().costs
+        },
+        run: RunControl {
+            seed: 7,
+            threshold: Some(10.0),
+            ..leaf_base().run
+        },
         ..leaf_base()
     }
 }
 
 fn narrow_leaf() -> Params {
     Params {
-        width: 160,
-        height: 340,
-        roots: vec![Root {
-            x: 80,
-            y: 315,
-            outflow: [0.0, 1.0],
-        }],
-        seed: 11,
-        threshold: Some(9.0),
-        elongation: 5.0,
-        rear_cost: 5.0,
-        branch_angle: Some(45.0),
+        domain: Domain {
+            width: 160,
+            height: 340,
+            roots: vec![Root {
+                x: 80,
+                y: 315,
+                outflow: [0.0, 1.0],
+            }],
+            ..leaf_base().domain
+        },
+        costs: CostWeights {
+            elongation: 5.0,
+            rear_cost: 5.0,
+            branch_angle: Some(45.0),
+            ..leaf_base().costs
+        },
+        run: RunControl {
+            seed: 11,
+            threshold: Some(9.0),
+            ..leaf_base().run
+        },
         ..leaf_base()
     }
 }
 
 fn filled_outline() -> Params {
     Params {
-        width: 200,
-        height: 220,
-        roots: vec![Root {
-            x: 100,
-            y: 162,
-            outflow: [0.0, 1.0],
-        }],
-        seed: 3,
-        cells: 200 * 220,
-        w_path: 0.0,
-        w_flow: 0.5,
-        branch_angle: Some(50.0),
-        outline: Some(heart_outline(100.0, 168.0, 92.0, 150.0, 64)),
+        domain: Domain {
+            width: 200,
+            height: 220,
+            roots: vec![Root {
+                x: 100,
+                y: 162,
+                outflow: [0.0, 1.0],
+            }],
+            outline: Some(heart_outline(100.0, 168.0, 92.0, 150.0, 64)),
+            ..leaf_base().domain
+        },
+        costs: CostWeights {
+            w_path: 0.0,
+            w_flow: 0.5,
+            branch_angle: Some(50.0),
+            ..leaf_base().costs
+        },
+        run: RunControl {
+            seed: 3,
+            cells: 200 * 220,
+            ..leaf_base().run
+        },
         ..leaf_base()
     }
 }
@@ -159,56 +196,76 @@ fn heart_outline(
 
 fn drainage_site() -> Params {
     Params {
-        width: 150,
-        height: 100,
-        cell_size: 2.0,
-        units: "m".into(),
-        roots: vec![Root {
-            x: 0,
-            y: 80,
-            outflow: [-1.0, 0.0],
-        }],
-        seed: 5,
-        cells: 15_000,
-        radius: 4.0,
-        jitter: 0.35,
-        w_len: 1.0,
-        w_turn: 0.5,
-        w_flow: 0.5,
-        alpha: 0.6,
-        w_path: 0.0,
-        w_grade: 1.0,
-        grade_x: 0.01,
-        grade_y: -0.004,
-        runoff: 0.6,
-        joining: Joining::Weighted,
-        temperature: 0.5,
-        tip_width: 0.05,
-        obstacles: vec![vec![[60.0, 30.0], [95.0, 30.0], [95.0, 55.0], [60.0, 55.0]]],
-        ..Params::default()
+        domain: Domain {
+            width: 150,
+            height: 100,
+            cell_size: 2.0,
+            units: "m".into(),
+            roots: vec![Root {
+                x: 0,
+                y: 80,
+                outflow: [-1.0, 0.0],
+            }],
+            jitter: 0.35,
+            grade_x: 0.01,
+            grade_y: -0.004,
+            runoff: 0.6,
+            obstacles: vec![vec![[60.0, 30.0], [95.0, 30.0], [95.0, 55.0], [60.0, 55.0]]],
+            ..Domain::default()
+        },
+        costs: CostWeights {
+            w_len: 1.0,
+            w_turn: 0.5,
+            w_flow: 0.5,
+            alpha: 0.6,
+            w_path: 0.0,
+            w_grade: 1.0,
+            ..CostWeights::default()
+        },
+        run: RunControl {
+            seed: 5,
+            cells: 15_000,
+            radius: 4.0,
+            joining: Joining::Weighted,
+            temperature: 0.5,
+            ..RunControl::default()
+        },
+        widths: Widths {
+            tip_width: 0.05,
+            ..Widths::default()
+        },
     }
 }
 
 fn spanning_tree() -> Params {
     Params {
-        width: 80,
-        height: 80,
-        cell_size: 1.0,
-        units: "mm".into(),
-        roots: vec![Root {
-            x: 40,
-            y: 40,
-            outflow: [0.0, 1.0],
-        }],
-        seed: 1,
-        cells: 6400,
-        radius: 1.5,
-        jitter: 0.0,
-        w_len: 1.0,
-        w_turn: 0.0,
-        w_flow: 0.0,
-        w_path: 0.0,
-        joining: Joining::Cheapest,
+        domain: Domain {
+            width: 80,
+            height: 80,
+            cell_size: 1.0,
+            units: "mm".into(),
+            roots: vec![Root {
+                x: 40,
+                y: 40,
+                outflow: [0.0, 1.0],
+            }],
+            jitter: 0.0,
+            ..Domain::default()
+        },
+        costs: CostWeights {
+            w_len: 1.0,
+            w_turn: 0.0,
+            w_flow: 0.0,
+            w_path: 0.0,
+            ..CostWeights::default()
+        },
+        run: RunControl {
+            seed: 1,
+            cells: 6400,
+            radius: 1.5,
+            joining: Joining::Cheapest,
+            ..RunControl::default()
+        },
         ..Params::default()
     }
 }

@@ -29,7 +29,7 @@ impl RunView {
         let topology = network.topology()?;
         let rule = width_rule(params);
         let table = SegmentTable::compute(&network, &topology, rule);
-        let metrics = measure_with(&network, &topology, &table.order, params.alpha);
+        let metrics = measure_with(&network, &topology, &table.order, params.costs.alpha);
         let digest = digest_hex(&network);
         Ok(RunView {
             network,
@@ -44,17 +44,17 @@ impl RunView {
     /// sites, a two-cell margin.
     pub fn svg(&self, params: &Params, colour: Colouring) -> String {
         let metadata =
-            serde_json::json!({ "params": params, "seed": params.seed, "digest": self.digest });
+            serde_json::json!({ "params": params, "seed": params.run.seed, "digest": self.digest });
         let options = SvgOptions {
             colour,
             title: format!(
                 "Ramulus network, seed {}, digest {}",
-                params.seed, self.digest
+                params.run.seed, self.digest
             ),
             metadata_json: metadata.to_string(),
             digest: self.digest.clone(),
             caution: params.is_site().then(|| SITE_CAUTION.to_string()),
-            margin: params.cell_size * 2.0,
+            margin: params.domain.cell_size * 2.0,
         };
         render_svg(&self.network, &self.table, &options)
     }
@@ -64,9 +64,9 @@ impl RunView {
 /// grows as flow^(1/gamma).
 pub fn width_rule(params: &Params) -> WidthRule {
     WidthRule {
-        gamma: params.gamma,
-        base_width: params.tip_width * params.cell_size,
-        reference_flow: params.runoff * params.cell_size * params.cell_size,
+        gamma: params.widths.gamma,
+        base_width: params.widths.tip_width * params.domain.cell_size,
+        reference_flow: params.domain.runoff * params.domain.cell_size * params.domain.cell_size,
     }
 }
 

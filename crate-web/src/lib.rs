@@ -88,13 +88,13 @@ pub fn set_link_mask(link: &str, image: &[u8]) -> String {
         Ok(mask) => mask,
         Err(error) => return field_error("mask", &error.to_string()),
     };
-    params.width = mask.width;
-    params.height = mask.height;
-    params.mask = Some(mask);
+    params.domain.width = mask.width;
+    params.domain.height = mask.height;
+    params.domain.mask = Some(mask);
     if let Err(error) = params.validate() {
         let message = format!(
             "with this {} x {} image, {} = {} is not allowed: {}",
-            params.width, params.height, error.key, error.value, error.allowed
+            params.domain.width, params.domain.height, error.key, error.value, error.allowed
         );
         return field_error(&error.key, &message);
     }
@@ -180,7 +180,10 @@ mod tests {
             serde_json::from_str(&set_link_field(&link, "alpha", "0.25")).unwrap();
         assert_eq!(out["fields"]["alpha"], "0.25");
         assert_eq!(
-            decode_link(out["link"].as_str().unwrap()).params.alpha,
+            decode_link(out["link"].as_str().unwrap())
+                .params
+                .costs
+                .alpha,
             0.25
         );
     }

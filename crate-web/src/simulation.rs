@@ -6,6 +6,7 @@ use ramulus_core::growth::Growth;
 use ramulus_core::link::{decode_link, encode_link};
 use ramulus_core::metrics::{metrics_csv, metrics_table};
 use ramulus_core::network::Network;
+use ramulus_core::params::Domain;
 use ramulus_core::params::Params;
 use ramulus_core::record::{make_record, read_record, write_record};
 use ramulus_core::run::{width_rule, RunView, SITE_CAUTION};
@@ -69,11 +70,14 @@ impl Simulation {
             }
             None => {
                 let params = Params {
-                    units: network.units.clone(),
-                    cell_size: if network.cell_size > 0.0 {
-                        network.cell_size
-                    } else {
-                        1.0
+                    domain: Domain {
+                        units: network.units.clone(),
+                        cell_size: if network.cell_size > 0.0 {
+                            network.cell_size
+                        } else {
+                            1.0
+                        },
+                        ..Domain::default()
                     },
                     ..Params::default()
                 };
@@ -142,7 +146,7 @@ impl Simulation {
     /// The cell budget.
     pub fn budget(&self) -> f64 {
         match &self.source {
-            Source::Growing(_) => self.params.cells as f64,
+            Source::Growing(_) => self.params.run.cells as f64,
             Source::Fixed(network) => network.nodes.len() as f64,
         }
     }
@@ -175,8 +179,8 @@ impl Simulation {
     pub fn frame_json(&self) -> String {
         let (width, height) = match &self.source {
             Source::Growing(_) => (
-                self.params.width as f64 * self.params.cell_size,
-                self.params.height as f64 * self.params.cell_size,
+                self.params.domain.width as f64 * self.params.domain.cell_size,
+                self.params.domain.height as f64 * self.params.domain.cell_size,
             ),
             Source::Fixed(network) => {
                 network.nodes.iter().fold((0.0f64, 0.0f64), |(w, h), node| {
@@ -187,8 +191,8 @@ impl Simulation {
         serde_json::json!({
             "width": width,
             "height": height,
-            "units": self.params.units,
-            "cell_size": self.params.cell_size,
+            "units": self.params.domain.units,
+            "cell_size": self.params.domain.cell_size,
             "site": self.params.is_site(),
         })
         .to_string()
@@ -202,14 +206,14 @@ impl Simulation {
 
     /// Metrics as labelled rows `[[label, value, unit], ...]` (four significant digits).
     pub fn metrics_rows_json(&mut self) -> Result<String, JsError> {
-        let units = self.params.units.clone();
+        let units = self.params.domain.units.clone();
         let rows = metrics_table(&self.view()?.metrics, &units);
         serde_json::to_string(&rows).map_err(|error| JsError::new(&error.to_string()))
     }
 
     /// Metrics as CSV at full precision.
     pub fn metrics_csv(&mut self) -> Result<String, JsError> {
-        let units = self.params.units.clone();
+        let units = self.params.domain.units.clone();
         let caution = self.params.is_site().then_some(SITE_CAUTION);
         Ok(metrics_csv(&self.view()?.metrics, &units, caution))
     }

@@ -7,6 +7,7 @@ use ramulus_core::digest::digest_hex;
 use ramulus_core::growth::Growth;
 use ramulus_core::mask::{allowed_cells, MaskGrid};
 use ramulus_core::network::{Network, NO_PARENT};
+use ramulus_core::params::{CostWeights, Domain, RunControl};
 use ramulus_core::params::{Joining, Params, Root};
 use ramulus_core::record::{make_record, read_record, write_record};
 use ramulus_core::run::RunView;
@@ -88,32 +89,41 @@ fn valid_params() -> impl Strategy<Value = Params> {
             // The budget counts the roots, so it must hold them (fewer is a parameter error).
             let cells = cells.max(unique.len() as u64);
             Params {
-                width,
-                height,
-                cell_size: 0.2,
-                roots: unique,
-                seed,
-                cells,
-                radius,
-                jitter,
-                w_len,
-                w_turn,
-                w_flow,
-                alpha,
-                w_path,
-                w_grade,
-                joining,
-                temperature,
-                threshold,
-                attach_to_segments: attach,
-                branch_angle,
-                elongation,
-                rear_cost,
-                grade_x,
-                grade_y,
-                runoff,
-                refresh,
-                mask,
+                domain: Domain {
+                    width,
+                    height,
+                    cell_size: 0.2,
+                    roots: unique,
+                    jitter,
+                    grade_x,
+                    grade_y,
+                    runoff,
+                    mask,
+                    ..Domain::default()
+                },
+                costs: CostWeights {
+                    w_len,
+                    w_turn,
+                    w_flow,
+                    alpha,
+                    w_path,
+                    w_grade,
+                    branch_angle,
+                    elongation,
+                    rear_cost,
+                    ..CostWeights::default()
+                },
+                run: RunControl {
+                    seed,
+                    cells,
+                    radius,
+                    joining,
+                    temperature,
+                    threshold,
+                    attach_to_segments: attach,
+                    refresh,
+                    ..RunControl::default()
+                },
                 ..Params::default()
             }
         })
@@ -153,18 +163,18 @@ proptest! {
         let network = growth.network();
         let topology = network.topology().expect("grown network is a forest");
         let count = network.nodes.len();
-        let h = params.cell_size;
+        let h = params.domain.cell_size;
 
         // Budget: never more cells than `cells`; stopping for the budget means reaching it.
-        prop_assert!(growth.cell_count() <= params.cells);
+        prop_assert!(growth.cell_count() <= params.run.cells);
         if stopped == ramulus_core::StopReason::Budget {
-            prop_assert_eq!(growth.cell_count(), params.cells);
+            prop_assert_eq!(growth.cell_count(), params.run.cells);
         }
 
         // Roots: exactly the configured ones, in order, each on its cell.
         let roots: Vec<usize> = (0..count).filter(|&i| network.nodes[i].parent == NO_PARENT).collect();
-        prop_assert_eq!(roots.len(), params.roots.len());
-        for (node, root) in roots.iter().zip(&params.roots) {
+        prop_assert_eq!(roots.len(), params.domain.roots.len());
+        for (node, root) in roots.iter().zip(&params.domain.roots) {
             let n = network.nodes[*node];
             prop_assert_eq!(((n.x / h).floor() as u32, (n.y / h).floor() as u32), (root.x, root.y));
         }
@@ -182,7 +192,7 @@ proptest! {
         let allowed = allowed_cells(&params);
         let mut taken = vec![false; allowed.len()];
         let mut cell_nodes = 0u64;
-        let cell_weight = params.runoff * h * h;
+        let cell_weight = params.domain.runoff * h * h;
         for node in &network.nodes {
             if node.weight == 0.0 {
                 continue;
@@ -192,8 +202,8 @@ proptest! {
             let column = (node.x / h).floor();
             let row = (node.y / h).floor();
             prop_assert!(column >= 0.0 && row >= 0.0);
-            prop_assert!((column as u32) < params.width && (row as u32) < params.height);
-            let cell = row as usize * params.width as usize + column as usize;
+            prop_assert!((column as u32) < params.domain.width && (row as u32) < params.domain.height);
+            let cell = row as usize * params.domain.width as usize + column as usize;
             prop_assert!(allowed[cell], "cell node in a blocked cell ({}, {})", column, row);
             prop_assert!(!taken[cell], "two cell nodes in cell ({}, {})", column, row);
             taken[cell] = true;
@@ -203,7 +213,7 @@ proptest! {
         for &cell in &network.cells.occupied {
             prop_assert!(taken[cell as usize], "occupied cell {} holds no cell node", cell);
         }
-        if !params.attach_to_segments {
+        if !params.run.attach_to_segments {
             prop_assert_eq!(count as u64, growth.cell_count());
         }
 

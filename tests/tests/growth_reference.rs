@@ -9,6 +9,7 @@ use petgraph::visit::Bfs;
 use ramulus_core::growth::Growth;
 use ramulus_core::mask::{allowed_cells, MaskGrid};
 use ramulus_core::network::{Network, NO_PARENT};
+use ramulus_core::params::{CostWeights, Domain, RunControl, Widths};
 use ramulus_core::params::{Joining, Params, Root};
 use ramulus_core::run::RunView;
 
@@ -68,22 +69,31 @@ impl SplitMix {
 /// Pure-length, cheapest-first parameters without jitter: the engine's Prim configuration.
 fn prim_params(width: u32, height: u32, radius: f64, roots: Vec<Root>) -> Params {
     Params {
-        width,
-        height,
-        cell_size: 0.25,
-        roots,
-        cells: width as u64 * height as u64,
-        radius,
-        jitter: 0.0,
-        w_len: 1.0,
-        w_turn: 0.0,
-        w_flow: 0.0,
-        w_path: 0.0,
-        w_grade: 0.0,
-        joining: Joining::Cheapest,
-        threshold: None,
-        attach_to_segments: false,
-        branch_angle: None,
+        domain: Domain {
+            width,
+            height,
+            cell_size: 0.25,
+            roots,
+            jitter: 0.0,
+            ..Domain::default()
+        },
+        costs: CostWeights {
+            w_len: 1.0,
+            w_turn: 0.0,
+            w_flow: 0.0,
+            w_path: 0.0,
+            w_grade: 0.0,
+            branch_angle: None,
+            ..CostWeights::default()
+        },
+        run: RunControl {
+            cells: width as u64 * height as u64,
+            radius,
+            joining: Joining::Cheapest,
+            threshold: None,
+            attach_to_segments: false,
+            ..RunControl::default()
+        },
         ..Params::default()
     }
 }
@@ -120,8 +130,8 @@ fn scattered_mask(width: u32, height: u32, density: f64, seed: u64, roots: &[Roo
 /// et al., Introduction to Algorithms, 3rd ed., ch. 23).
 fn reference_spanning_forest(params: &Params) -> (f64, usize, usize) {
     let allowed = allowed_cells(params);
-    let width = params.width as i64;
-    let height = params.height as i64;
+    let width = params.domain.width as i64;
+    let height = params.domain.height as i64;
     let mut graph = UnGraph::<(), f64>::new_undirected();
     let mut index_of = vec![None; allowed.len()];
     for (cell, &ok) in allowed.iter().enumerate() {
@@ -129,8 +139,8 @@ fn reference_spanning_forest(params: &Params) -> (f64, usize, usize) {
             index_of[cell] = Some(graph.add_node(()));
         }
     }
-    let reach = params.radius.floor() as i64;
-    let squared = params.radius * params.radius;
+    let reach = params.run.radius.floor() as i64;
+    let squared = params.run.radius * params.run.radius;
     for row in 0..height {
         for column in 0..width {
             let Some(from) = index_of[(row * width + column) as usize] else {
@@ -150,7 +160,8 @@ fn reference_spanning_forest(params: &Params) -> (f64, usize, usize) {
                         continue;
                     }
                     if let Some(to) = index_of[(y * width + x) as usize] {
-                        let distance = ((dx * dx + dy * dy) as f64).sqrt() * params.cell_size;
+                        let distance =
+                            ((dx * dx + dy * dy) as f64).sqrt() * params.domain.cell_size;
                         graph.add_edge(from, to, distance);
                     }
                 }
@@ -158,6 +169,7 @@ fn reference_spanning_forest(params: &Params) -> (f64, usize, usize) {
         }
     }
     let root_nodes: Vec<NodeIndex> = params
+        .domain
         .roots
         .iter()
         .map(|root| {
@@ -213,7 +225,7 @@ fn check_prim(label: &str, params: &Params) -> bool {
     // A tree on n vertices has n - 1 edges; a forest of k roots has n - k.
     assert_eq!(
         view.network.segment_count(),
-        expected_cells - params.roots.len(),
+        expected_cells - params.domain.roots.len(),
         "{label}: segment count"
     );
     expected_cells < allowed
@@ -234,9 +246,15 @@ fn prim_on_scattered_masks_matches_minimum_spanning_tree() {
                 let roots = vec![root_at(width / 3, height / 2)];
                 let density = 0.55 + 0.1 * (mask_seed % 3) as f64;
                 let mask = scattered_mask(width, height, density, mask_seed, &roots);
-                let params = Params {
-                    mask: Some(mask),
-                    ..prim_params(width, height, radius, roots)
+                let params = {
+                    let base = prim_params(width, height, radius, roots);
+                    Params {
+                        domain: Domain {
+                            mask: Some(mask),
+                            ..base.domain
+                        },
+                        ..base
+                    }
                 };
                 if check_prim(
                     &format!("{width}x{height} radius {radius} mask seed {mask_seed}"),
@@ -263,23 +281,35 @@ fn prim_on_scattered_masks_matches_minimum_spanning_tree() {
 fn prim_around_obstacles_matches_minimum_spanning_tree() {
     for &radius in &[1.0, 1.5, 2.5] {
         let roots = vec![root_at(2, 17)];
-        let params = Params {
-            mask: Some(scattered_mask(30, 20, 0.6, 71, &roots)),
-            obstacles: vec![
-                vec![[5.0, 2.0], [12.0, 2.0], [12.0, 15.0], [5.0, 15.0]],
-                vec![[16.0, 8.0], [26.0, 4.0], [22.0, 19.5]],
-            ],
-            outline: Some(vec![[0.0, 0.0], [30.0, 0.0], [30.0, 20.0], [0.0, 20.0]]),
-            ..prim_params(30, 20, radius, roots)
+        let params = {
+            let base = prim_params(30, 20, radius, roots.clone());
+            Params {
+                domain: Domain {
+                    mask: Some(scattered_mask(30, 20, 0.6, 71, &roots)),
+                    obstacles: vec![
+                        vec![[5.0, 2.0], [12.0, 2.0], [12.0, 15.0], [5.0, 15.0]],
+                        vec![[16.0, 8.0], [26.0, 4.0], [22.0, 19.5]],
+                    ],
+                    outline: Some(vec![[0.0, 0.0], [30.0, 0.0], [30.0, 20.0], [0.0, 20.0]]),
+                    ..base.domain
+                },
+                ..base
+            }
         };
         check_prim(&format!("obstacles radius {radius}"), &params);
         // A diagonal outline and a sliver obstacle that the radius-1 rule cannot cross.
         let roots = vec![root_at(20, 30)];
-        let params = Params {
-            mask: Some(scattered_mask(40, 40, 0.7, 93, &roots)),
-            outline: Some(vec![[1.0, 40.0], [20.0, 0.5], [39.0, 40.0]]),
-            obstacles: vec![vec![[8.0, 20.2], [32.0, 20.2], [32.0, 20.8], [8.0, 20.8]]],
-            ..prim_params(40, 40, radius, roots)
+        let params = {
+            let base = prim_params(40, 40, radius, roots.clone());
+            Params {
+                domain: Domain {
+                    mask: Some(scattered_mask(40, 40, 0.7, 93, &roots)),
+                    outline: Some(vec![[1.0, 40.0], [20.0, 0.5], [39.0, 40.0]]),
+                    obstacles: vec![vec![[8.0, 20.2], [32.0, 20.2], [32.0, 20.8], [8.0, 20.8]]],
+                    ..base.domain
+                },
+                ..base
+            }
         };
         let cut_off = check_prim(&format!("triangle radius {radius}"), &params);
         // The sliver blocks row 20 across the whole triangle: only a reach of 2 cells jumps it.
@@ -303,9 +333,15 @@ fn prim_with_several_roots_matches_contracted_minimum_spanning_tree() {
                 root_at(width / 2, height - 1),
             ];
             let mask = scattered_mask(width, height, 0.62, mask_seed, &roots);
-            let params = Params {
-                mask: Some(mask),
-                ..prim_params(width, height, radius, roots)
+            let params = {
+                let base = prim_params(width, height, radius, roots);
+                Params {
+                    domain: Domain {
+                        mask: Some(mask),
+                        ..base.domain
+                    },
+                    ..base
+                }
             };
             check_prim(
                 &format!("{width}x{height} radius {radius} three roots, mask {mask_seed}"),
@@ -319,16 +355,22 @@ fn prim_with_several_roots_matches_contracted_minimum_spanning_tree() {
 /// with radius 1: every cell can only attach to its row neighbour.
 fn row_params(cells: u32, root_column: u32) -> Params {
     Params {
-        width: cells,
-        height: 1,
-        cell_size: 0.5,
-        runoff: 0.8,
-        roots: vec![Root {
-            x: root_column,
-            y: 0,
-            outflow: [-1.0, 0.0],
-        }],
-        alpha: 0.5,
+        domain: Domain {
+            width: cells,
+            height: 1,
+            cell_size: 0.5,
+            runoff: 0.8,
+            roots: vec![Root {
+                x: root_column,
+                y: 0,
+                outflow: [-1.0, 0.0],
+            }],
+            ..prim_params(cells, 1, 1.0, Vec::new()).domain
+        },
+        costs: CostWeights {
+            alpha: 0.5,
+            ..prim_params(cells, 1, 1.0, Vec::new()).costs
+        },
         ..prim_params(cells, 1, 1.0, Vec::new())
     }
 }
@@ -344,8 +386,8 @@ fn flows_on_a_row_match_hand_computation() {
         let params = row_params(n, root_column);
         let (growth, view) = grow(&params);
         assert_eq!(growth.cell_count(), n as u64);
-        let h = params.cell_size;
-        let w = params.runoff * h * h;
+        let h = params.domain.cell_size;
+        let w = params.domain.runoff * h * h;
         let mut expected_cost = 0.0;
         for (index, node) in view.network.nodes.iter().enumerate() {
             let column = (node.x / h).floor() as i64;
@@ -382,7 +424,7 @@ fn flows_on_a_row_match_hand_computation() {
                 steps - 1,
                 "each cell drains to its neighbour towards the root"
             );
-            expected_cost += expected_flow.powf(params.alpha) * h;
+            expected_cost += expected_flow.powf(params.costs.alpha) * h;
         }
         let cost = view.metrics.transport_cost.expect("transport cost defined");
         check_relative("row transport cost, alpha 1/2", cost, expected_cost, 1e-12);
@@ -397,31 +439,55 @@ fn transport_cost_at_alpha_one_is_weighted_path_length() {
     let bases = [
         row_params(10, 3),
         Params {
-            width: 24,
-            height: 18,
-            roots: vec![root_at(12, 17), root_at(3, 2)],
-            seed: 17,
-            cells: 300,
-            alpha: 1.0,
-            attach_to_segments: true,
-            joining: Joining::Weighted,
+            domain: Domain {
+                width: 24,
+                height: 18,
+                roots: vec![root_at(12, 17), root_at(3, 2)],
+                ..Domain::default()
+            },
+            costs: CostWeights {
+                alpha: 1.0,
+                ..CostWeights::default()
+            },
+            run: RunControl {
+                seed: 17,
+                cells: 300,
+                attach_to_segments: true,
+                joining: Joining::Weighted,
+                ..RunControl::default()
+            },
             ..Params::default()
         },
         Params {
-            width: 20,
-            height: 20,
-            seed: 4,
-            cells: 400,
-            alpha: 1.0,
-            w_path: 0.2,
-            roots: vec![root_at(10, 10)],
-            joining: Joining::Uniform,
-            runoff: 0.35,
+            domain: Domain {
+                width: 20,
+                height: 20,
+                roots: vec![root_at(10, 10)],
+                runoff: 0.35,
+                ..Domain::default()
+            },
+            costs: CostWeights {
+                alpha: 1.0,
+                w_path: 0.2,
+                ..CostWeights::default()
+            },
+            run: RunControl {
+                seed: 4,
+                cells: 400,
+                joining: Joining::Uniform,
+                ..RunControl::default()
+            },
             ..Params::default()
         },
     ];
     for base in bases {
-        let params = Params { alpha: 1.0, ..base };
+        let params = Params {
+            costs: CostWeights {
+                alpha: 1.0,
+                ..base.costs
+            },
+            ..base
+        };
         let (_, view) = grow(&params);
         let nodes = &view.network.nodes;
         let mut expected = 0.0;
@@ -455,21 +521,30 @@ fn transport_cost_at_alpha_one_is_weighted_path_length() {
 fn widths_obey_murrays_law_at_junctions() {
     for (gamma, seed) in [(3.0, 2u64), (3.0, 9), (2.0, 5)] {
         let params = Params {
-            width: 40,
-            height: 40,
-            roots: vec![root_at(20, 39)],
-            seed,
-            cells: 900,
-            gamma,
-            attach_to_segments: true,
-            runoff: 0.6,
-            tip_width: 0.2,
-            joining: Joining::Weighted,
+            domain: Domain {
+                width: 40,
+                height: 40,
+                roots: vec![root_at(20, 39)],
+                runoff: 0.6,
+                ..Domain::default()
+            },
+            run: RunControl {
+                seed,
+                cells: 900,
+                attach_to_segments: true,
+                joining: Joining::Weighted,
+                ..RunControl::default()
+            },
+            widths: Widths {
+                gamma,
+                tip_width: 0.2,
+                ..Widths::default()
+            },
             ..Params::default()
         };
         let (_, view) = grow(&params);
-        let base = params.tip_width * params.cell_size;
-        let reference = params.runoff * params.cell_size * params.cell_size;
+        let base = params.widths.tip_width * params.domain.cell_size;
+        let reference = params.domain.runoff * params.domain.cell_size * params.domain.cell_size;
         let mut junctions = 0;
         for (index, node) in view.network.nodes.iter().enumerate() {
             let children = &view.topology.children[index];

@@ -46,7 +46,7 @@ fn leaf_presets_grow_a_sizeable_blade() {
         let cells = view.network.cells.occupied.len();
         // A blade, not a stub: thousands of cells, and within the budget.
         assert!(
-            (5_000..=params.cells as usize).contains(&cells),
+            (5_000..=params.run.cells as usize).contains(&cells),
             "{name}: {cells} cells"
         );
         assert_eq!(
@@ -130,7 +130,7 @@ fn leaf_branching_angles_are_acute_to_right() {
 fn leaf_root_sits_at_the_base() {
     for name in LEAF_PRESETS {
         let (params, view) = grow_preset(name);
-        let root = &params.roots[0];
+        let root = &params.domain.roots[0];
         let width = view.network.cells.width;
         let midline_rows: Vec<u32> = view
             .network
@@ -190,10 +190,10 @@ fn narrow_leaf_is_longer_than_wide() {
 #[test]
 fn drainage_site_keeps_obstacles_empty() {
     let (params, view) = grow_preset("drainage-site");
-    assert!(!params.obstacles.is_empty());
-    let h = params.cell_size;
+    assert!(!params.domain.obstacles.is_empty());
+    let h = params.domain.cell_size;
     let mut blocked_cells = 0;
-    for obstacle in &params.obstacles {
+    for obstacle in &params.domain.obstacles {
         let xs = obstacle.iter().map(|point| point[0]);
         let ys = obstacle.iter().map(|point| point[1]);
         let (x0, x1) = (
@@ -209,8 +209,8 @@ fn drainage_site_keeps_obstacles_empty() {
             let (cx, cy) = (column + 0.5, row + 0.5);
             cx > x0 && cx < x1 && cy > y0 && cy < y1
         };
-        for row in 0..params.height {
-            for column in 0..params.width {
+        for row in 0..params.domain.height {
+            for column in 0..params.domain.width {
                 if inside(column as f64, row as f64) {
                     blocked_cells += 1;
                 }
@@ -226,7 +226,7 @@ fn drainage_site_keeps_obstacles_empty() {
             );
         }
         for &cell in &view.network.cells.occupied {
-            let (column, row) = (cell % params.width, cell / params.width);
+            let (column, row) = (cell % params.domain.width, cell / params.domain.width);
             assert!(
                 !inside(column as f64, row as f64),
                 "obstacle cell ({column}, {row}) is occupied"
@@ -240,7 +240,7 @@ fn drainage_site_keeps_obstacles_empty() {
         .cells
         .occupied
         .iter()
-        .map(|cell| cell % params.width)
+        .map(|cell| cell % params.domain.width)
         .collect();
     assert!(occupied_columns.iter().any(|&column| column < 60));
     assert!(occupied_columns.iter().any(|&column| column >= 95));

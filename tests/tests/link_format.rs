@@ -6,6 +6,7 @@
 use proptest::prelude::*;
 use ramulus_core::link::{decode_link, encode_link, field_text, version_1_defaults};
 use ramulus_core::mask::MaskGrid;
+use ramulus_core::params::{CostWeights, Domain, RunControl};
 use ramulus_core::params::{Joining, Params, Root};
 use ramulus_core::presets::presets;
 use ramulus_core::schema::{fields, FieldKind};
@@ -59,32 +60,41 @@ fn any_params() -> impl Strategy<Value = Params> {
         }
         let to_points = |points: Vec<(f64, f64)>| points.into_iter().map(|(x, y)| [x, y]).collect();
         Params {
-            width,
-            height,
-            cell_size,
-            units: units.to_string(),
-            roots: unique,
-            seed,
-            cells: 500,
-            radius,
-            jitter,
-            w_len: weights.0,
-            w_turn: weights.1,
-            w_flow: weights.2,
-            alpha,
-            threshold,
-            branch_angle,
-            grade_x: grades.0,
-            grade_y: grades.1,
-            joining,
-            attach_to_segments: attach,
-            outline: outline.map(to_points),
-            obstacles: obstacles.into_iter().map(to_points).collect(),
-            mask: with_mask.then(|| MaskGrid {
+            domain: Domain {
                 width,
                 height,
-                runs: vec![3, 1000, 197],
-            }),
+                cell_size,
+                units: units.to_string(),
+                roots: unique,
+                jitter,
+                grade_x: grades.0,
+                grade_y: grades.1,
+                outline: outline.map(to_points),
+                obstacles: obstacles.into_iter().map(to_points).collect(),
+                mask: with_mask.then(|| MaskGrid {
+                    width,
+                    height,
+                    runs: vec![3, 1000, 197],
+                }),
+                ..Domain::default()
+            },
+            costs: CostWeights {
+                w_len: weights.0,
+                w_turn: weights.1,
+                w_flow: weights.2,
+                alpha,
+                branch_angle,
+                ..CostWeights::default()
+            },
+            run: RunControl {
+                seed,
+                cells: 500,
+                radius,
+                threshold,
+                joining,
+                attach_to_segments: attach,
+                ..RunControl::default()
+            },
             ..Params::default()
         }
     })
@@ -101,8 +111,8 @@ proptest! {
         let read = decode_link(&encode_link(&params));
         prop_assert_eq!(&read.problems, &Vec::new());
         prop_assert_eq!(&read.params, &params);
-        prop_assert_eq!(read.params.alpha.to_bits(), params.alpha.to_bits());
-        prop_assert_eq!(read.params.cell_size.to_bits(), params.cell_size.to_bits());
+        prop_assert_eq!(read.params.costs.alpha.to_bits(), params.costs.alpha.to_bits());
+        prop_assert_eq!(read.params.domain.cell_size.to_bits(), params.domain.cell_size.to_bits());
     }
 
     /// Fuzzing: any text, and any valid link with bytes overwritten, reads without panicking
@@ -160,40 +170,52 @@ fn a_hand_written_version_1_link_reads_as_the_format_says() {
     );
     assert!(read.problems.is_empty(), "{:?}", read.problems);
     assert_eq!(read.version, 1);
-    let expected = Params {
-        seed: 42,
-        width: 30,
-        height: 20,
-        cell_size: 0.25,
-        units: "m".into(),
-        roots: vec![
-            Root {
-                x: 3,
-                y: 19,
-                outflow: [0.0, 1.0],
+    let expected = {
+        let base = version_1_defaults();
+        Params {
+            domain: Domain {
+                width: 30,
+                height: 20,
+                cell_size: 0.25,
+                units: "m".into(),
+                roots: vec![
+                    Root {
+                        x: 3,
+                        y: 19,
+                        outflow: [0.0, 1.0],
+                    },
+                    Root {
+                        x: 25,
+                        y: 0,
+                        outflow: [1.0, -1.0],
+                    },
+                ],
+                outline: Some(vec![[0.0, 0.0], [30.0, 0.0], [30.0, 20.0], [0.0, 20.0]]),
+                obstacles: vec![
+                    vec![[10.0, 5.0], [14.0, 5.0], [14.0, 9.0]],
+                    vec![[20.0, 10.0], [22.0, 10.0], [22.0, 12.0]],
+                ],
+                mask: Some(MaskGrid {
+                    width: 30,
+                    height: 20,
+                    runs: vec![0, 590, 10],
+                }),
+                ..base.domain
             },
-            Root {
-                x: 25,
-                y: 0,
-                outflow: [1.0, -1.0],
+            costs: CostWeights {
+                alpha: 0.75,
+                branch_angle: Some(60.0),
+                ..base.costs
             },
-        ],
-        alpha: 0.75,
-        joining: Joining::Cheapest,
-        threshold: None,
-        branch_angle: Some(60.0),
-        outline: Some(vec![[0.0, 0.0], [30.0, 0.0], [30.0, 20.0], [0.0, 20.0]]),
-        obstacles: vec![
-            vec![[10.0, 5.0], [14.0, 5.0], [14.0, 9.0]],
-            vec![[20.0, 10.0], [22.0, 10.0], [22.0, 12.0]],
-        ],
-        attach_to_segments: true,
-        mask: Some(MaskGrid {
-            width: 30,
-            height: 20,
-            runs: vec![0, 590, 10],
-        }),
-        ..version_1_defaults()
+            run: RunControl {
+                seed: 42,
+                joining: Joining::Cheapest,
+                threshold: None,
+                attach_to_segments: true,
+                ..base.run
+            },
+            ..base
+        }
     };
     assert_eq!(read.params, expected);
 }
@@ -262,14 +284,23 @@ fn unknown_fields_versions_and_escapes_are_reported_not_fatal() {
 #[test]
 fn fields_that_do_not_fit_together_are_reset_in_turn() {
     let base = presets()[0].params.clone();
-    assert_eq!((base.roots[0].x, base.height), (110, 300));
+    assert_eq!((base.domain.roots[0].x, base.domain.height), (110, 300));
     let read = decode_link(&replace_field(&encode_link(&base), "width", "100"));
-    assert_eq!((read.params.width, read.params.height), (100, 300));
-    assert_eq!((read.params.roots[0].x, read.params.roots[0].y), (60, 100));
+    assert_eq!(
+        (read.params.domain.width, read.params.domain.height),
+        (100, 300)
+    );
+    assert_eq!(
+        (read.params.domain.roots[0].x, read.params.domain.roots[0].y),
+        (60, 100)
+    );
     assert!(read.problems.iter().any(|problem| problem.key == "roots"));
 
     let read = decode_link(&replace_field(&encode_link(&base), "width", "5"));
-    assert_eq!((read.params.width, read.params.height), (120, 120));
+    assert_eq!(
+        (read.params.domain.width, read.params.domain.height),
+        (120, 120)
+    );
     assert!(read.problems.iter().any(|problem| problem.key == "width"));
     assert!(read.params.validate().is_ok());
 }
@@ -279,14 +310,20 @@ fn fields_that_do_not_fit_together_are_reset_in_turn() {
 #[test]
 fn schema_bounds_agree_with_validation() {
     let base = Params {
-        width: 200,
-        height: 200,
-        cells: 100,
-        roots: vec![Root {
-            x: 0,
-            y: 0,
-            outflow: [0.0, 1.0],
-        }],
+        domain: Domain {
+            width: 200,
+            height: 200,
+            roots: vec![Root {
+                x: 0,
+                y: 0,
+                outflow: [0.0, 1.0],
+            }],
+            ..Domain::default()
+        },
+        run: RunControl {
+            cells: 100,
+            ..RunControl::default()
+        },
         ..Params::default()
     };
     let checked = [

@@ -4,6 +4,7 @@
 
 use ramulus_core::growth::Growth;
 use ramulus_core::mask::MaskGrid;
+use ramulus_core::params::{CostWeights, Domain, RunControl, Widths};
 use ramulus_core::params::{ParamError, Params, Root};
 
 /// The error `Growth::new` gives, failing the test when the parameters are accepted.
@@ -47,44 +48,50 @@ type Setter = fn(&mut Params, f64);
 /// Every float parameter with its documented bounds (doc comments of `Params`).
 fn float_fields() -> Vec<(&'static str, Setter, &'static [&'static str])> {
     vec![
-        ("cell_size", |p, v| p.cell_size = v, &["0"]),
-        ("radius", |p, v| p.radius = v, &["1", "12"]),
-        ("jitter", |p, v| p.jitter = v, &["0", "0.49"]),
-        ("w_len", |p, v| p.w_len = v, &["0"]),
-        ("w_turn", |p, v| p.w_turn = v, &["0"]),
-        ("w_flow", |p, v| p.w_flow = v, &["0"]),
-        ("alpha", |p, v| p.alpha = v, &["0", "1"]),
-        ("w_path", |p, v| p.w_path = v, &["0"]),
-        ("w_grade", |p, v| p.w_grade = v, &["0"]),
-        ("temperature", |p, v| p.temperature = v, &["0"]),
-        ("threshold", |p, v| p.threshold = Some(v), &[]),
-        ("gamma", |p, v| p.gamma = v, &["1", "10"]),
-        ("tip_width", |p, v| p.tip_width = v, &["0"]),
+        ("cell_size", |p, v| p.domain.cell_size = v, &["0"]),
+        ("radius", |p, v| p.run.radius = v, &["1", "12"]),
+        ("jitter", |p, v| p.domain.jitter = v, &["0", "0.49"]),
+        ("w_len", |p, v| p.costs.w_len = v, &["0"]),
+        ("w_turn", |p, v| p.costs.w_turn = v, &["0"]),
+        ("w_flow", |p, v| p.costs.w_flow = v, &["0"]),
+        ("alpha", |p, v| p.costs.alpha = v, &["0", "1"]),
+        ("w_path", |p, v| p.costs.w_path = v, &["0"]),
+        ("w_grade", |p, v| p.costs.w_grade = v, &["0"]),
+        ("temperature", |p, v| p.run.temperature = v, &["0"]),
+        ("threshold", |p, v| p.run.threshold = Some(v), &[]),
+        ("gamma", |p, v| p.widths.gamma = v, &["1", "10"]),
+        ("tip_width", |p, v| p.widths.tip_width = v, &["0"]),
         (
             "branch_angle",
-            |p, v| p.branch_angle = Some(v),
+            |p, v| p.costs.branch_angle = Some(v),
             &["0", "150"],
         ),
-        ("elongation", |p, v| p.elongation = v, &["1", "10"]),
-        ("rear_cost", |p, v| p.rear_cost = v, &["1", "10"]),
-        ("grade_x", |p, v| p.grade_x = v, &["-1", "1"]),
-        ("grade_y", |p, v| p.grade_y = v, &["-1", "1"]),
-        ("runoff", |p, v| p.runoff = v, &["0"]),
-        ("refresh", |p, v| p.refresh = v, &["0.001", "1"]),
+        ("elongation", |p, v| p.costs.elongation = v, &["1", "10"]),
+        ("rear_cost", |p, v| p.costs.rear_cost = v, &["1", "10"]),
+        ("grade_x", |p, v| p.domain.grade_x = v, &["-1", "1"]),
+        ("grade_y", |p, v| p.domain.grade_y = v, &["-1", "1"]),
+        ("runoff", |p, v| p.domain.runoff = v, &["0"]),
+        ("refresh", |p, v| p.run.refresh = v, &["0.001", "1"]),
     ]
 }
 
 /// A small valid run to break one field at a time.
 fn small() -> Params {
     Params {
-        width: 20,
-        height: 20,
-        roots: vec![Root {
-            x: 10,
-            y: 15,
-            outflow: [0.0, 1.0],
-        }],
-        cells: 50,
+        domain: Domain {
+            width: 20,
+            height: 20,
+            roots: vec![Root {
+                x: 10,
+                y: 15,
+                outflow: [0.0, 1.0],
+            }],
+            ..Domain::default()
+        },
+        run: RunControl {
+            cells: 50,
+            ..RunControl::default()
+        },
         ..Params::default()
     }
 }
@@ -117,22 +124,22 @@ fn non_finite_points_and_directions_are_rejected() {
     for value in [f64::NAN, f64::INFINITY, f64::NEG_INFINITY] {
         let text = value_text(value);
         let mut params = small();
-        params.outline = Some(vec![[0.0, 0.0], [20.0, value], [20.0, 20.0]]);
+        params.domain.outline = Some(vec![[0.0, 0.0], [20.0, value], [20.0, 20.0]]);
         check_error(&rejected(&params), "outline[1]", &[text]);
 
         let mut params = small();
-        params.obstacles = vec![
+        params.domain.obstacles = vec![
             vec![[1.0, 1.0], [2.0, 1.0], [2.0, 2.0]],
             vec![[value, 1.0], [2.0, 1.0], [2.0, 2.0]],
         ];
         check_error(&rejected(&params), "obstacles[1][0]", &[text]);
 
         let mut params = small();
-        params.roots[0].outflow = [value, 1.0];
+        params.domain.roots[0].outflow = [value, 1.0];
         check_error(&rejected(&params), "roots[0].outflow", &[text]);
     }
     let mut params = small();
-    params.roots[0].outflow = [0.0, 0.0];
+    params.domain.roots[0].outflow = [0.0, 0.0];
     check_error(&rejected(&params), "roots[0].outflow", &["0"]);
 }
 
@@ -140,11 +147,11 @@ fn non_finite_points_and_directions_are_rejected() {
 #[test]
 fn negative_weights_are_rejected() {
     let weights: [(&str, Setter); 5] = [
-        ("w_len", |p, v| p.w_len = v),
-        ("w_turn", |p, v| p.w_turn = v),
-        ("w_flow", |p, v| p.w_flow = v),
-        ("w_path", |p, v| p.w_path = v),
-        ("w_grade", |p, v| p.w_grade = v),
+        ("w_len", |p, v| p.costs.w_len = v),
+        ("w_turn", |p, v| p.costs.w_turn = v),
+        ("w_flow", |p, v| p.costs.w_flow = v),
+        ("w_path", |p, v| p.costs.w_path = v),
+        ("w_grade", |p, v| p.costs.w_grade = v),
     ];
     for (key, set) in weights {
         let mut params = small();
@@ -161,16 +168,28 @@ fn negative_weights_are_rejected() {
 #[test]
 fn alpha_outside_zero_one_is_rejected() {
     for value in [-0.1, 1.5, 2.0] {
-        let params = Params {
-            alpha: value,
-            ..small()
+        let params = {
+            let base = small();
+            Params {
+                costs: CostWeights {
+                    alpha: value,
+                    ..base.costs
+                },
+                ..base
+            }
         };
         check_error(&rejected(&params), "alpha", &[&value.to_string(), "0", "1"]);
     }
     for value in [0.0, 1.0] {
-        let params = Params {
-            alpha: value,
-            ..small()
+        let params = {
+            let base = small();
+            Params {
+                costs: CostWeights {
+                    alpha: value,
+                    ..base.costs
+                },
+                ..base
+            }
         };
         assert_eq!(params.validate(), Ok(()), "alpha = {value} should be valid");
     }
@@ -181,49 +200,85 @@ fn out_of_range_numbers_are_rejected() {
     let cases: [(&str, Params, &[&str]); 6] = [
         (
             "radius",
-            Params {
-                radius: 0.0,
-                ..small()
+            {
+                let base = small();
+                Params {
+                    run: RunControl {
+                        radius: 0.0,
+                        ..base.run
+                    },
+                    ..base
+                }
             },
             &["0", "1", "12"],
         ),
         (
             "radius",
-            Params {
-                radius: 12.5,
-                ..small()
+            {
+                let base = small();
+                Params {
+                    run: RunControl {
+                        radius: 12.5,
+                        ..base.run
+                    },
+                    ..base
+                }
             },
             &["12.5", "12"],
         ),
         (
             "jitter",
-            Params {
-                jitter: 0.5,
-                ..small()
+            {
+                let base = small();
+                Params {
+                    domain: Domain {
+                        jitter: 0.5,
+                        ..base.domain
+                    },
+                    ..base
+                }
             },
             &["0.5", "0.49"],
         ),
         (
             "gamma",
-            Params {
-                gamma: 0.5,
-                ..small()
+            {
+                let base = small();
+                Params {
+                    widths: Widths {
+                        gamma: 0.5,
+                        ..base.widths
+                    },
+                    ..base
+                }
             },
             &["0.5", "1", "10"],
         ),
         (
             "temperature",
-            Params {
-                temperature: 0.0,
-                ..small()
+            {
+                let base = small();
+                Params {
+                    run: RunControl {
+                        temperature: 0.0,
+                        ..base.run
+                    },
+                    ..base
+                }
             },
             &["0"],
         ),
         (
             "cells",
-            Params {
-                cells: 0,
-                ..small()
+            {
+                let base = small();
+                Params {
+                    run: RunControl {
+                        cells: 0,
+                        ..base.run
+                    },
+                    ..base
+                }
             },
             &["0", "1"],
         ),
@@ -235,64 +290,94 @@ fn out_of_range_numbers_are_rejected() {
 
 #[test]
 fn roots_must_exist_and_lie_on_allowed_cells() {
-    let params = Params {
-        roots: Vec::new(),
-        ..small()
+    let params = {
+        let base = small();
+        Params {
+            domain: Domain {
+                roots: Vec::new(),
+                ..base.domain
+            },
+            ..base
+        }
     };
     check_error(&rejected(&params), "roots", &[]);
 
     let mut params = small();
-    params.roots[0].x = 20;
+    params.domain.roots[0].x = 20;
     check_error(&rejected(&params), "roots[0].x", &["20", "19"]);
     let mut params = small();
-    params.roots[0].y = 400;
+    params.domain.roots[0].y = 400;
     check_error(&rejected(&params), "roots[0].y", &["400", "19"]);
 
     // A root inside an obstacle (cell (10, 15) has its centre at (10.5, 15.5)).
-    let params = Params {
-        obstacles: vec![vec![[8.0, 13.0], [13.0, 13.0], [13.0, 18.0], [8.0, 18.0]]],
-        ..small()
+    let params = {
+        let base = small();
+        Params {
+            domain: Domain {
+                obstacles: vec![vec![[8.0, 13.0], [13.0, 13.0], [13.0, 18.0], [8.0, 18.0]]],
+                ..base.domain
+            },
+            ..base
+        }
     };
     check_error(&rejected(&params), "roots[0]", &["10", "15"]);
 
     // A root outside the outline.
-    let params = Params {
-        outline: Some(vec![[0.0, 0.0], [20.0, 0.0], [20.0, 10.0], [0.0, 10.0]]),
-        ..small()
+    let params = {
+        let base = small();
+        Params {
+            domain: Domain {
+                outline: Some(vec![[0.0, 0.0], [20.0, 0.0], [20.0, 10.0], [0.0, 10.0]]),
+                ..base.domain
+            },
+            ..base
+        }
     };
     check_error(&rejected(&params), "roots[0]", &["10", "15"]);
 
     // A root on a cell the mask forbids.
     let mut bits = vec![true; 400];
     bits[15 * 20 + 10] = false;
-    let params = Params {
-        mask: Some(MaskGrid::from_bits(20, 20, &bits)),
-        ..small()
+    let params = {
+        let base = small();
+        Params {
+            domain: Domain {
+                mask: Some(MaskGrid::from_bits(20, 20, &bits)),
+                ..base.domain
+            },
+            ..base
+        }
     };
     check_error(&rejected(&params), "roots[0]", &["10", "15"]);
 
     // The second of two roots on the same cell.
     let mut params = small();
-    params.roots.push(params.roots[0].clone());
+    params.domain.roots.push(params.domain.roots[0].clone());
     check_error(&rejected(&params), "roots[1]", &["10", "15"]);
 
     // The budget counts the roots, so it must hold them all.
     let mut params = small();
-    params.roots.push(Root {
+    params.domain.roots.push(Root {
         x: 2,
         y: 2,
         outflow: [1.0, 0.0],
     });
-    params.cells = 1;
+    params.run.cells = 1;
     check_error(&rejected(&params), "cells", &["1", "2"]);
 }
 
 #[test]
 fn a_region_without_allowed_cells_is_rejected() {
     // An outline between cell centres: no centre lies inside it.
-    let params = Params {
-        outline: Some(vec![[10.6, 15.6], [10.9, 15.6], [10.9, 15.9]]),
-        ..small()
+    let params = {
+        let base = small();
+        Params {
+            domain: Domain {
+                outline: Some(vec![[10.6, 15.6], [10.9, 15.6], [10.9, 15.9]]),
+                ..base.domain
+            },
+            ..base
+        }
     };
     let error = rejected(&params);
     assert!(
@@ -300,9 +385,15 @@ fn a_region_without_allowed_cells_is_rejected() {
         "message does not name the outline: {error}"
     );
     // A mask with no allowed cell.
-    let params = Params {
-        mask: Some(MaskGrid::from_bits(20, 20, &[false; 400])),
-        ..small()
+    let params = {
+        let base = small();
+        Params {
+            domain: Domain {
+                mask: Some(MaskGrid::from_bits(20, 20, &[false; 400])),
+                ..base.domain
+            },
+            ..base
+        }
     };
     let error = rejected(&params);
     assert!(
@@ -310,9 +401,15 @@ fn a_region_without_allowed_cells_is_rejected() {
         "message does not name the mask: {error}"
     );
     // A mask of the wrong size.
-    let params = Params {
-        mask: Some(MaskGrid::from_bits(10, 40, &[true; 400])),
-        ..small()
+    let params = {
+        let base = small();
+        Params {
+            domain: Domain {
+                mask: Some(MaskGrid::from_bits(10, 40, &[true; 400])),
+                ..base.domain
+            },
+            ..base
+        }
     };
     check_error(&rejected(&params), "mask", &["10", "40", "20"]);
 }
@@ -320,10 +417,16 @@ fn a_region_without_allowed_cells_is_rejected() {
 /// Each side is documented as at most 20000, and the whole lattice as at most 25,000,000 cells.
 #[test]
 fn too_large_a_lattice_is_rejected_before_allocating() {
-    let params = Params {
-        width: 20_000,
-        height: 20_000,
-        ..small()
+    let params = {
+        let base = small();
+        Params {
+            domain: Domain {
+                width: 20_000,
+                height: 20_000,
+                ..base.domain
+            },
+            ..base
+        }
     };
     let error = rejected(&params);
     let message = error.to_string();
@@ -334,23 +437,41 @@ fn too_large_a_lattice_is_rejected_before_allocating() {
     assert!(message.contains("20000"), "{message}");
     assert!(message.contains("25000000"), "{message}");
 
-    let params = Params {
-        width: 20_001,
-        ..small()
+    let params = {
+        let base = small();
+        Params {
+            domain: Domain {
+                width: 20_001,
+                ..base.domain
+            },
+            ..base
+        }
     };
     check_error(&rejected(&params), "width", &["20001", "20000"]);
-    let params = Params {
-        height: 0,
-        ..small()
+    let params = {
+        let base = small();
+        Params {
+            domain: Domain {
+                height: 0,
+                ..base.domain
+            },
+            ..base
+        }
     };
     check_error(&rejected(&params), "height", &["0", "1"]);
 }
 
 #[test]
 fn unknown_units_are_rejected() {
-    let params = Params {
-        units: "furlong".into(),
-        ..small()
+    let params = {
+        let base = small();
+        Params {
+            domain: Domain {
+                units: "furlong".into(),
+                ..base.domain
+            },
+            ..base
+        }
     };
     check_error(&rejected(&params), "units", &["furlong", "mm", "m"]);
 }
@@ -398,7 +519,7 @@ fn json_that_is_not_an_object_is_rejected() {
         match Params::from_json(text) {
             Ok(params) => panic!(
                 "{text} was read as parameters: {}x{}",
-                params.width, params.height
+                params.domain.width, params.domain.height
             ),
             Err(error) => assert!(
                 error.to_string().contains("object"),

@@ -4,22 +4,29 @@
 use proptest::prelude::*;
 use ramulus_core::growth::Growth;
 use ramulus_core::metrics::measure;
+use ramulus_core::params::{Domain, RunControl};
 use ramulus_core::params::{Joining, Params, Root};
 use ramulus_core::record::{make_record, read_record, write_record, RecordError};
 use ramulus_core::run::RunView;
 
 fn small_record_text() -> String {
     let params = Params {
-        width: 12,
-        height: 10,
-        roots: vec![Root {
-            x: 6,
-            y: 9,
-            outflow: [0.0, 1.0],
-        }],
-        cells: 60,
-        joining: Joining::Weighted,
-        attach_to_segments: true,
+        domain: Domain {
+            width: 12,
+            height: 10,
+            roots: vec![Root {
+                x: 6,
+                y: 9,
+                outflow: [0.0, 1.0],
+            }],
+            ..Domain::default()
+        },
+        run: RunControl {
+            cells: 60,
+            joining: Joining::Weighted,
+            attach_to_segments: true,
+            ..RunControl::default()
+        },
         ..Params::default()
     };
     let mut growth = Growth::new(&params).expect("valid parameters");

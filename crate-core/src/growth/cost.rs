@@ -47,21 +47,21 @@ pub(crate) struct CostModel {
 
 impl CostModel {
     pub fn new(params: &Params) -> CostModel {
-        let preferred = params.branch_angle.map(|degrees| {
+        let preferred = params.costs.branch_angle.map(|degrees| {
             let radians = degrees.to_radians();
             (libm::cos(radians), libm::sin(radians))
         });
         CostModel {
-            w_len: params.w_len,
-            w_turn: params.w_turn,
-            w_flow: params.w_flow,
-            w_path: params.w_path,
-            w_grade: params.w_grade,
-            along_scale: 1.0 / params.elongation,
-            rear_scale: params.rear_cost,
+            w_len: params.costs.w_len,
+            w_turn: params.costs.w_turn,
+            w_flow: params.costs.w_flow,
+            w_path: params.costs.w_path,
+            w_grade: params.costs.w_grade,
+            along_scale: 1.0 / params.costs.elongation,
+            rear_scale: params.costs.rear_cost,
             preferred,
-            grade_x: params.grade_x,
-            grade_y: params.grade_y,
+            grade_x: params.domain.grade_x,
+            grade_y: params.domain.grade_y,
         }
     }
 
@@ -132,6 +132,7 @@ pub(crate) fn marginal(flow: f64, extra: f64, alpha: f64) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::params::CostWeights;
 
     fn anchor(down_x: f64, down_y: f64) -> Anchor {
         Anchor {
@@ -159,7 +160,10 @@ mod tests {
     #[test]
     fn preferred_angle_costs_nothing_at_that_angle() {
         let params = Params {
-            branch_angle: Some(60.0),
+            costs: CostWeights {
+                branch_angle: Some(60.0),
+                ..CostWeights::default()
+            },
             ..Params::default()
         };
         let model = CostModel::new(&params);
@@ -181,7 +185,10 @@ mod tests {
     #[test]
     fn elongation_shortens_lengths_along_the_axis() {
         let params = Params {
-            elongation: 2.0,
+            costs: CostWeights {
+                elongation: 2.0,
+                ..CostWeights::default()
+            },
             ..Params::default()
         };
         let model = CostModel::new(&params);
@@ -192,7 +199,10 @@ mod tests {
     #[test]
     fn rear_cost_lengthens_flow_against_the_outflow() {
         let params = Params {
-            rear_cost: 3.0,
+            costs: CostWeights {
+                rear_cost: 3.0,
+                ..CostWeights::default()
+            },
             ..Params::default()
         };
         let model = CostModel::new(&params);

@@ -6,19 +6,19 @@ use super::*;
 impl Growth {
     /// Joining weight of a cost under the current rule (0 when not eligible).
     pub(super) fn weight(&mut self, cost: f64) -> f64 {
-        if let Some(threshold) = self.params.threshold {
+        if let Some(threshold) = self.params.run.threshold {
             if cost >= threshold {
                 return 0.0;
             }
         }
-        match self.params.joining {
+        match self.params.run.joining {
             Joining::Cheapest => 0.0,
             Joining::Uniform => 1.0,
             Joining::Weighted => {
                 if self.weight_reference.is_nan() {
                     self.weight_reference = cost;
                 }
-                let exponent = (self.weight_reference - cost) / self.params.temperature;
+                let exponent = (self.weight_reference - cost) / self.params.run.temperature;
                 libm::exp(exponent.min(WEIGHT_CEILING_EXPONENT))
             }
         }
@@ -31,9 +31,9 @@ impl Growth {
             None => return,
         };
         let reference = self.weight_reference;
-        let temperature = self.params.temperature;
-        let threshold = self.params.threshold;
-        let joining = self.params.joining;
+        let temperature = self.params.run.temperature;
+        let threshold = self.params.run.threshold;
+        let joining = self.params.run.joining;
         self.frontier.reweigh(|slot| {
             if threshold.is_some_and(|threshold| slot.cost >= threshold) {
                 return 0.0;
@@ -56,17 +56,18 @@ impl Growth {
             };
             if self
                 .params
+                .run
                 .threshold
                 .is_some_and(|threshold| cheapest_cost >= threshold)
             {
                 return Err(StopReason::Threshold);
             }
-            let slot_index = match self.params.joining {
+            let slot_index = match self.params.run.joining {
                 Joining::Cheapest => cheapest_slot,
                 Joining::Uniform | Joining::Weighted => {
                     let mut total = self.frontier.total_weight();
-                    let drifted = self.params.joining == Joining::Weighted
-                        && (self.weight_reference - cheapest_cost) / self.params.temperature
+                    let drifted = self.params.run.joining == Joining::Weighted
+                        && (self.weight_reference - cheapest_cost) / self.params.run.temperature
                             > WEIGHT_CEILING_EXPONENT * 0.5;
                     if total <= WEIGHT_FLOOR || !total.is_finite() || drifted {
                         self.reweigh();
@@ -90,6 +91,7 @@ impl Growth {
             if still_valid
                 && !self
                     .params
+                    .run
                     .threshold
                     .is_some_and(|threshold| cost >= threshold)
             {

@@ -31,16 +31,16 @@ impl Lattice {
     /// Builds the lattice; the jitter comes from ChaCha8 stream 0 of the seed, in row-major
     /// order, two draws a cell.
     pub fn new(params: &Params, allowed: &[bool]) -> Lattice {
-        let width = params.width as usize;
-        let height = params.height as usize;
+        let width = params.domain.width as usize;
+        let height = params.domain.height as usize;
         let state = allowed
             .iter()
             .map(|&ok| if ok { FREE } else { BLOCKED })
             .collect();
-        let jitter = if params.jitter > 0.0 {
-            let mut random = ChaCha8Rng::seed_from_u64(params.seed);
+        let jitter = if params.domain.jitter > 0.0 {
+            let mut random = ChaCha8Rng::seed_from_u64(params.run.seed);
             random.set_stream(0);
-            let amplitude = params.jitter;
+            let amplitude = params.domain.jitter;
             (0..width * height)
                 .map(|_| {
                     let mut draw = || {
@@ -55,8 +55,8 @@ impl Lattice {
         } else {
             Vec::new()
         };
-        let reach = params.radius.floor() as i32;
-        let squared = params.radius * params.radius;
+        let reach = params.run.radius.floor() as i32;
+        let squared = params.run.radius * params.run.radius;
         let mut offsets = Vec::new();
         for dy in -reach..=reach {
             for dx in -reach..=reach {

@@ -120,7 +120,7 @@ impl Growth {
             });
         }
         let lattice = Lattice::new(params, &allowed);
-        let mut random = ChaCha8Rng::seed_from_u64(params.seed);
+        let mut random = ChaCha8Rng::seed_from_u64(params.run.seed);
         random.set_stream(1);
         let mut growth = Growth {
             params: params.clone(),
@@ -143,18 +143,18 @@ impl Growth {
             junction_next: Vec::new(),
             axes: Vec::new(),
             cell_count: 0,
-            cell_weight: params.runoff,
-            recheck: params.attach_to_segments || params.branch_angle.is_some(),
+            cell_weight: params.domain.runoff,
+            recheck: params.run.attach_to_segments || params.costs.branch_angle.is_some(),
             weight_reference: f64::NAN,
             last_refresh_nodes: 0,
             scratch_order: Vec::new(),
             scratch_children: Default::default(),
             stopped: None,
         };
-        if params.attach_to_segments {
+        if params.run.attach_to_segments {
             growth.junction_head = vec![NONE; growth.lattice.cell_total()];
         }
-        for (index, root) in params.roots.iter().enumerate() {
+        for (index, root) in params.domain.roots.iter().enumerate() {
             let cell = growth.lattice.cell_index(root.x, root.y);
             match growth.lattice.state[cell] {
                 BLOCKED => {
@@ -178,7 +178,7 @@ impl Growth {
             growth.axes.push((dx / norm, dy / norm));
             growth.add_root(cell, index as u32);
         }
-        if growth.cell_count >= params.cells {
+        if growth.cell_count >= params.run.cells {
             growth.stopped = Some(StopReason::Budget);
         }
         Ok(growth)
@@ -192,7 +192,7 @@ impl Growth {
                 Ok((slot, attachment)) => {
                     self.join(slot, attachment);
                     added += 1;
-                    if self.cell_count >= self.params.cells {
+                    if self.cell_count >= self.params.run.cells {
                         self.stopped = Some(StopReason::Budget);
                     }
                 }
@@ -241,7 +241,7 @@ impl Growth {
 
     /// The network so far in physical units: node `i` of the grower is node `i` here.
     pub fn network(&self) -> Network {
-        let size = self.params.cell_size;
+        let size = self.params.domain.cell_size;
         let cell_area = size * size;
         let weight = self.cell_weight * cell_area;
         let nodes = (0..self.x.len())
@@ -265,11 +265,11 @@ impl Growth {
         Network {
             nodes,
             area: self.cell_count as f64 * cell_area,
-            units: self.params.units.clone(),
+            units: self.params.domain.units.clone(),
             cell_size: size,
             cells: CellSet {
-                width: self.params.width,
-                height: self.params.height,
+                width: self.params.domain.width,
+                height: self.params.domain.height,
                 occupied,
             },
         }
@@ -321,7 +321,7 @@ impl Growth {
         self.root_of.push(root);
         self.child_count.push(0);
         self.cell_of.push(cell);
-        if self.params.attach_to_segments {
+        if self.params.run.attach_to_segments {
             self.junction_next.push(NONE);
         }
         if parent != NO_PARENT {
@@ -363,7 +363,7 @@ impl Growth {
         let (axis_x, axis_y) = self.axes[root as usize];
         let dist = self.dist[t] + self.model.supply_length(vx, vy, axis_x, axis_y);
         let transport = self.transport[t]
-            + length * marginal(self.cell_weight, self.cell_weight, self.params.alpha);
+            + length * marginal(self.cell_weight, self.cell_weight, self.params.costs.alpha);
         let node = self.push_node(
             cx,
             cy,

@@ -6,11 +6,11 @@ impl Growth {
     /// Recomputes flows and transport costs exactly when the network has grown by `refresh`
     /// since the last time, then re-prices every frontier cell's stored attachment.
     pub(super) fn maybe_refresh(&mut self) {
-        if self.params.w_flow == 0.0 {
+        if self.params.costs.w_flow == 0.0 {
             return;
         }
         let nodes = self.x.len();
-        let due = self.last_refresh_nodes as f64 * (1.0 + self.params.refresh);
+        let due = self.last_refresh_nodes as f64 * (1.0 + self.params.run.refresh);
         if (nodes as f64) < due.max(self.last_refresh_nodes as f64 + 8.0) {
             return;
         }
@@ -75,7 +75,7 @@ impl Growth {
                 self.flow[parent as usize] += self.flow[node as usize];
             }
         }
-        let alpha = self.params.alpha;
+        let alpha = self.params.costs.alpha;
         let extra = self.cell_weight;
         for &node in &self.scratch_order {
             let node = node as usize;

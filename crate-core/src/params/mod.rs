@@ -13,10 +13,29 @@ pub const MAX_CELLS: u64 = 25_000_000;
 /// Largest search radius, in cells.
 pub const MAX_RADIUS: f64 = 12.0;
 
-/// Every parameter of a run. JSON keys equal the field names.
+/// Every parameter of a run, in four named parts. The JSON keys and link keys are the field
+/// names of the parts (flat: `{"width": 200, "alpha": 0.5}`, never nested).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(deny_unknown_fields, default)]
+#[serde(try_from = "serde_json::Value")]
 pub struct Params {
+    /// The domain: lattice, roots, allowed region and terrain.
+    #[serde(flatten)]
+    pub domain: Domain,
+    /// The cost weights.
+    #[serde(flatten)]
+    pub costs: CostWeights,
+    /// Run control: seed, budget, joining rule, refresh.
+    #[serde(flatten)]
+    pub run: RunControl,
+    /// The width rule.
+    #[serde(flatten)]
+    pub widths: Widths,
+}
+
+/// The domain: lattice, roots, allowed region and terrain.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(default)]
+pub struct Domain {
     /// Lattice width in cells. Default 120; 1 ..= 20000, and `width * height <= 25,000,000`.
     pub width: u32,
     /// Lattice height in cells (rows counted from the top). Default 120; 1 ..= 20000.
@@ -25,58 +44,10 @@ pub struct Params {
     pub cell_size: f64,
     /// Name of the physical length unit: `mm` (leaves) or `m` (sites); also `cm`, `um`, `ft`.
     pub units: String,
-    /// Roots (a petiole base, an outlet): cells with their outflow directions. At least one.
-    pub roots: Vec<Root>,
-    /// Seed of the random generator (ChaCha8). Default 1.
-    pub seed: u64,
-    /// Cell budget: growth stops after this many cells, roots included. Default 10000; >= 1.
-    pub cells: u64,
-    /// Search radius in cells: how far a new cell may reach to attach. Default 4; 1 ..= 12.
-    pub radius: f64,
     /// Node jitter, as a fraction of a cell in x and in y. Default 0.35; 0 ..= 0.49.
     pub jitter: f64,
-    /// Weight of the length term. Default 1; >= 0.
-    pub w_len: f64,
-    /// Weight of the junction-angle term. Default 1; >= 0.
-    pub w_turn: f64,
-    /// Weight of the branched-transport term. Default 0.5; >= 0.
-    pub w_flow: f64,
-    /// Exponent of branched transport, a segment carrying q costs `q^alpha * length`. Default 0.5; 0 ..= 1.
-    pub alpha: f64,
-    /// Weight of the supply-distance term. Default 0; >= 0.
-    pub w_path: f64,
-    /// Weight of the uphill (terrain) term; sites only. Default 0; >= 0.
-    pub w_grade: f64,
-    /// Rule that picks the next cell. Default `weighted`.
-    pub joining: Joining,
-    /// Temperature of weighted joining, in cost units. Default 0.5; > 0.
-    pub temperature: f64,
-    /// Open growth: stop when no frontier cell costs less than this. Default none (off); finite.
-    pub threshold: Option<f64>,
-    /// Whether a new cell may attach to the interior of a segment, splitting it. Default false.
-    pub attach_to_segments: bool,
-    /// Width exponent: width ~ flow^(1/gamma); 3 is Murray's law, 2 area-preserving. Default 3; 1 ..= 10.
-    pub gamma: f64,
-    /// Width of a one-cell veinlet, as a fraction of the cell size. Default 0.12; > 0 ..= 1.
-    pub tip_width: f64,
-    /// Preferred branching angle in degrees; none gives the plain `1 - cos(phi)` penalty.
-    /// Default none; 0 ..= 150.
-    pub branch_angle: Option<f64>,
-    /// Anisotropy of the supply-distance term: lengths along a root's outflow axis count
-    /// `1 / elongation`. Default 1 (isotropic); 1 ..= 10.
-    pub elongation: f64,
-    /// Supply distance of flow running back against a root's outflow axis (growth behind the
-    /// root) counts this many times. Default 1; 1 ..= 10.
-    pub rear_cost: f64,
-    /// Terrain rise per unit run along +x (m/m), for the uphill term. Default 0; -1 ..= 1.
-    pub grade_x: f64,
-    /// Terrain rise per unit run along +y, i.e. down the page (m/m). Default 0; -1 ..= 1.
-    pub grade_y: f64,
-    /// Runoff coefficient of every cell (sites); a cell's flow weight. Default 1; > 0 ..= 1.
-    pub runoff: f64,
-    /// Flows and transport costs are recomputed exactly whenever the network has grown by this
-    /// fraction since the last refresh. Default 0.05; 0.001 ..= 1.
-    pub refresh: f64,
+    /// Roots (a petiole base, an outlet): cells with their outflow directions. At least one.
+    pub roots: Vec<Root>,
     /// Allowed region as a polygon of `[x, y]` points in cell coordinates; none allows the whole
     /// lattice. A cell is allowed when its centre lies inside.
     pub outline: Option<Vec<[f64; 2]>>,
@@ -84,6 +55,72 @@ pub struct Params {
     pub obstacles: Vec<Vec<[f64; 2]>>,
     /// Allowed cells from an image (run-length coded, see `mask`); none allows every cell.
     pub mask: Option<MaskGrid>,
+    /// Terrain rise per unit run along +x (m/m), for the uphill term. Default 0; -1 ..= 1.
+    pub grade_x: f64,
+    /// Terrain rise per unit run along +y, i.e. down the page (m/m). Default 0; -1 ..= 1.
+    pub grade_y: f64,
+    /// Runoff coefficient of every cell (sites); a cell's flow weight. Default 1; > 0 ..= 1.
+    pub runoff: f64,
+}
+
+/// The cost of joining a cell: the weight of each term and the shape of each term.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(default)]
+pub struct CostWeights {
+    /// Weight of the length term. Default 1; >= 0.
+    pub w_len: f64,
+    /// Weight of the junction-angle term. Default 1; >= 0.
+    pub w_turn: f64,
+    /// Preferred branching angle in degrees; none gives the plain `1 - cos(phi)` penalty.
+    /// Default none; 0 ..= 150.
+    pub branch_angle: Option<f64>,
+    /// Weight of the branched-transport term. Default 0.5; >= 0.
+    pub w_flow: f64,
+    /// Exponent of branched transport, a segment carrying q costs `q^alpha * length`. Default 0.5; 0 ..= 1.
+    pub alpha: f64,
+    /// Weight of the supply-distance term. Default 0; >= 0.
+    pub w_path: f64,
+    /// Anisotropy of the supply-distance term: lengths along a root's outflow axis count
+    /// `1 / elongation`. Default 1 (isotropic); 1 ..= 10.
+    pub elongation: f64,
+    /// Supply distance of flow running back against a root's outflow axis (growth behind the
+    /// root) counts this many times. Default 1; 1 ..= 10.
+    pub rear_cost: f64,
+    /// Weight of the uphill (terrain) term; sites only. Default 0; >= 0.
+    pub w_grade: f64,
+}
+
+/// Run control: the seed, the budget, how the next cell is picked and when flows are refreshed.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(default)]
+pub struct RunControl {
+    /// Seed of the random generator (ChaCha8). Default 1.
+    pub seed: u64,
+    /// Cell budget: growth stops after this many cells, roots included. Default 10000; >= 1.
+    pub cells: u64,
+    /// Rule that picks the next cell. Default `weighted`.
+    pub joining: Joining,
+    /// Temperature of weighted joining, in cost units. Default 0.5; > 0.
+    pub temperature: f64,
+    /// Open growth: stop when no frontier cell costs less than this. Default none (off); finite.
+    pub threshold: Option<f64>,
+    /// Search radius in cells: how far a new cell may reach to attach. Default 4; 1 ..= 12.
+    pub radius: f64,
+    /// Whether a new cell may attach to the interior of a segment, splitting it. Default false.
+    pub attach_to_segments: bool,
+    /// Flows and transport costs are recomputed exactly whenever the network has grown by this
+    /// fraction since the last refresh. Default 0.05; 0.001 ..= 1.
+    pub refresh: f64,
+}
+
+/// The width rule: how a segment's drawn width follows its flow.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(default)]
+pub struct Widths {
+    /// Width exponent: width ~ flow^(1/gamma); 3 is Murray's law, 2 area-preserving. Default 3; 1 ..= 10.
+    pub gamma: f64,
+    /// Width of a one-cell veinlet, as a fraction of the cell size. Default 0.12; > 0 ..= 1.
+    pub tip_width: f64,
 }
 
 /// A root of one tree: a cell and the direction its flow leaves the network.
@@ -138,43 +175,102 @@ impl std::error::Error for ParamError {}
 impl Default for Params {
     fn default() -> Self {
         Params {
-            width: 120,
-            height: 120,
-            cell_size: 0.15,
-            units: "mm".to_string(),
-            roots: vec![Root {
-                x: 60,
-                y: 100,
-                outflow: [0.0, 1.0],
-            }],
-            seed: 1,
-            cells: 10_000,
-            radius: 4.0,
-            jitter: 0.35,
-            w_len: 1.0,
-            w_turn: 1.0,
-            w_flow: 0.5,
-            alpha: 0.5,
-            w_path: 0.0,
-            w_grade: 0.0,
-            joining: Joining::Weighted,
-            temperature: 0.5,
-            threshold: None,
-            attach_to_segments: false,
-            gamma: 3.0,
-            tip_width: 0.12,
-            branch_angle: None,
-            elongation: 1.0,
-            rear_cost: 1.0,
-            grade_x: 0.0,
-            grade_y: 0.0,
-            runoff: 1.0,
-            refresh: 0.05,
-            outline: None,
-            obstacles: Vec::new(),
-            mask: None,
+            domain: Domain {
+                width: 120,
+                height: 120,
+                cell_size: 0.15,
+                units: "mm".to_string(),
+                roots: vec![Root {
+                    x: 60,
+                    y: 100,
+                    outflow: [0.0, 1.0],
+                }],
+                jitter: 0.35,
+                grade_x: 0.0,
+                grade_y: 0.0,
+                runoff: 1.0,
+                outline: None,
+                obstacles: Vec::new(),
+                mask: None,
+            },
+            costs: CostWeights {
+                w_len: 1.0,
+                w_turn: 1.0,
+                w_flow: 0.5,
+                alpha: 0.5,
+                w_path: 0.0,
+                w_grade: 0.0,
+                branch_angle: None,
+                elongation: 1.0,
+                rear_cost: 1.0,
+            },
+            run: RunControl {
+                seed: 1,
+                cells: 10_000,
+                radius: 4.0,
+                joining: Joining::Weighted,
+                temperature: 0.5,
+                threshold: None,
+                attach_to_segments: false,
+                refresh: 0.05,
+            },
+            widths: Widths {
+                gamma: 3.0,
+                tip_width: 0.12,
+            },
         }
     }
+}
+
+impl Default for Domain {
+    fn default() -> Self {
+        Params::default().domain
+    }
+}
+
+impl Default for CostWeights {
+    fn default() -> Self {
+        Params::default().costs
+    }
+}
+
+impl Default for RunControl {
+    fn default() -> Self {
+        Params::default().run
+    }
+}
+
+impl Default for Widths {
+    fn default() -> Self {
+        Params::default().widths
+    }
+}
+
+impl TryFrom<serde_json::Value> for Params {
+    type Error = ParamError;
+
+    fn try_from(value: serde_json::Value) -> Result<Params, ParamError> {
+        Params::from_json_value(value)
+    }
+}
+
+/// Every JSON key: the keys of the serialized defaults (every field serializes, `None` as null).
+fn known_keys() -> Vec<String> {
+    match serde_json::to_value(Params::default()) {
+        Ok(serde_json::Value::Object(map)) => map.keys().cloned().collect(),
+        _ => Vec::new(),
+    }
+}
+
+/// Reads each part from the same flat object; each part ignores the other parts' keys (unknown
+/// keys are refused before this, against `known_keys`).
+fn parts_from_value(value: &serde_json::Value) -> Result<Params, serde_json::Error> {
+    Ok(Params {
+        domain: Domain::deserialize(value)?,
+        costs: CostWeights::deserialize(value)?,
+        run: RunControl::deserialize(value)?,
+        widths: Widths::deserialize(value)?,
+    })
 }
 
 /// Physical length units that the exporters know how to label.
@@ -194,17 +290,6 @@ impl Params {
     /// Builds parameters from a JSON object; missing keys take their defaults. A wrong type or
     /// an unknown key gives an error naming that key.
     pub fn from_json_value(value: serde_json::Value) -> Result<Params, ParamError> {
-        if !value.is_object() {
-            return Err(ParamError {
-                key: "(parameters)".into(),
-                value: short_text(&value.to_string()),
-                allowed: "a JSON object of parameters".into(),
-            });
-        }
-        let error = match serde_json::from_value::<Params>(value.clone()) {
-            Ok(params) => return Ok(params),
-            Err(error) => error,
-        };
         let serde_json::Value::Object(map) = &value else {
             return Err(ParamError {
                 key: "(parameters)".into(),
@@ -212,13 +297,23 @@ impl Params {
                 allowed: "a JSON object of parameters".into(),
             });
         };
+        let known = known_keys();
+        if let Some((key, entry)) = map.iter().find(|(key, _)| !known.contains(key)) {
+            return Err(ParamError {
+                key: key.clone(),
+                value: short_text(&entry.to_string()),
+                allowed: format!("a known parameter key, one of {}", known.join(", ")),
+            });
+        }
+        let error = match parts_from_value(&value) {
+            Ok(params) => return Ok(params),
+            Err(error) => error,
+        };
         // Try each key alone on top of the defaults to find the one that fails.
         for (key, entry) in map {
             let mut single = serde_json::Map::new();
             single.insert(key.clone(), entry.clone());
-            if let Err(key_error) =
-                serde_json::from_value::<Params>(serde_json::Value::Object(single))
-            {
+            if let Err(key_error) = parts_from_value(&serde_json::Value::Object(single)) {
                 return Err(ParamError {
                     key: key.clone(),
                     value: short_text(&entry.to_string()),
@@ -235,50 +330,53 @@ impl Params {
 
     /// Whether the run is a drainage site (lengths in metres or feet) rather than a leaf.
     pub fn is_site(&self) -> bool {
-        self.units == "m" || self.units == "ft"
+        self.domain.units == "m" || self.domain.units == "ft"
     }
 
     /// Checks every parameter; the first failure is returned, naming the key.
     pub fn validate(&self) -> Result<(), ParamError> {
-        check_range("width", self.width as f64, 1.0, 20_000.0)?;
-        check_range("height", self.height as f64, 1.0, 20_000.0)?;
-        let total = self.width as u64 * self.height as u64;
+        check_range("width", self.domain.width as f64, 1.0, 20_000.0)?;
+        check_range("height", self.domain.height as f64, 1.0, 20_000.0)?;
+        let total = self.domain.width as u64 * self.domain.height as u64;
         if total > MAX_CELLS {
             return Err(ParamError {
                 key: "width * height".into(),
-                value: format!("{} x {} = {} cells", self.width, self.height, total),
+                value: format!(
+                    "{} x {} = {} cells",
+                    self.domain.width, self.domain.height, total
+                ),
                 allowed: format!("at most {MAX_CELLS} cells fit in memory"),
             });
         }
-        check_positive("cell_size", self.cell_size)?;
-        if !UNITS.contains(&self.units.as_str()) {
+        check_positive("cell_size", self.domain.cell_size)?;
+        if !UNITS.contains(&self.domain.units.as_str()) {
             return Err(ParamError {
                 key: "units".into(),
-                value: format!("{:?}", self.units),
+                value: format!("{:?}", self.domain.units),
                 allowed: format!("one of {}", UNITS.join(", ")),
             });
         }
-        if self.roots.is_empty() {
+        if self.domain.roots.is_empty() {
             return Err(ParamError {
                 key: "roots".into(),
                 value: "[]".into(),
                 allowed: "at least one root".into(),
             });
         }
-        for (index, root) in self.roots.iter().enumerate() {
+        for (index, root) in self.domain.roots.iter().enumerate() {
             let key = |field: &str| format!("roots[{index}].{field}");
-            if root.x >= self.width {
+            if root.x >= self.domain.width {
                 return Err(ParamError {
                     key: key("x"),
                     value: root.x.to_string(),
-                    allowed: format!("0 ..= {} (inside the lattice)", self.width - 1),
+                    allowed: format!("0 ..= {} (inside the lattice)", self.domain.width - 1),
                 });
             }
-            if root.y >= self.height {
+            if root.y >= self.domain.height {
                 return Err(ParamError {
                     key: key("y"),
                     value: root.y.to_string(),
-                    allowed: format!("0 ..= {} (inside the lattice)", self.height - 1),
+                    allowed: format!("0 ..= {} (inside the lattice)", self.domain.height - 1),
                 });
             }
             let [dx, dy] = root.outflow;
@@ -290,7 +388,7 @@ impl Params {
                 });
             }
         }
-        if self.cells == 0 {
+        if self.run.cells == 0 {
             return Err(ParamError {
                 key: "cells".into(),
                 value: "0".into(),
@@ -298,53 +396,53 @@ impl Params {
             });
         }
         // The budget counts the roots, which are all planted at once: it must hold them.
-        if self.cells < self.roots.len() as u64 {
+        if self.run.cells < self.domain.roots.len() as u64 {
             return Err(ParamError {
                 key: "cells".into(),
-                value: self.cells.to_string(),
+                value: self.run.cells.to_string(),
                 allowed: format!(
                     "at least the number of roots ({}), since the budget counts the roots",
-                    self.roots.len()
+                    self.domain.roots.len()
                 ),
             });
         }
-        check_range("radius", self.radius, 1.0, MAX_RADIUS)?;
-        check_range("jitter", self.jitter, 0.0, 0.49)?;
+        check_range("radius", self.run.radius, 1.0, MAX_RADIUS)?;
+        check_range("jitter", self.domain.jitter, 0.0, 0.49)?;
         for (key, value) in [
-            ("w_len", self.w_len),
-            ("w_turn", self.w_turn),
-            ("w_flow", self.w_flow),
-            ("w_path", self.w_path),
-            ("w_grade", self.w_grade),
+            ("w_len", self.costs.w_len),
+            ("w_turn", self.costs.w_turn),
+            ("w_flow", self.costs.w_flow),
+            ("w_path", self.costs.w_path),
+            ("w_grade", self.costs.w_grade),
         ] {
             check_range(key, value, 0.0, 1.0e6)?;
         }
-        check_range("alpha", self.alpha, 0.0, 1.0)?;
-        check_positive("temperature", self.temperature)?;
-        if let Some(threshold) = self.threshold {
+        check_range("alpha", self.costs.alpha, 0.0, 1.0)?;
+        check_positive("temperature", self.run.temperature)?;
+        if let Some(threshold) = self.run.threshold {
             check_range("threshold", threshold, -1.0e12, 1.0e12)?;
         }
-        check_range("gamma", self.gamma, 1.0, 10.0)?;
-        check_positive("tip_width", self.tip_width)?;
-        check_range("tip_width", self.tip_width, 0.0, 1.0)?;
-        if let Some(angle) = self.branch_angle {
+        check_range("gamma", self.widths.gamma, 1.0, 10.0)?;
+        check_positive("tip_width", self.widths.tip_width)?;
+        check_range("tip_width", self.widths.tip_width, 0.0, 1.0)?;
+        if let Some(angle) = self.costs.branch_angle {
             check_range("branch_angle", angle, 0.0, 150.0)?;
         }
-        check_range("elongation", self.elongation, 1.0, 10.0)?;
-        check_range("rear_cost", self.rear_cost, 1.0, 10.0)?;
-        check_range("grade_x", self.grade_x, -1.0, 1.0)?;
-        check_range("grade_y", self.grade_y, -1.0, 1.0)?;
-        check_positive("runoff", self.runoff)?;
-        check_range("runoff", self.runoff, 0.0, 1.0)?;
-        check_range("refresh", self.refresh, 0.001, 1.0)?;
-        if let Some(outline) = &self.outline {
+        check_range("elongation", self.costs.elongation, 1.0, 10.0)?;
+        check_range("rear_cost", self.costs.rear_cost, 1.0, 10.0)?;
+        check_range("grade_x", self.domain.grade_x, -1.0, 1.0)?;
+        check_range("grade_y", self.domain.grade_y, -1.0, 1.0)?;
+        check_positive("runoff", self.domain.runoff)?;
+        check_range("runoff", self.domain.runoff, 0.0, 1.0)?;
+        check_range("refresh", self.run.refresh, 0.001, 1.0)?;
+        if let Some(outline) = &self.domain.outline {
             check_polygon("outline", outline)?;
         }
-        for (index, obstacle) in self.obstacles.iter().enumerate() {
+        for (index, obstacle) in self.domain.obstacles.iter().enumerate() {
             check_polygon(&format!("obstacles[{index}]"), obstacle)?;
         }
-        if let Some(mask) = &self.mask {
-            mask.validate(self.width, self.height)?;
+        if let Some(mask) = &self.domain.mask {
+            mask.validate(self.domain.width, self.domain.height)?;
         }
         Ok(())
     }
