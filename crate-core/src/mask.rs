@@ -1,9 +1,10 @@
-//! Which cells may be occupied: `MaskGrid` (run-length coded image mask), polygon tests, and
-//! `allowed_cells`, which combines the outline, the mask and the obstacles of a `Params`.
+//! `MaskGrid`: a boolean image of allowed cells stored as run lengths, and `MaskError`, why a
+//! mask does not fit its lattice. Which cells a run may use (outline, mask and obstacles
+//! together) is decided in `region`.
 
 use serde::{Deserialize, Serialize};
 
-use crate::params::{ParamError, Params};
+use crate::limits::MAX_CELLS;
 
 /// A boolean image of allowed cells, row-major from the top-left, stored as run lengths.
 ///
@@ -47,7 +48,7 @@ impl MaskGrid {
     pub fn to_bits(&self) -> Option<Vec<bool>> {
         let total = self.width as u64 * self.height as u64;
         let sum: u64 = self.runs.iter().map(|&run| run as u64).sum();
-        if sum != total || total > crate::params::MAX_CELLS {
+        if sum != total || total > MAX_CELLS {
             return None;
         }
         let mut bits = Vec::with_capacity(total as usize);
@@ -59,82 +60,78 @@ impl MaskGrid {
     }
 
     /// Checks that the mask matches the lattice and decodes.
-    pub fn validate(&self, width: u32, height: u32) -> Result<(), ParamError> {
+    pub fn validate(&self, width: u32, height: u32) -> Result<(), MaskError> {
         if self.width != width || self.height != height {
-            return Err(ParamError {
-                key: "mask".into(),
-                value: format!("{} x {} cells", self.width, self.height),
-                allowed: format!("the lattice size {width} x {height}"),
+            return Err(MaskError::Size {
+                mask: [self.width, self.height],
+                lattice: [width, height],
             });
         }
         let sum: u64 = self.runs.iter().map(|&run| run as u64).sum();
         let total = width as u64 * height as u64;
         if sum != total {
-            return Err(ParamError {
-                key: "mask.runs".into(),
-                value: format!("runs adding up to {sum}"),
-                allowed: format!("runs adding up to width * height = {total}"),
-            });
+            return Err(MaskError::Runs { sum, total });
         }
         Ok(())
     }
 }
 
-/// Whether point `(x, y)` lies inside the polygon (even-odd rule).
-pub fn point_in_polygon(x: f64, y: f64, polygon: &[[f64; 2]]) -> bool {
-    let mut inside = false;
-    let mut previous = polygon[polygon.len() - 1];
-    for &current in polygon {
-        let crosses = (current[1] > y) != (previous[1] > y);
-        if crosses {
-            let t = (y - current[1]) / (previous[1] - current[1]);
-            let x_cross = current[0] + t * (previous[0] - current[0]);
-            if x < x_cross {
-                inside = !inside;
-            }
+/// Why a mask does not fit its lattice.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum MaskError {
+    /// The mask's size differs from the lattice's (both `[width, height]` in cells).
+    Size {
+        /// The mask's size.
+        mask: [u32; 2],
+        /// The lattice's size.
+        lattice: [u32; 2],
+    },
+    /// The runs do not add up to `width * height`.
+    Runs {
+        /// What the runs add up to.
+        sum: u64,
+        /// `width * height`.
+        total: u64,
+    },
+}
+
+impl MaskError {
+    /// The parameter key the problem belongs to: `mask` or `mask.runs`.
+    pub fn key(&self) -> &'static str {
+        match self {
+            MaskError::Size { .. } => "mask",
+            MaskError::Runs { .. } => "mask.runs",
         }
-        previous = current;
     }
-    inside
-}
 
-/// The allowed cells of a validated `Params`, row-major: inside the outline (if any), allowed
-/// by the mask (if any), and outside every obstacle. Cell `(i, j)` has its centre at
-/// `(i + 0.5, j + 0.5)` in cell coordinates.
-pub fn allowed_cells(params: &Params) -> Vec<bool> {
-    let width = params.domain.width as usize;
-    let height = params.domain.height as usize;
-    let mut allowed = match params.domain.mask.as_ref().and_then(MaskGrid::to_bits) {
-        Some(bits) => bits,
-        None => vec![true; width * height],
-    };
-    if let Some(outline) = &params.domain.outline {
-        fill_polygon(&mut allowed, width, height, outline, false);
+    /// The offending value as text.
+    pub fn value(&self) -> String {
+        match self {
+            MaskError::Size { mask, .. } => format!("{} x {} cells", mask[0], mask[1]),
+            MaskError::Runs { sum, .. } => format!("runs adding up to {sum}"),
+        }
     }
-    for obstacle in &params.domain.obstacles {
-        fill_polygon(&mut allowed, width, height, obstacle, true);
-    }
-    allowed
-}
 
-/// Clears cells outside (`inside_clears == false`) or inside (`true`) the polygon.
-fn fill_polygon(
-    allowed: &mut [bool],
-    width: usize,
-    height: usize,
-    polygon: &[[f64; 2]],
-    inside_clears: bool,
-) {
-    for row in 0..height {
-        let y = row as f64 + 0.5;
-        for column in 0..width {
-            let inside = point_in_polygon(column as f64 + 0.5, y, polygon);
-            if inside == inside_clears {
-                allowed[row * width + column] = false;
+    /// What would be accepted.
+    pub fn allowed(&self) -> String {
+        match self {
+            MaskError::Size { lattice, .. } => {
+                format!("the lattice size {} x {}", lattice[0], lattice[1])
+            }
+            MaskError::Runs { total, .. } => {
+                format!("runs adding up to width * height = {total}")
             }
         }
     }
 }
+
+impl std::fmt::Display for MaskError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "`{}` = {}: {}", self.key(), self.value(), self.allowed())
+    }
+}
+
+impl std::error::Error for MaskError {}
 
 #[cfg(test)]
 mod tests {
@@ -146,13 +143,5 @@ mod tests {
         let grid = MaskGrid::from_bits(3, 2, &bits);
         assert_eq!(grid.runs, vec![0, 2, 1, 1, 2]);
         assert_eq!(grid.to_bits().unwrap(), bits);
-    }
-
-    #[test]
-    fn square_contains_its_centre_only() {
-        let square = [[1.0, 1.0], [3.0, 1.0], [3.0, 3.0], [1.0, 3.0]];
-        assert!(point_in_polygon(2.0, 2.0, &square));
-        assert!(!point_in_polygon(0.5, 2.0, &square));
-        assert!(!point_in_polygon(2.0, 3.5, &square));
     }
 }

@@ -5,11 +5,12 @@
 use proptest::prelude::*;
 use ramulus_core::digest::digest_hex;
 use ramulus_core::growth::Growth;
-use ramulus_core::mask::{allowed_cells, MaskGrid};
+use ramulus_core::mask::MaskGrid;
 use ramulus_core::network::{Network, NO_PARENT};
 use ramulus_core::params::{CostWeights, Domain, RunControl};
 use ramulus_core::params::{Joining, Params, Root};
 use ramulus_core::record::{make_record, read_record, write_record};
+use ramulus_core::region::allowed_cells;
 use ramulus_core::run::RunView;
 
 /// Random valid parameters on small lattices: every joining rule, 1 to 3 roots, optional

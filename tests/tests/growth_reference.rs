@@ -7,10 +7,11 @@ use petgraph::data::Element;
 use petgraph::graph::{NodeIndex, UnGraph};
 use petgraph::visit::Bfs;
 use ramulus_core::growth::Growth;
-use ramulus_core::mask::{allowed_cells, MaskGrid};
+use ramulus_core::mask::MaskGrid;
 use ramulus_core::network::{Network, NO_PARENT};
 use ramulus_core::params::{CostWeights, Domain, RunControl, Widths};
 use ramulus_core::params::{Joining, Params, Root};
+use ramulus_core::region::allowed_cells;
 use ramulus_core::run::RunView;
 
 /// Grows a run to its end and derives its view, failing the test on any error.

@@ -17,9 +17,9 @@ mod refresh;
 use rand_chacha::ChaCha8Rng;
 use rand_core::{RngCore, SeedableRng};
 
-use crate::mask::allowed_cells;
 use crate::network::{CellSet, Network, Node, NO_PARENT};
 use crate::params::{Joining, ParamError, Params};
+use crate::region::allowed_cells;
 use cost::{marginal, Anchor, CostModel};
 use frontier::{Attachment, Frontier, Slot, NONE};
 use lattice::{Lattice, BLOCKED, FREE, FRONTIER_TAG};

@@ -40,7 +40,7 @@ pub enum ImportError {
         /// What was found there, shown printable.
         found: String,
     },
-    /// The declared image has no cells or more than `params::MAX_CELLS`.
+    /// The declared image has no cells or more than `limits::MAX_CELLS`.
     BadSize {
         /// The format whose header declared the size (`PBM` or `PNG`).
         format: &'static str,
@@ -96,7 +96,7 @@ impl std::fmt::Display for ImportError {
                 f,
                 "{format} header: image size {width} x {height} pixels is not allowed; a mask \
                  needs at least 1 and at most {} cells",
-                crate::params::MAX_CELLS
+                crate::limits::MAX_CELLS
             ),
             ImportError::BadDigit { offset, line, found } => write!(
                 f,
@@ -210,7 +210,7 @@ pub(crate) fn check_size(
     height: u64,
 ) -> Result<(u32, u32), ImportError> {
     let cells = width.checked_mul(height);
-    let fits = matches!(cells, Some(cells) if (1..=crate::params::MAX_CELLS).contains(&cells));
+    let fits = matches!(cells, Some(cells) if (1..=crate::limits::MAX_CELLS).contains(&cells));
     match (fits, u32::try_from(width), u32::try_from(height)) {
         (true, Ok(width), Ok(height)) => Ok((width, height)),
         _ => Err(ImportError::BadSize {

@@ -7,11 +7,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::mask::MaskGrid;
 
-/// Largest lattice accepted, in cells (keeps memory under about 2.5 GB at 100 bytes a cell).
-pub const MAX_CELLS: u64 = 25_000_000;
-
-/// Largest search radius, in cells.
-pub const MAX_RADIUS: f64 = 12.0;
+pub use crate::limits::{MAX_CELLS, MAX_RADIUS};
 
 /// Every parameter of a run, in four named parts. The JSON keys and link keys are the field
 /// names of the parts (flat: `{"width": 200, "alpha": 0.5}`, never nested).
@@ -442,7 +438,12 @@ impl Params {
             check_polygon(&format!("obstacles[{index}]"), obstacle)?;
         }
         if let Some(mask) = &self.domain.mask {
-            mask.validate(self.domain.width, self.domain.height)?;
+            mask.validate(self.domain.width, self.domain.height)
+                .map_err(|error| ParamError {
+                    key: error.key().into(),
+                    value: error.value(),
+                    allowed: error.allowed(),
+                })?;
         }
         Ok(())
     }
