@@ -10,10 +10,8 @@
 //! from a link takes the default of that version (`version_1_defaults`), so changing
 //! `Params::default` later never changes what an old link grows.
 
-use crate::mask::MaskGrid;
-use crate::params::{CostWeights, Domain, RunControl, Widths};
-use crate::params::{Joining, Params, Root};
-use crate::schema::fields;
+use crate::params::table::{parameter, parameters};
+use crate::params::Params;
 
 /// The link format version this build writes.
 pub const LINK_VERSION: u32 = 1;
@@ -53,11 +51,11 @@ pub struct LinkRead {
 /// Writes every parameter as a URL fragment without the leading `#`.
 pub fn encode_link(params: &Params) -> String {
     let mut out = format!("v={LINK_VERSION}");
-    for spec in fields() {
+    for spec in parameters() {
         out.push('&');
         out.push_str(spec.key);
         out.push('=');
-        percent_encode_into(&field_text(params, spec.key).unwrap_or_default(), &mut out);
+        percent_encode_into(&spec.text(params), &mut out);
     }
     out
 }
@@ -99,7 +97,7 @@ pub fn decode_link(text: &str) -> LinkRead {
             }
             continue;
         }
-        if field_text(&params, &key).is_none() {
+        if parameter(&key).is_none() {
             problems.push(problem(&key, &value, "not a field of this format; ignored"));
         } else if let Err(message) = set_field(&mut params, &key, &value) {
             problems.push(problem(&key, &value, &format!("{message}; default used")));
@@ -113,180 +111,24 @@ pub fn decode_link(text: &str) -> LinkRead {
     }
 }
 
-/// The defaults of format version 1, frozen: keys missing from a version 1 link take these.
+/// The defaults of format version 1, frozen: keys missing from a version 1 link take these
+/// (the `link_v1_default` column of the parameter table).
 pub fn version_1_defaults() -> Params {
-    Params {
-        domain: Domain {
-            width: 120,
-            height: 120,
-            cell_size: 0.15,
-            units: "mm".to_string(),
-            roots: vec![Root {
-                x: 60,
-                y: 100,
-                outflow: [0.0, 1.0],
-            }],
-            jitter: 0.35,
-            grade_x: 0.0,
-            grade_y: 0.0,
-            runoff: 1.0,
-            outline: None,
-            obstacles: Vec::new(),
-            mask: None,
-        },
-        costs: CostWeights {
-            w_len: 1.0,
-            w_turn: 1.0,
-            w_flow: 0.5,
-            alpha: 0.5,
-            w_path: 0.0,
-            w_grade: 0.0,
-            branch_angle: None,
-            elongation: 1.0,
-            rear_cost: 1.0,
-        },
-        run: RunControl {
-            seed: 1,
-            cells: 10_000,
-            radius: 4.0,
-            joining: Joining::Weighted,
-            temperature: 0.5,
-            threshold: None,
-            attach_to_segments: false,
-            refresh: 0.05,
-        },
-        widths: Widths {
-            gamma: 3.0,
-            tip_width: 0.12,
-        },
-    }
+    Params::from_table_column(|spec| spec.link_v1_default)
 }
 
 /// One field as link text; `None` for an unknown key.
 pub fn field_text(params: &Params, key: &str) -> Option<String> {
-    let text = match key {
-        "width" => params.domain.width.to_string(),
-        "height" => params.domain.height.to_string(),
-        "cell_size" => number(params.domain.cell_size),
-        "units" => params.domain.units.clone(),
-        "roots" => params
-            .domain
-            .roots
-            .iter()
-            .map(|root| {
-                format!(
-                    "{},{},{},{}",
-                    root.x,
-                    root.y,
-                    number(root.outflow[0]),
-                    number(root.outflow[1])
-                )
-            })
-            .collect::<Vec<_>>()
-            .join(";"),
-        "seed" => params.run.seed.to_string(),
-        "cells" => params.run.cells.to_string(),
-        "radius" => number(params.run.radius),
-        "jitter" => number(params.domain.jitter),
-        "w_len" => number(params.costs.w_len),
-        "w_turn" => number(params.costs.w_turn),
-        "w_flow" => number(params.costs.w_flow),
-        "alpha" => number(params.costs.alpha),
-        "w_path" => number(params.costs.w_path),
-        "w_grade" => number(params.costs.w_grade),
-        "joining" => joining_name(params.run.joining).to_string(),
-        "temperature" => number(params.run.temperature),
-        "threshold" => optional(params.run.threshold),
-        "attach_to_segments" => params.run.attach_to_segments.to_string(),
-        "gamma" => number(params.widths.gamma),
-        "tip_width" => number(params.widths.tip_width),
-        "branch_angle" => optional(params.costs.branch_angle),
-        "elongation" => number(params.costs.elongation),
-        "rear_cost" => number(params.costs.rear_cost),
-        "grade_x" => number(params.domain.grade_x),
-        "grade_y" => number(params.domain.grade_y),
-        "runoff" => number(params.domain.runoff),
-        "refresh" => number(params.run.refresh),
-        "outline" => match &params.domain.outline {
-            Some(points) => polygon_text(points),
-            None => "none".to_string(),
-        },
-        "obstacles" => params
-            .domain
-            .obstacles
-            .iter()
-            .map(|polygon| polygon_text(polygon))
-            .collect::<Vec<_>>()
-            .join("~"),
-        "mask" => match &params.domain.mask {
-            Some(mask) => format!(
-                "{}x{}:{}",
-                mask.width,
-                mask.height,
-                mask.runs
-                    .iter()
-                    .map(u32::to_string)
-                    .collect::<Vec<_>>()
-                    .join(".")
-            ),
-            None => "none".to_string(),
-        },
-        _ => return None,
-    };
-    Some(text)
+    parameter(key).map(|spec| spec.text(params))
 }
 
 /// Sets one field from link text. The error says what the text should look like; the
 /// parameters are untouched on error. Ranges are left to `Params::validate`.
 pub fn set_field(params: &mut Params, key: &str, text: &str) -> Result<(), String> {
-    let text = text.trim();
-    match key {
-        "width" => params.domain.width = whole(text)?,
-        "height" => params.domain.height = whole(text)?,
-        "cell_size" => params.domain.cell_size = real(text)?,
-        "units" => params.domain.units = text.to_string(),
-        "roots" => params.domain.roots = roots(text)?,
-        "seed" => params.run.seed = whole(text)?,
-        "cells" => params.run.cells = whole(text)?,
-        "radius" => params.run.radius = real(text)?,
-        "jitter" => params.domain.jitter = real(text)?,
-        "w_len" => params.costs.w_len = real(text)?,
-        "w_turn" => params.costs.w_turn = real(text)?,
-        "w_flow" => params.costs.w_flow = real(text)?,
-        "alpha" => params.costs.alpha = real(text)?,
-        "w_path" => params.costs.w_path = real(text)?,
-        "w_grade" => params.costs.w_grade = real(text)?,
-        "joining" => params.run.joining = joining(text)?,
-        "temperature" => params.run.temperature = real(text)?,
-        "threshold" => params.run.threshold = optional_real(text)?,
-        "attach_to_segments" => params.run.attach_to_segments = flag(text)?,
-        "gamma" => params.widths.gamma = real(text)?,
-        "tip_width" => params.widths.tip_width = real(text)?,
-        "branch_angle" => params.costs.branch_angle = optional_real(text)?,
-        "elongation" => params.costs.elongation = real(text)?,
-        "rear_cost" => params.costs.rear_cost = real(text)?,
-        "grade_x" => params.domain.grade_x = real(text)?,
-        "grade_y" => params.domain.grade_y = real(text)?,
-        "runoff" => params.domain.runoff = real(text)?,
-        "refresh" => params.run.refresh = real(text)?,
-        "outline" => {
-            params.domain.outline = if text == "none" || text.is_empty() {
-                None
-            } else {
-                Some(polygon(text)?)
-            }
-        }
-        "obstacles" => {
-            params.domain.obstacles = text
-                .split('~')
-                .filter(|part| !part.trim().is_empty())
-                .map(polygon)
-                .collect::<Result<_, _>>()?
-        }
-        "mask" => params.domain.mask = mask(text)?,
-        _ => return Err(format!("`{key}` is not a parameter")),
+    match parameter(key) {
+        Some(spec) => spec.set_text(params, text),
+        None => Err(format!("`{key}` is not a parameter")),
     }
-    Ok(())
 }
 
 /// Resets fields that validation rejects to their defaults, reporting each, until the
@@ -305,8 +147,8 @@ fn repair(params: &mut Params, problems: &mut Vec<LinkProblem>) {
             "width * height" => &["width", "height"],
             "width" => &["width"],
             "height" => &["height"],
-            key => match fields().iter().find(|spec| spec.key == key) {
-                Some(spec) => &[spec.key][..],
+            key => match parameter(key) {
+                Some(spec) => std::slice::from_ref(&spec.key),
                 None => break,
             },
         };
@@ -352,124 +194,6 @@ fn problem(key: &str, value: &str, message: &str) -> LinkProblem {
         value,
         message: message.to_string(),
     }
-}
-
-fn number(value: f64) -> String {
-    format!("{value}")
-}
-
-fn optional(value: Option<f64>) -> String {
-    value.map(number).unwrap_or_else(|| "none".to_string())
-}
-
-fn polygon_text(points: &[[f64; 2]]) -> String {
-    points
-        .iter()
-        .map(|point| format!("{},{}", number(point[0]), number(point[1])))
-        .collect::<Vec<_>>()
-        .join(";")
-}
-
-fn joining_name(joining: Joining) -> &'static str {
-    match joining {
-        Joining::Cheapest => "cheapest",
-        Joining::Weighted => "weighted",
-        Joining::Uniform => "uniform",
-    }
-}
-
-fn whole<T: std::str::FromStr>(text: &str) -> Result<T, String> {
-    if text.is_empty() || !text.bytes().all(|byte| byte.is_ascii_digit()) {
-        return Err("expected a whole number".to_string());
-    }
-    text.parse()
-        .map_err(|_| "whole number out of range".to_string())
-}
-
-fn real(text: &str) -> Result<f64, String> {
-    let value: f64 = text
-        .parse()
-        .map_err(|_| "expected a number such as 0.5 or 1e-3".to_string())?;
-    if value.is_finite() {
-        Ok(value)
-    } else {
-        Err("expected a finite number".to_string())
-    }
-}
-
-fn optional_real(text: &str) -> Result<Option<f64>, String> {
-    if text == "none" || text.is_empty() {
-        return Ok(None);
-    }
-    real(text)
-        .map(Some)
-        .map_err(|_| "expected a number or none".to_string())
-}
-
-fn flag(text: &str) -> Result<bool, String> {
-    match text {
-        "true" => Ok(true),
-        "false" => Ok(false),
-        _ => Err("expected true or false".to_string()),
-    }
-}
-
-fn joining(text: &str) -> Result<Joining, String> {
-    match text {
-        "cheapest" => Ok(Joining::Cheapest),
-        "weighted" => Ok(Joining::Weighted),
-        "uniform" => Ok(Joining::Uniform),
-        _ => Err("expected cheapest, weighted or uniform".to_string()),
-    }
-}
-
-fn roots(text: &str) -> Result<Vec<Root>, String> {
-    text.split(';')
-        .filter(|part| !part.trim().is_empty())
-        .map(|group| {
-            let parts: Vec<&str> = group.split(',').map(str::trim).collect();
-            let [x, y, dx, dy] = parts[..] else {
-                return Err(format!("root {group:?}: expected x,y,dx,dy"));
-            };
-            Ok(Root {
-                x: whole(x).map_err(|error| format!("root {group:?}: x: {error}"))?,
-                y: whole(y).map_err(|error| format!("root {group:?}: y: {error}"))?,
-                outflow: [
-                    real(dx).map_err(|error| format!("root {group:?}: dx: {error}"))?,
-                    real(dy).map_err(|error| format!("root {group:?}: dy: {error}"))?,
-                ],
-            })
-        })
-        .collect()
-}
-
-fn polygon(text: &str) -> Result<Vec<[f64; 2]>, String> {
-    text.split(';')
-        .filter(|part| !part.trim().is_empty())
-        .map(|point| {
-            let Some((x, y)) = point.split_once(',') else {
-                return Err(format!("point {point:?}: expected x,y"));
-            };
-            Ok([
-                real(x.trim()).map_err(|error| format!("point {point:?}: {error}"))?,
-                real(y.trim()).map_err(|error| format!("point {point:?}: {error}"))?,
-            ])
-        })
-        .collect()
-}
-
-fn mask(text: &str) -> Result<Option<MaskGrid>, String> {
-    if text == "none" || text.is_empty() {
-        return Ok(None);
-    }
-    let shape_error = || "expected none or WIDTHxHEIGHT:run.run.run".to_string();
-    let (size, runs) = text.split_once(':').ok_or_else(shape_error)?;
-    let (width, height) = size.split_once('x').ok_or_else(shape_error)?;
-    Ok(Some(MaskGrid {
-        width: whole(width)?,
-        height: whole(height)?,
-        runs: runs.split('.').map(whole).collect::<Result<_, _>>()?,
-    }))
 }
 
 /// Characters written as they are; everything else is %-escaped (RFC 3986, section 2.3

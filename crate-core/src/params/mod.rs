@@ -7,6 +7,9 @@ use serde::{Deserialize, Serialize};
 
 use crate::mask::MaskGrid;
 
+pub mod table;
+mod text;
+
 pub use crate::limits::{MAX_CELLS, MAX_RADIUS};
 
 /// Every parameter of a run, in four named parts. The JSON keys and link keys are the field
@@ -166,55 +169,12 @@ impl std::fmt::Display for ParamError {
 
 impl std::error::Error for ParamError {}
 
-/// Defaults of every key. Run links of format version 1 fill missing keys from their own
-/// frozen copy (`link::version_1_defaults`), so a change here never changes an old link.
+/// Defaults of every key (the `default` column of the parameter table). Run links of format
+/// version 1 fill missing keys from their own frozen column (`link::version_1_defaults`), so a
+/// change here never changes an old link.
 impl Default for Params {
     fn default() -> Self {
-        Params {
-            domain: Domain {
-                width: 120,
-                height: 120,
-                cell_size: 0.15,
-                units: "mm".to_string(),
-                roots: vec![Root {
-                    x: 60,
-                    y: 100,
-                    outflow: [0.0, 1.0],
-                }],
-                jitter: 0.35,
-                grade_x: 0.0,
-                grade_y: 0.0,
-                runoff: 1.0,
-                outline: None,
-                obstacles: Vec::new(),
-                mask: None,
-            },
-            costs: CostWeights {
-                w_len: 1.0,
-                w_turn: 1.0,
-                w_flow: 0.5,
-                alpha: 0.5,
-                w_path: 0.0,
-                w_grade: 0.0,
-                branch_angle: None,
-                elongation: 1.0,
-                rear_cost: 1.0,
-            },
-            run: RunControl {
-                seed: 1,
-                cells: 10_000,
-                radius: 4.0,
-                joining: Joining::Weighted,
-                temperature: 0.5,
-                threshold: None,
-                attach_to_segments: false,
-                refresh: 0.05,
-            },
-            widths: Widths {
-                gamma: 3.0,
-                tip_width: 0.12,
-            },
-        }
+        Params::from_table_column(|spec| spec.default)
     }
 }
 
@@ -247,14 +207,6 @@ impl TryFrom<serde_json::Value> for Params {
 
     fn try_from(value: serde_json::Value) -> Result<Params, ParamError> {
         Params::from_json_value(value)
-    }
-}
-
-/// Every JSON key: the keys of the serialized defaults (every field serializes, `None` as null).
-fn known_keys() -> Vec<String> {
-    match serde_json::to_value(Params::default()) {
-        Ok(serde_json::Value::Object(map)) => map.keys().cloned().collect(),
-        _ => Vec::new(),
     }
 }
 
@@ -293,8 +245,8 @@ impl Params {
                 allowed: "a JSON object of parameters".into(),
             });
         };
-        let known = known_keys();
-        if let Some((key, entry)) = map.iter().find(|(key, _)| !known.contains(key)) {
+        if let Some((key, entry)) = map.iter().find(|(key, _)| table::parameter(key).is_none()) {
+            let known: Vec<&str> = table::parameters().iter().map(|spec| spec.key).collect();
             return Err(ParamError {
                 key: key.clone(),
                 value: short_text(&entry.to_string()),
@@ -329,10 +281,16 @@ impl Params {
         self.domain.units == "m" || self.domain.units == "ft"
     }
 
-    /// Checks every parameter; the first failure is returned, naming the key.
+    /// Checks every parameter; the first failure is returned, naming the key. The lattice size
+    /// comes first (roots and the mask are checked against it), then every entry of the
+    /// parameter table (bounds and the rules of its kind), then the rules across fields.
     pub fn validate(&self) -> Result<(), ParamError> {
-        check_range("width", self.domain.width as f64, 1.0, 20_000.0)?;
-        check_range("height", self.domain.height as f64, 1.0, 20_000.0)?;
+        let lattice = ["width", "height"];
+        for key in lattice {
+            if let Some(spec) = table::parameter(key) {
+                spec.check(self)?;
+            }
+        }
         let total = self.domain.width as u64 * self.domain.height as u64;
         if total > MAX_CELLS {
             return Err(ParamError {
@@ -344,52 +302,10 @@ impl Params {
                 allowed: format!("at most {MAX_CELLS} cells fit in memory"),
             });
         }
-        check_positive("cell_size", self.domain.cell_size)?;
-        if !UNITS.contains(&self.domain.units.as_str()) {
-            return Err(ParamError {
-                key: "units".into(),
-                value: format!("{:?}", self.domain.units),
-                allowed: format!("one of {}", UNITS.join(", ")),
-            });
-        }
-        if self.domain.roots.is_empty() {
-            return Err(ParamError {
-                key: "roots".into(),
-                value: "[]".into(),
-                allowed: "at least one root".into(),
-            });
-        }
-        for (index, root) in self.domain.roots.iter().enumerate() {
-            let key = |field: &str| format!("roots[{index}].{field}");
-            if root.x >= self.domain.width {
-                return Err(ParamError {
-                    key: key("x"),
-                    value: root.x.to_string(),
-                    allowed: format!("0 ..= {} (inside the lattice)", self.domain.width - 1),
-                });
+        for spec in table::parameters() {
+            if !lattice.contains(&spec.key) {
+                spec.check(self)?;
             }
-            if root.y >= self.domain.height {
-                return Err(ParamError {
-                    key: key("y"),
-                    value: root.y.to_string(),
-                    allowed: format!("0 ..= {} (inside the lattice)", self.domain.height - 1),
-                });
-            }
-            let [dx, dy] = root.outflow;
-            if !dx.is_finite() || !dy.is_finite() || (dx == 0.0 && dy == 0.0) {
-                return Err(ParamError {
-                    key: key("outflow"),
-                    value: format!("[{dx}, {dy}]"),
-                    allowed: "a finite, non-zero direction [dx, dy]".into(),
-                });
-            }
-        }
-        if self.run.cells == 0 {
-            return Err(ParamError {
-                key: "cells".into(),
-                value: "0".into(),
-                allowed: "at least 1".into(),
-            });
         }
         // The budget counts the roots, which are all planted at once: it must hold them.
         if self.run.cells < self.domain.roots.len() as u64 {
@@ -402,80 +318,67 @@ impl Params {
                 ),
             });
         }
-        check_range("radius", self.run.radius, 1.0, MAX_RADIUS)?;
-        check_range("jitter", self.domain.jitter, 0.0, 0.49)?;
-        for (key, value) in [
-            ("w_len", self.costs.w_len),
-            ("w_turn", self.costs.w_turn),
-            ("w_flow", self.costs.w_flow),
-            ("w_path", self.costs.w_path),
-            ("w_grade", self.costs.w_grade),
-        ] {
-            check_range(key, value, 0.0, 1.0e6)?;
-        }
-        check_range("alpha", self.costs.alpha, 0.0, 1.0)?;
-        check_positive("temperature", self.run.temperature)?;
-        if let Some(threshold) = self.run.threshold {
-            check_range("threshold", threshold, -1.0e12, 1.0e12)?;
-        }
-        check_range("gamma", self.widths.gamma, 1.0, 10.0)?;
-        check_positive("tip_width", self.widths.tip_width)?;
-        check_range("tip_width", self.widths.tip_width, 0.0, 1.0)?;
-        if let Some(angle) = self.costs.branch_angle {
-            check_range("branch_angle", angle, 0.0, 150.0)?;
-        }
-        check_range("elongation", self.costs.elongation, 1.0, 10.0)?;
-        check_range("rear_cost", self.costs.rear_cost, 1.0, 10.0)?;
-        check_range("grade_x", self.domain.grade_x, -1.0, 1.0)?;
-        check_range("grade_y", self.domain.grade_y, -1.0, 1.0)?;
-        check_positive("runoff", self.domain.runoff)?;
-        check_range("runoff", self.domain.runoff, 0.0, 1.0)?;
-        check_range("refresh", self.run.refresh, 0.001, 1.0)?;
-        if let Some(outline) = &self.domain.outline {
-            check_polygon("outline", outline)?;
-        }
-        for (index, obstacle) in self.domain.obstacles.iter().enumerate() {
-            check_polygon(&format!("obstacles[{index}]"), obstacle)?;
-        }
-        if let Some(mask) = &self.domain.mask {
-            mask.validate(self.domain.width, self.domain.height)
-                .map_err(|error| ParamError {
-                    key: error.key().into(),
-                    value: error.value(),
-                    allowed: error.allowed(),
-                })?;
-        }
         Ok(())
     }
-}
 
-fn check_range(key: &str, value: f64, low: f64, high: f64) -> Result<(), ParamError> {
-    if value.is_finite() && value >= low && value <= high {
-        return Ok(());
+    /// Parameters with every field set from one text column of the parameter table.
+    pub(crate) fn from_table_column(column: fn(&table::ParamSpec) -> &'static str) -> Params {
+        let mut params = blank();
+        for spec in table::parameters() {
+            let result = spec.set_text(&mut params, column(spec));
+            debug_assert!(result.is_ok(), "default of `{}` does not read", spec.key);
+        }
+        params
     }
-    Err(ParamError {
-        key: key.to_string(),
-        value: format_number(value),
-        allowed: format!(
-            "a finite number in [{}, {}]",
-            format_number(low),
-            format_number(high)
-        ),
-    })
 }
 
-fn check_positive(key: &str, value: f64) -> Result<(), ParamError> {
-    if value.is_finite() && value > 0.0 {
-        return Ok(());
+/// Placeholder values that `from_table_column` overwrites field by field (every field has a
+/// table entry; a test checks that the defaults differ from these wherever it matters).
+fn blank() -> Params {
+    Params {
+        domain: Domain {
+            width: 0,
+            height: 0,
+            cell_size: 0.0,
+            units: String::new(),
+            jitter: 0.0,
+            roots: Vec::new(),
+            outline: None,
+            obstacles: Vec::new(),
+            mask: None,
+            grade_x: 0.0,
+            grade_y: 0.0,
+            runoff: 0.0,
+        },
+        costs: CostWeights {
+            w_len: 0.0,
+            w_turn: 0.0,
+            branch_angle: None,
+            w_flow: 0.0,
+            alpha: 0.0,
+            w_path: 0.0,
+            elongation: 0.0,
+            rear_cost: 0.0,
+            w_grade: 0.0,
+        },
+        run: RunControl {
+            seed: 0,
+            cells: 0,
+            joining: Joining::Cheapest,
+            temperature: 0.0,
+            threshold: None,
+            radius: 0.0,
+            attach_to_segments: false,
+            refresh: 0.0,
+        },
+        widths: Widths {
+            gamma: 0.0,
+            tip_width: 0.0,
+        },
     }
-    Err(ParamError {
-        key: key.to_string(),
-        value: format_number(value),
-        allowed: "a finite number greater than 0".into(),
-    })
 }
 
-fn check_polygon(key: &str, points: &[[f64; 2]]) -> Result<(), ParamError> {
+pub(crate) fn check_polygon(key: &str, points: &[[f64; 2]]) -> Result<(), ParamError> {
     if points.len() < 3 {
         return Err(ParamError {
             key: key.to_string(),

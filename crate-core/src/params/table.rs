@@ -1,0 +1,842 @@
+//! The parameter table: one `ParamSpec` per key (group, label, unit, kind, bounds, default,
+//! help, link-version-1 default, fitting scale and accessor), in the order the page shows them.
+//!
+//! Everything else about a parameter comes from here: `Params::default` and
+//! `link::version_1_defaults` (the two default columns), `Params::validate` (bounds and the
+//! per-kind rules), the page's schema (`schema::fields`), the run-link codec (`text` and
+//! `set_text`), README's parameter table (`readme_table`) and the test strategies in `tests/`.
+//! Adding a parameter is one entry here plus its field in a part of `Params` and its use in the
+//! model.
+
+use super::text;
+use super::{check_polygon, format_number, Joining, ParamError, Params, Root, UNITS};
+use crate::limits::{MAX_CELLS, MAX_RADIUS};
+use crate::mask::MaskGrid;
+
+/// One parameter: what the page shows, what validation allows, and how to reach its field.
+#[derive(Clone, Copy)]
+pub struct ParamSpec {
+    /// The JSON key and the link key.
+    pub key: &'static str,
+    /// The panel group on the page.
+    pub group: &'static str,
+    /// Short human label.
+    pub label: &'static str,
+    /// Unit shown beside the control; `length` means the run's own length unit.
+    pub unit: &'static str,
+    /// Smallest and largest allowed value (numeric kinds only).
+    pub bounds: Option<Bounds>,
+    /// The default, as link text.
+    pub default: &'static str,
+    /// The default of link format version 1, as link text: frozen, never changed.
+    pub link_v1_default: &'static str,
+    /// How a fit to measured targets should step this parameter; `None` when it is not fitted.
+    pub fit: Option<FitScale>,
+    /// One line of help.
+    pub help: &'static str,
+    /// The field in `Params`, which also decides the kind of value.
+    pub access: Access,
+}
+
+/// The allowed range of a numeric parameter.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Bounds {
+    /// Smallest allowed value.
+    pub min: f64,
+    /// Whether `min` itself is excluded.
+    pub min_excluded: bool,
+    /// Largest allowed value (included); `f64::MAX` means only "finite".
+    pub max: f64,
+}
+
+/// How a fit steps a parameter: evenly, or evenly in its logarithm (positive values spanning
+/// several orders of magnitude).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum FitScale {
+    /// Even steps of the value.
+    Linear,
+    /// Even steps of the logarithm of the value.
+    Log,
+}
+
+/// What sort of value a field holds, which decides the form control and the link syntax.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum FieldKind {
+    /// A whole number.
+    Integer,
+    /// A real number.
+    Number,
+    /// A real number or `none` (off).
+    OptionalNumber,
+    /// `true` or `false`.
+    Flag,
+    /// One of `choices`.
+    Choice,
+    /// Roots as `x,y,dx,dy` groups separated by `;`.
+    Roots,
+    /// One polygon as `x,y` points separated by `;`, or `none`.
+    Polygon,
+    /// Several polygons separated by `~`, or empty.
+    Polygons,
+    /// A run-length coded image mask, set by importing an image.
+    Mask,
+}
+
+/// Reads and writes one field of `Params`: a getter and a mutable getter of the field's type.
+#[derive(Clone, Copy)]
+pub enum Access {
+    /// A whole number that fits 32 bits.
+    Count32(fn(&Params) -> &u32, fn(&mut Params) -> &mut u32),
+    /// A whole number that fits 64 bits.
+    Count64(fn(&Params) -> &u64, fn(&mut Params) -> &mut u64),
+    /// A finite real number.
+    Real(fn(&Params) -> &f64, fn(&mut Params) -> &mut f64),
+    /// A finite real number or none.
+    OptionalReal(
+        fn(&Params) -> &Option<f64>,
+        fn(&mut Params) -> &mut Option<f64>,
+    ),
+    /// A flag.
+    Flag(fn(&Params) -> &bool, fn(&mut Params) -> &mut bool),
+    /// The joining rule.
+    Joining(fn(&Params) -> &Joining, fn(&mut Params) -> &mut Joining),
+    /// The length unit, one of `UNITS`.
+    Units(fn(&Params) -> &String, fn(&mut Params) -> &mut String),
+    /// The roots.
+    Roots(fn(&Params) -> &Vec<Root>, fn(&mut Params) -> &mut Vec<Root>),
+    /// One polygon or none.
+    Polygon(
+        fn(&Params) -> &Option<Vec<[f64; 2]>>,
+        fn(&mut Params) -> &mut Option<Vec<[f64; 2]>>,
+    ),
+    /// Several polygons.
+    Polygons(
+        fn(&Params) -> &Vec<Vec<[f64; 2]>>,
+        fn(&mut Params) -> &mut Vec<Vec<[f64; 2]>>,
+    ),
+    /// The image mask or none.
+    Mask(
+        fn(&Params) -> &Option<MaskGrid>,
+        fn(&mut Params) -> &mut Option<MaskGrid>,
+    ),
+}
+
+/// `field!(Real, costs.alpha)`: the accessor of `params.costs.alpha`.
+macro_rules! field {
+    ($variant:ident, $part:ident . $name:ident) => {
+        Access::$variant(
+            |params| &params.$part.$name,
+            |params| &mut params.$part.$name,
+        )
+    };
+}
+
+/// Bounds `[min, max]`.
+const fn closed(min: f64, max: f64) -> Option<Bounds> {
+    Some(Bounds {
+        min,
+        min_excluded: false,
+        max,
+    })
+}
+
+/// Bounds `(min, max]`.
+const fn open_below(min: f64, max: f64) -> Option<Bounds> {
+    Some(Bounds {
+        min,
+        min_excluded: true,
+        max,
+    })
+}
+
+/// Largest cost weight: larger weights only rescale the cost, and keep sums far from overflow.
+const MAX_WEIGHT: f64 = 1.0e6;
+
+/// The parameter table, in the order the page shows the fields and links write them.
+static PARAMETERS: [ParamSpec; 31] = [
+    ParamSpec {
+        key: "seed",
+        group: "Run",
+        label: "Seed",
+        unit: "",
+        bounds: closed(0.0, u64::MAX as f64),
+        default: "1",
+        link_v1_default: "1",
+        fit: None,
+        help: "Seed of the random generator; the same seed and parameters give the same network.",
+        access: field!(Count64, run.seed),
+    },
+    ParamSpec {
+        key: "cells",
+        group: "Run",
+        label: "Cell budget",
+        unit: "cells",
+        bounds: closed(1.0, MAX_CELLS as f64),
+        default: "10000",
+        link_v1_default: "10000",
+        fit: None,
+        help: "Growth stops after this many cells, roots included; at least the number of roots.",
+        access: field!(Count64, run.cells),
+    },
+    ParamSpec {
+        key: "joining",
+        group: "Run",
+        label: "Joining rule",
+        unit: "",
+        bounds: None,
+        default: "weighted",
+        link_v1_default: "weighted",
+        fit: None,
+        help: "cheapest: always the cheapest frontier cell; weighted: drawn with weight exp(-(C - Cmin)/T); uniform: any frontier cell alike.",
+        access: field!(Joining, run.joining),
+    },
+    ParamSpec {
+        key: "temperature",
+        group: "Run",
+        label: "Temperature T",
+        unit: "cost",
+        bounds: open_below(0.0, f64::MAX),
+        default: "0.5",
+        link_v1_default: "0.5",
+        fit: Some(FitScale::Log),
+        help: "Spread of weighted joining: larger is more random.",
+        access: field!(Real, run.temperature),
+    },
+    ParamSpec {
+        key: "threshold",
+        group: "Run",
+        label: "Stop threshold",
+        unit: "cost",
+        bounds: closed(-1.0e12, 1.0e12),
+        default: "none",
+        link_v1_default: "none",
+        fit: Some(FitScale::Linear),
+        help: "Open growth: stop when no frontier cell costs less than this; none turns it off.",
+        access: field!(OptionalReal, run.threshold),
+    },
+    ParamSpec {
+        key: "radius",
+        group: "Run",
+        label: "Joining distance",
+        unit: "cells",
+        bounds: closed(1.0, MAX_RADIUS),
+        default: "4",
+        link_v1_default: "4",
+        fit: Some(FitScale::Linear),
+        help: "Farthest a new cell may lie from the node or segment it joins.",
+        access: field!(Real, run.radius),
+    },
+    ParamSpec {
+        key: "attach_to_segments",
+        group: "Run",
+        label: "Attach to vein sides",
+        unit: "",
+        bounds: None,
+        default: "false",
+        link_v1_default: "false",
+        fit: None,
+        help: "Whether a new cell may join the middle of a segment, splitting it.",
+        access: field!(Flag, run.attach_to_segments),
+    },
+    ParamSpec {
+        key: "refresh",
+        group: "Run",
+        label: "Flow refresh",
+        unit: "fraction",
+        bounds: closed(0.001, 1.0),
+        default: "0.05",
+        link_v1_default: "0.05",
+        fit: None,
+        help: "Flows are recomputed each time the network grows by this fraction.",
+        access: field!(Real, run.refresh),
+    },
+    ParamSpec {
+        key: "w_len",
+        group: "Costs",
+        label: "Length weight",
+        unit: "",
+        bounds: closed(0.0, MAX_WEIGHT),
+        default: "1",
+        link_v1_default: "1",
+        fit: Some(FitScale::Linear),
+        help: "Weight of segment length.",
+        access: field!(Real, costs.w_len),
+    },
+    ParamSpec {
+        key: "w_turn",
+        group: "Costs",
+        label: "Angle weight",
+        unit: "",
+        bounds: closed(0.0, MAX_WEIGHT),
+        default: "1",
+        link_v1_default: "1",
+        fit: Some(FitScale::Linear),
+        help: "Weight of the junction-angle penalty.",
+        access: field!(Real, costs.w_turn),
+    },
+    ParamSpec {
+        key: "branch_angle",
+        group: "Costs",
+        label: "Preferred angle",
+        unit: "degrees",
+        bounds: closed(0.0, 150.0),
+        default: "none",
+        link_v1_default: "none",
+        fit: Some(FitScale::Linear),
+        help: "Branching angle the angle penalty favours; none favours straight continuation.",
+        access: field!(OptionalReal, costs.branch_angle),
+    },
+    ParamSpec {
+        key: "w_flow",
+        group: "Costs",
+        label: "Transport weight",
+        unit: "",
+        bounds: closed(0.0, MAX_WEIGHT),
+        default: "0.5",
+        link_v1_default: "0.5",
+        fit: Some(FitScale::Linear),
+        help: "Weight of branched transport, flow^alpha times length.",
+        access: field!(Real, costs.w_flow),
+    },
+    ParamSpec {
+        key: "alpha",
+        group: "Costs",
+        label: "Transport exponent alpha",
+        unit: "",
+        bounds: closed(0.0, 1.0),
+        default: "0.5",
+        link_v1_default: "0.5",
+        fit: Some(FitScale::Linear),
+        help: "Below 1, shared trunks are cheaper than parallel veins.",
+        access: field!(Real, costs.alpha),
+    },
+    ParamSpec {
+        key: "w_path",
+        group: "Costs",
+        label: "Supply-distance weight",
+        unit: "",
+        bounds: closed(0.0, MAX_WEIGHT),
+        default: "0",
+        link_v1_default: "0",
+        fit: Some(FitScale::Linear),
+        help: "Weight of the distance along the network back to the root.",
+        access: field!(Real, costs.w_path),
+    },
+    ParamSpec {
+        key: "elongation",
+        group: "Costs",
+        label: "Elongation",
+        unit: "",
+        bounds: closed(1.0, 10.0),
+        default: "1",
+        link_v1_default: "1",
+        fit: Some(FitScale::Log),
+        help: "Supply lengths along the root's axis count 1/elongation.",
+        access: field!(Real, costs.elongation),
+    },
+    ParamSpec {
+        key: "rear_cost",
+        group: "Costs",
+        label: "Rear cost",
+        unit: "",
+        bounds: closed(1.0, 10.0),
+        default: "1",
+        link_v1_default: "1",
+        fit: Some(FitScale::Log),
+        help: "Supply distance behind the root counts this many times.",
+        access: field!(Real, costs.rear_cost),
+    },
+    ParamSpec {
+        key: "w_grade",
+        group: "Terrain",
+        label: "Uphill weight",
+        unit: "",
+        bounds: closed(0.0, MAX_WEIGHT),
+        default: "0",
+        link_v1_default: "0",
+        fit: Some(FitScale::Linear),
+        help: "Weight of running uphill (sites).",
+        access: field!(Real, costs.w_grade),
+    },
+    ParamSpec {
+        key: "grade_x",
+        group: "Terrain",
+        label: "Slope east",
+        unit: "m/m",
+        bounds: closed(-1.0, 1.0),
+        default: "0",
+        link_v1_default: "0",
+        fit: Some(FitScale::Linear),
+        help: "Terrain rise per unit run to the right.",
+        access: field!(Real, domain.grade_x),
+    },
+    ParamSpec {
+        key: "grade_y",
+        group: "Terrain",
+        label: "Slope south",
+        unit: "m/m",
+        bounds: closed(-1.0, 1.0),
+        default: "0",
+        link_v1_default: "0",
+        fit: Some(FitScale::Linear),
+        help: "Terrain rise per unit run down the page.",
+        access: field!(Real, domain.grade_y),
+    },
+    ParamSpec {
+        key: "runoff",
+        group: "Terrain",
+        label: "Runoff coefficient",
+        unit: "",
+        bounds: open_below(0.0, 1.0),
+        default: "1",
+        link_v1_default: "1",
+        fit: Some(FitScale::Linear),
+        help: "Share of rain on a cell that runs off (sites); 1 for leaves.",
+        access: field!(Real, domain.runoff),
+    },
+    ParamSpec {
+        key: "gamma",
+        group: "Widths",
+        label: "Width exponent gamma",
+        unit: "",
+        bounds: closed(1.0, 10.0),
+        default: "3",
+        link_v1_default: "3",
+        fit: Some(FitScale::Linear),
+        help: "Width grows as flow^(1/gamma); 3 is Murray's law, 2 keeps the cross-section area.",
+        access: field!(Real, widths.gamma),
+    },
+    ParamSpec {
+        key: "tip_width",
+        group: "Widths",
+        label: "Tip width",
+        unit: "cells",
+        bounds: open_below(0.0, 1.0),
+        default: "0.12",
+        link_v1_default: "0.12",
+        fit: Some(FitScale::Log),
+        help: "Width of a one-cell veinlet, as a fraction of a cell.",
+        access: field!(Real, widths.tip_width),
+    },
+    ParamSpec {
+        key: "width",
+        group: "Lattice",
+        label: "Width",
+        unit: "cells",
+        bounds: closed(1.0, 20_000.0),
+        default: "120",
+        link_v1_default: "120",
+        fit: None,
+        help: "Lattice columns; width times height is at most 25,000,000.",
+        access: field!(Count32, domain.width),
+    },
+    ParamSpec {
+        key: "height",
+        group: "Lattice",
+        label: "Height",
+        unit: "cells",
+        bounds: closed(1.0, 20_000.0),
+        default: "120",
+        link_v1_default: "120",
+        fit: None,
+        help: "Lattice rows, counted from the top.",
+        access: field!(Count32, domain.height),
+    },
+    ParamSpec {
+        key: "cell_size",
+        group: "Lattice",
+        label: "Cell size",
+        unit: "length",
+        bounds: open_below(0.0, f64::MAX),
+        default: "0.15",
+        link_v1_default: "0.15",
+        fit: None,
+        help: "Side of one cell in the length unit.",
+        access: field!(Real, domain.cell_size),
+    },
+    ParamSpec {
+        key: "units",
+        group: "Lattice",
+        label: "Length unit",
+        unit: "",
+        bounds: None,
+        default: "mm",
+        link_v1_default: "mm",
+        fit: None,
+        help: "mm or um for leaves; m or ft for sites (sites carry the drainage caution).",
+        access: field!(Units, domain.units),
+    },
+    ParamSpec {
+        key: "jitter",
+        group: "Lattice",
+        label: "Jitter",
+        unit: "cells",
+        bounds: closed(0.0, 0.49),
+        default: "0.35",
+        link_v1_default: "0.35",
+        fit: Some(FitScale::Linear),
+        help: "Random offset of each node from its cell centre, in x and in y.",
+        access: field!(Real, domain.jitter),
+    },
+    ParamSpec {
+        key: "roots",
+        group: "Shape",
+        label: "Roots",
+        unit: "",
+        bounds: None,
+        default: "60,100,0,1",
+        link_v1_default: "60,100,0,1",
+        fit: None,
+        help: "One root per group x,y,dx,dy: the cell and the direction its flow leaves.",
+        access: field!(Roots, domain.roots),
+    },
+    ParamSpec {
+        key: "outline",
+        group: "Shape",
+        label: "Allowed outline",
+        unit: "",
+        bounds: None,
+        default: "none",
+        link_v1_default: "none",
+        fit: None,
+        help: "Polygon x,y;x,y;... in cells; a cell is allowed when its centre lies inside; none allows the whole lattice.",
+        access: field!(Polygon, domain.outline),
+    },
+    ParamSpec {
+        key: "obstacles",
+        group: "Shape",
+        label: "Obstacles",
+        unit: "",
+        bounds: None,
+        default: "",
+        link_v1_default: "",
+        fit: None,
+        help: "Polygons in cells, separated by ~; their cells stay empty.",
+        access: field!(Polygons, domain.obstacles),
+    },
+    ParamSpec {
+        key: "mask",
+        group: "Shape",
+        label: "Image mask",
+        unit: "",
+        bounds: None,
+        default: "none",
+        link_v1_default: "none",
+        fit: None,
+        help: "Allowed cells from an imported image; none allows every cell.",
+        access: field!(Mask, domain.mask),
+    },
+];
+
+/// Every parameter, in the order the page shows them and links write them.
+pub fn parameters() -> &'static [ParamSpec] {
+    &PARAMETERS
+}
+
+/// The entry of `key`, if it is a parameter.
+pub fn parameter(key: &str) -> Option<&'static ParamSpec> {
+    PARAMETERS.iter().find(|spec| spec.key == key)
+}
+
+impl std::fmt::Debug for ParamSpec {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("ParamSpec")
+            .field("key", &self.key)
+            .field("kind", &self.kind())
+            .field("bounds", &self.bounds)
+            .field("default", &self.default)
+            .finish()
+    }
+}
+
+impl ParamSpec {
+    /// The kind of value, from the accessor.
+    pub fn kind(&self) -> FieldKind {
+        match self.access {
+            Access::Count32(..) | Access::Count64(..) => FieldKind::Integer,
+            Access::Real(..) => FieldKind::Number,
+            Access::OptionalReal(..) => FieldKind::OptionalNumber,
+            Access::Flag(..) => FieldKind::Flag,
+            Access::Joining(..) | Access::Units(..) => FieldKind::Choice,
+            Access::Roots(..) => FieldKind::Roots,
+            Access::Polygon(..) => FieldKind::Polygon,
+            Access::Polygons(..) => FieldKind::Polygons,
+            Access::Mask(..) => FieldKind::Mask,
+        }
+    }
+
+    /// The allowed words of a choice or flag; empty for other kinds.
+    pub fn choices(&self) -> &'static [&'static str] {
+        match self.access {
+            Access::Joining(..) => &text::JOINING_NAMES,
+            Access::Units(..) => &UNITS,
+            Access::Flag(..) => &["false", "true"],
+            _ => &[],
+        }
+    }
+
+    /// The field's value as link text.
+    pub fn text(&self, params: &Params) -> String {
+        match self.access {
+            Access::Count32(get, _) => get(params).to_string(),
+            Access::Count64(get, _) => get(params).to_string(),
+            Access::Real(get, _) => text::number(*get(params)),
+            Access::OptionalReal(get, _) => text::optional(*get(params)),
+            Access::Flag(get, _) => get(params).to_string(),
+            Access::Joining(get, _) => text::joining_name(*get(params)).to_string(),
+            Access::Units(get, _) => get(params).clone(),
+            Access::Roots(get, _) => text::roots_text(get(params)),
+            Access::Polygon(get, _) => match get(params) {
+                Some(points) => text::polygon_text(points),
+                None => "none".to_string(),
+            },
+            Access::Polygons(get, _) => get(params)
+                .iter()
+                .map(|polygon| text::polygon_text(polygon))
+                .collect::<Vec<_>>()
+                .join("~"),
+            Access::Mask(get, _) => match get(params) {
+                Some(mask) => text::mask_text(mask),
+                None => "none".to_string(),
+            },
+        }
+    }
+
+    /// Sets the field from link text; on error the parameters are untouched and the message
+    /// says what the text should look like. Ranges are left to `Params::validate`.
+    pub fn set_text(&self, params: &mut Params, value: &str) -> Result<(), String> {
+        let value = value.trim();
+        match self.access {
+            Access::Count32(_, get) => *get(params) = text::whole(value)?,
+            Access::Count64(_, get) => *get(params) = text::whole(value)?,
+            Access::Real(_, get) => *get(params) = text::real(value)?,
+            Access::OptionalReal(_, get) => *get(params) = text::optional_real(value)?,
+            Access::Flag(_, get) => *get(params) = text::flag(value)?,
+            Access::Joining(_, get) => *get(params) = text::joining(value)?,
+            Access::Units(_, get) => *get(params) = value.to_string(),
+            Access::Roots(_, get) => *get(params) = text::roots(value)?,
+            Access::Polygon(_, get) => {
+                *get(params) = if value == "none" || value.is_empty() {
+                    None
+                } else {
+                    Some(text::polygon(value)?)
+                }
+            }
+            Access::Polygons(_, get) => {
+                *get(params) = value
+                    .split('~')
+                    .filter(|part| !part.trim().is_empty())
+                    .map(text::polygon)
+                    .collect::<Result<_, _>>()?
+            }
+            Access::Mask(_, get) => *get(params) = text::mask(value)?,
+        }
+        Ok(())
+    }
+
+    /// The field's value as a number (numeric kinds; `None` for an unset optional value).
+    pub fn number(&self, params: &Params) -> Option<f64> {
+        match self.access {
+            Access::Count32(get, _) => Some(*get(params) as f64),
+            Access::Count64(get, _) => Some(*get(params) as f64),
+            Access::Real(get, _) => Some(*get(params)),
+            Access::OptionalReal(get, _) => *get(params),
+            _ => None,
+        }
+    }
+
+    /// Checks this field alone against its bounds and the rules of its kind (roots inside the
+    /// lattice, polygons of at least three finite points, a mask the lattice's size).
+    pub fn check(&self, params: &Params) -> Result<(), ParamError> {
+        if let (Some(bounds), Some(value)) = (self.bounds, self.number(params)) {
+            if !bounds.contains(value) {
+                return Err(ParamError {
+                    key: self.key.to_string(),
+                    value: format_number(value),
+                    allowed: self.allowed_text(),
+                });
+            }
+        }
+        match self.access {
+            Access::Units(get, _) if !UNITS.contains(&get(params).as_str()) => Err(ParamError {
+                key: self.key.into(),
+                value: format!("{:?}", get(params)),
+                allowed: format!("one of {}", UNITS.join(", ")),
+            }),
+            Access::Roots(get, _) => check_roots(params, get(params)),
+            Access::Polygon(get, _) => match get(params) {
+                Some(points) => check_polygon(self.key, points),
+                None => Ok(()),
+            },
+            Access::Polygons(get, _) => {
+                for (index, polygon) in get(params).iter().enumerate() {
+                    check_polygon(&format!("{}[{index}]", self.key), polygon)?;
+                }
+                Ok(())
+            }
+            Access::Mask(get, _) => match get(params) {
+                Some(mask) => mask
+                    .validate(params.domain.width, params.domain.height)
+                    .map_err(|error| ParamError {
+                        key: error.key().into(),
+                        value: error.value(),
+                        allowed: error.allowed(),
+                    }),
+                None => Ok(()),
+            },
+            _ => Ok(()),
+        }
+    }
+
+    /// What validation accepts, in words (the `allowed` of a `ParamError`).
+    pub fn allowed_text(&self) -> String {
+        let Some(bounds) = self.bounds else {
+            return self.rule_text();
+        };
+        let noun = match self.kind() {
+            FieldKind::Integer => "a whole number",
+            _ => "a finite number",
+        };
+        let range = if bounds.max == f64::MAX {
+            if bounds.min_excluded {
+                format!("{noun} greater than {}", format_number(bounds.min))
+            } else {
+                format!("{noun} of at least {}", format_number(bounds.min))
+            }
+        } else {
+            format!(
+                "{noun} in {}{}, {}]",
+                if bounds.min_excluded { "(" } else { "[" },
+                format_number(bounds.min),
+                format_number(bounds.max)
+            )
+        };
+        if self.kind() == FieldKind::OptionalNumber {
+            format!("{range}, or none")
+        } else {
+            range
+        }
+    }
+
+    /// The allowed values in short form, as README shows them.
+    pub fn rule_text(&self) -> String {
+        if let Some(bounds) = self.bounds {
+            let low = format_number(bounds.min);
+            let text = if bounds.max == f64::MAX {
+                format!("{} {low}", if bounds.min_excluded { ">" } else { ">=" })
+            } else if bounds.max == u64::MAX as f64 {
+                "any whole number".to_string()
+            } else if bounds.min_excluded {
+                format!("({low}, {}]", format_number(bounds.max))
+            } else {
+                format!("{low} ..= {}", format_number(bounds.max))
+            };
+            return match self.kind() {
+                FieldKind::OptionalNumber => format!("{text} or none"),
+                _ => text,
+            };
+        }
+        match self.kind() {
+            FieldKind::Choice | FieldKind::Flag => self.choices().join(", "),
+            FieldKind::Roots => {
+                "at least one; each inside the lattice, a finite non-zero outflow".to_string()
+            }
+            FieldKind::Polygon => "none or at least 3 finite points".to_string(),
+            FieldKind::Polygons => "each at least 3 finite points".to_string(),
+            FieldKind::Mask => "none or the lattice's size, runs adding up to it".to_string(),
+            _ => String::new(),
+        }
+    }
+}
+
+impl Bounds {
+    /// Whether `value` is finite and inside the bounds.
+    pub fn contains(&self, value: f64) -> bool {
+        let above_min = if self.min_excluded {
+            value > self.min
+        } else {
+            value >= self.min
+        };
+        value.is_finite() && above_min && value <= self.max
+    }
+}
+
+/// Roots: at least one, each inside the lattice, with a finite non-zero outflow direction.
+fn check_roots(params: &Params, roots: &[Root]) -> Result<(), ParamError> {
+    if roots.is_empty() {
+        return Err(ParamError {
+            key: "roots".into(),
+            value: "[]".into(),
+            allowed: "at least one root".into(),
+        });
+    }
+    let (width, height) = (params.domain.width, params.domain.height);
+    for (index, root) in roots.iter().enumerate() {
+        let key = |field: &str| format!("roots[{index}].{field}");
+        if root.x >= width {
+            return Err(ParamError {
+                key: key("x"),
+                value: root.x.to_string(),
+                allowed: format!("0 ..= {} (inside the lattice)", width.saturating_sub(1)),
+            });
+        }
+        if root.y >= height {
+            return Err(ParamError {
+                key: key("y"),
+                value: root.y.to_string(),
+                allowed: format!("0 ..= {} (inside the lattice)", height.saturating_sub(1)),
+            });
+        }
+        let [dx, dy] = root.outflow;
+        if !dx.is_finite() || !dy.is_finite() || (dx == 0.0 && dy == 0.0) {
+            return Err(ParamError {
+                key: key("outflow"),
+                value: format!("[{dx}, {dy}]"),
+                allowed: "a finite, non-zero direction [dx, dy]".into(),
+            });
+        }
+    }
+    Ok(())
+}
+
+/// Start and end markers of the generated parameter table in README.md.
+pub const README_TABLE_START: &str =
+    "<!-- parameter table: generated from crate-core/src/params/table.rs, do not edit by hand -->";
+/// End marker of the generated parameter table in README.md.
+pub const README_TABLE_END: &str = "<!-- end of parameter table -->";
+
+/// README's parameter table (Markdown, between and without the markers), from the table.
+pub fn readme_table() -> String {
+    let mut out = String::from(
+        "| key | group | meaning | unit | default | allowed | fit |\n| --- | --- | --- | --- | --- | --- | --- |\n",
+    );
+    for spec in parameters() {
+        let unit = match spec.unit {
+            "" => "-".to_string(),
+            "length" => "`units`".to_string(),
+            unit => unit.to_string(),
+        };
+        let default = match spec.default {
+            "" => "(empty)".to_string(),
+            text => format!("`{text}`"),
+        };
+        let fit = match spec.fit {
+            Some(FitScale::Linear) => "linear",
+            Some(FitScale::Log) => "log",
+            None => "-",
+        };
+        out.push_str(&format!(
+            "| `{}` | {} | {}: {} | {} | {} | {} | {} |\n",
+            spec.key,
+            spec.group,
+            spec.label,
+            spec.help.replace('|', "\\|"),
+            unit,
+            default,
+            spec.rule_text().replace('|', "\\|"),
+            fit
+        ));
+    }
+    out
+}
