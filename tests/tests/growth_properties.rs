@@ -112,7 +112,6 @@ fn valid_params() -> impl Strategy<Value = Params> {
                     branch_angle,
                     elongation,
                     rear_cost,
-                    ..CostWeights::default()
                 },
                 run: RunControl {
                     seed,
@@ -123,7 +122,6 @@ fn valid_params() -> impl Strategy<Value = Params> {
                     threshold,
                     attach_to_segments: attach,
                     refresh,
-                    ..RunControl::default()
                 },
                 ..Params::default()
             }

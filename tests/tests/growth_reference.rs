@@ -539,7 +539,6 @@ fn widths_obey_murrays_law_at_junctions() {
             widths: Widths {
                 gamma,
                 tip_width: 0.2,
-                ..Widths::default()
             },
             ..Params::default()
         };

@@ -333,7 +333,7 @@ impl Params {
 }
 
 /// Placeholder values that `from_table_column` overwrites field by field (every field has a
-/// table entry; a test checks that the defaults differ from these wherever it matters).
+/// table entry: `tests/tests/parameter_table.rs` checks the table's keys against the JSON keys).
 fn blank() -> Params {
     Params {
         domain: Domain {
