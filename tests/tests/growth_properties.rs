@@ -153,7 +153,8 @@ proptest! {
 
     /// Structure: a forest with one parent per non-root node, the roots on their cells, cells
     /// inside the allowed region, distinct, and within the budget; flows conserved (flow of a
-    /// segment = own weight + sum of upstream flows, DOMAIN.md "After growth").
+    /// segment = own weight of its upstream end + sum of the flows entering that end: flow is
+    /// conserved at every node, Kirchhoff's current law, Kirchhoff 1845).
     #[test]
     fn grown_network_is_a_valid_forest(params in valid_params()) {
         prop_assert_eq!(params.validate(), Ok(()));

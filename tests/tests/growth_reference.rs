@@ -378,8 +378,10 @@ fn row_params(cells: u32, root_column: u32) -> Params {
 
 /// Flows on a row of cells, by hand: the segment leaving the cell k steps from the root carries
 /// the weight of every cell at k steps or more on its side, so on a row of n cells with the root
-/// at one end it carries (n - k) cell weights (flow = sum of upstream weights, DOMAIN.md "After
-/// growth"; cell weight = runoff * h^2). Its branched-transport cost is then
+/// at one end it carries (n - k) cell weights (flow is conserved at every node: a segment
+/// carries its upstream end's own weight plus the flows entering that end, Kirchhoff's current
+/// law, Kirchhoff 1845; cell weight = runoff * h^2, the rational method's runoff coefficient
+/// times area). Its branched-transport cost is then
 /// sum_k ((n - k) w)^alpha * h (Gilbert 1967, Xia 2003: a segment carrying q costs q^alpha len).
 #[test]
 fn flows_on_a_row_match_hand_computation() {

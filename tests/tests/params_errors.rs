@@ -143,7 +143,10 @@ fn non_finite_points_and_directions_are_rejected() {
     check_error(&rejected(&params), "roots[0].outflow", &["0"]);
 }
 
-/// Weights are documented as >= 0 (DOMAIN.md: "All weights are >= 0").
+/// Weights are >= 0. The rule, stated here: the cost is a weighted sum of length, turning,
+/// transport, supply distance and uphill run, each term >= 0, and a negative weight would reward
+/// a term, so growth would seek long, winding paths instead of cheap ones (common practice for
+/// weighted-sum costs, no source).
 #[test]
 fn negative_weights_are_rejected() {
     let weights: [(&str, Setter); 5] = [
@@ -164,7 +167,10 @@ fn negative_weights_are_rejected() {
     }
 }
 
-/// Branched transport needs alpha in [0, 1] (Xia 2003; DOMAIN.md section 1).
+/// Branched transport needs alpha in [0, 1]: a segment carrying q costs q^alpha * length, which
+/// is subadditive (shared trunks no dearer than parallel paths) only for alpha <= 1, with
+/// alpha = 1 plain transport and alpha = 0 length alone (Xia 2003, Commun. Contemp. Math. 5(2),
+/// "Optimal paths related to transport problems"; Gilbert 1967, SIAM J. Appl. Math. 15(1)).
 #[test]
 fn alpha_outside_zero_one_is_rejected() {
     for value in [-0.1, 1.5, 2.0] {

@@ -1,7 +1,10 @@
-//! Growth parameters (`Params`), their validation (`ParamError`) and the lattice size limit.
+//! Growth parameters: `Params` in four named parts (`Domain`, `CostWeights`, `RunControl`,
+//! `Widths`), their reading from JSON and their validation (`ParamError`).
 //!
-//! Every field is documented with its unit, default and allowed range. The JSON keys are the
-//! field names; unknown keys are rejected so that a typo never passes silently.
+//! Every field is documented with its unit, default and allowed range; the parameter table
+//! (`table`) holds the same facts as data, and validation, defaults, the page's schema, the
+//! run link and README's table are read off it. The JSON keys are the field names, flat;
+//! unknown keys are refused against the table so that a typo never passes silently.
 
 use serde::{Deserialize, Serialize};
 
@@ -95,7 +98,8 @@ pub struct CostWeights {
 pub struct RunControl {
     /// Seed of the random generator (ChaCha8). Default 1.
     pub seed: u64,
-    /// Cell budget: growth stops after this many cells, roots included. Default 10000; >= 1.
+    /// Cell budget: growth stops after this many cells, roots included. Default 10000;
+    /// 1 ..= 25,000,000 and at least the number of roots.
     pub cells: u64,
     /// Rule that picks the next cell. Default `weighted`.
     pub joining: Joining,
@@ -103,7 +107,8 @@ pub struct RunControl {
     pub temperature: f64,
     /// Open growth: stop when no frontier cell costs less than this. Default none (off); finite.
     pub threshold: Option<f64>,
-    /// Search radius in cells: how far a new cell may reach to attach. Default 4; 1 ..= 12.
+    /// Joining distance in cells: the farthest a new cell may lie from the node or segment it
+    /// joins. Default 4; 1 ..= 12.
     pub radius: f64,
     /// Whether a new cell may attach to the interior of a segment, splitting it. Default false.
     pub attach_to_segments: bool,
