@@ -1,17 +1,44 @@
-//! Colours of the SVG drawing: Okabe-Ito order colours (Okabe & Ito 2008) and the flow ramp.
+//! Colours of every drawing (SVG, screen, PNG): `Colouring`, the Okabe-Ito order colours
+//! (Okabe & Ito 2008), the flow ramp, and `colour_scheme` / `palette_rgb` for the page.
+
+use serde::{Deserialize, Serialize};
+
+/// How segments are coloured.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Colouring {
+    /// By Strahler order, with colours from the colour-blind-safe palette of Okabe & Ito (2008).
+    ByOrder,
+    /// By the logarithm of flow, on a ramp whose lightness falls steadily from low to high flow.
+    ByFlow,
+    /// Every segment dark grey.
+    Plain,
+}
+
+impl Colouring {
+    /// The colouring named `order`, `flow` or `plain` (the page's and the command line's words).
+    pub fn from_name(name: &str) -> Option<Colouring> {
+        match name {
+            "order" => Some(Colouring::ByOrder),
+            "flow" => Some(Colouring::ByFlow),
+            "plain" => Some(Colouring::Plain),
+            _ => None,
+        }
+    }
+}
 
 /// Text and outline colour.
-pub(super) const TEXT: &str = "#222222";
+pub const TEXT: &str = "#222222";
 
 /// Fill of root markers.
-pub(super) const ROOT_FILL: &str = "#ffffff";
+pub const ROOT_FILL: &str = "#ffffff";
 
 /// Colour of `Colouring::Plain`.
-pub(super) const PLAIN: &str = "#404040";
+pub const PLAIN: &str = "#404040";
 
 /// Strahler orders 1, 2, ... in colours of Okabe & Ito (2008), "Color Universal Design";
 /// yellow is left out as it is too faint on white. Orders past the end use the last colour.
-pub(super) const ORDER_COLOURS: [&str; 7] = [
+pub const ORDER_COLOURS: [&str; 7] = [
     "#56b4e9", // sky blue
     "#009e73", // bluish green
     "#e69f00", // orange
@@ -21,7 +48,8 @@ pub(super) const ORDER_COLOURS: [&str; 7] = [
     "#000000", // black
 ];
 
-pub(super) fn order_colour(order: u32) -> &'static str {
+/// The colour of Strahler order `order` (orders below 1 count as 1).
+pub fn order_colour(order: u32) -> &'static str {
     let index = (order.max(1) - 1) as usize;
     ORDER_COLOURS[index.min(ORDER_COLOURS.len() - 1)]
 }
@@ -29,7 +57,7 @@ pub(super) fn order_colour(order: u32) -> &'static str {
 /// The flow ramp at `t` in [0, 1] (0 = least flow): a path through the OKLab colour space
 /// (Ottosson 2020) whose lightness falls linearly from 0.87 to 0.30 while the hue turns from
 /// yellow-green through teal to blue, so light thin veinlets recede and dark trunks stand out.
-pub(super) fn flow_colour(t: f64) -> String {
+pub fn flow_colour(t: f64) -> String {
     let t = if t.is_finite() {
         t.clamp(0.0, 1.0)
     } else {
@@ -60,7 +88,7 @@ pub(super) fn flow_colour(t: f64) -> String {
 }
 
 /// OKLab to linear sRGB (Ottosson 2020, "A perceptual color space for image processing").
-pub(super) fn oklab_to_linear_srgb(lightness: f64, a: f64, b: f64) -> [f64; 3] {
+pub fn oklab_to_linear_srgb(lightness: f64, a: f64, b: f64) -> [f64; 3] {
     let l = lightness + 0.396_337_777_4 * a + 0.215_803_757_3 * b;
     let m = lightness - 0.105_561_345_8 * a - 0.063_854_172_8 * b;
     let s = lightness - 0.089_484_177_5 * a - 1.291_485_548_0 * b;
@@ -95,5 +123,68 @@ pub fn colour_scheme() -> ColourScheme {
             .map(|step| flow_colour(step as f64 / (FLOW_RAMP_STEPS - 1) as f64))
             .collect(),
         plain: PLAIN,
+    }
+}
+
+/// The palette of a colouring as RGB: the order colours, the flow ramp's `FLOW_RAMP_STEPS`
+/// steps, or the one plain colour. Palette indices of `screen::ScreenGeometry` point into it.
+pub fn palette_rgb(colouring: Colouring) -> Vec<[u8; 3]> {
+    let scheme = colour_scheme();
+    let hex: Vec<String> = match colouring {
+        Colouring::ByOrder => scheme
+            .order
+            .iter()
+            .map(|colour| colour.to_string())
+            .collect(),
+        Colouring::ByFlow => scheme.flow,
+        Colouring::Plain => vec![scheme.plain.to_string()],
+    };
+    hex.iter().map(|text| parse_hex(text)).collect()
+}
+
+/// `#rrggbb` as three bytes (black when malformed).
+pub fn parse_hex(text: &str) -> [u8; 3] {
+    let value = u32::from_str_radix(text.trim_start_matches('#'), 16).unwrap_or(0);
+    [(value >> 16) as u8, (value >> 8) as u8, value as u8]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Relative luminance (WCAG 2.0, "relative luminance" definition) of a `#rrggbb` colour.
+    fn relative_luminance(colour: &str) -> f64 {
+        let channel = |offset: usize| {
+            let value = u8::from_str_radix(&colour[offset..offset + 2], 16).unwrap() as f64 / 255.0;
+            if value <= 0.04045 {
+                value / 12.92
+            } else {
+                ((value + 0.055) / 1.055).powf(2.4)
+            }
+        };
+        0.2126 * channel(1) + 0.7152 * channel(3) + 0.0722 * channel(5)
+    }
+
+    #[test]
+    fn flow_ramp_darkens_steadily() {
+        let mut previous = f64::INFINITY;
+        for step in 0..=20 {
+            let colour = flow_colour(step as f64 / 20.0);
+            let luminance = relative_luminance(&colour);
+            assert!(luminance < previous, "step {step}: {colour} is not darker");
+            previous = luminance;
+        }
+    }
+
+    /// Okabe & Ito (2008): sky blue is (86, 180, 233), vermilion (213, 94, 0).
+    #[test]
+    fn palettes_come_as_bytes() {
+        let order = palette_rgb(Colouring::ByOrder);
+        assert_eq!(order[0], [86, 180, 233]);
+        assert_eq!(order[4], [213, 94, 0]);
+        assert_eq!(palette_rgb(Colouring::ByFlow).len(), FLOW_RAMP_STEPS);
+        assert_eq!(palette_rgb(Colouring::Plain), vec![[0x40, 0x40, 0x40]]);
+        assert_eq!(Colouring::from_name("flow"), Some(Colouring::ByFlow));
+        assert_eq!(Colouring::from_name("Flow"), None);
     }
 }

@@ -1,16 +1,19 @@
-//! `Geometry`: per-segment buffers (end points, widths, orders, flows, lengths, colour index)
-//! that the page reads through typed-array views into wasm memory, refilled in place from a
-//! network, and `Geometry::raster`, which draws the thin segments into a pixel buffer.
+//! `ScreenGeometry`: per-segment buffers (end points, widths, orders, flows, lengths, colour
+//! index) that the page reads through typed-array views into wasm memory, refilled in place
+//! from a network and its segment table; `ScreenGeometry::raster` draws the thin segments into
+//! a pixel buffer, and `legend_facts` describes what is drawn for the colour key.
 
 use ramulus_core::network::Network;
-use ramulus_core::raster::{draw_lines, fill, spatial_order, Line, RasterView};
-use ramulus_core::segments::{SegmentTable, WidthRule};
-use ramulus_core::svg::{colour_scheme, FLOW_RAMP_STEPS};
+use ramulus_core::segments::SegmentTable;
+
+use crate::legend::LegendFacts;
+use crate::palette::{palette_rgb, Colouring, FLOW_RAMP_STEPS};
+use crate::raster::{draw_lines, fill, spatial_order, Line, RasterView};
 
 /// Flat buffers, one entry per node: segment `i` runs from node `i` to its parent; a root's
 /// entry has both ends at the root and zero length.
 #[derive(Default)]
-pub struct Geometry {
+pub struct ScreenGeometry {
     /// `x0, y0, x1, y1` per segment, physical units (y down).
     pub ends: Vec<f32>,
     /// Drawn width, physical units.
@@ -25,10 +28,12 @@ pub struct Geometry {
     pub flow_range: (f64, f64),
     /// Highest order present.
     pub max_order: u32,
+    /// Entries that are segments (not roots).
+    pub segment_count: usize,
     /// Palette index of each segment under `colouring`.
     pub colours: Vec<u8>,
-    /// The colouring `colours` was computed for (empty when stale).
-    pub colouring: String,
+    /// The colouring `colours` was computed for (`None` when stale).
+    pub colouring: Option<Colouring>,
     /// RGB of each palette index under `colouring`.
     pub palette: Vec<[u8; 3]>,
     /// RGBA pixels of the last raster.
@@ -40,35 +45,12 @@ pub struct Geometry {
 /// Cells per side of the grid that orders segments for drawing.
 const DRAW_ORDER_GRID: usize = 128;
 
-/// Page colourings: `order`, `flow` or `plain`.
-fn palette(colouring: &str) -> Vec<[u8; 3]> {
-    let scheme = colour_scheme();
-    let hex: Vec<String> = match colouring {
-        "order" => scheme
-            .order
-            .iter()
-            .map(|colour| colour.to_string())
-            .collect(),
-        "flow" => scheme.flow,
-        _ => vec![scheme.plain.to_string()],
-    };
-    hex.iter().map(|text| parse_hex(text)).collect()
-}
-
-fn parse_hex(text: &str) -> [u8; 3] {
-    let value = u32::from_str_radix(text.trim_start_matches('#'), 16).unwrap_or(0);
-    [(value >> 16) as u8, (value >> 8) as u8, value as u8]
-}
-
-impl Geometry {
-    /// Refills every buffer from `network`, reusing their allocations. Returns false (and
-    /// empties the buffers) when the nodes are not a forest, which a grown network always is.
-    pub fn fill(&mut self, network: &Network, rule: WidthRule) -> bool {
+impl ScreenGeometry {
+    /// Refills every buffer from `network` and its segment table, reusing their allocations.
+    /// Entries the table lacks count as width 0, order 1, flow 0, length 0.
+    pub fn fill(&mut self, network: &Network, table: &SegmentTable) {
         self.clear();
-        let Ok(topology) = network.topology() else {
-            return false;
-        };
-        let table = SegmentTable::compute(network, &topology, rule);
+        let at = |values: &[f64], index: usize| values.get(index).copied().unwrap_or(0.0);
         let mut low = f64::INFINITY;
         let mut high = 0.0f64;
         for (index, node) in network.nodes.iter().enumerate() {
@@ -78,17 +60,19 @@ impl Geometry {
             };
             self.ends
                 .extend_from_slice(&[node.x as f32, node.y as f32, x1 as f32, y1 as f32]);
-            self.widths.push(table.width[index] as f32);
-            self.orders.push(table.order[index]);
-            let flow = table.flow[index];
+            let order = table.order.get(index).copied().unwrap_or(1);
+            self.widths.push(at(&table.width, index) as f32);
+            self.orders.push(order);
+            let flow = at(&table.flow, index);
             self.flows.push(flow as f32);
-            self.lengths.push(table.length[index] as f32);
+            self.lengths.push(at(&table.length, index) as f32);
             if flow > 0.0 && !node.is_root() {
                 low = low.min(flow);
                 high = high.max(flow);
             }
             if !node.is_root() {
-                self.max_order = self.max_order.max(table.order[index]);
+                self.max_order = self.max_order.max(order);
+                self.segment_count += 1;
             }
         }
         self.flow_range = if high > 0.0 { (low, high) } else { (0.0, 0.0) };
@@ -101,15 +85,14 @@ impl Geometry {
             ]
         });
         self.draw_order = spatial_order(midpoints, DRAW_ORDER_GRID);
-        true
     }
 
     /// Palette index of every segment: order `k` takes colour `min(k, 7) - 1`; flow takes
     /// the ramp step of its logarithm between the smallest and largest positive flow (the
     /// SVG export's rule); plain takes 0.
-    pub fn colour_indices(&mut self, colouring: &str) -> &[u8] {
-        if self.colouring != colouring || self.colours.len() != self.len() {
-            self.palette = palette(colouring);
+    pub fn colour_indices(&mut self, colouring: Colouring) -> &[u8] {
+        if self.colouring != Some(colouring) || self.colours.len() != self.len() {
+            self.palette = palette_rgb(colouring);
             let order_colours = self.palette.len() as u32;
             let (low, high) = self.flow_range;
             let steps = FLOW_RAMP_STEPS as f64 - 1.0;
@@ -117,8 +100,8 @@ impl Geometry {
             self.colours.clear();
             for index in 0..self.len() {
                 let colour = match colouring {
-                    "order" => self.orders[index].clamp(1, order_colours) - 1,
-                    "flow" => {
+                    Colouring::ByOrder => self.orders[index].clamp(1, order_colours) - 1,
+                    Colouring::ByFlow => {
                         let flow = self.flows[index] as f64;
                         if flow <= 0.0 {
                             0
@@ -129,11 +112,11 @@ impl Geometry {
                             libm::round(t.clamp(0.0, 1.0) * steps) as u32
                         }
                     }
-                    _ => 0,
+                    Colouring::Plain => 0,
                 };
                 self.colours.push(colour as u8);
             }
-            self.colouring = colouring.to_string();
+            self.colouring = Some(colouring);
         }
         &self.colours
     }
@@ -143,7 +126,7 @@ impl Geometry {
     pub fn raster(
         &mut self,
         view: RasterView,
-        colouring: &str,
+        colouring: Colouring,
         min_px: f64,
         max_px: f64,
         background: [u8; 3],
@@ -152,7 +135,7 @@ impl Geometry {
         self.pixels.resize(size, 0);
         fill(&mut self.pixels, background);
         self.colour_indices(colouring);
-        let Geometry {
+        let ScreenGeometry {
             ends,
             widths,
             colours,
@@ -184,6 +167,24 @@ impl Geometry {
         &self.pixels
     }
 
+    /// What the canvas shows, for its colour key (the canvas draws no root markers).
+    pub fn legend_facts<'a>(&self, colouring: Colouring, units: &'a str) -> LegendFacts<'a> {
+        let (low, high) = self.flow_range;
+        LegendFacts {
+            colouring,
+            max_order: self.max_order,
+            flow_range: (high > 0.0).then_some((low, high)),
+            segment_count: self.segment_count,
+            roots_drawn: false,
+            units,
+        }
+    }
+
+    /// Whether there are no entries.
+    pub fn is_empty(&self) -> bool {
+        self.widths.is_empty()
+    }
+
     /// Number of entries (nodes).
     pub fn len(&self) -> usize {
         self.widths.len()
@@ -197,7 +198,53 @@ impl Geometry {
         self.lengths.clear();
         self.flow_range = (0.0, 0.0);
         self.max_order = 0;
-        self.colouring.clear();
+        self.segment_count = 0;
+        self.colouring = None;
         self.draw_order.clear();
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use ramulus_core::network::{CellSet, Node, NO_PARENT};
+    use ramulus_core::segments::WidthRule;
+
+    /// A root and a chain of two segments whose flows are 1 and 2 (each node adds weight 1):
+    /// the log-flow rule puts the smaller at ramp step 0 and the larger at the last step.
+    #[test]
+    fn flow_colours_span_the_ramp_and_orders_clamp() {
+        let node = |x: f64, parent: u32| Node {
+            x,
+            y: 0.0,
+            parent,
+            weight: 1.0,
+        };
+        let network = Network {
+            nodes: vec![node(0.0, NO_PARENT), node(1.0, 0), node(2.0, 1)],
+            area: 1.0,
+            units: "mm".to_string(),
+            cell_size: 1.0,
+            cells: CellSet::default(),
+        };
+        let topology = network.topology().unwrap();
+        let rule = WidthRule {
+            gamma: 2.0,
+            base_width: 0.1,
+            reference_flow: 1.0,
+        };
+        let table = SegmentTable::compute(&network, &topology, rule);
+        let mut screen = ScreenGeometry::default();
+        screen.fill(&network, &table);
+        assert_eq!(screen.len(), 3);
+        assert_eq!(screen.segment_count, 2);
+        assert_eq!(
+            screen.colour_indices(Colouring::ByFlow)[1..],
+            [(FLOW_RAMP_STEPS - 1) as u8, 0]
+        );
+        assert_eq!(screen.colour_indices(Colouring::ByOrder)[1..], [0, 0]);
+        let facts = screen.legend_facts(Colouring::ByFlow, "mm");
+        assert_eq!(facts.flow_range, Some((1.0, 2.0)));
+        assert!(!facts.roots_drawn);
     }
 }

@@ -4,7 +4,7 @@
 
 use ramulus_core::network::{CellSet, Network, Node, NO_PARENT};
 use ramulus_core::segments::{SegmentTable, WidthRule};
-use ramulus_core::svg::{render_svg, Colouring, SvgOptions, METADATA_NAMESPACE};
+use ramulus_draw::{render_svg, Colouring, SvgOptions, METADATA_NAMESPACE};
 
 /// The SVG namespace (SVG 1.1, section 5.1.2).
 const SVG_NAMESPACE: &str = "http://www.w3.org/2000/svg";
