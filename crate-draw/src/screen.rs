@@ -180,6 +180,29 @@ impl ScreenGeometry {
         }
     }
 
+    /// The entry whose segment passes nearest to (`x`, `y`) (physical units) within `reach`,
+    /// or `None`; roots and zero-length segments are never found.
+    pub fn segment_at(&self, x: f64, y: f64, reach: f64) -> Option<usize> {
+        let mut best = None;
+        let mut best_distance = reach * reach;
+        for (index, ends) in self.ends.chunks_exact(4).enumerate() {
+            let [x0, y0, x1, y1] = [ends[0], ends[1], ends[2], ends[3]].map(f64::from);
+            let (dx, dy) = (x1 - x0, y1 - y0);
+            let squared = dx * dx + dy * dy;
+            if squared == 0.0 {
+                continue;
+            }
+            let t = (((x - x0) * dx + (y - y0) * dy) / squared).clamp(0.0, 1.0);
+            let (ex, ey) = (x0 + t * dx - x, y0 + t * dy - y);
+            let distance = ex * ex + ey * ey;
+            if distance < best_distance {
+                best_distance = distance;
+                best = Some(index);
+            }
+        }
+        best
+    }
+
     /// Whether there are no entries.
     pub fn is_empty(&self) -> bool {
         self.widths.is_empty()
@@ -243,6 +266,10 @@ mod tests {
             [(FLOW_RAMP_STEPS - 1) as u8, 0]
         );
         assert_eq!(screen.colour_indices(Colouring::ByOrder)[1..], [0, 0]);
+        // (1.5, 0.2) is 0.2 from segment 2 (x 1..2) and 0.5 from segment 1's end.
+        assert_eq!(screen.segment_at(1.5, 0.2, 0.3), Some(2));
+        assert_eq!(screen.segment_at(0.5, 0.2, 0.3), Some(1));
+        assert_eq!(screen.segment_at(1.5, 0.4, 0.3), None);
         let facts = screen.legend_facts(Colouring::ByFlow, "mm");
         assert_eq!(facts.flow_range, Some((1.0, 2.0)));
         assert!(!facts.roots_drawn);

@@ -278,6 +278,14 @@ impl Simulation {
         )
     }
 
+    /// The geometry entry whose segment passes nearest to (`x`, `y`) in physical units within
+    /// `reach`, or -1.
+    pub fn segment_at(&self, x: f64, y: f64, reach: f64) -> i32 {
+        self.geometry
+            .segment_at(x, y, reach)
+            .map_or(-1, |index| index as i32)
+    }
+
     /// The Horton plot and angle histogram as data to draw (`ramulus_draw::plots`), JSON.
     pub fn plots_json(&mut self) -> Result<String, JsError> {
         let units = self.params.units.clone();

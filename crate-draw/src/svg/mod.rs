@@ -269,10 +269,12 @@ fn write_document(
     let _ = writeln!(svg, "<title>{}</title>", escape_text(&options.title));
     let _ = writeln!(
         svg,
-        "<desc>Branching network: {} segments, {} roots; lengths in {}; segment stroke widths \
+        "<desc>Branching network: {} segment{}, {} root{}; lengths in {}; segment stroke widths \
          are true to scale.</desc>",
         drawing.segments.len(),
+        plural(drawing.segments.len()),
         drawing.roots.len(),
+        plural(drawing.roots.len()),
         escape_text(&network.units),
     );
     let _ = writeln!(
@@ -349,6 +351,15 @@ fn write_document(
     svg.push_str(&band.svg);
     svg.push_str("</g>\n</svg>\n");
     svg
+}
+
+/// The plural ending of a count's noun.
+fn plural(count: usize) -> &'static str {
+    if count == 1 {
+        ""
+    } else {
+        "s"
+    }
 }
 
 #[cfg(test)]
