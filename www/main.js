@@ -218,7 +218,9 @@ function showLegend() {
         box.style.background = piece.line;
         entry.append(box);
       } else if (piece.text !== undefined) {
-        entry.append(document.createTextNode(piece.text));
+        const label = document.createElement('span');
+        label.textContent = piece.text;
+        entry.append(label);
       }
     }
     legend.append(entry);
