@@ -93,13 +93,13 @@ function mapping(box, [xLow, xHigh], [yLow, yHigh]) {
   };
 }
 
-/// Ticks on the left edge: labelled ones get a grid line and a longer mark.
+/// Ticks on the left edge: major ones get a grid line, a longer mark and their label.
 function drawYTicks(ctx, box, ticks, toY) {
   ctx.textAlign = 'right';
   ctx.textBaseline = 'middle';
   for (const tick of ticks) {
     const y = toY(tick.at);
-    if (tick.label) {
+    if (tick.major) {
       ctx.strokeStyle = GRID;
       line(ctx, box.left, y, box.right, y);
       ctx.strokeStyle = INK;

@@ -20,8 +20,10 @@ pub type PlotPoint = [f64; 2];
 pub struct Tick {
     /// Position in plot coordinates.
     pub at: f64,
-    /// Label; empty for a minor tick.
+    /// Label; may be empty.
     pub label: String,
+    /// Whether the tick has a grid line and a long mark (minor ticks have neither).
+    pub major: bool,
 }
 
 /// One series of the Horton plot.
@@ -195,12 +197,14 @@ pub fn horton_plot(metrics: &Metrics, units: &str) -> HortonPlot {
         y_ticks.push(Tick {
             at: f64::from(exponent),
             label,
+            major: true,
         });
         if exponent < high_decade && decades <= 6 {
             for multiple in 2..=9 {
                 y_ticks.push(Tick {
                     at: f64::from(exponent) + libm::log10(f64::from(multiple)),
                     label: String::new(),
+                    major: false,
                 });
             }
         }
@@ -211,6 +215,7 @@ pub fn horton_plot(metrics: &Metrics, units: &str) -> HortonPlot {
         .map(|order| Tick {
             at: f64::from(order),
             label: order.to_string(),
+            major: true,
         })
         .collect();
     HortonPlot {
@@ -270,6 +275,7 @@ pub fn angle_plot(metrics: &Metrics) -> AnglePlot {
         y_ticks.push(Tick {
             at: value,
             label: fixed(value, 0),
+            major: true,
         });
         value += step;
     }
@@ -278,6 +284,7 @@ pub fn angle_plot(metrics: &Metrics) -> AnglePlot {
         .map(|degrees| Tick {
             at: f64::from(degrees),
             label: degrees.to_string(),
+            major: true,
         })
         .collect();
     AnglePlot {

@@ -40,6 +40,7 @@ fn horton_plot_of_a_complete_binary_tree() {
         .collect();
     assert_eq!(labelled, ["1", "10"]);
     assert_eq!(horton.y_ticks.len(), 2 + 8);
+    assert_eq!(horton.y_ticks.iter().filter(|tick| tick.major).count(), 2);
     assert_eq!(horton.x_range, [0.5, 4.5]);
     assert!(plots
         .summary
