@@ -154,7 +154,7 @@ const fn open_below(min: f64, max: f64) -> Option<Bounds> {
 const MAX_WEIGHT: f64 = 1.0e6;
 
 /// The parameter table, in the order the page shows the fields and links write them.
-static PARAMETERS: [ParamSpec; 31] = [
+static PARAMETERS: &[ParamSpec] = &[
     ParamSpec {
         key: "seed",
         group: "Run",
@@ -531,7 +531,7 @@ static PARAMETERS: [ParamSpec; 31] = [
 
 /// Every parameter, in the order the page shows them and links write them.
 pub fn parameters() -> &'static [ParamSpec] {
-    &PARAMETERS
+    PARAMETERS
 }
 
 /// The entry of `key`, if it is a parameter.
@@ -800,7 +800,7 @@ fn check_roots(params: &Params, roots: &[Root]) -> Result<(), ParamError> {
     Ok(())
 }
 
-/// Start and end markers of the generated parameter table in README.md.
+/// Start marker of the generated parameter table in README.md.
 pub const README_TABLE_START: &str =
     "<!-- parameter table: generated from crate-core/src/params/table.rs, do not edit by hand -->";
 /// End marker of the generated parameter table in README.md.
