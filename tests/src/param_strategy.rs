@@ -34,6 +34,25 @@ pub fn any_valid_params() -> impl Strategy<Value = Params> {
         })
 }
 
+/// Link texts `(key, text)` of the named keys, each drawn from its table entry. Keys whose
+/// values depend on the lattice (roots, mask) need `width` and `height`.
+pub fn field_texts(
+    keys: &[&str],
+    width: u32,
+    height: u32,
+) -> impl Strategy<Value = Vec<(&'static str, String)>> {
+    parameters()
+        .iter()
+        .filter(|spec| keys.contains(&spec.key))
+        .map(|spec| {
+            let key = spec.key;
+            field_text(spec, width, height)
+                .prop_map(move |text| (key, text))
+                .boxed()
+        })
+        .collect::<Vec<_>>()
+}
+
 /// Width and height within their bounds whose product fits `MAX_CELLS`, small lattices more
 /// often than large ones.
 fn lattice() -> impl Strategy<Value = (u32, u32)> {

@@ -1,17 +1,20 @@
 //! Property tests of the growth engine over random valid parameters: the result is a forest
 //! with one parent per non-root node, cells stay inside the allowed region and the budget, flows
 //! are conserved, and growth is deterministic across slicing, rebuilding and a record round trip.
+//! The cost weights, run control and width rule are also drawn from the parameter table.
 
 use proptest::prelude::*;
 use ramulus_core::digest::digest_hex;
 use ramulus_core::growth::Growth;
 use ramulus_core::mask::MaskGrid;
 use ramulus_core::network::{Network, NO_PARENT};
+use ramulus_core::params::table::parameters;
 use ramulus_core::params::{CostWeights, Domain, RunControl};
 use ramulus_core::params::{Joining, Params, Root};
 use ramulus_core::record::{make_record, read_record, write_record};
 use ramulus_core::region::allowed_cells;
 use ramulus_core::run::RunView;
+use ramulus_tests::param_strategy::field_texts;
 
 /// Random valid parameters on small lattices: every joining rule, 1 to 3 roots, optional
 /// threshold, preferred angle, segment attachment and scattered mask.
@@ -128,6 +131,42 @@ fn valid_params() -> impl Strategy<Value = Params> {
         })
 }
 
+/// The cost weights, the run control (seed and budget aside) and the width rule, drawn over
+/// their whole ranges from the parameter table, on top of `valid_params`' small lattices.
+fn valid_params_any_costs() -> impl Strategy<Value = Params> {
+    let keys: Vec<&str> = parameters()
+        .iter()
+        .map(|spec| spec.key)
+        .filter(|key| TABLE_DRAWN.contains(key))
+        .collect();
+    (valid_params(), field_texts(&keys, 1, 1)).prop_map(|(mut params, texts)| {
+        for (key, text) in texts {
+            ramulus_core::link::set_field(&mut params, key, &text).expect("table text reads");
+        }
+        params
+    })
+}
+
+/// Keys `valid_params_any_costs` draws from the table.
+const TABLE_DRAWN: [&str; 16] = [
+    "w_len",
+    "w_turn",
+    "w_flow",
+    "alpha",
+    "w_path",
+    "w_grade",
+    "branch_angle",
+    "elongation",
+    "rear_cost",
+    "joining",
+    "temperature",
+    "threshold",
+    "radius",
+    "attach_to_segments",
+    "gamma",
+    "tip_width",
+];
+
 /// Bit patterns of every node, for exact comparisons.
 fn node_bits(network: &Network) -> Vec<(u64, u64, u32, u64)> {
     network
@@ -148,6 +187,120 @@ fn close(actual: f64, expected: f64, tolerance: f64) -> bool {
     (actual - expected).abs() <= tolerance * expected.abs().max(actual.abs()).max(1e-300)
 }
 
+/// The structure checks of `grown_network_is_a_valid_forest` on one parameter set.
+fn check_forest(params: &Params) -> Result<(), TestCaseError> {
+    prop_assert_eq!(params.validate(), Ok(()));
+    let mut growth = Growth::new(params).expect("valid parameters are accepted");
+    let stopped = growth.run();
+    let network = growth.network();
+    let topology = network.topology().expect("grown network is a forest");
+    let count = network.nodes.len();
+    let h = params.domain.cell_size;
+
+    // Budget: never more cells than `cells`; stopping for the budget means reaching it.
+    prop_assert!(growth.cell_count() <= params.run.cells);
+    if stopped == ramulus_core::StopReason::Budget {
+        prop_assert_eq!(growth.cell_count(), params.run.cells);
+    }
+
+    // Roots: exactly the configured ones, in order, each on its cell.
+    let roots: Vec<usize> = (0..count)
+        .filter(|&i| network.nodes[i].parent == NO_PARENT)
+        .collect();
+    prop_assert_eq!(roots.len(), params.domain.roots.len());
+    for (node, root) in roots.iter().zip(&params.domain.roots) {
+        let n = network.nodes[*node];
+        prop_assert_eq!(
+            ((n.x / h).floor() as u32, (n.y / h).floor() as u32),
+            (root.x, root.y)
+        );
+    }
+
+    // One parent per non-root node, never itself; following parents reaches a root.
+    for (index, node) in network.nodes.iter().enumerate() {
+        if node.parent != NO_PARENT {
+            prop_assert!((node.parent as usize) < count);
+            prop_assert_ne!(node.parent as usize, index);
+        }
+    }
+    prop_assert_eq!(topology.order.len(), count);
+
+    // Cells: weight > 0 marks a cell node; each inside an allowed cell, no two in one cell.
+    let allowed = allowed_cells(params);
+    let mut taken = vec![false; allowed.len()];
+    let mut cell_nodes = 0u64;
+    let cell_weight = params.domain.runoff * h * h;
+    for node in &network.nodes {
+        if node.weight == 0.0 {
+            continue;
+        }
+        prop_assert!(close(node.weight, cell_weight, 1e-12));
+        cell_nodes += 1;
+        let column = (node.x / h).floor();
+        let row = (node.y / h).floor();
+        prop_assert!(column >= 0.0 && row >= 0.0);
+        prop_assert!((column as u32) < params.domain.width && (row as u32) < params.domain.height);
+        let cell = row as usize * params.domain.width as usize + column as usize;
+        prop_assert!(
+            allowed[cell],
+            "cell node in a blocked cell ({}, {})",
+            column,
+            row
+        );
+        prop_assert!(!taken[cell], "two cell nodes in cell ({}, {})", column, row);
+        taken[cell] = true;
+    }
+    prop_assert_eq!(cell_nodes, growth.cell_count());
+    prop_assert_eq!(network.cells.occupied.len() as u64, growth.cell_count());
+    for &cell in &network.cells.occupied {
+        prop_assert!(
+            taken[cell as usize],
+            "occupied cell {} holds no cell node",
+            cell
+        );
+    }
+    if !params.run.attach_to_segments {
+        prop_assert_eq!(count as u64, growth.cell_count());
+    }
+
+    // Flows by walking parents from every node (independent of the topology's own pass).
+    let mut walked = vec![0.0f64; count];
+    for (index, node) in network.nodes.iter().enumerate() {
+        let mut current = index;
+        let mut hops = 0;
+        loop {
+            walked[current] += node.weight;
+            let parent = network.nodes[current].parent;
+            if parent == NO_PARENT {
+                break;
+            }
+            current = parent as usize;
+            hops += 1;
+            prop_assert!(hops <= count, "parents form a cycle");
+        }
+    }
+    for (index, &walked_flow) in walked.iter().enumerate() {
+        prop_assert!(close(topology.flow[index], walked_flow, 1e-9));
+        let upstream: f64 = topology.children[index]
+            .iter()
+            .map(|&child| topology.flow[child as usize])
+            .sum();
+        prop_assert!(
+            close(
+                topology.flow[index],
+                network.nodes[index].weight + upstream,
+                1e-9
+            ),
+            "flow not conserved at node {}",
+            index
+        );
+    }
+    let total: f64 = roots.iter().map(|&root| topology.flow[root]).sum();
+    prop_assert!(close(total, growth.cell_count() as f64 * cell_weight, 1e-9));
+
+    Ok(())
+}
+
 proptest! {
     #![proptest_config(ProptestConfig { cases: 48, ..ProptestConfig::default() })]
 
@@ -157,95 +310,15 @@ proptest! {
     /// conserved at every node, Kirchhoff's current law, Kirchhoff 1845).
     #[test]
     fn grown_network_is_a_valid_forest(params in valid_params()) {
-        prop_assert_eq!(params.validate(), Ok(()));
-        let mut growth = Growth::new(&params).expect("valid parameters are accepted");
-        let stopped = growth.run();
-        let network = growth.network();
-        let topology = network.topology().expect("grown network is a forest");
-        let count = network.nodes.len();
-        let h = params.domain.cell_size;
+        check_forest(&params)?;
+    }
 
-        // Budget: never more cells than `cells`; stopping for the budget means reaching it.
-        prop_assert!(growth.cell_count() <= params.run.cells);
-        if stopped == ramulus_core::StopReason::Budget {
-            prop_assert_eq!(growth.cell_count(), params.run.cells);
-        }
-
-        // Roots: exactly the configured ones, in order, each on its cell.
-        let roots: Vec<usize> = (0..count).filter(|&i| network.nodes[i].parent == NO_PARENT).collect();
-        prop_assert_eq!(roots.len(), params.domain.roots.len());
-        for (node, root) in roots.iter().zip(&params.domain.roots) {
-            let n = network.nodes[*node];
-            prop_assert_eq!(((n.x / h).floor() as u32, (n.y / h).floor() as u32), (root.x, root.y));
-        }
-
-        // One parent per non-root node, never itself; following parents reaches a root.
-        for (index, node) in network.nodes.iter().enumerate() {
-            if node.parent != NO_PARENT {
-                prop_assert!((node.parent as usize) < count);
-                prop_assert_ne!(node.parent as usize, index);
-            }
-        }
-        prop_assert_eq!(topology.order.len(), count);
-
-        // Cells: weight > 0 marks a cell node; each inside an allowed cell, no two in one cell.
-        let allowed = allowed_cells(&params);
-        let mut taken = vec![false; allowed.len()];
-        let mut cell_nodes = 0u64;
-        let cell_weight = params.domain.runoff * h * h;
-        for node in &network.nodes {
-            if node.weight == 0.0 {
-                continue;
-            }
-            prop_assert!(close(node.weight, cell_weight, 1e-12));
-            cell_nodes += 1;
-            let column = (node.x / h).floor();
-            let row = (node.y / h).floor();
-            prop_assert!(column >= 0.0 && row >= 0.0);
-            prop_assert!((column as u32) < params.domain.width && (row as u32) < params.domain.height);
-            let cell = row as usize * params.domain.width as usize + column as usize;
-            prop_assert!(allowed[cell], "cell node in a blocked cell ({}, {})", column, row);
-            prop_assert!(!taken[cell], "two cell nodes in cell ({}, {})", column, row);
-            taken[cell] = true;
-        }
-        prop_assert_eq!(cell_nodes, growth.cell_count());
-        prop_assert_eq!(network.cells.occupied.len() as u64, growth.cell_count());
-        for &cell in &network.cells.occupied {
-            prop_assert!(taken[cell as usize], "occupied cell {} holds no cell node", cell);
-        }
-        if !params.run.attach_to_segments {
-            prop_assert_eq!(count as u64, growth.cell_count());
-        }
-
-        // Flows by walking parents from every node (independent of the topology's own pass).
-        let mut walked = vec![0.0f64; count];
-        for (index, node) in network.nodes.iter().enumerate() {
-            let mut current = index;
-            let mut hops = 0;
-            loop {
-                walked[current] += node.weight;
-                let parent = network.nodes[current].parent;
-                if parent == NO_PARENT {
-                    break;
-                }
-                current = parent as usize;
-                hops += 1;
-                prop_assert!(hops <= count, "parents form a cycle");
-            }
-        }
-        for (index, &walked_flow) in walked.iter().enumerate() {
-            prop_assert!(close(topology.flow[index], walked_flow, 1e-9));
-            let upstream: f64 = topology.children[index]
-                .iter()
-                .map(|&child| topology.flow[child as usize])
-                .sum();
-            prop_assert!(
-                close(topology.flow[index], network.nodes[index].weight + upstream, 1e-9),
-                "flow not conserved at node {}", index
-            );
-        }
-        let total: f64 = roots.iter().map(|&root| topology.flow[root]).sum();
-        prop_assert!(close(total, growth.cell_count() as f64 * cell_weight, 1e-9));
+    /// The same structure with the cost weights, run control and width rule drawn over their
+    /// whole ranges from the parameter table (weights up to 1e6, temperatures from the smallest
+    /// positive double, every joining rule and threshold).
+    #[test]
+    fn grown_network_is_a_valid_forest_for_any_costs(params in valid_params_any_costs()) {
+        check_forest(&params)?;
     }
 
     /// Determinism: growing in small slices of `step` gives bit-identical nodes to one `run`, and
