@@ -32,8 +32,7 @@ static ALLOCATOR: bench::CountingAllocator = bench::CountingAllocator;
     about = "Grow, measure and export branching transport networks (leaf veins, site drainage)",
     after_help = "`ramulus help COMMAND` or `ramulus COMMAND --help` describes one command.\n\
                   Exit status: 0 done, 1 a file or parameter is wrong (named on stderr), 2 wrong usage.",
-    arg_required_else_help = true,
-    propagate_version = true
+    arg_required_else_help = true
 )]
 struct CommandLine {
     #[command(subcommand)]
