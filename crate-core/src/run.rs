@@ -1,12 +1,12 @@
 //! `RunView`: everything derived from a grown (or loaded) network in one place: topology,
-//! per-segment table, metrics and digest, computed once and shared by the exporters.
+//! per-segment table, metrics and digest, computed once and shared by the exporters (the
+//! run record here, the SVG in `ramulus-draw`).
 
 use crate::digest::digest_hex;
 use crate::metrics::{measure_with, Metrics};
 use crate::network::{Network, Topology, TopologyError};
 use crate::params::Params;
 use crate::segments::{SegmentTable, WidthRule};
-use crate::svg::{render_svg, Colouring, SvgOptions};
 
 /// A network together with its derived values.
 #[derive(Clone, Debug)]
@@ -38,25 +38,6 @@ impl RunView {
             metrics,
             digest,
         })
-    }
-
-    /// Draws the run as SVG: parameters, seed and digest in the metadata, the caution for
-    /// sites, a two-cell margin.
-    pub fn svg(&self, params: &Params, colour: Colouring) -> String {
-        let metadata =
-            serde_json::json!({ "params": params, "seed": params.seed, "digest": self.digest });
-        let options = SvgOptions {
-            colour,
-            title: format!(
-                "Ramulus network, seed {}, digest {}",
-                params.seed, self.digest
-            ),
-            metadata_json: metadata.to_string(),
-            digest: self.digest.clone(),
-            caution: params.is_site().then(|| SITE_CAUTION.to_string()),
-            margin: params.cell_size * 2.0,
-        };
-        render_svg(&self.network, &self.table, &options)
     }
 }
 
