@@ -84,8 +84,8 @@ then overrides one key, for example --set seed=9 --set alpha=0.7 or
 (cell_size per cell); --mask replaces `width` and `height` (cells) by the image size.
 
 With --json stdout holds one object: digest (16 hex digits), cells, nodes, segments,
-total_length (units), units, stopped (why growth ended), metrics, caution (sites only) and link
-(the fragment that opens this run on the page).";
+total_length (units), units, stopped (why growth ended), metrics, caution (sites; else null)
+and link (the fragment that opens this run on the page).";
 
 /// Options of `ramulus measure`.
 #[derive(Args)]
