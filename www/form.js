@@ -88,7 +88,7 @@ export class ParameterForm {
     const help = document.createElement('p');
     help.className = 'hint';
     help.id = `help-${spec.key}`;
-    help.textContent = `${spec.help}${boundsText(spec)}`;
+    help.textContent = `${spec.help} Allowed: ${spec.allowed}.`;
     const error = document.createElement('p');
     error.className = 'field-error';
     error.id = `error-${spec.key}`;
@@ -110,7 +110,6 @@ export class ParameterForm {
     for (const [key, input] of this.inputs) {
       const text = fields[key] ?? '';
       if (input.type === 'checkbox') input.checked = text === 'true';
-      else if (key === 'mask') input.value = maskSummary(text);
       else if (input.placeholder === 'none' && text === 'none') input.value = '';
       else input.value = text;
     }
@@ -120,9 +119,10 @@ export class ParameterForm {
     }
   }
 
-  /// Marks `key` as wrong with `message` (or the nearest field, for keys such as `roots[1].x`).
-  setError(key, message) {
-    const base = this.inputs.has(key) ? key : baseKey(key);
+  /// Marks the form field `field` as wrong with `message` (the core names the field of every
+  /// error, e.g. `roots` for `roots[1].x`).
+  setError(field, message) {
+    const base = field;
     const error = document.getElementById(`error-${base}`);
     const input = this.inputs.get(base);
     if (!error || !input) return false;
@@ -134,8 +134,8 @@ export class ParameterForm {
     return true;
   }
 
-  clearError(key) {
-    const base = this.inputs.has(key) ? key : baseKey(key);
+  clearError(field) {
+    const base = field;
     const error = document.getElementById(`error-${base}`);
     if (error) {
       error.hidden = true;
@@ -147,28 +147,4 @@ export class ParameterForm {
   clearErrors() {
     for (const key of this.inputs.keys()) this.clearError(key);
   }
-}
-
-/// `roots[1].x` -> `roots`, `width * height` -> `width`.
-function baseKey(key) {
-  if (key === 'width * height') return 'width';
-  return key.split(/[[.]/)[0];
-}
-
-function boundsText(spec) {
-  if (spec.min === null || spec.max === null || spec.key === 'seed') return '';
-  const big = 1e300;
-  const low = spec.min_excluded ? `above ${boundText(spec.min)}` : boundText(spec.min);
-  if (spec.max > big) return spec.min_excluded ? ` Allowed: ${low}.` : ` Allowed: at least ${low}.`;
-  return ` Allowed: ${low} to ${boundText(spec.max)}.`;
-}
-
-function boundText(value) {
-  return Math.abs(value) >= 1e5 ? value.toExponential().replace('e+', 'e') : String(value);
-}
-
-function maskSummary(text) {
-  if (!text || text === 'none') return 'none';
-  const size = text.split(':')[0];
-  return `image mask, ${size.replace('x', ' × ')} cells`;
 }

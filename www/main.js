@@ -67,7 +67,7 @@ function openLink(text) {
   for (const problem of read.problems) {
     const shown = problem.value === '' ? '' : ` = "${problem.value}"`;
     notice(`This link's field "${problem.key}"${shown} could not be used: ${problem.message}.`);
-    form.setError(problem.key, `From the link: ${problem.message}.`);
+    form.setError(problem.field, `From the link: ${problem.message}.`);
   }
   applyLink(read.link, read.fields);
   startRun();
@@ -94,8 +94,8 @@ function commitField(key, text) {
   if (result.error) {
     form.clearError(key);
     const message = `${result.error.message}.`;
-    const shownOnField = form.setError(result.error.key, message);
-    if (result.error.key !== key) {
+    const shownOnField = form.setError(result.error.field, message);
+    if (result.error.field !== key) {
       form.setError(key, `This value does not fit with "${result.error.key}": ${message}`);
     } else if (!shownOnField) {
       notice(`${key}: ${message}`);

@@ -140,7 +140,7 @@ fn repair(params: &mut Params, problems: &mut Vec<LinkProblem>) {
         let Err(error) = params.validate() else {
             return;
         };
-        let failing = base_key(&error.key);
+        let failing = field_of_key(&error.key);
         // A field that fails again after its reset does not fit the lattice: reset the size.
         let reset: &[&str] = match failing {
             _ if already_reset.contains(&failing.to_string()) => &["width", "height"],
@@ -174,8 +174,9 @@ fn repair(params: &mut Params, problems: &mut Vec<LinkProblem>) {
     }
 }
 
-/// `roots[1].x` -> `roots`, `obstacles[0][2]` -> `obstacles`, `mask.runs` -> `mask`.
-fn base_key(key: &str) -> &str {
+/// The parameter an error key belongs to: `roots[1].x` -> `roots`, `obstacles[0][2]` ->
+/// `obstacles`, `mask.runs` -> `mask`; the joint rule `width * height` stays as it is.
+pub fn field_of_key(key: &str) -> &str {
     if key == "width * height" {
         return key;
     }

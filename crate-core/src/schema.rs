@@ -30,6 +30,8 @@ pub struct FieldSpec {
     pub choices: Vec<&'static str>,
     /// The default, as link text.
     pub default: &'static str,
+    /// What validation accepts, in words (the page shows it under the help line).
+    pub allowed: String,
     /// One line of help.
     pub help: &'static str,
 }
@@ -49,6 +51,7 @@ pub fn fields() -> Vec<FieldSpec> {
             max: spec.bounds.map(|bounds| bounds.max),
             choices: spec.choices().to_vec(),
             default: spec.default,
+            allowed: spec.allowed_text(),
             help: spec.help,
         })
         .collect()

@@ -115,7 +115,28 @@ pub fn site_caution() -> String {
 
 /// The JSON `{error: {key, message}}` that names the field at fault.
 fn field_error(key: &str, message: &str) -> String {
-    json!({ "error": { "key": key, "message": message } }).to_string()
+    json!({ "error": { "key": key, "field": form_field(key), "message": message } }).to_string()
+}
+
+/// The form field that shows an error about `key`: the parameter it belongs to, and the
+/// lattice width for the joint `width * height` rule.
+fn form_field(key: &str) -> &str {
+    match ramulus_core::link::field_of_key(key) {
+        "width * height" => "width",
+        field => field,
+    }
+}
+
+/// How the form shows a field's link text: the run-length mask as its size in words, other
+/// fields as written.
+fn shown_text(params: &ramulus_core::params::Params, key: &str, text: String) -> String {
+    if key != "mask" {
+        return text;
+    }
+    match &params.domain.mask {
+        Some(mask) => format!("image mask, {} \u{d7} {} cells", mask.width, mask.height),
+        None => "none".to_string(),
+    }
 }
 
 /// Rejection of parameters that parse but do not validate.
@@ -135,12 +156,13 @@ fn link_summary(
         .iter()
         .map(|spec| {
             let text = field_text(params, spec.key).unwrap_or_default();
-            (spec.key.to_string(), serde_json::Value::String(text))
+            let shown = shown_text(params, spec.key, text);
+            (spec.key.to_string(), serde_json::Value::String(shown))
         })
         .collect();
     let problems: Vec<serde_json::Value> = problems
         .iter()
-        .map(|problem| json!({ "key": problem.key, "value": problem.value, "message": problem.message }))
+        .map(|problem| json!({ "key": problem.key, "field": form_field(&problem.key), "value": problem.value, "message": problem.message }))
         .collect();
     json!({
         "link": encode_link(params),
@@ -186,6 +208,31 @@ mod tests {
                 .alpha,
             0.25
         );
+    }
+
+    /// The form shows an error on the field it belongs to: a root's column on `roots`, the
+    /// joint lattice-size rule on `width`; a mask is shown by its size, never its runs.
+    #[test]
+    fn errors_name_the_form_field_and_masks_read_as_their_size() {
+        let link = encode_link(&presets()[0].params);
+        let out: serde_json::Value =
+            serde_json::from_str(&set_link_field(&link, "roots", "9999,1,0,1")).unwrap();
+        assert_eq!(out["error"]["key"], "roots[0].x");
+        assert_eq!(out["error"]["field"], "roots");
+        let out: serde_json::Value = serde_json::from_str(&set_link_field(
+            "v=1&width=1000&height=20000&roots=0,0,0,1",
+            "width",
+            "20000",
+        ))
+        .unwrap();
+        assert_eq!(out["error"]["key"], "width * height");
+        assert_eq!(out["error"]["field"], "width");
+        let read: serde_json::Value = serde_json::from_str(&read_link(
+            "v=1&width=3&height=2&mask=3x2:0.2.4&roots=0,0,0,1",
+        ))
+        .unwrap();
+        assert_eq!(read["problems"].as_array().unwrap().len(), 0, "{read}");
+        assert_eq!(read["fields"]["mask"], "image mask, 3 \u{d7} 2 cells");
     }
 
     #[test]

@@ -698,7 +698,9 @@ impl ParamSpec {
             FieldKind::Integer => "a whole number",
             _ => "a finite number",
         };
-        let range = if bounds.max == f64::MAX {
+        let range = if bounds.max == u64::MAX as f64 {
+            format!("{noun} from 0 to 2^64 - 1")
+        } else if bounds.max == f64::MAX {
             if bounds.min_excluded {
                 format!("{noun} greater than {}", format_number(bounds.min))
             } else {
