@@ -21,5 +21,5 @@ pub mod segments;
 pub mod svg;
 
 pub use growth::{Growth, StepReport, StopReason};
-pub use network::{Children, Network, Node, Topology, NO_PARENT};
+pub use network::{Children, Network, NetworkKind, Node, Segment, Topology, NO_PARENT};
 pub use params::{Joining, ParamError, Params, Root};

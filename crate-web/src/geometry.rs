@@ -4,11 +4,12 @@
 
 use ramulus_core::network::Network;
 use ramulus_core::raster::{draw_lines, fill, spatial_order, Line, RasterView};
-use ramulus_core::segments::{SegmentTable, WidthRule};
+use ramulus_core::run::{conducting_network, topology_pass, widths_pass};
+use ramulus_core::segments::WidthRule;
 use ramulus_core::svg::{colour_scheme, FLOW_RAMP_STEPS};
 
-/// Flat buffers, one entry per node: segment `i` runs from node `i` to its parent; a root's
-/// entry has both ends at the root and zero length.
+/// Flat buffers, one entry per segment: entry `k` is `Network::segments[k]`, from its upstream
+/// to its downstream end.
 #[derive(Default)]
 pub struct Geometry {
     /// `x0, y0, x1, y1` per segment, physical units (y down).
@@ -61,35 +62,35 @@ fn parse_hex(text: &str) -> [u8; 3] {
 }
 
 impl Geometry {
-    /// Refills every buffer from `network`, reusing their allocations. Returns false (and
-    /// empties the buffers) when the nodes are not a forest, which a grown network always is.
+    /// Refills every buffer from `network`, reusing their allocations, through the core's
+    /// topology, conducting-network and widths passes. Returns false (and empties the buffers)
+    /// when the network is not valid, which a grown network always is.
     pub fn fill(&mut self, network: &Network, rule: WidthRule) -> bool {
         self.clear();
-        let Ok(topology) = network.topology() else {
+        let Ok(forest) = topology_pass(network) else {
             return false;
         };
-        let table = SegmentTable::compute(network, &topology, rule);
+        let conducting = conducting_network(network);
+        let table = widths_pass(network, forest.as_ref(), &conducting, rule);
         let mut low = f64::INFINITY;
         let mut high = 0.0f64;
-        for (index, node) in network.nodes.iter().enumerate() {
-            let (x1, y1) = match network.nodes.get(node.parent as usize) {
-                Some(parent) if !node.is_root() => (parent.x, parent.y),
-                _ => (node.x, node.y),
-            };
+        for (index, segment) in network.segments.iter().enumerate() {
+            let (from, to) = (
+                &network.nodes[segment.from as usize],
+                &network.nodes[segment.to as usize],
+            );
             self.ends
-                .extend_from_slice(&[node.x as f32, node.y as f32, x1 as f32, y1 as f32]);
+                .extend_from_slice(&[from.x as f32, from.y as f32, to.x as f32, to.y as f32]);
             self.widths.push(table.width[index] as f32);
             self.orders.push(table.order[index]);
             let flow = table.flow[index];
             self.flows.push(flow as f32);
             self.lengths.push(table.length[index] as f32);
-            if flow > 0.0 && !node.is_root() {
+            if flow > 0.0 {
                 low = low.min(flow);
                 high = high.max(flow);
             }
-            if !node.is_root() {
-                self.max_order = self.max_order.max(table.order[index]);
-            }
+            self.max_order = self.max_order.max(table.order[index]);
         }
         self.flow_range = if high > 0.0 { (low, high) } else { (0.0, 0.0) };
         let ends = &self.ends;
@@ -184,7 +185,7 @@ impl Geometry {
         &self.pixels
     }
 
-    /// Number of entries (nodes).
+    /// Number of entries (segments).
     pub fn len(&self) -> usize {
         self.widths.len()
     }

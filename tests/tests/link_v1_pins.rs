@@ -31,7 +31,11 @@ fn the_pin_file_covers_at_least_thirty_links() {
     let pins = pins();
     assert!(pins.len() >= 30, "only {} pins", pins.len());
     for (label, digest, _) in &pins {
-        assert_eq!(digest.len(), 16, "{label}: digest {digest:?} is not 16 hex digits");
+        assert_eq!(
+            digest.len(),
+            16,
+            "{label}: digest {digest:?} is not 16 hex digits"
+        );
     }
 }
 
@@ -41,7 +45,10 @@ fn every_version_1_link_grows_its_pinned_network() {
     for (label, digest, link) in pins() {
         let read = decode_link(&link);
         if !read.problems.is_empty() {
-            failures.push(format!("{label}: link reads with problems {:?}", read.problems));
+            failures.push(format!(
+                "{label}: link reads with problems {:?}",
+                read.problems
+            ));
             continue;
         }
         let mut growth = match Growth::new(&read.params) {
