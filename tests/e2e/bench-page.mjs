@@ -35,7 +35,7 @@ try {
       drawTimes.push(view.lastDrawMs);
     }
     return {
-      segments: state.geometry.count - 1,
+      segments: state.geometry.count,
       canvas: `${view.canvas.width} x ${view.canvas.height}`,
       geometryTimes,
       drawTimes,

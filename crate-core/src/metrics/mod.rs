@@ -1,14 +1,17 @@
-//! `Metrics`: every measurement of a `Network` (densities, branching angles, Strahler streams and
-//! Horton ratios, Hack exponent, tortuosity, transport cost, outline), computed by `measure`, and
-//! `metrics_table`, the same values as labelled rows for people to read.
+//! `Metrics`: every measurement of a `Network` (densities, components and loops, branching
+//! angles, Strahler streams and Horton ratios, Hack exponent, tortuosity, transport cost,
+//! outline), computed by `measure`, and the metric table (`METRIC_TABLE`) that names, describes
+//! and reads each one for the readings, the CSV and README.
 //!
-//! One code path serves grown and imported networks. Each measurement lives in its own file:
-//! `densities` (lengths, junctions, tips), `angles`, `strahler_horton`, `hack`, `tortuosity`,
-//! `transport`, `outline`, with the least-squares fit in `regression` and the readable rows in
-//! `table`. Transcendental functions come from `libm`, so native and wasm builds agree to the bit.
+//! One code path serves grown, recorded and looped networks. Each measurement lives in its own
+//! file: `densities` (lengths, junctions, tips), `loops` (components and independent loops,
+//! with petgraph), `angles`, `strahler_horton`, `hack`, `tortuosity`, `transport`, `outline`,
+//! with the least-squares fit in `regression` and the table in `table`. Transcendental
+//! functions come from `libm`, so native and wasm builds agree to the bit.
 //!
 //! Values that a given network leaves undefined (no bifurcation, no area, fewer than two orders)
-//! are `None`; measuring never panics on a network whose `Network::topology` succeeds.
+//! are `None`, and so are forest-only values on a looped network; measuring never panics on a
+//! network that passes `Network::check`.
 
 use serde::{Deserialize, Serialize};
 

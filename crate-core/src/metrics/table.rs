@@ -487,6 +487,27 @@ fn format_number(value: f64) -> String {
 mod tests {
     use super::*;
 
+    /// Every field of `Metrics` has one entry in the table (besides the network kind and the
+    /// transport exponent, which describe how the values were measured), and keys are unique.
+    #[test]
+    fn the_table_covers_every_metric_once() {
+        let json = serde_json::to_value(Metrics::default()).expect("metrics serialise");
+        let mut fields: Vec<&str> = json
+            .as_object()
+            .expect("an object")
+            .keys()
+            .map(String::as_str)
+            .filter(|key| !matches!(*key, "kind" | "transport_alpha"))
+            .collect();
+        let mut keys: Vec<&str> = METRIC_TABLE.iter().map(|entry| entry.key).collect();
+        fields.sort_unstable();
+        keys.sort_unstable();
+        let before = keys.len();
+        keys.dedup();
+        assert_eq!(keys.len(), before, "a key appears twice");
+        assert_eq!(keys, fields);
+    }
+
     /// Four significant digits in fixed or scientific notation (the rule in the doc comment).
     #[test]
     fn number_text() {
