@@ -119,8 +119,11 @@ fn valid_params() -> impl Strategy<Value = Params> {
         })
 }
 
+/// Bit patterns of every node (x, y, weight) and every segment's ends.
+type NetworkBits = (Vec<(u64, u64, u64)>, Vec<(u32, u32)>);
+
 /// Bit patterns of every node and every segment's ends, for exact comparisons.
-fn node_bits(network: &Network) -> (Vec<(u64, u64, u64)>, Vec<(u32, u32)>) {
+fn node_bits(network: &Network) -> NetworkBits {
     let nodes = network
         .nodes
         .iter()
