@@ -196,13 +196,6 @@ impl std::ops::Index<usize> for Children {
 /// Why a network is not valid, or not a forest.
 #[derive(Clone, Debug, PartialEq)]
 pub enum TopologyError {
-    /// A parent index points past the end of the node list.
-    ParentOutOfRange {
-        /// The node whose parent is wrong.
-        node: usize,
-        /// The parent index it names.
-        parent: u32,
-    },
     /// A segment names a node that does not exist, or runs from a node to itself.
     BadSegment {
         /// The segment's index.
@@ -232,9 +225,6 @@ pub enum TopologyError {
 impl std::fmt::Display for TopologyError {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
-            TopologyError::ParentOutOfRange { node, parent } => {
-                write!(f, "node {node} names parent {parent}, which does not exist")
-            }
             TopologyError::BadSegment { segment, from, to } => write!(
                 f,
                 "segment {segment} runs from node {from} to node {to}: an end does not exist or \
@@ -379,5 +369,86 @@ impl Topology {
     /// Whether node `node` is a root of the forest.
     pub fn is_root(&self, node: usize) -> bool {
         self.parent.get(node).is_none_or(|&up| up == NO_PARENT)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn network(points: usize, ends: &[(u32, u32)]) -> Network {
+        Network {
+            nodes: (0..points)
+                .map(|index| Node {
+                    x: index as f64,
+                    y: 0.0,
+                    weight: 1.0,
+                })
+                .collect(),
+            segments: ends
+                .iter()
+                .map(|&(from, to)| Segment { from, to })
+                .collect(),
+            ..Network::default()
+        }
+    }
+
+    /// A path 2 -> 1 -> 0 listed out of node order: parents, children and flows (each node's
+    /// weight plus everything upstream) follow the segments, not their order.
+    #[test]
+    fn forest_view_of_a_path() {
+        let path = network(3, &[(2, 1), (1, 0)]);
+        let topology = path.topology().expect("a forest");
+        assert_eq!(topology.parent, vec![NO_PARENT, 0, 1]);
+        assert_eq!(topology.segment_of, vec![NO_PARENT, 1, 0]);
+        assert_eq!(topology.order, vec![0, 1, 2]);
+        assert_eq!(topology.flow, vec![3.0, 2.0, 1.0]);
+        assert_eq!(topology.length, vec![0.0, 1.0, 1.0]);
+        assert_eq!(topology.children.of(0), &[1]);
+    }
+
+    #[test]
+    fn segments_from_parents_skip_roots() {
+        assert_eq!(
+            segments_from_parents(&[NO_PARENT, 0, 0, NO_PARENT, 3]),
+            vec![
+                Segment { from: 1, to: 0 },
+                Segment { from: 2, to: 0 },
+                Segment { from: 4, to: 3 },
+            ]
+        );
+    }
+
+    #[test]
+    fn invalid_and_looped_networks_are_told_apart() {
+        assert_eq!(
+            network(2, &[(1, 1)]).check(),
+            Err(TopologyError::BadSegment {
+                segment: 0,
+                from: 1,
+                to: 1
+            })
+        );
+        assert_eq!(
+            network(2, &[(0, 1), (1, 5)]).check(),
+            Err(TopologyError::BadSegment {
+                segment: 1,
+                from: 1,
+                to: 5
+            })
+        );
+        // A triangle: valid, but node 0 drains two ways, so no forest view.
+        let triangle = network(3, &[(1, 0), (2, 1), (0, 2), (0, 1)]);
+        assert_eq!(triangle.check(), Ok(()));
+        assert_eq!(
+            triangle.topology().unwrap_err(),
+            TopologyError::TwoDownstream { node: 0 }
+        );
+        // Three nodes draining round in a circle: one downstream each, no root.
+        let circle = network(3, &[(0, 1), (1, 2), (2, 0)]);
+        assert!(matches!(
+            circle.topology(),
+            Err(TopologyError::Cycle { .. })
+        ));
     }
 }
