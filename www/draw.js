@@ -1,8 +1,8 @@
-// Canvas drawing of a network from typed-array views into wasm memory: widths to scale,
-// colouring by order, flow or plain, zoom and pan, a scale bar, and finding the segment under
-// the pointer. Lines at most RASTER_MAX_PX wide (the great majority of a network's segments)
-// are rasterised by the core into a pixel buffer in wasm memory (see `source` below); wider
-// ones are stroked by the canvas on top. Holds no simulation logic.
+// Canvas drawing of a network through the wasm session (session.js): widths to scale, colouring
+// by order, flow or plain, zoom and pan, the scale bar and finding the segment under the
+// pointer. Lines at most RASTER_MAX_PX wide (the great majority of a network's segments) are
+// painted by the core with putImageData; wider ones are stroked by the canvas on top. The
+// scale bar's length and label and the segment search come from the core too.
 
 // Draw every line at least this wide in device pixels, so that true-scale veinlets thinner
 // than a pixel stay visible (common practice, no source).
@@ -16,35 +16,22 @@ const RASTER_MAX_PX = 1.6;
 const BACKGROUND = 0xfffdf8;
 
 export class NetworkView {
-  constructor(canvas, colours) {
+  /// `session`: the wasm session (its run and geometry); `colours`: the core's colour scheme.
+  constructor(canvas, session, colours) {
     this.canvas = canvas;
     this.context = canvas.getContext('2d');
+    this.session = session;
     this.colours = colours;
     this.frame = { width: 1, height: 1, units: 'mm' };
     this.scale = 1; // device pixels per length unit
     this.offsetX = 0; // device pixels
     this.offsetY = 0;
     this.fitted = true;
-    this.geometry = null;
     this.colouring = 'order';
-    // `{ raster(width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background)`
-    // -> ImageData, `colours(colouring)` -> Uint8Array of palette indices }, set by the page.
-    this.source = null;
     this.keys = new Uint16Array(0);
     this.sorted = new Uint32Array(0);
     this.lastDrawMs = 0;
     this.pixelRatio = 0; // 0: follow the screen's devicePixelRatio
-    // Called when the geometry views were detached by wasm memory growth; returns new views.
-    this.renewGeometry = null;
-  }
-
-  /// The geometry, with fresh views if wasm memory grew since they were taken.
-  liveGeometry() {
-    const g = this.geometry;
-    if (g && g.count > 0 && g.widths.length === 0 && this.renewGeometry) {
-      this.geometry = this.renewGeometry(g);
-    }
-    return this.geometry;
   }
 
   ratio() {
@@ -97,19 +84,12 @@ export class NetworkView {
     this.fitted = false;
   }
 
-  /// Geometry is `{count, ends, widths, orders, flows, lengths, flowLow, flowHigh, maxOrder}`
-  /// with typed arrays that view wasm memory; valid until the next wasm call that grows.
-  setGeometry(geometry) {
-    this.geometry = geometry;
-  }
-
   /// Draws the whole picture; returns the time it took in milliseconds.
   draw() {
     const started = performance.now();
     const ctx = this.context;
     ctx.setTransform(1, 0, 0, 1, 0, 0);
-    const geometry = this.liveGeometry();
-    if (geometry && geometry.count > 0 && this.source) {
+    if (this.session.simulation && this.session.count > 0) {
       this.drawSegments(ctx);
     } else {
       ctx.fillStyle = '#fffdf8';
@@ -146,12 +126,11 @@ export class NetworkView {
     const s = this.scale;
     const ox = this.offsetX;
     const oy = this.offsetY;
-    const image = this.source.raster(w, h, s, ox, oy, this.colouring, MIN_LINE_PX, RASTER_MAX_PX, BACKGROUND);
-    ctx.putImageData(image, 0, 0);
-    // The wasm calls may have grown wasm memory: take the geometry views afresh after them.
-    const colourOf = this.source.colours(this.colouring);
-    const g = this.liveGeometry();
-    const n = g.count;
+    this.session.paintThinLines(ctx, w, h, s, ox, oy, this.colouring, MIN_LINE_PX, RASTER_MAX_PX, BACKGROUND);
+    // Fresh views after the painting (which may have grown wasm memory), used before any
+    // other wasm call.
+    const { colours: colourOf, ends, widths } = this.session.drawingViews(this.colouring);
+    const n = this.session.count;
     const palette = this.palette();
     const keyCount = palette.length * BUCKET_COUNT;
     if (this.keys.length < n) {
@@ -159,7 +138,6 @@ export class NetworkView {
       this.sorted = new Uint32Array(n);
     }
     const counts = new Uint32Array(keyCount + 1);
-    const { ends, widths } = g;
     const NONE = 0xffff;
     // Wide lines get a key = bucket * colours + colour, so thinner strokes come first and
     // trunks lie on top.
@@ -205,17 +183,18 @@ export class NetworkView {
     }
   }
 
-  /// A scale bar of 1, 2 or 5 times a power of ten, about 120 CSS pixels long, bottom left.
+  /// The core's scale bar (a round length about 120 CSS pixels long), bottom left.
   drawScaleBar(ctx) {
+    if (!this.session.simulation) return;
     const ratio = this.ratio();
-    const target = (120 * ratio) / this.scale;
-    const power = 10 ** Math.floor(Math.log10(target));
-    const length = [5, 2, 1].map((m) => m * power).find((value) => value <= target) ?? power;
-    const px = length * this.scale;
+    const bar = this.session.scaleBar(this.scale, 120 * ratio);
+    const px = bar.pixels;
     const x = 16 * ratio;
     const y = this.canvas.height - 18 * ratio;
+    ctx.font = `${12 * ratio}px system-ui, sans-serif`;
+    const labelWidth = ctx.measureText(bar.label).width;
     ctx.fillStyle = 'rgba(255, 253, 248, 0.85)';
-    ctx.fillRect(x - 6 * ratio, y - 20 * ratio, px + 12 * ratio, 30 * ratio);
+    ctx.fillRect(x - 6 * ratio, y - 20 * ratio, Math.max(px, labelWidth) + 12 * ratio, 30 * ratio);
     ctx.strokeStyle = '#1d2a24';
     ctx.lineWidth = 2 * ratio;
     ctx.beginPath();
@@ -225,44 +204,14 @@ export class NetworkView {
     ctx.lineTo(x + px, y - 5 * ratio);
     ctx.stroke();
     ctx.fillStyle = '#1d2a24';
-    ctx.font = `${12 * ratio}px system-ui, sans-serif`;
-    ctx.fillText(`${fourDigits(length)} ${this.frame.units}`, x, y - 8 * ratio);
+    ctx.fillText(bar.label, x, y - 8 * ratio);
   }
 
   /// The segment nearest to CSS point (cx, cy) within `reach` CSS pixels, or -1.
   segmentAt(cx, cy, reach = 6) {
-    const g = this.liveGeometry();
-    if (!g || g.widths.length === 0) return -1;
     const ratio = this.ratio();
     const x = (cx * ratio - this.offsetX) / this.scale;
     const y = (cy * ratio - this.offsetY) / this.scale;
-    const limit = (reach * ratio) / this.scale;
-    let best = -1;
-    let bestDistance = limit * limit;
-    const { ends } = g;
-    for (let i = 0; i < g.count; i += 1) {
-      const x0 = ends[4 * i];
-      const y0 = ends[4 * i + 1];
-      const dx = ends[4 * i + 2] - x0;
-      const dy = ends[4 * i + 3] - y0;
-      const squared = dx * dx + dy * dy;
-      if (squared === 0) continue;
-      const t = Math.min(1, Math.max(0, ((x - x0) * dx + (y - y0) * dy) / squared));
-      const ex = x0 + t * dx - x;
-      const ey = y0 + t * dy - y;
-      const distance = ex * ex + ey * ey;
-      if (distance < bestDistance) {
-        bestDistance = distance;
-        best = i;
-      }
-    }
-    return best;
+    return this.session.segmentAt(x, y, (reach * ratio) / this.scale);
   }
-}
-
-/// Up to four significant digits without trailing zeros (exponent form outside 1e-3 .. 1e5).
-export function fourDigits(value) {
-  if (value === 0) return '0';
-  if (Math.abs(value) >= 1e5 || Math.abs(value) < 1e-3) return value.toExponential(2);
-  return String(Number(value.toPrecision(4)));
 }

@@ -22,7 +22,7 @@ export function download(name, content, type) {
 
 /// Draws the whole lattice at a fixed size on a white page, with the caution for sites, and
 /// resolves to a PNG Blob.
-export function renderPng(geometry, source, renewGeometry, frame, colours, colouring, caution) {
+export function renderPng(session, frame, colours, colouring, caution) {
   const aspect = frame.height / Math.max(frame.width, 1e-12);
   const width = aspect > 1 ? Math.round(PNG_LONG_SIDE / aspect) : PNG_LONG_SIDE;
   const drawingHeight = aspect > 1 ? PNG_LONG_SIDE : Math.round(PNG_LONG_SIDE * aspect);
@@ -33,14 +33,11 @@ export function renderPng(geometry, source, renewGeometry, frame, colours, colou
   const drawing = document.createElement('canvas');
   drawing.width = width;
   drawing.height = drawingHeight;
-  const view = new NetworkView(drawing, colours);
+  const view = new NetworkView(drawing, session, colours);
   view.pixelRatio = 2.5;
-  view.source = source;
-  view.renewGeometry = renewGeometry;
   view.colouring = colouring;
   view.setFrame(frame);
   view.fit();
-  view.setGeometry(geometry);
   view.draw();
   const ctx = canvas.getContext('2d');
   ctx.fillStyle = '#ffffff';

@@ -1,46 +1,42 @@
-// Page entry: loads the wasm module and wires the setup form, the growth loop, the canvas, the
-// readings, exports and the run link in the URL fragment together. Holds no simulation logic:
-// every parameter check, link and measurement comes from the core through pkg/.
-import init, * as core from './pkg/ramulus_web.js';
-import { fourDigits, NetworkView } from './draw.js';
+// Page entry: opens the wasm session and wires the settings form, the growth loop, the canvas,
+// the readings, exports and the run link in the URL fragment together. Holds no simulation or
+// drawing rule: every parameter check, link, measurement, colour key, number and sentence about
+// the run comes from Rust through the session (session.js).
+import { NetworkView } from './draw.js';
 import { ParameterForm } from './form.js';
 import { download, forgetRecord, keepRecord, keptRecord, renderPng } from './keep.js';
 import { clearReadings, showReadings } from './readings.js';
-import { readGeometry, Runner, viewsOf } from './runner.js';
+import { Runner } from './runner.js';
+import { Session } from './session.js';
 
 const ANIMATE_KEY = 'ramulus.animate';
 const DEFAULT_START = 'broad-leaf';
-const STOP_TEXT = {
-  budget: 'cell budget reached',
-  full: 'no free cell left',
-  threshold: 'no cell left below the stop threshold',
-  saved: 'network as saved in the record',
-};
 
 const byId = (id) => document.getElementById(id);
 const state = {
   link: '',
-  simulation: null,
+  session: null,
   frame: null,
-  geometry: null,
   presets: [],
   colours: null,
-  memory: null,
+  /// The current run (the session's), for the page tests.
+  get simulation() {
+    return this.session?.simulation ?? null;
+  },
 };
+let core;
 let view;
 let form;
 let runner;
 
 async function start() {
-  const wasm = await init();
-  state.memory = wasm.memory;
+  state.session = await Session.open();
+  core = state.session.core;
   state.presets = JSON.parse(core.presets_json());
   state.colours = JSON.parse(core.colours_json());
   const schema = JSON.parse(core.schema_json());
 
-  view = new NetworkView(byId('canvas'), state.colours);
-  view.renewGeometry = renewGeometry;
-  view.source = pixelSource();
+  view = new NetworkView(byId('canvas'), state.session, state.colours);
   form = new ParameterForm(byId('form'), byId('param-seed'), schema, commitField);
   runner = new Runner({ redraw, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying });
   window.ramulusPage = { runner, view, state };
@@ -115,12 +111,9 @@ function commitField(key, text) {
 // ---- the run --------------------------------------------------------------------------------
 
 function startRun(simulation = null) {
-  if (state.simulation) state.simulation.free();
-  state.simulation = null;
-  state.geometry = null;
-  view.setGeometry(null);
+  state.session.setSimulation(null);
   try {
-    state.simulation = simulation ?? new core.Simulation(state.link);
+    state.session.setSimulation(simulation ?? state.session.grow(state.link));
   } catch (error) {
     notice(`The run cannot start: ${messageOf(error)}`);
     return;
@@ -142,33 +135,11 @@ function redraw() {
   const simulation = state.simulation;
   if (!simulation) return view.draw();
   const started = performance.now();
-  state.geometry = readGeometry(simulation, state.memory);
-  view.setGeometry(state.geometry);
+  state.session.refill();
   view.resize();
   view.draw();
   showLegend();
   return performance.now() - started;
-}
-
-/// The core's raster drawing and colour indices of the current run, for NetworkView.
-function pixelSource() {
-  return {
-    raster(width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background) {
-      const address = state.simulation.raster(width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background);
-      const bytes = new Uint8ClampedArray(state.memory.buffer, address, width * height * 4);
-      return new ImageData(bytes, width, height);
-    },
-    colours(colouring) {
-      const address = state.simulation.colours_ptr(colouring);
-      return new Uint8Array(state.memory.buffer, address, state.geometry.count);
-    },
-  };
-}
-
-function renewGeometry(geometry) {
-  if (!state.simulation) return null;
-  state.geometry = { ...geometry, ...viewsOf(state.simulation, state.memory, geometry.count) };
-  return state.geometry;
 }
 
 function showProgress() {
@@ -178,10 +149,7 @@ function showProgress() {
   const budget = simulation.budget();
   byId('progress').max = budget;
   byId('progress').value = cells;
-  const reason = simulation.stop_reason();
-  const ending = reason ? `, stopped: ${STOP_TEXT[reason] ?? reason}` : '';
-  byId('progress-text').textContent =
-    `${cells.toLocaleString('en')} of ${budget.toLocaleString('en')} cells${ending}`;
+  byId('progress-text').textContent = state.session.progressText();
 }
 
 function onPaused() {
@@ -209,7 +177,7 @@ function onFinished() {
 
 function showReadingsNow() {
   try {
-    showReadings(state.simulation, state.frame.units);
+    showReadings(state.session);
   } catch (error) {
     clearReadings(`Readings failed: ${messageOf(error)}`);
   }
@@ -232,29 +200,30 @@ function showCaution(site) {
   caution.textContent = site ? `Caution: ${core.site_caution()}` : '';
 }
 
+/// The core's colour key of what the canvas shows: strokes, markers and labels.
 function showLegend() {
   const legend = byId('legend');
   legend.replaceChildren();
-  const swatch = (colour, text) => {
-    const item = document.createElement('span');
-    item.className = 'swatch';
-    const box = document.createElement('i');
-    box.style.background = colour;
-    item.append(box, document.createTextNode(text));
-    legend.append(item);
-  };
-  if (view.colouring === 'order') {
-    const highest = Math.max(1, state.geometry?.maxOrder ?? 1);
-    const colours = state.colours.order;
-    for (let order = 1; order <= Math.min(highest, colours.length); order += 1) {
-      const last = order === colours.length && highest > order;
-      swatch(colours[order - 1], last ? `order ${order}+` : `order ${order}`);
+  if (!state.simulation) return;
+  for (const item of state.session.legend(view.colouring)) {
+    const entry = document.createElement('span');
+    entry.className = 'swatch';
+    for (const piece of item.pieces) {
+      if (piece === 'circle') {
+        const marker = document.createElement('i');
+        marker.className = 'root-marker';
+        entry.append(marker);
+      } else if (piece.line) {
+        const box = document.createElement('i');
+        box.style.background = piece.line;
+        entry.append(box);
+      } else if (piece.text !== undefined) {
+        const label = document.createElement('span');
+        label.textContent = piece.text;
+        entry.append(label);
+      }
     }
-  } else if (view.colouring === 'flow') {
-    const ramp = state.colours.flow;
-    swatch(ramp[0], 'least flow');
-    swatch(ramp[Math.floor(ramp.length / 2)], '');
-    swatch(ramp[ramp.length - 1], 'most flow');
+    legend.append(entry);
   }
 }
 
@@ -401,18 +370,11 @@ function showProbe(event) {
   const x = event.clientX - rect.left;
   const y = event.clientY - rect.top;
   const index = view.segmentAt(x, y);
-  const g = view.liveGeometry();
-  if (index < 0 || !g) {
+  if (index < 0) {
     probe.hidden = true;
     return;
   }
-  const units = state.frame.units;
-  probe.textContent = [
-    `Strahler order ${g.orders[index]}`,
-    `flow ${fourDigits(g.flows[index])} ${units}²`,
-    `width ${fourDigits(g.widths[index])} ${units}`,
-    `length ${fourDigits(g.lengths[index])} ${units}`,
-  ].join('\n');
+  probe.textContent = state.session.reading(index);
   probe.style.left = `${Math.min(x + 14, rect.width - 170)}px`;
   probe.style.top = `${Math.min(y + 14, rect.height - 80)}px`;
   probe.hidden = false;
@@ -439,7 +401,7 @@ function wireKeep() {
   });
   byId('save-png').addEventListener('click', () => {
     const caution = state.frame.site ? core.site_caution() : '';
-    renderPng(view.liveGeometry(), view.source, renewGeometry, state.frame, state.colours, view.colouring, caution)
+    renderPng(state.session, state.frame, state.colours, view.colouring, caution)
       .then((blob) => download(name('png'), blob))
       .catch((error) => notice(`PNG export failed: ${messageOf(error)}`));
   });
@@ -467,7 +429,7 @@ function wireKeep() {
 async function openRecord(text, source, keep) {
   let simulation;
   try {
-    simulation = core.Simulation.from_record(text);
+    simulation = state.session.restore(text);
   } catch (error) {
     notice(`${source}: not a run record this page can open: ${messageOf(error)}`);
     return;

@@ -1,13 +1,14 @@
 // The readings panel: the core's labelled metric rows in a table, the Horton plot and the
-// branching-angle histogram (drawn by plots.js). Text only through textContent.
-import { drawAngleHistogram, drawHortonPlot, plotSummary } from './plots.js';
+// branching-angle histogram (laid out by the core, drawn by plots.js). Text only through
+// textContent.
+import { drawAngleHistogram, drawHortonPlot } from './plots.js';
 
 // The histogram row is long and shown as a plot instead.
 const PLOTTED_ROW = 'branching angles per 10-degree bin';
 
-export function showReadings(simulation, units) {
-  const rows = JSON.parse(simulation.metrics_rows_json());
-  const metrics = JSON.parse(simulation.metrics_json());
+export function showReadings(session) {
+  const rows = JSON.parse(session.simulation.metrics_rows_json());
+  const plots = session.plots();
   const body = document.querySelector('#metrics tbody');
   body.replaceChildren();
   for (const [label, value, unit] of rows) {
@@ -22,13 +23,12 @@ export function showReadings(simulation, units) {
   }
   const horton = document.getElementById('horton');
   const angles = document.getElementById('angles');
-  drawHortonPlot(horton, metrics, units);
-  drawAngleHistogram(angles, metrics);
-  const summary = plotSummary(metrics, units);
-  horton.setAttribute('aria-label', summary);
-  angles.setAttribute('aria-label', summary);
+  drawHortonPlot(horton, plots.horton);
+  drawAngleHistogram(angles, plots.angles);
+  horton.setAttribute('aria-label', plots.summary);
+  angles.setAttribute('aria-label', plots.summary);
   document.getElementById('readings-note').textContent = '';
-  return metrics;
+  return plots;
 }
 
 export function clearReadings(note) {

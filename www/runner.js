@@ -1,38 +1,12 @@
 // The growth loop: steps the simulation in slices that fit a frame budget, redraws as often as
-// drawing cost allows, and reports progress, pauses and the end of the run. Also reads the
-// geometry views out of wasm memory. Keeps timing figures for the page benchmark.
+// drawing cost allows, and reports progress, pauses and the end of the run. Keeps timing
+// figures for the page benchmark. Reads no wasm memory (session.js does).
 
 // Milliseconds of growth per animation frame (of about 16.7 ms at 60 frames a second), which
 // leaves the rest of the frame for drawing and the browser (common practice, no source).
 const STEP_BUDGET_MS = 8;
 // Milliseconds of growth between yields when growing without animation.
 const QUIET_CHUNK_MS = 40;
-
-/// Refills the simulation's geometry and returns typed-array views of it.
-export function readGeometry(simulation, memory) {
-  const count = simulation.update_geometry();
-  return {
-    count,
-    flowLow: simulation.flow_low(),
-    flowHigh: simulation.flow_high(),
-    maxOrder: simulation.max_order(),
-    ...viewsOf(simulation, memory, count),
-  };
-}
-
-/// Views of the geometry already filled. Any wasm call that allocates may grow wasm memory,
-/// which detaches every view (their length drops to 0): then take fresh views with this; the
-/// data itself has not moved.
-export function viewsOf(simulation, memory, count) {
-  const buffer = memory.buffer;
-  return {
-    ends: new Float32Array(buffer, simulation.ends_ptr(), 4 * count),
-    widths: new Float32Array(buffer, simulation.widths_ptr(), count),
-    orders: new Uint32Array(buffer, simulation.orders_ptr(), count),
-    flows: new Float32Array(buffer, simulation.flows_ptr(), count),
-    lengths: new Float32Array(buffer, simulation.lengths_ptr(), count),
-  };
-}
 
 export class Runner {
   /// `hooks`: `redraw()` (returns draw ms), `progress()`, `paused()`, `finished()`,

@@ -202,7 +202,7 @@ fn pipeline_figures() -> Result<(), CliError> {
         let view = ramulus_core::run::RunView::new(network.clone(), &params)
             .map_err(|error| CliError::Failed(error.to_string()))?;
         let derived = start.elapsed().as_secs_f64();
-        let svg = view.svg(&params, ramulus_core::svg::Colouring::ByOrder);
+        let svg = ramulus_draw::run_svg(&view, &params, ramulus_draw::Colouring::ByOrder);
         let record = ramulus_core::record::write_record(&ramulus_core::record::make_record(
             &view, &params, None,
         ));

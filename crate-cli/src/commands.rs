@@ -7,7 +7,8 @@ use ramulus_core::metrics::{metrics_table, Metrics};
 use ramulus_core::presets::presets as all_presets;
 use ramulus_core::record::{make_record, read_record, write_record};
 use ramulus_core::run::{RunView, SITE_CAUTION};
-use ramulus_core::svg::Colouring;
+use ramulus_draw::texts::stop_text;
+use ramulus_draw::{run_svg, Colouring};
 use serde_json::json;
 
 use crate::options::{assemble_params, only_flags, CliError, GrowOptions};
@@ -76,7 +77,7 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
         write_file(path, &write_record(&record))?;
     }
     if let Some(path) = &options.svg_file {
-        let svg = view.svg(&params, colour);
+        let svg = run_svg(&view, &params, colour);
         write_file(path, &svg)?;
     }
     if options.json {
@@ -94,7 +95,7 @@ pub fn grow(arguments: &[String]) -> Result<(), CliError> {
         });
         say!("{output}");
     } else {
-        say!("stopped: {stopped}");
+        say!("stopped: {}", stop_text(stopped));
         say!(
             "cells: {}   segments: {}   digest: {}",
             growth.cell_count(),

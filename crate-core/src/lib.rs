@@ -1,6 +1,7 @@
 //! Ramulus core: grows branching transport networks on a lattice (`growth`), measures them
-//! (`metrics`), and reads and writes them (`import`, `record`, `svg`). No I/O, clock, threads or
-//! platform code lives here: callers pass bytes and parameters in and get values back.
+//! (`metrics`), and reads and writes them as data (`import`, `record`). No I/O, clock, threads
+//! or platform code lives here: callers pass bytes and parameters in and get values back. It
+//! knows nothing of drawing: pictures, colours and the texts people read live in `ramulus-draw`.
 #![deny(missing_docs)]
 
 pub mod digest;
@@ -13,12 +14,10 @@ pub mod metrics;
 pub mod network;
 pub mod params;
 pub mod presets;
-pub mod raster;
 pub mod record;
 pub mod run;
 pub mod schema;
 pub mod segments;
-pub mod svg;
 
 pub use growth::{Growth, StepReport, StopReason};
 pub use network::{Children, Network, NetworkKind, Node, Segment, Topology, NO_PARENT};

@@ -1,5 +1,6 @@
 //! The pipeline after growth (`RunView::new`): named passes, each computed once per change of
-//! the network and shared by the readings, the CSV, the SVG, the run record and the page.
+//! the network and shared by the readings, the CSV, the run record, the page and the SVG (drawn in
+//! `ramulus-draw`).
 //!
 //! 1. **topology**: `Network::check`, then the forest view (`Topology`) and Strahler orders
 //!    when the network is a forest (`topology_pass`);
@@ -16,7 +17,6 @@ use crate::metrics::{measure_with, Metrics};
 use crate::network::{Network, Topology, TopologyError};
 use crate::params::Params;
 use crate::segments::{strahler_orders, SegmentTable, WidthRule};
-use crate::svg::{render_svg, Colouring, SvgOptions};
 
 /// The forest view and Strahler orders of a forest, the output of the topology pass.
 #[derive(Clone, Debug)]
@@ -116,25 +116,6 @@ impl RunView {
     /// The forest view's topology, when the network is a forest.
     pub fn topology(&self) -> Option<&Topology> {
         self.forest.as_ref().map(|view| &view.topology)
-    }
-
-    /// Draws the run as SVG: parameters, seed and digest in the metadata, the caution for
-    /// sites, a two-cell margin.
-    pub fn svg(&self, params: &Params, colour: Colouring) -> String {
-        let metadata =
-            serde_json::json!({ "params": params, "seed": params.seed, "digest": self.digest });
-        let options = SvgOptions {
-            colour,
-            title: format!(
-                "Ramulus network, seed {}, digest {}",
-                params.seed, self.digest
-            ),
-            metadata_json: metadata.to_string(),
-            digest: self.digest.clone(),
-            caution: params.is_site().then(|| SITE_CAUTION.to_string()),
-            margin: params.cell_size * 2.0,
-        };
-        render_svg(&self.network, &self.table, &options)
     }
 }
 

@@ -1,17 +1,17 @@
-//! Browser layer over `ramulus-core`: the `Simulation` handle (`simulation`) with typed-array
-//! views of its geometry (`geometry`), plus free functions for presets, the parameter schema,
-//! run links and colours. Errors come back as readable strings; nothing here computes.
+//! Browser layer over `ramulus-core` and `ramulus-draw`: the `Simulation` handle
+//! (`simulation`) with typed-array views of its screen geometry, plus free functions for
+//! presets, the parameter schema, run links and colours. Errors come back as readable strings;
+//! nothing here computes or draws.
 
 use ramulus_core::import::mask_from_bytes;
 use ramulus_core::link::{decode_link, encode_link, field_text, set_field};
 use ramulus_core::presets::presets;
 use ramulus_core::run::SITE_CAUTION;
 use ramulus_core::schema::fields;
-use ramulus_core::svg::colour_scheme;
+use ramulus_draw::palette::colour_scheme;
 use serde_json::json;
 use wasm_bindgen::prelude::*;
 
-mod geometry;
 mod simulation;
 
 pub use simulation::Simulation;

@@ -1,6 +1,6 @@
 //! `Simulation`: the page's one opaque handle on a run, grown from a link or restored from a run
-//! record, with typed-array views of its geometry (see `geometry`). Nothing here computes: it
-//! translates calls into `ramulus-core`.
+//! record, with typed-array views of its screen geometry (`ramulus_draw::screen`). Nothing here
+//! computes or draws: it translates calls into `ramulus-core` and `ramulus-draw`.
 
 use ramulus_core::growth::Growth;
 use ramulus_core::link::{decode_link, encode_link};
@@ -8,13 +8,20 @@ use ramulus_core::metrics::{metrics_csv, metrics_table};
 use ramulus_core::network::Network;
 use ramulus_core::params::Params;
 use ramulus_core::record::{make_record, read_record, write_record};
-use ramulus_core::run::{width_rule, RunView, SITE_CAUTION};
-use ramulus_core::svg::Colouring;
+use ramulus_core::run::{
+    conducting_network, topology_pass, width_rule, widths_pass, RunView, SITE_CAUTION,
+};
+use ramulus_draw::legend::legend_items;
+use ramulus_draw::palette::Colouring;
+use ramulus_draw::plots::readings_plots;
+use ramulus_draw::raster::RasterView;
+use ramulus_draw::run_svg;
+use ramulus_draw::scale_bar::scale_bar;
+use ramulus_draw::screen::ScreenGeometry;
+use ramulus_draw::texts::{progress_text, segment_reading, stop_text, SAVED_NETWORK_TEXT};
 use wasm_bindgen::prelude::*;
-
-use ramulus_core::raster::RasterView;
-
-use crate::geometry::Geometry;
+use wasm_bindgen::Clamped;
+use web_sys::{CanvasRenderingContext2d, ImageData};
 
 /// Where the network comes from.
 enum Source {
@@ -29,7 +36,7 @@ enum Source {
 pub struct Simulation {
     params: Params,
     source: Source,
-    geometry: Geometry,
+    geometry: ScreenGeometry,
     recorded_digest: Option<String>,
     /// Everything derived from the network as it stands (metrics, SVG, record share it);
     /// dropped whenever the network changes.
@@ -49,7 +56,7 @@ impl Simulation {
         Ok(Simulation {
             params,
             source: Source::Growing(Box::new(growth)),
-            geometry: Geometry::default(),
+            geometry: ScreenGeometry::default(),
             recorded_digest: None,
             view_cache: None,
         })
@@ -83,7 +90,7 @@ impl Simulation {
         Ok(Simulation {
             params,
             source,
-            geometry: Geometry::default(),
+            geometry: ScreenGeometry::default(),
             recorded_digest: Some(record.digest),
             view_cache: None,
         })
@@ -216,22 +223,75 @@ impl Simulation {
 
     /// The network as SVG, coloured by `order`, `flow` or `plain`.
     pub fn svg(&mut self, colouring: &str) -> Result<String, JsError> {
-        let colour = match colouring {
-            "order" => Colouring::ByOrder,
-            "flow" => Colouring::ByFlow,
-            "plain" => Colouring::Plain,
-            other => {
-                return Err(JsError::new(&format!(
-                    "colouring {other:?}: use order, flow or plain"
-                )))
-            }
-        };
+        let colour = colouring_named(colouring)?;
         self.view()?;
         let view = self
             .view_cache
             .as_ref()
             .ok_or_else(|| JsError::new("derived view missing"))?;
-        Ok(view.svg(&self.params, colour))
+        Ok(run_svg(view, &self.params, colour))
+    }
+
+    /// The progress line: `1,234 of 5,000 cells`, with why growth stopped once it has.
+    pub fn progress_text(&self) -> String {
+        let stopped = match &self.source {
+            Source::Growing(growth) => growth.stopped().map(stop_text),
+            Source::Fixed(_) => Some(SAVED_NETWORK_TEXT),
+        };
+        progress_text(self.cells() as u64, self.budget() as u64, stopped)
+    }
+
+    /// The colour key of the canvas under `colouring`, as JSON `[{pieces: [{line: "#rrggbb"} |
+    /// "circle" | {text}]}]` (the SVG's legend, for what the canvas draws).
+    pub fn legend_json(&self, colouring: &str) -> Result<String, JsError> {
+        let facts = self
+            .geometry
+            .legend_facts(colouring_named(colouring)?, &self.params.units);
+        serde_json::to_string(&legend_items(&facts))
+            .map_err(|error| JsError::new(&error.to_string()))
+    }
+
+    /// The screen's scale bar about `target_pixels` long at `pixels_per_unit`, as JSON
+    /// `{length, pixels, label}`.
+    pub fn scale_bar_json(&self, pixels_per_unit: f64, target_pixels: f64) -> String {
+        serde_json::to_string(&scale_bar(
+            pixels_per_unit,
+            target_pixels,
+            &self.params.units,
+        ))
+        .unwrap_or_else(|_| "{}".to_string())
+    }
+
+    /// The readings of geometry entry `index` (order, flow, width, length with units, one per
+    /// line), or an empty string when there is no such entry.
+    pub fn segment_reading(&self, index: u32) -> String {
+        let geometry = &self.geometry;
+        let index = index as usize;
+        if index >= geometry.len() {
+            return String::new();
+        }
+        segment_reading(
+            geometry.orders[index],
+            f64::from(geometry.flows[index]),
+            f64::from(geometry.widths[index]),
+            f64::from(geometry.lengths[index]),
+            &self.params.units,
+        )
+    }
+
+    /// The geometry entry whose segment passes nearest to (`x`, `y`) in physical units within
+    /// `reach`, or -1.
+    pub fn segment_at(&self, x: f64, y: f64, reach: f64) -> i32 {
+        self.geometry
+            .segment_at(x, y, reach)
+            .map_or(-1, |index| index as i32)
+    }
+
+    /// The Horton plot and angle histogram as data to draw (`ramulus_draw::plots`), JSON.
+    pub fn plots_json(&mut self) -> Result<String, JsError> {
+        let units = self.params.units.clone();
+        let plots = readings_plots(&self.view()?.metrics, &units);
+        serde_json::to_string(&plots).map_err(|error| JsError::new(&error.to_string()))
     }
 
     /// The JSON run record.
@@ -245,49 +305,58 @@ impl Simulation {
         Ok(write_record(&make_record(view, &self.params, stopped)))
     }
 
-    /// Refills the geometry buffers from the network so far; returns the entry count.
+    /// Refills the geometry buffers from the network so far, through the core's topology,
+    /// conducting-network and widths passes; returns the entry count, one per segment (0 when
+    /// the network is not valid, which a grown network always is).
     pub fn update_geometry(&mut self) -> u32 {
         let network = self.network();
-        self.geometry.fill(&network, width_rule(&self.params));
+        match topology_pass(&network) {
+            Ok(forest) => {
+                let conducting = conducting_network(&network);
+                let rule = width_rule(&self.params);
+                let table = widths_pass(&network, forest.as_ref(), &conducting, rule);
+                self.geometry.fill(&network, &table);
+            }
+            Err(_) => self.geometry = ScreenGeometry::default(),
+        }
         self.geometry.len() as u32
     }
 
-    /// `x0, y0, x1, y1` per entry (4 floats each).
-    pub fn ends_ptr(&self) -> *const f32 {
-        self.geometry.ends.as_ptr()
+    /// `x0, y0, x1, y1` per entry (4 floats each), a view into wasm memory. Like every view
+    /// below, it is valid only until the next call into wasm: take it afresh each time.
+    pub fn ends(&self) -> js_sys::Float32Array {
+        // SAFETY: the view is handed straight to JavaScript, which reads it before any other
+        // wasm call could grow memory or refill the buffer (see www/session.js).
+        unsafe { js_sys::Float32Array::view(&self.geometry.ends) }
     }
 
-    /// Width per entry.
-    pub fn widths_ptr(&self) -> *const f32 {
-        self.geometry.widths.as_ptr()
+    /// Width per entry, a view into wasm memory (see `ends`).
+    pub fn widths(&self) -> js_sys::Float32Array {
+        // SAFETY: as for `ends`.
+        unsafe { js_sys::Float32Array::view(&self.geometry.widths) }
     }
 
-    /// Strahler order per entry.
-    pub fn orders_ptr(&self) -> *const u32 {
-        self.geometry.orders.as_ptr()
+    /// Strahler order per entry, a view into wasm memory (see `ends`).
+    pub fn orders(&self) -> js_sys::Uint32Array {
+        // SAFETY: as for `ends`.
+        unsafe { js_sys::Uint32Array::view(&self.geometry.orders) }
     }
 
-    /// Flow per entry.
-    pub fn flows_ptr(&self) -> *const f32 {
-        self.geometry.flows.as_ptr()
+    /// Palette index of every entry under `colouring`, a view into wasm memory (see `ends`).
+    pub fn colour_indices(&mut self, colouring: &str) -> Result<js_sys::Uint8Array, JsError> {
+        let colours = self.geometry.colour_indices(colouring_named(colouring)?);
+        // SAFETY: as for `ends`.
+        Ok(unsafe { js_sys::Uint8Array::view(colours) })
     }
 
-    /// Length per entry.
-    pub fn lengths_ptr(&self) -> *const f32 {
-        self.geometry.lengths.as_ptr()
-    }
-
-    /// Palette index of every entry under `colouring` (`order`, `flow`, `plain`), one byte each.
-    pub fn colours_ptr(&mut self, colouring: &str) -> *const u8 {
-        self.geometry.colour_indices(colouring).as_ptr()
-    }
-
-    /// Draws the thin segments (on-screen width at most `max_px`) into a `width` x `height`
-    /// RGBA buffer over the `background` colour (0xRRGGBB) and returns its address; pixel =
-    /// coordinate * `scale` + offset. Wider segments are left for the page to stroke on top.
+    /// Paints the thin segments (on-screen width at most `max_px`) over the `background`
+    /// colour (0xRRGGBB) into the whole of `context`'s canvas, `width` x `height` pixels, with
+    /// `putImageData`; pixel = coordinate * `scale` + offset. Wider segments are left for the
+    /// page to stroke on top.
     #[allow(clippy::too_many_arguments)]
-    pub fn raster(
+    pub fn paint_thin_lines(
         &mut self,
+        context: &CanvasRenderingContext2d,
         width: u32,
         height: u32,
         scale: f64,
@@ -297,7 +366,8 @@ impl Simulation {
         min_px: f64,
         max_px: f64,
         background: u32,
-    ) -> *const u8 {
+    ) -> Result<(), JsError> {
+        let colouring = colouring_named(colouring)?;
         let view = RasterView {
             width,
             height,
@@ -310,24 +380,12 @@ impl Simulation {
             (background >> 8) as u8,
             background as u8,
         ];
-        self.geometry
-            .raster(view, colouring, min_px, max_px, rgb)
-            .as_ptr()
-    }
-
-    /// Smallest positive flow in the geometry (0 when none).
-    pub fn flow_low(&self) -> f64 {
-        self.geometry.flow_range.0
-    }
-
-    /// Largest flow in the geometry (0 when none).
-    pub fn flow_high(&self) -> f64 {
-        self.geometry.flow_range.1
-    }
-
-    /// Highest Strahler order in the geometry.
-    pub fn max_order(&self) -> u32 {
-        self.geometry.max_order
+        let pixels = self.geometry.raster(view, colouring, min_px, max_px, rgb);
+        let image = ImageData::new_with_u8_clamped_array_and_sh(Clamped(pixels), width, height)
+            .map_err(|_| JsError::new("the canvas refused an image of this size"))?;
+        context
+            .put_image_data(&image, 0.0, 0.0)
+            .map_err(|_| JsError::new("the canvas refused the drawing"))
     }
 }
 
@@ -350,4 +408,10 @@ impl Simulation {
             .as_ref()
             .ok_or_else(|| JsError::new("derived view missing"))
     }
+}
+
+/// The colouring named `order`, `flow` or `plain`, or an error naming the word at fault.
+fn colouring_named(name: &str) -> Result<Colouring, JsError> {
+    Colouring::from_name(name)
+        .ok_or_else(|| JsError::new(&format!("colouring {name:?}: use order, flow or plain")))
 }

@@ -254,3 +254,35 @@ test('an image mask sets the lattice to its size; a broken image is named', asyn
   assert.deepEqual(page.errors, []);
   await page.close();
 });
+
+test('the colour key on the page is the SVG export\'s, and the probe reads a segment', async () => {
+  const page = await newPage(context);
+  await page.goto(site.url);
+  await finishedDigest(page);
+  assert.equal(await page.textContent('#settings-title'), 'What to grow');
+  await page.selectOption('#colouring', 'flow');
+  const pageKey = await page.$$eval('#legend .swatch span', (labels) => labels.map((label) => label.textContent));
+  const [download] = await Promise.all([page.waitForEvent('download'), page.click('#save-svg')]);
+  const svg = readFileSync(await download.path(), 'utf8');
+  const svgKey = await page.evaluate((text) => {
+    const parsed = new DOMParser().parseFromString(text, 'image/svg+xml');
+    return [...parsed.querySelectorAll('text.legend')].map((element) => element.textContent);
+  }, svg);
+  // Both come from one Rust function; the SVG adds the root marker's entry (the canvas draws
+  // no root markers).
+  assert.deepEqual(svgKey, [...pageKey, 'root']);
+  assert.equal(pageKey.length, 3, 'title, least and most flow');
+  assert.equal(pageKey[0], 'flow (mm²)');
+  assert.ok(Number(pageKey[1]) > 0 && Number(pageKey[2]) > Number(pageKey[1]), pageKey.join(' '));
+  for (let i = 0; i < 4; i += 1) await page.click('#zoom-in');
+  const box = await page.locator('#canvas').boundingBox();
+  let shown = false;
+  for (let dx = 0; dx < 90 && !shown; dx += 3) {
+    await page.mouse.move(box.x + box.width / 2 + dx, box.y + box.height / 2);
+    shown = await page.isVisible('#probe');
+  }
+  assert.ok(shown, 'a segment near the middle of the zoomed leaf is found');
+  assert.match(await page.textContent('#probe'), /^Strahler order \d+\nflow [\d.e-]+ mm²\nwidth [\d.e-]+ mm\nlength [\d.e-]+ mm$/);
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});

@@ -129,7 +129,7 @@ fn the_pipeline_runs_on_a_looped_network() {
             row.1
         );
     }
-    let svg = view.svg(&params, ramulus_core::svg::Colouring::ByOrder);
+    let svg = ramulus_draw::run_svg(&view, &params, ramulus_draw::Colouring::ByOrder);
     assert_eq!(svg.matches("class=\"segment\"").count(), 5);
     let text = write_record(&make_record(&view, &params, None));
     let (_, again) = read_record(&text).expect("a looped version-2 record reads");

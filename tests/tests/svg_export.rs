@@ -5,7 +5,7 @@
 use ramulus_core::network::{segments_from_parents, CellSet, Network, Node, NO_PARENT};
 use ramulus_core::run::{conducting_network, topology_pass, widths_pass};
 use ramulus_core::segments::{SegmentTable, WidthRule};
-use ramulus_core::svg::{render_svg, Colouring, SvgOptions, METADATA_NAMESPACE};
+use ramulus_draw::{render_svg, Colouring, SvgOptions, METADATA_NAMESPACE};
 
 /// The SVG namespace (SVG 1.1, section 5.1.2).
 const SVG_NAMESPACE: &str = "http://www.w3.org/2000/svg";
@@ -599,4 +599,32 @@ fn empty_zero_width_and_broken_networks_do_not_panic() {
         width.parse::<f64>().is_ok(),
         "unknown units give a plain size, not {width}"
     );
+}
+
+/// The metadata namespace is a tag URI (Kindberg & Hawke 2005, RFC 4151, section 2.1):
+/// `tag:` authorityName `,` date `:` specific, with a DNS-style authority and a date of the
+/// form YYYY, YYYY-MM or YYYY-MM-DD; it is not a `urn:`, which would need a registered
+/// namespace identifier (RFC 8141).
+#[test]
+fn metadata_namespace_is_a_tag_uri() {
+    let rest = METADATA_NAMESPACE
+        .strip_prefix("tag:")
+        .expect("starts with tag:");
+    let (entity, specific) = rest.split_once(':').expect("a specific part");
+    let (authority, date) = entity.split_once(',').expect("authority and date");
+    assert!(
+        authority.contains('.')
+            && authority
+                .chars()
+                .all(|c| c.is_ascii_alphanumeric() || c == '.' || c == '-')
+    );
+    let parts: Vec<&str> = date.split('-').collect();
+    assert!(
+        parts[0].len() == 4
+            && parts
+                .iter()
+                .all(|part| part.chars().all(|c| c.is_ascii_digit()))
+    );
+    assert!(parts.len() <= 3 && parts[1..].iter().all(|part| part.len() == 2));
+    assert!(!specific.is_empty() && !specific.contains(' '));
 }

@@ -36,16 +36,6 @@ pub enum StopReason {
     Threshold,
 }
 
-impl std::fmt::Display for StopReason {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.write_str(match self {
-            StopReason::Budget => "cell budget reached",
-            StopReason::Full => "no allowed cell left within reach",
-            StopReason::Threshold => "no frontier cell below the cost threshold",
-        })
-    }
-}
-
 impl StopReason {
     /// The reason's short name as used in JSON (`budget`, `full`, `threshold`).
     pub fn name(self) -> &'static str {

@@ -1,4 +1,4 @@
-//! SVG export: `render_svg` draws a `Network` with its `SegmentTable` widths at true scale,
+//! SVG export: `run_svg` draws a run with its metadata; `render_svg` draws a `Network` with its `SegmentTable` widths at true scale,
 //! coloured by Strahler order, by flow or plainly (`Colouring`), with a scale bar, a legend and
 //! the run's metadata, as set by `SvgOptions`.
 //!
@@ -9,34 +9,20 @@
 
 use std::fmt::Write;
 
-use serde::{Deserialize, Serialize};
+use ramulus_core::network::Network;
+use ramulus_core::params::Params;
+use ramulus_core::run::{RunView, SITE_CAUTION};
+use ramulus_core::segments::SegmentTable;
 
-use crate::network::Network;
-use crate::segments::SegmentTable;
-
-mod format;
 mod legend;
 mod page;
-mod palette;
 
-pub use palette::{colour_scheme, ColourScheme, FLOW_RAMP_STEPS};
+pub use crate::palette::Colouring;
 
-use format::*;
+use crate::format::*;
+use crate::palette::*;
 use legend::*;
 use page::*;
-use palette::*;
-
-/// How segments are coloured.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
-pub enum Colouring {
-    /// By Strahler order, with colours from the colour-blind-safe palette of Okabe & Ito (2008).
-    ByOrder,
-    /// By the logarithm of flow, on a ramp whose lightness falls steadily from low to high flow.
-    ByFlow,
-    /// Every segment dark grey.
-    Plain,
-}
 
 /// What `render_svg` draws besides the network.
 #[derive(Clone, Debug, PartialEq)]
@@ -70,8 +56,31 @@ impl Default for SvgOptions {
     }
 }
 
-/// Namespace of the element inside `<metadata>` that holds the run's JSON.
-pub const METADATA_NAMESPACE: &str = "urn:ramulus:run:1";
+/// Namespace of the element inside `<metadata>` that holds the run's JSON: a `tag:` URI
+/// (Kindberg & Hawke 2005, RFC 4151: `tag:` authority `,` date `:` specific), which needs no
+/// registration, unlike a `urn:` namespace. The authority is the project's name under the
+/// reserved `.invalid` domain (RFC 2606) until the project has a domain of its own; the
+/// trailing `/1` is the version of the metadata's layout.
+pub const METADATA_NAMESPACE: &str = "tag:ramulus.invalid,2026:run-metadata/1";
+
+/// Draws a run as SVG: its parameters, seed and digest in the metadata, the concept-layout
+/// caution for drainage sites, a two-cell margin.
+pub fn run_svg(view: &RunView, params: &Params, colour: Colouring) -> String {
+    let metadata =
+        serde_json::json!({ "params": params, "seed": params.seed, "digest": view.digest });
+    let options = SvgOptions {
+        colour,
+        title: format!(
+            "Ramulus network, seed {}, digest {}",
+            params.seed, view.digest
+        ),
+        metadata_json: metadata.to_string(),
+        digest: view.digest.clone(),
+        caution: params.is_site().then(|| SITE_CAUTION.to_string()),
+        margin: params.cell_size * 2.0,
+    };
+    render_svg(&view.network, &view.table, &options)
+}
 
 /// Renders the network as a standalone SVG document.
 ///
@@ -265,10 +274,12 @@ fn write_document(
     let _ = writeln!(svg, "<title>{}</title>", escape_text(&options.title));
     let _ = writeln!(
         svg,
-        "<desc>Branching network: {} segments, {} roots; lengths in {}; segment stroke widths \
+        "<desc>Branching network: {} segment{}, {} root{}; lengths in {}; segment stroke widths \
          are true to scale.</desc>",
         drawing.segments.len(),
+        plural(drawing.segments.len()),
         drawing.roots.len(),
+        plural(drawing.roots.len()),
         escape_text(&network.units),
     );
     let _ = writeln!(
@@ -347,61 +358,18 @@ fn write_document(
     svg
 }
 
+/// The plural ending of a count's noun.
+fn plural(count: usize) -> &'static str {
+    if count == 1 {
+        ""
+    } else {
+        "s"
+    }
+}
+
 #[cfg(test)]
 mod tests {
-    use super::*;
-
-    #[test]
-    fn numbers_are_compact() {
-        assert_eq!(significant(0.0), "0");
-        assert_eq!(significant(1.0), "1");
-        assert_eq!(significant(0.123_456_789), "0.123457");
-        assert_eq!(significant(-2.5e-7), "-0.00000025");
-        assert_eq!(significant(f64::NAN), "0");
-        assert_eq!(fixed(-0.000_01, 3), "0");
-        assert_eq!(significant_digits(26_959.2, 3), "26959");
-        assert_eq!(significant_digits(1.4175, 3), "1.42");
-    }
-
-    #[test]
-    fn round_lengths() {
-        assert_eq!(round_length(0.9), 1.0);
-        assert_eq!(round_length(3.5), 5.0);
-        assert_eq!(round_length(2.9), 2.0);
-        assert_eq!(round_length(170.0), 200.0);
-        assert_eq!(round_length(0.0), 1.0);
-    }
-
-    #[test]
-    fn escapes_all_five() {
-        assert_eq!(escape_text("a<b>&\"c'"), "a&lt;b&gt;&amp;&quot;c&apos;");
-        assert_eq!(escape_attribute("x\ny"), "x&#10;y");
-        assert_eq!(escape_text("\u{7}"), "\u{fffd}");
-    }
-
-    /// Relative luminance (WCAG 2 definition) of a `#rrggbb` colour.
-    fn relative_luminance(colour: &str) -> f64 {
-        let channel = |offset: usize| {
-            let value = u8::from_str_radix(&colour[offset..offset + 2], 16).unwrap() as f64 / 255.0;
-            if value <= 0.04045 {
-                value / 12.92
-            } else {
-                ((value + 0.055) / 1.055).powf(2.4)
-            }
-        };
-        0.2126 * channel(1) + 0.7152 * channel(3) + 0.0722 * channel(5)
-    }
-
-    #[test]
-    fn flow_ramp_darkens_steadily() {
-        let mut previous = f64::INFINITY;
-        for step in 0..=20 {
-            let colour = flow_colour(step as f64 / 20.0);
-            let luminance = relative_luminance(&colour);
-            assert!(luminance < previous, "step {step}: {colour} is not darker");
-            previous = luminance;
-        }
-    }
+    use super::legend::wrap;
 
     #[test]
     fn wrapping_keeps_words() {

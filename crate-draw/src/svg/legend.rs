@@ -1,30 +1,9 @@
-//! The band under the SVG drawing: legend items, scale bar, caution text and line wrapping.
+//! The band under the SVG drawing: scale bar, the legend's items laid out in rows (see
+//! `crate::legend`), caution text and line wrapping.
 
 use super::*;
+use crate::legend::{legend_items, LegendFacts, Piece};
 use std::fmt::Write;
-
-/// A legend entry: pieces laid side by side and never split across lines.
-pub(super) struct LegendItem {
-    pub(super) pieces: Vec<Piece>,
-}
-
-/// Part of a legend entry.
-pub(super) enum Piece {
-    /// A short stroke in a colour.
-    Line(String),
-    /// A root marker.
-    Circle,
-    /// A label.
-    Text(String),
-}
-
-impl LegendItem {
-    pub(super) fn text(label: impl Into<String>) -> LegendItem {
-        LegendItem {
-            pieces: vec![Piece::Text(label.into())],
-        }
-    }
-}
 
 /// Width of a legend piece, in font sizes (text is estimated at 0.6 font sizes a character).
 pub(super) fn piece_width(piece: &Piece) -> f64 {
@@ -102,7 +81,14 @@ impl Band {
         }
 
         // Legend.
-        let items = legend_items(drawing, options.colour, units);
+        let items = legend_items(&LegendFacts {
+            colouring: options.colour,
+            max_order: drawing.max_order,
+            flow_range: drawing.flow_range,
+            segment_count: drawing.segments.len(),
+            roots_drawn: !drawing.roots.is_empty(),
+            units,
+        });
         let mut x = left;
         baseline += line_gap;
         for item in &items {
@@ -172,62 +158,6 @@ impl Band {
         let height = baseline + 0.8 * font - frame.drawing_bottom;
         Band { svg, height, font }
     }
-}
-
-/// Legend entries for a colouring, plus the root marker.
-pub(super) fn legend_items(
-    drawing: &Drawing,
-    colouring: Colouring,
-    units: &str,
-) -> Vec<LegendItem> {
-    let mut items = Vec::new();
-    match colouring {
-        Colouring::ByOrder if drawing.max_order > 0 => {
-            items.push(LegendItem::text("Strahler order"));
-            let shown = drawing.max_order.min(ORDER_COLOURS.len() as u32);
-            for order in 1..=shown {
-                let plus = if order == shown && drawing.max_order > shown {
-                    "+"
-                } else {
-                    ""
-                };
-                items.push(LegendItem {
-                    pieces: vec![
-                        Piece::Line(order_colour(order).to_string()),
-                        Piece::Text(format!("{order}{plus}")),
-                    ],
-                });
-            }
-        }
-        Colouring::ByFlow => {
-            if let Some((low, high)) = drawing.flow_range {
-                items.push(LegendItem::text(format!("flow ({units}\u{b2})")));
-                let mut pieces = vec![Piece::Text(significant_digits(low, 3))];
-                if high > low {
-                    pieces.extend((0..5).map(|step| Piece::Line(flow_colour(step as f64 / 4.0))));
-                    pieces.push(Piece::Text(significant_digits(high, 3)));
-                } else {
-                    pieces.push(Piece::Line(flow_colour(1.0)));
-                }
-                items.push(LegendItem { pieces });
-            }
-        }
-        Colouring::Plain if !drawing.segments.is_empty() => {
-            items.push(LegendItem {
-                pieces: vec![
-                    Piece::Line(PLAIN.to_string()),
-                    Piece::Text("segment (width to scale)".to_string()),
-                ],
-            });
-        }
-        Colouring::ByOrder | Colouring::Plain => {}
-    }
-    if !drawing.roots.is_empty() {
-        items.push(LegendItem {
-            pieces: vec![Piece::Circle, Piece::Text("root".to_string())],
-        });
-    }
-    items
 }
 
 /// Writes one `<text>` element.

@@ -1,0 +1,22 @@
+//! Ramulus drawing: everything people see of a run. The SVG export (`svg`), the anti-aliased
+//! raster of thin lines and the page's per-segment buffers (`raster`, `screen`), colours
+//! (`palette`), number formats (`format`), the colour key shared by SVG and page (`legend`),
+//! the descriptions of the readings plots (`plots`), the scale bar (`scale_bar`) and the
+//! sentences the page and the command line show (`texts`).
+//!
+//! The core computes; this crate only turns its values into pictures and words. Its inputs are
+//! narrow: node positions and parents (`Network`), the per-segment widths, orders and flows
+//! (`SegmentTable`), metrics, and options.
+#![deny(missing_docs)]
+
+pub mod format;
+pub mod legend;
+pub mod palette;
+pub mod plots;
+pub mod raster;
+pub mod scale_bar;
+pub mod screen;
+pub mod svg;
+pub mod texts;
+
+pub use svg::{render_svg, run_svg, Colouring, SvgOptions, METADATA_NAMESPACE};

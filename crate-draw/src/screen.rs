@@ -1,0 +1,284 @@
+//! `ScreenGeometry`: per-segment buffers (end points, widths, orders, flows, lengths, colour
+//! index) that the page reads through typed-array views into wasm memory, refilled in place
+//! from a network and its segment table; `ScreenGeometry::raster` draws the thin segments into
+//! a pixel buffer, and `legend_facts` describes what is drawn for the colour key.
+
+use ramulus_core::network::Network;
+use ramulus_core::segments::SegmentTable;
+
+use crate::legend::LegendFacts;
+use crate::palette::{palette_rgb, Colouring, FLOW_RAMP_STEPS};
+use crate::raster::{draw_lines, fill, spatial_order, Line, RasterView};
+
+/// Flat buffers, one entry per drawable segment: entry `k` runs from the upstream to the
+/// downstream end of `Network::segments[k]` (all segments of a valid network are drawable).
+#[derive(Default)]
+pub struct ScreenGeometry {
+    /// `x0, y0, x1, y1` per segment, physical units (y down).
+    pub ends: Vec<f32>,
+    /// Drawn width, physical units.
+    pub widths: Vec<f32>,
+    /// Strahler order (1 for a tip segment).
+    pub orders: Vec<u32>,
+    /// Flow, squared units.
+    pub flows: Vec<f32>,
+    /// Length, units.
+    pub lengths: Vec<f32>,
+    /// Smallest and largest positive flow (0, 0 when none).
+    pub flow_range: (f64, f64),
+    /// Highest order present.
+    pub max_order: u32,
+    /// Number of entries (segments).
+    pub segment_count: usize,
+    /// Palette index of each segment under `colouring`.
+    pub colours: Vec<u8>,
+    /// The colouring `colours` was computed for (`None` when stale).
+    pub colouring: Option<Colouring>,
+    /// RGB of each palette index under `colouring`.
+    pub palette: Vec<[u8; 3]>,
+    /// RGBA pixels of the last raster.
+    pub pixels: Vec<u8>,
+    /// Entries in an order where neighbours lie close together, for `raster`.
+    pub draw_order: Vec<u32>,
+}
+
+/// Cells per side of the grid that orders segments for drawing.
+const DRAW_ORDER_GRID: usize = 128;
+
+impl ScreenGeometry {
+    /// Refills every buffer from `network` and its segment table (row `k` describes
+    /// `network.segments[k]`), reusing their allocations. Rows the table lacks count as width
+    /// 0, order 1, flow 0, length 0; segments naming a missing node are left out.
+    pub fn fill(&mut self, network: &Network, table: &SegmentTable) {
+        self.clear();
+        let at = |values: &[f64], index: usize| values.get(index).copied().unwrap_or(0.0);
+        let mut low = f64::INFINITY;
+        let mut high = 0.0f64;
+        for (index, segment) in network.segments.iter().enumerate() {
+            let (Some(from), Some(to)) = (
+                network.nodes.get(segment.from as usize),
+                network.nodes.get(segment.to as usize),
+            ) else {
+                continue;
+            };
+            self.ends
+                .extend_from_slice(&[from.x as f32, from.y as f32, to.x as f32, to.y as f32]);
+            let order = table.order.get(index).copied().unwrap_or(1);
+            self.widths.push(at(&table.width, index) as f32);
+            self.orders.push(order);
+            let flow = at(&table.flow, index);
+            self.flows.push(flow as f32);
+            self.lengths.push(at(&table.length, index) as f32);
+            if flow > 0.0 {
+                low = low.min(flow);
+                high = high.max(flow);
+            }
+            self.max_order = self.max_order.max(order);
+            self.segment_count += 1;
+        }
+        self.flow_range = if high > 0.0 { (low, high) } else { (0.0, 0.0) };
+        let ends = &self.ends;
+        let midpoints = (0..ends.len() / 4).map(|index| {
+            let at = 4 * index;
+            [
+                (ends[at] as f64 + ends[at + 2] as f64) * 0.5,
+                (ends[at + 1] as f64 + ends[at + 3] as f64) * 0.5,
+            ]
+        });
+        self.draw_order = spatial_order(midpoints, DRAW_ORDER_GRID);
+    }
+
+    /// Palette index of every segment: order `k` takes colour `min(k, 7) - 1`; flow takes
+    /// the ramp step of its logarithm between the smallest and largest positive flow (the
+    /// SVG export's rule); plain takes 0.
+    pub fn colour_indices(&mut self, colouring: Colouring) -> &[u8] {
+        if self.colouring != Some(colouring) || self.colours.len() != self.len() {
+            self.palette = palette_rgb(colouring);
+            let order_colours = self.palette.len() as u32;
+            let (low, high) = self.flow_range;
+            let steps = FLOW_RAMP_STEPS as f64 - 1.0;
+            let span = libm::log(high) - libm::log(low);
+            self.colours.clear();
+            for index in 0..self.len() {
+                let colour = match colouring {
+                    Colouring::ByOrder => self.orders[index].clamp(1, order_colours) - 1,
+                    Colouring::ByFlow => {
+                        let flow = self.flows[index] as f64;
+                        if flow <= 0.0 {
+                            0
+                        } else if high <= low || span.is_nan() || span <= 0.0 {
+                            steps as u32
+                        } else {
+                            let t = (libm::log(flow) - libm::log(low)) / span;
+                            libm::round(t.clamp(0.0, 1.0) * steps) as u32
+                        }
+                    }
+                    Colouring::Plain => 0,
+                };
+                self.colours.push(colour as u8);
+            }
+            self.colouring = Some(colouring);
+        }
+        &self.colours
+    }
+
+    /// Draws every segment whose width on screen, `max(width * scale, min_px)`, is at most
+    /// `max_px` into the pixel buffer over a `background` fill, at opacity `min(1, px)`.
+    pub fn raster(
+        &mut self,
+        view: RasterView,
+        colouring: Colouring,
+        min_px: f64,
+        max_px: f64,
+        background: [u8; 3],
+    ) -> &[u8] {
+        let size = view.width as usize * view.height as usize * 4;
+        self.pixels.resize(size, 0);
+        fill(&mut self.pixels, background);
+        self.colour_indices(colouring);
+        let ScreenGeometry {
+            ends,
+            widths,
+            colours,
+            palette,
+            pixels,
+            draw_order,
+            ..
+        } = self;
+        let lines = draw_order.iter().filter_map(|&index| {
+            let index = index as usize;
+            // Comparisons, not `max` and `min`: those are library calls on wasm32.
+            let scaled = widths[index] as f64 * view.scale;
+            let px = if scaled > min_px { scaled } else { min_px };
+            if px > max_px {
+                return None;
+            }
+            let ends: [f32; 4] = ends.get(4 * index..4 * index + 4)?.try_into().ok()?;
+            let rgb = palette
+                .get(colours[index] as usize)
+                .copied()
+                .unwrap_or([0, 0, 0]);
+            Some(Line {
+                ends,
+                rgb,
+                strength: if px < 1.0 { (px * 256.0) as u32 } else { 256 },
+            })
+        });
+        draw_lines(pixels, &view, lines);
+        &self.pixels
+    }
+
+    /// What the canvas shows, for its colour key (the canvas draws no root markers).
+    pub fn legend_facts<'a>(&self, colouring: Colouring, units: &'a str) -> LegendFacts<'a> {
+        let (low, high) = self.flow_range;
+        LegendFacts {
+            colouring,
+            max_order: self.max_order,
+            flow_range: (high > 0.0).then_some((low, high)),
+            segment_count: self.segment_count,
+            roots_drawn: false,
+            units,
+        }
+    }
+
+    /// The entry whose segment passes nearest to (`x`, `y`) (physical units) within `reach`,
+    /// or `None`; zero-length segments are never found.
+    pub fn segment_at(&self, x: f64, y: f64, reach: f64) -> Option<usize> {
+        let mut best = None;
+        let mut best_distance = reach * reach;
+        for (index, ends) in self.ends.chunks_exact(4).enumerate() {
+            let [x0, y0, x1, y1] = [ends[0], ends[1], ends[2], ends[3]].map(f64::from);
+            let (dx, dy) = (x1 - x0, y1 - y0);
+            let squared = dx * dx + dy * dy;
+            if squared == 0.0 {
+                continue;
+            }
+            let t = (((x - x0) * dx + (y - y0) * dy) / squared).clamp(0.0, 1.0);
+            let (ex, ey) = (x0 + t * dx - x, y0 + t * dy - y);
+            let distance = ex * ex + ey * ey;
+            if distance < best_distance {
+                best_distance = distance;
+                best = Some(index);
+            }
+        }
+        best
+    }
+
+    /// Whether there are no entries.
+    pub fn is_empty(&self) -> bool {
+        self.widths.is_empty()
+    }
+
+    /// Number of entries (segments).
+    pub fn len(&self) -> usize {
+        self.widths.len()
+    }
+
+    fn clear(&mut self) {
+        self.ends.clear();
+        self.widths.clear();
+        self.orders.clear();
+        self.flows.clear();
+        self.lengths.clear();
+        self.flow_range = (0.0, 0.0);
+        self.max_order = 0;
+        self.segment_count = 0;
+        self.colouring = None;
+        self.draw_order.clear();
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use ramulus_core::network::{segments_from_parents, CellSet, Node, NO_PARENT};
+    use ramulus_core::run::{conducting_network, topology_pass, widths_pass};
+    use ramulus_core::segments::WidthRule;
+
+    /// A root and a chain of two segments whose flows are 1 and 2 (each node adds weight 1):
+    /// the log-flow rule puts the smaller at ramp step 0 and the larger at the last step.
+    #[test]
+    fn flow_colours_span_the_ramp_and_orders_clamp() {
+        let node = |x: f64| Node {
+            x,
+            y: 0.0,
+            weight: 1.0,
+        };
+        let network = Network {
+            nodes: vec![node(0.0), node(1.0), node(2.0)],
+            segments: segments_from_parents(&[NO_PARENT, 0, 1]),
+            area: 1.0,
+            units: "mm".to_string(),
+            cell_size: 1.0,
+            cells: CellSet::default(),
+        };
+        let rule = WidthRule {
+            gamma: 2.0,
+            base_width: 0.1,
+            reference_flow: 1.0,
+        };
+        let forest = topology_pass(&network).unwrap();
+        let table = widths_pass(
+            &network,
+            forest.as_ref(),
+            &conducting_network(&network),
+            rule,
+        );
+        let mut screen = ScreenGeometry::default();
+        screen.fill(&network, &table);
+        assert_eq!(screen.len(), 2);
+        assert_eq!(screen.segment_count, 2);
+        assert_eq!(
+            screen.colour_indices(Colouring::ByFlow),
+            [(FLOW_RAMP_STEPS - 1) as u8, 0]
+        );
+        assert_eq!(screen.colour_indices(Colouring::ByOrder), [0, 0]);
+        // (1.5, 0.2) is 0.2 from entry 1 (node 2 to node 1, x 1..2) and 0.5 from entry 0's end.
+        assert_eq!(screen.segment_at(1.5, 0.2, 0.3), Some(1));
+        assert_eq!(screen.segment_at(0.5, 0.2, 0.3), Some(0));
+        assert_eq!(screen.segment_at(1.5, 0.4, 0.3), None);
+        let facts = screen.legend_facts(Colouring::ByFlow, "mm");
+        assert_eq!(facts.flow_range, Some((1.0, 2.0)));
+        assert!(!facts.roots_drawn);
+    }
+}

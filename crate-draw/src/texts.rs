@@ -1,0 +1,63 @@
+//! The sentences people read about a run, shared by the page and the command line: why growth
+//! stopped (`stop_text`), the progress line (`progress_text`) and a segment's readings
+//! (`segment_reading`). Numbers go through `crate::format`.
+
+use ramulus_core::growth::StopReason;
+
+use crate::format::{four_digits, grouped};
+
+/// Why growth stopped, in words.
+pub fn stop_text(reason: StopReason) -> &'static str {
+    match reason {
+        StopReason::Budget => "cell budget reached",
+        StopReason::Full => "no allowed cell left within reach",
+        StopReason::Threshold => "no frontier cell below the cost threshold",
+    }
+}
+
+/// The stop text of a network read from a run record without parameters: it does not grow.
+pub const SAVED_NETWORK_TEXT: &str = "network as saved in the record";
+
+/// `1,234 of 5,000 cells`, followed by `, stopped: <why>` once growth has stopped.
+pub fn progress_text(cells: u64, budget: u64, stopped: Option<&str>) -> String {
+    let mut text = format!("{} of {} cells", grouped(cells), grouped(budget));
+    if let Some(why) = stopped {
+        text.push_str(", stopped: ");
+        text.push_str(why);
+    }
+    text
+}
+
+/// The readings of one segment, one per line: Strahler order, flow, width and length with
+/// their units (four significant digits).
+pub fn segment_reading(order: u32, flow: f64, width: f64, length: f64, units: &str) -> String {
+    format!(
+        "Strahler order {order}\nflow {} {units}\u{b2}\nwidth {} {units}\nlength {} {units}",
+        four_digits(flow),
+        four_digits(width),
+        four_digits(length),
+    )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn progress_names_the_stop() {
+        assert_eq!(progress_text(1234, 5000, None), "1,234 of 5,000 cells");
+        assert_eq!(
+            progress_text(5000, 5000, Some(stop_text(StopReason::Budget))),
+            "5,000 of 5,000 cells, stopped: cell budget reached"
+        );
+    }
+
+    #[test]
+    fn readings_carry_units() {
+        let text = segment_reading(3, 0.5, 0.012_345, 1.5, "mm");
+        assert_eq!(
+            text,
+            "Strahler order 3\nflow 0.5 mm\u{b2}\nwidth 0.01235 mm\nlength 1.5 mm"
+        );
+    }
+}

@@ -1,0 +1,89 @@
+// The page's one wasm session: loads the module, holds the run (a core Simulation), and hands
+// out everything the other modules read from it: typed-array views of the geometry, thin lines
+// painted by the core, the colour key, the scale bar, a segment's readings, the plots and the
+// progress line. Views into wasm memory are detached whenever that memory grows (any
+// allocating wasm call), so no view leaves this module to be kept: callers take them afresh
+// for each drawing, in the order `drawingViews` gives. No other module imports pkg/.
+import init, * as core from './pkg/ramulus_web.js';
+
+export class Session {
+  /// Loads the wasm module; resolves to a session without a run.
+  static async open() {
+    await init();
+    return new Session();
+  }
+
+  constructor() {
+    this.core = core;
+    this.simulation = null;
+    this.count = 0; // geometry entries as last refilled
+  }
+
+  /// Replaces the run (freeing the old one); `simulation` null to hold none.
+  setSimulation(simulation) {
+    if (this.simulation && this.simulation !== simulation) this.simulation.free();
+    this.simulation = simulation;
+    this.count = 0;
+  }
+
+  /// A new run grown from a link.
+  grow(link) {
+    return new core.Simulation(link);
+  }
+
+  /// A run restored from a run record's text.
+  restore(text) {
+    return core.Simulation.from_record(text);
+  }
+
+  /// Refills the geometry from the network as it stands; returns the entry count.
+  refill() {
+    this.count = this.simulation ? this.simulation.update_geometry() : 0;
+    return this.count;
+  }
+
+  /// `{colours, ends, widths}` for one drawing: palette indices under `colouring`, end points
+  /// and widths. Colour indices first, as computing them may grow memory; the two views after
+  /// them allocate nothing in wasm. Use them at once, before any other wasm call.
+  drawingViews(colouring) {
+    const colours = this.simulation.colour_indices(colouring);
+    const ends = this.simulation.ends();
+    const widths = this.simulation.widths();
+    return { colours, ends, widths };
+  }
+
+  /// Paints the thin lines into `context`'s whole canvas (see Simulation.paint_thin_lines).
+  paintThinLines(context, width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background) {
+    this.simulation.paint_thin_lines(context, width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background);
+  }
+
+  /// The colour key of the canvas: `[{pieces: [{line: '#rrggbb'} | 'circle' | {text}]}]`.
+  legend(colouring) {
+    return this.simulation ? JSON.parse(this.simulation.legend_json(colouring)) : [];
+  }
+
+  /// `{length, pixels, label}` of a round scale bar about `targetPixels` long.
+  scaleBar(pixelsPerUnit, targetPixels) {
+    return JSON.parse(this.simulation.scale_bar_json(pixelsPerUnit, targetPixels));
+  }
+
+  /// The entry nearest to (x, y) in physical units within `reach`, or -1.
+  segmentAt(x, y, reach) {
+    return this.simulation && this.count > 0 ? this.simulation.segment_at(x, y, reach) : -1;
+  }
+
+  /// The readings of entry `index`, one per line.
+  reading(index) {
+    return this.simulation.segment_reading(index);
+  }
+
+  /// The Horton plot and angle histogram as data to draw, with their summary in words.
+  plots() {
+    return JSON.parse(this.simulation.plots_json());
+  }
+
+  /// `1,234 of 5,000 cells, stopped: ...`.
+  progressText() {
+    return this.simulation ? this.simulation.progress_text() : '';
+  }
+}
