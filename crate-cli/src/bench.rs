@@ -9,7 +9,7 @@ use std::time::Instant;
 use ramulus_core::growth::Growth;
 use ramulus_core::params::{Joining, Params, Root};
 
-use crate::options::CliError;
+use crate::options::{BenchOptions, CliError};
 
 static CURRENT: AtomicUsize = AtomicUsize::new(0);
 static PEAK: AtomicUsize = AtomicUsize::new(0);
@@ -111,10 +111,8 @@ fn full_model(cells: u64) -> Params {
 }
 
 /// Runs the benchmark cases and prints one line of figures per case.
-pub fn run(arguments: &[String]) -> Result<(), CliError> {
-    let flags = crate::options::only_flags(arguments, &["--quick", "--json"], "bench")?;
-    let quick = flags.contains(&"--quick");
-    let as_json = flags.contains(&"--json");
+pub fn run(options: BenchOptions) -> Result<(), CliError> {
+    let (quick, as_json) = (options.quick, options.json);
     let (side, small, large) = if quick {
         (300, 25_000, 100_000)
     } else {

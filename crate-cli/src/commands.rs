@@ -11,7 +11,7 @@ use ramulus_draw::texts::stop_text;
 use ramulus_draw::{run_svg, Colouring};
 use serde_json::json;
 
-use crate::options::{assemble_params, only_flags, CliError, GrowOptions};
+use crate::options::{assemble_params, CliError, GrowOptions, MeasureOptions, PresetsOptions};
 
 fn read_text(path: &str) -> Result<String, CliError> {
     std::fs::read_to_string(path)
@@ -24,8 +24,7 @@ fn write_file(path: &str, text: &str) -> Result<(), CliError> {
 }
 
 /// `ramulus grow`.
-pub fn grow(arguments: &[String]) -> Result<(), CliError> {
-    let options = GrowOptions::parse(arguments)?;
+pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     let file_text = match &options.params_file {
         Some(path) => Some((path.as_str(), read_text(path)?)),
         None => None,
@@ -126,8 +125,18 @@ fn print_table(metrics: &Metrics, units: &str) {
     }
 }
 
-/// `ramulus measure RECORD.json`.
-pub fn measure_record(path: &str, as_json: bool) -> Result<(), CliError> {
+/// The digest and metrics of one run record, recomputed from its network.
+struct Measured {
+    path: String,
+    digest: String,
+    stored_digest: String,
+    segments: usize,
+    units: String,
+    metrics: Metrics,
+}
+
+/// Reads one run record and measures its network.
+fn measure_record(path: &str) -> Result<Measured, CliError> {
     let text = read_text(path)?;
     let (record, network) =
         read_record(&text).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
@@ -135,48 +144,83 @@ pub fn measure_record(path: &str, as_json: bool) -> Result<(), CliError> {
     let metrics = ramulus_core::metrics::measure(&network, alpha)
         .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
     let digest = ramulus_core::digest::digest_hex(&network);
-    if as_json {
+    Ok(Measured {
+        path: path.to_string(),
+        digest,
+        stored_digest: record.digest,
+        segments: network.segment_count(),
+        units: network.units.clone(),
+        metrics,
+    })
+}
+
+/// The JSON object of one measured record (the whole output when one file is given).
+fn measured_json(measured: &Measured) -> serde_json::Value {
+    json!({ "digest": measured.digest, "segments": measured.segments, "total_length": measured.metrics.total_length, "metrics": measured.metrics })
+}
+
+/// `ramulus measure RECORD.json...`: measures every file; if any fails, names each failing
+/// file and prints nothing on stdout.
+pub fn measure(options: MeasureOptions) -> Result<(), CliError> {
+    let mut measured = Vec::new();
+    let mut failures = Vec::new();
+    for path in &options.files {
+        match measure_record(path) {
+            Ok(one) => measured.push(one),
+            Err(CliError::Failed(message) | CliError::Usage(message)) => failures.push(message),
+        }
+    }
+    if !failures.is_empty() {
+        return Err(CliError::Failed(if options.files.len() == 1 {
+            failures.join("\n")
+        } else {
+            format!(
+                "{} of {} records could not be measured, so none is printed:\n  {}",
+                failures.len(),
+                options.files.len(),
+                failures.join("\n  ")
+            )
+        }));
+    }
+    if options.json {
+        let output = match measured.as_slice() {
+            [one] => measured_json(one),
+            several => {
+                let records: Vec<serde_json::Value> = several
+                    .iter()
+                    .map(|one| {
+                        let mut object = measured_json(one);
+                        object["file"] = json!(one.path);
+                        object
+                    })
+                    .collect();
+                json!({ "records": records })
+            }
+        };
+        say!("{output}");
+        return Ok(());
+    }
+    for (index, one) in measured.iter().enumerate() {
+        if measured.len() > 1 {
+            say!("{}{}:", if index == 0 { "" } else { "\n" }, one.path);
+        }
         say!(
-            "{}",
-            json!({ "digest": digest, "segments": network.segment_count(), "total_length": metrics.total_length, "metrics": metrics })
-        );
-    } else {
-        say!(
-            "digest: {digest}{}",
-            if digest == record.digest {
+            "digest: {}{}",
+            one.digest,
+            if one.digest == one.stored_digest {
                 ""
             } else {
                 "  (differs from the digest stored in the record)"
             }
         );
-        print_table(&metrics, &network.units);
+        print_table(&one.metrics, &one.units);
     }
     Ok(())
 }
 
-/// `ramulus measure` argument handling.
-pub fn measure(arguments: &[String]) -> Result<(), CliError> {
-    let mut path = None;
-    let mut as_json = false;
-    for argument in arguments {
-        match argument.as_str() {
-            "--json" => as_json = true,
-            flag if flag.starts_with("--") => {
-                return Err(CliError::Usage(format!(
-                    "unknown option `{flag}` for `measure`"
-                )))
-            }
-            file => path = Some(file.to_string()),
-        }
-    }
-    let path = path.ok_or_else(|| CliError::Usage("`measure` needs a RECORD.json".into()))?;
-    measure_record(&path, as_json)
-}
-
 /// `ramulus presets`.
-pub fn presets(arguments: &[String]) -> Result<(), CliError> {
-    let as_json = only_flags(arguments, &["--json"], "presets")?.contains(&"--json");
-    if as_json {
+pub fn presets(options: PresetsOptions) -> Result<(), CliError> {
+    if options.json {
         say!(
             "{}",
             serde_json::to_string(&all_presets()).unwrap_or_default()

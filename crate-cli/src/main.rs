@@ -1,5 +1,5 @@
-//! The `ramulus` command line: parses arguments, reads and writes files, and hands everything
-//! else to `ramulus-core`. Only this crate turns errors into messages and exit codes.
+//! The `ramulus` command line: reads arguments (with clap), reads and writes files, and hands
+//! everything else to `ramulus-core`. Only this crate turns errors into messages and exit codes.
 
 /// Prints a line on stdout, ignoring a closed pipe (e.g. `ramulus grow | head`) instead of
 /// panicking.
@@ -16,55 +16,71 @@ mod options;
 
 use std::process::ExitCode;
 
+use clap::{Parser, Subcommand};
+
+use options::{BenchOptions, CliError, GrowOptions, MeasureOptions, PresetsOptions};
+
 #[global_allocator]
 static ALLOCATOR: bench::CountingAllocator = bench::CountingAllocator;
 
-const USAGE: &str = "\
-ramulus: grow, measure and export branching transport networks
+/// The whole command line; clap reads it, answers `help`, `--help` and `--version` itself and
+/// turns wrong usage into a message naming the argument (exit 2).
+#[derive(Parser)]
+#[command(
+    name = "ramulus",
+    version,
+    about = "Grow, measure and export branching transport networks (leaf veins, site drainage)",
+    after_help = "`ramulus help COMMAND` or `ramulus COMMAND --help` describes one command.\n\
+                  Exit status: 0 done, 1 a file or parameter is wrong (named on stderr), 2 wrong usage.",
+    arg_required_else_help = true
+)]
+struct CommandLine {
+    #[command(subcommand)]
+    command: Command,
+}
 
-usage:
-  ramulus grow [--preset NAME | --params FILE.json | --link LINK] [--set KEY=VALUE]... [--mask FILE]
-               [--record OUT.json] [--svg OUT.svg] [--colour order|flow|plain] [--json]
-  ramulus measure RECORD.json [--json]
-  ramulus presets [--json]
-  ramulus bench [--quick] [--json]
-
-`grow` starts from the preset (default: broad-leaf) or, with --params, from defaults plus the
-file's keys, or, with --link, from a run link copied from the page (a whole URL or its #fragment;
-a damaged field takes its default, with a warning on stderr); each --set KEY=VALUE then
-overrides one key (VALUE is JSON, or else a string).
---mask reads a PBM (P1/P4, black = allowed) or PNG (dark = allowed) image; its size sets the
-lattice. With --json exactly one JSON object is printed on stdout; its `link` opens the run on the page.";
+#[derive(Subcommand)]
+enum Command {
+    /// Grow one network; print its figures, write its record or drawing
+    Grow(GrowOptions),
+    /// Recompute the digest and metrics of saved run records
+    Measure(MeasureOptions),
+    /// List the named parameter sets with their parameters
+    Presets(PresetsOptions),
+    /// Time growth on fixed cases: cells per second, peak bytes per cell
+    Bench(BenchOptions),
+}
 
 fn main() -> ExitCode {
-    let arguments: Vec<String> = std::env::args().skip(1).collect();
-    let Some(command) = arguments.first() else {
-        eprintln!("{USAGE}");
-        return ExitCode::from(2);
-    };
-    let rest = &arguments[1..];
-    let outcome = match command.as_str() {
-        "grow" => commands::grow(rest),
-        "measure" => commands::measure(rest),
-        "presets" => commands::presets(rest),
-        "bench" => bench::run(rest),
-        "help" | "--help" | "-h" => {
-            say!("{USAGE}");
-            Ok(())
-        }
-        other => Err(options::CliError::Usage(format!(
-            "unknown command `{other}`"
-        ))),
+    // clap prints help and version on stdout (exit 0) and usage errors on stderr (exit 2).
+    let command_line = CommandLine::try_parse().unwrap_or_else(|error| error.exit());
+    let outcome = match command_line.command {
+        Command::Grow(options) => commands::grow(options),
+        Command::Measure(options) => commands::measure(options),
+        Command::Presets(options) => commands::presets(options),
+        Command::Bench(options) => bench::run(options),
     };
     match outcome {
         Ok(()) => ExitCode::SUCCESS,
-        Err(options::CliError::Usage(message)) => {
-            eprintln!("ramulus: {message}\n\n{USAGE}");
+        Err(CliError::Usage(message)) => {
+            eprintln!("ramulus: {message}\n\n(`ramulus help` lists the commands and options)");
             ExitCode::from(2)
         }
-        Err(options::CliError::Failed(message)) => {
+        Err(CliError::Failed(message)) => {
             eprintln!("ramulus: {message}");
             ExitCode::from(1)
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use clap::CommandFactory;
+
+    /// clap's own consistency check of the definition (clashing names, conflicts naming
+    /// arguments that do not exist, required positional after optional ones).
+    #[test]
+    fn the_command_line_definition_is_consistent() {
+        super::CommandLine::command().debug_assert();
     }
 }

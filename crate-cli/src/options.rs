@@ -1,6 +1,8 @@
-//! Command-line option parsing (`GrowOptions`, `CliError`) and parameter assembly from a
-//! preset, a parameter file and `--set` overrides.
+//! The options of each command (`GrowOptions`, `MeasureOptions`, `PresetsOptions`,
+//! `BenchOptions`, read by clap; their doc comments are the help text), `CliError`, and
+//! parameter assembly from a preset, a parameter file and `--set` overrides.
 
+use clap::Args;
 use ramulus_core::params::Params;
 use ramulus_core::presets::preset;
 use serde_json::{Map, Value};
@@ -13,57 +15,127 @@ pub enum CliError {
     Failed(String),
 }
 
-/// Options of `ramulus grow`.
-#[derive(Default)]
+/// Options of `ramulus grow`. The doc comments of the fields are the help text of `ramulus grow
+/// --help`.
+#[derive(Default, Args)]
+#[command(after_help = GROW_NOTES)]
 pub struct GrowOptions {
+    /// Start from this named parameter set (default: broad-leaf;
+    /// `ramulus presets` lists them)
+    #[arg(long, value_name = "NAME", verbatim_doc_comment)]
     pub preset: Option<String>,
+    /// Start from the defaults plus the keys of this JSON object
+    /// of parameters
+    #[arg(long = "params", value_name = "FILE.json", verbatim_doc_comment)]
     pub params_file: Option<String>,
+    /// Override one parameter after the preset, file or link; VALUE
+    /// is read as JSON, else taken as text; repeat for more keys
+    #[arg(
+        long = "set",
+        value_name = "KEY=VALUE",
+        value_parser = key_equals_value,
+        verbatim_doc_comment
+    )]
     pub sets: Vec<String>,
+    /// Image of the allowed cells: PBM (P1 or P4; black = allowed)
+    /// or PNG (dark = allowed, transparent = blocked); one pixel is
+    /// one cell, so the image size sets width and height in cells
+    #[arg(long = "mask", value_name = "FILE", verbatim_doc_comment)]
     pub mask_file: Option<String>,
+    /// Start from a run link copied from the page, a whole URL or
+    /// its #fragment (not with --preset or --params)
+    #[arg(
+        long,
+        value_name = "LINK",
+        conflicts_with_all = ["preset", "params_file"],
+        verbatim_doc_comment
+    )]
     pub link: Option<String>,
+    /// Write the run record (parameters, network with lengths in
+    /// the run's units, digest) to this JSON file
+    #[arg(long = "record", value_name = "OUT.json", verbatim_doc_comment)]
     pub record_file: Option<String>,
+    /// Write an SVG drawing of the network at true scale (lengths
+    /// in the run's units), with scale bar and legend, to this file
+    #[arg(long = "svg", value_name = "OUT.svg", verbatim_doc_comment)]
     pub svg_file: Option<String>,
+    /// How --svg colours segments: `order` (Strahler order, the
+    /// default), `flow` or `plain` (all alike)
+    #[arg(
+        long,
+        visible_alias = "color",
+        value_name = "COLOURING",
+        value_parser = ["order", "flow", "plain"],
+        hide_possible_values = true,
+        verbatim_doc_comment
+    )]
     pub colour: Option<String>,
+    /// Print exactly one JSON object on stdout instead of the table
+    #[arg(long)]
     pub json: bool,
 }
 
-impl GrowOptions {
-    pub fn parse(arguments: &[String]) -> Result<GrowOptions, CliError> {
-        let mut options = GrowOptions::default();
-        let mut index = 0;
-        while index < arguments.len() {
-            let flag = arguments[index].as_str();
-            let mut value = || {
-                index += 1;
-                arguments
-                    .get(index)
-                    .cloned()
-                    .ok_or_else(|| CliError::Usage(format!("`{flag}` needs a value")))
-            };
-            match flag {
-                "--preset" => options.preset = Some(value()?),
-                "--params" => options.params_file = Some(value()?),
-                "--set" => options.sets.push(value()?),
-                "--mask" => options.mask_file = Some(value()?),
-                "--link" => options.link = Some(value()?),
-                "--record" => options.record_file = Some(value()?),
-                "--svg" => options.svg_file = Some(value()?),
-                "--colour" | "--color" => options.colour = Some(value()?),
-                "--json" => options.json = true,
-                other => {
-                    return Err(CliError::Usage(format!(
-                        "unknown option `{other}` for `grow`"
-                    )))
-                }
-            }
-            index += 1;
-        }
-        if options.link.is_some() && (options.preset.is_some() || options.params_file.is_some()) {
-            return Err(CliError::Usage(
-                "`--link` holds every parameter: give it without `--preset` or `--params`".into(),
-            ));
-        }
-        Ok(options)
+/// What `ramulus grow --help` adds below the options.
+const GROW_NOTES: &str = "\
+Parameters come from the preset, or from --params (defaults plus the file's keys), or from
+--link (a damaged field of the link takes its default, with a warning on stderr); each --set
+then overrides one key, for example --set seed=9 --set alpha=0.7 or
+--set 'roots=[{\"x\":5,\"y\":0,\"outflow\":[0,-1]}]'. Lengths are in the run's `units`
+(cell_size per cell); --mask replaces `width` and `height` (cells) by the image size.
+
+With --json stdout holds one object: digest (16 hex digits), cells, nodes, segments,
+total_length (units), units, stopped (why growth ended), metrics, caution (sites; else null)
+and link (the fragment that opens this run on the page).";
+
+/// Options of `ramulus measure`.
+#[derive(Args)]
+#[command(after_help = MEASURE_NOTES)]
+pub struct MeasureOptions {
+    /// Run records written by `ramulus grow --record` or kept on
+    /// the page; several are all measured
+    #[arg(value_name = "RECORD.json", required = true, verbatim_doc_comment)]
+    pub files: Vec<String>,
+    /// Print exactly one JSON object on stdout instead of the tables
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// What `ramulus measure --help` adds below the options.
+const MEASURE_NOTES: &str = "\
+Several files are all measured, in the order given; if any one cannot be read or measured,
+each failing file is named on stderr and nothing is printed on stdout (exit 1).
+
+With --json and one file, stdout holds one object: digest, segments, total_length (in the
+record's units) and metrics. With several files it holds one object {\"records\": [...]} with
+one such object per file, in the order given, each with its `file` added.";
+
+/// Options of `ramulus presets`.
+#[derive(Args)]
+pub struct PresetsOptions {
+    /// Print one JSON array of {name, description, params}
+    /// instead of the text list
+    #[arg(long, verbatim_doc_comment)]
+    pub json: bool,
+}
+
+/// Options of `ramulus bench`.
+#[derive(Args)]
+pub struct BenchOptions {
+    /// Smaller cases (a 300 x 300 cell lattice; 25,000 and 100,000
+    /// cells) that finish in a few seconds
+    #[arg(long, verbatim_doc_comment)]
+    pub quick: bool,
+    /// Print one JSON array, one object per case (case, link,
+    /// cells, seconds), instead of the table
+    #[arg(long, verbatim_doc_comment)]
+    pub json: bool,
+}
+
+/// Accepts a `--set` value of the form KEY=VALUE (an empty VALUE is allowed).
+fn key_equals_value(text: &str) -> Result<String, String> {
+    match text.split_once('=') {
+        Some((key, _)) if !key.trim().is_empty() => Ok(text.to_string()),
+        _ => Err("needs the form KEY=VALUE, e.g. seed=9".to_string()),
     }
 }
 
@@ -126,24 +198,4 @@ pub fn assemble_params(
         .validate()
         .map_err(|error| CliError::Failed(error.to_string()))?;
     Ok(params)
-}
-
-/// Checks that every argument is one of `allowed` flags; returns the flags given.
-pub fn only_flags<'a>(
-    arguments: &[String],
-    allowed: &[&'a str],
-    command: &str,
-) -> Result<Vec<&'a str>, CliError> {
-    let mut given = Vec::new();
-    for argument in arguments {
-        match allowed.iter().find(|flag| **flag == argument.as_str()) {
-            Some(flag) => given.push(*flag),
-            None => {
-                return Err(CliError::Usage(format!(
-                    "unknown option `{argument}` for `{command}`"
-                )))
-            }
-        }
-    }
-    Ok(given)
 }

@@ -364,3 +364,243 @@ fn a_damaged_link_warns_and_a_link_with_a_preset_is_refused() {
     assert_eq!(outcome.code, Some(2));
     assert!(outcome.stderr.contains("--link"), "{}", outcome.stderr);
 }
+
+/// The flags each command takes; `COMMAND --help` must name every one of them.
+const COMMAND_FLAGS: [(&str, &[&str]); 4] = [
+    (
+        "grow",
+        &[
+            "--preset", "--params", "--set", "--mask", "--link", "--record", "--svg", "--colour",
+            "--color", "--json",
+        ],
+    ),
+    ("measure", &["--json", "RECORD.json"]),
+    ("presets", &["--json"]),
+    ("bench", &["--quick", "--json"]),
+];
+
+/// `ramulus COMMAND --help` prints that command's usage and every flag on stdout and exits 0;
+/// `ramulus help COMMAND` prints the same text.
+#[test]
+fn every_command_has_help() {
+    for (command, flags) in COMMAND_FLAGS {
+        let outcome = ramulus(&[command, "--help"]);
+        assert_eq!(
+            outcome.code,
+            Some(0),
+            "{command} --help: {}",
+            outcome.stderr
+        );
+        assert!(
+            outcome
+                .stdout
+                .contains(&format!("Usage: ramulus {command}")),
+            "{command} --help: {}",
+            outcome.stdout
+        );
+        for flag in flags {
+            assert!(
+                outcome.stdout.contains(flag),
+                "{command} --help does not name {flag}: {}",
+                outcome.stdout
+            );
+        }
+        let short = ramulus(&[command, "-h"]);
+        assert_eq!(short.code, Some(0), "{command} -h: {}", short.stderr);
+        let via_help = ramulus(&["help", command]);
+        assert_eq!(
+            via_help.code,
+            Some(0),
+            "help {command}: {}",
+            via_help.stderr
+        );
+        assert_eq!(via_help.stdout, outcome.stdout, "help {command}");
+    }
+}
+
+/// `ramulus help` and `ramulus --help` list every command on stdout and exit 0; `ramulus`
+/// alone prints the same list on stderr and exits 2 (nothing to do is a usage error).
+#[test]
+fn help_lists_every_command() {
+    for arguments in [&["help"][..], &["--help"][..]] {
+        let outcome = ramulus(arguments);
+        assert_eq!(outcome.code, Some(0), "{arguments:?}: {}", outcome.stderr);
+        for (command, _) in COMMAND_FLAGS {
+            assert!(
+                outcome.stdout.contains(&format!("\n  {command} ")),
+                "{arguments:?} does not list {command}: {}",
+                outcome.stdout
+            );
+        }
+    }
+    let bare = ramulus(&[]);
+    assert_eq!(bare.code, Some(2));
+    assert!(bare.stdout.is_empty(), "stdout: {}", bare.stdout);
+    for (command, _) in COMMAND_FLAGS {
+        assert!(bare.stderr.contains(command), "{}", bare.stderr);
+    }
+}
+
+/// `--version` prints the Cargo package version.
+#[test]
+fn version_is_the_package_version() {
+    let expected = format!("ramulus {}\n", env!("CARGO_PKG_VERSION"));
+    for arguments in [&["--version"][..], &["-V"][..]] {
+        let outcome = ramulus(arguments);
+        assert_eq!(outcome.code, Some(0), "{arguments:?}: {}", outcome.stderr);
+        assert_eq!(outcome.stdout, expected, "{arguments:?}");
+    }
+}
+
+/// An unknown flag is a usage error (exit 2) whose message names the flag, for every command.
+#[test]
+fn an_unknown_flag_is_named_with_exit_2() {
+    for (command, _) in COMMAND_FLAGS {
+        let outcome = ramulus(&[command, "--no-such-flag"]);
+        check_failure(&outcome, &["--no-such-flag"]);
+        assert_eq!(outcome.code, Some(2), "{command}: {}", outcome.stderr);
+        assert!(outcome.stdout.is_empty(), "{command}: {}", outcome.stdout);
+    }
+    // A value outside a flag's choices names the flag and the value.
+    let outcome = ramulus(&["grow", "--colour", "purple"]);
+    check_failure(&outcome, &["--colour", "purple"]);
+    assert_eq!(outcome.code, Some(2));
+    // --set without KEY=VALUE is a usage error naming the flag.
+    let outcome = ramulus(&["grow", "--set", "alpha"]);
+    check_failure(&outcome, &["--set", "alpha"]);
+    assert_eq!(outcome.code, Some(2));
+    // A failed run (not a usage error) exits 1.
+    let outcome = ramulus(&["grow", "--preset", "no-such-preset"]);
+    assert_eq!(outcome.code, Some(1), "{}", outcome.stderr);
+}
+
+/// `--color` is the same flag as `--colour`: both write the same drawing, and colouring by
+/// flow draws differently from the default colouring by Strahler order.
+#[test]
+fn color_and_colour_are_one_flag() {
+    let drawings: Vec<String> = [
+        &["--colour", "flow"][..],
+        &["--color", "flow"][..],
+        &["--colour", "order"][..],
+    ]
+    .iter()
+    .map(|colour| {
+        let svg = TempFile::new("colour", "svg");
+        let mut arguments = vec!["grow", "--preset", "drainage-site", "--svg", svg.path()];
+        arguments.extend_from_slice(colour);
+        let outcome = ramulus(&arguments);
+        assert!(outcome.success, "{colour:?}: {}", outcome.stderr);
+        std::fs::read_to_string(&svg.0).expect("svg written")
+    })
+    .collect();
+    assert_eq!(drawings[0], drawings[1]);
+    assert_ne!(drawings[0], drawings[2]);
+}
+
+/// Grows one record per preset and returns the files with the digests printed by `grow`.
+fn grow_records(presets: &[&str]) -> Vec<(TempFile, Value)> {
+    presets
+        .iter()
+        .map(|preset| {
+            let record = TempFile::new(preset, "json");
+            let grown = grow_json(&[
+                "grow",
+                "--preset",
+                preset,
+                "--record",
+                record.path(),
+                "--json",
+            ]);
+            (record, grown)
+        })
+        .collect()
+}
+
+/// One record measured with `--json` keeps the shape it had before several files were
+/// accepted: exactly the keys digest, segments, total_length and metrics (compatibility pin
+/// of the key names, not of values).
+#[test]
+fn measuring_one_record_keeps_its_json_shape() {
+    let records = grow_records(&["spanning-tree"]);
+    let (record, grown) = &records[0];
+    let outcome = ramulus(&["measure", record.path(), "--json"]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    let value = single_json(&outcome.stdout);
+    let mut keys: Vec<&str> = value
+        .as_object()
+        .expect("one object")
+        .keys()
+        .map(String::as_str)
+        .collect();
+    keys.sort_unstable();
+    assert_eq!(keys, ["digest", "metrics", "segments", "total_length"]);
+    assert_eq!(value["digest"], grown["digest"]);
+}
+
+/// Several records are all measured, in the order given: `--json` prints one object whose
+/// `records` hold one entry per file with its name and the digest `grow` printed for it; the
+/// table output names each file with its digest.
+#[test]
+fn several_records_are_all_measured() {
+    let records = grow_records(&["drainage-site", "spanning-tree", "narrow-leaf"]);
+    let paths: Vec<&str> = records.iter().map(|(record, _)| record.path()).collect();
+    assert_ne!(records[0].1["digest"], records[1].1["digest"]);
+
+    let mut arguments = vec!["measure", "--json"];
+    arguments.extend(&paths);
+    let outcome = ramulus(&arguments);
+    assert!(outcome.success, "{}", outcome.stderr);
+    let value = single_json(&outcome.stdout);
+    let list = value["records"].as_array().expect("a records array");
+    assert_eq!(list.len(), records.len());
+    for (entry, (record, grown)) in list.iter().zip(&records) {
+        assert_eq!(entry["file"].as_str(), Some(record.path()));
+        assert_eq!(entry["digest"], grown["digest"], "{}", record.path());
+        assert_eq!(entry["segments"], grown["segments"], "{}", record.path());
+        assert!(entry["metrics"].is_object());
+    }
+
+    let mut arguments = vec!["measure"];
+    arguments.extend(&paths);
+    let outcome = ramulus(&arguments);
+    assert!(outcome.success, "{}", outcome.stderr);
+    let mut from = 0;
+    for (record, grown) in &records {
+        let digest = grown["digest"].as_str().expect("digest");
+        let heading = outcome.stdout[from..]
+            .find(&format!("{}:\n", record.path()))
+            .unwrap_or_else(|| panic!("{} not named in order: {}", record.path(), outcome.stdout))
+            + from;
+        let line = outcome.stdout[heading..]
+            .find(&format!("digest: {digest}"))
+            .unwrap_or_else(|| panic!("{digest} not printed: {}", outcome.stdout))
+            + heading;
+        from = line;
+    }
+}
+
+/// If any of several records cannot be read, every failing file is named on stderr, nothing
+/// is printed on stdout, and the exit code is 1.
+#[test]
+fn several_records_with_a_bad_one_print_nothing() {
+    let records = grow_records(&["spanning-tree"]);
+    let missing = temp_path("missing-record", "json");
+    let missing = missing.to_str().expect("UTF-8 path");
+    let broken = TempFile::new("broken-record", "json");
+    std::fs::write(&broken.0, "{ not a record").expect("write broken record");
+    for json in [true, false] {
+        let mut arguments = vec!["measure", records[0].0.path(), missing, broken.path()];
+        if json {
+            arguments.push("--json");
+        }
+        let outcome = ramulus(&arguments);
+        check_failure(&outcome, &[missing, broken.path()]);
+        assert_eq!(outcome.code, Some(1), "{}", outcome.stderr);
+        assert!(
+            !outcome.stderr.contains(records[0].0.path()),
+            "the good file is named as failing: {}",
+            outcome.stderr
+        );
+        assert!(outcome.stdout.is_empty(), "stdout: {}", outcome.stdout);
+    }
+}
