@@ -28,10 +28,10 @@ pub(crate) fn count_components_and_loops(network: &Network) -> ComponentsAndLoop
             segment_count += 1;
         }
     }
-    let mut labels = sets.into_labeling();
-    labels.sort_unstable();
-    labels.dedup();
-    let component_count = labels.len() as u64;
+    // Each component has exactly one representative: the node that is its own label.
+    let component_count = (0..node_count)
+        .filter(|&node| sets.find_mut(node) == node)
+        .count() as u64;
     ComponentsAndLoops {
         component_count,
         loop_count: (segment_count + component_count).saturating_sub(node_count as u64),
