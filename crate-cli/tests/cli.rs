@@ -256,6 +256,32 @@ fn a_record_measures_back_to_the_same_digest() {
     assert!((a - b).abs() <= 1e-12 * a, "total length {a} vs {b}");
 }
 
+/// A version-1 record whose metrics lack keys (written before those metrics existed) still
+/// measures, to the digest it was written with (the compatibility pin in tests/data).
+#[test]
+fn an_old_record_with_missing_metric_keys_measures() {
+    let pin = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/../tests/data/record-v1-pin.json"
+    );
+    let mut record: Value =
+        serde_json::from_str(&std::fs::read_to_string(pin).expect("the pin is readable"))
+            .expect("the pin is JSON");
+    let metrics = record["metrics"].as_object_mut().expect("stored metrics");
+    metrics.remove("aspect_ratio");
+    metrics.remove("streams");
+    let file = TempFile::new("old-record", "json");
+    std::fs::write(file.path(), record.to_string()).expect("temporary file written");
+    let measured = ramulus(&["measure", file.path(), "--json"]);
+    assert!(measured.success, "measure failed: {}", measured.stderr);
+    let measured = single_json(&measured.stdout);
+    assert_eq!(measured["digest"], record["digest"]);
+    assert_eq!(
+        measured["metrics"]["loop_count"], 0,
+        "a version-1 record is a forest"
+    );
+}
+
 #[test]
 fn presets_json_lists_every_preset() {
     let outcome = ramulus(&["presets", "--json"]);

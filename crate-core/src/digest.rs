@@ -14,14 +14,37 @@ fn fnv1a(mut state: u64, bytes: &[u8]) -> u64 {
     state
 }
 
-/// Hashes node count, then each node's x and y bits and parent index (little-endian), in node
-/// order. Equal digests mean bit-identical coordinates and identical parents.
+/// Marks, in the hashed bytes, a network hashed by its segment list (not a forest).
+const SEGMENT_LIST_MARK: &[u8] = b"segments";
+
+/// Hashes node count, then each node's x and y bits and downstream index (`NO_PARENT` for a
+/// root), little-endian, in node order, when every node has at most one downstream segment (as
+/// in a forest: the hash of version-1 run links and records is unchanged). Otherwise each node's
+/// x and y bits, a mark, the segment count and every segment's ends. Equal digests mean
+/// bit-identical coordinates and identical segments.
 pub fn digest(network: &Network) -> u64 {
-    let mut state = fnv1a(FNV_OFFSET, &(network.nodes.len() as u64).to_le_bytes());
-    for node in &network.nodes {
-        state = fnv1a(state, &node.x.to_bits().to_le_bytes());
-        state = fnv1a(state, &node.y.to_bits().to_le_bytes());
-        state = fnv1a(state, &node.parent.to_le_bytes());
+    let node_count = network.nodes.len();
+    let mut state = fnv1a(FNV_OFFSET, &(node_count as u64).to_le_bytes());
+    match network.parents() {
+        Ok(parents) => {
+            for (node, parent) in network.nodes.iter().zip(parents) {
+                state = fnv1a(state, &node.x.to_bits().to_le_bytes());
+                state = fnv1a(state, &node.y.to_bits().to_le_bytes());
+                state = fnv1a(state, &parent.to_le_bytes());
+            }
+        }
+        _ => {
+            for node in &network.nodes {
+                state = fnv1a(state, &node.x.to_bits().to_le_bytes());
+                state = fnv1a(state, &node.y.to_bits().to_le_bytes());
+            }
+            state = fnv1a(state, SEGMENT_LIST_MARK);
+            state = fnv1a(state, &(network.segments.len() as u64).to_le_bytes());
+            for segment in &network.segments {
+                state = fnv1a(state, &segment.from.to_le_bytes());
+                state = fnv1a(state, &segment.to.to_le_bytes());
+            }
+        }
     }
     state
 }

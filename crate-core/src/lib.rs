@@ -22,5 +22,5 @@ pub mod schema;
 pub mod segments;
 
 pub use growth::{Growth, StepReport, StopReason};
-pub use network::{Children, Network, Node, Topology, NO_PARENT};
+pub use network::{Children, Network, NetworkKind, Node, Segment, Topology, NO_PARENT};
 pub use params::{CostWeights, Domain, Joining, ParamError, Params, Root, RunControl, Widths};

@@ -1,9 +1,10 @@
-//! `Network`: a grown or imported forest in physical units, the one input of every metric and
-//! exporter, plus `Topology` (children, traversal order, flows) derived from it.
+//! `Network`: nodes and the segments between them (a forest, or a network with loops) in
+//! physical units, the one input of every metric and exporter, plus `Topology`, the forest view
+//! (parents, children, traversal order, flows) derived from it when it is a forest.
 
 use serde::{Deserialize, Serialize};
 
-/// Marks a root in `Node::parent`.
+/// Marks a root (no downstream node, no downstream segment) in the forest view.
 pub const NO_PARENT: u32 = u32::MAX;
 
 /// One node of a network.
@@ -13,25 +14,45 @@ pub struct Node {
     pub x: f64,
     /// y in physical units, growing down the page.
     pub y: f64,
-    /// Index of the downstream neighbour, or `NO_PARENT` for a root.
-    pub parent: u32,
     /// Flow this node adds itself, in physical area units (cell area for a leaf cell; runoff
     /// coefficient times cell area for a site cell; 0 for a junction off the cell centres).
     pub weight: f64,
 }
 
-impl Node {
-    /// Whether this node is a root.
-    pub fn is_root(&self) -> bool {
-        self.parent == NO_PARENT
-    }
+/// One segment (an edge of the network's graph) between two nodes. In a forest, flow runs from
+/// `from` (upstream) to `to` (downstream); in a network with loops the direction only names the
+/// ends.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Segment {
+    /// Upstream end (node index).
+    pub from: u32,
+    /// Downstream end (node index).
+    pub to: u32,
 }
 
-/// A forest of nodes; segment `i` runs from node `i` to its parent (flow goes downstream).
+/// What shape a network's graph has, which decides the metrics that apply to it.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum NetworkKind {
+    /// Every node drains into at most one downstream node and following them always reaches a
+    /// root: trees, one per root. Flows, Strahler orders and the forest view exist. The
+    /// default, since every record written before loops existed holds a forest.
+    #[default]
+    Forest,
+    /// At least one loop (two paths between the same nodes) or a node with two downstream
+    /// segments: no forest view; only the metrics that need no flow direction apply.
+    Looped,
+}
+
+/// A network: nodes, the segments between them, and the drained area; the one input of every
+/// metric and exporter. Segments may close loops; when they do not, `Network::topology` gives
+/// the forest view.
 #[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
 pub struct Network {
-    /// The nodes; parents may come before or after their children.
+    /// The nodes.
     pub nodes: Vec<Node>,
+    /// The segments; a grown network lists them in the order of their upstream nodes.
+    pub segments: Vec<Segment>,
     /// Area of the leaf or site the network drains, in squared units.
     pub area: f64,
     /// Length unit name (`mm`, `m`, ...).
@@ -40,6 +61,20 @@ pub struct Network {
     pub cell_size: f64,
     /// Occupied cells, for the outline metrics; empty when not grown on a lattice.
     pub cells: CellSet,
+}
+
+/// The segments of a forest given as one downstream index per node (`NO_PARENT` for a root):
+/// segment `k` runs from the `k`-th non-root node to its parent, in node order.
+pub fn segments_from_parents(parents: &[u32]) -> Vec<Segment> {
+    parents
+        .iter()
+        .enumerate()
+        .filter(|(_, &parent)| parent != NO_PARENT)
+        .map(|(node, &parent)| Segment {
+            from: node as u32,
+            to: parent,
+        })
+        .collect()
 }
 
 /// The occupied cells of a lattice, as column-row pairs.
@@ -53,18 +88,23 @@ pub struct CellSet {
     pub occupied: Vec<u32>,
 }
 
-/// Structure derived from a `Network`: children, a root-first order, and segment flows.
+/// The forest view of a `Network` (only when it is a forest): parents, children, a root-first
+/// order, and flows. Per-node arrays: entry `i` describes node `i` and its downstream segment.
 #[derive(Clone, Debug)]
 pub struct Topology {
+    /// Downstream neighbour of each node, `NO_PARENT` for a root.
+    pub parent: Vec<u32>,
+    /// Index in `Network::segments` of each node's downstream segment, `NO_PARENT` for a root.
+    pub segment_of: Vec<u32>,
     /// Children (upstream neighbours) of each node, in increasing index order.
     pub children: Children,
     /// Every node reachable from a root, parents before children (breadth first from roots in
     /// index order).
     pub order: Vec<u32>,
-    /// Flow through segment `i` (node `i` to its parent): the weights of node `i` and of every
+    /// Flow through node `i`'s downstream segment: the weights of node `i` and of every
     /// node upstream of it. Roots hold the total flow of their tree.
     pub flow: Vec<f64>,
-    /// Length of segment `i`, 0 for roots.
+    /// Length of node `i`'s downstream segment, 0 for roots.
     pub length: Vec<f64>,
 }
 
@@ -153,15 +193,22 @@ impl std::ops::Index<usize> for Children {
     }
 }
 
-/// Why a list of nodes is not a forest.
+/// Why a network is not valid, or not a forest.
 #[derive(Clone, Debug, PartialEq)]
 pub enum TopologyError {
-    /// A parent index points past the end of the node list.
-    ParentOutOfRange {
-        /// The node whose parent is wrong.
+    /// A segment names a node that does not exist, or runs from a node to itself.
+    BadSegment {
+        /// The segment's index.
+        segment: usize,
+        /// Its upstream end.
+        from: u32,
+        /// Its downstream end.
+        to: u32,
+    },
+    /// A node has two downstream segments: the network is not a forest.
+    TwoDownstream {
+        /// The node.
         node: usize,
-        /// The parent index it names.
-        parent: u32,
     },
     /// Following parents from this node never reaches a root.
     Cycle {
@@ -178,9 +225,15 @@ pub enum TopologyError {
 impl std::fmt::Display for TopologyError {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
-            TopologyError::ParentOutOfRange { node, parent } => {
-                write!(f, "node {node} names parent {parent}, which does not exist")
-            }
+            TopologyError::BadSegment { segment, from, to } => write!(
+                f,
+                "segment {segment} runs from node {from} to node {to}: an end does not exist or \
+                 both ends are the same node"
+            ),
+            TopologyError::TwoDownstream { node } => write!(
+                f,
+                "node {node} has two downstream segments, so the network is not a forest"
+            ),
             TopologyError::Cycle { node } => {
                 write!(
                     f,
@@ -200,24 +253,66 @@ impl std::fmt::Display for TopologyError {
 impl std::error::Error for TopologyError {}
 
 impl Network {
-    /// Derives children, order and flows; fails when the nodes are not a forest.
-    pub fn topology(&self) -> Result<Topology, TopologyError> {
-        let count = self.nodes.len();
+    /// Checks what every network must satisfy: finite coordinates and weights, segment ends
+    /// that exist and differ.
+    pub fn check(&self) -> Result<(), TopologyError> {
         for (index, node) in self.nodes.iter().enumerate() {
             if !node.x.is_finite() || !node.y.is_finite() || !node.weight.is_finite() {
                 return Err(TopologyError::NotFinite { node: index });
             }
-            if node.parent != NO_PARENT && node.parent as usize >= count {
-                return Err(TopologyError::ParentOutOfRange {
-                    node: index,
-                    parent: node.parent,
+        }
+        let count = self.nodes.len();
+        for (index, segment) in self.segments.iter().enumerate() {
+            if segment.from as usize >= count
+                || segment.to as usize >= count
+                || segment.from == segment.to
+            {
+                return Err(TopologyError::BadSegment {
+                    segment: index,
+                    from: segment.from,
+                    to: segment.to,
                 });
             }
         }
-        let children = Children::from_parents(self.nodes.iter().map(|node| node.parent), count);
+        Ok(())
+    }
+
+    /// The downstream neighbour of every node, when every node has at most one downstream
+    /// segment (`NO_PARENT` for a root) and every upstream end exists.
+    pub fn parents(&self) -> Result<Vec<u32>, TopologyError> {
+        let mut parent = vec![NO_PARENT; self.nodes.len()];
+        for (index, segment) in self.segments.iter().enumerate() {
+            let Some(slot) = parent.get_mut(segment.from as usize) else {
+                return Err(TopologyError::BadSegment {
+                    segment: index,
+                    from: segment.from,
+                    to: segment.to,
+                });
+            };
+            if *slot != NO_PARENT {
+                return Err(TopologyError::TwoDownstream {
+                    node: segment.from as usize,
+                });
+            }
+            *slot = segment.to;
+        }
+        Ok(parent)
+    }
+
+    /// The forest view: parents, children, order and flows; fails when the network is not
+    /// valid or not a forest.
+    pub fn topology(&self) -> Result<Topology, TopologyError> {
+        self.check()?;
+        let parent = self.parents()?;
+        let count = self.nodes.len();
+        let mut segment_of = vec![NO_PARENT; count];
+        for (index, segment) in self.segments.iter().enumerate() {
+            segment_of[segment.from as usize] = index as u32;
+        }
+        let children = Children::from_parents(parent.iter().copied(), count);
         let mut order = Vec::with_capacity(count);
-        for (index, node) in self.nodes.iter().enumerate() {
-            if node.is_root() {
+        for (index, &up) in parent.iter().enumerate() {
+            if up == NO_PARENT {
                 order.push(index as u32);
             }
         }
@@ -237,24 +332,20 @@ impl Network {
         }
         let mut flow: Vec<f64> = self.nodes.iter().map(|node| node.weight).collect();
         for &node in order.iter().rev() {
-            let parent = self.nodes[node as usize].parent;
-            if parent != NO_PARENT {
-                flow[parent as usize] += flow[node as usize];
+            let down = parent[node as usize];
+            if down != NO_PARENT {
+                flow[down as usize] += flow[node as usize];
             }
         }
-        let length = self
-            .nodes
-            .iter()
-            .map(|node| {
-                if node.is_root() {
-                    0.0
-                } else {
-                    let parent = &self.nodes[node.parent as usize];
-                    crate::fast_libm::hypot(node.x - parent.x, node.y - parent.y)
-                }
+        let length = (0..count)
+            .map(|index| match parent[index] {
+                NO_PARENT => 0.0,
+                down => self.segment_length(index as u32, down),
             })
             .collect();
         Ok(Topology {
+            parent,
+            segment_of,
             children,
             order,
             flow,
@@ -262,8 +353,102 @@ impl Network {
         })
     }
 
-    /// Number of segments (non-root nodes).
+    /// Straight length between two nodes, in units.
+    pub fn segment_length(&self, from: u32, to: u32) -> f64 {
+        let (a, b) = (&self.nodes[from as usize], &self.nodes[to as usize]);
+        crate::fast_libm::hypot(a.x - b.x, a.y - b.y)
+    }
+
+    /// Number of segments.
     pub fn segment_count(&self) -> usize {
-        self.nodes.iter().filter(|node| !node.is_root()).count()
+        self.segments.len()
+    }
+}
+
+impl Topology {
+    /// Whether node `node` is a root of the forest.
+    pub fn is_root(&self, node: usize) -> bool {
+        self.parent.get(node).is_none_or(|&up| up == NO_PARENT)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn network(points: usize, ends: &[(u32, u32)]) -> Network {
+        Network {
+            nodes: (0..points)
+                .map(|index| Node {
+                    x: index as f64,
+                    y: 0.0,
+                    weight: 1.0,
+                })
+                .collect(),
+            segments: ends
+                .iter()
+                .map(|&(from, to)| Segment { from, to })
+                .collect(),
+            ..Network::default()
+        }
+    }
+
+    /// A path 2 -> 1 -> 0 listed out of node order: parents, children and flows (each node's
+    /// weight plus everything upstream) follow the segments, not their order.
+    #[test]
+    fn forest_view_of_a_path() {
+        let path = network(3, &[(2, 1), (1, 0)]);
+        let topology = path.topology().expect("a forest");
+        assert_eq!(topology.parent, vec![NO_PARENT, 0, 1]);
+        assert_eq!(topology.segment_of, vec![NO_PARENT, 1, 0]);
+        assert_eq!(topology.order, vec![0, 1, 2]);
+        assert_eq!(topology.flow, vec![3.0, 2.0, 1.0]);
+        assert_eq!(topology.length, vec![0.0, 1.0, 1.0]);
+        assert_eq!(topology.children.of(0), &[1]);
+    }
+
+    #[test]
+    fn segments_from_parents_skip_roots() {
+        assert_eq!(
+            segments_from_parents(&[NO_PARENT, 0, 0, NO_PARENT, 3]),
+            vec![
+                Segment { from: 1, to: 0 },
+                Segment { from: 2, to: 0 },
+                Segment { from: 4, to: 3 },
+            ]
+        );
+    }
+
+    #[test]
+    fn invalid_and_looped_networks_are_told_apart() {
+        assert_eq!(
+            network(2, &[(1, 1)]).check(),
+            Err(TopologyError::BadSegment {
+                segment: 0,
+                from: 1,
+                to: 1
+            })
+        );
+        assert_eq!(
+            network(2, &[(0, 1), (1, 5)]).check(),
+            Err(TopologyError::BadSegment {
+                segment: 1,
+                from: 1,
+                to: 5
+            })
+        );
+        // A triangle: valid, but node 0 drains two ways, so no forest view.
+        let triangle = network(3, &[(1, 0), (2, 1), (0, 2), (0, 1)]);
+        assert_eq!(triangle.check(), Ok(()));
+        assert_eq!(
+            triangle.topology().unwrap_err(),
+            TopologyError::TwoDownstream { node: 0 }
+        );
+        // Three nodes draining round in a circle: one downstream each, no root.
+        let circle = network(3, &[(0, 1), (1, 2), (2, 0)]);
+        assert!(matches!(
+            circle.topology(),
+            Err(TopologyError::Cycle { .. })
+        ));
     }
 }

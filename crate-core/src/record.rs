@@ -1,24 +1,29 @@
-//! The JSON run record (`RunRecord`, format `ramulus-run` version 1): parameters, seed, nodes,
-//! segments with flow, width and order, metrics and digest; `write_record` and `read_record`.
+//! The JSON run record (`RunRecord`, format `ramulus-run` version 2): parameters, seed, nodes,
+//! segments (their ends, flow, width and order), metrics and digest; `write_record` and
+//! `read_record`, which also reads version 1 (nodes with a parent index each).
+//!
+//! Every part of a record reads a missing field as absent (its default), never as an error,
+//! so records written before a field existed keep loading.
 
 use serde::{Deserialize, Serialize};
 
 use crate::metrics::Metrics;
-use crate::network::{CellSet, Network, Node, NO_PARENT};
+use crate::network::{segments_from_parents, CellSet, Network, Node, Segment, NO_PARENT};
 use crate::params::Params;
 use crate::run::{RunView, SITE_CAUTION};
 
 /// The `format` field of every run record.
 pub const RECORD_FORMAT: &str = "ramulus-run";
 /// The newest record version this build writes and reads.
-pub const RECORD_VERSION: u32 = 1;
+pub const RECORD_VERSION: u32 = 2;
 
-/// A run record as stored in JSON.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+/// A run record as stored in JSON (version 2).
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+#[serde(default)]
 pub struct RunRecord {
     /// Always `ramulus-run`.
     pub format: String,
-    /// Record version, 1.
+    /// Record version, 2 (a version-1 record is converted on reading).
     pub version: u32,
     /// Digest of the nodes (16 hex digits).
     pub digest: String,
@@ -35,10 +40,10 @@ pub struct RunRecord {
     pub cell_size: f64,
     /// Area drained, in squared units.
     pub area: f64,
-    /// Nodes as `[x, y, parent, weight]`; parent is -1 for a root.
-    pub nodes: Vec<(f64, f64, i64, f64)>,
-    /// One entry per segment (informative; recomputed from `nodes` on reading).
-    #[serde(default)]
+    /// Nodes as `[x, y, weight]`.
+    pub nodes: Vec<(f64, f64, f64)>,
+    /// One entry per segment: its ends make the network; flow, width, order and length are
+    /// informative (recomputed on reading).
     pub segments: Vec<SegmentEntry>,
     /// Occupied lattice cells, for the outline metrics.
     #[serde(default)]
@@ -52,7 +57,8 @@ pub struct RunRecord {
 }
 
 /// One segment of a record.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+#[serde(default)]
 pub struct SegmentEntry {
     /// Upstream node.
     pub from: u32,
@@ -77,14 +83,15 @@ pub enum RecordError {
     Format(String),
     /// The version is newer than this build reads.
     Version(u32),
-    /// A node's parent is not -1 or a valid index.
+    /// A version-1 node's parent is not -1 or a valid index.
     Parent {
         /// The node.
         node: usize,
         /// The parent it names.
         parent: i64,
     },
-    /// The nodes do not form a forest, or hold a non-finite number.
+    /// A segment names a missing node, or a number is not finite; in a version-1 record, the
+    /// nodes do not form a forest.
     Topology(String),
 }
 
@@ -108,12 +115,40 @@ impl std::fmt::Display for RecordError {
                     "nodes[{node}] names parent {parent}, which is not -1 or a node index"
                 )
             }
-            RecordError::Topology(message) => write!(f, "nodes do not form a forest: {message}"),
+            RecordError::Topology(message) => write!(f, "nodes and segments: {message}"),
         }
     }
 }
 
 impl std::error::Error for RecordError {}
+
+/// A version-1 record: nodes carry their parent (-1 for a root); the rest as in version 2.
+#[derive(Clone, Debug, Default, Deserialize)]
+#[serde(default)]
+struct RunRecordVersion1 {
+    format: String,
+    version: u32,
+    digest: String,
+    stopped: Option<String>,
+    params: Option<Params>,
+    units: String,
+    cell_size: f64,
+    area: f64,
+    nodes: Vec<(f64, f64, i64, f64)>,
+    segments: Vec<SegmentEntry>,
+    cells: CellSet,
+    metrics: Option<Metrics>,
+    caution: Option<String>,
+}
+
+/// The fields every version shares, read first to choose the reader.
+#[derive(Deserialize)]
+struct RecordHeader {
+    #[serde(default)]
+    format: String,
+    #[serde(default)]
+    version: u32,
+}
 
 /// Builds the record of a run.
 pub fn make_record(view: &RunView, params: &Params, stopped: Option<String>) -> RunRecord {
@@ -121,27 +156,20 @@ pub fn make_record(view: &RunView, params: &Params, stopped: Option<String>) -> 
     let nodes = network
         .nodes
         .iter()
-        .map(|node| {
-            let parent = if node.is_root() {
-                -1
-            } else {
-                node.parent as i64
-            };
-            (node.x, node.y, parent, node.weight)
-        })
+        .map(|node| (node.x, node.y, node.weight))
         .collect();
+    let table = &view.table;
     let segments = network
-        .nodes
+        .segments
         .iter()
         .enumerate()
-        .filter(|(_, node)| !node.is_root())
-        .map(|(index, node)| SegmentEntry {
-            from: index as u32,
-            to: node.parent,
-            flow: view.table.flow[index],
-            width: view.table.width[index],
-            order: view.table.order[index],
-            length: view.table.length[index],
+        .map(|(index, segment)| SegmentEntry {
+            from: segment.from,
+            to: segment.to,
+            flow: table.flow.get(index).copied().unwrap_or(0.0),
+            width: table.width.get(index).copied().unwrap_or(0.0),
+            order: table.order.get(index).copied().unwrap_or(0),
+            length: table.length.get(index).copied().unwrap_or(0.0),
         })
         .collect();
     RunRecord {
@@ -167,26 +195,64 @@ pub fn write_record(record: &RunRecord) -> String {
         .unwrap_or_else(|error| format!("{{\"error\": \"{error}\"}}"))
 }
 
-/// Reads a record and rebuilds its network (digest and metrics are for the caller to
-/// recompute from it).
+fn json_error(error: serde_json::Error) -> RecordError {
+    RecordError::Json(format!(
+        "line {} column {}: {error}",
+        error.line(),
+        error.column()
+    ))
+}
+
+/// Reads a record of version 1 or 2 and rebuilds its network (digest and metrics are for the
+/// caller to recompute from it). A version-1 record comes back converted to version 2; its
+/// nodes must form a forest. A version-2 record may hold loops.
 pub fn read_record(text: &str) -> Result<(RunRecord, Network), RecordError> {
-    let record: RunRecord = serde_json::from_str(text).map_err(|error| {
-        RecordError::Json(format!(
-            "line {} column {}: {error}",
-            error.line(),
-            error.column()
-        ))
-    })?;
-    if record.format != RECORD_FORMAT {
-        return Err(RecordError::Format(record.format));
+    let header: RecordHeader = serde_json::from_str(text).map_err(json_error)?;
+    if header.format != RECORD_FORMAT {
+        return Err(RecordError::Format(header.format));
     }
-    if record.version > RECORD_VERSION || record.version == 0 {
-        return Err(RecordError::Version(record.version));
+    let record = match header.version {
+        1 => from_version_1(serde_json::from_str(text).map_err(json_error)?)?,
+        2 => serde_json::from_str::<RunRecord>(text).map_err(json_error)?,
+        other => return Err(RecordError::Version(other)),
+    };
+    let network = Network {
+        nodes: record
+            .nodes
+            .iter()
+            .map(|&(x, y, weight)| Node { x, y, weight })
+            .collect(),
+        segments: record
+            .segments
+            .iter()
+            .map(|entry| Segment {
+                from: entry.from,
+                to: entry.to,
+            })
+            .collect(),
+        area: record.area,
+        units: record.units.clone(),
+        cell_size: record.cell_size,
+        cells: record.cells.clone(),
+    };
+    network
+        .check()
+        .map_err(|error| RecordError::Topology(error.to_string()))?;
+    if header.version == 1 {
+        network
+            .topology()
+            .map_err(|error| RecordError::Topology(error.to_string()))?;
     }
-    let count = record.nodes.len() as i64;
-    let mut nodes = Vec::with_capacity(record.nodes.len());
-    for (index, &(x, y, parent, weight)) in record.nodes.iter().enumerate() {
-        let parent = match parent {
+    Ok((record, network))
+}
+
+/// Converts a version-1 record: parents become segments (node order, as a grown network
+/// lists them), keeping the informative values of the stored segment with the same ends.
+fn from_version_1(old: RunRecordVersion1) -> Result<RunRecord, RecordError> {
+    let count = old.nodes.len() as i64;
+    let mut parents = Vec::with_capacity(old.nodes.len());
+    for (index, &(_, _, parent, _)) in old.nodes.iter().enumerate() {
+        parents.push(match parent {
             -1 => NO_PARENT,
             value if (0..count).contains(&value) => value as u32,
             value => {
@@ -195,23 +261,41 @@ pub fn read_record(text: &str) -> Result<(RunRecord, Network), RecordError> {
                     parent: value,
                 })
             }
-        };
-        nodes.push(Node {
-            x,
-            y,
-            parent,
-            weight,
         });
     }
-    let network = Network {
-        nodes,
-        area: record.area,
-        units: record.units.clone(),
-        cell_size: record.cell_size,
-        cells: record.cells.clone(),
-    };
-    network
-        .topology()
-        .map_err(|error| RecordError::Topology(error.to_string()))?;
-    Ok((record, network))
+    let stored: std::collections::HashMap<(u32, u32), &SegmentEntry> = old
+        .segments
+        .iter()
+        .map(|entry| ((entry.from, entry.to), entry))
+        .collect();
+    let segments = segments_from_parents(&parents)
+        .into_iter()
+        .map(|segment| match stored.get(&(segment.from, segment.to)) {
+            Some(&entry) => entry.clone(),
+            None => SegmentEntry {
+                from: segment.from,
+                to: segment.to,
+                ..SegmentEntry::default()
+            },
+        })
+        .collect();
+    Ok(RunRecord {
+        format: old.format,
+        version: RECORD_VERSION,
+        digest: old.digest,
+        stopped: old.stopped,
+        params: old.params,
+        units: old.units,
+        cell_size: old.cell_size,
+        area: old.area,
+        nodes: old
+            .nodes
+            .iter()
+            .map(|&(x, y, _, weight)| (x, y, weight))
+            .collect(),
+        segments,
+        cells: old.cells,
+        metrics: old.metrics,
+        caution: old.caution,
+    })
 }

@@ -1,21 +1,26 @@
-//! `SegmentTable`: per-segment flow, width (flow^(1/gamma)), Strahler order and length, the
-//! values every exporter and metric reads.
+//! `SegmentTable`: one row per segment of a network (flow, width flow^(1/gamma), Strahler order,
+//! length, whether it conducts), the values every exporter reads, and `strahler_orders`.
 
 use crate::network::{Network, Topology};
 
-/// Per-segment values, indexed by the segment's upstream node (entries of roots describe the
-/// root node itself: its total flow, the width that flow would have, and its order).
-#[derive(Clone, Debug, PartialEq)]
+/// Per-segment values: row `k` describes `Network::segments[k]`.
+///
+/// On a network that is not a forest, flows are not known (a later flow solve will give them):
+/// such rows hold flow 0, the width of one cell's flow (`WidthRule::base_width`) and order 0.
+#[derive(Clone, Debug, PartialEq, Default)]
 pub struct SegmentTable {
     /// Flow through the segment, in squared length units.
     pub flow: Vec<f64>,
-    /// Drawn width in length units: `base_width * (flow / reference_flow)^(1 / gamma)`.
+    /// Drawn width in length units: `base_width * (flow / reference_flow)^(1 / gamma)`; 0 for a
+    /// segment that does not conduct.
     pub width: Vec<f64>,
     /// Strahler order (Strahler 1957): 1 without tributaries; two of order n meeting give n + 1;
-    /// a lower order joining leaves n unchanged.
+    /// a lower order joining leaves n unchanged; 0 when the network is not a forest.
     pub order: Vec<u32>,
-    /// Segment length in length units (0 for roots).
+    /// Segment length in length units.
     pub length: Vec<f64>,
+    /// Whether the segment belongs to the conducting network (see `run::conducting_network`).
+    pub conducts: Vec<bool>,
 }
 
 /// How widths are scaled.
@@ -29,32 +34,74 @@ pub struct WidthRule {
     pub reference_flow: f64,
 }
 
-impl SegmentTable {
-    /// Computes flows, widths, orders and lengths for a network whose topology is known.
-    pub fn compute(network: &Network, topology: &Topology, rule: WidthRule) -> SegmentTable {
-        let order = strahler_orders(network, topology);
-        let exponent = 1.0 / rule.gamma;
-        let width = topology
-            .flow
-            .iter()
-            .map(|&flow| {
-                if flow <= 0.0 || rule.reference_flow <= 0.0 {
-                    0.0
-                } else {
-                    rule.base_width * crate::fast_libm::pow(flow / rule.reference_flow, exponent)
-                }
-            })
-            .collect();
-        SegmentTable {
-            flow: topology.flow.clone(),
-            width,
-            order,
-            length: topology.length.clone(),
+impl WidthRule {
+    /// The width of a segment carrying `flow`.
+    pub fn width(&self, flow: f64) -> f64 {
+        if flow <= 0.0 || self.reference_flow <= 0.0 {
+            0.0
+        } else {
+            self.base_width * crate::fast_libm::pow(flow / self.reference_flow, 1.0 / self.gamma)
         }
     }
 }
 
-/// Strahler order of every segment, computed upstream to downstream.
+impl SegmentTable {
+    /// Computes one row per segment. `forest` is the forest view and its Strahler orders (one
+    /// per node, from `strahler_orders`), `None` when the network is not a forest; `conducts`
+    /// has one entry per segment (missing entries conduct).
+    pub fn compute(
+        network: &Network,
+        forest: Option<(&Topology, &[u32])>,
+        conducts: &[bool],
+        rule: WidthRule,
+    ) -> SegmentTable {
+        let count = network.segments.len();
+        let mut table = SegmentTable {
+            flow: Vec::with_capacity(count),
+            width: Vec::with_capacity(count),
+            order: Vec::with_capacity(count),
+            length: Vec::with_capacity(count),
+            conducts: Vec::with_capacity(count),
+        };
+        for (index, segment) in network.segments.iter().enumerate() {
+            let conducting = conducts.get(index).copied().unwrap_or(true);
+            let from = segment.from as usize;
+            let (flow, width, order, length) = match forest {
+                Some((topology, orders)) if topology.parent.get(from) == Some(&segment.to) => (
+                    topology.flow[from],
+                    rule.width(topology.flow[from]),
+                    orders.get(from).copied().unwrap_or(1),
+                    topology.length[from],
+                ),
+                _ => (
+                    0.0,
+                    rule.base_width,
+                    0,
+                    network.segment_length(segment.from, segment.to),
+                ),
+            };
+            table.flow.push(flow);
+            table.width.push(if conducting { width } else { 0.0 });
+            table.order.push(order);
+            table.length.push(length);
+            table.conducts.push(conducting);
+        }
+        table
+    }
+
+    /// Number of rows.
+    pub fn len(&self) -> usize {
+        self.width.len()
+    }
+
+    /// Whether the table has no rows.
+    pub fn is_empty(&self) -> bool {
+        self.width.is_empty()
+    }
+}
+
+/// Strahler order of every node's downstream segment in a forest, computed upstream to
+/// downstream (a root holds the order its tree would pass on).
 pub fn strahler_orders(network: &Network, topology: &Topology) -> Vec<u32> {
     let mut order = vec![1u32; network.nodes.len()];
     // Children come after parents in `topology.order`, so the reverse visits children first.

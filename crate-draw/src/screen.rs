@@ -10,8 +10,8 @@ use crate::legend::LegendFacts;
 use crate::palette::{palette_rgb, Colouring, FLOW_RAMP_STEPS};
 use crate::raster::{draw_lines, fill, spatial_order, Line, RasterView};
 
-/// Flat buffers, one entry per node: segment `i` runs from node `i` to its parent; a root's
-/// entry has both ends at the root and zero length.
+/// Flat buffers, one entry per drawable segment: entry `k` runs from the upstream to the
+/// downstream end of `Network::segments[k]` (all segments of a valid network are drawable).
 #[derive(Default)]
 pub struct ScreenGeometry {
     /// `x0, y0, x1, y1` per segment, physical units (y down).
@@ -28,7 +28,7 @@ pub struct ScreenGeometry {
     pub flow_range: (f64, f64),
     /// Highest order present.
     pub max_order: u32,
-    /// Entries that are segments (not roots).
+    /// Number of entries (segments).
     pub segment_count: usize,
     /// Palette index of each segment under `colouring`.
     pub colours: Vec<u8>,
@@ -46,34 +46,35 @@ pub struct ScreenGeometry {
 const DRAW_ORDER_GRID: usize = 128;
 
 impl ScreenGeometry {
-    /// Refills every buffer from `network` and its segment table, reusing their allocations.
-    /// Entries the table lacks count as width 0, order 1, flow 0, length 0.
+    /// Refills every buffer from `network` and its segment table (row `k` describes
+    /// `network.segments[k]`), reusing their allocations. Rows the table lacks count as width
+    /// 0, order 1, flow 0, length 0; segments naming a missing node are left out.
     pub fn fill(&mut self, network: &Network, table: &SegmentTable) {
         self.clear();
         let at = |values: &[f64], index: usize| values.get(index).copied().unwrap_or(0.0);
         let mut low = f64::INFINITY;
         let mut high = 0.0f64;
-        for (index, node) in network.nodes.iter().enumerate() {
-            let (x1, y1) = match network.nodes.get(node.parent as usize) {
-                Some(parent) if !node.is_root() => (parent.x, parent.y),
-                _ => (node.x, node.y),
+        for (index, segment) in network.segments.iter().enumerate() {
+            let (Some(from), Some(to)) = (
+                network.nodes.get(segment.from as usize),
+                network.nodes.get(segment.to as usize),
+            ) else {
+                continue;
             };
             self.ends
-                .extend_from_slice(&[node.x as f32, node.y as f32, x1 as f32, y1 as f32]);
+                .extend_from_slice(&[from.x as f32, from.y as f32, to.x as f32, to.y as f32]);
             let order = table.order.get(index).copied().unwrap_or(1);
             self.widths.push(at(&table.width, index) as f32);
             self.orders.push(order);
             let flow = at(&table.flow, index);
             self.flows.push(flow as f32);
             self.lengths.push(at(&table.length, index) as f32);
-            if flow > 0.0 && !node.is_root() {
+            if flow > 0.0 {
                 low = low.min(flow);
                 high = high.max(flow);
             }
-            if !node.is_root() {
-                self.max_order = self.max_order.max(order);
-                self.segment_count += 1;
-            }
+            self.max_order = self.max_order.max(order);
+            self.segment_count += 1;
         }
         self.flow_range = if high > 0.0 { (low, high) } else { (0.0, 0.0) };
         let ends = &self.ends;
@@ -181,7 +182,7 @@ impl ScreenGeometry {
     }
 
     /// The entry whose segment passes nearest to (`x`, `y`) (physical units) within `reach`,
-    /// or `None`; roots and zero-length segments are never found.
+    /// or `None`; zero-length segments are never found.
     pub fn segment_at(&self, x: f64, y: f64, reach: f64) -> Option<usize> {
         let mut best = None;
         let mut best_distance = reach * reach;
@@ -208,7 +209,7 @@ impl ScreenGeometry {
         self.widths.is_empty()
     }
 
-    /// Number of entries (nodes).
+    /// Number of entries (segments).
     pub fn len(&self) -> usize {
         self.widths.len()
     }
@@ -230,45 +231,51 @@ impl ScreenGeometry {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use ramulus_core::network::{CellSet, Node, NO_PARENT};
+    use ramulus_core::network::{segments_from_parents, CellSet, Node, NO_PARENT};
+    use ramulus_core::run::{conducting_network, topology_pass, widths_pass};
     use ramulus_core::segments::WidthRule;
 
     /// A root and a chain of two segments whose flows are 1 and 2 (each node adds weight 1):
     /// the log-flow rule puts the smaller at ramp step 0 and the larger at the last step.
     #[test]
     fn flow_colours_span_the_ramp_and_orders_clamp() {
-        let node = |x: f64, parent: u32| Node {
+        let node = |x: f64| Node {
             x,
             y: 0.0,
-            parent,
             weight: 1.0,
         };
         let network = Network {
-            nodes: vec![node(0.0, NO_PARENT), node(1.0, 0), node(2.0, 1)],
+            nodes: vec![node(0.0), node(1.0), node(2.0)],
+            segments: segments_from_parents(&[NO_PARENT, 0, 1]),
             area: 1.0,
             units: "mm".to_string(),
             cell_size: 1.0,
             cells: CellSet::default(),
         };
-        let topology = network.topology().unwrap();
         let rule = WidthRule {
             gamma: 2.0,
             base_width: 0.1,
             reference_flow: 1.0,
         };
-        let table = SegmentTable::compute(&network, &topology, rule);
+        let forest = topology_pass(&network).unwrap();
+        let table = widths_pass(
+            &network,
+            forest.as_ref(),
+            &conducting_network(&network),
+            rule,
+        );
         let mut screen = ScreenGeometry::default();
         screen.fill(&network, &table);
-        assert_eq!(screen.len(), 3);
+        assert_eq!(screen.len(), 2);
         assert_eq!(screen.segment_count, 2);
         assert_eq!(
-            screen.colour_indices(Colouring::ByFlow)[1..],
+            screen.colour_indices(Colouring::ByFlow),
             [(FLOW_RAMP_STEPS - 1) as u8, 0]
         );
-        assert_eq!(screen.colour_indices(Colouring::ByOrder)[1..], [0, 0]);
-        // (1.5, 0.2) is 0.2 from segment 2 (x 1..2) and 0.5 from segment 1's end.
-        assert_eq!(screen.segment_at(1.5, 0.2, 0.3), Some(2));
-        assert_eq!(screen.segment_at(0.5, 0.2, 0.3), Some(1));
+        assert_eq!(screen.colour_indices(Colouring::ByOrder), [0, 0]);
+        // (1.5, 0.2) is 0.2 from entry 1 (node 2 to node 1, x 1..2) and 0.5 from entry 0's end.
+        assert_eq!(screen.segment_at(1.5, 0.2, 0.3), Some(1));
+        assert_eq!(screen.segment_at(0.5, 0.2, 0.3), Some(0));
         assert_eq!(screen.segment_at(1.5, 0.4, 0.3), None);
         let facts = screen.legend_facts(Colouring::ByFlow, "mm");
         assert_eq!(facts.flow_range, Some((1.0, 2.0)));

@@ -9,8 +9,9 @@ use ramulus_core::network::Network;
 use ramulus_core::params::Domain;
 use ramulus_core::params::Params;
 use ramulus_core::record::{make_record, read_record, write_record};
-use ramulus_core::run::{width_rule, RunView, SITE_CAUTION};
-use ramulus_core::segments::SegmentTable;
+use ramulus_core::run::{
+    conducting_network, topology_pass, width_rule, widths_pass, RunView, SITE_CAUTION,
+};
 use ramulus_draw::legend::legend_items;
 use ramulus_draw::palette::Colouring;
 use ramulus_draw::plots::readings_plots;
@@ -308,13 +309,16 @@ impl Simulation {
         Ok(write_record(&make_record(view, &self.params, stopped)))
     }
 
-    /// Refills the geometry buffers from the network so far; returns the entry count (0 when
-    /// the nodes are not a forest, which a grown network always is).
+    /// Refills the geometry buffers from the network so far, through the core's topology,
+    /// conducting-network and widths passes; returns the entry count, one per segment (0 when
+    /// the network is not valid, which a grown network always is).
     pub fn update_geometry(&mut self) -> u32 {
         let network = self.network();
-        match network.topology() {
-            Ok(topology) => {
-                let table = SegmentTable::compute(&network, &topology, width_rule(&self.params));
+        match topology_pass(&network) {
+            Ok(forest) => {
+                let conducting = conducting_network(&network);
+                let rule = width_rule(&self.params);
+                let table = widths_pass(&network, forest.as_ref(), &conducting, rule);
                 self.geometry.fill(&network, &table);
             }
             Err(_) => self.geometry = ScreenGeometry::default(),

@@ -35,7 +35,7 @@ try {
       drawTimes.push(view.lastDrawMs);
     }
     return {
-      segments: state.session.count - 1,
+      segments: state.session.count,
       canvas: `${view.canvas.width} x ${view.canvas.height}`,
       geometryTimes,
       drawTimes,

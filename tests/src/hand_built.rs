@@ -1,25 +1,35 @@
 //! Hand-built networks and cell sets for the reference tests: single nodes, symmetric binary
 //! trees with real geometry, and cell sets chosen by a predicate (discs, ellipses, blocks).
 
-use ramulus_core::network::{CellSet, Network, Node, NO_PARENT};
+use ramulus_core::network::{segments_from_parents, CellSet, Network, Node, NO_PARENT};
 
 /// Length unit every hand-built network uses.
 pub const HAND_BUILT_UNITS: &str = "mm";
 
+/// A node of a hand-built forest and the node it drains into (`NO_PARENT` for a root).
+#[derive(Clone, Copy, Debug)]
+pub struct ForestNode {
+    /// The node.
+    pub node: Node,
+    /// Its downstream neighbour.
+    pub parent: u32,
+}
+
 /// A node at (`x`, `y`) draining into `parent` (`None` for a root) and adding `weight` flow.
-pub fn node_at(x: f64, y: f64, parent: Option<u32>, weight: f64) -> Node {
-    Node {
-        x,
-        y,
+pub fn node_at(x: f64, y: f64, parent: Option<u32>, weight: f64) -> ForestNode {
+    ForestNode {
+        node: Node { x, y, weight },
         parent: parent.unwrap_or(NO_PARENT),
-        weight,
     }
 }
 
-/// A network of `nodes` draining a leaf of `area` square millimetres, not on a lattice.
-pub fn network_of(nodes: Vec<Node>, area: f64) -> Network {
+/// A forest of `nodes` draining a leaf of `area` square millimetres, not on a lattice: one
+/// segment from each non-root node to its parent, in node order.
+pub fn network_of(nodes: Vec<ForestNode>, area: f64) -> Network {
+    let parents: Vec<u32> = nodes.iter().map(|entry| entry.parent).collect();
     Network {
-        nodes,
+        nodes: nodes.iter().map(|entry| entry.node).collect(),
+        segments: segments_from_parents(&parents),
         area,
         units: HAND_BUILT_UNITS.to_string(),
         cell_size: 0.0,
@@ -44,7 +54,7 @@ pub fn symmetric_binary_tree(depth: u32, trunk_length: f64, half_angle_degrees: 
     for _ in 1..depth {
         let mut next_level = Vec::with_capacity(level.len() * 2);
         for &(parent, heading, length) in &level {
-            let parent_node = nodes[parent as usize];
+            let parent_node = nodes[parent as usize].node;
             for turn in [-half_angle_degrees, half_angle_degrees] {
                 let child_heading = heading + turn;
                 let child_length = length / 2.0;

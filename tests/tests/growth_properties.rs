@@ -167,20 +167,36 @@ const TABLE_DRAWN: [&str; 16] = [
     "tip_width",
 ];
 
-/// Bit patterns of every node, for exact comparisons.
-fn node_bits(network: &Network) -> Vec<(u64, u64, u32, u64)> {
-    network
+/// Bit patterns of every node (x, y, weight) and every segment's ends.
+type NetworkBits = (Vec<(u64, u64, u64)>, Vec<(u32, u32)>);
+
+/// Bit patterns of every node and every segment's ends, for exact comparisons.
+fn node_bits(network: &Network) -> NetworkBits {
+    let nodes = network
         .nodes
         .iter()
-        .map(|node| {
-            (
-                node.x.to_bits(),
-                node.y.to_bits(),
-                node.parent,
-                node.weight.to_bits(),
-            )
-        })
-        .collect()
+        .map(|node| (node.x.to_bits(), node.y.to_bits(), node.weight.to_bits()))
+        .collect();
+    let segments = network
+        .segments
+        .iter()
+        .map(|segment| (segment.from, segment.to))
+        .collect();
+    (nodes, segments)
+}
+
+/// Each node's downstream neighbour read from the segment list (`NO_PARENT` for a root);
+/// `None` when a node has two downstream segments.
+fn parents_of(network: &Network) -> Option<Vec<u32>> {
+    let mut parents = vec![NO_PARENT; network.nodes.len()];
+    for segment in &network.segments {
+        let slot = parents.get_mut(segment.from as usize)?;
+        if *slot != NO_PARENT {
+            return None;
+        }
+        *slot = segment.to;
+    }
+    Some(parents)
 }
 
 fn close(actual: f64, expected: f64, tolerance: f64) -> bool {
@@ -196,6 +212,7 @@ fn check_forest(params: &Params) -> Result<(), TestCaseError> {
     let topology = network.topology().expect("grown network is a forest");
     let count = network.nodes.len();
     let h = params.domain.cell_size;
+    let parents = parents_of(&network).expect("one downstream segment per node");
 
     // Budget: never more cells than `cells`; stopping for the budget means reaching it.
     prop_assert!(growth.cell_count() <= params.run.cells);
@@ -204,9 +221,7 @@ fn check_forest(params: &Params) -> Result<(), TestCaseError> {
     }
 
     // Roots: exactly the configured ones, in order, each on its cell.
-    let roots: Vec<usize> = (0..count)
-        .filter(|&i| network.nodes[i].parent == NO_PARENT)
-        .collect();
+    let roots: Vec<usize> = (0..count).filter(|&i| parents[i] == NO_PARENT).collect();
     prop_assert_eq!(roots.len(), params.domain.roots.len());
     for (node, root) in roots.iter().zip(&params.domain.roots) {
         let n = network.nodes[*node];
@@ -217,12 +232,13 @@ fn check_forest(params: &Params) -> Result<(), TestCaseError> {
     }
 
     // One parent per non-root node, never itself; following parents reaches a root.
-    for (index, node) in network.nodes.iter().enumerate() {
-        if node.parent != NO_PARENT {
-            prop_assert!((node.parent as usize) < count);
-            prop_assert_ne!(node.parent as usize, index);
+    for (index, &parent) in parents.iter().enumerate() {
+        if parent != NO_PARENT {
+            prop_assert!((parent as usize) < count);
+            prop_assert_ne!(parent as usize, index);
         }
     }
+    prop_assert_eq!(network.segments.len(), count - roots.len());
     prop_assert_eq!(topology.order.len(), count);
 
     // Cells: weight > 0 marks a cell node; each inside an allowed cell, no two in one cell.
@@ -270,7 +286,7 @@ fn check_forest(params: &Params) -> Result<(), TestCaseError> {
         let mut hops = 0;
         loop {
             walked[current] += node.weight;
-            let parent = network.nodes[current].parent;
+            let parent = parents[current];
             if parent == NO_PARENT {
                 break;
             }

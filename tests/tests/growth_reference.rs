@@ -28,17 +28,35 @@ fn grow(params: &Params) -> (Growth, RunView) {
     (growth, view)
 }
 
-/// Total segment length computed straight from the node list (not through the metrics).
+/// Total segment length computed straight from the segment list (not through the metrics).
 fn total_length(network: &Network) -> f64 {
     network
-        .nodes
+        .segments
         .iter()
-        .filter(|node| node.parent != NO_PARENT)
-        .map(|node| {
-            let parent = &network.nodes[node.parent as usize];
+        .map(|segment| {
+            let (node, parent) = (
+                &network.nodes[segment.from as usize],
+                &network.nodes[segment.to as usize],
+            );
             ((node.x - parent.x).powi(2) + (node.y - parent.y).powi(2)).sqrt()
         })
         .sum()
+}
+
+/// Each node's downstream neighbour (`NO_PARENT` for a root) and the index of its downstream
+/// segment, read straight from the segment list.
+fn parents_and_segments(network: &Network) -> (Vec<u32>, Vec<usize>) {
+    let mut parents = vec![NO_PARENT; network.nodes.len()];
+    let mut segment_of = vec![usize::MAX; network.nodes.len()];
+    for (index, segment) in network.segments.iter().enumerate() {
+        assert_eq!(
+            parents[segment.from as usize], NO_PARENT,
+            "one downstream segment"
+        );
+        parents[segment.from as usize] = segment.to;
+        segment_of[segment.from as usize] = index;
+    }
+    (parents, segment_of)
 }
 
 /// Asserts `actual` equals `expected` within a relative tolerance.
@@ -392,6 +410,8 @@ fn flows_on_a_row_match_hand_computation() {
         let h = params.domain.cell_size;
         let w = params.domain.runoff * h * h;
         let mut expected_cost = 0.0;
+        let (parents, segment_of) = parents_and_segments(&view.network);
+        let topology = view.topology().expect("a grown network is a forest");
         for (index, node) in view.network.nodes.iter().enumerate() {
             let column = (node.x / h).floor() as i64;
             let steps = (column - root_column as i64).unsigned_abs();
@@ -401,26 +421,23 @@ fn flows_on_a_row_match_hand_computation() {
             } else {
                 root_column as u64 + 1 - steps
             };
-            if node.parent == NO_PARENT {
+            if parents[index] == NO_PARENT {
                 assert_eq!(column, root_column as i64, "the root sits on its cell");
-                check_relative(
-                    "root total flow",
-                    view.topology.flow[index],
-                    n as f64 * w,
-                    1e-12,
-                );
+                check_relative("root total flow", topology.flow[index], n as f64 * w, 1e-12);
                 continue;
             }
             let expected_flow = side_cells as f64 * w;
             check_relative(
                 &format!("flow of the segment {steps} steps from the root"),
-                view.topology.flow[index],
+                topology.flow[index],
                 expected_flow,
                 1e-12,
             );
-            check_relative("table flow", view.table.flow[index], expected_flow, 1e-12);
-            check_relative("segment length", view.topology.length[index], h, 1e-12);
-            let parent = &view.network.nodes[node.parent as usize];
+            let segment = segment_of[index];
+            check_relative("table flow", view.table.flow[segment], expected_flow, 1e-12);
+            check_relative("segment length", topology.length[index], h, 1e-12);
+            check_relative("table length", view.table.length[segment], h, 1e-12);
+            let parent = &view.network.nodes[parents[index] as usize];
             let parent_column = (parent.x / h).floor() as i64;
             assert_eq!(
                 (parent_column - root_column as i64).unsigned_abs(),
@@ -493,15 +510,16 @@ fn transport_cost_at_alpha_one_is_weighted_path_length() {
         };
         let (_, view) = grow(&params);
         let nodes = &view.network.nodes;
+        let (parents, _) = parents_and_segments(&view.network);
         let mut expected = 0.0;
-        for node in nodes {
+        for (index, node) in nodes.iter().enumerate() {
             let mut path = 0.0;
-            let mut current = *node;
+            let mut current = index;
             let mut hops = 0;
-            while current.parent != NO_PARENT {
-                let parent = nodes[current.parent as usize];
-                path += ((current.x - parent.x).powi(2) + (current.y - parent.y).powi(2)).sqrt();
-                current = parent;
+            while parents[current] != NO_PARENT {
+                let (here, parent) = (nodes[current], nodes[parents[current] as usize]);
+                path += ((here.x - parent.x).powi(2) + (here.y - parent.y).powi(2)).sqrt();
+                current = parents[current] as usize;
                 hops += 1;
                 assert!(hops <= nodes.len(), "walking parents never reaches a root");
             }
@@ -548,15 +566,18 @@ fn widths_obey_murrays_law_at_junctions() {
         let base = params.widths.tip_width * params.domain.cell_size;
         let reference = params.domain.runoff * params.domain.cell_size * params.domain.cell_size;
         let mut junctions = 0;
+        let (parents, segment_of) = parents_and_segments(&view.network);
+        let topology = view.topology().expect("a grown network is a forest");
         for (index, node) in view.network.nodes.iter().enumerate() {
-            let children = &view.topology.children[index];
-            if children.is_empty() {
+            let children = &topology.children[index];
+            // A root has no downstream segment, so no width of its own to compare.
+            if children.is_empty() || parents[index] == NO_PARENT {
                 continue;
             }
-            let own = view.table.width[index].powf(gamma);
+            let own = view.table.width[segment_of[index]].powf(gamma);
             let daughters: f64 = children
                 .iter()
-                .map(|&child| view.table.width[child as usize].powf(gamma))
+                .map(|&child| view.table.width[segment_of[child as usize]].powf(gamma))
                 .sum();
             let source = base.powf(gamma) * node.weight / reference;
             if node.weight == 0.0 {

@@ -8,7 +8,6 @@
 //! few percent.
 
 use ramulus_core::growth::Growth;
-use ramulus_core::network::NO_PARENT;
 use ramulus_core::params::Params;
 use ramulus_core::presets::preset;
 use ramulus_core::run::RunView;
@@ -72,11 +71,11 @@ fn leaf_vein_density_is_in_the_angiosperm_range() {
         let area = view.network.cells.occupied.len() as f64 * h * h;
         let length: f64 = view
             .network
-            .nodes
+            .segments
             .iter()
-            .filter(|node| node.parent != NO_PARENT)
-            .map(|node| {
-                let parent = &view.network.nodes[node.parent as usize];
+            .map(|segment| {
+                let node = &view.network.nodes[segment.from as usize];
+                let parent = &view.network.nodes[segment.to as usize];
                 ((node.x - parent.x).powi(2) + (node.y - parent.y).powi(2)).sqrt()
             })
             .sum();
@@ -94,7 +93,7 @@ fn leaf_vein_density_is_in_the_angiosperm_range() {
 fn leaf_vein_hierarchy_has_several_orders() {
     for name in LEAF_PRESETS {
         let (_, view) = grow_preset(name);
-        let order = view.metrics.max_strahler_order;
+        let order = view.metrics.max_strahler_order.expect("a leaf is a forest");
         assert!(
             (4..=10).contains(&order),
             "{name}: highest Strahler order {order} outside the loose range 4-10"

@@ -2,7 +2,8 @@
 //! `roxmltree` XML parser and checked against the SVG 1.1 and XML 1.0 specifications, the
 //! Okabe & Ito (2008) palette and the stated layout rules.
 
-use ramulus_core::network::{CellSet, Network, Node, NO_PARENT};
+use ramulus_core::network::{segments_from_parents, CellSet, Network, Node, NO_PARENT};
+use ramulus_core::run::{conducting_network, topology_pass, widths_pass};
 use ramulus_core::segments::{SegmentTable, WidthRule};
 use ramulus_draw::{render_svg, Colouring, SvgOptions, METADATA_NAMESPACE};
 
@@ -14,18 +15,16 @@ const OKABE_ITO: [&str; 8] = [
     "#000000", "#e69f00", "#56b4e9", "#009e73", "#f0e442", "#0072b2", "#d55e00", "#cc79a7",
 ];
 
-fn node(x: f64, y: f64, parent: u32, weight: f64) -> Node {
-    Node {
-        x,
-        y,
-        parent,
-        weight,
-    }
+fn node(x: f64, y: f64, parent: u32, weight: f64) -> (Node, u32) {
+    (Node { x, y, weight }, parent)
 }
 
-fn network(nodes: Vec<Node>, units: &str) -> Network {
+/// A network with one segment from each non-root node to its parent, in node order.
+fn network(nodes: Vec<(Node, u32)>, units: &str) -> Network {
+    let parents: Vec<u32> = nodes.iter().map(|&(_, parent)| parent).collect();
     Network {
-        nodes,
+        nodes: nodes.into_iter().map(|(node, _)| node).collect(),
+        segments: segments_from_parents(&parents),
         area: 1.0,
         units: units.to_string(),
         cell_size: 0.15,
@@ -52,16 +51,26 @@ fn leaf() -> Network {
 }
 
 fn table(network: &Network) -> SegmentTable {
-    let topology = network.topology().expect("a forest");
-    SegmentTable::compute(
+    let forest = topology_pass(network).expect("a valid network");
+    widths_pass(
         network,
-        &topology,
+        forest.as_ref(),
+        &conducting_network(network),
         WidthRule {
             gamma: 3.0,
             base_width: 0.05,
             reference_flow: 0.0225,
         },
     )
+}
+
+/// The index of the segment that starts at node `node`.
+fn segment_from(network: &Network, node: usize) -> usize {
+    network
+        .segments
+        .iter()
+        .position(|segment| segment.from as usize == node)
+        .expect("a segment starts at the node")
 }
 
 fn options(colour: Colouring) -> SvgOptions {
@@ -196,14 +205,19 @@ fn stroke_widths_equal_the_table() {
             .iter()
             .position(|node| close(node.x, x1, 1e-9) && close(node.y, y1, 1e-9))
             .expect("x1, y1 is a node");
-        let parent = &leaf.nodes[leaf.nodes[child].parent as usize];
+        let segment = leaf
+            .segments
+            .iter()
+            .position(|segment| segment.from as usize == child)
+            .expect("a segment starts at x1, y1");
+        let parent = &leaf.nodes[leaf.segments[segment].to as usize];
         assert!(close(number(&line, "x2"), parent.x, 1e-9));
         assert!(close(number(&line, "y2"), parent.y, 1e-9));
         let width = number(&line, "stroke-width");
         assert!(
-            close(width, table.width[child], 1e-5),
+            close(width, table.width[segment], 1e-5),
             "{width} vs {}",
-            table.width[child]
+            table.width[segment]
         );
         // Thicker segments come later in the document, so they are painted on top
         // (SVG 1.1 section 3.3: later elements paint over earlier ones).
@@ -238,7 +252,7 @@ fn order_colours_come_from_the_okabe_ito_palette() {
             .nodes
             .iter()
             .position(|n| close(n.x, x1, 1e-9) && close(n.y, y1, 1e-9));
-        let order = table.order[child.expect("a node")];
+        let order = table.order[segment_from(&leaf, child.expect("a node"))];
         let previous = colour_of_order.insert(order, stroke.clone());
         assert!(
             previous.is_none() || previous == Some(stroke),
@@ -284,7 +298,10 @@ fn flow_colours_darken_with_flow_and_plain_is_uniform() {
                 .iter()
                 .position(|n| close(n.x, x1, 1e-9) && close(n.y, y1, 1e-9));
             let luminance = relative_luminance(line.attribute("stroke").expect("stroke"));
-            (table.flow[child.expect("a node")], luminance)
+            (
+                table.flow[segment_from(&leaf, child.expect("a node"))],
+                luminance,
+            )
         })
         .collect();
     by_flow.sort_by(|a, b| a.0.total_cmp(&b.0));
@@ -513,6 +530,7 @@ fn empty_zero_width_and_broken_networks_do_not_panic() {
         width: vec![],
         order: vec![],
         length: vec![],
+        conducts: vec![],
     };
     for colour in [Colouring::ByOrder, Colouring::ByFlow, Colouring::Plain] {
         let svg = render(&empty, &empty_table, &options(colour));
@@ -560,6 +578,7 @@ fn empty_zero_width_and_broken_networks_do_not_panic() {
         width: vec![f64::INFINITY, -1.0],
         order: vec![0],
         length: vec![],
+        conducts: vec![],
     };
     let svg = render(
         &broken,

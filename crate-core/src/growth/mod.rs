@@ -17,7 +17,7 @@ mod refresh;
 use rand_chacha::ChaCha8Rng;
 use rand_core::{RngCore, SeedableRng};
 
-use crate::network::{CellSet, Network, Node, NO_PARENT};
+use crate::network::{segments_from_parents, CellSet, Network, Node, NO_PARENT};
 use crate::params::{Joining, ParamError, Params};
 use crate::region::allowed_cells;
 use cost::{marginal, Anchor, CostModel};
@@ -229,7 +229,8 @@ impl Growth {
         self.frontier.len()
     }
 
-    /// The network so far in physical units: node `i` of the grower is node `i` here.
+    /// The network so far in physical units: node `i` of the grower is node `i` here, and the
+    /// segments run from each non-root node to its parent, in node order.
     pub fn network(&self) -> Network {
         let size = self.params.domain.cell_size;
         let cell_area = size * size;
@@ -238,7 +239,6 @@ impl Growth {
             .map(|index| Node {
                 x: self.x[index] * size,
                 y: self.y[index] * size,
-                parent: self.parent[index],
                 weight: if self.cell_of[index] == NONE {
                     0.0
                 } else {
@@ -254,6 +254,7 @@ impl Growth {
             .collect();
         Network {
             nodes,
+            segments: segments_from_parents(&self.parent),
             area: self.cell_count as f64 * cell_area,
             units: self.params.domain.units.clone(),
             cell_size: size,

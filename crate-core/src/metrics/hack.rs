@@ -16,7 +16,7 @@ pub(crate) fn hack_exponent(network: &Network, topology: &Topology) -> Option<f6
         .nodes
         .iter()
         .enumerate()
-        .filter(|(_, node)| !node.is_root())
+        .filter(|&(index, _)| !topology.is_root(index))
         .filter_map(|(index, _)| {
             let area = topology.flow.get(index).copied().unwrap_or(0.0);
             let length = longest.get(index).copied().unwrap_or(0.0);

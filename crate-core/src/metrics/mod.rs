@@ -1,23 +1,27 @@
-//! `Metrics`: every measurement of a `Network` (densities, branching angles, Strahler streams and
-//! Horton ratios, Hack exponent, tortuosity, transport cost, outline), computed by `measure`, and
-//! `metrics_table`, the same values as labelled rows for people to read.
+//! `Metrics`: every measurement of a `Network` (densities, components and loops, branching
+//! angles, Strahler streams and Horton ratios, Hack exponent, tortuosity, transport cost,
+//! outline), computed by `measure`, and the metric table (`METRIC_TABLE`) that names, describes
+//! and reads each one for the readings, the CSV and README.
 //!
-//! One code path serves grown and imported networks. Each measurement lives in its own file:
-//! `densities` (lengths, junctions, tips), `angles`, `strahler_horton`, `hack`, `tortuosity`,
-//! `transport`, `outline`, with the least-squares fit in `regression` and the readable rows in
-//! `table`. Transcendental functions come from `libm`, so native and wasm builds agree to the bit.
+//! One code path serves grown, recorded and looped networks. Each measurement lives in its own
+//! file: `densities` (lengths, junctions, tips), `loops` (components and independent loops,
+//! with petgraph), `angles`, `strahler_horton`, `hack`, `tortuosity`, `transport`, `outline`,
+//! with the least-squares fit in `regression` and the table in `table`. Transcendental
+//! functions come from `libm`, so native and wasm builds agree to the bit.
 //!
 //! Values that a given network leaves undefined (no bifurcation, no area, fewer than two orders)
-//! are `None`; measuring never panics on a network whose `Network::topology` succeeds.
+//! are `None`, and so are forest-only values on a looped network; measuring never panics on a
+//! network that passes `Network::check`.
 
 use serde::{Deserialize, Serialize};
 
-use crate::network::{Network, Topology, TopologyError};
+use crate::network::{Network, NetworkKind, Topology, TopologyError};
 use crate::segments::strahler_orders;
 
 mod angles;
 mod densities;
 mod hack;
+mod loops;
 mod outline;
 mod regression;
 mod strahler_horton;
@@ -25,7 +29,10 @@ mod table;
 mod tortuosity;
 mod transport;
 
-pub use table::{metrics_csv, metrics_table};
+pub use table::{
+    metric_readme_table, metrics_csv, metrics_table, AppliesTo, MetricEntry, MetricUnit, Reading,
+    METRIC_TABLE,
+};
 
 /// Number of bins of the branching-angle histogram.
 pub const ANGLE_HISTOGRAM_BINS: usize = 18;
@@ -37,27 +44,39 @@ pub const ANGLE_BIN_WIDTH_DEGREES: f64 = 10.0;
 ///
 /// "units" below means the network's length unit (`Network::units`, e.g. mm for a leaf, m for a
 /// site); areas are in squared units and flows, which are sums of node weights, are areas too.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+///
+/// Reading JSON, every missing field takes its default (absent, 0 or empty), so records written
+/// before a metric existed keep loading. Which values apply to which network kind is said in
+/// `METRIC_TABLE`; forest-only values are `None` (or 0 and empty) on a looped network.
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
 pub struct Metrics {
+    /// Shape of the network's graph: `forest` or `looped`.
+    pub kind: NetworkKind,
     /// Area of the leaf or site the network drains (`Network::area`), in units^2.
     pub area: f64,
     /// Number of nodes (count).
     pub node_count: u64,
     /// Number of roots: petiole bases or outlets (count).
     pub root_count: u64,
-    /// Number of segments, one per non-root node (count).
+    /// Number of segments (count).
     pub segment_count: u64,
+    /// Connected components of the network's graph, a lone node counting as one (count).
+    pub component_count: u64,
+    /// Independent loops: the cyclomatic number `segments - nodes + components` (count).
+    pub loop_count: u64,
     /// Sum of all segment lengths, in units.
     pub total_length: f64,
     /// Vein length per area (`total_length / area`), in units/units^2 (1/units); `None` when the
     /// area is not positive.
     pub vein_density: Option<f64>,
-    /// Number of junctions: nodes of degree 3 or more, where the degree counts the parent
-    /// segment (if any) and every child segment (count).
+    /// Number of junctions: nodes of degree 3 or more, the degree counting every segment at
+    /// the node (count).
     pub junction_count: u64,
     /// Junctions per area, in 1/units^2; `None` when the area is not positive.
     pub junction_density: Option<f64>,
-    /// Number of free-ending veinlets: non-root nodes of degree 1, i.e. without children (count).
+    /// Number of free-ending veinlets: nodes of degree 1 with a downstream segment (in a forest:
+    /// non-root nodes without children) (count).
     pub tip_count: u64,
     /// Free-ending veinlets per area, in 1/units^2; `None` when the area is not positive.
     pub tip_density: Option<f64>,
@@ -71,8 +90,9 @@ pub struct Metrics {
     /// Branching angles counted in 18 bins of 10 degrees: bin `i` holds angles in
     /// `[10 i, 10 (i + 1))` degrees, and the last bin also holds exactly 180 (counts).
     pub branching_angle_histogram: [u64; ANGLE_HISTOGRAM_BINS],
-    /// Highest Strahler order carried by a segment (Strahler 1957); 0 without segments.
-    pub max_strahler_order: u32,
+    /// Highest Strahler order carried by a segment (Strahler 1957); 0 without segments; `None`
+    /// on a looped network.
+    pub max_strahler_order: Option<u32>,
     /// Stream count and mean stream length of each order present, lowest order first.
     pub streams: Vec<StreamOrder>,
     /// Horton bifurcation ratio `R_B = 10^(-slope)` of the least-squares line of
@@ -113,7 +133,8 @@ pub struct Metrics {
 
 /// The streams of one Strahler order: a stream of order w is a maximal chain of consecutive
 /// segments of order w.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
+#[serde(default)]
 pub struct StreamOrder {
     /// The Strahler order w (1 for segments without tributaries).
     pub order: u32,
@@ -123,22 +144,27 @@ pub struct StreamOrder {
     pub mean_stream_length: f64,
 }
 
-/// Measures a network: derives its topology and Strahler orders, then calls `measure_with`.
+/// Measures a network of any kind: checks it, derives the forest view and Strahler orders when
+/// it is a forest, then calls `measure_with`.
 ///
 /// `alpha` is the branched-transport exponent of `Metrics::transport_cost` (in [0, 1] in the
-/// model; any finite value is accepted). Fails only when the nodes are not a forest.
+/// model; any finite value is accepted). Fails only when the network is not valid
+/// (`Network::check`): a looped network is measured, its forest-only values absent.
 pub fn measure(network: &Network, alpha: f64) -> Result<Metrics, TopologyError> {
-    let topology = network.topology()?;
-    let orders = strahler_orders(network, &topology);
-    Ok(measure_with(network, &topology, &orders, alpha))
+    network.check()?;
+    let topology = network.topology().ok();
+    let orders = topology
+        .as_ref()
+        .map(|topology| strahler_orders(network, topology));
+    let forest = topology.as_ref().zip(orders.as_deref());
+    Ok(measure_with(network, forest, alpha))
 }
 
-/// Measures a network whose topology and Strahler orders (one per node, as returned by
-/// `segments::strahler_orders`) the caller already has.
+/// Measures a valid network (`Network::check`) given its forest view and Strahler orders (one
+/// per node, as returned by `segments::strahler_orders`), or `None` when it is not a forest.
 ///
-/// `topology` and `orders` must have been derived from `network`; when their lengths do not
-/// match the node count, the topology and orders are derived afresh (and if the network is
-/// not a forest, only the values that need no topology are filled in).
+/// When the forest view's lengths do not match the node count, it is left out and the
+/// forest-only values are absent.
 ///
 /// Rules behind the values:
 /// - **Branching angle.** At every node with two or more children (upstream segments), the
@@ -154,47 +180,16 @@ pub fn measure(network: &Network, alpha: f64) -> Result<Metrics, TopologyError> 
 ///   downstream end: its upstream area is the segment's flow, and its longest upstream length is
 ///   the segment's own length plus the longest upstream length of its children (0 for a tip).
 ///   Points with positive length and positive area enter the fit.
-pub fn measure_with(network: &Network, topology: &Topology, orders: &[u32], alpha: f64) -> Metrics {
+pub fn measure_with(network: &Network, forest: Option<(&Topology, &[u32])>, alpha: f64) -> Metrics {
     let node_count = network.nodes.len();
-    let consistent = topology.children.len() == node_count
-        && topology.flow.len() == node_count
-        && topology.length.len() == node_count
-        && topology.order.len() == node_count
-        && orders.len() == node_count;
-    if consistent {
-        return measure_consistent(network, topology, orders, alpha);
-    }
-    match network.topology() {
-        Ok(fresh_topology) => {
-            let fresh_orders = strahler_orders(network, &fresh_topology);
-            measure_consistent(network, &fresh_topology, &fresh_orders, alpha)
-        }
-        Err(_) => {
-            let empty_network = Network {
-                nodes: Vec::new(),
-                area: network.area,
-                units: network.units.clone(),
-                cell_size: network.cell_size,
-                cells: network.cells.clone(),
-            };
-            let empty_topology = Topology {
-                children: Default::default(),
-                order: Vec::new(),
-                flow: Vec::new(),
-                length: Vec::new(),
-            };
-            measure_consistent(&empty_network, &empty_topology, &[], alpha)
-        }
-    }
-}
-
-/// `measure_with` once the topology and orders are known to match the node list.
-fn measure_consistent(
-    network: &Network,
-    topology: &Topology,
-    orders: &[u32],
-    alpha: f64,
-) -> Metrics {
+    let forest = forest.filter(|(topology, orders)| {
+        topology.children.len() == node_count
+            && topology.parent.len() == node_count
+            && topology.flow.len() == node_count
+            && topology.length.len() == node_count
+            && topology.order.len() == node_count
+            && orders.len() == node_count
+    });
     let area = network.area;
     let per_area = |amount: f64| {
         if area > 0.0 && area.is_finite() {
@@ -204,39 +199,47 @@ fn measure_consistent(
         }
     };
 
-    let counts = densities::count_lengths_and_degrees(network, topology);
-    let angles = angles::branching_angles(network, topology);
-    let angle_summary = angles::summarise_angles(&angles);
-    let streams = strahler_horton::streams_by_order(network, topology, orders);
-    let horton = strahler_horton::horton_ratios(&streams);
+    let counts = densities::count_lengths_and_degrees(network);
+    let components = loops::count_components_and_loops(network);
     let outline = outline::measure_outline(&network.cells, network.cell_size);
-
-    Metrics {
+    let mut metrics = Metrics {
+        kind: NetworkKind::Looped,
         area,
-        node_count: network.nodes.len() as u64,
+        node_count: node_count as u64,
         root_count: counts.root_count,
         segment_count: counts.segment_count,
+        component_count: components.component_count,
+        loop_count: components.loop_count,
         total_length: counts.total_length,
         vein_density: per_area(counts.total_length),
         junction_count: counts.junction_count,
         junction_density: per_area(counts.junction_count as f64),
         tip_count: counts.tip_count,
         tip_density: per_area(counts.tip_count as f64),
-        branching_angle_count: angle_summary.count,
-        branching_angle_mean: angle_summary.mean,
-        branching_angle_sd: angle_summary.standard_deviation,
-        branching_angle_histogram: angle_summary.histogram,
-        max_strahler_order: streams.last().map_or(0, |stream| stream.order),
-        streams,
-        bifurcation_ratio: horton.bifurcation_ratio,
-        length_ratio: horton.length_ratio,
-        hack_exponent: hack::hack_exponent(network, topology),
-        tortuosity: tortuosity::mean_tortuosity(network, topology),
         transport_alpha: alpha,
-        transport_cost: transport::transport_cost(network, topology, alpha),
         outline_area: outline.area,
         outline_perimeter: outline.perimeter,
         circularity: outline.circularity,
         aspect_ratio: outline.aspect_ratio,
+        ..Metrics::default()
+    };
+    if let Some((topology, orders)) = forest {
+        let angles = angles::branching_angles(network, topology);
+        let angle_summary = angles::summarise_angles(&angles);
+        let streams = strahler_horton::streams_by_order(network, topology, orders);
+        let horton = strahler_horton::horton_ratios(&streams);
+        metrics.kind = NetworkKind::Forest;
+        metrics.branching_angle_count = angle_summary.count;
+        metrics.branching_angle_mean = angle_summary.mean;
+        metrics.branching_angle_sd = angle_summary.standard_deviation;
+        metrics.branching_angle_histogram = angle_summary.histogram;
+        metrics.max_strahler_order = Some(streams.last().map_or(0, |stream| stream.order));
+        metrics.streams = streams;
+        metrics.bifurcation_ratio = horton.bifurcation_ratio;
+        metrics.length_ratio = horton.length_ratio;
+        metrics.hack_exponent = hack::hack_exponent(network, topology);
+        metrics.tortuosity = tortuosity::mean_tortuosity(network, topology);
+        metrics.transport_cost = transport::transport_cost(network, topology, alpha);
     }
+    metrics
 }

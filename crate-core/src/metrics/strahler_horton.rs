@@ -30,8 +30,8 @@ pub(crate) fn streams_by_order(
 ) -> Vec<StreamOrder> {
     // Order -> (stream count, total length of segments).
     let mut per_order: BTreeMap<u32, (u64, f64)> = BTreeMap::new();
-    for (index, node) in network.nodes.iter().enumerate() {
-        if node.is_root() {
+    for index in 0..network.nodes.len() {
+        if topology.is_root(index) {
             continue;
         }
         let Some(&order) = orders.get(index) else {

@@ -1,7 +1,9 @@
-//! `metrics_table`: the values of a `Metrics` as (label, value, unit) rows of text, for the
-//! command line and the browser to print.
+//! The metric table (`METRIC_TABLE`): one entry per metric giving its key, label, unit,
+//! description and the network kinds it applies to. The readings (`metrics_table`), the CSV
+//! (`metrics_csv`) and README's metrics table (`metric_readme_table`) are all read from it.
 
-use super::Metrics;
+use super::{Metrics, StreamOrder, ANGLE_HISTOGRAM_BINS};
+use crate::network::NetworkKind;
 
 /// Text shown for a value the network leaves undefined.
 const UNDEFINED_TEXT: &str = "n/a";
@@ -9,12 +11,364 @@ const UNDEFINED_TEXT: &str = "n/a";
 /// Unit text of dimensionless values and counts.
 const NO_UNIT: &str = "-";
 
-/// Rows of (label, value text, unit text) describing `metrics`, in a fixed order.
+/// The unit of a metric, written from the network's length unit.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum MetricUnit {
+    /// A count (no unit).
+    Count,
+    /// A dimensionless ratio or exponent.
+    Dimensionless,
+    /// A length, in units.
+    Length,
+    /// An area, in units^2.
+    Area,
+    /// Length per area, in units/units^2.
+    LengthPerArea,
+    /// A count per area, in 1/units^2.
+    PerArea,
+    /// An angle, in degrees.
+    Degrees,
+    /// Branched-transport cost, in (units^2)^alpha x units = units^(2 alpha + 1).
+    TransportCost,
+}
+
+impl MetricUnit {
+    /// The unit text for length unit `unit` (`mm`, `m`, ...) and transport exponent `alpha`.
+    pub fn text(self, unit: &str, alpha: f64) -> String {
+        match self {
+            MetricUnit::Count | MetricUnit::Dimensionless => NO_UNIT.to_string(),
+            MetricUnit::Length => unit.to_string(),
+            MetricUnit::Area => format!("{unit}^2"),
+            MetricUnit::LengthPerArea => format!("{unit}/{unit}^2"),
+            MetricUnit::PerArea => format!("1/{unit}^2"),
+            MetricUnit::Degrees => "degrees".to_string(),
+            MetricUnit::TransportCost => format!("{unit}^{}", 2.0 * alpha + 1.0),
+        }
+    }
+
+    /// The unit text of README's table, in terms of "units".
+    pub fn readme_text(self) -> &'static str {
+        match self {
+            MetricUnit::Count | MetricUnit::Dimensionless => NO_UNIT,
+            MetricUnit::Length => "units",
+            MetricUnit::Area => "units^2",
+            MetricUnit::LengthPerArea => "units/units^2",
+            MetricUnit::PerArea => "1/units^2",
+            MetricUnit::Degrees => "degrees",
+            MetricUnit::TransportCost => "(units^2)^alpha x units",
+        }
+    }
+}
+
+/// Which network kinds a metric applies to.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum AppliesTo {
+    /// Forests and looped networks alike.
+    AnyNetwork,
+    /// Forests only (needs flow directions, parents or Strahler orders); absent on a looped
+    /// network.
+    ForestOnly,
+}
+
+impl AppliesTo {
+    /// Whether the metric applies to a network of `kind`.
+    pub fn includes(self, kind: NetworkKind) -> bool {
+        self == AppliesTo::AnyNetwork || kind == NetworkKind::Forest
+    }
+
+    /// README text.
+    pub fn text(self) -> &'static str {
+        match self {
+            AppliesTo::AnyNetwork => "any",
+            AppliesTo::ForestOnly => "forest",
+        }
+    }
+}
+
+/// The value of one metric as the table reads it from `Metrics`.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Reading<'a> {
+    /// A number, `None` when undefined.
+    Number(Option<f64>),
+    /// A whole count.
+    Count(u64),
+    /// A whole count that may be undefined.
+    OptionalCount(Option<u64>),
+    /// Counts per histogram bin.
+    Histogram(&'a [u64; ANGLE_HISTOGRAM_BINS]),
+    /// Stream count and mean stream length per Strahler order (two rows per order).
+    Streams(&'a [StreamOrder]),
+}
+
+/// One metric: how it is named, measured in, described and read.
+#[derive(Clone, Copy, Debug)]
+pub struct MetricEntry {
+    /// Field name in `Metrics` and in JSON.
+    pub key: &'static str,
+    /// Label for people (the readings, the CSV).
+    pub label: &'static str,
+    /// Unit.
+    pub unit: MetricUnit,
+    /// One-line definition for README.
+    pub description: &'static str,
+    /// Network kinds it applies to.
+    pub applies_to: AppliesTo,
+    /// Reads the value from `Metrics`.
+    pub read: for<'a> fn(&'a Metrics) -> Reading<'a>,
+}
+
+/// Every metric, in reading order. Adding a metric: a file in `metrics/`, its field in
+/// `Metrics`, and one entry here.
+pub const METRIC_TABLE: &[MetricEntry] = &[
+    MetricEntry {
+        key: "area",
+        label: "area",
+        unit: MetricUnit::Area,
+        description: "area of the leaf or site the network drains (occupied cells x cell area)",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Number(Some(m.area)),
+    },
+    MetricEntry {
+        key: "node_count",
+        label: "nodes",
+        unit: MetricUnit::Count,
+        description: "number of nodes",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Count(m.node_count),
+    },
+    MetricEntry {
+        key: "root_count",
+        label: "roots",
+        unit: MetricUnit::Count,
+        description: "nodes without a downstream segment (petiole bases, outlets)",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Count(m.root_count),
+    },
+    MetricEntry {
+        key: "segment_count",
+        label: "segments",
+        unit: MetricUnit::Count,
+        description: "number of segments",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Count(m.segment_count),
+    },
+    MetricEntry {
+        key: "component_count",
+        label: "connected components",
+        unit: MetricUnit::Count,
+        description: "connected components of the network's graph, a lone node counting as one",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Count(m.component_count),
+    },
+    MetricEntry {
+        key: "loop_count",
+        label: "loops",
+        unit: MetricUnit::Count,
+        description: "independent loops: cyclomatic number segments - nodes + components (0 for a forest)",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Count(m.loop_count),
+    },
+    MetricEntry {
+        key: "total_length",
+        label: "total vein length",
+        unit: MetricUnit::Length,
+        description: "sum of segment lengths",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Number(Some(m.total_length)),
+    },
+    MetricEntry {
+        key: "vein_density",
+        label: "vein density",
+        unit: MetricUnit::LengthPerArea,
+        description: "total segment length / area",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Number(m.vein_density),
+    },
+    MetricEntry {
+        key: "junction_count",
+        label: "junctions",
+        unit: MetricUnit::Count,
+        description: "nodes of degree >= 3 (every segment at the node counts)",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Count(m.junction_count),
+    },
+    MetricEntry {
+        key: "junction_density",
+        label: "junction density",
+        unit: MetricUnit::PerArea,
+        description: "junctions / area",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Number(m.junction_density),
+    },
+    MetricEntry {
+        key: "tip_count",
+        label: "free-ending veinlets",
+        unit: MetricUnit::Count,
+        description: "nodes of degree 1 with a downstream segment (non-root nodes without children)",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Count(m.tip_count),
+    },
+    MetricEntry {
+        key: "tip_density",
+        label: "free-ending veinlet density",
+        unit: MetricUnit::PerArea,
+        description: "free-ending veinlets / area",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Number(m.tip_density),
+    },
+    MetricEntry {
+        key: "branching_angle_count",
+        label: "branching angles measured",
+        unit: MetricUnit::Count,
+        description: "angles measured: at each node with >= 2 upstream segments, one per upstream segment other than the main (largest-flow) one",
+        applies_to: AppliesTo::ForestOnly,
+        read: |m| Reading::Count(m.branching_angle_count),
+    },
+    MetricEntry {
+        key: "branching_angle_mean",
+        label: "mean branching angle",
+        unit: MetricUnit::Degrees,
+        description: "mean angle between the main upstream segment and each other one",
+        applies_to: AppliesTo::ForestOnly,
+        read: |m| Reading::Number(m.branching_angle_mean),
+    },
+    MetricEntry {
+        key: "branching_angle_sd",
+        label: "branching angle standard deviation",
+        unit: MetricUnit::Degrees,
+        description: "sample standard deviation of the branching angles (divisor n - 1)",
+        applies_to: AppliesTo::ForestOnly,
+        read: |m| Reading::Number(m.branching_angle_sd),
+    },
+    MetricEntry {
+        key: "branching_angle_histogram",
+        label: "branching angles per 10-degree bin, 0 to 180",
+        unit: MetricUnit::Count,
+        description: "branching angles in 18 bins of 10 degrees",
+        applies_to: AppliesTo::ForestOnly,
+        read: |m| Reading::Histogram(&m.branching_angle_histogram),
+    },
+    MetricEntry {
+        key: "max_strahler_order",
+        label: "highest Strahler order",
+        unit: MetricUnit::Count,
+        description: "highest Strahler order carried by a segment (Strahler 1957)",
+        applies_to: AppliesTo::ForestOnly,
+        read: |m| Reading::OptionalCount(m.max_strahler_order.map(u64::from)),
+    },
+    MetricEntry {
+        key: "streams",
+        label: "streams",
+        unit: MetricUnit::Count,
+        description: "per Strahler order w: stream count N_w (-) and mean stream length L_w (units); a stream is a maximal chain of segments of one order",
+        applies_to: AppliesTo::ForestOnly,
+        read: |m| Reading::Streams(&m.streams),
+    },
+    MetricEntry {
+        key: "bifurcation_ratio",
+        label: "bifurcation ratio",
+        unit: MetricUnit::Dimensionless,
+        description: "Horton R_B = 10^-(slope of log10 N_w on w), least squares over all orders",
+        applies_to: AppliesTo::ForestOnly,
+        read: |m| Reading::Number(m.bifurcation_ratio),
+    },
+    MetricEntry {
+        key: "length_ratio",
+        label: "length ratio",
+        unit: MetricUnit::Dimensionless,
+        description: "Horton R_L = 10^(slope of log10 L_w on w), least squares over all orders",
+        applies_to: AppliesTo::ForestOnly,
+        read: |m| Reading::Number(m.length_ratio),
+    },
+    MetricEntry {
+        key: "hack_exponent",
+        label: "Hack exponent",
+        unit: MetricUnit::Dimensionless,
+        description: "least-squares slope of ln(longest upstream length) on ln(upstream area), one point per segment",
+        applies_to: AppliesTo::ForestOnly,
+        read: |m| Reading::Number(m.hack_exponent),
+    },
+    MetricEntry {
+        key: "tortuosity",
+        label: "tortuosity",
+        unit: MetricUnit::Dimensionless,
+        description: "mean over cells of path length to root / straight distance to root",
+        applies_to: AppliesTo::ForestOnly,
+        read: |m| Reading::Number(m.tortuosity),
+    },
+    MetricEntry {
+        key: "transport_cost",
+        label: "transport cost",
+        unit: MetricUnit::TransportCost,
+        description: "sum over segments of q^alpha x length (the label names alpha)",
+        applies_to: AppliesTo::ForestOnly,
+        read: |m| Reading::Number(m.transport_cost),
+    },
+    MetricEntry {
+        key: "outline_area",
+        label: "outline area",
+        unit: MetricUnit::Area,
+        description: "occupied cells x cell area",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Number(m.outline_area),
+    },
+    MetricEntry {
+        key: "outline_perimeter",
+        label: "outline perimeter",
+        unit: MetricUnit::Length,
+        description: "perimeter by marching squares through edge midpoints",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Number(m.outline_perimeter),
+    },
+    MetricEntry {
+        key: "circularity",
+        label: "circularity",
+        unit: MetricUnit::Dimensionless,
+        description: "4 pi A / P^2 of the outline",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Number(m.circularity),
+    },
+    MetricEntry {
+        key: "aspect_ratio",
+        label: "aspect ratio",
+        unit: MetricUnit::Dimensionless,
+        description: "sqrt(l1 / l2) of the covariance of occupied cell centres",
+        applies_to: AppliesTo::AnyNetwork,
+        read: |m| Reading::Number(m.aspect_ratio),
+    },
+];
+
+/// README's metrics table in Markdown, generated from `METRIC_TABLE` (a test keeps README in
+/// step).
+pub fn metric_readme_table() -> String {
+    let mut text = String::from(
+        "| key | metric | definition | unit | applies to |\n| --- | --- | --- | --- | --- |\n",
+    );
+    for entry in METRIC_TABLE {
+        let unit = match entry.unit {
+            _ if entry.key == "streams" => "-, units",
+            unit => unit.readme_text(),
+        };
+        text.push_str(&format!(
+            "| `{}` | {} | {} | {} | {} |\n",
+            entry.key,
+            entry.label,
+            entry.description,
+            unit,
+            entry.applies_to.text()
+        ));
+    }
+    text
+}
+
+/// Rows of (label, value text, unit text) describing `metrics`, one or more per entry of
+/// `METRIC_TABLE`, in its order.
 ///
 /// `units` is the network's length unit (`mm`, `m`, ...); an empty string is shown as `unit`.
-/// Labels are plain English ("vein density"); values have four significant digits (scientific
-/// notation outside 0.001 to 1,000,000), counts are whole numbers, and undefined values read
-/// `n/a`. Per-order rows follow the maximum Strahler order, lowest order first.
+/// Values have four significant digits (scientific notation outside 0.001 to 1,000,000), counts
+/// are whole numbers, and undefined values, and values of metrics that do not apply to the
+/// network's kind, read `n/a`. Per-order rows follow the maximum Strahler order, lowest order
+/// first.
 pub fn metrics_table(metrics: &Metrics, units: &str) -> Vec<(String, String, String)> {
     rows(metrics, units, format_number)
 }
@@ -61,126 +415,53 @@ fn rows(
     units: &str,
     format_number: fn(f64) -> String,
 ) -> Vec<(String, String, String)> {
-    let format_optional =
-        |value: Option<f64>| value.map_or_else(|| UNDEFINED_TEXT.to_string(), format_number);
     let unit = if units.is_empty() { "unit" } else { units };
-    let area_unit = format!("{unit}^2");
-    let per_area_unit = format!("1/{unit}^2");
+    let alpha = metrics.transport_alpha;
     let mut rows: Vec<(String, String, String)> = Vec::new();
-    let mut push = |label: &str, value: String, unit: &str| {
-        rows.push((label.to_string(), value, unit.to_string()));
-    };
-
-    push("area", format_number(metrics.area), &area_unit);
-    push("nodes", metrics.node_count.to_string(), NO_UNIT);
-    push("roots", metrics.root_count.to_string(), NO_UNIT);
-    push("segments", metrics.segment_count.to_string(), NO_UNIT);
-    push(
-        "total vein length",
-        format_number(metrics.total_length),
-        unit,
-    );
-    push(
-        "vein density",
-        format_optional(metrics.vein_density),
-        &format!("{unit}/{unit}^2"),
-    );
-    push("junctions", metrics.junction_count.to_string(), NO_UNIT);
-    push(
-        "junction density",
-        format_optional(metrics.junction_density),
-        &per_area_unit,
-    );
-    push(
-        "free-ending veinlets",
-        metrics.tip_count.to_string(),
-        NO_UNIT,
-    );
-    push(
-        "free-ending veinlet density",
-        format_optional(metrics.tip_density),
-        &per_area_unit,
-    );
-    push(
-        "branching angles measured",
-        metrics.branching_angle_count.to_string(),
-        NO_UNIT,
-    );
-    push(
-        "mean branching angle",
-        format_optional(metrics.branching_angle_mean),
-        "degrees",
-    );
-    push(
-        "branching angle standard deviation",
-        format_optional(metrics.branching_angle_sd),
-        "degrees",
-    );
-    let histogram: Vec<String> = metrics
-        .branching_angle_histogram
-        .iter()
-        .map(|count| count.to_string())
-        .collect();
-    push(
-        "branching angles per 10-degree bin, 0 to 180",
-        histogram.join(" "),
-        NO_UNIT,
-    );
-    push(
-        "highest Strahler order",
-        metrics.max_strahler_order.to_string(),
-        NO_UNIT,
-    );
-    for stream in &metrics.streams {
-        push(
-            &format!("streams of order {}", stream.order),
-            stream.stream_count.to_string(),
-            NO_UNIT,
-        );
-        push(
-            &format!("mean stream length of order {}", stream.order),
-            format_number(stream.mean_stream_length),
-            unit,
-        );
+    for entry in METRIC_TABLE {
+        let unit_text = entry.unit.text(unit, alpha);
+        let label = if entry.unit == MetricUnit::TransportCost {
+            format!("{} (alpha {alpha})", entry.label)
+        } else {
+            entry.label.to_string()
+        };
+        if !entry.applies_to.includes(metrics.kind) {
+            if !matches!((entry.read)(metrics), Reading::Streams(_)) {
+                rows.push((label, UNDEFINED_TEXT.to_string(), unit_text));
+            }
+            continue;
+        }
+        let value = match (entry.read)(metrics) {
+            Reading::Number(value) => {
+                value.map_or_else(|| UNDEFINED_TEXT.to_string(), format_number)
+            }
+            Reading::Count(count) => count.to_string(),
+            Reading::OptionalCount(count) => {
+                count.map_or_else(|| UNDEFINED_TEXT.to_string(), |count| count.to_string())
+            }
+            Reading::Histogram(counts) => counts
+                .iter()
+                .map(|count| count.to_string())
+                .collect::<Vec<_>>()
+                .join(" "),
+            Reading::Streams(streams) => {
+                for stream in streams {
+                    rows.push((
+                        format!("streams of order {}", stream.order),
+                        stream.stream_count.to_string(),
+                        NO_UNIT.to_string(),
+                    ));
+                    rows.push((
+                        format!("mean stream length of order {}", stream.order),
+                        format_number(stream.mean_stream_length),
+                        unit.to_string(),
+                    ));
+                }
+                continue;
+            }
+        };
+        rows.push((label, value, unit_text));
     }
-    push(
-        "bifurcation ratio",
-        format_optional(metrics.bifurcation_ratio),
-        NO_UNIT,
-    );
-    push(
-        "length ratio",
-        format_optional(metrics.length_ratio),
-        NO_UNIT,
-    );
-    push(
-        "Hack exponent",
-        format_optional(metrics.hack_exponent),
-        NO_UNIT,
-    );
-    push("tortuosity", format_optional(metrics.tortuosity), NO_UNIT);
-    let cost_exponent = 2.0 * metrics.transport_alpha + 1.0;
-    push(
-        &format!("transport cost (alpha {})", metrics.transport_alpha),
-        format_optional(metrics.transport_cost),
-        &format!("{unit}^{cost_exponent}"),
-    );
-    push(
-        "outline area",
-        format_optional(metrics.outline_area),
-        &area_unit,
-    );
-    push(
-        "outline perimeter",
-        format_optional(metrics.outline_perimeter),
-        unit,
-    );
-    push("circularity", format_optional(metrics.circularity), NO_UNIT);
-    push(
-        "aspect ratio",
-        format_optional(metrics.aspect_ratio),
-        NO_UNIT,
-    );
     rows
 }
 
@@ -205,6 +486,27 @@ fn format_number(value: f64) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Every field of `Metrics` has one entry in the table (besides the network kind and the
+    /// transport exponent, which describe how the values were measured), and keys are unique.
+    #[test]
+    fn the_table_covers_every_metric_once() {
+        let json = serde_json::to_value(Metrics::default()).expect("metrics serialise");
+        let mut fields: Vec<&str> = json
+            .as_object()
+            .expect("an object")
+            .keys()
+            .map(String::as_str)
+            .filter(|key| !matches!(*key, "kind" | "transport_alpha"))
+            .collect();
+        let mut keys: Vec<&str> = METRIC_TABLE.iter().map(|entry| entry.key).collect();
+        fields.sort_unstable();
+        keys.sort_unstable();
+        let before = keys.len();
+        keys.dedup();
+        assert_eq!(keys.len(), before, "a key appears twice");
+        assert_eq!(keys, fields);
+    }
 
     /// Four significant digits in fixed or scientific notation (the rule in the doc comment).
     #[test]

@@ -17,10 +17,10 @@ pub(crate) fn mean_tortuosity(network: &Network, topology: &Topology) -> Option<
         let Some(current) = network.nodes.get(node) else {
             continue;
         };
-        if current.is_root() {
+        if topology.is_root(node) {
             continue;
         }
-        let parent = current.parent as usize;
+        let parent = topology.parent[node] as usize;
         let parent_path = path_length.get(parent).copied().unwrap_or(0.0);
         let own_length = topology.length.get(node).copied().unwrap_or(0.0);
         let root = root_of.get(parent).copied().unwrap_or(parent);

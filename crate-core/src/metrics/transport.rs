@@ -12,8 +12,8 @@ pub(crate) fn transport_cost(network: &Network, topology: &Topology, alpha: f64)
         return None;
     }
     let mut cost = 0.0;
-    for (index, node) in network.nodes.iter().enumerate() {
-        if node.is_root() {
+    for index in 0..network.nodes.len() {
+        if topology.is_root(index) {
             continue;
         }
         let flow = topology.flow.get(index).copied().unwrap_or(0.0);

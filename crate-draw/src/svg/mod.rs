@@ -84,9 +84,9 @@ pub fn run_svg(view: &RunView, params: &Params, colour: Colouring) -> String {
 
 /// Renders the network as a standalone SVG document.
 ///
-/// Segment `i` (node `i` to its parent) is drawn with stroke width `table.width[i]`; segments
-/// whose parent is out of range or whose ends are not finite are left out, as are table
-/// entries that are missing (width 0, order 1, flow 0 are used instead). Never panics.
+/// Segment `k` (`network.segments[k]`) is drawn with stroke width `table.width[k]`; segments
+/// with an end out of range or not finite are left out, and missing table entries read as
+/// width 0, order 1, flow 0. Never panics.
 pub fn render_svg(network: &Network, table: &SegmentTable, options: &SvgOptions) -> String {
     let drawing = Drawing::collect(network, table);
     let frame = Frame::new(&drawing, network, options);
@@ -173,28 +173,33 @@ impl Drawing {
             }
         };
         let mut segments = Vec::new();
-        let mut roots = Vec::new();
-        for (index, node) in network.nodes.iter().enumerate() {
-            if !finite(index) {
-                continue;
+        // Nodes without a downstream segment are roots, drawn as wide as their widest inflow.
+        let mut has_downstream = vec![false; nodes.len()];
+        let mut inflow_width = vec![0.0f64; nodes.len()];
+        for (index, segment) in network.segments.iter().enumerate() {
+            let (child, parent) = (segment.from as usize, segment.to as usize);
+            if let Some(flag) = has_downstream.get_mut(child) {
+                *flag = true;
             }
-            if node.is_root() {
-                roots.push((index, width_of(index)));
-                continue;
+            if let Some(width) = inflow_width.get_mut(parent) {
+                *width = width.max(width_of(index));
             }
-            let parent = node.parent as usize;
-            if !finite(parent) {
+            if !finite(child) || !finite(parent) {
                 continue;
             }
             let flow = table.flow.get(index).copied().unwrap_or(0.0);
             segments.push(Segment {
-                child: index,
+                child,
                 parent,
                 width: width_of(index),
                 flow: if flow.is_finite() { flow } else { 0.0 },
                 order: table.order.get(index).copied().unwrap_or(1).max(1),
             });
         }
+        let roots: Vec<(usize, f64)> = (0..nodes.len())
+            .filter(|&index| finite(index) && !has_downstream[index])
+            .map(|index| (index, inflow_width[index]))
+            .collect();
         // Thin and low-flow segments first, so thick ones are drawn on top.
         segments.sort_by(|a, b| {
             a.width
