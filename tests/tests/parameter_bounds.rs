@@ -159,9 +159,13 @@ fn readme_rows_show_the_bounds() {
             assert_eq!(allowed, "any whole number", "{}", spec.key);
             continue;
         }
-        assert!(allowed.contains(&format!("{}", bounds.min)), "{row}");
+        // A bound reads as written (`0.001`, `25000000`) or in exponent form (`1e6`).
+        let shows = |value: f64| {
+            allowed.contains(&format!("{value}")) || allowed.contains(&format!("{value:e}"))
+        };
+        assert!(shows(bounds.min), "{row}");
         if bounds.max != f64::MAX {
-            assert!(allowed.contains(&format!("{}", bounds.max)), "{row}");
+            assert!(shows(bounds.max), "{row}");
         }
         assert_eq!(
             allowed.starts_with('(') || allowed.starts_with('>') && !allowed.starts_with(">="),

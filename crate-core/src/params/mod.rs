@@ -418,7 +418,17 @@ pub(crate) fn format_number(value: f64) -> String {
         "NaN".to_string()
     } else if value.is_infinite() {
         if value > 0.0 { "inf" } else { "-inf" }.to_string()
+    } else if value.abs() >= 1.0e5 && is_one_digit_power(value) {
+        // 1e6 and 1e12 read better than 1000000 and 1000000000000; 25000000 stays whole.
+        format!("{value:e}")
     } else {
         format!("{value}")
     }
+}
+
+/// Whether `value` is one digit times a power of ten (`1e6`, `-1e12`, `5e5`).
+fn is_one_digit_power(value: f64) -> bool {
+    let text = format!("{:e}", value.abs());
+    text.split_once('e')
+        .is_some_and(|(digits, _)| digits.len() == 1)
 }
