@@ -10,6 +10,7 @@
 //! from a link takes the default of that version (`version_1_defaults`), so changing
 //! `Params::default` later never changes what an old link grows.
 
+use crate::limits::MAX_CELLS;
 use crate::params::table::{parameter, parameters};
 use crate::params::Params;
 
@@ -103,11 +104,29 @@ pub fn decode_link(text: &str) -> LinkRead {
             problems.push(problem(&key, &value, &format!("{message}; default used")));
         }
     }
+    cap_cell_budget(&mut params, &mut problems);
     repair(&mut params, &mut problems);
     LinkRead {
         params,
         version,
         problems,
+    }
+}
+
+/// Version 1 links were accepted with any cell budget, while the budget is now at most
+/// `MAX_CELLS`. No lattice holds more cells than that, so a larger budget grows the very same
+/// network as `MAX_CELLS`: cap it (and say so) instead of resetting it to the default.
+fn cap_cell_budget(params: &mut Params, problems: &mut Vec<LinkProblem>) {
+    if params.run.cells > MAX_CELLS {
+        problems.push(problem(
+            "cells",
+            &params.run.cells.to_string(),
+            &format!(
+                "above the largest budget; {MAX_CELLS} used, which grows the same network since \
+                 no lattice holds more cells"
+            ),
+        ));
+        params.run.cells = MAX_CELLS;
     }
 }
 

@@ -66,3 +66,26 @@ fn every_version_1_link_grows_its_pinned_network() {
     }
     assert!(failures.is_empty(), "{}", failures.join("\n"));
 }
+
+/// Version 1 links were accepted with any cell budget; the budget is now capped at the largest
+/// lattice. A link whose budget lies above the cap must still grow the network it always grew:
+/// on a lattice that fills before either budget runs out, the same network as a budget the
+/// lattice can never reach, and never the network of the default budget.
+#[test]
+fn a_version_1_budget_above_the_cap_grows_the_same_network() {
+    let grow = |link: &str| {
+        let read = decode_link(link);
+        let mut growth = Growth::new(&read.params).expect("the link reads to valid parameters");
+        growth.run();
+        (digest_hex(&growth.network()), read.problems)
+    };
+    let base = "v=1&width=120&height=100&roots=60,99,0,1&seed=9";
+    let (above, problems) = grow(&format!("{base}&cells=30000000"));
+    let (fills, none) = grow(&format!("{base}&cells=20000"));
+    let (default_budget, _) = grow(base);
+    assert!(none.is_empty(), "{none:?}");
+    assert_eq!(above, fills);
+    assert_ne!(above, default_budget);
+    assert_eq!(problems.len(), 1, "{problems:?}");
+    assert_eq!(problems[0].key, "cells");
+}
