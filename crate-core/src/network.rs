@@ -303,11 +303,18 @@ impl Network {
     /// valid or not a forest.
     pub fn topology(&self) -> Result<Topology, TopologyError> {
         self.check()?;
-        let parent = self.parents()?;
+        // `parents` and each node's downstream segment in one pass (`check` has found every
+        // end in range).
         let count = self.nodes.len();
+        let mut parent = vec![NO_PARENT; count];
         let mut segment_of = vec![NO_PARENT; count];
         for (index, segment) in self.segments.iter().enumerate() {
-            segment_of[segment.from as usize] = index as u32;
+            let from = segment.from as usize;
+            if parent[from] != NO_PARENT {
+                return Err(TopologyError::TwoDownstream { node: from });
+            }
+            parent[from] = segment.to;
+            segment_of[from] = index as u32;
         }
         let children = Children::from_parents(parent.iter().copied(), count);
         let mut order = Vec::with_capacity(count);

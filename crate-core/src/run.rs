@@ -60,11 +60,16 @@ pub struct RunView {
 
 /// Topology pass: checks the network and derives the forest view when it is a forest.
 pub fn topology_pass(network: &Network) -> Result<Option<ForestView>, TopologyError> {
-    network.check()?;
-    Ok(network.topology().ok().map(|topology| {
-        let orders = strahler_orders(network, &topology);
-        ForestView { topology, orders }
-    }))
+    // `Network::topology` runs `Network::check` first, so its check errors are the invalid
+    // networks and its other errors the valid networks that are not forests.
+    match network.topology() {
+        Ok(topology) => {
+            let orders = strahler_orders(network, &topology);
+            Ok(Some(ForestView { topology, orders }))
+        }
+        Err(TopologyError::TwoDownstream { .. } | TopologyError::Cycle { .. }) => Ok(None),
+        Err(error) => Err(error),
+    }
 }
 
 /// Conducting-network pass: every segment conducts (identity). A threshold on the area a

@@ -111,16 +111,21 @@ pub fn spatial_order(points: impl Iterator<Item = [f64; 2]> + Clone, grid: usize
         let row = (((y - low_y) / span_y * grid as f64) as usize).min(grid - 1);
         row * grid + column
     };
+    // Each point's cell once, counted as it is found; then the counting sort's placing pass.
     let mut starts = vec![0u32; grid * grid + 2];
-    for point in points.clone() {
-        starts[cell_of(point) + 1] += 1;
-    }
+    let cells: Vec<u32> = points
+        .map(|point| {
+            let cell = cell_of(point);
+            starts[cell + 1] += 1;
+            cell as u32
+        })
+        .collect();
     for index in 1..starts.len() {
         starts[index] += starts[index - 1];
     }
-    let mut order = vec![0u32; starts[grid * grid + 1] as usize];
-    for (index, point) in points.enumerate() {
-        let slot = &mut starts[cell_of(point)];
+    let mut order = vec![0u32; cells.len()];
+    for (index, &cell) in cells.iter().enumerate() {
+        let slot = &mut starts[cell as usize];
         order[*slot as usize] = index as u32;
         *slot += 1;
     }

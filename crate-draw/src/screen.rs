@@ -52,6 +52,12 @@ impl ScreenGeometry {
     pub fn fill(&mut self, network: &Network, table: &SegmentTable) {
         self.clear();
         let at = |values: &[f64], index: usize| values.get(index).copied().unwrap_or(0.0);
+        let count = network.segments.len();
+        self.ends.reserve(4 * count);
+        self.widths.reserve(count);
+        self.orders.reserve(count);
+        self.flows.reserve(count);
+        self.lengths.reserve(count);
         let mut low = f64::INFINITY;
         let mut high = 0.0f64;
         for (index, segment) in network.segments.iter().enumerate() {
