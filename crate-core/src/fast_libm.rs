@@ -22,6 +22,7 @@ pub fn pow(x: f64, y: f64) -> f64 {
 }
 
 /// `sqrt(x^2 + y^2)` without undue overflow or underflow, bit for bit `libm::hypot(x, y)`.
+#[inline]
 pub fn hypot(x: f64, y: f64) -> f64 {
     let two_700 = f64::from_bits(0x6bb0_0000_0000_0000);
     let two_minus_700 = f64::from_bits(0x1430_0000_0000_0000);

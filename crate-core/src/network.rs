@@ -361,6 +361,7 @@ impl Network {
     }
 
     /// Straight length between two nodes, in units.
+    #[inline]
     pub fn segment_length(&self, from: u32, to: u32) -> f64 {
         let (a, b) = (&self.nodes[from as usize], &self.nodes[to as usize]);
         crate::fast_libm::hypot(a.x - b.x, a.y - b.y)

@@ -92,17 +92,34 @@ pub fn draw_lines(pixels: &mut [u8], view: &RasterView, lines: impl Iterator<Ite
 pub fn spatial_order(points: impl Iterator<Item = [f64; 2]> + Clone, grid: usize) -> Vec<u32> {
     let grid = grid.max(1);
     let (mut low_x, mut low_y, mut high_x, mut high_y) = (f64::MAX, f64::MAX, f64::MIN, f64::MIN);
+    // Comparisons, not `f64::min` and `f64::max`: those are library calls on wasm32, and the
+    // values here are finite.
     for [x, y] in points
         .clone()
         .filter(|[x, y]| x.is_finite() && y.is_finite())
     {
-        low_x = low_x.min(x);
-        low_y = low_y.min(y);
-        high_x = high_x.max(x);
-        high_y = high_y.max(y);
+        if x < low_x {
+            low_x = x;
+        }
+        if y < low_y {
+            low_y = y;
+        }
+        if x > high_x {
+            high_x = x;
+        }
+        if y > high_y {
+            high_y = y;
+        }
     }
-    let span_x = (high_x - low_x).max(f64::MIN_POSITIVE);
-    let span_y = (high_y - low_y).max(f64::MIN_POSITIVE);
+    let at_least_tiny = |span: f64| {
+        if span > f64::MIN_POSITIVE {
+            span
+        } else {
+            f64::MIN_POSITIVE
+        }
+    };
+    let span_x = at_least_tiny(high_x - low_x);
+    let span_y = at_least_tiny(high_y - low_y);
     let cell_of = |[x, y]: [f64; 2]| -> usize {
         if !(x.is_finite() && y.is_finite()) {
             return grid * grid;
@@ -199,14 +216,26 @@ fn wu_line(
     }
 }
 
-/// Moves the pixel at byte `at` towards `rgb` by `coverage` / 256.
+/// Moves the pixel at byte `at` towards `rgb` by `coverage` / 256 (0 ..= 256): each
+/// channel becomes `old + floor((target - old) * coverage / 256)`.
+///
+/// Red and blue are blended together in one 32-bit word, green in another:
+/// `floor((old * (256 - coverage) + target * coverage) / 256)` is the same value, since
+/// `old * 256` divides evenly, and no sum exceeds 255 * 256, so no channel carries into the
+/// next. Alpha is left as it was.
 #[inline]
 fn blend(pixels: &mut [u8], at: usize, rgb: [u8; 3], coverage: i32) {
-    if let Some(pixel) = pixels.get_mut(at..at + 3) {
-        for (channel, &target) in pixel.iter_mut().zip(&rgb) {
-            let old = *channel as i32;
-            *channel = (old + (((target as i32 - old) * coverage) >> 8)) as u8;
-        }
+    if let Some(bytes) = pixels.get_mut(at..at + 4) {
+        let mut word = [0u8; 4];
+        word.copy_from_slice(bytes);
+        let old = u32::from_le_bytes(word);
+        let target = u32::from_le_bytes([rgb[0], rgb[1], rgb[2], 0]);
+        let keep = (256 - coverage) as u32;
+        let take = coverage as u32;
+        let red_blue = ((old & 0x00ff_00ff) * keep + (target & 0x00ff_00ff) * take) >> 8;
+        let green = (old & 0x0000_ff00) * keep + (target & 0x0000_ff00) * take;
+        let new = (red_blue & 0x00ff_00ff) | ((green >> 8) & 0x0000_ff00) | (old & 0xff00_0000);
+        bytes.copy_from_slice(&new.to_le_bytes());
     }
 }
 
@@ -257,6 +286,35 @@ mod tests {
         draw_lines(&mut pixels, &view(6, 4), std::iter::once(line));
         assert_eq!(pixels[4 * (6 + 2)], 127);
         assert_eq!(pixels[4 * (2 * 6 + 2)], 127);
+    }
+
+    /// Blending moves every channel by `floor((target - old) * coverage / 256)` (the rule in
+    /// 1/256 steps stated at the top of this file), leaves alpha alone, and lets no channel
+    /// spill into its neighbour: every old and target value against coverages from 0 to 256.
+    #[test]
+    fn blending_follows_the_channel_rule() {
+        for coverage in [0, 1, 2, 7, 64, 127, 128, 129, 200, 255, 256] {
+            for old in 0..=255i32 {
+                for target in (0..=255i32).step_by(3) {
+                    let mut pixel = [old as u8, (255 - old) as u8, old as u8, 77];
+                    let rgb = [target as u8, target as u8, (255 - target) as u8];
+                    blend(&mut pixel, 0, rgb, coverage);
+                    let expected = |from: i32, to: i32| {
+                        (from + ((to - from) * coverage).div_euclid(256)) as u8
+                    };
+                    assert_eq!(
+                        pixel,
+                        [
+                            expected(old, target),
+                            expected(255 - old, target),
+                            expected(old, 255 - target),
+                            77
+                        ],
+                        "old {old}, target {target}, coverage {coverage}"
+                    );
+                }
+            }
+        }
     }
 
     /// The spatial order is a permutation that visits the grid's cells row by row.

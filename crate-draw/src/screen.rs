@@ -75,9 +75,12 @@ impl ScreenGeometry {
             let flow = at(&table.flow, index);
             self.flows.push(flow as f32);
             self.lengths.push(at(&table.length, index) as f32);
-            if flow > 0.0 {
-                low = low.min(flow);
-                high = high.max(flow);
+            // Comparisons, not `f64::min` and `f64::max` (library calls on wasm32).
+            if flow > 0.0 && flow < low {
+                low = flow;
+            }
+            if flow > high {
+                high = flow;
             }
             self.max_order = self.max_order.max(order);
             self.segment_count += 1;
