@@ -3,7 +3,7 @@
 use ramulus_core::growth::Growth;
 use ramulus_core::import::mask_from_bytes;
 use ramulus_core::link::{decode_link, encode_link};
-use ramulus_core::metrics::{metrics_table, Metrics};
+use ramulus_core::metrics::Metrics;
 use ramulus_core::presets::presets as all_presets;
 use ramulus_core::record::{make_record, read_record, write_record};
 use ramulus_core::run::{RunView, SITE_CAUTION};
@@ -112,7 +112,7 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
 fn print_table(metrics: &Metrics, units: &str) {
     // Long values (the angle histogram) go on their own line so the columns stay narrow.
     const LONG: usize = 24;
-    let rows = metrics_table(metrics, units);
+    let rows = ramulus_draw::texts::readings_rows(metrics, units);
     let short = rows.iter().filter(|row| row.1.len() <= LONG);
     let label_width = short.clone().map(|row| row.0.len()).max().unwrap_or(0);
     let value_width = short.map(|row| row.1.len()).max().unwrap_or(0);

@@ -39,6 +39,16 @@ pub fn segment_reading(order: u32, flow: f64, width: f64, length: f64, units: &s
     )
 }
 
+/// The readings of a run as (label, value, unit) rows, in the metric table's order, numbers with
+/// up to four significant digits (`format::four_digits`): the page's readings table and the
+/// command line's table.
+pub fn readings_rows(
+    metrics: &ramulus_core::metrics::Metrics,
+    units: &str,
+) -> Vec<(String, String, String)> {
+    ramulus_core::metrics::metric_rows(metrics, units, crate::format::four_digits)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -4,7 +4,7 @@
 
 use ramulus_core::growth::Growth;
 use ramulus_core::link::{decode_link, encode_link};
-use ramulus_core::metrics::{metrics_csv, metrics_table};
+use ramulus_core::metrics::metrics_csv;
 use ramulus_core::network::Network;
 use ramulus_core::params::Domain;
 use ramulus_core::params::Params;
@@ -214,7 +214,7 @@ impl Simulation {
     /// Metrics as labelled rows `[[label, value, unit], ...]` (four significant digits).
     pub fn metrics_rows_json(&mut self) -> Result<String, JsError> {
         let units = self.params.domain.units.clone();
-        let rows = metrics_table(&self.view()?.metrics, &units);
+        let rows = ramulus_draw::texts::readings_rows(&self.view()?.metrics, &units);
         serde_json::to_string(&rows).map_err(|error| JsError::new(&error.to_string()))
     }
 

@@ -5,7 +5,7 @@
 use petgraph::algo::connected_components;
 use petgraph::graph::UnGraph;
 use ramulus_core::digest::digest_hex;
-use ramulus_core::metrics::{measure, metrics_table, Reading, METRIC_TABLE};
+use ramulus_core::metrics::{measure, Reading, METRIC_TABLE};
 use ramulus_core::network::{CellSet, Network, NetworkKind, Node, Segment};
 use ramulus_core::params::Params;
 use ramulus_core::record::{make_record, read_record, write_record};
@@ -113,7 +113,7 @@ fn the_pipeline_runs_on_a_looped_network() {
     assert!(view.forest.is_none());
     assert_eq!(view.table.len(), 5);
     assert!(view.table.width.iter().all(|&width| width > 0.0));
-    let rows = metrics_table(&view.metrics, "mm");
+    let rows = ramulus_draw::texts::readings_rows(&view.metrics, "mm");
     for entry in METRIC_TABLE.iter().filter(|entry| entry.key != "streams") {
         let label = entry.label;
         let row = rows

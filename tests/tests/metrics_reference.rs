@@ -1,7 +1,7 @@
 //! Reference tests of `ramulus_core::metrics` on hand-built networks: every expected value is
 //! derived by hand from a definition or a published result named beside the check.
 
-use ramulus_core::metrics::{measure, measure_with, metrics_table, Metrics};
+use ramulus_core::metrics::{measure, measure_with, Metrics};
 use ramulus_core::network::{CellSet, Network};
 use ramulus_core::segments::strahler_orders;
 use ramulus_tests::hand_built::{cells_where, network_of, node_at, symmetric_binary_tree};
@@ -715,14 +715,14 @@ fn table_rows() {
         ],
         5.0,
     );
-    let rows = metrics_table(&measured(&network, 0.5), "mm");
+    let rows = ramulus_draw::texts::readings_rows(&measured(&network, 0.5), "mm");
     let find = |label: &str| rows.iter().find(|row| row.0 == label).cloned();
     // Length 3 + 5 + 5 = 13 mm over 5 mm^2 = 2.6 mm/mm^2 (hand computation).
     assert_eq!(
         find("vein density"),
         Some((
             "vein density".to_string(),
-            "2.600".to_string(),
+            "2.6".to_string(),
             "mm/mm^2".to_string()
         ))
     );

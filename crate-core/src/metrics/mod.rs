@@ -30,7 +30,7 @@ mod tortuosity;
 mod transport;
 
 pub use table::{
-    metric_readme_table, metrics_csv, metrics_table, AppliesTo, MetricEntry, MetricUnit, Reading,
+    metric_readme_table, metric_rows, metrics_csv, AppliesTo, MetricEntry, MetricUnit, Reading,
     METRIC_TABLE,
 };
 

@@ -1,5 +1,5 @@
 //! The metric table (`METRIC_TABLE`): one entry per metric giving its key, label, unit,
-//! description and the network kinds it applies to. The readings (`metrics_table`), the CSV
+//! description and the network kinds it applies to. The readings (`metric_rows`), the CSV
 //! (`metrics_csv`) and README's metrics table (`metric_readme_table`) are all read from it.
 
 use super::{Metrics, StreamOrder, ANGLE_HISTOGRAM_BINS};
@@ -362,20 +362,24 @@ pub fn metric_readme_table() -> String {
 }
 
 /// Rows of (label, value text, unit text) describing `metrics`, one or more per entry of
-/// `METRIC_TABLE`, in its order.
+/// `METRIC_TABLE`, in its order, each number written by `format_number`.
 ///
 /// `units` is the network's length unit (`mm`, `m`, ...); an empty string is shown as `unit`.
-/// Values have four significant digits (scientific notation outside 0.001 to 1,000,000), counts
-/// are whole numbers, and undefined values, and values of metrics that do not apply to the
-/// network's kind, read `n/a`. Per-order rows follow the maximum Strahler order, lowest order
-/// first.
-pub fn metrics_table(metrics: &Metrics, units: &str) -> Vec<(String, String, String)> {
+/// Counts are whole numbers, and undefined values, and values of metrics that do not apply to
+/// the network's kind, read `n/a`. Per-order rows follow the maximum Strahler order, lowest
+/// order first. The readings people see format numbers in `ramulus-draw`; the CSV here writes
+/// them at full precision.
+pub fn metric_rows(
+    metrics: &Metrics,
+    units: &str,
+    format_number: fn(f64) -> String,
+) -> Vec<(String, String, String)> {
     rows(metrics, units, format_number)
 }
 
-/// The rows of `metrics_table` as CSV (RFC 4180: comma separated, CRLF line ends, fields with
+/// The rows of `metric_rows` as CSV (RFC 4180: comma separated, CRLF line ends, fields with
 /// a comma, quote or line break quoted), header `metric,value,unit`, with every value at full
-/// precision (shortest text that reads back to the same `f64`) instead of four digits. A
+/// precision (shortest text that reads back to the same `f64`). A
 /// `caution` (drainage sites) becomes a last row `caution,<text>,-`.
 pub fn metrics_csv(metrics: &Metrics, units: &str, caution: Option<&str>) -> String {
     let mut csv = String::from("metric,value,unit\r\n");
@@ -465,24 +469,6 @@ fn rows(
     rows
 }
 
-/// Four significant digits: fixed notation from 0.001 up to 1,000,000, scientific outside.
-fn format_number(value: f64) -> String {
-    if !value.is_finite() {
-        return UNDEFINED_TEXT.to_string();
-    }
-    if value == 0.0 {
-        return "0".to_string();
-    }
-    let magnitude = libm::fabs(value);
-    if (1e-3..1e6).contains(&magnitude) {
-        let digits_before_point = libm::floor(libm::log10(magnitude)) as i32 + 1;
-        let decimals = (4 - digits_before_point).max(0) as usize;
-        format!("{value:.decimals$}")
-    } else {
-        format!("{value:.3e}")
-    }
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -508,15 +494,13 @@ mod tests {
         assert_eq!(keys, fields);
     }
 
-    /// Four significant digits in fixed or scientific notation (the rule in the doc comment).
+    /// Full precision: the shortest text that reads back to the same `f64` (Rust's `Display`
+    /// for floats), and `n/a` for what is not a number.
     #[test]
-    fn number_text() {
-        assert_eq!(format_number(8.123456), "8.123");
-        assert_eq!(format_number(123.456), "123.5");
-        assert_eq!(format_number(0.0123456), "0.01235");
-        assert_eq!(format_number(12345.6), "12346");
-        assert_eq!(format_number(0.0), "0");
-        assert_eq!(format_number(2.5e7), "2.500e7");
+    fn csv_numbers_read_back_exactly() {
+        for value in [8.123456, 0.1 + 0.2, 2.5e7, 1e-300] {
+            assert_eq!(format_precise(value).parse::<f64>(), Ok(value));
+        }
         assert_eq!(format_precise(f64::NAN), "n/a");
     }
 }
