@@ -19,6 +19,9 @@ const state = {
   frame: null,
   presets: [],
   colours: null,
+  // The colour key on the page, as JSON: a key that has not changed is left in place, since
+  // rebuilding it at every redraw made the browser lay the page out again before the next.
+  shownLegend: null,
   /// The current run (the session's), for the page tests.
   get simulation() {
     return this.session?.simulation ?? null;
@@ -202,10 +205,13 @@ function showCaution(site) {
 
 /// The core's colour key of what the canvas shows: strokes, markers and labels.
 function showLegend() {
+  const items = state.simulation ? state.session.legend(view.colouring) : [];
+  const text = JSON.stringify(items);
+  if (text === state.shownLegend) return;
+  state.shownLegend = text;
   const legend = byId('legend');
   legend.replaceChildren();
-  if (!state.simulation) return;
-  for (const item of state.session.legend(view.colouring)) {
+  for (const item of items) {
     const entry = document.createElement('span');
     entry.className = 'swatch';
     for (const piece of item.pieces) {
