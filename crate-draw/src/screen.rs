@@ -38,8 +38,20 @@ pub struct ScreenGeometry {
     pub palette: Vec<[u8; 3]>,
     /// RGBA pixels of the last raster.
     pub pixels: Vec<u8>,
-    /// Entries in an order where neighbours lie close together, for `raster`.
-    pub draw_order: Vec<u32>,
+    /// What `raster` reads of every entry, in an order where neighbours lie close together:
+    /// one sequential read per line instead of three scattered ones.
+    pub draw_lines: Vec<DrawLine>,
+}
+
+/// One entry as `ScreenGeometry::raster` reads it.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct DrawLine {
+    /// `x0, y0, x1, y1`, physical units.
+    pub ends: [f32; 4],
+    /// Drawn width, physical units.
+    pub width: f32,
+    /// The entry's index (for its colour).
+    pub index: u32,
 }
 
 /// Cells per side of the grid that orders segments for drawing.
@@ -94,7 +106,16 @@ impl ScreenGeometry {
                 (ends[at + 1] as f64 + ends[at + 3] as f64) * 0.5,
             ]
         });
-        self.draw_order = spatial_order(midpoints, DRAW_ORDER_GRID);
+        let order = spatial_order(midpoints, DRAW_ORDER_GRID);
+        let (ends, widths) = (&self.ends, &self.widths);
+        self.draw_lines.extend(order.iter().filter_map(|&index| {
+            let at = index as usize;
+            Some(DrawLine {
+                ends: ends.get(4 * at..4 * at + 4)?.try_into().ok()?,
+                width: *widths.get(at)?,
+                index,
+            })
+        }));
     }
 
     /// Palette index of every segment: order `k` takes colour `min(k, 7) - 1`; flow takes
@@ -146,29 +167,26 @@ impl ScreenGeometry {
         fill(&mut self.pixels, background);
         self.colour_indices(colouring);
         let ScreenGeometry {
-            ends,
-            widths,
             colours,
             palette,
             pixels,
-            draw_order,
+            draw_lines: entries,
             ..
         } = self;
-        let lines = draw_order.iter().filter_map(|&index| {
-            let index = index as usize;
+        let lines = entries.iter().filter_map(|entry| {
             // Comparisons, not `max` and `min`: those are library calls on wasm32.
-            let scaled = widths[index] as f64 * view.scale;
+            let scaled = entry.width as f64 * view.scale;
             let px = if scaled > min_px { scaled } else { min_px };
             if px > max_px {
                 return None;
             }
-            let ends: [f32; 4] = ends.get(4 * index..4 * index + 4)?.try_into().ok()?;
-            let rgb = palette
-                .get(colours[index] as usize)
+            let rgb = colours
+                .get(entry.index as usize)
+                .and_then(|&colour| palette.get(colour as usize))
                 .copied()
                 .unwrap_or([0, 0, 0]);
             Some(Line {
-                ends,
+                ends: entry.ends,
                 rgb,
                 strength: if px < 1.0 { (px * 256.0) as u32 } else { 256 },
             })
@@ -233,7 +251,7 @@ impl ScreenGeometry {
         self.max_order = 0;
         self.segment_count = 0;
         self.colouring = None;
-        self.draw_order.clear();
+        self.draw_lines.clear();
     }
 }
 
@@ -277,6 +295,15 @@ mod tests {
         screen.fill(&network, &table);
         assert_eq!(screen.len(), 2);
         assert_eq!(screen.segment_count, 2);
+        // The raster's copy holds each entry once, with its own ends and width.
+        let mut copied: Vec<_> = screen.draw_lines.iter().map(|line| line.index).collect();
+        copied.sort_unstable();
+        assert_eq!(copied, [0, 1]);
+        for line in &screen.draw_lines {
+            let at = line.index as usize;
+            assert_eq!(line.ends[..], screen.ends[4 * at..4 * at + 4]);
+            assert_eq!(line.width, screen.widths[at]);
+        }
         assert_eq!(
             screen.colour_indices(Colouring::ByFlow),
             [(FLOW_RAMP_STEPS - 1) as u8, 0]
