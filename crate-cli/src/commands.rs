@@ -12,19 +12,29 @@ use ramulus_draw::{run_svg, Colouring};
 use serde_json::json;
 
 use crate::options::{assemble_params, CliError, GrowOptions, MeasureOptions, PresetsOptions};
+use crate::output::OutputPlan;
 
 fn read_text(path: &str) -> Result<String, CliError> {
     std::fs::read_to_string(path)
         .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))
 }
 
-fn write_file(path: &str, text: &str) -> Result<(), CliError> {
-    std::fs::write(path, text)
-        .map_err(|error| CliError::Failed(format!("{path}: cannot write: {error}")))
-}
-
 /// `ramulus grow`.
 pub fn grow(options: GrowOptions) -> Result<(), CliError> {
+    // Every output is checked against the inputs and the other outputs before any work.
+    let mut plan = OutputPlan::default();
+    if let Some(path) = &options.params_file {
+        plan.input("--params", path);
+    }
+    if let Some(path) = &options.mask_file {
+        plan.input("--mask", path);
+    }
+    if let Some(path) = &options.record_file {
+        plan.output("--record", path)?;
+    }
+    if let Some(path) = &options.svg_file {
+        plan.output("--svg", path)?;
+    }
     let file_text = match &options.params_file {
         Some(path) => Some((path.as_str(), read_text(path)?)),
         None => None,
@@ -73,12 +83,14 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     })?;
     if let Some(path) = &options.record_file {
         let record = make_record(&view, &params, Some(stopped.name().to_string()));
-        write_file(path, &write_record(&record))?;
+        plan.stage(path, &write_record(&record))?;
     }
     if let Some(path) = &options.svg_file {
         let svg = run_svg(&view, &params, colour);
-        write_file(path, &svg)?;
+        plan.stage(path, &svg)?;
     }
+    // Only now, with every output written in full beside its target, are they put in place.
+    plan.commit()?;
     if options.json {
         let output = json!({
             "digest": view.digest,

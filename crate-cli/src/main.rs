@@ -1,18 +1,18 @@
 //! The `ramulus` command line: reads arguments (with clap), reads and writes files, and hands
 //! everything else to `ramulus-core`. Only this crate turns errors into messages and exit codes.
 
-/// Prints a line on stdout, ignoring a closed pipe (e.g. `ramulus grow | head`) instead of
-/// panicking.
+/// Prints a line on stdout; a closed pipe (e.g. `ramulus grow | head`) is not an error, any other
+/// failure to write makes the command fail (see `output::say_line`).
 macro_rules! say {
-    ($($argument:tt)*) => {{
-        use std::io::Write as _;
-        let _ = writeln!(std::io::stdout(), $($argument)*);
-    }};
+    ($($argument:tt)*) => {
+        crate::output::say_line(format_args!($($argument)*))
+    };
 }
 
 mod bench;
 mod commands;
 mod options;
+mod output;
 
 use std::process::ExitCode;
 
@@ -61,6 +61,10 @@ fn main() -> ExitCode {
         Command::Bench(options) => bench::run(options),
     };
     match outcome {
+        Ok(()) if output::stdout_failed() => {
+            eprintln!("ramulus: cannot write standard output (is the disk full?)");
+            ExitCode::from(1)
+        }
         Ok(()) => ExitCode::SUCCESS,
         Err(CliError::Usage(message)) => {
             eprintln!("ramulus: {message}\n\n(`ramulus help` lists the commands and options)");

@@ -604,3 +604,152 @@ fn several_records_with_a_bad_one_print_nothing() {
         assert!(outcome.stdout.is_empty(), "stdout: {}", outcome.stdout);
     }
 }
+
+/// Rule: files are written whole or not at all. A run whose second output cannot be written
+/// fails (exit 1) and leaves the record it would have replaced byte for byte as it was.
+#[test]
+fn a_failed_output_leaves_every_existing_file_as_it_was() {
+    let record = TempFile::new("kept", "json");
+    let first = ramulus(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--set",
+        "cells=300",
+        "--record",
+        record.path(),
+    ]);
+    assert!(first.success, "{}", first.stderr);
+    let before = std::fs::read(record.path()).expect("the first record exists");
+    let missing_folder = temp_path("no-such-folder", "d");
+    let svg = missing_folder.join("x.svg");
+    let outcome = ramulus(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--set",
+        "cells=500",
+        "--record",
+        record.path(),
+        "--svg",
+        svg.to_str().expect("UTF-8"),
+    ]);
+    check_failure(&outcome, &["x.svg", "cannot write"]);
+    assert_eq!(outcome.code, Some(1));
+    assert_eq!(std::fs::read(record.path()).expect("still there"), before);
+    assert!(!svg.exists());
+}
+
+/// Rule: an output may not name an input or another output (it would be overwritten, or two
+/// outputs would overwrite each other); the run is refused as wrong usage before anything is
+/// written, and the named file keeps its contents.
+#[test]
+fn an_output_naming_an_input_or_another_output_is_refused() {
+    let params = TempFile::new("params", "json");
+    std::fs::write(params.path(), r#"{"cells": 200}"#).expect("writable temp dir");
+    let outcome = ramulus(&["grow", "--params", params.path(), "--record", params.path()]);
+    check_failure(&outcome, &["--record", "--params"]);
+    assert_eq!(outcome.code, Some(2));
+    assert_eq!(
+        std::fs::read_to_string(params.path()).expect("still there"),
+        r#"{"cells": 200}"#
+    );
+
+    let both = TempFile::new("both", "out");
+    // The same file through two spellings of its path.
+    let folder = both.0.parent().expect("a folder").to_str().expect("UTF-8");
+    let name = both.0.file_name().expect("a name").to_str().expect("UTF-8");
+    let other_spelling = format!("{folder}/./{name}");
+    let outcome = ramulus(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--record",
+        both.path(),
+        "--svg",
+        &other_spelling,
+    ]);
+    check_failure(&outcome, &["--svg", "--record"]);
+    assert_eq!(outcome.code, Some(2));
+    assert!(
+        !both.0.exists(),
+        "nothing is written when the outputs collide"
+    );
+}
+
+/// Rule: output that cannot be written is an error. Printing to a full device (`/dev/full`
+/// fails every write with ENOSPC on Linux) exits 1 and says so; it never reports success.
+#[test]
+fn a_full_standard_output_fails_the_run() {
+    let Ok(full) = std::fs::OpenOptions::new().write(true).open("/dev/full") else {
+        return; // not Linux: no device that is always full
+    };
+    for arguments in [
+        &[
+            "grow",
+            "--preset",
+            "spanning-tree",
+            "--set",
+            "cells=200",
+            "--json",
+        ][..],
+        &["presets"][..],
+    ] {
+        let output = Command::new(env!("CARGO_BIN_EXE_ramulus"))
+            .args(arguments)
+            .stdout(full.try_clone().expect("a second handle"))
+            .output()
+            .expect("the ramulus binary runs");
+        let stderr = String::from_utf8_lossy(&output.stderr);
+        assert_eq!(output.status.code(), Some(1), "{arguments:?}: {stderr}");
+        assert!(stderr.contains("standard output"), "{stderr}");
+        assert!(!stderr.contains("panicked"), "{stderr}");
+    }
+}
+
+/// Rule: two runs writing the same record at once leave one whole record, the one or the other,
+/// never a mixture (each run renames a finished file into place).
+#[test]
+fn two_runs_writing_one_record_leave_a_whole_record() {
+    let record = TempFile::new("raced", "json");
+    for round in 0..6 {
+        let start = |seed: u32| {
+            Command::new(env!("CARGO_BIN_EXE_ramulus"))
+                .args(["grow", "--preset", "spanning-tree", "--set", "cells=2000"])
+                .args([
+                    "--set",
+                    &format!("seed={seed}"),
+                    "--json",
+                    "--record",
+                    record.path(),
+                ])
+                .output()
+        };
+        let (one, two) = std::thread::scope(|scope| {
+            let one = scope.spawn(|| start(2 * round + 1));
+            let two = scope.spawn(|| start(2 * round + 2));
+            (one.join(), two.join())
+        });
+        let digests: Vec<String> = [one, two]
+            .into_iter()
+            .map(|run| {
+                let output = run.expect("no panic").expect("the binary runs");
+                assert!(output.status.success());
+                single_json(&String::from_utf8_lossy(&output.stdout))["digest"]
+                    .as_str()
+                    .expect("a digest")
+                    .to_string()
+            })
+            .collect();
+        let measured = ramulus(&["measure", record.path(), "--json"]);
+        assert!(measured.success, "round {round}: {}", measured.stderr);
+        let digest = single_json(&measured.stdout)["digest"]
+            .as_str()
+            .expect("a digest")
+            .to_string();
+        assert!(
+            digests.contains(&digest),
+            "round {round}: {digest} not in {digests:?}"
+        );
+    }
+}
