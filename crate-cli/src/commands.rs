@@ -171,7 +171,14 @@ fn measure_record(path: &str) -> Result<Measured, CliError> {
 
 /// The JSON object of one measured record (the whole output when one file is given).
 fn measured_json(measured: &Measured) -> serde_json::Value {
-    json!({ "digest": measured.digest, "segments": measured.segments, "total_length": measured.metrics.total_length, "metrics": measured.metrics })
+    json!({
+        "digest": measured.digest,
+        "stored_digest": measured.stored_digest,
+        "digest_matches": measured.digest == measured.stored_digest,
+        "segments": measured.segments,
+        "total_length": measured.metrics.total_length,
+        "metrics": measured.metrics,
+    })
 }
 
 /// `ramulus measure RECORD.json...`: measures every file; if any fails, names each failing
@@ -196,6 +203,16 @@ pub fn measure(options: MeasureOptions) -> Result<(), CliError> {
                 failures.join("\n  ")
             )
         }));
+    }
+    for one in measured
+        .iter()
+        .filter(|one| one.digest != one.stored_digest)
+    {
+        eprintln!(
+            "warning: {}: the network's digest {} differs from the digest {} stored in the \
+             record: it was edited or damaged after it was written, or not written by this tool",
+            one.path, one.digest, one.stored_digest
+        );
     }
     if options.json {
         let output = match measured.as_slice() {

@@ -105,8 +105,9 @@ const MEASURE_NOTES: &str = "\
 Several files are all measured, in the order given; if any one cannot be read or measured,
 each failing file is named on stderr and nothing is printed on stdout (exit 1).
 
-With --json and one file, stdout holds one object: digest, segments, total_length (in the
-record's units) and metrics. With several files it holds one object {\"records\": [...]} with
+With --json and one file, stdout holds one object: digest (recomputed), stored_digest (as
+written in the record), digest_matches, segments, total_length (in the record's units) and
+metrics. A record whose stored digest differs is also named in a warning on stderr. With several files it holds one object {\"records\": [...]} with
 one such object per file, in the order given, each with its `file` added.";
 
 /// Options of `ramulus presets`.

@@ -517,8 +517,8 @@ fn grow_records(presets: &[&str]) -> Vec<(TempFile, Value)> {
 }
 
 /// One record measured with `--json` keeps the shape it had before several files were
-/// accepted: exactly the keys digest, segments, total_length and metrics (compatibility pin
-/// of the key names, not of values).
+/// accepted: the keys digest, segments, total_length and metrics (compatibility pin of the key
+/// names, not of values), plus the stored digest and whether it matches.
 #[test]
 fn measuring_one_record_keeps_its_json_shape() {
     let records = grow_records(&["spanning-tree"]);
@@ -533,8 +533,42 @@ fn measuring_one_record_keeps_its_json_shape() {
         .map(String::as_str)
         .collect();
     keys.sort_unstable();
-    assert_eq!(keys, ["digest", "metrics", "segments", "total_length"]);
+    assert_eq!(
+        keys,
+        [
+            "digest",
+            "digest_matches",
+            "metrics",
+            "segments",
+            "stored_digest",
+            "total_length"
+        ]
+    );
     assert_eq!(value["digest"], grown["digest"]);
+    assert_eq!(value["stored_digest"], grown["digest"]);
+    assert_eq!(value["digest_matches"], true);
+}
+
+/// A record whose stored digest no longer fits its network (edited by hand, damaged) is
+/// flagged: `digest_matches` is false, and stderr names the file and both digests.
+#[test]
+fn a_record_with_a_wrong_stored_digest_is_flagged() {
+    let records = grow_records(&["spanning-tree"]);
+    let (record, grown) = &records[0];
+    let real = grown["digest"].as_str().expect("a digest");
+    let text = std::fs::read_to_string(record.path()).expect("the record");
+    let edited = text.replacen(real, "0123456789abcdef", 1);
+    assert_ne!(edited, text);
+    std::fs::write(record.path(), edited).expect("writable");
+    let outcome = ramulus(&["measure", record.path(), "--json"]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    let value = single_json(&outcome.stdout);
+    assert_eq!(value["digest"], real);
+    assert_eq!(value["stored_digest"], "0123456789abcdef");
+    assert_eq!(value["digest_matches"], false);
+    for mention in [record.path(), real, "0123456789abcdef"] {
+        assert!(outcome.stderr.contains(mention), "{}", outcome.stderr);
+    }
 }
 
 /// Several records are all measured, in the order given: `--json` prints one object whose
