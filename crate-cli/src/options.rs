@@ -168,6 +168,11 @@ pub fn assemble_params(
         _ => Map::new(),
     };
     if let Some((path, text)) = file_text {
+        // A UTF-8 byte-order mark (some editors write one) is not part of the JSON.
+        let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+        for (key, count) in repeated_keys(text) {
+            eprintln!("warning: {path}: key `{key}` is given {count} times; the last one is used");
+        }
         let value: Value = serde_json::from_str(text).map_err(|error| {
             CliError::Failed(format!(
                 "{path}: not valid JSON at line {} column {}: {error}",
@@ -199,4 +204,47 @@ pub fn assemble_params(
         .validate()
         .map_err(|error| CliError::Failed(error.to_string()))?;
     Ok(params)
+}
+
+/// Top-level keys that a JSON object gives more than once, with their counts, in first-seen
+/// order (JSON readers keep the last value of a repeated key, RFC 8259 section 4, so the
+/// earlier ones would be dropped without a word). Empty for text that is not an object.
+fn repeated_keys(text: &str) -> Vec<(String, usize)> {
+    struct Keys(Vec<String>);
+    impl<'de> serde::Deserialize<'de> for Keys {
+        fn deserialize<D: serde::Deserializer<'de>>(deserializer: D) -> Result<Keys, D::Error> {
+            struct Visitor;
+            impl<'de> serde::de::Visitor<'de> for Visitor {
+                type Value = Keys;
+                fn expecting(&self, formatter: &mut std::fmt::Formatter) -> std::fmt::Result {
+                    formatter.write_str("a JSON object")
+                }
+                fn visit_map<A: serde::de::MapAccess<'de>>(
+                    self,
+                    mut map: A,
+                ) -> Result<Keys, A::Error> {
+                    let mut keys = Vec::new();
+                    while let Some((key, serde::de::IgnoredAny)) = map.next_entry::<String, _>()? {
+                        keys.push(key);
+                    }
+                    Ok(Keys(keys))
+                }
+            }
+            deserializer.deserialize_map(Visitor)
+        }
+    }
+    let Ok(Keys(keys)) = serde_json::from_str::<Keys>(text) else {
+        return Vec::new();
+    };
+    let mut counts: std::collections::HashMap<&str, usize> = std::collections::HashMap::new();
+    for key in &keys {
+        *counts.entry(key.as_str()).or_insert(0) += 1;
+    }
+    let mut repeated = Vec::new();
+    for key in &keys {
+        if let Some(count) = counts.remove(key.as_str()).filter(|&count| count > 1) {
+            repeated.push((key.clone(), count));
+        }
+    }
+    repeated
 }

@@ -787,3 +787,40 @@ fn two_runs_writing_one_record_leave_a_whole_record() {
         );
     }
 }
+
+/// Rule (RFC 8259, section 4: names within an object should be unique, and readers differ on
+/// repeated ones): a parameter file that repeats a key is read with the last value, as JSON
+/// readers commonly do, and the repetition is named on stderr instead of passing silently. A
+/// UTF-8 byte-order mark before the JSON is skipped.
+#[test]
+fn a_repeated_key_in_a_parameter_file_is_named_and_a_byte_order_mark_is_skipped() {
+    let params = TempFile::new("repeated", "json");
+    std::fs::write(
+        params.path(),
+        "\u{feff}{\"cells\": 300, \"seed\": 4, \"cells\": 200, \"cells\": 100}",
+    )
+    .expect("writable temp dir");
+    let outcome = ramulus(&["grow", "--params", params.path(), "--json"]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    assert!(
+        outcome.stderr.contains("`cells` is given 3 times"),
+        "{}",
+        outcome.stderr
+    );
+    assert!(!outcome.stderr.contains("`seed`"), "{}", outcome.stderr);
+    assert_eq!(single_json(&outcome.stdout)["cells"], 100);
+}
+
+/// Record versions start at 1: version 0 is named as not existing, not as "newer".
+#[test]
+fn record_version_zero_is_named_as_not_existing() {
+    let record = TempFile::new("version-zero", "json");
+    std::fs::write(
+        record.path(),
+        r#"{"format": "ramulus-run", "version": 0, "digest": "0", "units": "mm", "area": 1, "nodes": []}"#,
+    )
+    .expect("writable temp dir");
+    let outcome = ramulus(&["measure", record.path()]);
+    check_failure(&outcome, &[record.path(), "version 0 does not exist"]);
+    assert!(!outcome.stderr.contains("newer"), "{}", outcome.stderr);
+}

@@ -100,11 +100,22 @@ impl std::fmt::Display for RecordError {
         match self {
             RecordError::Json(message) => write!(f, "not a readable run record: {message}"),
             RecordError::Format(format) => {
+                let shown: String = format.chars().take(40).collect();
+                let more = if shown.len() < format.len() {
+                    "..."
+                } else {
+                    ""
+                };
                 write!(
                     f,
-                    "field `format` is {format:?}, expected {RECORD_FORMAT:?}"
+                    "field `format` is {shown:?}{more}, expected {RECORD_FORMAT:?}"
                 )
             }
+            RecordError::Version(0) => write!(
+                f,
+                "record version 0 does not exist; versions start at 1 (this build reads 1 to \
+                 {RECORD_VERSION})"
+            ),
             RecordError::Version(version) => write!(
                 f,
                 "record version {version} is newer than this build reads (up to {RECORD_VERSION})"
@@ -207,6 +218,8 @@ fn json_error(error: serde_json::Error) -> RecordError {
 /// caller to recompute from it). A version-1 record comes back converted to version 2; its
 /// nodes must form a forest. A version-2 record may hold loops.
 pub fn read_record(text: &str) -> Result<(RunRecord, Network), RecordError> {
+    // A UTF-8 byte-order mark (some editors write one) is not part of the JSON.
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
     let header: RecordHeader = serde_json::from_str(text).map_err(json_error)?;
     if header.format != RECORD_FORMAT {
         return Err(RecordError::Format(header.format));

@@ -232,6 +232,8 @@ pub const UNITS: [&str; 5] = ["um", "mm", "cm", "m", "ft"];
 impl Params {
     /// Parses parameters from JSON text; unknown keys and wrong types are errors naming the key.
     pub fn from_json(text: &str) -> Result<Params, ParamError> {
+        // A UTF-8 byte-order mark (some editors write one) is not part of the JSON.
+        let text = text.strip_prefix('\u{feff}').unwrap_or(text);
         let value: serde_json::Value = serde_json::from_str(text).map_err(|error| ParamError {
             key: "(json)".to_string(),
             value: format!("line {} column {}", error.line(), error.column()),
@@ -404,7 +406,7 @@ pub(crate) fn check_polygon(key: &str, points: &[[f64; 2]]) -> Result<(), ParamE
 }
 
 /// Shortens a value for an error message.
-fn short_text(text: &str) -> String {
+pub(crate) fn short_text(text: &str) -> String {
     if text.chars().count() <= 60 {
         return text.to_string();
     }

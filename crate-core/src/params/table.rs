@@ -661,7 +661,7 @@ impl ParamSpec {
         match self.access {
             Access::Units(get, _) if !UNITS.contains(&get(params).as_str()) => Err(ParamError {
                 key: self.key.into(),
-                value: format!("{:?}", get(params)),
+                value: super::short_text(&format!("{:?}", get(params))),
                 allowed: format!("one of {}", UNITS.join(", ")),
             }),
             Access::Roots(get, _) => check_roots(params, get(params)),
