@@ -13,6 +13,7 @@
 use crate::limits::MAX_CELLS;
 use crate::params::table::{parameter, parameters};
 use crate::params::Params;
+use crate::region::{allowed_cells, check_start};
 
 /// The link format version this build writes.
 pub const LINK_VERSION: u32 = 1;
@@ -106,6 +107,7 @@ pub fn decode_link(text: &str) -> LinkRead {
     }
     cap_cell_budget(&mut params, &mut problems);
     repair(&mut params, &mut problems);
+    repair_start(&mut params, &mut problems);
     LinkRead {
         params,
         version,
@@ -189,6 +191,44 @@ fn repair(params: &mut Params, problems: &mut Vec<LinkProblem>) {
             "(all)",
             "",
             "the fields do not fit together; every default used",
+        ));
+    }
+}
+
+/// Resets the region and then the roots, reporting each, until the run can start (every root
+/// on an allowed cell of its own, at least one allowed cell): parameters that validate may
+/// still place a root inside an obstacle or leave no cell to grow in.
+fn repair_start(params: &mut Params, problems: &mut Vec<LinkProblem>) {
+    let defaults = version_1_defaults();
+    for key in ["obstacles", "outline", "mask", "roots"] {
+        let Err(error) = check_start(params, &allowed_cells(params)) else {
+            return;
+        };
+        let is_region_error = !error.allowed.contains("already taken");
+        if key != "roots" && !is_region_error {
+            continue;
+        }
+        let value = field_text(params, key).unwrap_or_default();
+        let default = field_text(&defaults, key).unwrap_or_default();
+        if value == default {
+            continue;
+        }
+        let _ = set_field(params, key, &default);
+        problems.push(problem(
+            key,
+            &value,
+            &format!(
+                "the run cannot start: {} ({}); default {default} used",
+                error.allowed, error.key
+            ),
+        ));
+    }
+    if check_start(params, &allowed_cells(params)).is_err() || params.validate().is_err() {
+        *params = defaults;
+        problems.push(problem(
+            "(all)",
+            "",
+            "the run cannot start with these fields; every default used",
         ));
     }
 }

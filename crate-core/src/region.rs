@@ -2,7 +2,7 @@
 //! obstacles of a `Params`; `point_in_polygon` is the even-odd test they use.
 
 use crate::mask::MaskGrid;
-use crate::params::Params;
+use crate::params::{ParamError, Params};
 
 /// Whether point `(x, y)` lies inside the polygon (even-odd rule).
 pub fn point_in_polygon(x: f64, y: f64, polygon: &[[f64; 2]]) -> bool {
@@ -39,6 +39,41 @@ pub fn allowed_cells(params: &Params) -> Vec<bool> {
         fill_polygon(&mut allowed, width, height, obstacle, true);
     }
     allowed
+}
+
+/// Whether a run of validated `params` can start on its `allowed` cells: at least one allowed
+/// cell, and every root on an allowed cell of its own. The error names the root or region.
+pub fn check_start(params: &Params, allowed: &[bool]) -> Result<(), ParamError> {
+    if !allowed.iter().any(|&cell| cell) {
+        return Err(ParamError {
+            key: "outline / mask / obstacles".into(),
+            value: "no allowed cell".into(),
+            allowed: "a region with at least one allowed cell".into(),
+        });
+    }
+    let width = params.domain.width as usize;
+    let cell_of = |x: u32, y: u32| y as usize * width + x as usize;
+    for (index, root) in params.domain.roots.iter().enumerate() {
+        let cell = cell_of(root.x, root.y);
+        if !allowed.get(cell).copied().unwrap_or(false) {
+            return Err(ParamError {
+                key: format!("roots[{index}]"),
+                value: format!("cell ({}, {})", root.x, root.y),
+                allowed: "a cell inside the outline and mask and outside obstacles".into(),
+            });
+        }
+        let taken = params.domain.roots[..index]
+            .iter()
+            .any(|earlier| cell_of(earlier.x, earlier.y) == cell);
+        if taken {
+            return Err(ParamError {
+                key: format!("roots[{index}]"),
+                value: format!("cell ({}, {})", root.x, root.y),
+                allowed: "a cell not already taken by another root".into(),
+            });
+        }
+    }
+    Ok(())
 }
 
 /// Clears cells outside (`inside_clears == false`) or inside (`true`) the polygon.

@@ -23,9 +23,16 @@ proptest! {
 
     /// Round trip to the bit, every field drawn from the parameter table: `PartialEq` on the
     /// whole `Params`, and `same_bits` also tells -0.0 from 0.0 (rapier's determinism habit).
+    /// Parameters that validate but cannot start a run (a root in an obstacle, no allowed
+    /// cell) are repaired instead, and the repair is reported.
     #[test]
     fn every_valid_parameter_set_round_trips_through_a_link(params in any_valid_params()) {
         let read = decode_link(&encode_link(&params));
+        if ramulus_core::growth::Growth::new(&params).is_err() {
+            prop_assert!(!read.problems.is_empty());
+            prop_assert!(ramulus_core::growth::Growth::new(&read.params).is_ok());
+            return Ok(());
+        }
         prop_assert_eq!(&read.problems, &Vec::new());
         prop_assert_eq!(&read.params, &params);
         prop_assert!(same_bits(&read.params, &params), "{:?}", read.params);
@@ -37,6 +44,7 @@ proptest! {
     fn arbitrary_text_reads_into_valid_parameters(text in ".{0,300}") {
         let read = decode_link(&text);
         prop_assert!(read.params.validate().is_ok());
+        prop_assert!(ramulus_core::growth::Growth::new(&read.params).is_ok());
     }
 
     #[test]

@@ -19,7 +19,7 @@ use rand_core::{RngCore, SeedableRng};
 
 use crate::network::{segments_from_parents, CellSet, Network, Node, NO_PARENT};
 use crate::params::{Joining, ParamError, Params};
-use crate::region::allowed_cells;
+use crate::region::{allowed_cells, check_start};
 use cost::{marginal, Anchor, CostModel};
 use frontier::{Attachment, Frontier, Slot, NONE};
 use lattice::{Lattice, BLOCKED, FREE, FRONTIER_TAG};
@@ -102,13 +102,7 @@ impl Growth {
     pub fn new(params: &Params) -> Result<Growth, ParamError> {
         params.validate()?;
         let allowed = allowed_cells(params);
-        if !allowed.iter().any(|&cell| cell) {
-            return Err(ParamError {
-                key: "outline / mask / obstacles".into(),
-                value: "no allowed cell".into(),
-                allowed: "a region with at least one allowed cell".into(),
-            });
-        }
+        check_start(params, &allowed)?;
         let lattice = Lattice::new(params, &allowed);
         let mut random = ChaCha8Rng::seed_from_u64(params.run.seed);
         random.set_stream(1);
