@@ -46,26 +46,25 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
         }
         read.params
     });
-    let mut params = assemble_params(
+    let mask = match &options.mask_file {
+        Some(path) => {
+            let bytes = std::fs::read(path)
+                .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))?;
+            let mask = mask_from_bytes(&bytes)
+                .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+            Some((path.as_str(), mask))
+        }
+        None => None,
+    };
+    let params = assemble_params(
         link_params,
         options.preset.as_deref(),
         file_text
             .as_ref()
             .map(|(path, text)| (*path, text.as_str())),
         &options.sets,
+        mask,
     )?;
-    if let Some(path) = &options.mask_file {
-        let bytes = std::fs::read(path)
-            .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))?;
-        let mask = mask_from_bytes(&bytes)
-            .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
-        params.domain.width = mask.width;
-        params.domain.height = mask.height;
-        params.domain.mask = Some(mask);
-        params
-            .validate()
-            .map_err(|error| CliError::Failed(format!("with mask {path}: {error}")))?;
-    }
     let colour = match options.colour.as_deref() {
         None | Some("order") => Colouring::ByOrder,
         Some("flow") => Colouring::ByFlow,

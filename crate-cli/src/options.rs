@@ -3,6 +3,7 @@
 //! parameter assembly from a preset, a parameter file and `--set` overrides.
 
 use clap::Args;
+use ramulus_core::mask::MaskGrid;
 use ramulus_core::params::Params;
 use ramulus_core::presets::preset;
 use serde_json::{Map, Value};
@@ -141,12 +142,15 @@ fn key_equals_value(text: &str) -> Result<String, String> {
 }
 
 /// Assembles parameters: a link's parameters, or a preset (or defaults when a file is given),
-/// then file keys, then `--set`s.
+/// then file keys, then `--set`s, then the image mask `(path, mask)`, whose size is the
+/// lattice's: a `--set` of `width` or `height` that disagrees with it is refused, and
+/// everything is validated only once the mask has set the size.
 pub fn assemble_params(
     link_params: Option<Params>,
     preset_name: Option<&str>,
     file_text: Option<(&str, &str)>,
     sets: &[String],
+    mask: Option<(&str, MaskGrid)>,
 ) -> Result<Params, CliError> {
     let base = match (preset_name, file_text) {
         _ if link_params.is_some() => link_params.unwrap_or_default(),
@@ -197,6 +201,26 @@ pub fn assemble_params(
         };
         let value = serde_json::from_str(text).unwrap_or_else(|_| Value::String(text.to_string()));
         object.insert(key.trim().to_string(), value);
+    }
+    if let Some((path, mask)) = mask {
+        for (key, size) in [("width", mask.width), ("height", mask.height)] {
+            let set = sets.iter().rev().find_map(|set| {
+                let (set_key, text) = set.split_once('=')?;
+                (set_key.trim() == key).then_some(text)
+            });
+            if let Some(text) = set.filter(|text| text.trim() != size.to_string()) {
+                return Err(CliError::Usage(format!(
+                    "`--set {key}={text}` disagrees with --mask {path}, which is {} x {} \
+                     cells (one pixel a cell sets the lattice size); leave out the --set",
+                    mask.width, mask.height
+                )));
+            }
+            object.insert(key.to_string(), Value::from(size));
+        }
+        object.insert(
+            "mask".to_string(),
+            serde_json::to_value(&mask).unwrap_or(Value::Null),
+        );
     }
     let params = Params::from_json_value(Value::Object(object))
         .map_err(|error| CliError::Failed(error.to_string()))?;

@@ -824,3 +824,61 @@ fn record_version_zero_is_named_as_not_existing() {
     check_failure(&outcome, &[record.path(), "version 0 does not exist"]);
     assert!(!outcome.stderr.contains("newer"), "{}", outcome.stderr);
 }
+
+/// A plain PBM (Netpbm P1, Poskanzer's format: "1" is black) of `width` x `height` black
+/// pixels, i.e. every cell allowed.
+fn all_black_pbm(width: usize, height: usize) -> String {
+    let row = vec!["1"; width].join(" ");
+    format!("P1\n{width} {height}\n{}\n", vec![row; height].join("\n"))
+}
+
+/// Rule: the mask's pixels are the lattice's cells, so its size is the lattice size. Roots are
+/// checked against that size (not the preset's), and a `--set width` or `height` that
+/// disagrees with the image is refused as wrong usage, naming both, instead of being dropped.
+#[test]
+fn the_mask_sets_the_lattice_before_roots_are_checked_and_a_clashing_size_is_refused() {
+    let mask = TempFile::new("wide", "pbm");
+    std::fs::write(mask.path(), all_black_pbm(200, 20)).expect("writable temp dir");
+    // x = 150 lies outside the spanning-tree preset's lattice but inside the 200-wide mask.
+    let root = r#"roots=[{"x":150,"y":10,"outflow":[0,1]}]"#;
+    let outcome = ramulus(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--set",
+        root,
+        "--set",
+        "cells=50",
+        "--mask",
+        mask.path(),
+        "--json",
+    ]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    assert_eq!(single_json(&outcome.stdout)["cells"], 50);
+
+    let outcome = ramulus(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--set",
+        "width=50",
+        "--mask",
+        mask.path(),
+    ]);
+    check_failure(&outcome, &["--set width=50", mask.path(), "200 x 20"]);
+    assert_eq!(outcome.code, Some(2));
+    // The size the image has may be given too.
+    let outcome = ramulus(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--set",
+        "width=200",
+        "--set",
+        "cells=30",
+        "--mask",
+        mask.path(),
+        "--json",
+    ]);
+    assert!(outcome.success, "{}", outcome.stderr);
+}
