@@ -876,6 +876,8 @@ fn the_mask_sets_the_lattice_before_roots_are_checked_and_a_clashing_size_is_ref
         "width=200",
         "--set",
         "cells=30",
+        "--set",
+        root,
         "--mask",
         mask.path(),
         "--json",
