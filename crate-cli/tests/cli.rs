@@ -884,3 +884,25 @@ fn the_mask_sets_the_lattice_before_roots_are_checked_and_a_clashing_size_is_ref
     ]);
     assert!(outcome.success, "{}", outcome.stderr);
 }
+
+/// README's example with the shipped example files runs as written: the oval mask sets a
+/// 64 x 48 lattice and the run fills its budget inside it.
+#[test]
+fn the_readme_example_files_grow() {
+    let examples = concat!(env!("CARGO_MANIFEST_DIR"), "/../examples");
+    let outcome = ramulus(&[
+        "grow",
+        "--params",
+        &format!("{examples}/oval-leaf.json"),
+        "--mask",
+        &format!("{examples}/oval.pbm"),
+        "--json",
+    ]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    let value = single_json(&outcome.stdout);
+    assert_eq!(value["cells"], 2000);
+    assert!(value["link"]
+        .as_str()
+        .expect("a link")
+        .contains("width=64&height=48"));
+}
