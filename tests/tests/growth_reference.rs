@@ -265,16 +265,8 @@ fn prim_on_scattered_masks_matches_minimum_spanning_tree() {
                 let roots = vec![root_at(width / 3, height / 2)];
                 let density = 0.55 + 0.1 * (mask_seed % 3) as f64;
                 let mask = scattered_mask(width, height, density, mask_seed, &roots);
-                let params = {
-                    let base = prim_params(width, height, radius, roots);
-                    Params {
-                        domain: Domain {
-                            mask: Some(mask),
-                            ..base.domain
-                        },
-                        ..base
-                    }
-                };
+                let mut params = prim_params(width, height, radius, roots);
+                params.domain.mask = Some(mask);
                 if check_prim(
                     &format!("{width}x{height} radius {radius} mask seed {mask_seed}"),
                     &params,
@@ -318,18 +310,10 @@ fn prim_around_obstacles_matches_minimum_spanning_tree() {
         check_prim(&format!("obstacles radius {radius}"), &params);
         // A diagonal outline and a sliver obstacle that the radius-1 rule cannot cross.
         let roots = vec![root_at(20, 30)];
-        let params = {
-            let base = prim_params(40, 40, radius, roots.clone());
-            Params {
-                domain: Domain {
-                    mask: Some(scattered_mask(40, 40, 0.7, 93, &roots)),
-                    outline: Some(vec![[1.0, 40.0], [20.0, 0.5], [39.0, 40.0]]),
-                    obstacles: vec![vec![[8.0, 20.2], [32.0, 20.2], [32.0, 20.8], [8.0, 20.8]]],
-                    ..base.domain
-                },
-                ..base
-            }
-        };
+        let mut params = prim_params(40, 40, radius, roots.clone());
+        params.domain.mask = Some(scattered_mask(40, 40, 0.7, 93, &roots));
+        params.domain.outline = Some(vec![[1.0, 40.0], [20.0, 0.5], [39.0, 40.0]]);
+        params.domain.obstacles = vec![vec![[8.0, 20.2], [32.0, 20.2], [32.0, 20.8], [8.0, 20.8]]];
         let cut_off = check_prim(&format!("triangle radius {radius}"), &params);
         // The sliver blocks row 20 across the whole triangle: only a reach of 2 cells jumps it.
         assert_eq!(
@@ -352,16 +336,8 @@ fn prim_with_several_roots_matches_contracted_minimum_spanning_tree() {
                 root_at(width / 2, height - 1),
             ];
             let mask = scattered_mask(width, height, 0.62, mask_seed, &roots);
-            let params = {
-                let base = prim_params(width, height, radius, roots);
-                Params {
-                    domain: Domain {
-                        mask: Some(mask),
-                        ..base.domain
-                    },
-                    ..base
-                }
-            };
+            let mut params = prim_params(width, height, radius, roots);
+            params.domain.mask = Some(mask);
             check_prim(
                 &format!("{width}x{height} radius {radius} three roots, mask {mask_seed}"),
                 &params,

@@ -4,7 +4,7 @@
 
 use ramulus_core::growth::Growth;
 use ramulus_core::mask::MaskGrid;
-use ramulus_core::params::{CostWeights, Domain, RunControl, Widths};
+use ramulus_core::params::{Domain, RunControl, Widths};
 use ramulus_core::params::{ParamError, Params, Root};
 
 /// The error `Growth::new` gives, failing the test when the parameters are accepted.
@@ -174,29 +174,13 @@ fn negative_weights_are_rejected() {
 #[test]
 fn alpha_outside_zero_one_is_rejected() {
     for value in [-0.1, 1.5, 2.0] {
-        let params = {
-            let base = small();
-            Params {
-                costs: CostWeights {
-                    alpha: value,
-                    ..base.costs
-                },
-                ..base
-            }
-        };
+        let mut params = small();
+        params.costs.alpha = value;
         check_error(&rejected(&params), "alpha", &[&value.to_string(), "0", "1"]);
     }
     for value in [0.0, 1.0] {
-        let params = {
-            let base = small();
-            Params {
-                costs: CostWeights {
-                    alpha: value,
-                    ..base.costs
-                },
-                ..base
-            }
-        };
+        let mut params = small();
+        params.costs.alpha = value;
         assert_eq!(params.validate(), Ok(()), "alpha = {value} should be valid");
     }
 }
@@ -296,16 +280,8 @@ fn out_of_range_numbers_are_rejected() {
 
 #[test]
 fn roots_must_exist_and_lie_on_allowed_cells() {
-    let params = {
-        let base = small();
-        Params {
-            domain: Domain {
-                roots: Vec::new(),
-                ..base.domain
-            },
-            ..base
-        }
-    };
+    let mut params = small();
+    params.domain.roots = Vec::new();
     check_error(&rejected(&params), "roots", &[]);
 
     let mut params = small();
@@ -316,44 +292,20 @@ fn roots_must_exist_and_lie_on_allowed_cells() {
     check_error(&rejected(&params), "roots[0].y", &["400", "19"]);
 
     // A root inside an obstacle (cell (10, 15) has its centre at (10.5, 15.5)).
-    let params = {
-        let base = small();
-        Params {
-            domain: Domain {
-                obstacles: vec![vec![[8.0, 13.0], [13.0, 13.0], [13.0, 18.0], [8.0, 18.0]]],
-                ..base.domain
-            },
-            ..base
-        }
-    };
+    let mut params = small();
+    params.domain.obstacles = vec![vec![[8.0, 13.0], [13.0, 13.0], [13.0, 18.0], [8.0, 18.0]]];
     check_error(&rejected(&params), "roots[0]", &["10", "15"]);
 
     // A root outside the outline.
-    let params = {
-        let base = small();
-        Params {
-            domain: Domain {
-                outline: Some(vec![[0.0, 0.0], [20.0, 0.0], [20.0, 10.0], [0.0, 10.0]]),
-                ..base.domain
-            },
-            ..base
-        }
-    };
+    let mut params = small();
+    params.domain.outline = Some(vec![[0.0, 0.0], [20.0, 0.0], [20.0, 10.0], [0.0, 10.0]]);
     check_error(&rejected(&params), "roots[0]", &["10", "15"]);
 
     // A root on a cell the mask forbids.
     let mut bits = vec![true; 400];
     bits[15 * 20 + 10] = false;
-    let params = {
-        let base = small();
-        Params {
-            domain: Domain {
-                mask: Some(MaskGrid::from_bits(20, 20, &bits)),
-                ..base.domain
-            },
-            ..base
-        }
-    };
+    let mut params = small();
+    params.domain.mask = Some(MaskGrid::from_bits(20, 20, &bits));
     check_error(&rejected(&params), "roots[0]", &["10", "15"]);
 
     // The second of two roots on the same cell.
@@ -375,65 +327,33 @@ fn roots_must_exist_and_lie_on_allowed_cells() {
 #[test]
 fn a_region_without_allowed_cells_is_rejected() {
     // An outline between cell centres: no centre lies inside it.
-    let params = {
-        let base = small();
-        Params {
-            domain: Domain {
-                outline: Some(vec![[10.6, 15.6], [10.9, 15.6], [10.9, 15.9]]),
-                ..base.domain
-            },
-            ..base
-        }
-    };
+    let mut params = small();
+    params.domain.outline = Some(vec![[10.6, 15.6], [10.9, 15.6], [10.9, 15.9]]);
     let error = rejected(&params);
     assert!(
         error.to_string().contains("outline"),
         "message does not name the outline: {error}"
     );
     // A mask with no allowed cell.
-    let params = {
-        let base = small();
-        Params {
-            domain: Domain {
-                mask: Some(MaskGrid::from_bits(20, 20, &[false; 400])),
-                ..base.domain
-            },
-            ..base
-        }
-    };
+    let mut params = small();
+    params.domain.mask = Some(MaskGrid::from_bits(20, 20, &[false; 400]));
     let error = rejected(&params);
     assert!(
         error.to_string().contains("mask"),
         "message does not name the mask: {error}"
     );
     // A mask of the wrong size.
-    let params = {
-        let base = small();
-        Params {
-            domain: Domain {
-                mask: Some(MaskGrid::from_bits(10, 40, &[true; 400])),
-                ..base.domain
-            },
-            ..base
-        }
-    };
+    let mut params = small();
+    params.domain.mask = Some(MaskGrid::from_bits(10, 40, &[true; 400]));
     check_error(&rejected(&params), "mask", &["10", "40", "20"]);
 }
 
 /// Each side is documented as at most 20000, and the whole lattice as at most 25,000,000 cells.
 #[test]
 fn too_large_a_lattice_is_rejected_before_allocating() {
-    let params = {
-        let base = small();
-        Params {
-            domain: Domain {
-                width: 20_000,
-                height: 20_000,
-                ..base.domain
-            },
-            ..base
-        }
-    };
+    let mut params = small();
+    params.domain.width = 20_000;
+    params.domain.height = 20_000;
     let error = rejected(&params);
     let message = error.to_string();
     assert!(
@@ -443,42 +363,18 @@ fn too_large_a_lattice_is_rejected_before_allocating() {
     assert!(message.contains("20000"), "{message}");
     assert!(message.contains("25000000"), "{message}");
 
-    let params = {
-        let base = small();
-        Params {
-            domain: Domain {
-                width: 20_001,
-                ..base.domain
-            },
-            ..base
-        }
-    };
+    let mut params = small();
+    params.domain.width = 20_001;
     check_error(&rejected(&params), "width", &["20001", "20000"]);
-    let params = {
-        let base = small();
-        Params {
-            domain: Domain {
-                height: 0,
-                ..base.domain
-            },
-            ..base
-        }
-    };
+    let mut params = small();
+    params.domain.height = 0;
     check_error(&rejected(&params), "height", &["0", "1"]);
 }
 
 #[test]
 fn unknown_units_are_rejected() {
-    let params = {
-        let base = small();
-        Params {
-            domain: Domain {
-                units: "furlong".into(),
-                ..base.domain
-            },
-            ..base
-        }
-    };
+    let mut params = small();
+    params.domain.units = "furlong".into();
     check_error(&rejected(&params), "units", &["furlong", "mm", "m"]);
 }
 
