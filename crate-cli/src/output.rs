@@ -73,7 +73,12 @@ impl OutputPlan {
     /// Writes `text` for the output at `path` into a temporary file in the same folder; nothing
     /// at `path` changes until `commit`.
     pub fn stage(&mut self, path: &str, text: &str) -> Result<(), CliError> {
-        let target = resolved(path);
+        // The target as `output` resolved it (an output is always planned before it is staged).
+        let target = self
+            .outputs
+            .iter()
+            .find(|(_, given, _)| given == path)
+            .map_or_else(|| resolved(path), |(_, _, target)| target.clone());
         let folder = target
             .parent()
             .filter(|folder| !folder.as_os_str().is_empty())

@@ -200,8 +200,9 @@ fn repair(params: &mut Params, problems: &mut Vec<LinkProblem>) {
 /// still place a root inside an obstacle or leave no cell to grow in.
 fn repair_start(params: &mut Params, problems: &mut Vec<LinkProblem>) {
     let defaults = version_1_defaults();
+    let mut allowed = allowed_cells(params);
     for key in ["obstacles", "outline", "mask", "roots"] {
-        let Err(error) = check_start(params, &allowed_cells(params)) else {
+        let Err(error) = check_start(params, &allowed) else {
             return;
         };
         let is_region_error = !error.allowed.contains("already taken");
@@ -214,6 +215,7 @@ fn repair_start(params: &mut Params, problems: &mut Vec<LinkProblem>) {
             continue;
         }
         let _ = set_field(params, key, &default);
+        allowed = allowed_cells(params);
         problems.push(problem(
             key,
             &value,
@@ -223,7 +225,7 @@ fn repair_start(params: &mut Params, problems: &mut Vec<LinkProblem>) {
             ),
         ));
     }
-    if check_start(params, &allowed_cells(params)).is_err() || params.validate().is_err() {
+    if params.validate().is_err() || check_start(params, &allowed).is_err() {
         *params = defaults;
         problems.push(problem(
             "(all)",
