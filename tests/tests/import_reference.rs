@@ -213,8 +213,8 @@ fn bad_pbm_files_are_errors_that_say_where() {
     );
     check_error(
         b"P4\n99999999999999999999999 2\n",
-        |e| matches!(e, ImportError::BadSize { .. }),
-        &["PBM"],
+        |e| matches!(e, ImportError::NumberTooLarge { field: "width", .. }),
+        &["PBM header", "width 99999999999999999999999"],
     );
     check_error(
         b"P1\n6 ",
@@ -586,22 +586,213 @@ fn png_broken_files_are_errors() {
     for cut in [8, 20, 33, bytes.len() / 2, bytes.len() - 13] {
         let error = mask_from_png(&bytes[..cut]).unwrap_err();
         assert!(
-            error.to_string().starts_with("PNG: "),
+            error.to_string().starts_with("PNG"),
             "cut at {cut}: {error}"
         );
     }
-    // A flipped bit in the header fails its CRC.
+    // A flipped bit in the header fails its CRC (see png_crc_error_names_chunk_and_offset).
     let mut corrupt = bytes.clone();
     corrupt[17] ^= 0x40;
     assert!(matches!(
         mask_from_png(&corrupt),
-        Err(ImportError::Png { .. })
+        Err(ImportError::PngChunk { .. })
     ));
     // Zero width is refused (the PNG specification forbids it).
     let mut zero = bytes;
     zero[16..20].copy_from_slice(&0u32.to_be_bytes());
     fix_crcs(&mut zero);
     assert!(mask_from_png(&zero).is_err());
+}
+
+// ---------------------------------------------------------------------------------------------
+// Files that used to be misread (issue 8): each refused with a message naming where.
+
+#[test]
+fn pbm_p4_with_a_maxval_line_is_refused() {
+    // Netpbm PBM format specification: after the height comes one whitespace character and
+    // then the raster; there is no maxval (PGM and PPM have one). Read as pixels, the line "1"
+    // and its line end would shift the raster by two bytes.
+    let mut bytes = b"P4\n8 2\n1\n".to_vec();
+    bytes.extend_from_slice(&[0xff, 0x00]);
+    let error = mask_from_pbm(&bytes).unwrap_err();
+    assert_eq!(
+        error,
+        ImportError::MaxvalLine {
+            offset: 7, // "P4", LF, "8 2", LF make 7 bytes
+            line: 3,
+            found: "\"1\\n\"".to_string(),
+        }
+    );
+    let message = error.to_string();
+    for words in ["line 3", "byte offset 7", "maxval", "raster was expected"] {
+        assert!(message.contains(words), "{message:?} lacks {words:?}");
+    }
+    // The same raster without the line reads as 8 black pixels over 8 white ones.
+    let grid = mask_from_pbm(b"P4\n8 2\n\xff\x00").unwrap();
+    assert_eq!(allowed_count(&grid), 8);
+}
+
+#[test]
+fn pbm_p4_with_bytes_after_the_raster_is_refused() {
+    // Netpbm PBM format specification: "There are no data, delimiters, or padding before,
+    // after, or between images."
+    check_error(
+        b"P4 8 1\n\xff\x07\x07",
+        |e| {
+            matches!(
+                e,
+                ImportError::ExtraData {
+                    format: "PBM P4 raster",
+                    offset: 8,
+                    ..
+                }
+            )
+        },
+        &["byte offset 8", "2 more bytes", "last pixel"],
+    );
+}
+
+#[test]
+fn pbm_p1_with_pixels_after_the_last_is_refused() {
+    // "P1", LF, "2 1", LF, "1 0", LF make 11 bytes; the extra "1" stands on line 4.
+    check_error(
+        b"P1\n2 1\n1 0\n1\n",
+        |e| {
+            matches!(
+                e,
+                ImportError::ExtraData {
+                    format: "PBM P1 raster",
+                    offset: 11,
+                    line: 4,
+                    ..
+                }
+            )
+        },
+        &["line 4", "byte offset 11", "more pixels than 2 x 1"],
+    );
+    check_error(
+        b"P1\n2 1\n1 0 x",
+        |e| matches!(e, ImportError::ExtraData { line: 3, .. }),
+        &["line 3", "\"x\""],
+    );
+    // Whitespace and comments after the last pixel are allowed.
+    let grid = mask_from_pbm(b"P1\n2 1\n1 0\n# end\n\n").unwrap();
+    assert_eq!(grid, MaskGrid::from_bits(2, 1, &[true, false]));
+}
+
+#[test]
+fn pbm_huge_width_is_reported_as_written() {
+    let error = mask_from_pbm(b"P1\n100000000000000000000000000 2\n").unwrap_err();
+    assert_eq!(
+        error,
+        ImportError::NumberTooLarge {
+            field: "width",
+            offset: 3,
+            line: 2,
+            written: "100000000000000000000000000".to_string(),
+        }
+    );
+    let message = error.to_string();
+    assert!(
+        message.contains("width 100000000000000000000000000"),
+        "{message}"
+    );
+    // The saturated value of a 64-bit integer must not appear in place of the number.
+    assert!(!message.contains("18446744073709551615"), "{message}");
+    // A height of many thousand digits is shown shortened, with its digit count.
+    let mut long = b"P4 2 ".to_vec();
+    long.extend(std::iter::repeat_n(b'7', 5000));
+    long.push(b'\n');
+    let message = mask_from_pbm(&long).unwrap_err().to_string();
+    assert!(message.contains("height 77777777777777777777..."), "{message}");
+    assert!(message.contains("(5000 digits)"), "{message}");
+}
+
+#[test]
+fn png_palette_index_beyond_the_palette_is_refused() {
+    // PNG specification (W3C 2003), section 11.2.3: "It is an error if the index value of a
+    // pixel exceeds the number of palette entries." Two entries (0 and 1); index 5 at column 2
+    // of row 1.
+    let palette = [0, 0, 0, 255, 255, 255];
+    let indices = [0u8, 1, 0, 1, 0, 1, 5, 0];
+    let bytes = encode_png(
+        4,
+        2,
+        png::ColorType::Indexed,
+        png::BitDepth::Eight,
+        &indices,
+        Some((&palette, None)),
+    );
+    let error = mask_from_png(&bytes).unwrap_err();
+    assert_eq!(
+        error,
+        ImportError::PaletteIndex {
+            index: 5,
+            palette_entries: 2,
+            column: 2,
+            row: 1,
+        }
+    );
+    let message = error.to_string();
+    for words in ["palette index 5", "only 2 entries", "column 2, row 1", "11.2.3"] {
+        assert!(message.contains(words), "{message:?} lacks {words:?}");
+    }
+    // At 2 bits a pixel, most significant bits first (section 7.2): 0b10_01_00_11 packs the
+    // indexes 2, 1, 0, 3; the palette has three entries, so the last pixel (column 3) is wrong.
+    let palette = [0, 0, 0, 255, 255, 255, 10, 10, 10];
+    let bytes = encode_png(
+        4,
+        1,
+        png::ColorType::Indexed,
+        png::BitDepth::Two,
+        &[0b1001_0011],
+        Some((&palette, None)),
+    );
+    assert_eq!(
+        mask_from_png(&bytes).unwrap_err(),
+        ImportError::PaletteIndex {
+            index: 3,
+            palette_entries: 3,
+            column: 3,
+            row: 0,
+        }
+    );
+    // Within the palette the same 2-bit image reads: index 2 (dark grey) and 0 (black) are
+    // allowed, 1 (white) is not.
+    let bytes = encode_png(
+        4,
+        1,
+        png::ColorType::Indexed,
+        png::BitDepth::Two,
+        &[0b1001_0010],
+        Some((&palette, None)),
+    );
+    check_png(&bytes, 4, 1, &[true, false, true, true]);
+}
+
+#[test]
+fn png_crc_error_names_chunk_and_offset() {
+    // PNG specification (W3C 2003), section 5.3: each chunk is length (4 bytes), type (4),
+    // data, CRC (4) over type and data. IHDR is the first chunk, right after the 8-byte
+    // signature; byte 17 is inside its width.
+    let mut bytes = small_png();
+    bytes[17] ^= 0x40;
+    let error = mask_from_png(&bytes).unwrap_err();
+    let ImportError::PngChunk { chunk, offset, .. } = &error else {
+        panic!("unexpected {error:?}");
+    };
+    assert_eq!((chunk.as_str(), *offset), ("IHDR", 8));
+    let message = error.to_string();
+    for words in ["PNG chunk IHDR at byte offset 8", "CRC mismatch", "byte offset 29"] {
+        assert!(message.contains(words), "{message:?} lacks {words:?}");
+    }
+    // No decoder structure (`ChunkType { type: .. }`) in the message.
+    assert!(!message.contains('{') && !message.contains("ChunkType"), "{message}");
+    // A chunk cut short names itself: IHDR ends at byte 33, where the next chunk starts.
+    let error = mask_from_png(&small_png()[..40]).unwrap_err();
+    let message = error.to_string();
+    assert!(message.contains("at byte offset 33"), "{message}");
+    assert!(message.contains("truncated"), "{message}");
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -71,6 +71,59 @@ pub enum ImportError {
         /// Whether `expected` and `found` count pixels (`true`) or bytes (`false`).
         pixels: bool,
     },
+    /// A PBM header number (width or height) is larger than any image this program reads.
+    NumberTooLarge {
+        /// Which field: `width` or `height`.
+        field: &'static str,
+        /// Byte offset of its first digit.
+        offset: usize,
+        /// Line number, counted from 1.
+        line: usize,
+        /// The number as written in the file (shortened when very long).
+        written: String,
+    },
+    /// A P4 (raw) image has a maxval line between its height and its raster; PBM has none
+    /// (that line belongs to PGM and PPM).
+    MaxvalLine {
+        /// Byte offset where the raster was expected to start.
+        offset: usize,
+        /// Line number of that byte, counted from 1.
+        line: usize,
+        /// The line found there, shown printable.
+        found: String,
+    },
+    /// Data follows the last pixel of the image where the format allows none.
+    ExtraData {
+        /// The format being read (`PBM P1`, `PBM P4`).
+        format: &'static str,
+        /// Byte offset of the first extra byte.
+        offset: usize,
+        /// Line number of that byte, counted from 1.
+        line: usize,
+        /// What was found there, shown printable.
+        found: String,
+    },
+    /// A PNG chunk is cut short, too long, or fails its CRC check.
+    PngChunk {
+        /// The chunk's four-letter type (`IHDR`, `IDAT`, ...), shown printable.
+        chunk: String,
+        /// Byte offset of the chunk's start (its length field).
+        offset: usize,
+        /// What is wrong, in words.
+        problem: String,
+    },
+    /// A palette image uses an index its palette does not have (an error by the PNG
+    /// specification, W3C 2003, section 11.2.3).
+    PaletteIndex {
+        /// The index found.
+        index: u8,
+        /// How many entries the palette (PLTE chunk) holds.
+        palette_entries: usize,
+        /// Column of the first such pixel, from 0 at the left.
+        column: u32,
+        /// Row of the first such pixel, from 0 at the top.
+        row: u32,
+    },
     /// The PNG decoder rejected the data.
     Png {
         /// The decoder's complaint, in words.
@@ -111,6 +164,34 @@ impl std::fmt::Display for ImportError {
                      {found} of {expected} {what}"
                 )
             }
+            ImportError::NumberTooLarge { field, offset, line, written } => write!(
+                f,
+                "PBM header, line {line} (byte offset {offset}): the {field} {written} is too \
+                 large; a mask needs at most {} cells",
+                crate::limits::MAX_CELLS
+            ),
+            ImportError::MaxvalLine { offset, line, found } => write!(
+                f,
+                "PBM P4 header, line {line} (byte offset {offset}): found {found} where the \
+                 raster was expected; this looks like a maxval line, which PBM does not have \
+                 (only PGM and PPM do): remove that line"
+            ),
+            ImportError::ExtraData { format, offset, line, found } => write!(
+                f,
+                "{format}, line {line} (byte offset {offset}): found {found} after the last \
+                 pixel of the image; the file must end there (or, for P4, start another image)"
+            ),
+            ImportError::PngChunk { chunk, offset, problem } => {
+                write!(f, "PNG chunk {chunk} at byte offset {offset}: {problem}")
+            }
+            ImportError::PaletteIndex { index, palette_entries, column, row } => write!(
+                f,
+                "PNG image data: the pixel at column {column}, row {row} (from 0 at the top \
+                 left) uses palette index {index}, but the palette (PLTE chunk) has only \
+                 {palette_entries} entries (indexes 0 to {}); the PNG specification (section \
+                 11.2.3) makes an index beyond the palette an error",
+                palette_entries.saturating_sub(1)
+            ),
             ImportError::Png { message } => write!(f, "PNG: {message}"),
         }
     }

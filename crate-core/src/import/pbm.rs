@@ -6,7 +6,11 @@
 //! `0`/`1` characters in which whitespace and comments are skipped, so digits may be packed
 //! without spaces. P4 rasters follow exactly one whitespace character after the height and pack
 //! 8 pixels a byte, most significant bit first, each row padded to a whole byte (padding bits
-//! are ignored). Bytes after the first image are ignored, as a file may hold several images.
+//! are ignored). PBM has no maxval line (Netpbm PBM format specification), so a P4 header
+//! followed by one (`P4 8 2 1` and a line end, as a PGM would have) is refused by name rather
+//! than read as pixels. After the last pixel only whitespace and comments (P1) may follow
+//! before the data ends or a next image starts (`P`), whose bytes are ignored: a file may hold
+//! several images and the first is read.
 
 use super::{check_size, printable, unknown_format, ImportError, RunBuilder};
 use crate::mask::MaskGrid;
@@ -34,7 +38,11 @@ pub fn mask_from_pbm(bytes: &[u8]) -> Result<MaskGrid, ImportError> {
     let (width, height) = check_size("PBM", width, height)?;
     if raw {
         reader.raster_separator()?;
-        read_raw(bytes, reader.position, width, height)
+        let start = reader.position;
+        let mask = read_raw(bytes, start, width, height)?;
+        let end = start + (width as usize).div_ceil(8) * height as usize;
+        check_after_raw(&reader, start, end)?;
+        Ok(mask)
     } else {
         match reader.peek() {
             Some(byte) if is_whitespace(byte) || byte == b'#' => {}
@@ -113,7 +121,8 @@ impl Reader<'_> {
         }
     }
 
-    /// Reads a decimal number; values too large for `u64` saturate (and fail the size check).
+    /// Reads a decimal number; one beyond any image size (more than `MAX_CELLS`) is refused
+    /// with its digits as written.
     fn number(&mut self, field: &'static str) -> Result<u64, ImportError> {
         let start = self.position;
         let mut value: u64 = 0;
@@ -128,6 +137,19 @@ impl Reader<'_> {
         }
         if self.position == start {
             return Err(self.bad_header(field));
+        }
+        if value > crate::limits::MAX_CELLS {
+            let digits = &self.bytes[start..self.position];
+            let written = match digits.len() {
+                0..=40 => printable(digits),
+                count => format!("{}... ({count} digits)", printable(&digits[..20])),
+            };
+            return Err(ImportError::NumberTooLarge {
+                field,
+                offset: start,
+                line: self.line_of(start),
+                written,
+            });
         }
         Ok(value)
     }
@@ -186,7 +208,59 @@ fn read_plain(reader: &mut Reader, width: u32, height: u32) -> Result<MaskGrid, 
             }
         }
     }
+    reader.skip_separators();
+    // A next image may follow (`P1`, `P4`, ...); its bytes are ignored.
+    if let Some(byte) = reader.peek().filter(|&byte| byte != b'P') {
+        let end = (reader.position + 8).min(reader.bytes.len());
+        let found = match byte {
+            b'0' | b'1' => format!(
+                "\"{}\" (more pixels than {width} x {height})",
+                printable(&reader.bytes[reader.position..end])
+            ),
+            _ => format!("\"{}\"", printable(&reader.bytes[reader.position..end])),
+        };
+        return Err(ImportError::ExtraData {
+            format: "PBM P1 raster",
+            offset: reader.position,
+            line: reader.line_of(reader.position),
+            found,
+        });
+    }
     Ok(builder.finish(width, height))
+}
+
+/// After a P4 raster (bytes `start..end`) the data must end or a next image begin with `P`.
+/// A raster that starts with a decimal number and one whitespace character, followed by extra
+/// bytes, is a maxval line shifting the raster and is refused by that name.
+fn check_after_raw(reader: &Reader, start: usize, end: usize) -> Result<(), ImportError> {
+    let bytes = reader.bytes;
+    match bytes.get(end) {
+        None | Some(b'P') => return Ok(()),
+        Some(_) => {}
+    }
+    let digits = bytes[start..]
+        .iter()
+        .take_while(|byte| byte.is_ascii_digit())
+        .count();
+    let maxval_line = digits > 0 && bytes.get(start + digits).copied().is_some_and(is_whitespace);
+    if maxval_line {
+        return Err(ImportError::MaxvalLine {
+            offset: start,
+            line: reader.line_of(start),
+            found: format!("\"{}\"", printable(&bytes[start..start + digits + 1])),
+        });
+    }
+    let shown_end = (end + 8).min(bytes.len());
+    Err(ImportError::ExtraData {
+        format: "PBM P4 raster",
+        offset: end,
+        line: reader.line_of(end),
+        found: format!(
+            "{} more bytes (starting \"{}\")",
+            bytes.len() - end,
+            printable(&bytes[end..shown_end])
+        ),
+    })
 }
 
 /// Reads a P4 raster starting at byte `start`.
