@@ -4,9 +4,11 @@ use ramulus_core::growth::Growth;
 use ramulus_core::import::mask_from_bytes;
 use ramulus_core::link::{decode_link, encode_link};
 use ramulus_core::metrics::Metrics;
+use ramulus_core::params::file::read_parameter_file;
 use ramulus_core::presets::presets as all_presets;
 use ramulus_core::record::{make_record, read_record, write_record};
 use ramulus_core::run::{RunView, SITE_CAUTION};
+use ramulus_core::utf8_text::utf8_text;
 use ramulus_draw::texts::stop_text;
 use ramulus_draw::{run_svg, Colouring};
 use serde_json::json;
@@ -14,9 +16,8 @@ use serde_json::json;
 use crate::options::{assemble_params, CliError, GrowOptions, MeasureOptions, PresetsOptions};
 use crate::output::OutputPlan;
 
-fn read_text(path: &str) -> Result<String, CliError> {
-    std::fs::read_to_string(path)
-        .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))
+fn read_bytes(path: &str) -> Result<Vec<u8>, CliError> {
+    std::fs::read(path).map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))
 }
 
 /// `ramulus grow`.
@@ -35,21 +36,29 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     if let Some(path) = &options.svg_file {
         plan.output("--svg", path)?;
     }
-    let file_text = match &options.params_file {
-        Some(path) => Some((path.as_str(), read_text(path)?)),
+    let file = match &options.params_file {
+        Some(path) => {
+            let file = read_parameter_file(&read_bytes(path)?)
+                .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+            Some((path.as_str(), file))
+        }
         None => None,
     };
-    let link_params = options.link.as_deref().map(|text| {
-        let read = decode_link(text);
-        for problem in &read.problems {
-            eprintln!("warning: {problem}");
+    let link_params = match &options.link {
+        Some(link) => {
+            let text = utf8_text(link.as_encoded_bytes())
+                .map_err(|error| CliError::Failed(format!("--link: {error}")))?;
+            let read = decode_link(text);
+            for problem in &read.problems {
+                eprintln!("warning: {problem}");
+            }
+            Some(read.params)
         }
-        read.params
-    });
+        None => None,
+    };
     let mask = match &options.mask_file {
         Some(path) => {
-            let bytes = std::fs::read(path)
-                .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))?;
+            let bytes = read_bytes(path)?;
             let mask = mask_from_bytes(&bytes)
                 .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
             Some((path.as_str(), mask))
@@ -59,9 +68,7 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     let params = assemble_params(
         link_params,
         options.preset.as_deref(),
-        file_text
-            .as_ref()
-            .map(|(path, text)| (*path, text.as_str())),
+        file,
         &options.sets,
         mask,
     )?;
@@ -148,9 +155,10 @@ struct Measured {
 
 /// Reads one run record and measures its network.
 fn measure_record(path: &str) -> Result<Measured, CliError> {
-    let text = read_text(path)?;
+    let bytes = read_bytes(path)?;
+    let text = utf8_text(&bytes).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
     let (record, network) =
-        read_record(&text).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+        read_record(text).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
     let alpha = record
         .params
         .as_ref()

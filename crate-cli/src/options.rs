@@ -4,6 +4,7 @@
 
 use clap::Args;
 use ramulus_core::mask::MaskGrid;
+use ramulus_core::params::file::ParameterFile;
 use ramulus_core::params::Params;
 use ramulus_core::presets::preset;
 use serde_json::{Map, Value};
@@ -49,9 +50,10 @@ pub struct GrowOptions {
         long,
         value_name = "LINK",
         conflicts_with_all = ["preset", "params_file"],
+        value_parser = clap::value_parser!(std::ffi::OsString),
         verbatim_doc_comment
     )]
-    pub link: Option<String>,
+    pub link: Option<std::ffi::OsString>,
     /// Write the run record (parameters, network with lengths in
     /// the run's units, digest) to this JSON file
     #[arg(long = "record", value_name = "OUT.json", verbatim_doc_comment)]
@@ -148,11 +150,11 @@ fn key_equals_value(text: &str) -> Result<String, String> {
 pub fn assemble_params(
     link_params: Option<Params>,
     preset_name: Option<&str>,
-    file_text: Option<(&str, &str)>,
+    file: Option<(&str, ParameterFile)>,
     sets: &[String],
     mask: Option<(&str, MaskGrid)>,
 ) -> Result<Params, CliError> {
-    let base = match (preset_name, file_text) {
+    let base = match (preset_name, file.as_ref()) {
         _ if link_params.is_some() => link_params.unwrap_or_default(),
         (Some(name), _) => preset(name).ok_or_else(|| {
             let names: Vec<&str> = ramulus_core::presets::presets()
@@ -171,25 +173,11 @@ pub fn assemble_params(
         Ok(Value::Object(object)) => object,
         _ => Map::new(),
     };
-    if let Some((path, text)) = file_text {
-        // A UTF-8 byte-order mark (some editors write one) is not part of the JSON.
-        let text = text.strip_prefix('\u{feff}').unwrap_or(text);
-        for (key, count) in repeated_keys(text) {
+    if let Some((path, file)) = file {
+        for (key, count) in &file.repeated {
             eprintln!("warning: {path}: key `{key}` is given {count} times; the last one is used");
         }
-        let value: Value = serde_json::from_str(text).map_err(|error| {
-            CliError::Failed(format!(
-                "{path}: not valid JSON at line {} column {}: {error}",
-                error.line(),
-                error.column()
-            ))
-        })?;
-        let Value::Object(keys) = value else {
-            return Err(CliError::Failed(format!(
-                "{path}: expected a JSON object of parameters"
-            )));
-        };
-        for (key, value) in keys {
+        for (key, value) in file.keys {
             object.insert(key, value);
         }
     }
@@ -228,47 +216,4 @@ pub fn assemble_params(
         .validate()
         .map_err(|error| CliError::Failed(error.to_string()))?;
     Ok(params)
-}
-
-/// Top-level keys that a JSON object gives more than once, with their counts, in first-seen
-/// order (JSON readers keep the last value of a repeated key, RFC 8259 section 4, so the
-/// earlier ones would be dropped without a word). Empty for text that is not an object.
-fn repeated_keys(text: &str) -> Vec<(String, usize)> {
-    struct Keys(Vec<String>);
-    impl<'de> serde::Deserialize<'de> for Keys {
-        fn deserialize<D: serde::Deserializer<'de>>(deserializer: D) -> Result<Keys, D::Error> {
-            struct Visitor;
-            impl<'de> serde::de::Visitor<'de> for Visitor {
-                type Value = Keys;
-                fn expecting(&self, formatter: &mut std::fmt::Formatter) -> std::fmt::Result {
-                    formatter.write_str("a JSON object")
-                }
-                fn visit_map<A: serde::de::MapAccess<'de>>(
-                    self,
-                    mut map: A,
-                ) -> Result<Keys, A::Error> {
-                    let mut keys = Vec::new();
-                    while let Some((key, serde::de::IgnoredAny)) = map.next_entry::<String, _>()? {
-                        keys.push(key);
-                    }
-                    Ok(Keys(keys))
-                }
-            }
-            deserializer.deserialize_map(Visitor)
-        }
-    }
-    let Ok(Keys(keys)) = serde_json::from_str::<Keys>(text) else {
-        return Vec::new();
-    };
-    let mut counts: std::collections::HashMap<&str, usize> = std::collections::HashMap::new();
-    for key in &keys {
-        *counts.entry(key.as_str()).or_insert(0) += 1;
-    }
-    let mut repeated = Vec::new();
-    for key in &keys {
-        if let Some(count) = counts.remove(key.as_str()).filter(|&count| count > 1) {
-            repeated.push((key.clone(), count));
-        }
-    }
-    repeated
 }

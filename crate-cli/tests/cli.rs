@@ -906,3 +906,52 @@ fn the_readme_example_files_grow() {
         .expect("a link")
         .contains("width=64&height=48"));
 }
+
+/// Input that is not UTF-8 text (RFC 3629: the byte 0xff never occurs in UTF-8) is refused
+/// with the byte offset of the first invalid byte, for a parameter file, a run record and a
+/// run link given on the command line.
+#[cfg(unix)]
+#[test]
+fn non_utf8_input_names_the_byte_offset() {
+    let params = TempFile::new("latin1", "json");
+    // `{"units": "` is 11 bytes, so the Latin-1 "é" (0xe9) stands at byte offset 11 on line 1.
+    std::fs::write(&params.0, b"{\"units\": \"\xe9\"}").expect("writable temp file");
+    let outcome = ramulus(&["grow", "--params", params.path()]);
+    check_failure(
+        &outcome,
+        &[
+            params.path(),
+            "not UTF-8",
+            "byte offset 11 (line 1)",
+            "0xe9",
+        ],
+    );
+    assert_eq!(outcome.code, Some(1));
+
+    let record = TempFile::new("latin1-record", "json");
+    // `{`, LF, `"format": "` make 13 bytes: the 0xff stands at offset 13 on line 2.
+    std::fs::write(&record.0, b"{\n\"format\": \"\xff\"}").expect("writable temp file");
+    let outcome = ramulus(&["measure", record.path()]);
+    check_failure(
+        &outcome,
+        &[
+            record.path(),
+            "not UTF-8",
+            "byte offset 13 (line 2)",
+            "0xff",
+        ],
+    );
+
+    // A link is an argument: build it from raw bytes (Unix arguments are bytes).
+    use std::os::unix::ffi::OsStrExt;
+    let link = std::ffi::OsStr::from_bytes(b"#v=1&seed=\xff");
+    let output = Command::new(env!("CARGO_BIN_EXE_ramulus"))
+        .args(["grow".as_ref(), "--link".as_ref(), link])
+        .output()
+        .expect("the ramulus binary runs");
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(1), "{stderr}");
+    // `#v=1&seed=` is 10 bytes.
+    assert!(stderr.contains("--link: not UTF-8"), "{stderr}");
+    assert!(stderr.contains("byte offset 10"), "{stderr}");
+}

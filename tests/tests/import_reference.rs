@@ -704,7 +704,10 @@ fn pbm_huge_width_is_reported_as_written() {
     long.extend(std::iter::repeat_n(b'7', 5000));
     long.push(b'\n');
     let message = mask_from_pbm(&long).unwrap_err().to_string();
-    assert!(message.contains("height 77777777777777777777..."), "{message}");
+    assert!(
+        message.contains("height 77777777777777777777..."),
+        "{message}"
+    );
     assert!(message.contains("(5000 digits)"), "{message}");
 }
 
@@ -734,7 +737,12 @@ fn png_palette_index_beyond_the_palette_is_refused() {
         }
     );
     let message = error.to_string();
-    for words in ["palette index 5", "only 2 entries", "column 2, row 1", "11.2.3"] {
+    for words in [
+        "palette index 5",
+        "only 2 entries",
+        "column 2, row 1",
+        "11.2.3",
+    ] {
         assert!(message.contains(words), "{message:?} lacks {words:?}");
     }
     // At 2 bits a pixel, most significant bits first (section 7.2): 0b10_01_00_11 packs the
@@ -783,11 +791,18 @@ fn png_crc_error_names_chunk_and_offset() {
     };
     assert_eq!((chunk.as_str(), *offset), ("IHDR", 8));
     let message = error.to_string();
-    for words in ["PNG chunk IHDR at byte offset 8", "CRC mismatch", "byte offset 29"] {
+    for words in [
+        "PNG chunk IHDR at byte offset 8",
+        "CRC mismatch",
+        "byte offset 29",
+    ] {
         assert!(message.contains(words), "{message:?} lacks {words:?}");
     }
     // No decoder structure (`ChunkType { type: .. }`) in the message.
-    assert!(!message.contains('{') && !message.contains("ChunkType"), "{message}");
+    assert!(
+        !message.contains('{') && !message.contains("ChunkType"),
+        "{message}"
+    );
     // A chunk cut short names itself: IHDR ends at byte 33, where the next chunk starts.
     let error = mask_from_png(&small_png()[..40]).unwrap_err();
     let message = error.to_string();

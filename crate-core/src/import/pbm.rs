@@ -242,7 +242,11 @@ fn check_after_raw(reader: &Reader, start: usize, end: usize) -> Result<(), Impo
         .iter()
         .take_while(|byte| byte.is_ascii_digit())
         .count();
-    let maxval_line = digits > 0 && bytes.get(start + digits).copied().is_some_and(is_whitespace);
+    let maxval_line = digits > 0
+        && bytes
+            .get(start + digits)
+            .copied()
+            .is_some_and(is_whitespace);
     if maxval_line {
         return Err(ImportError::MaxvalLine {
             offset: start,

@@ -316,7 +316,10 @@ mod tests {
     fn chunk_structures_become_names() {
         let text = "Chunk ChunkType { type: tRNS, critical: false, private: false, \
                     reserved: false, safecopy: false } must appear at most once.";
-        assert_eq!(plain_chunk_names(text), "Chunk tRNS must appear at most once.");
+        assert_eq!(
+            plain_chunk_names(text),
+            "Chunk tRNS must appear at most once."
+        );
         assert_eq!(plain_chunk_names("no chunk here"), "no chunk here");
     }
 }

@@ -10,6 +10,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::mask::MaskGrid;
 
+pub mod file;
 pub mod table;
 mod text;
 
