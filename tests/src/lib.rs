@@ -1,4 +1,6 @@
-//! Shared helpers for the cross-crate tests (hand-built networks, parameter strategies).
+//! Shared helpers for the cross-crate tests (hand-built networks, parameter strategies, the
+//! fuzzing harness of the readers).
 
+pub mod fuzz;
 pub mod hand_built;
 pub mod param_strategy;
