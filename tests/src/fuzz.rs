@@ -25,12 +25,24 @@ pub const HANG_LIMIT: Duration = Duration::from_secs(1);
 
 /// One fuzz input: the bytes, and a free choice the reader's check may use (for example to
 /// repair PNG checksums so edits reach the decoder).
-#[derive(Clone, Debug)]
+#[derive(Clone)]
 pub struct FuzzInput {
     /// The bytes handed to the reader.
     pub bytes: Vec<u8>,
     /// A random byte for the check's own choices.
     pub choice: u8,
+}
+
+/// Shown as a byte string (`b"P4\n8 2\n\xff"`), ready to paste into a regression test.
+impl std::fmt::Debug for FuzzInput {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "FuzzInput {{ bytes: b\"{}\", choice: {} }}",
+            self.bytes.escape_ascii(),
+            self.choice
+        )
+    }
 }
 
 /// What a reader's check says about one input: accepted (the property held) or refused.

@@ -3,14 +3,16 @@
 //! `Params::from_json_value`, `validate`) on the corpus in `tests/fuzz-corpus/params/` (see
 //! `ramulus_tests::fuzz`; the long run and its figures are in DEVELOPERS.md).
 //!
-//! Properties of every input: no panic, no input over a second; accepted parameters survive a
-//! JSON round trip and a run-link round trip unchanged, and small ones start a growth.
+//! Properties of every input: no panic, no input over a second; accepted parameters (valid,
+//! with every root on an allowed cell) survive a JSON round trip and a run-link round trip
+//! unchanged, and small ones start a growth.
 
 use proptest::prelude::*;
 use ramulus_core::growth::Growth;
 use ramulus_core::link::{decode_link, encode_link};
 use ramulus_core::params::file::read_parameter_file;
 use ramulus_core::params::Params;
+use ramulus_core::region::{allowed_cells, check_start};
 use ramulus_tests::fuzz::{fuzz, FuzzInput, Verdict};
 use serde_json::Value;
 
@@ -58,6 +60,11 @@ fn check(input: &FuzzInput) -> Result<Verdict, TestCaseError> {
         return Ok(Verdict::Refused);
     };
     if params.validate().is_err() {
+        return Ok(Verdict::Refused);
+    }
+    // Validation checks each field and the lattice; whether the roots stand on allowed cells
+    // is `Growth::new`'s check (`region::check_start`), named as an error by the command line.
+    if check_start(&params, &allowed_cells(&params)).is_err() {
         return Ok(Verdict::Refused);
     }
     let json = serde_json::to_value(&params).expect("parameters serialise");

@@ -70,6 +70,8 @@ fn crc32(bytes: &[u8]) -> u32 {
 fn reference(bytes: &[u8]) -> Option<(u32, u32, Vec<bool>)> {
     let mut decoder = png::Decoder::new(bytes);
     decoder.set_transformations(png::Transformations::EXPAND | png::Transformations::STRIP_16);
+    // Text chunks do not change pixels; the mask reader skips them too.
+    decoder.set_ignore_text_chunk(true);
     let mut reader = decoder.read_info().ok()?;
     let (colour, _) = reader.output_color_type();
     let channels = colour.samples();
