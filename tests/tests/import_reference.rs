@@ -778,6 +778,38 @@ fn png_palette_index_beyond_the_palette_is_refused() {
     check_png(&bytes, 4, 1, &[true, false, true, true]);
 }
 
+/// Found by `fuzz_png`: a palette of 28 bytes (9 entries and one byte more) passed the reader
+/// and panicked the `png` crate's own palette expansion. The PNG specification (W3C 2003),
+/// section 11.2.3, makes a PLTE length that is not a multiple of 3 an error.
+#[test]
+fn png_palette_length_not_a_multiple_of_three_is_refused() {
+    let mut palette = vec![0u8; 27];
+    palette[3..6].copy_from_slice(&[255, 255, 255]);
+    let mut bytes = encode_png(
+        4,
+        2,
+        png::ColorType::Indexed,
+        png::BitDepth::Two,
+        &[0b0001_0000, 0b0100_0100],
+        Some((&palette, None)),
+    );
+    // PLTE follows IHDR at byte 33 (8 signature + 25 IHDR); grow its length from 27 to 28 and
+    // insert one data byte, then repair the CRCs so only the length is wrong.
+    assert_eq!(&bytes[37..41], b"PLTE");
+    bytes[33..37].copy_from_slice(&28u32.to_be_bytes());
+    bytes.insert(41 + 27, 7);
+    fix_crcs(&mut bytes);
+    let error = mask_from_png(&bytes).unwrap_err();
+    let message = error.to_string();
+    assert!(
+        matches!(&error, ImportError::PngChunk { chunk, offset: 33, .. } if chunk == "PLTE"),
+        "{error:?}"
+    );
+    for words in ["PNG chunk PLTE at byte offset 33", "length 28", "11.2.3"] {
+        assert!(message.contains(words), "{message:?} lacks {words:?}");
+    }
+}
+
 #[test]
 fn png_crc_error_names_chunk_and_offset() {
     // PNG specification (W3C 2003), section 5.3: each chunk is length (4 bytes), type (4),

@@ -225,6 +225,18 @@ fn check_chunks(bytes: &[u8]) -> Result<(), ImportError> {
                 ),
             });
         }
+        // Section 11.2.3: 1 to 256 entries of 3 bytes. (The decoder's palette expansion
+        // panics on a length that is not a multiple of 3; this reader never reaches it.)
+        if &header[4..8] == b"PLTE" && (length % 3 != 0 || !(3..=768).contains(&length)) {
+            return Err(ImportError::PngChunk {
+                chunk: name,
+                offset,
+                problem: format!(
+                    "its length {length} is not 3 bytes for each of 1 to 256 palette entries \
+                     (PNG specification, section 11.2.3)"
+                ),
+            });
+        }
         if &header[4..8] == b"IEND" {
             break;
         }
