@@ -179,7 +179,8 @@ impl std::fmt::Display for ImportError {
             ImportError::ExtraData { format, offset, line, found } => write!(
                 f,
                 "{format}, line {line} (byte offset {offset}): found {found} after the last \
-                 pixel of the image; the file must end there (or, for P4, start another image)"
+                 pixel of the image, where only the end of the data or another image (starting \
+                 with P) may follow"
             ),
             ImportError::PngChunk { chunk, offset, problem } => {
                 write!(f, "PNG chunk {chunk} at byte offset {offset}: {problem}")

@@ -200,15 +200,19 @@ fn check_chunks(bytes: &[u8]) -> Result<(), ImportError> {
                 ),
             });
         }
-        let data_end = offset + 8 + length as usize;
-        let Some(stored) = bytes.get(data_end..data_end + 4) else {
+        // Checked sums: a 32-bit `usize` (wasm32) could otherwise wrap past the data's end.
+        let data_end = (offset + 8).checked_add(length as usize);
+        let crc_end = data_end.and_then(|end| end.checked_add(4));
+        let (Some(data_end), Some(stored)) =
+            (data_end, crc_end.and_then(|end| bytes.get(end - 4..end)))
+        else {
             return Err(ImportError::PngChunk {
                 chunk: name,
                 offset,
                 problem: format!(
                     "it declares {length} data bytes and a 4-byte CRC, ending at byte offset \
                      {}, but the data ends at byte offset {} (truncated file)",
-                    data_end + 4,
+                    u64::from(length) + offset as u64 + 12,
                     bytes.len()
                 ),
             });
