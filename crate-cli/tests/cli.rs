@@ -339,12 +339,15 @@ fn usage_errors_exit_non_zero_without_a_panic() {
 #[test]
 fn a_printed_link_grows_the_same_run() {
     let first = grow_json(&["grow", "--preset", "spanning-tree", "--json"]);
-    let link = first["link"].as_str().expect("link is text");
+    let url = first["link"].as_str().expect("link is text");
+    // The link is an address that opens: `./x serve`'s page, then the run's fragment.
+    assert!(url.starts_with("http://127.0.0.1:8080/#v=1&"), "{url}");
+    let link = first["fragment"].as_str().expect("fragment is text");
     assert!(link.starts_with("#v=1&"), "{link}");
+    assert!(url.ends_with(link), "{url} ends with {link}");
     let again = grow_json(&["grow", "--link", link, "--json"]);
     assert_eq!(again["digest"], first["digest"]);
-    let url = format!("http://127.0.0.1:8080/{link}");
-    let from_url = grow_json(&["grow", "--link", &url, "--json"]);
+    let from_url = grow_json(&["grow", "--link", url, "--json"]);
     assert_eq!(from_url["digest"], first["digest"]);
     let other = grow_json(&["grow", "--link", link, "--set", "cells=100", "--json"]);
     assert_eq!(other["cells"].as_u64(), Some(100));
@@ -357,6 +360,7 @@ fn a_damaged_link_warns_and_a_link_with_a_preset_is_refused() {
     let first = grow_json(&["grow", "--preset", "spanning-tree", "--json"]);
     let link = first["link"].as_str().expect("link is text");
     let damaged = link.replace("&alpha=", "&alpha=oops");
+    assert_ne!(damaged, link, "the link has an alpha field to damage");
     let outcome = ramulus(&["grow", "--link", &damaged, "--json"]);
     assert!(outcome.success, "{}", outcome.stderr);
     assert!(outcome.stderr.contains("`alpha`"), "{}", outcome.stderr);
@@ -905,4 +909,33 @@ fn the_readme_example_files_grow() {
         .as_str()
         .expect("a link")
         .contains("width=64&height=48"));
+}
+
+/// `--page` sets the address the printed link opens (a page served elsewhere); an address
+/// that is not http, https or file, or that holds its own `#`, is a usage error naming --page.
+#[test]
+fn the_page_address_of_the_printed_link_can_be_set_and_is_checked() {
+    let value = grow_json(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--page",
+        "https://example.invalid/ramulus/",
+        "--json",
+    ]);
+    let url = value["link"].as_str().expect("link is text");
+    assert!(
+        url.starts_with("https://example.invalid/ramulus/#v=1&"),
+        "{url}"
+    );
+    for bad in ["example.invalid/page", "http://host/page#old", ""] {
+        let outcome = ramulus(&["grow", "--page", bad, "--json"]);
+        assert_eq!(outcome.code, Some(2), "--page {bad:?}: {}", outcome.stderr);
+        assert!(outcome.stderr.contains("--page"), "{}", outcome.stderr);
+        assert!(
+            outcome.stdout.is_empty(),
+            "nothing on stdout: {}",
+            outcome.stdout
+        );
+    }
 }
