@@ -939,3 +939,145 @@ fn the_page_address_of_the_printed_link_can_be_set_and_is_checked() {
         );
     }
 }
+
+/// A fresh, empty folder for one test (so leftover temporary files can be counted).
+fn temp_folder(stem: &str) -> PathBuf {
+    let folder = temp_path(stem, "d");
+    std::fs::create_dir_all(&folder).expect("writable temp dir");
+    folder
+}
+
+/// The names of the files in `folder`, sorted.
+fn files_in(folder: &std::path::Path) -> Vec<String> {
+    let mut names: Vec<String> = std::fs::read_dir(folder)
+        .expect("the folder exists")
+        .map(|entry| {
+            entry
+                .expect("readable")
+                .file_name()
+                .to_string_lossy()
+                .into_owned()
+        })
+        .collect();
+    names.sort();
+    names
+}
+
+/// A good record of a small run at `path`, returned as bytes.
+fn good_record(path: &str) -> Vec<u8> {
+    let outcome = ramulus(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--set",
+        "cells=200",
+        "--record",
+        path,
+    ]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    std::fs::read(path).expect("the record was written")
+}
+
+/// The attack "disk full while writing --record over an existing good record": a file-size
+/// limit (POSIX `ulimit -f`; the limit signal SIGXFSZ ignored, so the write fails with EFBIG as
+/// a full disk fails with ENOSPC) stops the new record part way. The run fails (exit 1) naming
+/// the record, the old record is intact byte for byte, and no temporary file is left behind.
+#[cfg(unix)]
+#[test]
+fn a_record_that_cannot_be_written_whole_leaves_the_old_one() {
+    let folder = temp_folder("full-disk");
+    let record = folder.join("run.json");
+    let record = record.to_str().expect("UTF-8");
+    let before = good_record(record);
+    let output = Command::new("sh")
+        .arg("-c")
+        // 64 blocks of 512 bytes: far less than the new record (over 1 MB).
+        .arg("trap '' XFSZ; ulimit -f 64; exec \"$0\" \"$@\"")
+        .arg(env!("CARGO_BIN_EXE_ramulus"))
+        .args([
+            "grow",
+            "--preset",
+            "broad-leaf",
+            "--set",
+            "cells=6000",
+            "--record",
+            record,
+        ])
+        .output()
+        .expect("sh runs");
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(1), "{stderr}");
+    assert!(
+        stderr.contains("run.json") && stderr.contains("cannot write"),
+        "{stderr}"
+    );
+    assert!(!stderr.contains("panicked"), "{stderr}");
+    assert_eq!(std::fs::read(record).expect("still there"), before);
+    assert_eq!(files_in(&folder), ["run.json"]);
+    let _ = std::fs::remove_dir_all(&folder);
+}
+
+/// The attack "Ctrl-C while the record is written": SIGINT at several moments of a run that
+/// replaces a good record. Whenever it lands, the record afterwards is either the old one byte
+/// for byte or a whole new record that `measure` reads, and no temporary file is left behind.
+#[cfg(unix)]
+#[test]
+fn ctrl_c_at_any_moment_leaves_a_whole_record_and_no_temporary_file() {
+    let folder = temp_folder("interrupted");
+    let record = folder.join("run.json");
+    let record = record.to_str().expect("UTF-8");
+    let before = good_record(record);
+    // How long a whole run takes here, so the signals can be spread over all of it (growth,
+    // measuring, writing the temporary file, renaming).
+    let started = std::time::Instant::now();
+    let probe = temp_folder("interrupted-probe");
+    let probe_record = probe.join("run.json");
+    good_record(probe_record.to_str().expect("UTF-8"));
+    let whole = ramulus(&[
+        "grow",
+        "--preset",
+        "broad-leaf",
+        "--record",
+        probe_record.to_str().expect("UTF-8"),
+    ]);
+    assert!(whole.success, "{}", whole.stderr);
+    let run_ms = started.elapsed().as_millis() as u64;
+    let _ = std::fs::remove_dir_all(&probe);
+    let mut interrupted = 0;
+    for step in 1..=12u64 {
+        let delay_ms = run_ms * step / 12;
+        let child = Command::new(env!("CARGO_BIN_EXE_ramulus"))
+            .args(["grow", "--preset", "broad-leaf", "--record", record])
+            .stdout(std::process::Stdio::null())
+            .stderr(std::process::Stdio::piped())
+            .spawn()
+            .expect("the ramulus binary runs");
+        std::thread::sleep(std::time::Duration::from_millis(delay_ms));
+        let _ = Command::new("kill")
+            .args(["-INT", &child.id().to_string()])
+            .status();
+        let output = child.wait_with_output().expect("the run ends");
+        let stderr = String::from_utf8_lossy(&output.stderr);
+        assert!(!stderr.contains("panicked"), "{stderr}");
+        if !output.status.success() {
+            interrupted += 1;
+        }
+        let after = std::fs::read(record).expect("a record is there");
+        if after != before {
+            let measured = ramulus(&["measure", record, "--json"]);
+            assert!(
+                measured.success,
+                "after SIGINT at {delay_ms} ms the record does not read: {}",
+                measured.stderr
+            );
+        }
+        assert_eq!(
+            files_in(&folder),
+            ["run.json"],
+            "after SIGINT at {delay_ms} ms"
+        );
+    }
+    // The early signals land mid-run (the preset takes far longer than 30 ms).
+    assert!(interrupted >= 1, "no run was interrupted");
+    let _ = std::fs::remove_dir_all(&folder);
+}
