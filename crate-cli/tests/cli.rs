@@ -722,6 +722,8 @@ fn a_full_standard_output_fails_the_run() {
     let Ok(full) = std::fs::OpenOptions::new().write(true).open("/dev/full") else {
         return; // not Linux: no device that is always full
     };
+    let record = TempFile::new("for-full-stdout", "json");
+    good_record(record.path());
     for arguments in [
         &[
             "grow",
@@ -732,6 +734,8 @@ fn a_full_standard_output_fails_the_run() {
             "--json",
         ][..],
         &["presets"][..],
+        &["measure", record.path(), "--json"][..],
+        &["measure", record.path()][..],
     ] {
         let output = Command::new(env!("CARGO_BIN_EXE_ramulus"))
             .args(arguments)
@@ -1080,4 +1084,27 @@ fn ctrl_c_at_any_moment_leaves_a_whole_record_and_no_temporary_file() {
     // The early signals land mid-run (the preset takes far longer than 30 ms).
     assert!(interrupted >= 1, "no run was interrupted");
     let _ = std::fs::remove_dir_all(&folder);
+}
+
+/// The attack "`--svg` onto the input mask": an output naming the mask it reads is refused as
+/// wrong usage before anything is written, and the mask keeps its bytes.
+#[test]
+fn an_svg_naming_the_input_mask_is_refused_and_the_mask_kept() {
+    let mask = TempFile::new("mask", "pbm");
+    std::fs::write(mask.path(), all_black_pbm(20, 16)).expect("writable temp dir");
+    let before = std::fs::read(mask.path()).expect("the mask exists");
+    let outcome = ramulus(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--set",
+        "roots=[{\"x\":10,\"y\":15,\"outflow\":[0,1]}]",
+        "--mask",
+        mask.path(),
+        "--svg",
+        mask.path(),
+    ]);
+    check_failure(&outcome, &["--svg", "--mask"]);
+    assert_eq!(outcome.code, Some(2));
+    assert_eq!(std::fs::read(mask.path()).expect("still there"), before);
 }
