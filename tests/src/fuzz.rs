@@ -93,14 +93,14 @@ enum Edit {
 fn edit_strategy() -> impl Strategy<Value = Edit> {
     let at = any::<usize>();
     prop_oneof![
-        3 => (at.clone(), 0u8..8).prop_map(|(at, bit)| Edit::FlipBit(at, bit)),
-        3 => (at.clone(), any::<u8>()).prop_map(|(at, byte)| Edit::Set(at, byte)),
-        2 => (at.clone(), proptest::collection::vec(any::<u8>(), 1..8))
+        3 => (at, 0u8..8).prop_map(|(at, bit)| Edit::FlipBit(at, bit)),
+        3 => (at, any::<u8>()).prop_map(|(at, byte)| Edit::Set(at, byte)),
+        2 => (at, proptest::collection::vec(any::<u8>(), 1..8))
             .prop_map(|(at, bytes)| Edit::Insert(at, bytes)),
-        3 => (at.clone(), any::<usize>()).prop_map(|(at, token)| Edit::InsertToken(at, token)),
-        2 => (at.clone(), 1usize..16).prop_map(|(at, count)| Edit::Remove(at, count)),
-        1 => at.clone().prop_map(Edit::Truncate),
-        1 => (any::<usize>(), at.clone(), any::<usize>())
+        3 => (at, any::<usize>()).prop_map(|(at, token)| Edit::InsertToken(at, token)),
+        2 => (at, 1usize..16).prop_map(|(at, count)| Edit::Remove(at, count)),
+        1 => at.prop_map(Edit::Truncate),
+        1 => (any::<usize>(), at, any::<usize>())
             .prop_map(|(entry, at, from)| Edit::Splice(entry, at, from)),
         1 => (at, 1usize..64).prop_map(|(at, count)| Edit::Duplicate(at, count)),
     ]

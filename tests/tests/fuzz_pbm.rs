@@ -109,10 +109,10 @@ fn reference(bytes: &[u8]) -> Option<(u32, u32, Vec<bool>)> {
 fn check(input: &FuzzInput) -> Result<Verdict, TestCaseError> {
     // Most inputs keep a PBM signature so the edits reach the reader.
     let mut bytes = input.bytes.clone();
-    if input.choice % 4 != 0 && !bytes.starts_with(b"P1") && !bytes.starts_with(b"P4") {
+    if !input.choice.is_multiple_of(4) && !bytes.starts_with(b"P1") && !bytes.starts_with(b"P4") {
         bytes.splice(
             0..0,
-            if input.choice % 2 == 0 {
+            if input.choice.is_multiple_of(2) {
                 *b"P1"
             } else {
                 *b"P4"
