@@ -20,6 +20,14 @@ fn read_bytes(path: &str) -> Result<Vec<u8>, CliError> {
     std::fs::read(path).map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))
 }
 
+/// A file's text; bytes that are not UTF-8 are refused naming the byte offset and line.
+pub(crate) fn read_text(path: &str) -> Result<String, CliError> {
+    let bytes = read_bytes(path)?;
+    utf8_text(&bytes)
+        .map(str::to_string)
+        .map_err(|error| CliError::Failed(format!("{path}: {error}")))
+}
+
 /// `ramulus grow`.
 pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     // Every output is checked against the inputs and the other outputs before any work.
