@@ -6,7 +6,6 @@ use std::io::IsTerminal as _;
 use std::time::Instant;
 
 use clap::Args;
-use ramulus_core::params::file::read_parameter_file;
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 use serde_json::json;
