@@ -627,6 +627,13 @@ fn pbm_p4_with_a_maxval_line_is_refused() {
     for words in ["line 3", "byte offset 7", "maxval", "raster was expected"] {
         assert!(message.contains(words), "{message:?} lacks {words:?}");
     }
+    // A raster that merely starts with many digit bytes is extra data, shown shortened.
+    let mut digits = b"P4 8 1000\n".to_vec();
+    digits.extend(std::iter::repeat_n(b'7', 1000));
+    digits.extend_from_slice(b"\n\x00");
+    let message = mask_from_pbm(&digits).unwrap_err().to_string();
+    assert!(message.contains("2 more bytes"), "{message}");
+    assert!(message.len() < 300, "{message}");
     // The same raster without the line reads as 8 black pixels over 8 white ones.
     let grid = mask_from_pbm(b"P4\n8 2\n\xff\x00").unwrap();
     assert_eq!(allowed_count(&grid), 8);

@@ -238,11 +238,13 @@ fn check_after_raw(reader: &Reader, start: usize, end: usize) -> Result<(), Impo
         None | Some(b'P') => return Ok(()),
         Some(_) => {}
     }
+    // A maxval has 1 to 5 digits (at most 65535, Netpbm PGM format specification).
     let digits = bytes[start..]
         .iter()
+        .take(6)
         .take_while(|byte| byte.is_ascii_digit())
         .count();
-    let maxval_line = digits > 0
+    let maxval_line = (1..=5).contains(&digits)
         && bytes
             .get(start + digits)
             .copied()
