@@ -10,7 +10,7 @@ const QUIET_CHUNK_MS = 40;
 
 export class Runner {
   /// `hooks`: `redraw()` (returns draw ms), `progress()`, `paused()`, `finished()`,
-  /// `playing(bool)`.
+  /// `playing(bool)`, `failed(error)` (growing or drawing threw; the loop has stopped).
   constructor(hooks) {
     this.hooks = hooks;
     this.simulation = null;
@@ -51,7 +51,8 @@ export class Runner {
     this.hooks.playing(true);
     this.lastTick = performance.now();
     this.carry = 0;
-    requestAnimationFrame((time) => this.tick(time, this.generation));
+    const generation = this.generation;
+    requestAnimationFrame((time) => this.guarded(() => this.tick(time, generation)));
   }
 
   pause() {
@@ -71,16 +72,36 @@ export class Runner {
     this.hooks.playing(false);
   }
 
+  /// Stops and lets go of the simulation (a refused or dead run): nothing more is grown.
+  clear() {
+    this.stop();
+    this.generation += 1;
+    this.quiet = false;
+    this.simulation = null;
+  }
+
+  /// Runs `action`; if it throws, stops the loop and hands the error to `failed`.
+  guarded(action) {
+    try {
+      action();
+    } catch (error) {
+      this.clear();
+      this.hooks.failed(error);
+    }
+  }
+
   /// Grows one slice (a fiftieth of the budget, at least one cell) and shows it.
   stepOnce() {
     const simulation = this.simulation;
     if (!simulation || simulation.finished()) return;
     this.stop();
-    simulation.step(Math.max(1, Math.round(simulation.budget() / 50)));
-    this.hooks.redraw();
-    this.hooks.progress();
-    if (simulation.finished()) this.hooks.finished();
-    else this.hooks.paused();
+    this.guarded(() => {
+      simulation.step(Math.max(1, Math.round(simulation.budget() / 50)));
+      this.hooks.redraw();
+      this.hooks.progress();
+      if (simulation.finished()) this.hooks.finished();
+      else this.hooks.paused();
+    });
   }
 
   tick(now, generation) {
@@ -130,7 +151,7 @@ export class Runner {
       this.hooks.finished();
       return;
     }
-    requestAnimationFrame((time) => this.tick(time, generation));
+    requestAnimationFrame((time) => this.guarded(() => this.tick(time, generation)));
   }
 
   growQuietly(generation) {
@@ -148,10 +169,10 @@ export class Runner {
         this.hooks.redraw();
         this.hooks.finished();
       } else {
-        setTimeout(chunk, 0);
+        setTimeout(() => this.guarded(chunk), 0);
       }
     };
-    setTimeout(chunk, 0);
+    setTimeout(() => this.guarded(chunk), 0);
   }
 }
 

@@ -42,6 +42,9 @@ pub struct Simulation {
     /// Everything derived from the network as it stands (metrics, SVG, record share it);
     /// dropped whenever the network changes.
     view_cache: Option<RunView>,
+    /// Test hook: once the run holds this many cells, `step` fails as a failed allocation
+    /// does (see `debug_trap_at_cells`).
+    trap_at_cells: Option<u64>,
 }
 
 #[wasm_bindgen]
@@ -60,6 +63,7 @@ impl Simulation {
             geometry: ScreenGeometry::default(),
             recorded_digest: None,
             view_cache: None,
+            trap_at_cells: None,
         })
     }
 
@@ -97,6 +101,7 @@ impl Simulation {
             geometry: ScreenGeometry::default(),
             recorded_digest: Some(record.digest),
             view_cache: None,
+            trap_at_cells: None,
         })
     }
 
@@ -119,7 +124,18 @@ impl Simulation {
         if added > 0 {
             self.view_cache = None;
         }
+        if self.trap_at_cells.is_some_and(|cells| self.cells() >= cells as f64) {
+            // What running out of memory does: the allocation error handler aborts, which
+            // traps the instance (`RuntimeError: unreachable` in the browser).
+            std::alloc::handle_alloc_error(std::alloc::Layout::new::<[u8; 1 << 30]>());
+        }
         added
+    }
+
+    /// Test hook for the page's recovery from a dead instance: once the run holds `cells`
+    /// cells, the next `step` traps the wasm instance the way exhausted memory does.
+    pub fn debug_trap_at_cells(&mut self, cells: f64) {
+        self.trap_at_cells = Some(cells as u64);
     }
 
     /// Whether growth has stopped.
@@ -419,3 +435,4 @@ fn colouring_named(name: &str) -> Result<Colouring, JsError> {
     Colouring::from_name(name)
         .ok_or_else(|| JsError::new(&format!("colouring {name:?}: use order, flow or plain")))
 }
+

@@ -55,7 +55,7 @@ fn generate(input: &Path, out_dir: &Path) -> Result<(), String> {
         .js_string_builtins(false)
         .ts_typed_array_buffers(false)
         .reference_types(false)
-        .reset_state_function(false)
+        .reset_state_function(true)
         .force_enable_abort_handler(false);
     bindgen
         .generate(out_dir)
