@@ -42,7 +42,7 @@ async function start() {
   view = new NetworkView(byId('canvas'), state.session, state.colours);
   form = new ParameterForm(byId('form'), byId('param-seed'), schema, commitField);
   runner = new Runner({
-    redraw, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying, failed: onFailure,
+    redraw, refill, draw, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying, failed: onFailure,
   });
   window.ramulusPage = { runner, view, state };
 
@@ -196,15 +196,29 @@ function onFailure(error) {
   showNoRun(core.trap_message(state.link, progress, messageOf(error)));
 }
 
+/// Refills the geometry from the run and draws it; returns the milliseconds both took.
 function redraw() {
-  const simulation = state.simulation;
-  if (!simulation) return view.draw();
+  return refill() + draw();
+}
+
+/// Refills the geometry from the run (only what growth changed); returns its milliseconds.
+function refill() {
   const started = performance.now();
-  state.session.refill();
+  const count = state.session.refill();
+  const refillMs = performance.now() - started;
+  runner.stats.refills.push({ refillMs, segments: count });
+  return refillMs;
+}
+
+/// Draws the geometry as last refilled, and the colour key; returns its milliseconds.
+function draw() {
+  const started = performance.now();
   view.resize();
   view.draw();
   showLegend();
-  return performance.now() - started;
+  const drawMs = performance.now() - started;
+  runner.stats.drawTimes.push({ drawMs, segments: state.session.count });
+  return drawMs;
 }
 
 function showProgress() {
