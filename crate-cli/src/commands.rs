@@ -101,7 +101,8 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
             "stopped": stopped.name(),
             "metrics": view.metrics,
             "caution": params.is_site().then_some(SITE_CAUTION),
-            "link": format!("#{}", encode_link(&params)),
+            "link": format!("{}#{}", options.page, encode_link(&params)),
+            "fragment": format!("#{}", encode_link(&params)),
         });
         say!("{output}");
     } else {
@@ -113,6 +114,11 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
             view.digest
         );
         print_table(&view.metrics, &params.domain.units);
+        say!(
+            "\nopen on the page: {}#{}",
+            options.page,
+            encode_link(&params)
+        );
         if params.is_site() {
             say!("\nCAUTION: {SITE_CAUTION}");
         }
