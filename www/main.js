@@ -206,7 +206,7 @@ function refill() {
   const started = performance.now();
   const count = state.session.refill();
   const refillMs = performance.now() - started;
-  runner.stats.refills.push({ refillMs, segments: count });
+  runner.record('refills', { refillMs, segments: count });
   return refillMs;
 }
 
@@ -217,7 +217,7 @@ function draw() {
   view.draw();
   showLegend();
   const drawMs = performance.now() - started;
-  runner.stats.drawTimes.push({ drawMs, segments: state.session.count });
+  runner.record('drawTimes', { drawMs, segments: state.session.count });
   return drawMs;
 }
 

@@ -277,8 +277,10 @@ mod tests {
             let mut growth = Growth::new(&params).unwrap();
             let mut growing = GrowingScreen::default();
             let mut geometry = ScreenGeometry::default();
-            let mut steps = 0;
-            for slice in [1u64, 1, 3, 10, 40, 7, 150, 300, 2000] {
+            for (steps, slice) in [1u64, 1, 3, 10, 40, 7, 150, 300, 2000]
+                .into_iter()
+                .enumerate()
+            {
                 growth.step(slice);
                 let network = growth.network();
                 assert!(growing.update(&network, rule, &mut geometry), "{link}");
@@ -302,7 +304,6 @@ mod tests {
                         "{link}: pictures differ after step {steps}"
                     );
                 }
-                steps += 1;
             }
             assert!(geometry.len() > 500, "{link}: {} entries", geometry.len());
         }
