@@ -33,6 +33,8 @@ export class Session {
     const simulation = new core.Simulation(link);
     const trapAt = globalThis.ramulusTestHooks?.trapAtCells;
     if (trapAt) simulation.debug_trap_at_cells(trapAt);
+    // Benchmark switch (tests/e2e/bench-page.mjs): refill the geometry in full every time.
+    if (globalThis.ramulusTestHooks?.fullRefill) simulation.set_full_refill(true);
     return simulation;
   }
 

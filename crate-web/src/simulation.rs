@@ -45,6 +45,8 @@ pub struct Simulation {
     /// Everything derived from the network as it stands (metrics, SVG, record share it);
     /// dropped whenever the network changes.
     view_cache: Option<RunView>,
+    /// Benchmark switch: refill the geometry in full every time (see `set_full_refill`).
+    full_refill: bool,
     /// Test hook: once the run holds this many cells, `step` fails as a failed allocation
     /// does (see `debug_trap_at_cells`).
     trap_at_cells: Option<u64>,
@@ -68,6 +70,7 @@ impl Simulation {
             recorded_digest: None,
             view_cache: None,
             trap_at_cells: None,
+            full_refill: false,
         })
     }
 
@@ -107,6 +110,7 @@ impl Simulation {
             recorded_digest: Some(record.digest),
             view_cache: None,
             trap_at_cells: None,
+            full_refill: false,
         })
     }
 
@@ -138,6 +142,14 @@ impl Simulation {
             std::alloc::handle_alloc_error(std::alloc::Layout::new::<[u8; 1 << 30]>());
         }
         added
+    }
+
+    /// Benchmark switch: with `on`, `update_geometry` runs the core's passes in full every
+    /// time instead of refilling only what growth changed (the page benchmark compares both).
+    pub fn set_full_refill(&mut self, on: bool) {
+        self.full_refill = on;
+        self.growing.clear();
+        self.geometry = ScreenGeometry::default();
     }
 
     /// Test hook for the page's recovery from a dead instance: once the run holds `cells`
@@ -341,14 +353,16 @@ impl Simulation {
     pub fn update_geometry(&mut self) -> u32 {
         let network = self.network();
         let rule = width_rule(&self.params);
-        if self.growing.update(&network, rule, &mut self.geometry) {
-            return self.geometry.len() as u32;
-        }
-        // Not the last network grown further: start the forest afresh, or refill in full.
-        self.growing.clear();
-        self.geometry = ScreenGeometry::default();
-        if self.growing.update(&network, rule, &mut self.geometry) {
-            return self.geometry.len() as u32;
+        if !self.full_refill {
+            if self.growing.update(&network, rule, &mut self.geometry) {
+                return self.geometry.len() as u32;
+            }
+            // Not the last network grown further: start the forest afresh, or refill in full.
+            self.growing.clear();
+            self.geometry = ScreenGeometry::default();
+            if self.growing.update(&network, rule, &mut self.geometry) {
+                return self.geometry.len() as u32;
+            }
         }
         self.growing.clear();
         match topology_pass(&network) {
