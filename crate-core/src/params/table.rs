@@ -53,7 +53,8 @@ pub struct Bounds {
 
 /// How a fit steps a parameter: evenly, or evenly in its logarithm (positive values spanning
 /// several orders of magnitude).
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "snake_case")]
 pub enum FitScale {
     /// Even steps of the value.
     Linear,
