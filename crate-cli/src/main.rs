@@ -11,6 +11,7 @@ macro_rules! say {
 
 mod bench;
 mod commands;
+mod fit_bench;
 mod fit_command;
 mod interrupt;
 mod options;

@@ -14,6 +14,7 @@ pub mod format;
 pub mod legend;
 pub mod palette;
 pub mod plots;
+pub mod posterior_svg;
 pub mod raster;
 pub mod scale_bar;
 pub mod screen;
