@@ -140,6 +140,11 @@ impl Frontier {
         self.rebuild_internal();
     }
 
+    /// Sets one leaf and recombines its ancestors, stopping at the first ancestor whose
+    /// cheapest cost, cheapest slot and weight sum all come out as they were: every ancestor
+    /// above it depends only on values that did not change, so the trees are exactly what a
+    /// walk to the root would give (for the cheapest rule, whose weights are all 0, most walks
+    /// stop after a few levels).
     fn set_leaf(&mut self, index: u32, cost: f64, weight: f64) {
         let mut node = self.capacity + index as usize;
         self.min_cost[node] = cost;
@@ -147,7 +152,20 @@ impl Frontier {
         self.weight_sum[node] = weight;
         while node > 1 {
             node /= 2;
+            let before = (
+                self.min_cost[node].to_bits(),
+                self.min_slot[node],
+                self.weight_sum[node].to_bits(),
+            );
             self.combine(node);
+            let after = (
+                self.min_cost[node].to_bits(),
+                self.min_slot[node],
+                self.weight_sum[node].to_bits(),
+            );
+            if before == after {
+                break;
+            }
         }
     }
 
