@@ -160,7 +160,12 @@ impl Growth {
             for (kind, &first) in candidates.iter().enumerate() {
                 let mut node = first;
                 while node != NONE {
-                    let cost = self.model.cost(cx, cy, &self.node_anchor(node));
+                    let cost = if self.model.length_only {
+                        let index = node as usize;
+                        self.model.length_cost(cx, cy, self.x[index], self.y[index])
+                    } else {
+                        self.model.cost(cx, cy, &self.node_anchor(node))
+                    };
                     consider(
                         cost,
                         Attachment {

@@ -43,6 +43,9 @@ pub(crate) struct CostModel {
     pub preferred: Option<(f64, f64)>,
     pub grade_x: f64,
     pub grade_y: f64,
+    /// Whether only the length term counts (every other weight is not positive), so the cost
+    /// of an anchor needs nothing but its position (`length_cost`).
+    pub length_only: bool,
 }
 
 impl CostModel {
@@ -62,6 +65,11 @@ impl CostModel {
             preferred,
             grade_x: params.domain.grade_x,
             grade_y: params.domain.grade_y,
+            // Validated weights are finite and not negative, so `<= 0` is "the term is off".
+            length_only: params.costs.w_turn <= 0.0
+                && params.costs.w_flow <= 0.0
+                && params.costs.w_path <= 0.0
+                && params.costs.w_grade <= 0.0,
         }
     }
 
@@ -72,6 +80,9 @@ impl CostModel {
         let vy = anchor.y - y;
         let length = (vx * vx + vy * vy).sqrt();
         let mut cost = self.w_len * length;
+        if self.length_only {
+            return cost;
+        }
         if self.w_turn > 0.0 && length > 0.0 {
             cost += self.w_turn * self.turn(vx / length, vy / length, anchor);
         }
@@ -90,6 +101,16 @@ impl CostModel {
             }
         }
         cost
+    }
+
+    /// The cost of joining the cell at `(x, y)` to an anchor at `(anchor_x, anchor_y)` when
+    /// `length_only`: the very bits `cost` gives then, without gathering the whole anchor.
+    #[inline]
+    pub fn length_cost(&self, x: f64, y: f64, anchor_x: f64, anchor_y: f64) -> f64 {
+        debug_assert!(self.length_only);
+        let vx = anchor_x - x;
+        let vy = anchor_y - y;
+        self.w_len * (vx * vx + vy * vy).sqrt()
     }
 
     /// Junction-angle penalty for flow leaving the cell along unit `(fx, fy)`:

@@ -27,12 +27,24 @@ pub(crate) struct Slot {
     pub best: Attachment,
 }
 
+/// The cheapest leaf under a tree node: its cost and slot (cost and slot side by side, so a
+/// node and its sibling share a cache line).
+#[derive(Clone, Copy, Debug)]
+struct Cheapest {
+    cost: f64,
+    slot: u32,
+}
+
 /// Frontier slots with a min tree (cheapest first) and a sum tree (random joining).
 pub(crate) struct Frontier {
     capacity: usize,
-    min_cost: Vec<f64>,
-    min_slot: Vec<u32>,
+    /// The min tree: node 1 is the root, node `capacity + i` the leaf of slot `i`.
+    min: Vec<Cheapest>,
+    /// The sum tree of weights, laid out as `min`; empty when weights are not kept (the
+    /// cheapest rule, whose weights are all 0).
     weight_sum: Vec<f64>,
+    /// Whether `weight_sum` is kept.
+    keeps_weights: bool,
     /// Slots by index; a free slot has `cell == NONE`.
     pub slots: Vec<Slot>,
     free: Vec<u32>,
@@ -40,12 +52,14 @@ pub(crate) struct Frontier {
 }
 
 impl Frontier {
-    pub fn new() -> Frontier {
+    /// An empty frontier; `keeps_weights` is false when every weight will be 0 (the cheapest
+    /// rule), so the sum tree is left out and `total_weight` stays 0.
+    pub fn new(keeps_weights: bool) -> Frontier {
         let mut frontier = Frontier {
             capacity: 0,
-            min_cost: Vec::new(),
-            min_slot: Vec::new(),
+            min: Vec::new(),
             weight_sum: Vec::new(),
+            keeps_weights,
             slots: Vec::new(),
             free: Vec::new(),
             live: 0,
@@ -98,17 +112,20 @@ impl Frontier {
         if self.live == 0 {
             return None;
         }
-        Some((self.min_slot[1], self.min_cost[1]))
+        Some((self.min[1].slot, self.min[1].cost))
     }
 
-    /// Sum of all weights.
+    /// Sum of all weights (0 when weights are not kept).
     pub fn total_weight(&self) -> f64 {
-        self.weight_sum[1]
+        self.weight_sum.get(1).copied().unwrap_or(0.0)
     }
 
     /// The slot where the cumulative weight passes `target` (0 <= target < total).
     /// Never lands on a zero-weight slot while the total is positive.
     pub fn pick_by_weight(&self, mut target: f64) -> u32 {
+        if !self.keeps_weights {
+            return 0;
+        }
         let mut node = 1;
         while node < self.capacity {
             let left = 2 * node;
@@ -129,12 +146,14 @@ impl Frontier {
         for index in 0..self.slots.len() {
             let slot = self.slots[index];
             let leaf = self.capacity + index;
-            if slot.cell == NONE {
-                self.min_cost[leaf] = f64::INFINITY;
-                self.weight_sum[leaf] = 0.0;
+            let (cost, weight) = if slot.cell == NONE {
+                (f64::INFINITY, 0.0)
             } else {
-                self.min_cost[leaf] = slot.cost;
-                self.weight_sum[leaf] = weight_of(&slot);
+                (slot.cost, weight_of(&slot))
+            };
+            self.min[leaf].cost = cost;
+            if self.keeps_weights {
+                self.weight_sum[leaf] = weight;
             }
         }
         self.rebuild_internal();
@@ -143,68 +162,89 @@ impl Frontier {
     /// Sets one leaf and recombines its ancestors, stopping at the first ancestor whose
     /// cheapest cost, cheapest slot and weight sum all come out as they were: every ancestor
     /// above it depends only on values that did not change, so the trees are exactly what a
-    /// walk to the root would give (for the cheapest rule, whose weights are all 0, most walks
+    /// walk to the root would give (for the cheapest rule, which keeps no weights, most walks
     /// stop after a few levels).
     fn set_leaf(&mut self, index: u32, cost: f64, weight: f64) {
         let mut node = self.capacity + index as usize;
-        self.min_cost[node] = cost;
-        self.min_slot[node] = index;
-        self.weight_sum[node] = weight;
-        while node > 1 {
-            node /= 2;
-            let before = (
-                self.min_cost[node].to_bits(),
-                self.min_slot[node],
-                self.weight_sum[node].to_bits(),
-            );
-            self.combine(node);
-            let after = (
-                self.min_cost[node].to_bits(),
-                self.min_slot[node],
-                self.weight_sum[node].to_bits(),
-            );
-            if before == after {
-                break;
+        self.min[node] = Cheapest { cost, slot: index };
+        if self.keeps_weights {
+            self.weight_sum[node] = weight;
+            while node > 1 {
+                node /= 2;
+                let before = (
+                    self.min[node].cost.to_bits(),
+                    self.min[node].slot,
+                    self.weight_sum[node].to_bits(),
+                );
+                self.combine(node);
+                self.combine_weights(node);
+                let after = (
+                    self.min[node].cost.to_bits(),
+                    self.min[node].slot,
+                    self.weight_sum[node].to_bits(),
+                );
+                if before == after {
+                    break;
+                }
+            }
+        } else {
+            while node > 1 {
+                node /= 2;
+                let before = self.min[node];
+                self.combine(node);
+                let after = self.min[node];
+                if before.cost.to_bits() == after.cost.to_bits() && before.slot == after.slot {
+                    break;
+                }
             }
         }
     }
 
+    /// The cheapest of a node's two children; the left one (lower slots) on equal costs.
+    #[inline]
     fn combine(&mut self, node: usize) {
-        let left = 2 * node;
-        let right = left + 1;
-        let pick = if self.min_cost[right] < self.min_cost[left] {
-            right
-        } else {
-            left
-        };
-        self.min_cost[node] = self.min_cost[pick];
-        self.min_slot[node] = self.min_slot[pick];
-        self.weight_sum[node] = self.weight_sum[left] + self.weight_sum[right];
+        let left = self.min[2 * node];
+        let right = self.min[2 * node + 1];
+        self.min[node] = if right.cost < left.cost { right } else { left };
+    }
+
+    #[inline]
+    fn combine_weights(&mut self, node: usize) {
+        self.weight_sum[node] = self.weight_sum[2 * node] + self.weight_sum[2 * node + 1];
     }
 
     fn rebuild_internal(&mut self) {
         for node in (1..self.capacity).rev() {
             self.combine(node);
+            if self.keeps_weights {
+                self.combine_weights(node);
+            }
         }
     }
 
     fn resize(&mut self, capacity: usize) {
         let old_capacity = self.capacity;
-        let mut min_cost = vec![f64::INFINITY; 2 * capacity];
-        let mut min_slot = vec![NONE; 2 * capacity];
-        let mut weight_sum = vec![0.0; 2 * capacity];
-        for index in 0..old_capacity {
-            min_cost[capacity + index] = self.min_cost[old_capacity + index];
-            min_slot[capacity + index] = index as u32;
-            weight_sum[capacity + index] = self.weight_sum[old_capacity + index];
+        let mut min = vec![
+            Cheapest {
+                cost: f64::INFINITY,
+                slot: NONE,
+            };
+            2 * capacity
+        ];
+        for index in 0..capacity {
+            min[capacity + index].slot = index as u32;
         }
-        for index in old_capacity..capacity {
-            min_slot[capacity + index] = index as u32;
+        for index in 0..old_capacity {
+            min[capacity + index].cost = self.min[old_capacity + index].cost;
+        }
+        if self.keeps_weights {
+            let mut weight_sum = vec![0.0; 2 * capacity];
+            weight_sum[capacity..capacity + old_capacity]
+                .copy_from_slice(&self.weight_sum[old_capacity..2 * old_capacity]);
+            self.weight_sum = weight_sum;
         }
         self.capacity = capacity;
-        self.min_cost = min_cost;
-        self.min_slot = min_slot;
-        self.weight_sum = weight_sum;
+        self.min = min;
         self.rebuild_internal();
     }
 }
@@ -227,7 +267,7 @@ mod tests {
 
     #[test]
     fn cheapest_follows_updates_and_removals() {
-        let mut frontier = Frontier::new();
+        let mut frontier = Frontier::new(true);
         let mut ids = Vec::new();
         for cell in 0..100u32 {
             ids.push(frontier.insert(slot(cell, 100.0 - cell as f64), 1.0));
@@ -242,7 +282,7 @@ mod tests {
 
     #[test]
     fn weighted_pick_skips_zero_weights() {
-        let mut frontier = Frontier::new();
+        let mut frontier = Frontier::new(true);
         for cell in 0..10u32 {
             frontier.insert(slot(cell, 0.0), if cell == 7 { 2.0 } else { 0.0 });
         }

@@ -110,7 +110,7 @@ impl Growth {
             params: params.clone(),
             model: CostModel::new(params),
             lattice,
-            frontier: Frontier::new(),
+            frontier: Frontier::new(params.run.joining != Joining::Cheapest),
             random,
             x: Vec::new(),
             y: Vec::new(),
@@ -138,6 +138,10 @@ impl Growth {
         if params.run.attach_to_segments {
             growth.junction_head = vec![NONE; growth.lattice.cell_total()];
         }
+        // One node per occupied cell (junctions come on top): reserving them at once spares
+        // the copies of eleven doubling arrays.
+        let allowed_count = allowed.iter().filter(|&&ok| ok).count() as u64;
+        growth.reserve_nodes(params.run.cells.min(allowed_count) as usize);
         for (index, root) in params.domain.roots.iter().enumerate() {
             let cell = growth.lattice.cell_index(root.x, root.y);
             match growth.lattice.state[cell] {
@@ -279,6 +283,23 @@ impl Growth {
         );
         self.flow[node as usize] = self.cell_weight;
         self.occupy(cell, node);
+    }
+
+    fn reserve_nodes(&mut self, count: usize) {
+        self.x.reserve_exact(count);
+        self.y.reserve_exact(count);
+        self.parent.reserve_exact(count);
+        self.down_x.reserve_exact(count);
+        self.down_y.reserve_exact(count);
+        self.dist.reserve_exact(count);
+        self.transport.reserve_exact(count);
+        self.flow.reserve_exact(count);
+        self.root_of.reserve_exact(count);
+        self.child_count.reserve_exact(count);
+        self.cell_of.reserve_exact(count);
+        if self.params.run.attach_to_segments {
+            self.junction_next.reserve_exact(count);
+        }
     }
 
     #[allow(clippy::too_many_arguments)]
