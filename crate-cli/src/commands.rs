@@ -5,7 +5,7 @@ use ramulus_core::import::mask_from_bytes;
 use ramulus_core::link::{decode_link, encode_link};
 use ramulus_core::metrics::Metrics;
 use ramulus_core::presets::presets as all_presets;
-use ramulus_core::record::{make_record, read_record, write_record};
+use ramulus_core::record::{read_record, write_record_to};
 use ramulus_core::run::{RunView, SITE_CAUTION};
 use ramulus_draw::texts::stop_text;
 use ramulus_draw::{run_svg, Colouring};
@@ -77,12 +77,18 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     };
     let mut growth = Growth::new(&params).map_err(|error| CliError::Failed(error.to_string()))?;
     let stopped = growth.run();
-    let view = RunView::new(growth.network(), &params).map_err(|error| {
+    let cell_count = growth.cell_count();
+    let network = growth.network();
+    // The grower's lattice and node arrays are not needed past this point.
+    drop(growth);
+    let view = RunView::new(network, &params).map_err(|error| {
         CliError::Failed(format!("internal: grown network is not a forest: {error}"))
     })?;
     if let Some(path) = &options.record_file {
-        let record = make_record(&view, &params, Some(stopped.name().to_string()));
-        plan.stage(path, &write_record(&record))?;
+        // Streamed into the temporary file: the record is never held in memory whole.
+        plan.stage_writing(path, |writer| {
+            write_record_to(writer, &view, &params, Some(stopped.name()))
+        })?;
     }
     if let Some(path) = &options.svg_file {
         let svg = run_svg(&view, &params, colour);
@@ -93,7 +99,7 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     if options.json {
         let output = json!({
             "digest": view.digest,
-            "cells": growth.cell_count(),
+            "cells": cell_count,
             "nodes": view.network.nodes.len(),
             "segments": view.network.segment_count(),
             "total_length": view.metrics.total_length,
@@ -108,7 +114,7 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
         say!("stopped: {}", stop_text(stopped));
         say!(
             "cells: {}   segments: {}   digest: {}",
-            growth.cell_count(),
+            cell_count,
             view.network.segment_count(),
             view.digest
         );
