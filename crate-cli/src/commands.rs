@@ -1,9 +1,10 @@
 //! The `grow`, `measure` and `presets` commands: read inputs, call the core, print results.
 
-use ramulus_core::growth::Growth;
+use ramulus_core::growth::{Growth, StopReason};
 use ramulus_core::import::mask_from_bytes;
 use ramulus_core::link::{decode_link, encode_link};
 use ramulus_core::metrics::Metrics;
+use ramulus_core::params::Params;
 use ramulus_core::presets::presets as all_presets;
 use ramulus_core::record::{read_record, write_record_to};
 use ramulus_core::run::{RunView, SITE_CAUTION};
@@ -97,19 +98,7 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     // Only now, with every output written in full beside its target, are they put in place.
     plan.commit()?;
     if options.json {
-        let output = json!({
-            "digest": view.digest,
-            "cells": cell_count,
-            "nodes": view.network.nodes.len(),
-            "segments": view.network.segment_count(),
-            "total_length": view.metrics.total_length,
-            "units": params.domain.units,
-            "stopped": stopped.name(),
-            "metrics": view.metrics,
-            "caution": params.is_site().then_some(SITE_CAUTION),
-            "link": format!("#{}", encode_link(&params)),
-        });
-        say!("{output}");
+        say!("{}", grow_json(&view, &params, cell_count, stopped));
     } else {
         say!("stopped: {}", stop_text(stopped));
         say!(
@@ -124,6 +113,27 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
         }
     }
     Ok(())
+}
+
+/// The one JSON value `grow --json` prints.
+pub fn grow_json(
+    view: &RunView,
+    params: &Params,
+    cell_count: u64,
+    stopped: StopReason,
+) -> serde_json::Value {
+    json!({
+        "digest": view.digest,
+        "cells": cell_count,
+        "nodes": view.network.nodes.len(),
+        "segments": view.network.segment_count(),
+        "total_length": view.metrics.total_length,
+        "units": params.domain.units,
+        "stopped": stopped.name(),
+        "metrics": view.metrics,
+        "caution": params.is_site().then_some(SITE_CAUTION),
+        "link": format!("#{}", encode_link(params)),
+    })
 }
 
 fn print_table(metrics: &Metrics, units: &str) {
