@@ -90,8 +90,14 @@ impl CostModel {
             cost += self.w_flow * anchor.transport;
         }
         if self.w_path > 0.0 {
-            cost += self.w_path
-                * (anchor.dist + self.supply_length(vx, vy, anchor.axis_x, anchor.axis_y));
+            // Without elongation or rear cost the supply length is `length` itself (the same
+            // expression), so it is not taken twice.
+            let supply = if self.along_scale == 1.0 && self.rear_scale == 1.0 {
+                length
+            } else {
+                self.supply_length(vx, vy, anchor.axis_x, anchor.axis_y)
+            };
+            cost += self.w_path * (anchor.dist + supply);
         }
         if self.w_grade > 0.0 {
             // Rise of the anchor over the cell, in percent of one cell length.

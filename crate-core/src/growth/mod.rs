@@ -82,6 +82,9 @@ pub struct Growth {
     axes: Vec<(f64, f64)>,
     cell_count: u64,
     cell_weight: f64,
+    /// Whether a segment has been split: a junction then drains an older node, so node order
+    /// is no longer a parents-first order (`refresh_flows`).
+    has_junctions: bool,
     /// Whether a stored attachment may be out of date and must be re-checked when picked.
     recheck: bool,
     /// Reference cost for weights of weighted joining.
@@ -128,6 +131,7 @@ impl Growth {
             axes: Vec::new(),
             cell_count: 0,
             cell_weight: params.domain.runoff,
+            has_junctions: false,
             recheck: params.run.attach_to_segments || params.costs.branch_angle.is_some(),
             weight_reference: f64::NAN,
             last_refresh_nodes: 0,
@@ -404,6 +408,7 @@ impl Growth {
             NONE,
         );
         self.flow[junction as usize] = self.flow[upstream as usize];
+        self.has_junctions = true;
         // The upstream node now drains into the junction; the parent keeps one child.
         self.parent[upstream as usize] = junction;
         self.child_count[parent as usize] -= 1;

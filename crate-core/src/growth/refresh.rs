@@ -45,6 +45,10 @@ impl Growth {
     }
 
     pub(super) fn refresh_flows(&mut self) {
+        if !self.has_junctions {
+            self.refresh_flows_in_index_order();
+            return;
+        }
         let count = self.x.len();
         // Children in compressed rows, then a breadth-first order from the roots.
         self.scratch_children
@@ -79,6 +83,45 @@ impl Growth {
         let extra = self.cell_weight;
         for &node in &self.scratch_order {
             let node = node as usize;
+            let parent = self.parent[node];
+            if parent == NO_PARENT {
+                self.transport[node] = 0.0;
+                continue;
+            }
+            let parent = parent as usize;
+            let (vx, vy) = (self.x[parent] - self.x[node], self.y[parent] - self.y[node]);
+            let length = (vx * vx + vy * vy).sqrt();
+            self.transport[node] =
+                self.transport[parent] + length * marginal(self.flow[node], extra, alpha);
+        }
+    }
+
+    /// `refresh_flows` when every node's parent has a lower index (no segment has been split:
+    /// a new node always drains into an older one), to the same bits without building the
+    /// breadth-first order. Flows: walking nodes from the last down, each node is final when
+    /// read (its children have higher indices) and adds into its parent, so every parent
+    /// receives its children's flows in decreasing index order, as the reversed breadth-first
+    /// order adds them (a parent's children are listed there together, by increasing index).
+    /// Transport costs: each node needs only its parent's, which comes first either way.
+    fn refresh_flows_in_index_order(&mut self) {
+        let count = self.x.len();
+        for node in 0..count {
+            debug_assert!(self.parent[node] == NO_PARENT || (self.parent[node] as usize) < node);
+            self.flow[node] = if self.cell_of[node] == NONE {
+                0.0
+            } else {
+                self.cell_weight
+            };
+        }
+        for node in (0..count).rev() {
+            let parent = self.parent[node];
+            if parent != NO_PARENT {
+                self.flow[parent as usize] += self.flow[node];
+            }
+        }
+        let alpha = self.params.costs.alpha;
+        let extra = self.cell_weight;
+        for node in 0..count {
             let parent = self.parent[node];
             if parent == NO_PARENT {
                 self.transport[node] = 0.0;
