@@ -1,6 +1,11 @@
 //! `Frontier`: the allowed empty cells within reach of the network, each with its best
 //! attachment, kept in a segment tree that answers "cheapest slot" and "slot drawn by weight"
 //! in O(log n) and is rebuilt (never patched by subtraction) so sums do not drift.
+//!
+//! Leaf changes are applied to the tree's inner nodes lazily, just before the tree is next
+//! read (`settle`): the inner nodes are a function of the leaves alone, so the answers are the
+//! same as with every change applied at once, and a slot emptied and filled again within one
+//! step (the picked cell's slot is reused by the next cell offered) often costs no walk at all.
 
 /// No attachment yet / not a node.
 pub(crate) const NONE: u32 = u32::MAX;
@@ -49,6 +54,8 @@ pub(crate) struct Frontier {
     pub slots: Vec<Slot>,
     free: Vec<u32>,
     live: usize,
+    /// Leaves changed since the inner nodes were last brought up to date.
+    unsettled: Vec<u32>,
 }
 
 impl Frontier {
@@ -63,6 +70,7 @@ impl Frontier {
             slots: Vec::new(),
             free: Vec::new(),
             live: 0,
+            unsettled: Vec::new(),
         };
         frontier.resize(64);
         frontier
@@ -108,24 +116,27 @@ impl Frontier {
     }
 
     /// Cheapest live slot and its cost (ties: lowest slot index).
-    pub fn cheapest(&self) -> Option<(u32, f64)> {
+    pub fn cheapest(&mut self) -> Option<(u32, f64)> {
         if self.live == 0 {
             return None;
         }
+        self.settle();
         Some((self.min[1].slot, self.min[1].cost))
     }
 
     /// Sum of all weights (0 when weights are not kept).
-    pub fn total_weight(&self) -> f64 {
+    pub fn total_weight(&mut self) -> f64 {
+        self.settle();
         self.weight_sum.get(1).copied().unwrap_or(0.0)
     }
 
     /// The slot where the cumulative weight passes `target` (0 <= target < total).
     /// Never lands on a zero-weight slot while the total is positive.
-    pub fn pick_by_weight(&self, mut target: f64) -> u32 {
+    pub fn pick_by_weight(&mut self, mut target: f64) -> u32 {
         if !self.keeps_weights {
             return 0;
         }
+        self.settle();
         let mut node = 1;
         while node < self.capacity {
             let left = 2 * node;
@@ -159,45 +170,59 @@ impl Frontier {
         self.rebuild_internal();
     }
 
-    /// Sets one leaf and recombines its ancestors, stopping at the first ancestor whose
-    /// cheapest cost, cheapest slot and weight sum all come out as they were: every ancestor
-    /// above it depends only on values that did not change, so the trees are exactly what a
-    /// walk to the root would give (for the cheapest rule, which keeps no weights, most walks
-    /// stop after a few levels).
+    /// Sets one leaf; its ancestors are recombined by the next `settle`.
     fn set_leaf(&mut self, index: u32, cost: f64, weight: f64) {
-        let mut node = self.capacity + index as usize;
+        let node = self.capacity + index as usize;
         self.min[node] = Cheapest { cost, slot: index };
         if self.keeps_weights {
             self.weight_sum[node] = weight;
-            while node > 1 {
-                node /= 2;
-                let before = (
-                    self.min[node].cost.to_bits(),
-                    self.min[node].slot,
-                    self.weight_sum[node].to_bits(),
-                );
-                self.combine(node);
-                self.combine_weights(node);
-                let after = (
-                    self.min[node].cost.to_bits(),
-                    self.min[node].slot,
-                    self.weight_sum[node].to_bits(),
-                );
-                if before == after {
-                    break;
+        }
+        self.unsettled.push(index);
+    }
+
+    /// Recombines the ancestors of every changed leaf, each walk stopping at the first
+    /// ancestor whose cheapest cost, cheapest slot and weight sum all come out as they were:
+    /// every node above it depends only on values that did not change (a later walk through
+    /// the same nodes recombines them from their final children), so the trees are exactly
+    /// what full walks to the root would give.
+    fn settle(&mut self) {
+        let mut unsettled = std::mem::take(&mut self.unsettled);
+        for &index in &unsettled {
+            let mut node = self.capacity + index as usize;
+            if self.keeps_weights {
+                while node > 1 {
+                    node /= 2;
+                    let before = (
+                        self.min[node].cost.to_bits(),
+                        self.min[node].slot,
+                        self.weight_sum[node].to_bits(),
+                    );
+                    self.combine(node);
+                    self.combine_weights(node);
+                    let after = (
+                        self.min[node].cost.to_bits(),
+                        self.min[node].slot,
+                        self.weight_sum[node].to_bits(),
+                    );
+                    if before == after {
+                        break;
+                    }
                 }
-            }
-        } else {
-            while node > 1 {
-                node /= 2;
-                let before = self.min[node];
-                self.combine(node);
-                let after = self.min[node];
-                if before.cost.to_bits() == after.cost.to_bits() && before.slot == after.slot {
-                    break;
+            } else {
+                while node > 1 {
+                    node /= 2;
+                    let before = self.min[node];
+                    self.combine(node);
+                    let after = self.min[node];
+                    if before.cost.to_bits() == after.cost.to_bits() && before.slot == after.slot
+                    {
+                        break;
+                    }
                 }
             }
         }
+        unsettled.clear();
+        self.unsettled = unsettled;
     }
 
     /// The cheapest of a node's two children; the left one (lower slots) on equal costs.
@@ -214,6 +239,7 @@ impl Frontier {
     }
 
     fn rebuild_internal(&mut self) {
+        self.unsettled.clear();
         for node in (1..self.capacity).rev() {
             self.combine(node);
             if self.keeps_weights {
@@ -278,6 +304,62 @@ mod tests {
         frontier.update(ids[5], -3.0, slot(5, 0.0).best, 1.0);
         assert_eq!(frontier.cheapest().unwrap(), (ids[5], -3.0));
         assert_eq!(frontier.total_weight(), 99.0);
+    }
+
+    /// After any mix of inserts, updates and removals, read at any moment, the tree answers
+    /// what a direct scan of the live slots gives: the cheapest cost, the lowest slot among
+    /// equal costs, and the sum of the (whole-number, so exactly summed) weights.
+    #[test]
+    fn lazy_tree_matches_a_direct_scan() {
+        for keeps_weights in [false, true] {
+            let mut frontier = Frontier::new(keeps_weights);
+            let mut weights: Vec<f64> = Vec::new();
+            let mut state = 0x9e37_79b9_7f4a_7c15u64;
+            let mut next = |bound: u64| {
+                state ^= state << 13;
+                state ^= state >> 7;
+                state ^= state << 17;
+                state % bound
+            };
+            let mut live: Vec<u32> = Vec::new();
+            for step in 0..5_000u32 {
+                let cost = [1.0, 2f64.sqrt(), 3.0][next(3) as usize];
+                let weight = next(4) as f64;
+                match next(5) {
+                    0 | 1 => {
+                        let index = frontier.insert(slot(step, cost), weight);
+                        weights.resize(weights.len().max(index as usize + 1), 0.0);
+                        weights[index as usize] = weight;
+                        live.push(index);
+                    }
+                    2 if !live.is_empty() => {
+                        let index = live[next(live.len() as u64) as usize];
+                        frontier.update(index, cost, slot(0, 0.0).best, weight);
+                        weights[index as usize] = weight;
+                    }
+                    3 if !live.is_empty() => {
+                        let index = live.swap_remove(next(live.len() as u64) as usize);
+                        frontier.remove(index);
+                        weights[index as usize] = 0.0;
+                    }
+                    _ => {}
+                }
+                if next(3) != 0 {
+                    continue;
+                }
+                let expected = live
+                    .iter()
+                    .map(|&index| (frontier.slots[index as usize].cost, index))
+                    .min_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+                assert_eq!(
+                    frontier.cheapest().map(|(index, cost)| (cost, index)),
+                    expected
+                );
+                let total: f64 = live.iter().map(|&index| weights[index as usize]).sum();
+                let expected_total = if keeps_weights { total } else { 0.0 };
+                assert_eq!(frontier.total_weight(), expected_total);
+            }
+        }
     }
 
     #[test]
