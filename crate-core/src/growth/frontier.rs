@@ -180,49 +180,54 @@ impl Frontier {
         self.unsettled.push(index);
     }
 
-    /// Recombines the ancestors of every changed leaf, each walk stopping at the first
-    /// ancestor whose cheapest cost, cheapest slot and weight sum all come out as they were:
-    /// every node above it depends only on values that did not change (a later walk through
-    /// the same nodes recombines them from their final children), so the trees are exactly
-    /// what full walks to the root would give.
+    /// Recombines the ancestors of the changed leaves level by level, each inner node once,
+    /// and only those with a child that changed: a node whose cheapest cost, cheapest slot and
+    /// weight sum come out as they were changes nothing above it. The trees are exactly what
+    /// recombining every ancestor would give.
     fn settle(&mut self) {
-        let mut unsettled = std::mem::take(&mut self.unsettled);
-        for &index in &unsettled {
-            let mut node = self.capacity + index as usize;
-            if self.keeps_weights {
-                while node > 1 {
-                    node /= 2;
-                    let before = (
-                        self.min[node].cost.to_bits(),
-                        self.min[node].slot,
-                        self.weight_sum[node].to_bits(),
-                    );
-                    self.combine(node);
-                    self.combine_weights(node);
-                    let after = (
-                        self.min[node].cost.to_bits(),
-                        self.min[node].slot,
-                        self.weight_sum[node].to_bits(),
-                    );
-                    if before == after {
-                        break;
-                    }
-                }
-            } else {
-                while node > 1 {
-                    node /= 2;
-                    let before = self.min[node];
-                    self.combine(node);
-                    let after = self.min[node];
-                    if before.cost.to_bits() == after.cost.to_bits() && before.slot == after.slot
-                    {
-                        break;
-                    }
+        if self.unsettled.is_empty() {
+            return;
+        }
+        let mut level = std::mem::take(&mut self.unsettled);
+        let capacity = self.capacity as u32;
+        for node in level.iter_mut() {
+            *node += capacity;
+        }
+        level.sort_unstable();
+        // Every leaf is at the same depth (the capacity is a power of two), so each pass moves
+        // the whole list one level up and keeps it sorted.
+        while level.first().is_some_and(|&node| node > 1) {
+            for node in level.iter_mut() {
+                *node /= 2;
+            }
+            level.dedup();
+            let mut kept = 0;
+            for position in 0..level.len() {
+                let node = level[position];
+                if self.recombine(node as usize) {
+                    level[kept] = node;
+                    kept += 1;
                 }
             }
+            level.truncate(kept);
         }
-        unsettled.clear();
-        self.unsettled = unsettled;
+        level.clear();
+        self.unsettled = level;
+    }
+
+    /// Recombines one inner node from its children; whether it changed.
+    #[inline]
+    fn recombine(&mut self, node: usize) -> bool {
+        let before = self.min[node];
+        self.combine(node);
+        let after = self.min[node];
+        let mut changed = before.cost.to_bits() != after.cost.to_bits() || before.slot != after.slot;
+        if self.keeps_weights {
+            let before = self.weight_sum[node];
+            self.combine_weights(node);
+            changed |= before.to_bits() != self.weight_sum[node].to_bits();
+        }
+        changed
     }
 
     /// The cheapest of a node's two children; the left one (lower slots) on equal costs.

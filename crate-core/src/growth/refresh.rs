@@ -1,5 +1,6 @@
 //! The exact refresh of flows and transport costs, and the re-pricing of the frontier after it.
 
+use super::cost::MarginalMemo;
 use super::*;
 
 impl Growth {
@@ -79,8 +80,7 @@ impl Growth {
                 self.flow[parent as usize] += self.flow[node as usize];
             }
         }
-        let alpha = self.params.costs.alpha;
-        let extra = self.cell_weight;
+        let mut marginals = MarginalMemo::new(self.cell_weight, self.params.costs.alpha);
         for &node in &self.scratch_order {
             let node = node as usize;
             let parent = self.parent[node];
@@ -92,7 +92,7 @@ impl Growth {
             let (vx, vy) = (self.x[parent] - self.x[node], self.y[parent] - self.y[node]);
             let length = (vx * vx + vy * vy).sqrt();
             self.transport[node] =
-                self.transport[parent] + length * marginal(self.flow[node], extra, alpha);
+                self.transport[parent] + length * marginals.marginal(self.flow[node]);
         }
     }
 
@@ -119,8 +119,7 @@ impl Growth {
                 self.flow[parent as usize] += self.flow[node];
             }
         }
-        let alpha = self.params.costs.alpha;
-        let extra = self.cell_weight;
+        let mut marginals = MarginalMemo::new(self.cell_weight, self.params.costs.alpha);
         for node in 0..count {
             let parent = self.parent[node];
             if parent == NO_PARENT {
@@ -131,7 +130,7 @@ impl Growth {
             let (vx, vy) = (self.x[parent] - self.x[node], self.y[parent] - self.y[node]);
             let length = (vx * vx + vy * vy).sqrt();
             self.transport[node] =
-                self.transport[parent] + length * marginal(self.flow[node], extra, alpha);
+                self.transport[parent] + length * marginals.marginal(self.flow[node]);
         }
     }
 }
