@@ -248,7 +248,14 @@ fn grow_json_work(params: &Params) -> Result<f64, CliError> {
     drop(growth);
     let view = ramulus_core::run::RunView::new(network, params)
         .map_err(|error| CliError::Failed(error.to_string()))?;
-    let text = crate::commands::grow_json(&view, params, cell_count, stopped).to_string();
+    let text = crate::commands::grow_json(
+        &view,
+        params,
+        cell_count,
+        stopped,
+        crate::options::DEFAULT_PAGE,
+    )
+    .to_string();
     std::hint::black_box(text);
     Ok(view.metrics.total_length)
 }

@@ -98,7 +98,10 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     // Only now, with every output written in full beside its target, are they put in place.
     plan.commit()?;
     if options.json {
-        say!("{}", grow_json(&view, &params, cell_count, stopped));
+        say!(
+            "{}",
+            grow_json(&view, &params, cell_count, stopped, &options.page)
+        );
     } else {
         say!("stopped: {}", stop_text(stopped));
         say!(
@@ -108,6 +111,11 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
             view.digest
         );
         print_table(&view.metrics, &params.domain.units);
+        say!(
+            "\nopen on the page: {}#{}",
+            options.page,
+            encode_link(&params)
+        );
         if params.is_site() {
             say!("\nCAUTION: {SITE_CAUTION}");
         }
@@ -121,6 +129,7 @@ pub fn grow_json(
     params: &Params,
     cell_count: u64,
     stopped: StopReason,
+    page: &str,
 ) -> serde_json::Value {
     json!({
         "digest": view.digest,
@@ -132,7 +141,8 @@ pub fn grow_json(
         "stopped": stopped.name(),
         "metrics": view.metrics,
         "caution": params.is_site().then_some(SITE_CAUTION),
-        "link": format!("#{}", encode_link(params)),
+        "link": format!("{page}#{}", encode_link(params)),
+        "fragment": format!("#{}", encode_link(params)),
     })
 }
 
