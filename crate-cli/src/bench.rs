@@ -222,9 +222,7 @@ fn spanning_tree_figures(side: u32, rounds: usize) -> Result<(), CliError> {
         lengths[2] = heap_prim_length(side);
         times[2].push(start.elapsed().as_secs_f64());
     }
-    say!(
-        "cheapest first, pure length, {side} x {side}, {rounds} alternating rounds (min-max):"
-    );
+    say!("cheapest first, pure length, {side} x {side}, {rounds} alternating rounds (min-max):");
     let names = [
         "ramulus grow --json work (growth, pipeline, metrics, JSON)",
         "petgraph min_spanning_tree on the 8-neighbour grid (with building it)",

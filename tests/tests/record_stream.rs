@@ -50,7 +50,12 @@ fn a_streamed_looped_record_equals_the_built_one_and_reads_back() {
     let node = |x: f64, y: f64| Node { x, y, weight: 0.25 };
     let segment = |from: u32, to: u32| Segment { from, to };
     let network = Network {
-        nodes: vec![node(0.0, 0.0), node(1.0, 0.0), node(1.0, 1.0), node(0.0, 1.0)],
+        nodes: vec![
+            node(0.0, 0.0),
+            node(1.0, 0.0),
+            node(1.0, 1.0),
+            node(0.0, 1.0),
+        ],
         segments: vec![
             segment(1, 0),
             segment(2, 1),

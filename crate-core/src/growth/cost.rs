@@ -183,8 +183,7 @@ impl MarginalMemo {
     pub fn marginal(&mut self, flow: f64) -> f64 {
         let bits = flow.to_bits();
         // Fibonacci hashing (Knuth, TAOCP vol. 3, 6.4), as for the widths in `segments`.
-        let slot =
-            (bits.wrapping_mul(0x9e37_79b9_7f4a_7c15) >> (64 - MARGINAL_MEMO_BITS)) as usize;
+        let slot = (bits.wrapping_mul(0x9e37_79b9_7f4a_7c15) >> (64 - MARGINAL_MEMO_BITS)) as usize;
         match self.slots.get_mut(slot) {
             Some((key, value)) if *key == bits => *value,
             Some(entry) => {

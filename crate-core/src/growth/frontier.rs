@@ -221,7 +221,8 @@ impl Frontier {
         let before = self.min[node];
         self.combine(node);
         let after = self.min[node];
-        let mut changed = before.cost.to_bits() != after.cost.to_bits() || before.slot != after.slot;
+        let mut changed =
+            before.cost.to_bits() != after.cost.to_bits() || before.slot != after.slot;
         if self.keeps_weights {
             let before = self.weight_sum[node];
             self.combine_weights(node);

@@ -98,7 +98,8 @@ impl Lattice {
     /// The neighbour at an offset, if inside the lattice.
     #[inline]
     pub fn neighbour(&self, column: i32, row: i32, dx: i32, dy: i32) -> Option<usize> {
-        self.neighbour_at(column, row, dx, dy).map(|(cell, _, _)| cell)
+        self.neighbour_at(column, row, dx, dy)
+            .map(|(cell, _, _)| cell)
     }
 
     /// The neighbour at an offset with its column and row, if inside the lattice.
