@@ -1,6 +1,8 @@
 //! `ramulus bench`: growth speed and memory figures (cells per second, peak bytes per cell,
-//! scaling between sizes), measured with a counting global allocator. Prints figures; it
-//! never fails on slowness.
+//! scaling between sizes), measured with a counting global allocator; the whole work of
+//! `grow --json` on the cheapest-first lattice beside two general minimum-spanning-tree codes
+//! on the same points (petgraph's, and a plain binary-heap Prim), in alternating rounds.
+//! Prints figures; it never fails on slowness.
 
 use ramulus_core::params::{CostWeights, Domain, RunControl};
 use std::alloc::{GlobalAlloc, Layout, System};
@@ -198,7 +200,143 @@ pub fn run(options: BenchOptions) -> Result<(), CliError> {
         large.cells as f64 / small.cells as f64,
         large.seconds / small.seconds
     );
-    pipeline_figures()
+    pipeline_figures()?;
+    spanning_tree_figures(side, 3)
+}
+
+/// Times, in `rounds` alternating rounds, the whole work of `ramulus grow --json` on the
+/// cheapest-first pure-length lattice (growth, the pipeline with metrics and digest, the JSON
+/// text) and two general minimum-spanning-tree codes on the same cell centres joined to their 8
+/// neighbours: petgraph's `min_spanning_tree` (Kruskal, building the graph included) and a
+/// binary-heap Prim (Prim 1957). All three must find the same total length, since the pure
+/// length network is a minimum spanning tree of those points (printed as a check).
+fn spanning_tree_figures(side: u32, rounds: usize) -> Result<(), CliError> {
+    let params = pure_length(side);
+    let mut times = [Vec::new(), Vec::new(), Vec::new()];
+    let mut lengths = [0.0; 3];
+    for _ in 0..rounds {
+        let start = Instant::now();
+        lengths[0] = grow_json_work(&params)?;
+        times[0].push(start.elapsed().as_secs_f64());
+        let start = Instant::now();
+        lengths[1] = petgraph_spanning_tree_length(side);
+        times[1].push(start.elapsed().as_secs_f64());
+        let start = Instant::now();
+        lengths[2] = heap_prim_length(side);
+        times[2].push(start.elapsed().as_secs_f64());
+    }
+    say!("cheapest first, pure length, {side} x {side}, {rounds} alternating rounds (min-max):");
+    let names = [
+        "ramulus grow --json work (growth, pipeline, metrics, JSON)",
+        "petgraph min_spanning_tree on the 8-neighbour grid (with building it)",
+        "binary-heap Prim on the 8-neighbour grid",
+    ];
+    for ((name, times), length) in names.iter().zip(&times).zip(lengths) {
+        let fastest = times.iter().copied().fold(f64::INFINITY, f64::min);
+        let slowest = times.iter().copied().fold(0.0, f64::max);
+        say!("  {name:<72} {fastest:.3}-{slowest:.3} s  total length {length:.6}");
+    }
+    Ok(())
+}
+
+/// Everything `ramulus grow --json` computes, from the parameters to its JSON text; returns the
+/// total length.
+fn grow_json_work(params: &Params) -> Result<f64, CliError> {
+    let mut growth = Growth::new(params).map_err(|error| CliError::Failed(error.to_string()))?;
+    let stopped = growth.run();
+    let cell_count = growth.cell_count();
+    let network = growth.network();
+    drop(growth);
+    let view = ramulus_core::run::RunView::new(network, params)
+        .map_err(|error| CliError::Failed(error.to_string()))?;
+    let text = crate::commands::grow_json(
+        &view,
+        params,
+        cell_count,
+        stopped,
+        crate::options::DEFAULT_PAGE,
+    )
+    .to_string();
+    std::hint::black_box(text);
+    Ok(view.metrics.total_length)
+}
+
+/// The distance between two cell centres `(dx, dy)` cells apart.
+fn grid_distance(dx: i64, dy: i64) -> f64 {
+    ((dx * dx + dy * dy) as f64).sqrt()
+}
+
+/// Half of the 8 neighbour offsets: each grid edge once.
+const FORWARD_NEIGHBOURS: [(i64, i64); 4] = [(1, 0), (-1, 1), (0, 1), (1, 1)];
+
+/// Total length of petgraph's minimum spanning tree of the `side` x `side` grid with 8
+/// neighbours, building the graph included.
+fn petgraph_spanning_tree_length(side: u32) -> f64 {
+    let side = i64::from(side);
+    let count = (side * side) as usize;
+    let mut graph: petgraph::graph::UnGraph<(), f64> =
+        petgraph::graph::UnGraph::with_capacity(count, 4 * count);
+    let nodes: Vec<_> = (0..count).map(|_| graph.add_node(())).collect();
+    for row in 0..side {
+        for column in 0..side {
+            for (dx, dy) in FORWARD_NEIGHBOURS {
+                let (x, y) = (column + dx, row + dy);
+                if (0..side).contains(&x) && (0..side).contains(&y) {
+                    graph.add_edge(
+                        nodes[(row * side + column) as usize],
+                        nodes[(y * side + x) as usize],
+                        grid_distance(dx, dy),
+                    );
+                }
+            }
+        }
+    }
+    petgraph::algo::min_spanning_tree(&graph)
+        .map(|element| match element {
+            petgraph::data::Element::Edge { weight, .. } => weight,
+            petgraph::data::Element::Node { .. } => 0.0,
+        })
+        .sum()
+}
+
+/// Total length of the minimum spanning tree of the `side` x `side` grid with 8 neighbours by
+/// Prim's rule with a binary heap and lazy deletion, from the centre cell.
+fn heap_prim_length(side: u32) -> f64 {
+    use std::cmp::Reverse;
+    let side = i64::from(side);
+    let count = (side * side) as usize;
+    let mut in_tree = vec![false; count];
+    let mut best = vec![f64::INFINITY; count];
+    let mut heap = std::collections::BinaryHeap::new();
+    let start = ((side / 2) * side + side / 2) as usize;
+    best[start] = 0.0;
+    // Distances are positive, so their bit patterns order as the numbers do.
+    heap.push(Reverse((0u64, start as u32)));
+    let mut total = 0.0;
+    while let Some(Reverse((bits, node))) = heap.pop() {
+        let node = node as usize;
+        if in_tree[node] {
+            continue;
+        }
+        in_tree[node] = true;
+        total += f64::from_bits(bits);
+        let (column, row) = (node as i64 % side, node as i64 / side);
+        for dy in -1..=1 {
+            for dx in -1..=1 {
+                let (x, y) = (column + dx, row + dy);
+                if (dx, dy) == (0, 0) || !(0..side).contains(&x) || !(0..side).contains(&y) {
+                    continue;
+                }
+                let other = (y * side + x) as usize;
+                let distance = grid_distance(dx, dy);
+                if !in_tree[other] && distance < best[other] {
+                    best[other] = distance;
+                    heap.push(Reverse((distance.to_bits(), other as u32)));
+                }
+            }
+        }
+    }
+    total
 }
 
 /// Time and peak memory of everything computed after growth (topology, widths, metrics,

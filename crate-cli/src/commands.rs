@@ -1,12 +1,13 @@
 //! The `grow`, `measure` and `presets` commands: read inputs, call the core, print results.
 
-use ramulus_core::growth::Growth;
+use ramulus_core::growth::{Growth, StopReason};
 use ramulus_core::import::mask_from_bytes;
 use ramulus_core::link::{decode_link, encode_link};
 use ramulus_core::metrics::Metrics;
 use ramulus_core::params::file::read_parameter_file;
+use ramulus_core::params::Params;
 use ramulus_core::presets::presets as all_presets;
-use ramulus_core::record::{make_record, read_record, write_record};
+use ramulus_core::record::{read_record, write_record_to};
 use ramulus_core::run::{RunView, SITE_CAUTION};
 use ramulus_core::utf8_text::utf8_text;
 use ramulus_draw::texts::stop_text;
@@ -92,12 +93,18 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     };
     let mut growth = Growth::new(&params).map_err(|error| CliError::Failed(error.to_string()))?;
     let stopped = growth.run();
-    let view = RunView::new(growth.network(), &params).map_err(|error| {
+    let cell_count = growth.cell_count();
+    let network = growth.network();
+    // The grower's lattice and node arrays are not needed past this point.
+    drop(growth);
+    let view = RunView::new(network, &params).map_err(|error| {
         CliError::Failed(format!("internal: grown network is not a forest: {error}"))
     })?;
     if let Some(path) = &options.record_file {
-        let record = make_record(&view, &params, Some(stopped.name().to_string()));
-        plan.stage(path, &write_record(&record))?;
+        // Streamed into the temporary file: the record is never held in memory whole.
+        plan.stage_writing(path, |writer| {
+            write_record_to(writer, &view, &params, Some(stopped.name()))
+        })?;
     }
     if let Some(path) = &options.svg_file {
         let svg = run_svg(&view, &params, colour);
@@ -106,25 +113,15 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     // Only now, with every output written in full beside its target, are they put in place.
     plan.commit()?;
     if options.json {
-        let output = json!({
-            "digest": view.digest,
-            "cells": growth.cell_count(),
-            "nodes": view.network.nodes.len(),
-            "segments": view.network.segment_count(),
-            "total_length": view.metrics.total_length,
-            "units": params.domain.units,
-            "stopped": stopped.name(),
-            "metrics": view.metrics,
-            "caution": params.is_site().then_some(SITE_CAUTION),
-            "link": format!("{}#{}", options.page, encode_link(&params)),
-            "fragment": format!("#{}", encode_link(&params)),
-        });
-        say!("{output}");
+        say!(
+            "{}",
+            grow_json(&view, &params, cell_count, stopped, &options.page)
+        );
     } else {
         say!("stopped: {}", stop_text(stopped));
         say!(
             "cells: {}   segments: {}   digest: {}",
-            growth.cell_count(),
+            cell_count,
             view.network.segment_count(),
             view.digest
         );
@@ -139,6 +136,29 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
         }
     }
     Ok(())
+}
+
+/// The one JSON value `grow --json` prints.
+pub fn grow_json(
+    view: &RunView,
+    params: &Params,
+    cell_count: u64,
+    stopped: StopReason,
+    page: &str,
+) -> serde_json::Value {
+    json!({
+        "digest": view.digest,
+        "cells": cell_count,
+        "nodes": view.network.nodes.len(),
+        "segments": view.network.segment_count(),
+        "total_length": view.metrics.total_length,
+        "units": params.domain.units,
+        "stopped": stopped.name(),
+        "metrics": view.metrics,
+        "caution": params.is_site().then_some(SITE_CAUTION),
+        "link": format!("{page}#{}", encode_link(params)),
+        "fragment": format!("#{}", encode_link(params)),
+    })
 }
 
 fn print_table(metrics: &Metrics, units: &str) {

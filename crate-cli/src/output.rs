@@ -73,6 +73,16 @@ impl OutputPlan {
     /// Writes `text` for the output at `path` into a temporary file in the same folder; nothing
     /// at `path` changes until `commit`.
     pub fn stage(&mut self, path: &str, text: &str) -> Result<(), CliError> {
+        self.stage_writing(path, |writer| writer.write_all(text.as_bytes()))
+    }
+
+    /// Like `stage`, with the contents streamed by `write` into a buffered writer on the
+    /// temporary file, so they need not be held in memory whole.
+    pub fn stage_writing(
+        &mut self,
+        path: &str,
+        write: impl FnOnce(&mut dyn std::io::Write) -> std::io::Result<()>,
+    ) -> Result<(), CliError> {
         // The target as `output` resolved it (an output is always planned before it is staged).
         let target = self
             .outputs
@@ -94,7 +104,11 @@ impl OutputPlan {
             Ok((file, path))
         })
         .map_err(cannot)?;
-        file.write_all(text.as_bytes()).map_err(cannot)?;
+        {
+            let mut buffered = std::io::BufWriter::with_capacity(1 << 16, file.as_file_mut());
+            write(&mut buffered).map_err(cannot)?;
+            buffered.flush().map_err(cannot)?;
+        }
         file.as_file().sync_all().map_err(cannot)?;
         self.staged.push((file, path.to_string(), target));
         Ok(())

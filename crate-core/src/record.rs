@@ -1,11 +1,14 @@
 //! The JSON run record (`RunRecord`, format `ramulus-run` version 2): parameters, seed, nodes,
 //! segments (their ends, flow, width and order), metrics and digest; `write_record` and
-//! `read_record`, which also reads version 1 (nodes with a parent index each).
+//! `read_record`, which also reads version 1 (nodes with a parent index each), and
+//! `write_record_to`, which streams the same bytes from a run's view into any `std::io::Write`
+//! without building the record in memory.
 //!
 //! Every part of a record reads a missing field as absent (its default), never as an error,
 //! so records written before a field existed keep loading.
 
-use serde::{Deserialize, Serialize};
+use serde::ser::{SerializeSeq, SerializeStruct};
+use serde::{Deserialize, Serialize, Serializer};
 
 use crate::metrics::Metrics;
 use crate::network::{segments_from_parents, CellSet, Network, Node, Segment, NO_PARENT};
@@ -169,19 +172,8 @@ pub fn make_record(view: &RunView, params: &Params, stopped: Option<String>) -> 
         .iter()
         .map(|node| (node.x, node.y, node.weight))
         .collect();
-    let table = &view.table;
-    let segments = network
-        .segments
-        .iter()
-        .enumerate()
-        .map(|(index, segment)| SegmentEntry {
-            from: segment.from,
-            to: segment.to,
-            flow: table.flow.get(index).copied().unwrap_or(0.0),
-            width: table.width.get(index).copied().unwrap_or(0.0),
-            order: table.order.get(index).copied().unwrap_or(0),
-            length: table.length.get(index).copied().unwrap_or(0.0),
-        })
+    let segments = (0..network.segments.len())
+        .map(|index| segment_entry(view, index))
         .collect();
     RunRecord {
         format: RECORD_FORMAT.to_string(),
@@ -204,6 +196,98 @@ pub fn make_record(view: &RunView, params: &Params, stopped: Option<String>) -> 
 pub fn write_record(record: &RunRecord) -> String {
     serde_json::to_string_pretty(record)
         .unwrap_or_else(|error| format!("{{\"error\": \"{error}\"}}"))
+}
+
+/// Writes the record of a run, the very bytes of `write_record(&make_record(view, params,
+/// stopped))`, into `writer` as it goes: nodes and segments are read from the view one at a
+/// time, so no copy of them (nor the text) is held in memory. Give it a buffered writer.
+pub fn write_record_to<W: std::io::Write>(
+    writer: W,
+    view: &RunView,
+    params: &Params,
+    stopped: Option<&str>,
+) -> std::io::Result<()> {
+    let record = StreamedRecord {
+        view,
+        params,
+        stopped,
+    };
+    serde_json::to_writer_pretty(writer, &record).map_err(std::io::Error::from)
+}
+
+/// A run record borrowed from a run's view: serialises exactly as the `RunRecord` that
+/// `make_record` builds (same fields, same order, same shapes).
+struct StreamedRecord<'a> {
+    view: &'a RunView,
+    params: &'a Params,
+    stopped: Option<&'a str>,
+}
+
+impl Serialize for StreamedRecord<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let network = &self.view.network;
+        let caution = self.params.is_site().then_some(SITE_CAUTION);
+        let mut record = serializer.serialize_struct("RunRecord", 13)?;
+        record.serialize_field("format", RECORD_FORMAT)?;
+        record.serialize_field("version", &RECORD_VERSION)?;
+        record.serialize_field("digest", &self.view.digest)?;
+        record.serialize_field("stopped", &self.stopped)?;
+        record.serialize_field("params", &Some(self.params))?;
+        record.serialize_field("units", &network.units)?;
+        record.serialize_field("cell_size", &network.cell_size)?;
+        record.serialize_field("area", &network.area)?;
+        record.serialize_field("nodes", &StreamedNodes(&network.nodes))?;
+        record.serialize_field("segments", &StreamedSegments(self.view))?;
+        record.serialize_field("cells", &network.cells)?;
+        record.serialize_field("metrics", &Some(&self.view.metrics))?;
+        if caution.is_some() {
+            record.serialize_field("caution", &caution)?;
+        } else {
+            record.skip_field("caution")?;
+        }
+        record.end()
+    }
+}
+
+/// Nodes as `[x, y, weight]` triples, as `RunRecord::nodes` holds them.
+struct StreamedNodes<'a>(&'a [Node]);
+
+impl Serialize for StreamedNodes<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut nodes = serializer.serialize_seq(Some(self.0.len()))?;
+        for node in self.0 {
+            nodes.serialize_element(&(node.x, node.y, node.weight))?;
+        }
+        nodes.end()
+    }
+}
+
+/// Segments with their table row, as `make_record` fills `RunRecord::segments`.
+struct StreamedSegments<'a>(&'a RunView);
+
+impl Serialize for StreamedSegments<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let segments = &self.0.network.segments;
+        let mut list = serializer.serialize_seq(Some(segments.len()))?;
+        for index in 0..segments.len() {
+            list.serialize_element(&segment_entry(self.0, index))?;
+        }
+        list.end()
+    }
+}
+
+/// The record entry of segment `index` of a view.
+fn segment_entry(view: &RunView, index: usize) -> SegmentEntry {
+    let segment = view.network.segments[index];
+    let table = &view.table;
+    SegmentEntry {
+        from: segment.from,
+        to: segment.to,
+        flow: table.flow.get(index).copied().unwrap_or(0.0),
+        width: table.width.get(index).copied().unwrap_or(0.0),
+        order: table.order.get(index).copied().unwrap_or(0),
+        length: table.length.get(index).copied().unwrap_or(0.0),
+    }
 }
 
 fn json_error(error: serde_json::Error) -> RecordError {

@@ -12,14 +12,16 @@ impl Growth {
         let segment = self.params.run.attach_to_segments && self.parent[node as usize] != NO_PARENT;
         for offset_index in 0..self.lattice.offsets.len() {
             let (dx, dy) = self.lattice.offsets[offset_index];
-            let Some(cell) = self.lattice.neighbour(column, row, dx, dy) else {
+            let Some((cell, cell_column, cell_row)) =
+                self.lattice.neighbour_at(column, row, dx, dy)
+            else {
                 continue;
             };
             let state = self.lattice.state[cell];
             if state == BLOCKED || state < FRONTIER_TAG {
                 continue;
             }
-            let (cx, cy) = self.lattice.position(cell);
+            let (cx, cy) = self.lattice.position_at(cell, cell_column, cell_row);
             let mut best_cost = self.model.cost(cx, cy, &node_anchor);
             let mut best = Attachment {
                 target: node,
@@ -160,7 +162,12 @@ impl Growth {
             for (kind, &first) in candidates.iter().enumerate() {
                 let mut node = first;
                 while node != NONE {
-                    let cost = self.model.cost(cx, cy, &self.node_anchor(node));
+                    let cost = if self.model.length_only {
+                        let index = node as usize;
+                        self.model.length_cost(cx, cy, self.x[index], self.y[index])
+                    } else {
+                        self.model.cost(cx, cy, &self.node_anchor(node))
+                    };
                     consider(
                         cost,
                         Attachment {

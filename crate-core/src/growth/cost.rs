@@ -43,6 +43,9 @@ pub(crate) struct CostModel {
     pub preferred: Option<(f64, f64)>,
     pub grade_x: f64,
     pub grade_y: f64,
+    /// Whether only the length term counts (every other weight is not positive), so the cost
+    /// of an anchor needs nothing but its position (`length_cost`).
+    pub length_only: bool,
 }
 
 impl CostModel {
@@ -62,6 +65,11 @@ impl CostModel {
             preferred,
             grade_x: params.domain.grade_x,
             grade_y: params.domain.grade_y,
+            // Validated weights are finite and not negative, so `<= 0` is "the term is off".
+            length_only: params.costs.w_turn <= 0.0
+                && params.costs.w_flow <= 0.0
+                && params.costs.w_path <= 0.0
+                && params.costs.w_grade <= 0.0,
         }
     }
 
@@ -72,6 +80,9 @@ impl CostModel {
         let vy = anchor.y - y;
         let length = (vx * vx + vy * vy).sqrt();
         let mut cost = self.w_len * length;
+        if self.length_only {
+            return cost;
+        }
         if self.w_turn > 0.0 && length > 0.0 {
             cost += self.w_turn * self.turn(vx / length, vy / length, anchor);
         }
@@ -79,8 +90,14 @@ impl CostModel {
             cost += self.w_flow * anchor.transport;
         }
         if self.w_path > 0.0 {
-            cost += self.w_path
-                * (anchor.dist + self.supply_length(vx, vy, anchor.axis_x, anchor.axis_y));
+            // Without elongation or rear cost the supply length is `length` itself (the same
+            // expression), so it is not taken twice.
+            let supply = if self.along_scale == 1.0 && self.rear_scale == 1.0 {
+                length
+            } else {
+                self.supply_length(vx, vy, anchor.axis_x, anchor.axis_y)
+            };
+            cost += self.w_path * (anchor.dist + supply);
         }
         if self.w_grade > 0.0 {
             // Rise of the anchor over the cell, in percent of one cell length.
@@ -90,6 +107,16 @@ impl CostModel {
             }
         }
         cost
+    }
+
+    /// The cost of joining the cell at `(x, y)` to an anchor at `(anchor_x, anchor_y)` when
+    /// `length_only`: the very bits `cost` gives then, without gathering the whole anchor.
+    #[inline]
+    pub fn length_cost(&self, x: f64, y: f64, anchor_x: f64, anchor_y: f64) -> f64 {
+        debug_assert!(self.length_only);
+        let vx = anchor_x - x;
+        let vy = anchor_y - y;
+        self.w_len * (vx * vx + vy * vy).sqrt()
     }
 
     /// Junction-angle penalty for flow leaving the cell along unit `(fx, fy)`:
@@ -127,6 +154,46 @@ impl CostModel {
 /// `(flow + extra)^alpha - flow^alpha` (Gilbert 1967; Xia 2003).
 pub(crate) fn marginal(flow: f64, extra: f64, alpha: f64) -> f64 {
     crate::fast_libm::pow(flow + extra, alpha) - crate::fast_libm::pow(flow, alpha)
+}
+
+/// `marginal(flow, extra, alpha)` for fixed `extra` and `alpha`, with the last results
+/// remembered by the exact bits of `flow`: a refresh prices every node, and most carry one of a
+/// few flows (every tip carries one cell), so most are found, not computed. The results are
+/// the very bits `marginal` gives.
+pub(crate) struct MarginalMemo {
+    extra: f64,
+    alpha: f64,
+    /// `(flow bits, marginal)` per slot, flow bits `u64::MAX` (a NaN, never a flow) when empty.
+    slots: Vec<(u64, f64)>,
+}
+
+/// Slots of `MarginalMemo`, a power of two: 4,096 slots (64 KiB) stay in the processor cache.
+const MARGINAL_MEMO_BITS: u32 = 12;
+
+impl MarginalMemo {
+    pub fn new(extra: f64, alpha: f64) -> MarginalMemo {
+        MarginalMemo {
+            extra,
+            alpha,
+            slots: vec![(u64::MAX, 0.0); 1 << MARGINAL_MEMO_BITS],
+        }
+    }
+
+    #[inline]
+    pub fn marginal(&mut self, flow: f64) -> f64 {
+        let bits = flow.to_bits();
+        // Fibonacci hashing (Knuth, TAOCP vol. 3, 6.4), as for the widths in `segments`.
+        let slot = (bits.wrapping_mul(0x9e37_79b9_7f4a_7c15) >> (64 - MARGINAL_MEMO_BITS)) as usize;
+        match self.slots.get_mut(slot) {
+            Some((key, value)) if *key == bits => *value,
+            Some(entry) => {
+                let value = marginal(flow, self.extra, self.alpha);
+                *entry = (bits, value);
+                value
+            }
+            None => marginal(flow, self.extra, self.alpha),
+        }
+    }
 }
 
 #[cfg(test)]
@@ -170,6 +237,22 @@ mod tests {
         let radians = 60f64.to_radians();
         let (fx, fy) = (radians.sin(), radians.cos());
         assert!(model.turn(fx, fy, &anchor(0.0, 1.0)).abs() < 1e-12);
+    }
+
+    /// The memo gives the very bits of `marginal`, for repeated flows, flows sharing a slot
+    /// and more flows than slots.
+    #[test]
+    fn remembered_marginals_equal_computed_ones() {
+        for alpha in [0.5, 0.75, 1.0] {
+            let mut memo = MarginalMemo::new(0.7, alpha);
+            for step in 0..20_000u32 {
+                let flow = f64::from(step % 6_000) * 0.7;
+                assert_eq!(
+                    memo.marginal(flow).to_bits(),
+                    marginal(flow, 0.7, alpha).to_bits()
+                );
+            }
+        }
     }
 
     #[test]

@@ -1,6 +1,11 @@
 //! `Frontier`: the allowed empty cells within reach of the network, each with its best
 //! attachment, kept in a segment tree that answers "cheapest slot" and "slot drawn by weight"
 //! in O(log n) and is rebuilt (never patched by subtraction) so sums do not drift.
+//!
+//! Leaf changes are applied to the tree's inner nodes lazily, just before the tree is next
+//! read (`settle`): the inner nodes are a function of the leaves alone, so the answers are the
+//! same as with every change applied at once, and a slot emptied and filled again within one
+//! step (the picked cell's slot is reused by the next cell offered) often costs no walk at all.
 
 /// No attachment yet / not a node.
 pub(crate) const NONE: u32 = u32::MAX;
@@ -27,28 +32,45 @@ pub(crate) struct Slot {
     pub best: Attachment,
 }
 
+/// The cheapest leaf under a tree node: its cost and slot (cost and slot side by side, so a
+/// node and its sibling share a cache line).
+#[derive(Clone, Copy, Debug)]
+struct Cheapest {
+    cost: f64,
+    slot: u32,
+}
+
 /// Frontier slots with a min tree (cheapest first) and a sum tree (random joining).
 pub(crate) struct Frontier {
     capacity: usize,
-    min_cost: Vec<f64>,
-    min_slot: Vec<u32>,
+    /// The min tree: node 1 is the root, node `capacity + i` the leaf of slot `i`.
+    min: Vec<Cheapest>,
+    /// The sum tree of weights, laid out as `min`; empty when weights are not kept (the
+    /// cheapest rule, whose weights are all 0).
     weight_sum: Vec<f64>,
+    /// Whether `weight_sum` is kept.
+    keeps_weights: bool,
     /// Slots by index; a free slot has `cell == NONE`.
     pub slots: Vec<Slot>,
     free: Vec<u32>,
     live: usize,
+    /// Leaves changed since the inner nodes were last brought up to date.
+    unsettled: Vec<u32>,
 }
 
 impl Frontier {
-    pub fn new() -> Frontier {
+    /// An empty frontier; `keeps_weights` is false when every weight will be 0 (the cheapest
+    /// rule), so the sum tree is left out and `total_weight` stays 0.
+    pub fn new(keeps_weights: bool) -> Frontier {
         let mut frontier = Frontier {
             capacity: 0,
-            min_cost: Vec::new(),
-            min_slot: Vec::new(),
+            min: Vec::new(),
             weight_sum: Vec::new(),
+            keeps_weights,
             slots: Vec::new(),
             free: Vec::new(),
             live: 0,
+            unsettled: Vec::new(),
         };
         frontier.resize(64);
         frontier
@@ -94,21 +116,27 @@ impl Frontier {
     }
 
     /// Cheapest live slot and its cost (ties: lowest slot index).
-    pub fn cheapest(&self) -> Option<(u32, f64)> {
+    pub fn cheapest(&mut self) -> Option<(u32, f64)> {
         if self.live == 0 {
             return None;
         }
-        Some((self.min_slot[1], self.min_cost[1]))
+        self.settle();
+        Some((self.min[1].slot, self.min[1].cost))
     }
 
-    /// Sum of all weights.
-    pub fn total_weight(&self) -> f64 {
-        self.weight_sum[1]
+    /// Sum of all weights (0 when weights are not kept).
+    pub fn total_weight(&mut self) -> f64 {
+        self.settle();
+        self.weight_sum.get(1).copied().unwrap_or(0.0)
     }
 
     /// The slot where the cumulative weight passes `target` (0 <= target < total).
     /// Never lands on a zero-weight slot while the total is positive.
-    pub fn pick_by_weight(&self, mut target: f64) -> u32 {
+    pub fn pick_by_weight(&mut self, mut target: f64) -> u32 {
+        if !self.keeps_weights {
+            return 0;
+        }
+        self.settle();
         let mut node = 1;
         while node < self.capacity {
             let left = 2 * node;
@@ -129,64 +157,126 @@ impl Frontier {
         for index in 0..self.slots.len() {
             let slot = self.slots[index];
             let leaf = self.capacity + index;
-            if slot.cell == NONE {
-                self.min_cost[leaf] = f64::INFINITY;
-                self.weight_sum[leaf] = 0.0;
+            let (cost, weight) = if slot.cell == NONE {
+                (f64::INFINITY, 0.0)
             } else {
-                self.min_cost[leaf] = slot.cost;
-                self.weight_sum[leaf] = weight_of(&slot);
+                (slot.cost, weight_of(&slot))
+            };
+            self.min[leaf].cost = cost;
+            if self.keeps_weights {
+                self.weight_sum[leaf] = weight;
             }
         }
         self.rebuild_internal();
     }
 
+    /// Sets one leaf; its ancestors are recombined by the next `settle`.
     fn set_leaf(&mut self, index: u32, cost: f64, weight: f64) {
-        let mut node = self.capacity + index as usize;
-        self.min_cost[node] = cost;
-        self.min_slot[node] = index;
-        self.weight_sum[node] = weight;
-        while node > 1 {
-            node /= 2;
-            self.combine(node);
+        let node = self.capacity + index as usize;
+        self.min[node] = Cheapest { cost, slot: index };
+        if self.keeps_weights {
+            self.weight_sum[node] = weight;
         }
+        self.unsettled.push(index);
     }
 
+    /// Recombines the ancestors of the changed leaves level by level, each inner node once,
+    /// and only those with a child that changed: a node whose cheapest cost, cheapest slot and
+    /// weight sum come out as they were changes nothing above it. The trees are exactly what
+    /// recombining every ancestor would give.
+    fn settle(&mut self) {
+        if self.unsettled.is_empty() {
+            return;
+        }
+        let mut level = std::mem::take(&mut self.unsettled);
+        let capacity = self.capacity as u32;
+        for node in level.iter_mut() {
+            *node += capacity;
+        }
+        level.sort_unstable();
+        // Every leaf is at the same depth (the capacity is a power of two), so each pass moves
+        // the whole list one level up and keeps it sorted.
+        while level.first().is_some_and(|&node| node > 1) {
+            for node in level.iter_mut() {
+                *node /= 2;
+            }
+            level.dedup();
+            let mut kept = 0;
+            for position in 0..level.len() {
+                let node = level[position];
+                if self.recombine(node as usize) {
+                    level[kept] = node;
+                    kept += 1;
+                }
+            }
+            level.truncate(kept);
+        }
+        level.clear();
+        self.unsettled = level;
+    }
+
+    /// Recombines one inner node from its children; whether it changed.
+    #[inline]
+    fn recombine(&mut self, node: usize) -> bool {
+        let before = self.min[node];
+        self.combine(node);
+        let after = self.min[node];
+        let mut changed =
+            before.cost.to_bits() != after.cost.to_bits() || before.slot != after.slot;
+        if self.keeps_weights {
+            let before = self.weight_sum[node];
+            self.combine_weights(node);
+            changed |= before.to_bits() != self.weight_sum[node].to_bits();
+        }
+        changed
+    }
+
+    /// The cheapest of a node's two children; the left one (lower slots) on equal costs.
+    #[inline]
     fn combine(&mut self, node: usize) {
-        let left = 2 * node;
-        let right = left + 1;
-        let pick = if self.min_cost[right] < self.min_cost[left] {
-            right
-        } else {
-            left
-        };
-        self.min_cost[node] = self.min_cost[pick];
-        self.min_slot[node] = self.min_slot[pick];
-        self.weight_sum[node] = self.weight_sum[left] + self.weight_sum[right];
+        let left = self.min[2 * node];
+        let right = self.min[2 * node + 1];
+        self.min[node] = if right.cost < left.cost { right } else { left };
+    }
+
+    #[inline]
+    fn combine_weights(&mut self, node: usize) {
+        self.weight_sum[node] = self.weight_sum[2 * node] + self.weight_sum[2 * node + 1];
     }
 
     fn rebuild_internal(&mut self) {
+        self.unsettled.clear();
         for node in (1..self.capacity).rev() {
             self.combine(node);
+            if self.keeps_weights {
+                self.combine_weights(node);
+            }
         }
     }
 
     fn resize(&mut self, capacity: usize) {
         let old_capacity = self.capacity;
-        let mut min_cost = vec![f64::INFINITY; 2 * capacity];
-        let mut min_slot = vec![NONE; 2 * capacity];
-        let mut weight_sum = vec![0.0; 2 * capacity];
-        for index in 0..old_capacity {
-            min_cost[capacity + index] = self.min_cost[old_capacity + index];
-            min_slot[capacity + index] = index as u32;
-            weight_sum[capacity + index] = self.weight_sum[old_capacity + index];
+        let mut min = vec![
+            Cheapest {
+                cost: f64::INFINITY,
+                slot: NONE,
+            };
+            2 * capacity
+        ];
+        for index in 0..capacity {
+            min[capacity + index].slot = index as u32;
         }
-        for index in old_capacity..capacity {
-            min_slot[capacity + index] = index as u32;
+        for index in 0..old_capacity {
+            min[capacity + index].cost = self.min[old_capacity + index].cost;
+        }
+        if self.keeps_weights {
+            let mut weight_sum = vec![0.0; 2 * capacity];
+            weight_sum[capacity..capacity + old_capacity]
+                .copy_from_slice(&self.weight_sum[old_capacity..2 * old_capacity]);
+            self.weight_sum = weight_sum;
         }
         self.capacity = capacity;
-        self.min_cost = min_cost;
-        self.min_slot = min_slot;
-        self.weight_sum = weight_sum;
+        self.min = min;
         self.rebuild_internal();
     }
 }
@@ -209,7 +299,7 @@ mod tests {
 
     #[test]
     fn cheapest_follows_updates_and_removals() {
-        let mut frontier = Frontier::new();
+        let mut frontier = Frontier::new(true);
         let mut ids = Vec::new();
         for cell in 0..100u32 {
             ids.push(frontier.insert(slot(cell, 100.0 - cell as f64), 1.0));
@@ -222,9 +312,65 @@ mod tests {
         assert_eq!(frontier.total_weight(), 99.0);
     }
 
+    /// After any mix of inserts, updates and removals, read at any moment, the tree answers
+    /// what a direct scan of the live slots gives: the cheapest cost, the lowest slot among
+    /// equal costs, and the sum of the (whole-number, so exactly summed) weights.
+    #[test]
+    fn lazy_tree_matches_a_direct_scan() {
+        for keeps_weights in [false, true] {
+            let mut frontier = Frontier::new(keeps_weights);
+            let mut weights: Vec<f64> = Vec::new();
+            let mut state = 0x9e37_79b9_7f4a_7c15u64;
+            let mut next = |bound: u64| {
+                state ^= state << 13;
+                state ^= state >> 7;
+                state ^= state << 17;
+                state % bound
+            };
+            let mut live: Vec<u32> = Vec::new();
+            for step in 0..5_000u32 {
+                let cost = [1.0, 2f64.sqrt(), 3.0][next(3) as usize];
+                let weight = next(4) as f64;
+                match next(5) {
+                    0 | 1 => {
+                        let index = frontier.insert(slot(step, cost), weight);
+                        weights.resize(weights.len().max(index as usize + 1), 0.0);
+                        weights[index as usize] = weight;
+                        live.push(index);
+                    }
+                    2 if !live.is_empty() => {
+                        let index = live[next(live.len() as u64) as usize];
+                        frontier.update(index, cost, slot(0, 0.0).best, weight);
+                        weights[index as usize] = weight;
+                    }
+                    3 if !live.is_empty() => {
+                        let index = live.swap_remove(next(live.len() as u64) as usize);
+                        frontier.remove(index);
+                        weights[index as usize] = 0.0;
+                    }
+                    _ => {}
+                }
+                if next(3) != 0 {
+                    continue;
+                }
+                let expected = live
+                    .iter()
+                    .map(|&index| (frontier.slots[index as usize].cost, index))
+                    .min_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+                assert_eq!(
+                    frontier.cheapest().map(|(index, cost)| (cost, index)),
+                    expected
+                );
+                let total: f64 = live.iter().map(|&index| weights[index as usize]).sum();
+                let expected_total = if keeps_weights { total } else { 0.0 };
+                assert_eq!(frontier.total_weight(), expected_total);
+            }
+        }
+    }
+
     #[test]
     fn weighted_pick_skips_zero_weights() {
-        let mut frontier = Frontier::new();
+        let mut frontier = Frontier::new(true);
         for cell in 0..10u32 {
             frontier.insert(slot(cell, 0.0), if cell == 7 { 2.0 } else { 0.0 });
         }

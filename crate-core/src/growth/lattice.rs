@@ -98,18 +98,38 @@ impl Lattice {
     /// The neighbour at an offset, if inside the lattice.
     #[inline]
     pub fn neighbour(&self, column: i32, row: i32, dx: i32, dy: i32) -> Option<usize> {
+        self.neighbour_at(column, row, dx, dy)
+            .map(|(cell, _, _)| cell)
+    }
+
+    /// The neighbour at an offset with its column and row, if inside the lattice.
+    #[inline]
+    pub fn neighbour_at(
+        &self,
+        column: i32,
+        row: i32,
+        dx: i32,
+        dy: i32,
+    ) -> Option<(usize, usize, usize)> {
         let (x, y) = (column + dx, row + dy);
         if x < 0 || y < 0 || x as usize >= self.width || y as usize >= self.height {
             return None;
         }
-        Some(y as usize * self.width + x as usize)
+        Some((y as usize * self.width + x as usize, x as usize, y as usize))
     }
 
     /// Jittered position of a cell's node, in cells.
     #[inline]
     pub fn position(&self, cell: usize) -> (f64, f64) {
-        let column = (cell % self.width) as f64 + 0.5;
-        let row = (cell / self.width) as f64 + 0.5;
+        self.position_at(cell, cell % self.width, cell / self.width)
+    }
+
+    /// `position(cell)` for a cell whose column and row are known (no division).
+    #[inline]
+    pub fn position_at(&self, cell: usize, column: usize, row: usize) -> (f64, f64) {
+        debug_assert_eq!(cell, row * self.width + column);
+        let column = column as f64 + 0.5;
+        let row = row as f64 + 0.5;
         match self.jitter.get(cell) {
             Some(&[dx, dy]) => (column + dx as f64, row + dy as f64),
             None => (column, row),

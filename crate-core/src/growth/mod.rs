@@ -82,6 +82,9 @@ pub struct Growth {
     axes: Vec<(f64, f64)>,
     cell_count: u64,
     cell_weight: f64,
+    /// Whether a segment has been split: a junction then drains an older node, so node order
+    /// is no longer a parents-first order (`refresh_flows`).
+    has_junctions: bool,
     /// Whether a stored attachment may be out of date and must be re-checked when picked.
     recheck: bool,
     /// Reference cost for weights of weighted joining.
@@ -110,7 +113,7 @@ impl Growth {
             params: params.clone(),
             model: CostModel::new(params),
             lattice,
-            frontier: Frontier::new(),
+            frontier: Frontier::new(params.run.joining != Joining::Cheapest),
             random,
             x: Vec::new(),
             y: Vec::new(),
@@ -128,6 +131,7 @@ impl Growth {
             axes: Vec::new(),
             cell_count: 0,
             cell_weight: params.domain.runoff,
+            has_junctions: false,
             recheck: params.run.attach_to_segments || params.costs.branch_angle.is_some(),
             weight_reference: f64::NAN,
             last_refresh_nodes: 0,
@@ -138,6 +142,10 @@ impl Growth {
         if params.run.attach_to_segments {
             growth.junction_head = vec![NONE; growth.lattice.cell_total()];
         }
+        // One node per occupied cell (junctions come on top): reserving them at once spares
+        // the copies of eleven doubling arrays.
+        let allowed_count = allowed.iter().filter(|&&ok| ok).count() as u64;
+        growth.reserve_nodes(params.run.cells.min(allowed_count) as usize);
         for (index, root) in params.domain.roots.iter().enumerate() {
             let cell = growth.lattice.cell_index(root.x, root.y);
             match growth.lattice.state[cell] {
@@ -279,6 +287,23 @@ impl Growth {
         self.occupy(cell, node);
     }
 
+    fn reserve_nodes(&mut self, count: usize) {
+        self.x.reserve_exact(count);
+        self.y.reserve_exact(count);
+        self.parent.reserve_exact(count);
+        self.down_x.reserve_exact(count);
+        self.down_y.reserve_exact(count);
+        self.dist.reserve_exact(count);
+        self.transport.reserve_exact(count);
+        self.flow.reserve_exact(count);
+        self.root_of.reserve_exact(count);
+        self.child_count.reserve_exact(count);
+        self.cell_of.reserve_exact(count);
+        if self.params.run.attach_to_segments {
+            self.junction_next.reserve_exact(count);
+        }
+    }
+
     #[allow(clippy::too_many_arguments)]
     fn push_node(
         &mut self,
@@ -381,6 +406,7 @@ impl Growth {
             NONE,
         );
         self.flow[junction as usize] = self.flow[upstream as usize];
+        self.has_junctions = true;
         // The upstream node now drains into the junction; the parent keeps one child.
         self.parent[upstream as usize] = junction;
         self.child_count[parent as usize] -= 1;

@@ -1,5 +1,6 @@
 //! The exact refresh of flows and transport costs, and the re-pricing of the frontier after it.
 
+use super::cost::MarginalMemo;
 use super::*;
 
 impl Growth {
@@ -45,6 +46,10 @@ impl Growth {
     }
 
     pub(super) fn refresh_flows(&mut self) {
+        if !self.has_junctions {
+            self.refresh_flows_in_index_order();
+            return;
+        }
         let count = self.x.len();
         // Children in compressed rows, then a breadth-first order from the roots.
         self.scratch_children
@@ -75,8 +80,7 @@ impl Growth {
                 self.flow[parent as usize] += self.flow[node as usize];
             }
         }
-        let alpha = self.params.costs.alpha;
-        let extra = self.cell_weight;
+        let mut marginals = MarginalMemo::new(self.cell_weight, self.params.costs.alpha);
         for &node in &self.scratch_order {
             let node = node as usize;
             let parent = self.parent[node];
@@ -88,7 +92,45 @@ impl Growth {
             let (vx, vy) = (self.x[parent] - self.x[node], self.y[parent] - self.y[node]);
             let length = (vx * vx + vy * vy).sqrt();
             self.transport[node] =
-                self.transport[parent] + length * marginal(self.flow[node], extra, alpha);
+                self.transport[parent] + length * marginals.marginal(self.flow[node]);
+        }
+    }
+
+    /// `refresh_flows` when every node's parent has a lower index (no segment has been split:
+    /// a new node always drains into an older one), to the same bits without building the
+    /// breadth-first order. Flows: walking nodes from the last down, each node is final when
+    /// read (its children have higher indices) and adds into its parent, so every parent
+    /// receives its children's flows in decreasing index order, as the reversed breadth-first
+    /// order adds them (a parent's children are listed there together, by increasing index).
+    /// Transport costs: each node needs only its parent's, which comes first either way.
+    fn refresh_flows_in_index_order(&mut self) {
+        let count = self.x.len();
+        for node in 0..count {
+            debug_assert!(self.parent[node] == NO_PARENT || (self.parent[node] as usize) < node);
+            self.flow[node] = if self.cell_of[node] == NONE {
+                0.0
+            } else {
+                self.cell_weight
+            };
+        }
+        for node in (0..count).rev() {
+            let parent = self.parent[node];
+            if parent != NO_PARENT {
+                self.flow[parent as usize] += self.flow[node];
+            }
+        }
+        let mut marginals = MarginalMemo::new(self.cell_weight, self.params.costs.alpha);
+        for node in 0..count {
+            let parent = self.parent[node];
+            if parent == NO_PARENT {
+                self.transport[node] = 0.0;
+                continue;
+            }
+            let parent = parent as usize;
+            let (vx, vy) = (self.x[parent] - self.x[node], self.y[parent] - self.y[node]);
+            let length = (vx * vx + vy * vy).sqrt();
+            self.transport[node] =
+                self.transport[parent] + length * marginals.marginal(self.flow[node]);
         }
     }
 }

@@ -25,7 +25,14 @@ pub(crate) struct LengthAndDegreeCounts {
 /// segment (in a forest: a node without parent); a tip is a node of degree 1 that has a
 /// downstream segment. So a root with three children is a junction and a root alone is neither
 /// junction nor tip.
-pub(crate) fn count_lengths_and_degrees(network: &Network) -> LengthAndDegreeCounts {
+///
+/// `lengths_by_upstream_node`, when given (a forest's `Topology::length`), holds each
+/// segment's length at its upstream node, taken there instead of measuring it again; it must
+/// hold `Network::segment_length` of every segment (as `Network::topology` fills it).
+pub(crate) fn count_lengths_and_degrees(
+    network: &Network,
+    lengths_by_upstream_node: Option<&[f64]>,
+) -> LengthAndDegreeCounts {
     let node_count = network.nodes.len();
     let mut degree = vec![0u32; node_count];
     let mut has_downstream = vec![false; node_count];
@@ -38,7 +45,10 @@ pub(crate) fn count_lengths_and_degrees(network: &Network) -> LengthAndDegreeCou
         degree[from] += 1;
         degree[to] += 1;
         has_downstream[from] = true;
-        total_length += network.segment_length(segment.from, segment.to);
+        total_length += match lengths_by_upstream_node.and_then(|lengths| lengths.get(from)) {
+            Some(&length) => length,
+            None => network.segment_length(segment.from, segment.to),
+        };
     }
     let mut counts = LengthAndDegreeCounts {
         root_count: 0,

@@ -12,6 +12,7 @@ use crate::network::{Network, Topology};
 /// value is not positive are left out; `None` with fewer than two points or equal areas.
 pub(crate) fn hack_exponent(network: &Network, topology: &Topology) -> Option<f64> {
     let longest = longest_upstream_lengths(network, topology);
+    let mut logarithms = LogMemo::new();
     let points: Vec<(f64, f64)> = network
         .nodes
         .iter()
@@ -20,10 +21,49 @@ pub(crate) fn hack_exponent(network: &Network, topology: &Topology) -> Option<f6
         .filter_map(|(index, _)| {
             let area = topology.flow.get(index).copied().unwrap_or(0.0);
             let length = longest.get(index).copied().unwrap_or(0.0);
-            (area > 0.0 && length > 0.0).then(|| (libm::log(area), libm::log(length)))
+            (area > 0.0 && length > 0.0).then(|| (logarithms.ln(area), logarithms.ln(length)))
         })
         .collect();
     fit_line(&points).map(|line| line.slope)
+}
+
+/// `libm::log` with the last results remembered by the exact bits of their argument: the
+/// areas (flows) and upstream lengths of a grown network repeat a great deal (every tip drains
+/// one cell), so most logarithms are found, not computed. The results are the very bits
+/// `libm::log` gives.
+struct LogMemo {
+    /// `(argument bits, logarithm)` per slot; argument bits 0 (the argument 0, never stored,
+    /// since only positive arguments come) marks an empty slot.
+    slots: Vec<(u64, f64)>,
+}
+
+/// Slots of `LogMemo`, a power of two: 8,192 slots (128 KiB) stay in the processor cache.
+const LOG_MEMO_BITS: u32 = 13;
+
+impl LogMemo {
+    fn new() -> LogMemo {
+        LogMemo {
+            slots: vec![(0, 0.0); 1 << LOG_MEMO_BITS],
+        }
+    }
+
+    fn ln(&mut self, value: f64) -> f64 {
+        let bits = value.to_bits();
+        if bits == 0 {
+            return libm::log(value);
+        }
+        // Fibonacci hashing (Knuth, TAOCP vol. 3, 6.4), as for the widths in `segments`.
+        let slot = (bits.wrapping_mul(0x9e37_79b9_7f4a_7c15) >> (64 - LOG_MEMO_BITS)) as usize;
+        match self.slots.get_mut(slot) {
+            Some((key, logarithm)) if *key == bits => *logarithm,
+            Some(entry) => {
+                let logarithm = libm::log(value);
+                *entry = (bits, logarithm);
+                logarithm
+            }
+            None => libm::log(value),
+        }
+    }
 }
 
 /// Longest path length from any upstream tip down to the downstream end of each segment
@@ -45,4 +85,21 @@ fn longest_upstream_lengths(network: &Network, topology: &Topology) -> Vec<f64> 
         }
     }
     longest
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The memo answers with the very bits of `libm::log`, for repeated values, values that
+    /// share a slot, and more values than slots.
+    #[test]
+    fn remembered_logarithms_equal_computed_ones() {
+        let mut memo = LogMemo::new();
+        for step in 0..60_000u32 {
+            let value = f64::from(step % 20_000) * 0.37 + 1e-3;
+            assert_eq!(memo.ln(value).to_bits(), libm::log(value).to_bits());
+        }
+        assert_eq!(memo.ln(0.0), f64::NEG_INFINITY);
+    }
 }

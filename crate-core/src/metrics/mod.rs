@@ -199,7 +199,10 @@ pub fn measure_with(network: &Network, forest: Option<(&Topology, &[u32])>, alph
         }
     };
 
-    let counts = densities::count_lengths_and_degrees(network);
+    let counts = densities::count_lengths_and_degrees(
+        network,
+        forest.map(|(topology, _)| topology.length.as_slice()),
+    );
     let components = loops::count_components_and_loops(network);
     let outline = outline::measure_outline(&network.cells, network.cell_size);
     let mut metrics = Metrics {

@@ -22,14 +22,18 @@ pub(crate) struct OutlineMeasures {
 /// perimeter need a positive, finite `cell_size`; circularity and aspect ratio do not depend on
 /// it and are computed in cell units.
 pub(crate) fn measure_outline(cells: &CellSet, cell_size: f64) -> OutlineMeasures {
+    measure_outline_of(&OccupiedCells::new(cells, true), cell_size)
+}
+
+/// `measure_outline` on cells already gathered.
+fn measure_outline_of(grid: &OccupiedCells, cell_size: f64) -> OutlineMeasures {
     let none = OutlineMeasures {
         area: None,
         perimeter: None,
         circularity: None,
         aspect_ratio: None,
     };
-    let grid = OccupiedCells::new(cells);
-    let cell_count = grid.sorted_indices.len();
+    let cell_count = grid.count;
     if cell_count == 0 {
         return none;
     }
@@ -46,44 +50,160 @@ pub(crate) fn measure_outline(cells: &CellSet, cell_size: f64) -> OutlineMeasure
     }
 }
 
-/// Occupied cells inside the lattice, as sorted distinct row-major indices.
+/// Occupied cells inside the lattice, distinct, in row-major order: a grid of flags over the
+/// cells' bounding box (with a margin of one empty cell) when the cells fill enough of it, or
+/// the sorted indices when they are few and spread out. Both give the same values to the bit:
+/// the grid visits cells and squares in the same row-major order as the sorted list, and the
+/// squares it visits beyond the list's hold no contour (they add exactly 0).
 struct OccupiedCells {
     /// Lattice width in cells.
     width: u64,
     /// Lattice height in cells.
     height: u64,
+    /// Number of distinct occupied cells inside the lattice.
+    count: usize,
+    /// The cells, in the layout that suits their spread.
+    layout: CellLayout,
+}
+
+/// How `OccupiedCells` holds its cells.
+enum CellLayout {
+    /// Flags over the bounding box grown by one cell on every side, row-major.
+    Grid(BoxGrid),
     /// Sorted, distinct row-major indices below `width * height`.
-    sorted_indices: Vec<u64>,
+    Sorted(Vec<u64>),
+}
+
+/// Flags of the occupied cells over their bounding box with a one-cell empty margin.
+struct BoxGrid {
+    /// Column of the margin's first column (the leftmost occupied column minus one).
+    first_column: i64,
+    /// Row of the margin's first row (the top occupied row minus one).
+    first_row: i64,
+    /// Columns of the grid, margins included.
+    columns: usize,
+    /// Rows of the grid, margins included.
+    rows: usize,
+    /// Whether each grid cell is occupied, row-major.
+    flags: Vec<bool>,
+}
+
+/// A grid is used when it holds at most this many flags per occupied cell (plus
+/// `GRID_ALLOWANCE`): a grown network fills most of its box, a few scattered cells from a
+/// record do not.
+const GRID_FLAGS_PER_CELL: usize = 16;
+/// Flags a grid may always hold, whatever the cell count.
+const GRID_ALLOWANCE: usize = 1 << 16;
+
+impl BoxGrid {
+    fn flag_index(&self, column: i64, row: i64) -> Option<usize> {
+        let (column, row) = (column - self.first_column, row - self.first_row);
+        if column < 0 || row < 0 || column as usize >= self.columns || row as usize >= self.rows {
+            return None;
+        }
+        Some(row as usize * self.columns + column as usize)
+    }
 }
 
 impl OccupiedCells {
-    /// Keeps the in-lattice indices of `cells`, sorted and without repeats.
-    fn new(cells: &CellSet) -> OccupiedCells {
+    /// Keeps the in-lattice indices of `cells`, without repeats, in row-major order; in a grid
+    /// when `allow_grid` and the cells fill enough of their box, else sorted.
+    fn new(cells: &CellSet, allow_grid: bool) -> OccupiedCells {
         let width = u64::from(cells.width);
         let height = u64::from(cells.height);
         let lattice_cells = width * height;
-        let mut sorted_indices: Vec<u64> = cells
-            .occupied
-            .iter()
-            .map(|&index| u64::from(index))
-            .filter(|&index| index < lattice_cells)
-            .collect();
-        sorted_indices.sort_unstable();
-        sorted_indices.dedup();
-        OccupiedCells {
-            width,
-            height,
-            sorted_indices,
+        let inside = || {
+            cells
+                .occupied
+                .iter()
+                .map(|&index| u64::from(index))
+                .filter(move |&index| index < lattice_cells)
+        };
+        let mut bounds: Option<(u64, u64, u64, u64)> = None;
+        for index in inside() {
+            let (column, row) = (index % width, index / width);
+            bounds = Some(match bounds {
+                None => (column, column, row, row),
+                Some((left, right, top, bottom)) => (
+                    left.min(column),
+                    right.max(column),
+                    top.min(row),
+                    bottom.max(row),
+                ),
+            });
+        }
+        let listed = cells.occupied.len();
+        let grid = bounds.and_then(|(left, right, top, bottom)| {
+            let columns = usize::try_from(right - left + 3).ok()?;
+            let rows = usize::try_from(bottom - top + 3).ok()?;
+            let flag_count = columns.checked_mul(rows)?;
+            let budget = listed
+                .saturating_mul(GRID_FLAGS_PER_CELL)
+                .saturating_add(GRID_ALLOWANCE);
+            (allow_grid && flag_count <= budget).then(|| BoxGrid {
+                first_column: left as i64 - 1,
+                first_row: top as i64 - 1,
+                columns,
+                rows,
+                flags: vec![false; flag_count],
+            })
+        });
+        match grid {
+            Some(mut grid) => {
+                let mut count = 0;
+                for index in inside() {
+                    let (column, row) = ((index % width) as i64, (index / width) as i64);
+                    if let Some(flag) = grid.flag_index(column, row) {
+                        if !grid.flags[flag] {
+                            grid.flags[flag] = true;
+                            count += 1;
+                        }
+                    }
+                }
+                OccupiedCells {
+                    width,
+                    height,
+                    count,
+                    layout: CellLayout::Grid(grid),
+                }
+            }
+            None => {
+                let mut sorted_indices: Vec<u64> = inside().collect();
+                sorted_indices.sort_unstable();
+                sorted_indices.dedup();
+                OccupiedCells {
+                    width,
+                    height,
+                    count: sorted_indices.len(),
+                    layout: CellLayout::Sorted(sorted_indices),
+                }
+            }
         }
     }
 
-    /// Column and row of each occupied cell.
-    fn column_rows(&self) -> impl Iterator<Item = (i64, i64)> + '_ {
-        // `width` is positive whenever an index passed the filter, and both parts fit in i64
-        // because indices are below 2^32.
-        self.sorted_indices
-            .iter()
-            .map(|&index| ((index % self.width) as i64, (index / self.width) as i64))
+    /// Column and row of each occupied cell, in row-major order.
+    fn column_rows(&self) -> Box<dyn Iterator<Item = (i64, i64)> + '_> {
+        match &self.layout {
+            // `width` is positive whenever an index passed the filter, and both parts fit in
+            // i64 because indices are below 2^32.
+            CellLayout::Sorted(sorted_indices) => Box::new(
+                sorted_indices
+                    .iter()
+                    .map(|&index| ((index % self.width) as i64, (index / self.width) as i64)),
+            ),
+            CellLayout::Grid(grid) => Box::new(
+                grid.flags
+                    .iter()
+                    .enumerate()
+                    .filter(|&(_, &occupied)| occupied)
+                    .map(|(flag, _)| {
+                        (
+                            grid.first_column + (flag % grid.columns) as i64,
+                            grid.first_row + (flag / grid.columns) as i64,
+                        )
+                    }),
+            ),
+        }
     }
 
     /// Whether the cell at `column`, `row` is occupied; cells outside the lattice are empty.
@@ -91,8 +211,15 @@ impl OccupiedCells {
         if column < 0 || row < 0 || column as u64 >= self.width || row as u64 >= self.height {
             return false;
         }
-        let index = row as u64 * self.width + column as u64;
-        self.sorted_indices.binary_search(&index).is_ok()
+        match &self.layout {
+            CellLayout::Sorted(sorted_indices) => {
+                let index = row as u64 * self.width + column as u64;
+                sorted_indices.binary_search(&index).is_ok()
+            }
+            CellLayout::Grid(grid) => grid
+                .flag_index(column, row)
+                .is_some_and(|flag| grid.flags[flag]),
+        }
     }
 
     /// Length, in cells, of the marching-squares contour through the midpoints between occupied
@@ -102,38 +229,65 @@ impl OccupiedCells {
     /// one corner cut of length `sqrt(2) / 2` when one or three corners are occupied; a straight
     /// piece of length 1 when two adjacent corners are; two corner cuts (`sqrt(2)` together,
     /// whichever way the saddle is resolved) when two opposite corners are. Only squares that
-    /// touch an occupied cell can hold contour.
+    /// touch an occupied cell can hold contour; they are visited in row-major order of their
+    /// top-left corner.
     fn marching_squares_length(&self) -> f64 {
-        let mut squares: Vec<(i64, i64)> = Vec::with_capacity(4 * self.sorted_indices.len());
-        for (column, row) in self.column_rows() {
-            for (left, top) in [
-                (column - 1, row - 1),
-                (column, row - 1),
-                (column - 1, row),
-                (column, row),
-            ] {
-                squares.push((top, left));
-            }
-        }
-        squares.sort_unstable();
-        squares.dedup();
         let half_diagonal = core::f64::consts::SQRT_2 / 2.0;
-        let mut length = 0.0;
-        for (top, left) in squares {
-            let top_left = self.is_occupied(left, top);
-            let top_right = self.is_occupied(left + 1, top);
-            let bottom_left = self.is_occupied(left, top + 1);
-            let bottom_right = self.is_occupied(left + 1, top + 1);
+        let square_length = |top_left: bool, top_right: bool, bottom_left: bool, bottom_right| {
             let occupied_corners = [top_left, top_right, bottom_left, bottom_right]
                 .iter()
                 .filter(|&&occupied| occupied)
                 .count();
-            length += match occupied_corners {
+            match occupied_corners {
                 1 | 3 => half_diagonal,
                 2 if top_left == bottom_right => 2.0 * half_diagonal,
                 2 => 1.0,
                 _ => 0.0,
-            };
+            }
+        };
+        let mut length = 0.0;
+        match &self.layout {
+            CellLayout::Sorted(_) => {
+                let mut squares: Vec<(i64, i64)> = Vec::with_capacity(4 * self.count);
+                for (column, row) in self.column_rows() {
+                    for (left, top) in [
+                        (column - 1, row - 1),
+                        (column, row - 1),
+                        (column - 1, row),
+                        (column, row),
+                    ] {
+                        squares.push((top, left));
+                    }
+                }
+                squares.sort_unstable();
+                squares.dedup();
+                for (top, left) in squares {
+                    length += square_length(
+                        self.is_occupied(left, top),
+                        self.is_occupied(left + 1, top),
+                        self.is_occupied(left, top + 1),
+                        self.is_occupied(left + 1, top + 1),
+                    );
+                }
+            }
+            CellLayout::Grid(grid) => {
+                // Every square whose top-left corner lies in the grid but off its last row and
+                // column: these include every square touching an occupied cell, since the
+                // margin is empty. Cells past the lattice never enter the grid.
+                let columns = grid.columns;
+                for top in 0..grid.rows - 1 {
+                    let upper = &grid.flags[top * columns..(top + 1) * columns];
+                    let lower = &grid.flags[(top + 1) * columns..(top + 2) * columns];
+                    for left in 0..columns - 1 {
+                        length += square_length(
+                            upper[left],
+                            upper[left + 1],
+                            lower[left],
+                            lower[left + 1],
+                        );
+                    }
+                }
+            }
         }
         length
     }
@@ -156,7 +310,7 @@ impl OccupiedCells {
         if all_on_one_line {
             return None;
         }
-        let count = self.sorted_indices.len() as f64;
+        let count = self.count as f64;
         let (mut sum_x, mut sum_y) = (0.0, 0.0);
         for (column, row) in self.column_rows() {
             sum_x += column as f64;
@@ -215,6 +369,42 @@ mod tests {
         let perimeter = outline.perimeter.unwrap_or(f64::NAN);
         assert!((perimeter - 4.0 * core::f64::consts::SQRT_2).abs() < 1e-12);
         assert_eq!(outline.area, Some(2.0));
+    }
+
+    /// The grid and the sorted list are two layouts of the same cells: on scattered, clustered,
+    /// repeated, out-of-lattice and edge cells they give the same values to the bit (the sorted
+    /// list is the direct reading of the rule in `marching_squares_length`).
+    #[test]
+    fn grid_and_sorted_layouts_agree() {
+        let mut state = 0x2545_f491_4f6c_dd1du64;
+        let mut next = |bound: u32| {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            (state % u64::from(bound)) as u32
+        };
+        for (width, height, count) in [(1, 1, 1), (7, 1, 5), (1, 9, 4), (13, 11, 60), (40, 30, 900)]
+        {
+            let mut occupied: Vec<u32> = (0..count).map(|_| next(width * height + 3)).collect();
+            occupied.push(0);
+            occupied.push(width * height - 1);
+            occupied.push(occupied[1]);
+            let set = cells(width, height, occupied);
+            let grid = OccupiedCells::new(&set, true);
+            let sorted = OccupiedCells::new(&set, false);
+            assert!(matches!(grid.layout, CellLayout::Grid(_)));
+            assert!(matches!(sorted.layout, CellLayout::Sorted(_)));
+            let (from_grid, from_sorted) = (
+                measure_outline_of(&grid, 0.3),
+                measure_outline_of(&sorted, 0.3),
+            );
+            let bits = |value: Option<f64>| value.map(f64::to_bits);
+            assert_eq!(bits(from_grid.area), bits(from_sorted.area));
+            assert_eq!(bits(from_grid.perimeter), bits(from_sorted.perimeter));
+            assert_eq!(bits(from_grid.circularity), bits(from_sorted.circularity));
+            assert_eq!(bits(from_grid.aspect_ratio), bits(from_sorted.aspect_ratio));
+            assert!(from_grid.perimeter.is_some_and(|perimeter| perimeter > 0.0));
+        }
     }
 
     /// No cells, or no positive cell size: nothing or only the scale-free values.
