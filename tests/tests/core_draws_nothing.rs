@@ -17,11 +17,23 @@ fn workspace_root() -> PathBuf {
 /// resolved graph, as `cargo metadata --format-version 1` documents it).
 fn dependencies_of(package: &str) -> BTreeSet<String> {
     let cargo = std::env::var("CARGO").unwrap_or_else(|_| "cargo".to_string());
-    let output = Command::new(cargo)
-        .args(["metadata", "--format-version", "1", "--offline"])
-        .current_dir(workspace_root())
-        .output()
-        .expect("cargo metadata runs");
+    let metadata_run = |offline: bool| {
+        let mut command = Command::new(&cargo);
+        command.args(["metadata", "--format-version", "1"]);
+        if offline {
+            command.arg("--offline");
+        }
+        command
+            .current_dir(workspace_root())
+            .output()
+            .expect("cargo metadata runs")
+    };
+    // Offline first; a fresh machine may lack the sources of other platforms' dependencies
+    // (which `cargo metadata` reads but a build never fetches), so then it may fetch them.
+    let mut output = metadata_run(true);
+    if !output.status.success() {
+        output = metadata_run(false);
+    }
     assert!(
         output.status.success(),
         "cargo metadata failed: {}",
