@@ -20,6 +20,7 @@ pub mod region;
 pub mod run;
 pub mod schema;
 pub mod segments;
+pub mod specimen;
 
 pub use growth::{Growth, StepReport, StopReason};
 pub use network::{Children, Network, NetworkKind, Node, Segment, Topology, NO_PARENT};
