@@ -13,6 +13,7 @@ mod bench;
 mod commands;
 mod options;
 mod output;
+mod specimens;
 
 use std::process::ExitCode;
 
@@ -43,7 +44,7 @@ struct CommandLine {
 enum Command {
     /// Grow one network; print its figures, write its record or drawing
     Grow(GrowOptions),
-    /// Recompute the digest and metrics of saved run records
+    /// Measure saved run records, or traced specimens (SVG, GeoJSON, CSV edge lists)
     Measure(MeasureOptions),
     /// List the named parameter sets with their parameters
     Presets(PresetsOptions),

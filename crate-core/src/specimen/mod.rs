@@ -20,11 +20,13 @@ mod flatten;
 mod geojson_trace;
 mod repair;
 mod svg_trace;
+mod table;
 
 pub use calibrate::{build_specimen, Calibration, ScaleRule, Specimen, SpecimenOptions};
 pub use calibrate::{ring_area, DEFAULT_FLATTEN_TOLERANCE, DEFAULT_SNAP_FRACTION};
 pub use flatten::{flatten_arc, flatten_cubic, flatten_quadratic, EndpointArc};
 pub use repair::{Repair, RepairReport};
+pub use table::{repair_kind, specimen_table_csv, SpecimenRow};
 
 /// Largest specimen file read, in bytes (64 MiB): a traced leaf is a few megabytes at most.
 pub const MAX_SPECIMEN_BYTES: usize = 64 * 1024 * 1024;

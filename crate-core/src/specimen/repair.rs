@@ -15,8 +15,12 @@ use petgraph::unionfind::UnionFind;
 use super::Point;
 use crate::network::Segment;
 
-/// One change made while turning a trace into a network, in output units.
-#[derive(Clone, Debug, PartialEq)]
+/// One change made while turning a trace into a network, in output units. In JSON each is an
+/// object with its `kind` (`merged_ends`, `joined_to_line`, `split_crossing`,
+/// `dropped_zero_length`, `dropped_duplicate`, `disconnected_part`, `root`) and its fields,
+/// points as `[x, y]`.
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+#[serde(tag = "kind", rename_all = "snake_case")]
 pub enum Repair {
     /// Line ends closer than the snap tolerance were merged into one node at their mean.
     MergedEnds {
