@@ -33,8 +33,9 @@ pub struct SpecimenOptions {
     pub units: Option<String>,
     /// How file coordinates become lengths.
     pub scale: ScaleRule,
-    /// The root (petiole base) in file coordinates; without one, each part's line end nearest
-    /// the drawing's bottom edge.
+    /// The root (petiole base) in file coordinates; without one, the roots marked in the file
+    /// (SVG elements labelled `root`), else each part's line end nearest the drawing's bottom
+    /// edge.
     pub root: Option<Point>,
     /// Snap tolerance in output units; `None`: 0.2 % of the drawing's larger extent.
     pub snap_tolerance: Option<f64>,
@@ -176,6 +177,7 @@ pub fn build_specimen(bytes: &[u8], options: &SpecimenOptions) -> Result<Specime
         scale_bars,
         y_up,
         mut notes,
+        root_marks,
         ..
     } = trace;
     let factor = calibration.factor;
@@ -217,7 +219,20 @@ pub fn build_specimen(bytes: &[u8], options: &SpecimenOptions) -> Result<Specime
         repairs: Vec::new(),
     };
     let graph = repair_lines(&lines, snap, &mut report);
-    let oriented = orient(&graph, options.root.map(convert), &mut report);
+    let given_roots: Vec<Point> = match options.root {
+        Some(point) => vec![convert(point)],
+        None => {
+            if !root_marks.is_empty() {
+                notes.push(format!(
+                    "{} root{} marked in the file (elements labelled root) used",
+                    root_marks.len(),
+                    if root_marks.len() == 1 { "" } else { "s" }
+                ));
+            }
+            root_marks.into_iter().map(convert).collect()
+        }
+    };
+    let oriented = orient(&graph, &given_roots, &mut report);
     let total_length: f64 = graph
         .edges
         .iter()

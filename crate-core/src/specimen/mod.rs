@@ -84,6 +84,8 @@ pub struct Trace {
     /// Scale bars found in the file (SVG elements labelled `scale-bar`): their two end points,
     /// so that `--scale-bar` can be given from them; they are not veins.
     pub scale_bars: Vec<(Point, Point, String)>,
+    /// Roots marked in the file (SVG elements labelled `root`), in file coordinates.
+    pub root_marks: Vec<Point>,
     /// Output length units per file unit stated by the file itself (an SVG's physical size),
     /// with the unit's name.
     pub physical_scale: Option<(f64, &'static str)>,

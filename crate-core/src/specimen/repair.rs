@@ -540,14 +540,14 @@ pub(crate) struct OrientedGraph {
     pub(crate) segments: Vec<Segment>,
 }
 
-/// Directs every segment toward a root: the node nearest `given_root` for the part holding it,
-/// otherwise (and for every other part) the line end (degree 1) with the largest y, nearest the
+/// Directs every segment toward a root: the node nearest each of `given_roots` for the part
+/// holding it (the first given root of a part wins), otherwise (and for every other part) the line end (degree 1) with the largest y, nearest the
 /// drawing's bottom edge (any node when a part has no end). Segments of a spanning tree found
 /// breadth first run from child to parent; each remaining segment (closing a loop) runs from
 /// the end found later to the one found earlier. Parts and roots are reported.
 pub(crate) fn orient(
     graph: &RepairedGraph,
-    given_root: Option<Point>,
+    given_roots: &[Point],
     report: &mut RepairReport,
 ) -> OrientedGraph {
     let count = graph.nodes.len();
@@ -597,29 +597,36 @@ pub(crate) fn orient(
         }
         parts.push(members);
     }
-    // The main part: the one holding the node nearest the given root, or the lowest end.
+    // Given roots: each takes the node nearest it, unless its part already has a given root.
+    // The main part holds the first given root, else the lowest end of all.
     let mut roots: Vec<(u32, &'static str, f64)> = parts
         .iter()
         .map(|members| (lowest_end(members), "lowest end", 0.0))
         .collect();
-    let main = match given_root {
-        Some(point) if count > 0 => {
-            let nearest = (0..count as u32)
-                .min_by(|&a, &b| {
-                    distance(graph.nodes[a as usize], point)
-                        .partial_cmp(&distance(graph.nodes[b as usize], point))
-                        .unwrap_or(std::cmp::Ordering::Equal)
-                })
-                .unwrap_or(0);
-            let part = part_of[nearest as usize] as usize;
+    let mut main = None;
+    for &point in given_roots {
+        if count == 0 {
+            break;
+        }
+        let nearest = (0..count as u32)
+            .min_by(|&a, &b| {
+                distance(graph.nodes[a as usize], point)
+                    .partial_cmp(&distance(graph.nodes[b as usize], point))
+                    .unwrap_or(std::cmp::Ordering::Equal)
+            })
+            .unwrap_or(0);
+        let part = part_of[nearest as usize] as usize;
+        if roots[part].1 != "given" {
             roots[part] = (
                 nearest,
                 "given",
                 distance(graph.nodes[nearest as usize], point),
             );
-            part
+            main.get_or_insert(part);
         }
-        _ => (0..parts.len())
+    }
+    let main = main.unwrap_or_else(|| {
+        (0..parts.len())
             .max_by(|&a, &b| {
                 let (pa, pb) = (
                     graph.nodes[roots[a].0 as usize],
@@ -630,8 +637,8 @@ pub(crate) fn orient(
                     .then(pb.0.partial_cmp(&pa.0).unwrap_or(std::cmp::Ordering::Equal))
                     .then(b.cmp(&a))
             })
-            .unwrap_or(0),
-    };
+            .unwrap_or(0)
+    });
     let mut order: Vec<usize> = (0..parts.len()).collect();
     order.retain(|&part| part != main);
     order.insert(0, main);

@@ -2,7 +2,8 @@
 //! `line`, `rect`, `circle` and `ellipse` elements, under any nesting of `g` and `svg` elements
 //! with their `transform`s; an element labelled `outline` (its `id`, `class` or
 //! `inkscape:label`, or an ancestor's) is the leaf outline, one labelled `scale-bar` a scale
-//! bar. The physical size comes from the root's `width`/`height` (mm, cm, in, pt, pc, px at
+//! bar, one labelled `root` marks a root (a circle by its centre), and one labelled
+//! `annotation`, `legend`, `background` or `ignore` is skipped. The physical size comes from the root's `width`/`height` (mm, cm, in, pt, pc, px at
 //! 96 per inch) and `viewBox`.
 //!
 //! Safe by construction: `roxmltree` refuses a document type declaration (so no entity is
@@ -43,6 +44,8 @@ enum Role {
     Vein,
     Outline,
     ScaleBar,
+    RootMark,
+    Skipped,
 }
 
 /// Reads an SVG document; `tolerance` is the flattening tolerance in output units and
@@ -218,22 +221,34 @@ fn attribute_any_namespace<'a>(node: Node<'a, 'a>, name: &str) -> Option<&'a str
         .map(|attribute| attribute.value())
 }
 
-/// The role an element's own labels give it, if any.
+/// The role an element's own labels give it, if any: the words of its `id`, `class` and
+/// `inkscape:label` (split at anything not a letter or digit) name it `outline`, `scale bar`
+/// (or `scalebar`), `root` (its centre or first point marks a root), or `annotation`,
+/// `legend`, `background` or `ignore` (skipped).
 fn role_of(node: Node) -> Option<Role> {
-    let mut words = String::new();
+    let mut text = String::new();
     for name in ["id", "class", "inkscape:label"] {
         if let Some(value) = attribute_any_namespace(node, name) {
-            words.push_str(&value.to_lowercase());
-            words.push(' ');
+            text.push_str(&value.to_lowercase());
+            text.push(' ');
         }
     }
-    if words.contains("outline") {
+    let words: Vec<&str> = text
+        .split(|c: char| !c.is_alphanumeric())
+        .filter(|word| !word.is_empty())
+        .collect();
+    let has = |word: &str| words.contains(&word);
+    if has("outline") {
         Some(Role::Outline)
-    } else if ["scale-bar", "scale_bar", "scalebar", "scale bar"]
-        .iter()
-        .any(|word| words.contains(word))
-    {
+    } else if has("scalebar") || words.windows(2).any(|pair| pair == ["scale", "bar"]) {
         Some(Role::ScaleBar)
+    } else if has("root") {
+        Some(Role::RootMark)
+    } else if ["annotation", "legend", "background", "ignore"]
+        .iter()
+        .any(|word| has(word))
+    {
+        Some(Role::Skipped)
     } else {
         None
     }
@@ -282,6 +297,13 @@ impl SvgReader<'_, '_> {
             let local = self.transform_of(child)?;
             let transform = transform.then_inner(&local);
             let role = role_of(child).unwrap_or(role);
+            if role == Role::Skipped {
+                self.trace.notes.push(format!(
+                    "{} skipped: labelled as annotation, legend, background or ignore",
+                    describe(self.document, child)
+                ));
+                continue;
+            }
             match name {
                 "g" | "svg" | "a" => self.walk(child, transform, role)?,
                 "path" | "polyline" | "polygon" | "line" | "rect" | "circle" | "ellipse" => {
@@ -292,6 +314,15 @@ impl SvgReader<'_, '_> {
             }
         }
         Ok(())
+    }
+
+    /// The product of the transforms of an element and its ancestors.
+    fn transform_to_root(&self, node: Node) -> Result<Affine, SpecimenError> {
+        let mut result = Affine::IDENTITY;
+        for ancestor in node.ancestors().filter(|ancestor| ancestor.is_element()) {
+            result = self.transform_of(ancestor)?.then_inner(&result);
+        }
+        Ok(result)
     }
 
     fn transform_of(&self, node: Node) -> Result<Affine, SpecimenError> {
@@ -669,6 +700,20 @@ impl SvgReader<'_, '_> {
                     ring.pop();
                 }
                 self.trace.outline = Some(ring);
+            }
+            Role::Skipped => {}
+            Role::RootMark => {
+                // A circle's or ellipse's centre, else the first point.
+                let centre = match node.tag_name().name() {
+                    "circle" | "ellipse" => {
+                        let transform = self.transform_to_root(node)?;
+                        Some(transform.apply((self.number(node, "cx")?, self.number(node, "cy")?)))
+                    }
+                    _ => lines.first().and_then(|points| points.first().copied()),
+                };
+                if let Some(point) = centre {
+                    self.trace.root_marks.push(point);
+                }
             }
             Role::ScaleBar => {
                 for points in lines {
