@@ -222,7 +222,7 @@ pub(crate) fn printable_start(bytes: &[u8]) -> String {
 }
 
 /// Tells the format from the content: after a byte-order mark and white space, `<` is SVG,
-/// `{` is GeoJSON, and a first line naming `x1` is a CSV edge list.
+/// `{` is GeoJSON, and a first line (past `#` comments) naming `x1` is a CSV edge list.
 pub fn sniff_format(bytes: &[u8]) -> Result<SpecimenFormat, SpecimenError> {
     let body = bytes.strip_prefix(b"\xef\xbb\xbf").unwrap_or(bytes);
     let start = body
@@ -234,9 +234,14 @@ pub fn sniff_format(bytes: &[u8]) -> Result<SpecimenFormat, SpecimenError> {
         Some(b'<') => Ok(SpecimenFormat::Svg),
         Some(b'{') => Ok(SpecimenFormat::GeoJson),
         _ => {
-            let line_end = body.iter().position(|&b| b == b'\n').unwrap_or(body.len());
-            let first_line = String::from_utf8_lossy(&body[..line_end.min(4096)]).to_lowercase();
-            if first_line.contains("x1") && first_line.contains(',') {
+            // The first line that is not a `#` comment must name the columns.
+            let header = body
+                .split(|&byte| byte == b'\n')
+                .take(1000)
+                .find(|line| !line.starts_with(b"#") && !line.trim_ascii().is_empty())
+                .unwrap_or(b"");
+            let header = String::from_utf8_lossy(&header[..header.len().min(4096)]).to_lowercase();
+            if header.contains("x1") && header.contains(',') {
                 Ok(SpecimenFormat::Csv)
             } else {
                 Err(SpecimenError::UnknownFormat {
@@ -300,6 +305,10 @@ mod tests {
             Ok(SpecimenFormat::GeoJson)
         );
         assert_eq!(sniff_format(b"x1,y1,x2,y2\n"), Ok(SpecimenFormat::Csv));
+        assert_eq!(
+            sniff_format(b"# demo\n\nx1,y1,x2,y2\n"),
+            Ok(SpecimenFormat::Csv)
+        );
         assert!(matches!(
             sniff_format(b"P1 2 2"),
             Err(SpecimenError::UnknownFormat { .. })

@@ -234,6 +234,32 @@ fn crossing(a: Point, b: Point, c: Point, d: Point) -> Option<(f64, f64)> {
     (inside(t) && inside(u)).then_some((t, u))
 }
 
+/// The grid key holding pieces too long to list cell by cell.
+const HUGE: (i64, i64) = (i64::MIN, i64::MIN);
+
+/// Pieces by grid cell: each piece (padded by `pad`) is listed in every cell of side `size`
+/// its bounding box meets; a piece spanning more than a million cells goes under `HUGE`
+/// instead, so a degenerate drawing cannot take quadratic memory.
+fn segment_grid(spans: &[(Point, Point)], pad: f64, size: f64) -> HashMap<(i64, i64), Vec<u32>> {
+    let mut grid: HashMap<(i64, i64), Vec<u32>> = HashMap::new();
+    for (index, &(pa, pb)) in spans.iter().enumerate() {
+        let low = cell_of((pa.0.min(pb.0) - pad, pa.1.min(pb.1) - pad), size);
+        let high = cell_of((pa.0.max(pb.0) + pad, pa.1.max(pb.1) + pad), size);
+        let cells = (high.0.saturating_sub(low.0).saturating_add(1))
+            .saturating_mul(high.1.saturating_sub(low.1).saturating_add(1));
+        if !(1..=1_000_000).contains(&cells) {
+            grid.entry(HUGE).or_default().push(index as u32);
+            continue;
+        }
+        for gx in low.0..=high.0 {
+            for gy in low.1..=high.1 {
+                grid.entry((gx, gy)).or_default().push(index as u32);
+            }
+        }
+    }
+    grid
+}
+
 /// Turns calibrated lines (each with the name of where it was drawn) into a planar graph,
 /// reporting every change. `tolerance` is the snap tolerance in the lines' units (0: only
 /// points at exactly the same place join).
@@ -262,7 +288,6 @@ pub(crate) fn repair_lines(
     // Groups of points are union-find labels below `positions.len()`; crossing vertices get
     // labels from `positions.len()` up, each its own group.
     let mut sets: UnionFind<usize> = UnionFind::new(positions.len());
-    let point_count = positions.len();
     // 1. Exactly coincident points are one node, silently.
     let mut seen: HashMap<(u64, u64), usize> = HashMap::new();
     for (index, &(x, y)) in positions.iter().enumerate() {
@@ -342,39 +367,18 @@ pub(crate) fn repair_lines(
             .max(extent * 1e-9)
             .max(f64::MIN_POSITIVE)
     };
-    let piece_grid = |place: &HashMap<usize, Point>, sets: &mut UnionFind<usize>| {
-        let mut grid: HashMap<(i64, i64), Vec<u32>> = HashMap::new();
-        for (index, &(a, b, _)) in pieces.iter().enumerate() {
-            let pa = place[&sets.find_mut(a as usize)];
-            let pb = place[&sets.find_mut(b as usize)];
-            let low = cell_of(
-                (pa.0.min(pb.0) - tolerance, pa.1.min(pb.1) - tolerance),
-                piece_grid_size,
-            );
-            let high = cell_of(
-                (pa.0.max(pb.0) + tolerance, pa.1.max(pb.1) + tolerance),
-                piece_grid_size,
-            );
-            // A piece far longer than a cell is listed in each cell it spans; capped so a
-            // degenerate drawing cannot take quadratic memory.
-            let cells = (high.0 - low.0 + 1).saturating_mul(high.1 - low.1 + 1);
-            if cells > 1_000_000 {
-                grid.entry((i64::MIN, i64::MIN))
-                    .or_default()
-                    .push(index as u32);
-                continue;
-            }
-            for gx in low.0..=high.0 {
-                for gy in low.1..=high.1 {
-                    grid.entry((gx, gy)).or_default().push(index as u32);
-                }
-            }
-        }
-        grid
-    };
     if tolerance > 0.0 {
-        let grid = piece_grid(&place, &mut sets);
-        let huge: Vec<u32> = grid.get(&(i64::MIN, i64::MIN)).cloned().unwrap_or_default();
+        let spans: Vec<(Point, Point)> = pieces
+            .iter()
+            .map(|&(a, b, _)| {
+                (
+                    place[&sets.find_mut(a as usize)],
+                    place[&sets.find_mut(b as usize)],
+                )
+            })
+            .collect();
+        let grid = segment_grid(&spans, tolerance, piece_grid_size);
+        let huge: Vec<u32> = grid.get(&HUGE).cloned().unwrap_or_default();
         let mut done: std::collections::HashSet<usize> = std::collections::HashSet::new();
         for &end in &ends {
             let group = sets.find_mut(end as usize);
@@ -438,17 +442,48 @@ pub(crate) fn repair_lines(
             }
         }
     }
-    // 4. Crossing pieces split into a junction.
-    {
-        let grid = piece_grid(&place, &mut sets);
-        let mut pairs: Vec<(u32, u32)> = Vec::new();
-        let huge: Vec<u32> = grid.get(&(i64::MIN, i64::MIN)).cloned().unwrap_or_default();
-        for (key, list) in &grid {
-            let others: &[u32] = if *key == (i64::MIN, i64::MIN) {
-                &[]
+    // The pieces as they now run, through the junctions of step 3: (from, to, line).
+    // Pieces drawn twice between the same two nodes, and pieces of zero length, go now, so
+    // that no crossing is found twice.
+    let mut runs: Vec<(usize, usize, u32)> = Vec::new();
+    let mut run_seen: std::collections::HashSet<(usize, usize)> = std::collections::HashSet::new();
+    for (piece, &(a, b, line)) in pieces.iter().enumerate() {
+        let mut chain: Vec<usize> = vec![sets.find_mut(a as usize)];
+        let mut inner = std::mem::take(&mut splits[piece]);
+        inner.sort_by(|x, y| x.0.total_cmp(&y.0));
+        for (_, group) in inner {
+            chain.push(sets.find_mut(group));
+        }
+        chain.push(sets.find_mut(b as usize));
+        for pair in chain.windows(2) {
+            let (from, to) = (pair[0], pair[1]);
+            if from == to || place[&from] == place[&to] {
+                report.repairs.push(Repair::DroppedZeroLength {
+                    at: place[&from],
+                    line: lines[line as usize].1.clone(),
+                });
+            } else if !run_seen.insert((from.min(to), from.max(to))) {
+                report.repairs.push(Repair::DroppedDuplicate {
+                    from: place[&from],
+                    to: place[&to],
+                });
             } else {
-                &huge
-            };
+                runs.push((from, to, line));
+            }
+        }
+    }
+    // 4. Crossing pieces split into a junction.
+    let mut crossing_splits: Vec<Vec<(f64, usize)>> = vec![Vec::new(); runs.len()];
+    {
+        let spans: Vec<(Point, Point)> = runs
+            .iter()
+            .map(|&(from, to, _)| (place[&from], place[&to]))
+            .collect();
+        let grid = segment_grid(&spans, 0.0, piece_grid_size);
+        let mut pairs: Vec<(u32, u32)> = Vec::new();
+        let huge: Vec<u32> = grid.get(&HUGE).cloned().unwrap_or_default();
+        for (key, list) in &grid {
+            let others: &[u32] = if *key == HUGE { &[] } else { &huge };
             for (i, &first) in list.iter().enumerate() {
                 for &second in list[i + 1..].iter().chain(others.iter()) {
                     if first != second {
@@ -466,44 +501,49 @@ pub(crate) fn repair_lines(
         pairs.dedup();
         let mut crossings: Vec<(Point, u32, f64, u32, f64)> = Vec::new();
         for (first, second) in pairs {
-            let (a, b, _) = pieces[first as usize];
-            let (c, d, _) = pieces[second as usize];
-            let ends = [a, b, c, d].map(|vertex| sets.find_mut(vertex as usize));
-            if ends[0] == ends[2] || ends[0] == ends[3] || ends[1] == ends[2] || ends[1] == ends[3]
-            {
+            let (a, b, _) = runs[first as usize];
+            let (c, d, _) = runs[second as usize];
+            if a == c || a == d || b == c || b == d || a == b || c == d {
                 continue;
             }
-            let [pa, pb, pc, pd] = ends.map(|group| place[&group]);
+            let (pa, pb) = spans[first as usize];
+            let (pc, pd) = spans[second as usize];
             if let Some((t, u)) = crossing(pa, pb, pc, pd) {
                 crossings.push((along(pa, pb, t), first, t, second, u));
             }
         }
+        // Crossings at exactly the same place (three pieces through one point) are one node.
+        let mut crossing_at: HashMap<(u64, u64), usize> = HashMap::new();
         for (at, first, t, second, u) in crossings {
-            let group = next_vertex;
-            next_vertex += 1;
-            place.insert(group, at);
-            splits[first as usize].push((t, group));
-            splits[second as usize].push((u, group));
-            report.repairs.push(Repair::SplitCrossing { at });
+            let key = ((at.0 + 0.0).to_bits(), (at.1 + 0.0).to_bits());
+            let group = match crossing_at.get(&key) {
+                Some(&group) => group,
+                None => {
+                    let group = next_vertex;
+                    next_vertex += 1;
+                    crossing_at.insert(key, group);
+                    place.insert(group, at);
+                    report.repairs.push(Repair::SplitCrossing { at });
+                    group
+                }
+            };
+            crossing_splits[first as usize].push((t, group));
+            crossing_splits[second as usize].push((u, group));
         }
     }
-    // 5. Segments along each piece through its splits; drop zero-length and repeated pieces.
+    // 5. Segments along each run through its crossings; drop zero-length and repeated pieces.
     let mut node_of: HashMap<usize, u32> = HashMap::new();
     let mut nodes: Vec<Point> = Vec::new();
     let mut edges: Vec<(u32, u32)> = Vec::new();
     let mut edge_seen: HashMap<(u32, u32), ()> = HashMap::new();
-    for (piece, &(a, b, line)) in pieces.iter().enumerate() {
-        let mut chain: Vec<usize> = vec![sets.find_mut(a as usize)];
-        let mut inner = std::mem::take(&mut splits[piece]);
-        inner.sort_by(|x, y| x.0.partial_cmp(&y.0).unwrap_or(std::cmp::Ordering::Equal));
-        for (_, group) in inner {
-            chain.push(if group < point_count {
-                sets.find_mut(group)
-            } else {
-                group
-            });
-        }
-        chain.push(sets.find_mut(b as usize));
+    for (run, &(a, b, line)) in runs.iter().enumerate() {
+        let mut chain: Vec<usize> = vec![a];
+        let mut inner = std::mem::take(&mut crossing_splits[run]);
+        inner.sort_by(|x, y| x.0.total_cmp(&y.0));
+        chain.extend(inner.into_iter().map(|(_, group)| group));
+        chain.push(b);
+        // The same crossing met twice along one run (three pieces through one point).
+        chain.dedup();
         for pair in chain.windows(2) {
             let (from, to) = (pair[0], pair[1]);
             let (pf, pt) = (place[&from], place[&to]);
