@@ -20,12 +20,14 @@ use crate::options::{CliError, MeasureOptions};
 /// File name endings a folder is searched for.
 const SPECIMEN_ENDINGS: [&str; 4] = [".svg", ".geojson", ".json", ".csv"];
 
-/// Whether the bytes are a run record (JSON naming the `ramulus-run` format) rather than a
-/// specimen.
+/// Whether the bytes are a run record rather than a specimen: a JSON object that names the
+/// `ramulus-run` format, or one without a `"type"` key (which every GeoJSON object has), so
+/// that a damaged record gets the record reader's message.
 fn is_record(bytes: &[u8]) -> bool {
     let start = bytes.iter().position(|b| !b.is_ascii_whitespace());
+    let has = |needle: &[u8]| bytes.windows(needle.len()).any(|window| window == needle);
     start.is_some_and(|index| bytes[index] == b'{')
-        && bytes.windows(13).any(|window| window == b"\"ramulus-run\"")
+        && (has(b"\"ramulus-run\"") || !has(b"\"type\""))
 }
 
 /// Whether `measure` has specimen work: a folder, a file that is not a run record, or a
