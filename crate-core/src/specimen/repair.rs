@@ -234,6 +234,10 @@ fn crossing(a: Point, b: Point, c: Point, d: Point) -> Option<(f64, f64)> {
     (inside(t) && inside(u)).then_some((t, u))
 }
 
+/// Crossings closer than this fraction of the drawing's extent are one node (rounding of
+/// three pieces through one point; far below anything drawn).
+const CROSSING_MERGE_FRACTION: f64 = 1e-9;
+
 /// The grid key holding pieces too long to list cell by cell.
 const HUGE: (i64, i64) = (i64::MIN, i64::MIN);
 
@@ -355,13 +359,15 @@ pub(crate) fn repair_lines(
     // Splits of each piece: (parameter, vertex).
     let mut splits: Vec<Vec<(f64, usize)>> = vec![Vec::new(); pieces.len()];
     // 3. Ends near another line join it (T-junctions).
-    let piece_grid_size = {
+    let extent = {
         let (mut low, mut high) = ((f64::MAX, f64::MAX), (f64::MIN, f64::MIN));
         for point in &positions {
             low = (low.0.min(point.0), low.1.min(point.1));
             high = (high.0.max(point.0), high.1.max(point.1));
         }
-        let extent = (high.0 - low.0).max(high.1 - low.1).max(0.0);
+        (high.0 - low.0).max(high.1 - low.1).max(0.0)
+    };
+    let piece_grid_size = {
         let size = extent / (pieces.len().max(1) as f64).sqrt();
         size.max(tolerance)
             .max(extent * 1e-9)
@@ -512,16 +518,32 @@ pub(crate) fn repair_lines(
                 crossings.push((along(pa, pb, t), first, t, second, u));
             }
         }
-        // Crossings at exactly the same place (three pieces through one point) are one node.
-        let mut crossing_at: HashMap<(u64, u64), usize> = HashMap::new();
+        // Crossings closer than a billionth of the drawing (three pieces through one point,
+        // up to rounding) are one node.
+        let near = (extent * CROSSING_MERGE_FRACTION).max(f64::MIN_POSITIVE);
+        let mut crossing_at: HashMap<(i64, i64), Vec<usize>> = HashMap::new();
         for (at, first, t, second, u) in crossings {
-            let key = ((at.0 + 0.0).to_bits(), (at.1 + 0.0).to_bits());
-            let group = match crossing_at.get(&key) {
-                Some(&group) => group,
+            let (cx, cy) = cell_of(at, near);
+            let mut found = None;
+            'search: for gx in cx.saturating_sub(1)..=cx.saturating_add(1) {
+                for gy in cy.saturating_sub(1)..=cy.saturating_add(1) {
+                    for &group in crossing_at
+                        .get(&(gx, gy))
+                        .map_or(&[][..], |list| list.as_slice())
+                    {
+                        if distance(place[&group], at) <= near {
+                            found = Some(group);
+                            break 'search;
+                        }
+                    }
+                }
+            }
+            let group = match found {
+                Some(group) => group,
                 None => {
                     let group = next_vertex;
                     next_vertex += 1;
-                    crossing_at.insert(key, group);
+                    crossing_at.entry((cx, cy)).or_default().push(group);
                     place.insert(group, at);
                     report.repairs.push(Repair::SplitCrossing { at });
                     group
