@@ -920,11 +920,11 @@ fn the_readme_example_files_grow() {
 }
 
 /// The hand-traced leaf shipped with the tests (invented demo data, see
-/// tests/data/specimens/hand-traced-leaf.svg).
+/// examples/specimens/hand-traced-leaf.svg).
 fn traced_leaf() -> String {
     concat!(
         env!("CARGO_MANIFEST_DIR"),
-        "/../tests/data/specimens/hand-traced-leaf.svg"
+        "/../examples/specimens/hand-traced-leaf.svg"
     )
     .to_string()
 }
@@ -1048,4 +1048,21 @@ fn bad_specimens_are_named() {
     assert_eq!(usage.code, Some(2));
     let bar = ramulus(&["measure", &traced_leaf(), "--scale-bar", "0,0,0,0,10"]);
     check_failure(&bar, &["scale bar", "must differ"]);
+}
+
+/// README's specimen examples run as written: the shipped folder of invented specimens gives
+/// a header and one row for each of its three files.
+#[test]
+fn the_readme_specimen_examples_run() {
+    let examples = concat!(env!("CARGO_MANIFEST_DIR"), "/../examples/specimens");
+    let one = ramulus(&[
+        "measure",
+        &format!("{examples}/hand-traced-leaf.svg"),
+        "--snap",
+        "0.2",
+    ]);
+    assert!(one.success, "{}", one.stderr);
+    let folder = ramulus(&["measure", examples, "--units", "mm"]);
+    assert!(folder.success, "{}", folder.stderr);
+    assert_eq!(folder.stdout.lines().count(), 4, "{}", folder.stdout);
 }

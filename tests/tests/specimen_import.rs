@@ -443,7 +443,7 @@ fn physical_sizes_set_the_scale() {
 fn the_hand_traced_leaf_measures_as_counted_by_hand() {
     let bytes = std::fs::read(concat!(
         env!("CARGO_MANIFEST_DIR"),
-        "/data/specimens/hand-traced-leaf.svg"
+        "/../examples/specimens/hand-traced-leaf.svg"
     ))
     .expect("fixture");
     let specimen = build(&bytes, &options(ScaleRule::FromFile, None, Some(0.2)));

@@ -373,7 +373,8 @@ pub(crate) fn repair_lines(
             .max(extent * 1e-9)
             .max(f64::MIN_POSITIVE)
     };
-    if tolerance > 0.0 {
+    // With a tolerance of 0 only ends lying exactly on a line join it.
+    {
         let spans: Vec<(Point, Point)> = pieces
             .iter()
             .map(|&(a, b, _)| {
