@@ -102,7 +102,8 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
             "stopped": stopped.name(),
             "metrics": view.metrics,
             "caution": params.is_site().then_some(SITE_CAUTION),
-            "link": format!("#{}", encode_link(&params)),
+            "link": format!("{}#{}", options.page, encode_link(&params)),
+            "fragment": format!("#{}", encode_link(&params)),
         });
         say!("{output}");
     } else {
@@ -114,6 +115,11 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
             view.digest
         );
         print_table(&view.metrics, &params.domain.units);
+        say!(
+            "\nopen on the page: {}#{}",
+            options.page,
+            encode_link(&params)
+        );
         if params.is_site() {
             say!("\nCAUTION: {SITE_CAUTION}");
         }

@@ -11,6 +11,7 @@ macro_rules! say {
 
 mod bench;
 mod commands;
+mod interrupt;
 mod options;
 mod output;
 mod specimens;
@@ -55,6 +56,7 @@ enum Command {
 fn main() -> ExitCode {
     // clap prints help and version on stdout (exit 0) and usage errors on stderr (exit 2).
     let command_line = CommandLine::try_parse().unwrap_or_else(|error| error.exit());
+    interrupt::install();
     let outcome = match command_line.command {
         Command::Grow(options) => commands::grow(options),
         Command::Measure(options) => commands::measure(options),

@@ -74,6 +74,33 @@ pub struct GrowOptions {
     /// Print exactly one JSON object on stdout instead of the table
     #[arg(long)]
     pub json: bool,
+    /// Address of the page the printed run link opens (default
+    /// http://127.0.0.1:8080/, where `./x serve` serves it)
+    #[arg(
+        long,
+        value_name = "URL",
+        default_value = DEFAULT_PAGE,
+        value_parser = page_address,
+        verbatim_doc_comment
+    )]
+    pub page: String,
+}
+
+/// Where `./x serve` serves the page by default.
+pub const DEFAULT_PAGE: &str = "http://127.0.0.1:8080/";
+
+/// A page address: http, https or file, without a fragment (the run link adds its own).
+fn page_address(text: &str) -> Result<String, String> {
+    let scheme_ok = ["http://", "https://", "file://"]
+        .iter()
+        .any(|scheme| text.starts_with(scheme) && text.len() > scheme.len());
+    if !scheme_ok {
+        return Err("a page address starts with http://, https:// or file://".into());
+    }
+    if text.contains('#') {
+        return Err("a page address must not hold a `#`: the run link adds its own".into());
+    }
+    Ok(text.to_string())
 }
 
 /// What `ramulus grow --help` adds below the options.
@@ -85,8 +112,9 @@ then overrides one key, for example --set seed=9 --set alpha=0.7 or
 (cell_size per cell); --mask replaces `width` and `height` (cells) by the image size.
 
 With --json stdout holds one object: digest (16 hex digits), cells, nodes, segments,
-total_length (units), units, stopped (why growth ended), metrics, caution (sites; else null)
-and link (the fragment that opens this run on the page).";
+total_length (units), units, stopped (why growth ended), metrics, caution (sites; else null),
+link (the --page address plus the run's fragment: open it in a browser to see this run) and
+fragment (the #fragment alone).";
 
 /// Options of `ramulus measure`.
 #[derive(Args)]

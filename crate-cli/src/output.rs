@@ -88,7 +88,12 @@ impl OutputPlan {
                 "{path}: cannot write: {error}; no file was changed"
             ))
         };
-        let mut file = NamedTempFile::new_in(folder).map_err(cannot)?;
+        let mut file = crate::interrupt::track(|| {
+            let file = NamedTempFile::new_in(folder)?;
+            let path = file.path().to_path_buf();
+            Ok((file, path))
+        })
+        .map_err(cannot)?;
         file.write_all(text.as_bytes()).map_err(cannot)?;
         file.as_file().sync_all().map_err(cannot)?;
         self.staged.push((file, path.to_string(), target));
@@ -99,7 +104,8 @@ impl OutputPlan {
     /// renamed are removed when a rename fails (or when the plan is dropped unfinished).
     pub fn commit(self) -> Result<(), CliError> {
         for (file, path, target) in self.staged {
-            file.persist(&target).map_err(|error| {
+            let temporary = file.path().to_path_buf();
+            crate::interrupt::settle(&temporary, || file.persist(&target)).map_err(|error| {
                 CliError::Failed(format!("{path}: cannot write: {}", error.error))
             })?;
         }

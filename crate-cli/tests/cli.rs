@@ -339,12 +339,15 @@ fn usage_errors_exit_non_zero_without_a_panic() {
 #[test]
 fn a_printed_link_grows_the_same_run() {
     let first = grow_json(&["grow", "--preset", "spanning-tree", "--json"]);
-    let link = first["link"].as_str().expect("link is text");
+    let url = first["link"].as_str().expect("link is text");
+    // The link is an address that opens: `./x serve`'s page, then the run's fragment.
+    assert!(url.starts_with("http://127.0.0.1:8080/#v=1&"), "{url}");
+    let link = first["fragment"].as_str().expect("fragment is text");
     assert!(link.starts_with("#v=1&"), "{link}");
+    assert!(url.ends_with(link), "{url} ends with {link}");
     let again = grow_json(&["grow", "--link", link, "--json"]);
     assert_eq!(again["digest"], first["digest"]);
-    let url = format!("http://127.0.0.1:8080/{link}");
-    let from_url = grow_json(&["grow", "--link", &url, "--json"]);
+    let from_url = grow_json(&["grow", "--link", url, "--json"]);
     assert_eq!(from_url["digest"], first["digest"]);
     let other = grow_json(&["grow", "--link", link, "--set", "cells=100", "--json"]);
     assert_eq!(other["cells"].as_u64(), Some(100));
@@ -357,6 +360,7 @@ fn a_damaged_link_warns_and_a_link_with_a_preset_is_refused() {
     let first = grow_json(&["grow", "--preset", "spanning-tree", "--json"]);
     let link = first["link"].as_str().expect("link is text");
     let damaged = link.replace("&alpha=", "&alpha=oops");
+    assert_ne!(damaged, link, "the link has an alpha field to damage");
     let outcome = ramulus(&["grow", "--link", &damaged, "--json"]);
     assert!(outcome.success, "{}", outcome.stderr);
     assert!(outcome.stderr.contains("`alpha`"), "{}", outcome.stderr);
@@ -730,6 +734,8 @@ fn a_full_standard_output_fails_the_run() {
     let Ok(full) = std::fs::OpenOptions::new().write(true).open("/dev/full") else {
         return; // not Linux: no device that is always full
     };
+    let record = TempFile::new("for-full-stdout", "json");
+    good_record(record.path());
     for arguments in [
         &[
             "grow",
@@ -740,6 +746,8 @@ fn a_full_standard_output_fails_the_run() {
             "--json",
         ][..],
         &["presets"][..],
+        &["measure", record.path(), "--json"][..],
+        &["measure", record.path()][..],
     ] {
         let output = Command::new(env!("CARGO_BIN_EXE_ramulus"))
             .args(arguments)
@@ -1065,4 +1073,198 @@ fn the_readme_specimen_examples_run() {
     let folder = ramulus(&["measure", examples, "--units", "mm"]);
     assert!(folder.success, "{}", folder.stderr);
     assert_eq!(folder.stdout.lines().count(), 4, "{}", folder.stdout);
+}
+
+/// `--page` sets the address the printed link opens (a page served elsewhere); an address
+/// that is not http, https or file, or that holds its own `#`, is a usage error naming --page.
+#[test]
+fn the_page_address_of_the_printed_link_can_be_set_and_is_checked() {
+    let value = grow_json(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--page",
+        "https://example.invalid/ramulus/",
+        "--json",
+    ]);
+    let url = value["link"].as_str().expect("link is text");
+    assert!(
+        url.starts_with("https://example.invalid/ramulus/#v=1&"),
+        "{url}"
+    );
+    for bad in ["example.invalid/page", "http://host/page#old", ""] {
+        let outcome = ramulus(&["grow", "--page", bad, "--json"]);
+        assert_eq!(outcome.code, Some(2), "--page {bad:?}: {}", outcome.stderr);
+        assert!(outcome.stderr.contains("--page"), "{}", outcome.stderr);
+        assert!(
+            outcome.stdout.is_empty(),
+            "nothing on stdout: {}",
+            outcome.stdout
+        );
+    }
+}
+
+/// A fresh, empty folder for one test (so leftover temporary files can be counted).
+fn temp_folder(stem: &str) -> PathBuf {
+    let folder = temp_path(stem, "d");
+    std::fs::create_dir_all(&folder).expect("writable temp dir");
+    folder
+}
+
+/// The names of the files in `folder`, sorted.
+fn files_in(folder: &std::path::Path) -> Vec<String> {
+    let mut names: Vec<String> = std::fs::read_dir(folder)
+        .expect("the folder exists")
+        .map(|entry| {
+            entry
+                .expect("readable")
+                .file_name()
+                .to_string_lossy()
+                .into_owned()
+        })
+        .collect();
+    names.sort();
+    names
+}
+
+/// A good record of a small run at `path`, returned as bytes.
+fn good_record(path: &str) -> Vec<u8> {
+    let outcome = ramulus(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--set",
+        "cells=200",
+        "--record",
+        path,
+    ]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    std::fs::read(path).expect("the record was written")
+}
+
+/// The attack "disk full while writing --record over an existing good record": a file-size
+/// limit (POSIX `ulimit -f`; the limit signal SIGXFSZ ignored, so the write fails with EFBIG as
+/// a full disk fails with ENOSPC) stops the new record part way. The run fails (exit 1) naming
+/// the record, the old record is intact byte for byte, and no temporary file is left behind.
+#[cfg(unix)]
+#[test]
+fn a_record_that_cannot_be_written_whole_leaves_the_old_one() {
+    let folder = temp_folder("full-disk");
+    let record = folder.join("run.json");
+    let record = record.to_str().expect("UTF-8");
+    let before = good_record(record);
+    let output = Command::new("sh")
+        .arg("-c")
+        // 64 blocks of 512 bytes: far less than the new record (over 1 MB).
+        .arg("trap '' XFSZ; ulimit -f 64; exec \"$0\" \"$@\"")
+        .arg(env!("CARGO_BIN_EXE_ramulus"))
+        .args([
+            "grow",
+            "--preset",
+            "broad-leaf",
+            "--set",
+            "cells=6000",
+            "--record",
+            record,
+        ])
+        .output()
+        .expect("sh runs");
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(1), "{stderr}");
+    assert!(
+        stderr.contains("run.json") && stderr.contains("cannot write"),
+        "{stderr}"
+    );
+    assert!(!stderr.contains("panicked"), "{stderr}");
+    assert_eq!(std::fs::read(record).expect("still there"), before);
+    assert_eq!(files_in(&folder), ["run.json"]);
+    let _ = std::fs::remove_dir_all(&folder);
+}
+
+/// The attack "Ctrl-C while the record is written": SIGINT at several moments of a run that
+/// replaces a good record. Whenever it lands, the record afterwards is either the old one byte
+/// for byte or a whole new record that `measure` reads, and no temporary file is left behind.
+#[cfg(unix)]
+#[test]
+fn ctrl_c_at_any_moment_leaves_a_whole_record_and_no_temporary_file() {
+    let folder = temp_folder("interrupted");
+    let record = folder.join("run.json");
+    let record = record.to_str().expect("UTF-8");
+    let before = good_record(record);
+    // How long a whole run takes here, so the signals can be spread over all of it (growth,
+    // measuring, writing the temporary file, renaming).
+    let started = std::time::Instant::now();
+    let probe = temp_folder("interrupted-probe");
+    let probe_record = probe.join("run.json");
+    good_record(probe_record.to_str().expect("UTF-8"));
+    let whole = ramulus(&[
+        "grow",
+        "--preset",
+        "broad-leaf",
+        "--record",
+        probe_record.to_str().expect("UTF-8"),
+    ]);
+    assert!(whole.success, "{}", whole.stderr);
+    let run_ms = started.elapsed().as_millis() as u64;
+    let _ = std::fs::remove_dir_all(&probe);
+    let mut interrupted = 0;
+    for step in 1..=12u64 {
+        let delay_ms = run_ms * step / 12;
+        let child = Command::new(env!("CARGO_BIN_EXE_ramulus"))
+            .args(["grow", "--preset", "broad-leaf", "--record", record])
+            .stdout(std::process::Stdio::null())
+            .stderr(std::process::Stdio::piped())
+            .spawn()
+            .expect("the ramulus binary runs");
+        std::thread::sleep(std::time::Duration::from_millis(delay_ms));
+        let _ = Command::new("kill")
+            .args(["-INT", &child.id().to_string()])
+            .status();
+        let output = child.wait_with_output().expect("the run ends");
+        let stderr = String::from_utf8_lossy(&output.stderr);
+        assert!(!stderr.contains("panicked"), "{stderr}");
+        if !output.status.success() {
+            interrupted += 1;
+        }
+        let after = std::fs::read(record).expect("a record is there");
+        if after != before {
+            let measured = ramulus(&["measure", record, "--json"]);
+            assert!(
+                measured.success,
+                "after SIGINT at {delay_ms} ms the record does not read: {}",
+                measured.stderr
+            );
+        }
+        assert_eq!(
+            files_in(&folder),
+            ["run.json"],
+            "after SIGINT at {delay_ms} ms"
+        );
+    }
+    // The early signals land mid-run (the preset takes far longer than 30 ms).
+    assert!(interrupted >= 1, "no run was interrupted");
+    let _ = std::fs::remove_dir_all(&folder);
+}
+
+/// The attack "`--svg` onto the input mask": an output naming the mask it reads is refused as
+/// wrong usage before anything is written, and the mask keeps its bytes.
+#[test]
+fn an_svg_naming_the_input_mask_is_refused_and_the_mask_kept() {
+    let mask = TempFile::new("mask", "pbm");
+    std::fs::write(mask.path(), all_black_pbm(20, 16)).expect("writable temp dir");
+    let before = std::fs::read(mask.path()).expect("the mask exists");
+    let outcome = ramulus(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--set",
+        "roots=[{\"x\":10,\"y\":15,\"outflow\":[0,1]}]",
+        "--mask",
+        mask.path(),
+        "--svg",
+        mask.path(),
+    ]);
+    check_failure(&outcome, &["--svg", "--mask"]);
+    assert_eq!(outcome.code, Some(2));
+    assert_eq!(std::fs::read(mask.path()).expect("still there"), before);
 }

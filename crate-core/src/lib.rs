@@ -6,6 +6,7 @@
 
 pub mod digest;
 pub mod fast_libm;
+pub mod fit;
 pub mod growth;
 pub mod import;
 pub mod limits;

@@ -69,6 +69,13 @@ fn generated_table_has_one_row_per_key() {
             "row {row:?} is not `{}`",
             spec.key
         );
-        assert_eq!(row.matches(" | ").count(), 6, "row {row:?} has 7 cells");
+        assert_eq!(row.matches(" | ").count(), 7, "row {row:?} has 8 cells");
+        // Every bounded key says why its bounds are what they are (the rule).
+        let why = row.split(" | ").nth(6).unwrap_or("");
+        assert_eq!(
+            spec.bounds.is_some(),
+            why != "-" && !why.is_empty(),
+            "row {row:?}: bounds and their reason go together"
+        );
     }
 }

@@ -157,9 +157,7 @@ impl Growth {
                 }
                 _ => {}
             }
-            let [dx, dy] = root.outflow;
-            let norm = (dx * dx + dy * dy).sqrt();
-            growth.axes.push((dx / norm, dy / norm));
+            growth.axes.push(unit_outflow(root.outflow));
             growth.add_root(cell, index as u32);
         }
         if growth.cell_count >= params.run.cells {
@@ -393,4 +391,21 @@ impl Growth {
         self.offer(cell, junction);
         junction
     }
+}
+
+/// The unit vector of a root's outflow direction. A direction does not depend on its length:
+/// components whose squares would underflow to zero or overflow to infinity are first divided
+/// by the larger of the two, so `[1e-200, 0]` gives what `[1, 0]` gives and `[1e200, 1e200]`
+/// what `[1, 1]` gives. Every other direction takes the plain formula, as it always has, so
+/// version-1 links keep their bits.
+fn unit_outflow([dx, dy]: [f64; 2]) -> (f64, f64) {
+    let squared = dx * dx + dy * dy;
+    if squared.is_finite() && squared >= f64::MIN_POSITIVE {
+        let norm = squared.sqrt();
+        return (dx / norm, dy / norm);
+    }
+    let larger = dx.abs().max(dy.abs());
+    let (dx, dy) = (dx / larger, dy / larger);
+    let norm = (dx * dx + dy * dy).sqrt();
+    (dx / norm, dy / norm)
 }

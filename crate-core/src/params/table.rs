@@ -26,6 +26,8 @@ pub struct ParamSpec {
     pub unit: &'static str,
     /// Smallest and largest allowed value (numeric kinds only).
     pub bounds: Option<Bounds>,
+    /// Why the bounds are what they are (numeric kinds only; empty otherwise).
+    pub bounds_why: &'static str,
     /// The default, as link text.
     pub default: &'static str,
     /// The default of link format version 1, as link text: frozen, never changed.
@@ -51,7 +53,8 @@ pub struct Bounds {
 
 /// How a fit steps a parameter: evenly, or evenly in its logarithm (positive values spanning
 /// several orders of magnitude).
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+#[serde(rename_all = "snake_case")]
 pub enum FitScale {
     /// Even steps of the value.
     Linear,
@@ -161,6 +164,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Seed",
         unit: "",
         bounds: closed(0.0, u64::MAX as f64),
+        bounds_why: "Any 64-bit number: the seed only starts the ChaCha8 generator.",
         default: "1",
         link_v1_default: "1",
         fit: None,
@@ -173,6 +177,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Cell budget",
         unit: "cells",
         bounds: closed(1.0, MAX_CELLS as f64),
+        bounds_why: "At least the roots; at most 25,000,000, the largest lattice (memory, see limits).",
         default: "10000",
         link_v1_default: "10000",
         fit: None,
@@ -185,6 +190,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Joining rule",
         unit: "",
         bounds: None,
+        bounds_why: "",
         default: "weighted",
         link_v1_default: "weighted",
         fit: None,
@@ -197,6 +203,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Temperature T",
         unit: "cost",
         bounds: open_below(0.0, f64::MAX),
+        bounds_why: "Any positive finite value: the weights exp(-(C - Cmin)/T) stay in [0, 1]; a tiny T acts as cheapest, a huge one as uniform.",
         default: "0.5",
         link_v1_default: "0.5",
         fit: Some(FitScale::Log),
@@ -209,6 +216,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Stop threshold",
         unit: "cost",
         bounds: closed(-1.0e12, 1.0e12),
+        bounds_why: "Costs of a cell lie far inside +-1e12 at every allowed weight, so wider bounds would only hide typing errors (common practice, no source).",
         default: "none",
         link_v1_default: "none",
         fit: Some(FitScale::Linear),
@@ -221,6 +229,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Joining distance",
         unit: "cells",
         bounds: closed(1.0, MAX_RADIUS),
+        bounds_why: "1 cell reaches the 4 side neighbours; 12 cells keeps each join's search at about 450 cells.",
         default: "4",
         link_v1_default: "4",
         fit: Some(FitScale::Linear),
@@ -233,6 +242,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Attach to vein sides",
         unit: "",
         bounds: None,
+        bounds_why: "",
         default: "false",
         link_v1_default: "false",
         fit: None,
@@ -245,6 +255,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Flow refresh",
         unit: "fraction",
         bounds: closed(0.001, 1.0),
+        bounds_why: "From every 0.1 % of growth (slow but exact) to only once per doubling.",
         default: "0.05",
         link_v1_default: "0.05",
         fit: None,
@@ -257,6 +268,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Length weight",
         unit: "",
         bounds: closed(0.0, MAX_WEIGHT),
+        bounds_why: "Weights are relative; 0 turns a term off and 1e6 is six orders above the others, where the term alone decides.",
         default: "1",
         link_v1_default: "1",
         fit: Some(FitScale::Linear),
@@ -269,6 +281,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Angle weight",
         unit: "",
         bounds: closed(0.0, MAX_WEIGHT),
+        bounds_why: "Weights are relative; 0 turns a term off and 1e6 is six orders above the others, where the term alone decides.",
         default: "1",
         link_v1_default: "1",
         fit: Some(FitScale::Linear),
@@ -281,6 +294,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Preferred angle",
         unit: "degrees",
         bounds: closed(0.0, 150.0),
+        bounds_why: "0 favours straight continuation; past 150 degrees a branch would run back along its parent.",
         default: "none",
         link_v1_default: "none",
         fit: Some(FitScale::Linear),
@@ -293,6 +307,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Transport weight",
         unit: "",
         bounds: closed(0.0, MAX_WEIGHT),
+        bounds_why: "Weights are relative; 0 turns a term off and 1e6 is six orders above the others, where the term alone decides.",
         default: "0.5",
         link_v1_default: "0.5",
         fit: Some(FitScale::Linear),
@@ -305,6 +320,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Transport exponent alpha",
         unit: "",
         bounds: closed(0.0, 1.0),
+        bounds_why: "0 counts every vein alike whatever it carries; 1 makes transport cost additive, so sharing a trunk saves nothing; above 1 is not a transport network.",
         default: "0.5",
         link_v1_default: "0.5",
         fit: Some(FitScale::Linear),
@@ -317,6 +333,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Supply-distance weight",
         unit: "",
         bounds: closed(0.0, MAX_WEIGHT),
+        bounds_why: "Weights are relative; 0 turns a term off and 1e6 is six orders above the others, where the term alone decides.",
         default: "0",
         link_v1_default: "0",
         fit: Some(FitScale::Linear),
@@ -329,6 +346,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Elongation",
         unit: "",
         bounds: closed(1.0, 10.0),
+        bounds_why: "1 is isotropic; past 10 the blade is a line of cells along the axis.",
         default: "1",
         link_v1_default: "1",
         fit: Some(FitScale::Log),
@@ -341,6 +359,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Rear cost",
         unit: "",
         bounds: closed(1.0, 10.0),
+        bounds_why: "1 is isotropic; past 10 nothing grows behind the root in any case.",
         default: "1",
         link_v1_default: "1",
         fit: Some(FitScale::Log),
@@ -353,6 +372,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Uphill weight",
         unit: "",
         bounds: closed(0.0, MAX_WEIGHT),
+        bounds_why: "Weights are relative; 0 turns a term off and 1e6 is six orders above the others, where the term alone decides.",
         default: "0",
         link_v1_default: "0",
         fit: Some(FitScale::Linear),
@@ -365,6 +385,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Slope east",
         unit: "m/m",
         bounds: closed(-1.0, 1.0),
+        bounds_why: "A rise of at most 1 per unit run (45 degrees) covers sites and terrain that can be built on.",
         default: "0",
         link_v1_default: "0",
         fit: Some(FitScale::Linear),
@@ -377,6 +398,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Slope south",
         unit: "m/m",
         bounds: closed(-1.0, 1.0),
+        bounds_why: "A rise of at most 1 per unit run (45 degrees) covers sites and terrain that can be built on.",
         default: "0",
         link_v1_default: "0",
         fit: Some(FitScale::Linear),
@@ -388,7 +410,8 @@ static PARAMETERS: &[ParamSpec] = &[
         group: "Terrain",
         label: "Runoff coefficient",
         unit: "",
-        bounds: open_below(0.0, 1.0),
+        bounds: closed(0.01, 1.0),
+        bounds_why: "Handbook runoff coefficients run from about 0.05 (flat sandy lawn) to 0.95 (roofs, pavement) (US FHWA HEC-22, table 3-1, from memory); from 0.01 flows and widths stay far from underflow; 1 means all rain runs off.",
         default: "1",
         link_v1_default: "1",
         fit: Some(FitScale::Linear),
@@ -401,6 +424,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Width exponent gamma",
         unit: "",
         bounds: closed(1.0, 10.0),
+        bounds_why: "2 keeps the cross-section area (da Vinci's rule), 3 is Murray's law (Murray 1926); 1 to 10 spans every published exponent with room.",
         default: "3",
         link_v1_default: "3",
         fit: Some(FitScale::Linear),
@@ -412,7 +436,8 @@ static PARAMETERS: &[ParamSpec] = &[
         group: "Widths",
         label: "Tip width",
         unit: "cells",
-        bounds: open_below(0.0, 1.0),
+        bounds: closed(0.001, 1.0),
+        bounds_why: "From 1/1000 of a cell (below any drawing's resolution, yet a positive width) to a whole cell, as wide as a cell holds.",
         default: "0.12",
         link_v1_default: "0.12",
         fit: Some(FitScale::Log),
@@ -425,6 +450,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Width",
         unit: "cells",
         bounds: closed(1.0, 20_000.0),
+        bounds_why: "20,000 cells a side at most, and width x height within 25,000,000.",
         default: "120",
         link_v1_default: "120",
         fit: None,
@@ -437,6 +463,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Height",
         unit: "cells",
         bounds: closed(1.0, 20_000.0),
+        bounds_why: "20,000 cells a side at most, and width x height within 25,000,000.",
         default: "120",
         link_v1_default: "120",
         fit: None,
@@ -448,7 +475,8 @@ static PARAMETERS: &[ParamSpec] = &[
         group: "Lattice",
         label: "Cell size",
         unit: "length",
-        bounds: open_below(0.0, f64::MAX),
+        bounds: closed(0.001, 1000.0),
+        bounds_why: "From 1/1000 to 1000 of the length unit (1 nm to 1 mm in um, 1 mm to 1 km in m): lengths, areas and the drawing's size in mm stay finite and printable; finer or coarser cells call for another unit.",
         default: "0.15",
         link_v1_default: "0.15",
         fit: None,
@@ -461,6 +489,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Length unit",
         unit: "",
         bounds: None,
+        bounds_why: "",
         default: "mm",
         link_v1_default: "mm",
         fit: None,
@@ -473,6 +502,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Jitter",
         unit: "cells",
         bounds: closed(0.0, 0.49),
+        bounds_why: "Below half a cell, so a node never leaves its own cell.",
         default: "0.35",
         link_v1_default: "0.35",
         fit: Some(FitScale::Linear),
@@ -485,6 +515,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Roots",
         unit: "",
         bounds: None,
+        bounds_why: "",
         default: "60,100,0,1",
         link_v1_default: "60,100,0,1",
         fit: None,
@@ -497,6 +528,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Allowed outline",
         unit: "",
         bounds: None,
+        bounds_why: "",
         default: "none",
         link_v1_default: "none",
         fit: None,
@@ -509,6 +541,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Obstacles",
         unit: "",
         bounds: None,
+        bounds_why: "",
         default: "",
         link_v1_default: "",
         fit: None,
@@ -521,6 +554,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Image mask",
         unit: "",
         bounds: None,
+        bounds_why: "",
         default: "none",
         link_v1_default: "none",
         fit: None,
@@ -811,7 +845,7 @@ pub const README_TABLE_END: &str = "<!-- end of parameter table -->";
 /// README's parameter table (Markdown, between and without the markers), from the table.
 pub fn readme_table() -> String {
     let mut out = String::from(
-        "| key | group | meaning | unit | default | allowed | fit |\n| --- | --- | --- | --- | --- | --- | --- |\n",
+        "| key | group | meaning | unit | default | allowed | why these bounds | fit |\n| --- | --- | --- | --- | --- | --- | --- | --- |\n",
     );
     for spec in parameters() {
         let unit = match spec.unit {
@@ -829,7 +863,7 @@ pub fn readme_table() -> String {
             None => "-",
         };
         out.push_str(&format!(
-            "| `{}` | {} | {}: {} | {} | {} | {} | {} |\n",
+            "| `{}` | {} | {}: {} | {} | {} | {} | {} | {} |\n",
             spec.key,
             spec.group,
             spec.label,
@@ -837,6 +871,11 @@ pub fn readme_table() -> String {
             unit,
             default,
             spec.rule_text().replace('|', "\\|"),
+            match spec.bounds_why {
+                "" => "-",
+                why => why,
+            }
+            .replace('|', "\\|"),
             fit
         ));
     }
