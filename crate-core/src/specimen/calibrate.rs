@@ -219,6 +219,12 @@ pub fn build_specimen(bytes: &[u8], options: &SpecimenOptions) -> Result<Specime
         repairs: Vec::new(),
     };
     let graph = repair_lines(&lines, snap, &mut report);
+    if graph.edges.is_empty() {
+        return Err(SpecimenError::NoVeins {
+            format: format.name(),
+            looked_for: "a piece of positive length (every piece had zero length after snapping)",
+        });
+    }
     let given_roots: Vec<Point> = match options.root {
         Some(point) => vec![convert(point)],
         None => {

@@ -449,11 +449,9 @@ pub(crate) fn repair_lines(
             }
         }
     }
-    // The pieces as they now run, through the junctions of step 3: (from, to, line).
-    // Pieces drawn twice between the same two nodes, and pieces of zero length, go now, so
-    // that no crossing is found twice.
-    let mut runs: Vec<(usize, usize, u32)> = Vec::new();
-    let mut run_seen: std::collections::HashSet<(usize, usize)> = std::collections::HashSet::new();
+    // Each piece as it now runs, through the junctions of step 3, and each line's whole chain.
+    let mut piece_chains: Vec<(Vec<usize>, u32)> = Vec::with_capacity(pieces.len());
+    let mut line_chains: Vec<Vec<usize>> = vec![Vec::new(); lines.len()];
     for (piece, &(a, b, line)) in pieces.iter().enumerate() {
         let mut chain: Vec<usize> = vec![sets.find_mut(a as usize)];
         let mut inner = std::mem::take(&mut splits[piece]);
@@ -462,6 +460,60 @@ pub(crate) fn repair_lines(
             chain.push(sets.find_mut(group));
         }
         chain.push(sets.find_mut(b as usize));
+        let whole = &mut line_chains[line as usize];
+        for &group in &chain {
+            if whole.last() != Some(&group) {
+                whole.push(group);
+            }
+        }
+        piece_chains.push((chain, line));
+    }
+    // Where each node lies along each line: (line, index in its chain).
+    let mut on_lines: HashMap<usize, Vec<(u32, usize)>> = HashMap::new();
+    for (line, chain) in line_chains.iter().enumerate() {
+        for (index, &group) in chain.iter().enumerate() {
+            on_lines
+                .entry(group)
+                .or_default()
+                .push((line as u32, index));
+        }
+    }
+    // A piece from a to b is drawn along another line when that line also passes a and b and
+    // every node of it between them lies within the tolerance of the piece (a vein traced
+    // twice, its ends snapped onto the first).
+    let drawn_along = |from: usize, to: usize, line: u32| -> bool {
+        if tolerance <= 0.0 {
+            return false;
+        }
+        let (pf, pt) = (place[&from], place[&to]);
+        let empty = Vec::new();
+        let ends_on = on_lines.get(&to).unwrap_or(&empty);
+        on_lines
+            .get(&from)
+            .unwrap_or(&empty)
+            .iter()
+            .any(|&(other, ia)| {
+                other != line
+                    && ends_on.iter().any(|&(other_b, ib)| {
+                        let (low, high) = (ia.min(ib), ia.max(ib));
+                        other_b == other
+                            && high >= low + 2
+                            && line_chains[other as usize][low + 1..high]
+                                .iter()
+                                .all(|group| {
+                                    let point = place[group];
+                                    distance(point, along(pf, pt, project(point, pf, pt)))
+                                        <= tolerance
+                                })
+                    })
+            })
+    };
+    // Pieces drawn twice between the same two nodes, or along another line, and pieces of
+    // zero length, go now, so that no crossing is found twice.
+    let mut runs: Vec<(usize, usize, u32)> = Vec::new();
+    let mut run_seen: std::collections::HashSet<(usize, usize)> = std::collections::HashSet::new();
+    for (chain, line) in &piece_chains {
+        let line = *line;
         for pair in chain.windows(2) {
             let (from, to) = (pair[0], pair[1]);
             if from == to || place[&from] == place[&to] {
@@ -469,7 +521,8 @@ pub(crate) fn repair_lines(
                     at: place[&from],
                     line: lines[line as usize].1.clone(),
                 });
-            } else if !run_seen.insert((from.min(to), from.max(to))) {
+            } else if !run_seen.insert((from.min(to), from.max(to))) || drawn_along(from, to, line)
+            {
                 report.repairs.push(Repair::DroppedDuplicate {
                     from: place[&from],
                     to: place[&to],
@@ -703,8 +756,10 @@ pub(crate) fn orient(
             .unwrap_or(0)
     });
     let mut order: Vec<usize> = (0..parts.len()).collect();
-    order.retain(|&part| part != main);
-    order.insert(0, main);
+    if !parts.is_empty() {
+        order.retain(|&part| part != main);
+        order.insert(0, main);
+    }
     // Breadth first from each root: tree segments child to parent, the rest later to earlier.
     let mut rank = vec![u32::MAX; count];
     let mut segments: Vec<Option<Segment>> = vec![None; graph.edges.len()];
@@ -793,6 +848,25 @@ mod tests {
             report.repairs,
             vec![Repair::SplitCrossing { at: (0.0, 0.0) }]
         );
+    }
+
+    /// A vein traced twice: the second line's ends lie within 0.2 of the first's ends and
+    /// snap onto them; a third line joins the first at (5, 0). The retrace is dropped, leaving
+    /// a tree of 4 nodes ((0, 0), (5, 0), (10, 0), (5, 5)) and 3 segments.
+    #[test]
+    fn a_line_traced_twice_is_dropped() {
+        let drawing = lines(&[
+            &[(0.0, 0.0), (10.0, 0.0)],
+            &[(0.1, 0.05), (9.9, -0.05)],
+            &[(5.0, 5.0), (5.0, 0.0)],
+        ]);
+        let mut report = RepairReport::default();
+        let graph = repair_lines(&drawing, 0.2, &mut report);
+        assert_eq!((graph.nodes.len(), graph.edges.len()), (4, 3));
+        assert!(report
+            .repairs
+            .iter()
+            .any(|repair| matches!(repair, Repair::DroppedDuplicate { .. })));
     }
 
     /// A line ending 0.05 short of another joins it within a tolerance of 0.1, not of 0.01.

@@ -138,11 +138,10 @@ fn physical_scale(
                 element: describe(document, root),
                 problem: format!("attribute `viewBox` = {text:?} is not readable: {error}"),
             })?;
-            if !(view_box.w > 0.0 && view_box.h > 0.0)
-                || ![view_box.x, view_box.y, view_box.w, view_box.h]
-                    .iter()
-                    .all(|value| value.is_finite())
-            {
+            let finite = [view_box.x, view_box.y, view_box.w, view_box.h]
+                .iter()
+                .all(|value| value.is_finite());
+            if !finite || view_box.w <= 0.0 || view_box.h <= 0.0 {
                 return Err(SpecimenError::Svg {
                     element: describe(document, root),
                     problem: format!(
