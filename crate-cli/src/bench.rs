@@ -131,6 +131,9 @@ fn full_model(cells: u64) -> Params {
 
 /// Runs the benchmark cases and prints one line of figures per case.
 pub fn run(options: BenchOptions) -> Result<(), CliError> {
+    if options.fit {
+        return crate::fit_bench::run(options.quick);
+    }
     let (quick, as_json) = (options.quick, options.json);
     let (side, small, large) = if quick {
         (300, 25_000, 100_000)

@@ -15,7 +15,7 @@ use serde_json::json;
 use crate::options::{assemble_params, CliError, GrowOptions, MeasureOptions, PresetsOptions};
 use crate::output::OutputPlan;
 
-fn read_text(path: &str) -> Result<String, CliError> {
+pub(crate) fn read_text(path: &str) -> Result<String, CliError> {
     std::fs::read_to_string(path)
         .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))
 }

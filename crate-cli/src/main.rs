@@ -11,6 +11,8 @@ macro_rules! say {
 
 mod bench;
 mod commands;
+mod fit_bench;
+mod fit_command;
 mod interrupt;
 mod options;
 mod output;
@@ -51,6 +53,10 @@ enum Command {
     Presets(PresetsOptions),
     /// Time growth on fixed cases: cells per second, peak bytes per cell
     Bench(BenchOptions),
+    /// Fit growth parameters to a specimen: posterior intervals, sensitivity, best run
+    Fit(fit_command::FitOptions),
+    /// Combine the shard files of a fit run as a job array
+    Merge(fit_command::MergeOptions),
 }
 
 fn main() -> ExitCode {
@@ -62,6 +68,8 @@ fn main() -> ExitCode {
         Command::Measure(options) => commands::measure(options),
         Command::Presets(options) => commands::presets(options),
         Command::Bench(options) => bench::run(options),
+        Command::Fit(options) => fit_command::fit(options),
+        Command::Merge(options) => fit_command::merge(options),
     };
     match outcome {
         Ok(()) if output::stdout_failed() => {

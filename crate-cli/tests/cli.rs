@@ -1268,3 +1268,227 @@ fn an_svg_naming_the_input_mask_is_refused_and_the_mask_kept() {
     assert_eq!(outcome.code, Some(2));
     assert_eq!(std::fs::read(mask.path()).expect("still there"), before);
 }
+
+/// A small specimen for fit tests: a 600-cell broad-leaf run with alpha 0.6, as a record.
+fn fit_specimen(path: &str) {
+    let outcome = ramulus(&[
+        "grow",
+        "--preset",
+        "broad-leaf",
+        "--set",
+        "cells=600",
+        "--set",
+        "alpha=0.6",
+        "--set",
+        "seed=3",
+        "--record",
+        path,
+    ]);
+    assert!(outcome.success, "{}", outcome.stderr);
+}
+
+/// The arguments of a small quick fit of alpha and w_turn to `specimen`.
+fn quick_fit_arguments(specimen: &str) -> Vec<String> {
+    [
+        "fit",
+        "--specimen",
+        specimen,
+        "--preset",
+        "broad-leaf",
+        "--set",
+        "cells=600",
+        "--fit",
+        "alpha=0.3:0.9",
+        "--fit",
+        "w_turn=0.5:3",
+        "--match",
+        "transport_cost",
+        "--match",
+        "branching_angle_mean=2",
+        "--replicates",
+        "1",
+        "--method",
+        "quick",
+        "--simulations",
+        "60",
+        "--accept",
+        "12",
+        "--predictive",
+        "4",
+        "--seed",
+        "5",
+        "--jobs",
+        "2",
+        "--json",
+    ]
+    .iter()
+    .map(|text| text.to_string())
+    .collect()
+}
+
+fn run_owned(arguments: &[String]) -> Outcome {
+    let borrowed: Vec<&str> = arguments.iter().map(String::as_str).collect();
+    ramulus(&borrowed)
+}
+
+/// `fit --json` prints one object: every fitted key's median inside its 90 % interval inside
+/// the bounds given, the counts asked for, a best run whose link grows, and a sensitivity row
+/// per key and metric. The same seed prints the same object again, byte for byte.
+#[test]
+fn a_quick_fit_prints_intervals_and_repeats_exactly() {
+    let specimen = TempFile::new("specimen", "json");
+    fit_specimen(specimen.path());
+    let arguments = quick_fit_arguments(specimen.path());
+    let outcome = run_owned(&arguments);
+    assert!(outcome.success, "{}", outcome.stderr);
+    let value = single_json(&outcome.stdout);
+    for (key, low, high) in [("alpha", 0.3, 0.9), ("w_turn", 0.5, 3.0)] {
+        let interval = &value["posterior"][key];
+        let (l, m, h) = (
+            interval["low"].as_f64().expect("low"),
+            interval["median"].as_f64().expect("median"),
+            interval["high"].as_f64().expect("high"),
+        );
+        assert!(
+            low <= l && l <= m && m <= h && h <= high,
+            "{key}: {interval}"
+        );
+    }
+    assert_eq!(value["simulations"], 60);
+    assert_eq!(value["accepted"], 12);
+    assert_eq!(
+        value["sensitivity"]["rows"].as_array().map(Vec::len),
+        Some(4)
+    );
+    assert_eq!(value["predictive"].as_array().map(Vec::len), Some(2));
+    let link = value["best_link"].as_str().expect("a link");
+    let best = grow_json(&["grow", "--link", link, "--json"]);
+    assert_eq!(best["cells"], 600, "the best run grows from its link");
+    let again = run_owned(&arguments);
+    assert_eq!(
+        again.stdout, outcome.stdout,
+        "the same seed gives the same fit"
+    );
+}
+
+/// A fit split into three shards (a job array's tasks) and merged prints exactly what the
+/// unsharded fit prints; merging shards of different fits, or with one missing, is refused.
+#[test]
+fn shards_merged_print_what_the_whole_fit_prints() {
+    let specimen = TempFile::new("specimen", "json");
+    fit_specimen(specimen.path());
+    let arguments = quick_fit_arguments(specimen.path());
+    let whole = run_owned(&arguments);
+    assert!(whole.success, "{}", whole.stderr);
+    let shards: Vec<TempFile> = (1..=3).map(|_| TempFile::new("shard", "json")).collect();
+    for (index, shard) in shards.iter().enumerate() {
+        let mut shard_arguments = arguments.clone();
+        shard_arguments.retain(|argument| argument != "--json");
+        shard_arguments.extend([
+            "--shard".to_string(),
+            format!("{}/3", index + 1),
+            "--out".to_string(),
+            shard.path().to_string(),
+        ]);
+        let outcome = run_owned(&shard_arguments);
+        assert!(outcome.success, "{}", outcome.stderr);
+    }
+    let paths: Vec<&str> = shards.iter().map(TempFile::path).collect();
+    let merged = ramulus(&[&["merge"][..], &paths[..], &["--jobs", "2", "--json"][..]].concat());
+    assert!(merged.success, "{}", merged.stderr);
+    assert_eq!(merged.stdout, whole.stdout);
+    let missing = ramulus(&["merge", paths[0], paths[2]]);
+    check_failure(&missing, &["shards 2 of 3 are missing"]);
+    let twice = ramulus(&["merge", paths[0], paths[0], paths[1]]);
+    check_failure(&twice, &["both shard 1"]);
+    // A shard of another fit (another seed).
+    let other = TempFile::new("other-shard", "json");
+    let mut other_arguments = arguments.clone();
+    other_arguments.retain(|argument| argument != "--json");
+    let seed_at = other_arguments
+        .iter()
+        .position(|a| a == "--seed")
+        .expect("a seed")
+        + 1;
+    other_arguments[seed_at] = "6".into();
+    other_arguments.extend(["--shard", "2/3", "--out", other.path()].map(String::from));
+    assert!(run_owned(&other_arguments).success);
+    let mixed = ramulus(&["merge", paths[0], other.path(), paths[2]]);
+    check_failure(&mixed, &["different fits"]);
+}
+
+/// Bad fits are refused before any work, each message naming what is wrong.
+#[test]
+fn a_bad_fit_is_refused_naming_the_problem() {
+    let specimen = TempFile::new("specimen", "json");
+    fit_specimen(specimen.path());
+    let base = quick_fit_arguments(specimen.path());
+    let with = |from: &str, to: &str| -> Vec<String> {
+        base.iter()
+            .map(|argument| {
+                if argument == from {
+                    to.to_string()
+                } else {
+                    argument.clone()
+                }
+            })
+            .collect()
+    };
+    let cases: [(Vec<String>, &[&str]); 9] = [
+        (
+            with("alpha=0.3:0.9", "beta=0.3:0.9"),
+            &["`beta` is not a parameter"],
+        ),
+        (
+            with("alpha=0.3:0.9", "units=1:2"),
+            &["`units` cannot be fitted"],
+        ),
+        (
+            with("alpha=0.3:0.9", "alpha=0.9:0.3"),
+            &["alpha", "below the upper"],
+        ),
+        (
+            with("alpha=0.3:0.9", "alpha=0.3:4"),
+            &["alpha", "allowed range"],
+        ),
+        (
+            with("transport_cost", "leafiness"),
+            &["`leafiness` is not a metric"],
+        ),
+        (
+            with("transport_cost", "streams"),
+            &["`streams` is not one number"],
+        ),
+        (with("1", "0"), &["replicates is 0"]),
+        (
+            [
+                base.clone(),
+                ["--shard", "4/3", "--out", "x.json"]
+                    .map(String::from)
+                    .to_vec(),
+            ]
+            .concat(),
+            &["--shard 4/3"],
+        ),
+        (
+            [
+                with("quick", "sequential"),
+                ["--shard", "1/2", "--out", "x.json"]
+                    .map(String::from)
+                    .to_vec(),
+            ]
+            .concat(),
+            &["--shard needs --method quick"],
+        ),
+    ];
+    for (arguments, mentions) in cases {
+        let outcome = run_owned(&arguments);
+        check_failure(&outcome, mentions);
+        assert!(
+            outcome.stdout.is_empty(),
+            "{arguments:?}: {}",
+            outcome.stdout
+        );
+    }
+    assert!(!std::path::Path::new("x.json").exists());
+}
