@@ -590,6 +590,11 @@ fn bad_csv_is_named_by_line() {
         &error_of(b"x1,y1,x2,y2\n0,0,NaN,1\n", &csv),
         &["line 2", "NaN"],
     );
+    // Finite but beyond any leaf or site: lengths and areas would overflow.
+    assert_names(
+        &error_of(b"x1,y1,x2,y2\n0,0,1e300,0\n", &csv),
+        &["line 2", "1e300", "beyond"],
+    );
     // Good lines read, with widths: a right angle from two pieces, 3 + 4 mm.
     let good = build(b"x1,y1,x2,y2,width\n0,0,3,0,0.2\n3,0,3,4,0.1\n", &csv);
     assert!((measure(&good).metrics.total_length - 7.0).abs() < 1e-12);

@@ -2,7 +2,7 @@
 //! bytes to a measured-ready `Specimen`: read, scale, repair, orient, weigh.
 
 use super::repair::{orient, repair_lines, RepairReport};
-use super::{read_trace, Point, SpecimenError, SpecimenFormat, Trace};
+use super::{read_trace, Point, SpecimenError, SpecimenFormat, Trace, MAX_COORDINATE};
 use crate::network::{Network, Node, Segment};
 
 /// How file coordinates become lengths.
@@ -188,6 +188,26 @@ pub fn build_specimen(bytes: &[u8], options: &SpecimenOptions) -> Result<Specime
         .map(|line| (line.points.into_iter().map(convert).collect(), line.source))
         .collect();
     let outline: Option<Vec<Point>> = outline.map(|ring| ring.into_iter().map(convert).collect());
+    let too_far = |points: &[Point]| {
+        points
+            .iter()
+            .flat_map(|&(x, y)| [x, y])
+            .find(|value| !(value.abs() <= MAX_COORDINATE))
+    };
+    for (points, source) in &lines {
+        if let Some(value) = too_far(points) {
+            return Err(SpecimenError::OutOfRange {
+                place: source.clone(),
+                value,
+            });
+        }
+    }
+    if let Some(value) = outline.as_deref().and_then(too_far) {
+        return Err(SpecimenError::OutOfRange {
+            place: "the leaf outline".to_string(),
+            value,
+        });
+    }
     let snap = match options.snap_tolerance {
         Some(value) if value >= 0.0 && value.is_finite() => value,
         Some(value) => {

@@ -35,6 +35,10 @@ pub const MAX_SPECIMEN_BYTES: usize = 64 * 1024 * 1024;
 /// working memory in the repair).
 pub const MAX_TRACE_POINTS: usize = 4_000_000;
 
+/// Largest calibrated coordinate, in output units (a billion: a kilometre-wide site in mm),
+/// so that lengths, means and areas stay finite.
+pub const MAX_COORDINATE: f64 = 1e9;
+
 /// Most XML nodes an SVG may hold (elements, attributes' text nodes, comments).
 pub const MAX_SVG_NODES: u32 = 2_000_000;
 
@@ -155,6 +159,13 @@ pub enum SpecimenError {
         /// What was looked for.
         looked_for: &'static str,
     },
+    /// A coordinate, once calibrated, lies farther from the origin than `MAX_COORDINATE`.
+    OutOfRange {
+        /// Where it was drawn.
+        place: String,
+        /// The calibrated coordinate.
+        value: f64,
+    },
     /// A calibration or repair option is not usable.
     Option {
         /// The option, e.g. `scale factor`.
@@ -199,6 +210,11 @@ impl std::fmt::Display for SpecimenError {
                     "the {format} file holds no vein: looked for {looked_for}"
                 )
             }
+            SpecimenError::OutOfRange { place, value } => write!(
+                f,
+                "{place}: a coordinate is {value:e} once calibrated, beyond the {MAX_COORDINATE:e} \
+                 output units a specimen may span"
+            ),
             SpecimenError::Option { option, problem } => write!(f, "{option}: {problem}"),
         }
     }

@@ -309,8 +309,8 @@ pub(crate) fn repair_lines(
         for &end in &ends {
             let point = positions[end as usize];
             let (cx, cy) = cell_of(point, tolerance);
-            for gx in cx - 1..=cx + 1 {
-                for gy in cy - 1..=cy + 1 {
+            for gx in cx.saturating_sub(1)..=cx.saturating_add(1) {
+                for gy in cy.saturating_sub(1)..=cy.saturating_add(1) {
                     for &other in grid.get(&(gx, gy)).map_or(&[][..], |list| list.as_slice()) {
                         if distance(point, positions[other as usize]) <= tolerance {
                             sets.union(end as usize, other as usize);
