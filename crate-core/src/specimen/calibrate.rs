@@ -192,7 +192,7 @@ pub fn build_specimen(bytes: &[u8], options: &SpecimenOptions) -> Result<Specime
         points
             .iter()
             .flat_map(|&(x, y)| [x, y])
-            .find(|value| !(value.abs() <= MAX_COORDINATE))
+            .find(|value| value.is_nan() || value.abs() > MAX_COORDINATE)
     };
     for (points, source) in &lines {
         if let Some(value) = too_far(points) {

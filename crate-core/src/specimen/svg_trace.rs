@@ -90,6 +90,8 @@ pub(crate) fn read_svg(
         tolerance: tolerance / factor,
         trace,
         points: 0,
+        text,
+        line_cursor: (0, 1),
     };
     reader.walk(root, Affine::IDENTITY, Role::Vein)?;
     Ok(reader.trace)
@@ -192,7 +194,11 @@ fn physical_scale(
 
 /// `<path id="midrib"> (line 12)`: an element as people find it in the file.
 fn describe(document: &Document, node: Node) -> String {
-    let line = document.text_pos_at(node.range().start).row;
+    describe_at(node, document.text_pos_at(node.range().start).row)
+}
+
+/// `describe` with the line already known.
+fn describe_at(node: Node, line: u32) -> String {
     let label = ["id", "inkscape:label"]
         .iter()
         .find_map(|name| attribute_any_namespace(node, name).map(|value| (*name, value)));
@@ -259,9 +265,30 @@ struct SvgReader<'a, 'input> {
     tolerance: f64,
     trace: Trace,
     points: usize,
+    /// The text, and the last byte offset whose line is known with that line (elements come
+    /// in document order, so lines are counted once, not from the start for each element).
+    text: &'a str,
+    line_cursor: (usize, u32),
 }
 
 impl SvgReader<'_, '_> {
+    /// The line (from 1) of a byte offset, counting on from the last one asked.
+    fn line_of(&mut self, offset: usize) -> u32 {
+        let (known, line) = self.line_cursor;
+        let (from, base) = if offset >= known {
+            (known, line)
+        } else {
+            (0, 1)
+        };
+        let end = offset.min(self.text.len());
+        let newlines = self.text.as_bytes()[from.min(end)..end]
+            .iter()
+            .filter(|&&byte| byte == b'\n')
+            .count() as u32;
+        self.line_cursor = (end, base + newlines);
+        base + newlines
+    }
+
     fn error(&self, node: Node, problem: String) -> SpecimenError {
         SpecimenError::Svg {
             element: describe(self.document, node),
@@ -659,7 +686,7 @@ impl SvgReader<'_, '_> {
         lines: Vec<Vec<Point>>,
         role: Role,
     ) -> Result<(), SpecimenError> {
-        let source = describe(self.document, node);
+        let source = describe_at(node, self.line_of(node.range().start));
         for points in &lines {
             if points.iter().any(|(x, y)| !x.is_finite() || !y.is_finite()) {
                 return Err(self.error(
