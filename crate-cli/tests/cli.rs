@@ -959,6 +959,12 @@ fn a_traced_svg_is_measured_with_its_repair_report() {
     );
     assert!(outcome.stderr.contains("nearest the drawing's bottom edge"));
     assert!(outcome.stderr.contains("part 2 is not connected"));
+    // Each repair names the element as found in the file: the midrib is on line 17.
+    assert!(
+        outcome.stderr.contains("<path id=\"midrib\"> (line 17)"),
+        "{}",
+        outcome.stderr
+    );
 
     let json = ramulus(&[
         "measure", &leaf, "--snap", "0.2", "--root", "160,470", "--json",
