@@ -41,7 +41,9 @@ async function start() {
 
   view = new NetworkView(byId('canvas'), state.session, state.colours);
   form = new ParameterForm(byId('form'), byId('param-seed'), schema, commitField);
-  runner = new Runner({ redraw, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying });
+  runner = new Runner({
+    redraw, refill, draw, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying, failed: onFailure,
+  });
   window.ramulusPage = { runner, view, state };
 
   fillStartList();
@@ -51,6 +53,19 @@ async function start() {
   showKept();
   byId('animate').checked = readAnimatePreference();
 
+  // A trap outside the growth loop (an event handler drawing or measuring) is recovered too.
+  window.addEventListener('error', (event) => {
+    if (Session.isTrap(event.error)) {
+      event.preventDefault();
+      onFailure(event.error);
+    }
+  });
+  window.addEventListener('unhandledrejection', (event) => {
+    if (Session.isTrap(event.reason)) {
+      event.preventDefault();
+      onFailure(event.reason);
+    }
+  });
   window.addEventListener('hashchange', () => {
     const fragment = location.hash.replace(/^#/, '');
     if (fragment && fragment !== state.link) openLink(fragment);
@@ -114,11 +129,25 @@ function commitField(key, text) {
 // ---- the run --------------------------------------------------------------------------------
 
 function startRun(simulation = null) {
+  runner.clear();
   state.session.setSimulation(null);
+  if (!simulation) {
+    // The core's estimate of the run's memory: a run past the ceiling would trap on its way.
+    const memory = state.session.memoryNeeds(state.link);
+    if (!memory.fits) {
+      showNoRun(memory.message);
+      form.setError('cells', memory.message);
+      return;
+    }
+  }
   try {
     state.session.setSimulation(simulation ?? state.session.grow(state.link));
   } catch (error) {
-    notice(`The run cannot start: ${messageOf(error)}`);
+    if (Session.isTrap(error)) {
+      onFailure(error);
+      return;
+    }
+    showNoRun(`The run cannot start: ${messageOf(error)}`);
     return;
   }
   state.frame = JSON.parse(state.simulation.frame_json());
@@ -130,19 +159,66 @@ function startRun(simulation = null) {
   clearReadings('Readings appear when growth pauses or ends.');
   setExports(false);
   const mode = byId('animate').checked ? 'animate' : 'quiet';
-  runner.start(state.simulation, mode);
-  if (state.simulation.finished()) onFinished();
+  runner.guarded(() => {
+    runner.start(state.simulation, mode);
+    if (state.simulation.finished()) onFinished();
+  });
 }
 
+/// No run on the canvas: `message` says why, in the notices; the form and link stay as set.
+function showNoRun(message) {
+  runner.clear();
+  state.session.setSimulation(null);
+  notice(message);
+  byId('digest').textContent = 'no run (see the message above)';
+  byId('digest-note').textContent = '';
+  byId('progress').value = 0;
+  byId('progress-text').textContent = '';
+  clearReadings('No run.');
+  setExports(false);
+  state.shownLegend = null;
+  view.draw();
+  showLegend();
+}
+
+/// Growing or drawing threw. A trap (wasm memory exhausted, or any other fault of the
+/// instance) has killed the wasm instance: the page drops it with its run and starts a fresh
+/// one, and says what happened; the form and the link keep what the user set.
+function onFailure(error) {
+  if (!Session.isTrap(error)) {
+    showNoRun(`The run stopped: ${messageOf(error)}`);
+    return;
+  }
+  // The last progress line shown; the dead instance is not asked.
+  const progress = byId('progress-text').textContent;
+  runner.clear();
+  state.session.recover();
+  showNoRun(core.trap_message(state.link, progress, messageOf(error)));
+}
+
+/// Refills the geometry from the run and draws it; returns the milliseconds both took.
 function redraw() {
-  const simulation = state.simulation;
-  if (!simulation) return view.draw();
+  return refill() + draw();
+}
+
+/// Refills the geometry from the run (only what growth changed); returns its milliseconds.
+function refill() {
   const started = performance.now();
-  state.session.refill();
+  const count = state.session.refill();
+  const refillMs = performance.now() - started;
+  runner.record('refills', { refillMs, segments: count });
+  return refillMs;
+}
+
+/// Draws the geometry as last refilled, and the colour key; returns its milliseconds.
+function draw() {
+  const started = performance.now();
   view.resize();
   view.draw();
   showLegend();
-  return performance.now() - started;
+  const drawMs = performance.now() - started;
+  runner.record('drawTimes', { drawMs, segments: state.session.count });
+  return drawMs;
 }
 
 function showProgress() {

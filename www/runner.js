@@ -5,12 +5,15 @@
 // Milliseconds of growth per animation frame (of about 16.7 ms at 60 frames a second), which
 // leaves the rest of the frame for drawing and the browser (common practice, no source).
 const STEP_BUDGET_MS = 8;
+// Figures kept per list for the page benchmark (enough for any benchmark run).
+const STATS_KEPT = 100000;
 // Milliseconds of growth between yields when growing without animation.
 const QUIET_CHUNK_MS = 40;
 
 export class Runner {
-  /// `hooks`: `redraw()` (returns draw ms), `progress()`, `paused()`, `finished()`,
-  /// `playing(bool)`.
+  /// `hooks`: `redraw()` (refill and draw; returns ms), `refill()` and `draw()` (each
+  /// returns its ms), `progress()`, `paused()`, `finished()`,
+  /// `playing(bool)`, `failed(error)` (growing or drawing threw; the loop has stopped).
   constructor(hooks) {
     this.hooks = hooks;
     this.simulation = null;
@@ -21,6 +24,8 @@ export class Runner {
     this.lastTick = 0;
     this.lastDraw = 0;
     this.drawCostMs = 0;
+    this.refillMs = 0;
+    this.drawPending = false; // the geometry is refilled and waits for the next frame's drawing
     this.generation = 0;
     this.quiet = false; // growing to the end without drawing (see growQuietly)
     this.stats = freshStats();
@@ -47,11 +52,14 @@ export class Runner {
 
   play() {
     if (!this.simulation || this.simulation.finished() || this.quiet) return;
+    this.drawPending = false;
+    this.refillMs = 0;
     this.playingNow = true;
     this.hooks.playing(true);
     this.lastTick = performance.now();
     this.carry = 0;
-    requestAnimationFrame((time) => this.tick(time, this.generation));
+    const generation = this.generation;
+    requestAnimationFrame((time) => this.guarded(() => this.tick(time, generation)));
   }
 
   pause() {
@@ -71,22 +79,65 @@ export class Runner {
     this.hooks.playing(false);
   }
 
+  /// Stops and lets go of the simulation (a refused or dead run): nothing more is grown.
+  clear() {
+    this.stop();
+    this.generation += 1;
+    this.quiet = false;
+    this.simulation = null;
+  }
+
+  /// Runs `action`; if it throws, stops the loop and hands the error to `failed`.
+  guarded(action) {
+    try {
+      action();
+    } catch (error) {
+      this.clear();
+      this.hooks.failed(error);
+    }
+  }
+
   /// Grows one slice (a fiftieth of the budget, at least one cell) and shows it.
   stepOnce() {
     const simulation = this.simulation;
     if (!simulation || simulation.finished()) return;
     this.stop();
-    simulation.step(Math.max(1, Math.round(simulation.budget() / 50)));
-    this.hooks.redraw();
-    this.hooks.progress();
-    if (simulation.finished()) this.hooks.finished();
-    else this.hooks.paused();
+    this.guarded(() => {
+      simulation.step(Math.max(1, Math.round(simulation.budget() / 50)));
+      this.hooks.redraw();
+      this.hooks.progress();
+      if (simulation.finished()) this.hooks.finished();
+      else this.hooks.paused();
+    });
   }
 
+  /// One animation frame. A redraw is spread over two frames, the geometry refill in one and
+  /// the drawing in the next, and growth gets what the drawing leaves of its budget, so that
+  /// no frame carries growth, refill and drawing together.
   tick(now, generation) {
     if (!this.playingNow || generation !== this.generation) return;
     const simulation = this.simulation;
     const frameStart = performance.now();
+    let growthBudget = STEP_BUDGET_MS;
+    if (this.drawPending) {
+      this.drawPending = false;
+      const drawMs = this.hooks.draw();
+      this.drawCostMs = this.refillMs + drawMs;
+      this.lastDraw = performance.now();
+      this.stats.draws += 1;
+      growthBudget -= drawMs;
+      if (simulation.finished()) {
+        this.endFrame(frameStart, simulation);
+        this.stop();
+        this.hooks.finished();
+        return;
+      }
+    }
+    // Redraw when drawing has had its share (at most a third of the time goes to it): this
+    // frame grows what the last refill's time leaves of the budget, then refills.
+    const refillNow = !this.drawPending
+      && (simulation.finished() || now - this.lastDraw >= Math.min(3 * this.drawCostMs, 1000));
+    if (refillNow) growthBudget -= this.refillMs;
     let allowance = Infinity;
     if (this.pace > 0) {
       this.carry += (this.pace * Math.min(now - this.lastTick, 100)) / 1000;
@@ -96,9 +147,10 @@ export class Runner {
     this.lastTick = now;
     // Each slice is sized from the measured time per cell so that the frame's growth ends
     // inside its budget; the estimate follows the run as its cells get dearer.
+    const growthStart = performance.now();
     let added = 0;
     while (!simulation.finished() && added < allowance) {
-      const left = STEP_BUDGET_MS - (performance.now() - frameStart);
+      const left = growthBudget - (performance.now() - growthStart);
       if (left <= 0.5) break;
       const count = Math.max(1, Math.min(allowance - added, Math.floor(left / this.msPerCell)));
       const sliceStart = performance.now();
@@ -109,7 +161,7 @@ export class Runner {
         this.msPerCell = 0.7 * this.msPerCell + 0.3 * Math.max(perCell, 1e-5);
       }
     }
-    const stepMs = performance.now() - frameStart;
+    const stepMs = performance.now() - growthStart;
     this.stats.frames += 1;
     this.stats.cells += added;
     this.stats.stepMs += stepMs;
@@ -117,20 +169,26 @@ export class Runner {
     if (stepMs > 16.7) this.stats.overBudget += 1;
     if (this.stats.firstTick === 0) this.stats.firstTick = frameStart;
     this.stats.lastTick = performance.now();
-    const finished = simulation.finished();
-    // Redraw when drawing has had its share: at most a third of the time goes to drawing.
-    if (finished || now - this.lastDraw >= Math.min(3 * this.drawCostMs, 1000)) {
-      this.drawCostMs = this.hooks.redraw();
-      this.lastDraw = performance.now();
-      this.stats.draws += 1;
+    if (refillNow) {
+      this.refillMs = this.hooks.refill();
+      this.drawPending = true;
+    } else if (simulation.finished()) {
+      // Growth has just stopped: the coming frames refill and draw the final network.
+      this.lastDraw = -Infinity;
     }
+    this.endFrame(frameStart, simulation);
+    requestAnimationFrame((time) => this.guarded(() => this.tick(time, generation)));
+  }
+
+  /// Adds one figure to the benchmark's list `name` (the first 100,000 of a run are kept).
+  record(name, figure) {
+    const list = this.stats[name];
+    if (list.length < STATS_KEPT) list.push(figure);
+  }
+
+  endFrame(frameStart, simulation) {
     this.hooks.progress();
-    if (finished) {
-      this.stop();
-      this.hooks.finished();
-      return;
-    }
-    requestAnimationFrame((time) => this.tick(time, generation));
+    this.record('frameTimes', { ms: performance.now() - frameStart, cells: simulation.cells() });
   }
 
   growQuietly(generation) {
@@ -148,13 +206,18 @@ export class Runner {
         this.hooks.redraw();
         this.hooks.finished();
       } else {
-        setTimeout(chunk, 0);
+        setTimeout(() => this.guarded(chunk), 0);
       }
     };
-    setTimeout(chunk, 0);
+    setTimeout(() => this.guarded(chunk), 0);
   }
 }
 
+/// Figures of the page benchmark: per animation frame its whole work in milliseconds
+/// (growth, refill or drawing, progress), per geometry refill and per drawing.
 function freshStats() {
-  return { frames: 0, cells: 0, stepMs: 0, maxStepMs: 0, overBudget: 0, draws: 0, firstTick: 0, lastTick: 0 };
+  return {
+    frames: 0, cells: 0, stepMs: 0, maxStepMs: 0, overBudget: 0, draws: 0, firstTick: 0, lastTick: 0,
+    frameTimes: [], refills: [], drawTimes: [],
+  };
 }

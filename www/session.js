@@ -4,6 +4,8 @@
 // progress line. Views into wasm memory are detached whenever that memory grows (any
 // allocating wasm call), so no view leaves this module to be kept: callers take them afresh
 // for each drawing, in the order `drawingViews` gives. No other module imports pkg/.
+// A trap (a wasm `RuntimeError`, as when memory runs out at the 4 GiB ceiling of wasm32) kills
+// the instance: `recover` drops it with its run and starts a fresh one from the same module.
 import init, * as core from './pkg/ramulus_web.js';
 
 export class Session {
@@ -28,7 +30,32 @@ export class Session {
 
   /// A new run grown from a link.
   grow(link) {
-    return new core.Simulation(link);
+    const simulation = new core.Simulation(link);
+    const trapAt = globalThis.ramulusTestHooks?.trapAtCells;
+    if (trapAt) simulation.debug_trap_at_cells(trapAt);
+    // Benchmark switch (tests/e2e/bench-page.mjs): refill the geometry in full every time.
+    if (globalThis.ramulusTestHooks?.fullRefill) simulation.set_full_refill(true);
+    return simulation;
+  }
+
+  /// What the run a link describes needs of the page's memory: `{fits, budget,
+  /// largest_budget, bytes, ceiling_bytes, message}` (see crate-web's `RunMemory`).
+  memoryNeeds(link) {
+    return JSON.parse(core.run_memory_json(link));
+  }
+
+  /// Whether `error` is a trap of the wasm instance (which leaves it unusable).
+  static isTrap(error) {
+    return error instanceof WebAssembly.RuntimeError;
+  }
+
+  /// After a trap: forgets the dead run (its memory belongs to the dead instance, so it is
+  /// not freed through it) and replaces the instance with a fresh one of the same module, so
+  /// the dead instance's memory can be reclaimed. Functions of `core` then call the new one.
+  recover() {
+    this.simulation = null;
+    this.count = 0;
+    core.__wbg_reset_state();
   }
 
   /// A run restored from a run record's text.

@@ -101,6 +101,15 @@ pub struct FitOptions {
     /// Address of the page the best run's link opens
     #[arg(long, value_name = "URL", default_value = DEFAULT_PAGE)]
     pub page: String,
+    /// Write the pairwise posterior plots and the convergence
+    /// plot to this SVG file (not with --shard: merge draws them)
+    #[arg(
+        long,
+        value_name = "OUT.svg",
+        conflicts_with = "shard",
+        verbatim_doc_comment
+    )]
+    pub plots: Option<String>,
     /// Print exactly one JSON object on stdout instead of tables
     #[arg(long)]
     pub json: bool,
@@ -118,6 +127,10 @@ pub struct MergeOptions {
     /// Address of the page the best run's link opens
     #[arg(long, value_name = "URL", default_value = DEFAULT_PAGE)]
     pub page: String,
+    /// Write the pairwise posterior plots and the convergence
+    /// plot to this SVG file
+    #[arg(long, value_name = "OUT.svg", verbatim_doc_comment)]
+    pub plots: Option<String>,
     /// Print exactly one JSON object on stdout instead of tables
     #[arg(long)]
     pub json: bool,
@@ -169,6 +182,9 @@ pub fn fit(options: FitOptions) -> Result<(), CliError> {
     }
     if let Some(path) = &options.out {
         outputs.output("--out", path)?;
+    }
+    if let Some(path) = &options.plots {
+        outputs.output("--plots", path)?;
     }
     let plan = build_plan(&options)?;
     let shard = options.shard.as_deref().map(parse_shard).transpose()?;
@@ -232,11 +248,33 @@ pub fn fit(options: FitOptions) -> Result<(), CliError> {
         predictive: options.predictive,
         json: options.json,
     };
+    write_plots(outputs, options.plots.as_deref(), &plan, &result)?;
     report(&pool, &plan, &result, &checks, &output)
+}
+
+/// Writes the posterior plots, whole or not at all, before anything is printed.
+fn write_plots(
+    mut outputs: OutputPlan,
+    path: Option<&str>,
+    plan: &FitPlan,
+    result: &FitResult,
+) -> Result<(), CliError> {
+    if let Some(path) = path {
+        let svg = ramulus_draw::posterior_svg::posterior_svg(plan, result);
+        outputs.stage(path, &svg)?;
+    }
+    outputs.commit()
 }
 
 /// `ramulus merge`.
 pub fn merge(options: MergeOptions) -> Result<(), CliError> {
+    let mut outputs = OutputPlan::default();
+    for path in &options.shards {
+        outputs.input("shard", path);
+    }
+    if let Some(path) = &options.plots {
+        outputs.output("--plots", path)?;
+    }
     let mut files = Vec::new();
     for path in &options.shards {
         let text = read_text(path)?;
@@ -325,6 +363,7 @@ pub fn merge(options: MergeOptions) -> Result<(), CliError> {
         predictive: first_predictive,
         json: options.json,
     };
+    write_plots(outputs, options.plots.as_deref(), &plan, &result)?;
     report(&pool, &plan, &result, &checks, &output)
 }
 
@@ -625,7 +664,7 @@ fn report(
         "\nposterior predictive check ({} runs drawn from the posterior):",
         outcomes.len()
     );
-    print_predictive(&predictive);
+    print_predictive(&predictive, plan);
     if result.generations.len() > 1 {
         say!("\ngenerations (tolerance, simulations, accepted):");
         for (index, generation) in result.generations.iter().enumerate() {
@@ -644,16 +683,29 @@ fn report(
     Ok(())
 }
 
-fn print_predictive(rows: &[PredictiveRow]) {
+fn print_predictive(rows: &[PredictiveRow], plan: &FitPlan) {
     for row in rows {
+        let unit = ramulus_core::metrics::METRIC_TABLE
+            .iter()
+            .find(|entry| entry.key == row.metric)
+            .map(|entry| {
+                entry
+                    .unit
+                    .text(&plan.base.domain.units, plan.base.costs.alpha)
+            })
+            .unwrap_or_default();
         say!(
-            "  {:<24} specimen {:>12.5}   runs {:.5} [{:.5}, {:.5}]   {}",
+            "  {:<24} specimen {:>12.5}   runs {:.5} [{:.5}, {:.5}] {unit}   {}",
             row.metric,
             row.specimen,
             row.median,
             row.low,
             row.high,
-            if row.inside { "inside" } else { "OUTSIDE" }
+            if row.inside {
+                "inside"
+            } else {
+                "OUTSIDE the runs' 5-95 % range"
+            }
         );
     }
 }

@@ -1345,8 +1345,19 @@ fn a_quick_fit_prints_intervals_and_repeats_exactly() {
     let specimen = TempFile::new("specimen", "json");
     fit_specimen(specimen.path());
     let arguments = quick_fit_arguments(specimen.path());
-    let outcome = run_owned(&arguments);
+    let plots = TempFile::new("posterior", "svg");
+    let outcome = run_owned(
+        &[
+            arguments.clone(),
+            vec!["--plots".into(), plots.path().into()],
+        ]
+        .concat(),
+    );
     assert!(outcome.success, "{}", outcome.stderr);
+    let svg = std::fs::read_to_string(plots.path()).expect("the plots were written");
+    assert!(svg.starts_with("<svg") && svg.trim_end().ends_with("</svg>"));
+    // 12 accepted particles, one dot each in the one lower panel of two keys.
+    assert_eq!(svg.matches("class=\"particle\"").count(), 12);
     let value = single_json(&outcome.stdout);
     for (key, low, high) in [("alpha", 0.3, 0.9), ("w_turn", 0.5, 3.0)] {
         let interval = &value["posterior"][key];

@@ -1,5 +1,6 @@
 //! Ramulus drawing: everything people see of a run. The SVG export (`svg`), the anti-aliased
-//! raster of thin lines and the page's per-segment buffers (`raster`, `screen`), colours
+//! raster of thin lines and the page's per-segment buffers (`raster`, `screen`, refilled
+//! where growth changed them by `screen_growth`), colours
 //! (`palette`), number formats (`format`), the colour key shared by SVG and page (`legend`),
 //! the descriptions of the readings plots (`plots`), the scale bar (`scale_bar`) and the
 //! sentences the page and the command line show (`texts`).
@@ -13,9 +14,11 @@ pub mod format;
 pub mod legend;
 pub mod palette;
 pub mod plots;
+pub mod posterior_svg;
 pub mod raster;
 pub mod scale_bar;
 pub mod screen;
+pub mod screen_growth;
 pub mod svg;
 pub mod texts;
 

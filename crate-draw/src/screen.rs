@@ -98,6 +98,43 @@ impl ScreenGeometry {
             self.segment_count += 1;
         }
         self.flow_range = if high > 0.0 { (low, high) } else { (0.0, 0.0) };
+        self.rebuild_draw_lines();
+    }
+
+    /// Appends an entry with its ends and length; its values come with `set_values`.
+    pub(crate) fn push_entry(&mut self, ends: [f32; 4], length: f64) {
+        self.ends.extend_from_slice(&ends);
+        self.widths.push(0.0);
+        self.orders.push(1);
+        self.flows.push(0.0);
+        self.lengths.push(length as f32);
+    }
+
+    /// Sets an entry's flow, width and order.
+    pub(crate) fn set_values(&mut self, index: usize, flow: f64, width: f64, order: u32) {
+        self.flows[index] = flow as f32;
+        self.widths[index] = width as f32;
+        self.orders[index] = order;
+    }
+
+    /// Ends a round of `push_entry` and `set_values`: the flow range and highest order over
+    /// every entry, and the raster's copy; colours are computed again when next asked for.
+    pub(crate) fn finish_entries(&mut self, flow_range: (f64, f64), max_order: u32) {
+        self.flow_range = flow_range;
+        self.max_order = max_order;
+        self.segment_count = self.widths.len();
+        self.colouring = None;
+        self.rebuild_draw_lines();
+    }
+
+    /// Empties every buffer, keeping their allocations.
+    pub(crate) fn clear_entries(&mut self) {
+        self.clear();
+    }
+
+    /// Rebuilds the raster's copy of the entries (`draw_lines`) in spatial order.
+    pub(crate) fn rebuild_draw_lines(&mut self) {
+        self.draw_lines.clear();
         let ends = &self.ends;
         let midpoints = (0..ends.len() / 4).map(|index| {
             let at = 4 * index;

@@ -1,6 +1,7 @@
 //! Browser layer over `ramulus-core` and `ramulus-draw`: the `Simulation` handle
 //! (`simulation`) with typed-array views of its screen geometry, plus free functions for
-//! presets, the parameter schema, run links and colours. Errors come back as readable strings;
+//! presets, the parameter schema, run links and colours, and the page's memory ceiling
+//! (`memory`). Errors come back as readable strings;
 //! nothing here computes or draws.
 
 use ramulus_core::import::mask_from_bytes;
@@ -12,8 +13,10 @@ use ramulus_draw::palette::colour_scheme;
 use serde_json::json;
 use wasm_bindgen::prelude::*;
 
+pub mod memory;
 mod simulation;
 
+pub use memory::RunMemory;
 pub use simulation::Simulation;
 
 /// Every preset as a JSON array of `{name, description, params, link}`.
@@ -105,6 +108,33 @@ pub fn set_link_mask(link: &str, image: &[u8]) -> String {
 #[wasm_bindgen]
 pub fn colours_json() -> String {
     serde_json::to_string(&colour_scheme()).unwrap_or_else(|_| "{}".to_string())
+}
+
+/// What the run a link describes needs of the page's memory at most, as JSON (see
+/// `RunMemory::to_json`): the page refuses a run whose `fits` is false, showing `message`.
+#[wasm_bindgen]
+pub fn run_memory_json(link: &str) -> String {
+    RunMemory::of(&decode_link(link).params).to_json()
+}
+
+/// What the page says after a run from `link` trapped the instance (see
+/// `RunMemory::trap_message`).
+#[wasm_bindgen]
+pub fn trap_message(link: &str, progress: &str, error: &str) -> String {
+    RunMemory::of(&decode_link(link).params).trap_message(progress, error)
+}
+
+/// Bytes of wasm linear memory this instance holds now (it only ever grows; 0 off wasm).
+#[wasm_bindgen]
+pub fn wasm_memory_bytes() -> f64 {
+    #[cfg(target_arch = "wasm32")]
+    {
+        (core::arch::wasm32::memory_size(0) as f64) * 65_536.0
+    }
+    #[cfg(not(target_arch = "wasm32"))]
+    {
+        0.0
+    }
 }
 
 /// The caution every drainage-site output carries.

@@ -19,6 +19,7 @@ use ramulus_draw::raster::RasterView;
 use ramulus_draw::run_svg;
 use ramulus_draw::scale_bar::scale_bar;
 use ramulus_draw::screen::ScreenGeometry;
+use ramulus_draw::screen_growth::GrowingScreen;
 use ramulus_draw::texts::{progress_text, segment_reading, stop_text, SAVED_NETWORK_TEXT};
 use wasm_bindgen::prelude::*;
 use wasm_bindgen::Clamped;
@@ -38,10 +39,17 @@ pub struct Simulation {
     params: Params,
     source: Source,
     geometry: ScreenGeometry,
+    /// The forest behind `geometry`, to refill only what growth changed.
+    growing: GrowingScreen,
     recorded_digest: Option<String>,
     /// Everything derived from the network as it stands (metrics, SVG, record share it);
     /// dropped whenever the network changes.
     view_cache: Option<RunView>,
+    /// Benchmark switch: refill the geometry in full every time (see `set_full_refill`).
+    full_refill: bool,
+    /// Test hook: once the run holds this many cells, `step` fails as a failed allocation
+    /// does (see `debug_trap_at_cells`).
+    trap_at_cells: Option<u64>,
 }
 
 #[wasm_bindgen]
@@ -58,8 +66,11 @@ impl Simulation {
             params,
             source: Source::Growing(Box::new(growth)),
             geometry: ScreenGeometry::default(),
+            growing: GrowingScreen::default(),
             recorded_digest: None,
             view_cache: None,
+            trap_at_cells: None,
+            full_refill: false,
         })
     }
 
@@ -95,8 +106,11 @@ impl Simulation {
             params,
             source,
             geometry: ScreenGeometry::default(),
+            growing: GrowingScreen::default(),
             recorded_digest: Some(record.digest),
             view_cache: None,
+            trap_at_cells: None,
+            full_refill: false,
         })
     }
 
@@ -119,7 +133,29 @@ impl Simulation {
         if added > 0 {
             self.view_cache = None;
         }
+        if self
+            .trap_at_cells
+            .is_some_and(|cells| self.cells() >= cells as f64)
+        {
+            // What running out of memory does: the allocation error handler aborts, which
+            // traps the instance (`RuntimeError: unreachable` in the browser).
+            std::alloc::handle_alloc_error(std::alloc::Layout::new::<[u8; 1 << 30]>());
+        }
         added
+    }
+
+    /// Benchmark switch: with `on`, `update_geometry` runs the core's passes in full every
+    /// time instead of refilling only what growth changed (the page benchmark compares both).
+    pub fn set_full_refill(&mut self, on: bool) {
+        self.full_refill = on;
+        self.growing.clear();
+        self.geometry = ScreenGeometry::default();
+    }
+
+    /// Test hook for the page's recovery from a dead instance: once the run holds `cells`
+    /// cells, the next `step` traps the wasm instance the way exhausted memory does.
+    pub fn debug_trap_at_cells(&mut self, cells: f64) {
+        self.trap_at_cells = Some(cells as u64);
     }
 
     /// Whether growth has stopped.
@@ -309,15 +345,29 @@ impl Simulation {
         Ok(write_record(&make_record(view, &self.params, stopped)))
     }
 
-    /// Refills the geometry buffers from the network so far, through the core's topology,
-    /// conducting-network and widths passes; returns the entry count, one per segment (0 when
-    /// the network is not valid, which a grown network always is).
+    /// Refills the geometry buffers from the network so far; returns the entry count, one per
+    /// segment (0 when the network is not valid, which a grown network always is). While the
+    /// network only grows by appended nodes, only the new segments and those downstream of
+    /// them are refilled (`GrowingScreen`, equal to a full refill bit for bit); otherwise the
+    /// core's topology, conducting-network and widths passes refill everything.
     pub fn update_geometry(&mut self) -> u32 {
         let network = self.network();
+        let rule = width_rule(&self.params);
+        if !self.full_refill {
+            if self.growing.update(&network, rule, &mut self.geometry) {
+                return self.geometry.len() as u32;
+            }
+            // Not the last network grown further: start the forest afresh, or refill in full.
+            self.growing.clear();
+            self.geometry = ScreenGeometry::default();
+            if self.growing.update(&network, rule, &mut self.geometry) {
+                return self.geometry.len() as u32;
+            }
+        }
+        self.growing.clear();
         match topology_pass(&network) {
             Ok(forest) => {
                 let conducting = conducting_network(&network);
-                let rule = width_rule(&self.params);
                 let table = widths_pass(&network, forest.as_ref(), &conducting, rule);
                 self.geometry.fill(&network, &table);
             }

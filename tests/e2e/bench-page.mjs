@@ -1,7 +1,12 @@
 // Benchmark, not a test: page figures in headless Chromium (software drawing, no GPU).
 //  1. Drawing: one full frame of a network of over 200,000 segments (target: at most 16 ms),
 //     and the time to refill the geometry views from the core before it.
-//  2. Growth while animating: cells per second on the page at the fastest pace, and how long
+//  2. Animating that run at the steady pace (20,000 cells a second): the page's work per
+//     animation frame (growth, geometry refill, drawing), median, 95th percentile and maximum,
+//     over all frames and over those past 100,000 segments (target: every frame at most
+//     16 ms), and the geometry refill per redraw; twice each, alternating the page's partial
+//     refill (only what growth changed) with a full refill every time, for comparison.
+//  3. Growth while animating: cells per second on the page at the fastest pace, and how long
 //     the growth step took per frame (target: at least 20,000 cells a second, with each
 //     frame's growth inside its 8 ms budget so frames are not dropped on its account).
 // Prints figures; never fails on slowness. Usage: node tests/e2e/bench-page.mjs
@@ -43,8 +48,39 @@ try {
   }, DRAW_ROUNDS);
   console.log(`drawing, ${draw.segments} segments on a ${draw.canvas} canvas, ${DRAW_ROUNDS} frames (target: draw at most 16 ms):`);
   console.log(`  draw ms      ${summary(draw.drawTimes)}`);
-  console.log(`  geometry ms  ${summary(draw.geometryTimes)}  (refilling the views from the core)`);
+  console.log(`  geometry ms  ${summary(draw.geometryTimes)}  (refill of an unchanged network)`);
   await page.close();
+
+  // Alternating: refilled only where growth changed it, then in full every time.
+  for (const fullRefill of [false, true, false, true]) {
+    const steady = await newPage(context);
+    await steady.addInitScript((full) => {
+      localStorage.setItem('ramulus.animate', 'yes');
+      window.ramulusTestHooks = { fullRefill: full };
+    }, fullRefill);
+    await steady.goto(`${site.url}#${BIG}`);
+    await steady.waitForFunction(() => window.ramulusPage);
+    await steady.evaluate(() => {
+      document.querySelector('#pace').value = '20000';
+      document.querySelector('#pace').dispatchEvent(new Event('change'));
+      document.querySelector('#restart').click();
+    });
+    await finishedDigest(steady, 300000);
+    const frames = await steady.evaluate(() => {
+      const { stats } = window.ramulusPage.runner;
+      return { frameTimes: stats.frameTimes, refills: stats.refills, drawTimes: stats.drawTimes };
+    });
+    const late = frames.frameTimes.filter((frame) => frame.cells >= 100000);
+    const lateRefills = frames.refills.filter((refill) => refill.segments >= 100000);
+    const lateDraws = frames.drawTimes.filter((drawn) => drawn.segments >= 100000);
+    const how = fullRefill ? 'full refills' : 'partial refills';
+    console.log(`animating it at 20,000 cells/s, ${how}, ${frames.frameTimes.length} frames, ${frames.drawTimes.length} redraws (target: every frame at most 16 ms):`);
+    console.log(`  frame ms, all frames          ${spread(frames.frameTimes.map((frame) => frame.ms))}`);
+    console.log(`  frame ms, past 100,000 cells  ${spread(late.map((frame) => frame.ms))}`);
+    console.log(`  refill ms, past 100,000 cells ${spread(lateRefills.map((refill) => refill.refillMs))}`);
+    console.log(`  draw ms, past 100,000 cells   ${spread(lateDraws.map((drawn) => drawn.drawMs))}`);
+    await steady.close();
+  }
 
   const animated = await newPage(context);
   await animated.addInitScript(() => localStorage.setItem('ramulus.animate', 'yes'));
@@ -59,6 +95,14 @@ try {
 } finally {
   await context.close();
   site.close();
+}
+
+/// Median, 95th percentile and maximum (nearest rank), and how many.
+function spread(times) {
+  if (times.length === 0) return 'none';
+  const sorted = [...times].sort((a, b) => a - b);
+  const rank = (fraction) => sorted[Math.min(sorted.length - 1, Math.ceil(fraction * sorted.length) - 1)];
+  return `median ${rank(0.5).toFixed(1)}  p95 ${rank(0.95).toFixed(1)}  max ${sorted.at(-1).toFixed(1)}  (n ${sorted.length})`;
 }
 
 function summary(times) {

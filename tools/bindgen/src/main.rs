@@ -1,6 +1,7 @@
 //! `ramulus-bindgen INPUT.wasm OUT_DIR`: the page's wasm-bindgen step. Writes the same files
-//! as `wasm-bindgen --target web --no-typescript --out-dir OUT_DIR INPUT.wasm` of the same
-//! version: ES module glue (`NAME.js`) and the processed module (`NAME_bg.wasm`), with the
+//! as `wasm-bindgen --target web --no-typescript --experimental-reset-state-function --out-dir
+//! OUT_DIR INPUT.wasm` of the same version (the reset-state function lets the page replace an
+//! instance that trapped, as when memory runs out, by a fresh one): ES module glue (`NAME.js`) and the processed module (`NAME_bg.wasm`), with the
 //! default module path kept (the glue loads `NAME_bg.wasm` beside itself when `init` is called
 //! without a path).
 
@@ -30,8 +31,8 @@ fn main() -> ExitCode {
     }
 }
 
-/// The settings the `wasm-bindgen` command line uses for `--target web --no-typescript` and
-/// no other flag. The library's own defaults differ in two places, so both are set here: the
+/// The settings the `wasm-bindgen` command line uses for `--target web --no-typescript
+/// --experimental-reset-state-function` and no other flag. The library's own defaults differ in two places, so both are set here: the
 /// command line keeps the default module path (the library omits it) and switches reference
 /// types off unless asked (the library reads an environment variable).
 /// Errors come back as text with their causes (`{:#}` of the library's error).
@@ -55,7 +56,7 @@ fn generate(input: &Path, out_dir: &Path) -> Result<(), String> {
         .js_string_builtins(false)
         .ts_typed_array_buffers(false)
         .reference_types(false)
-        .reset_state_function(false)
+        .reset_state_function(true)
         .force_enable_abort_handler(false);
     bindgen
         .generate(out_dir)

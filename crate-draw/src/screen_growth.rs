@@ -1,0 +1,339 @@
+//! `GrowingScreen`: keeps a `ScreenGeometry` in step with a growing forest by touching only
+//! what changed since the last refill: the segments of new nodes are appended, and the flows,
+//! Strahler orders and widths of the nodes downstream of them (the only ones a new node can
+//! change) are recomputed. Every value is computed as the core's pipeline computes it (flows
+//! summed over children in the same order, `strahler_orders`' rule, `WidthRule::width`,
+//! `Network::segment_length`), so the buffers equal a full `ScreenGeometry::fill` bit for bit.
+//!
+//! It applies while the network only grows by appended nodes whose parent comes before them
+//! and old nodes keep their parents, as the growth engine grows networks without attaching to
+//! segments; otherwise `update` says so and the caller refills in full.
+
+use ramulus_core::network::{Network, NO_PARENT};
+use ramulus_core::segments::WidthRule;
+
+use crate::screen::ScreenGeometry;
+
+/// Marks "no node" in the child lists.
+const NONE: u32 = u32::MAX;
+
+/// The forest as last drawn, per node (see the module comment).
+#[derive(Default)]
+pub struct GrowingScreen {
+    /// Downstream neighbour, `NO_PARENT` for a root.
+    parent: Vec<u32>,
+    /// Newest child (children are kept newest first, so in decreasing index order).
+    first_child: Vec<u32>,
+    /// The next older sibling.
+    next_sibling: Vec<u32>,
+    /// Flow through the node's downstream segment (the node's weight plus its children's).
+    flow: Vec<f64>,
+    /// Strahler order of the node's downstream segment.
+    order: Vec<u32>,
+    /// Geometry entry of the node's downstream segment, `NONE` for a root.
+    entry_of: Vec<u32>,
+    /// The node whose downstream segment each geometry entry draws.
+    node_of_entry: Vec<u32>,
+    /// Nodes whose values must be recomputed, and which are marked.
+    dirty: Vec<u32>,
+    marked: Vec<bool>,
+    /// The width rule the geometry was drawn with.
+    rule: Option<WidthRule>,
+}
+
+impl GrowingScreen {
+    /// Forgets the forest (the next `update` builds the geometry from scratch).
+    pub fn clear(&mut self) {
+        self.parent.clear();
+        self.first_child.clear();
+        self.next_sibling.clear();
+        self.flow.clear();
+        self.order.clear();
+        self.entry_of.clear();
+        self.node_of_entry.clear();
+        self.rule = None;
+    }
+
+    /// Nodes of the forest as last drawn.
+    pub fn node_count(&self) -> usize {
+        self.parent.len()
+    }
+
+    /// Brings `geometry` (as left by the previous `update` on this forest, or empty) up to
+    /// `network` with widths by `rule`. Returns false, touching nothing, when the network is
+    /// not the previous one plus appended nodes (see the module comment): refill in full then,
+    /// and `clear` this.
+    pub fn update(
+        &mut self,
+        network: &Network,
+        rule: WidthRule,
+        geometry: &mut ScreenGeometry,
+    ) -> bool {
+        if !self.grows_from_last(network, rule, geometry) {
+            return false;
+        }
+        let old_nodes = self.parent.len();
+        let nodes = network.nodes.len();
+        if nodes == old_nodes && old_nodes > 0 {
+            // Nothing grew: the geometry stands as it is.
+            return true;
+        }
+        if old_nodes == 0 {
+            geometry.clear_entries();
+        }
+        self.parent.resize(nodes, NO_PARENT);
+        self.first_child.resize(nodes, NONE);
+        self.next_sibling.resize(nodes, NONE);
+        self.flow.resize(nodes, 0.0);
+        self.order.resize(nodes, 1);
+        self.entry_of.resize(nodes, NONE);
+        self.marked.resize(nodes, false);
+        self.rule = Some(rule);
+        // New segments, in the network's order (one per new non-root node, in node order).
+        let old_entries = geometry.len();
+        for segment in &network.segments[old_entries..] {
+            let (from, to) = (segment.from as usize, segment.to);
+            let entry = geometry.len() as u32;
+            self.parent[from] = to;
+            self.entry_of[from] = entry;
+            self.node_of_entry.push(from as u32);
+            self.next_sibling[from] = self.first_child[to as usize];
+            self.first_child[to as usize] = from as u32;
+            let (a, b) = (&network.nodes[from], &network.nodes[to as usize]);
+            geometry.push_entry(
+                [a.x as f32, a.y as f32, b.x as f32, b.y as f32],
+                network.segment_length(from as u32, to),
+            );
+        }
+        // Every new node and everything downstream of one needs its values again.
+        self.dirty.clear();
+        for node in old_nodes..nodes {
+            let mut at = node as u32;
+            while at != NO_PARENT && !self.marked[at as usize] {
+                self.marked[at as usize] = true;
+                self.dirty.push(at);
+                at = self.parent[at as usize];
+            }
+        }
+        // Children have higher indices than their parents, so decreasing index order settles
+        // every child before its parent. Each node sums its children newest first, the order
+        // in which `Network::topology` adds them (reverse breadth-first order).
+        self.dirty.sort_unstable_by(|a, b| b.cmp(a));
+        let mut width_of = WidthCache::new(rule);
+        for index in 0..self.dirty.len() {
+            let node = self.dirty[index] as usize;
+            self.marked[node] = false;
+            let mut flow = network.nodes[node].weight;
+            // What the children pass on: highest order and how many have it (the count stops
+            // at 2), as in `segments::strahler_orders`.
+            let (mut highest, mut count) = (0u32, 0u32);
+            let mut child = self.first_child[node];
+            while child != NONE {
+                flow += self.flow[child as usize];
+                let own = self.order[child as usize];
+                if own > highest {
+                    (highest, count) = (own, 1);
+                } else if own == highest {
+                    count = 2;
+                }
+                child = self.next_sibling[child as usize];
+            }
+            let order = match (highest, count) {
+                (0, _) => 1,
+                (highest, 1) => highest,
+                (highest, _) => highest + 1,
+            };
+            self.flow[node] = flow;
+            self.order[node] = order;
+            let entry = self.entry_of[node];
+            if entry != NONE {
+                geometry.set_values(entry as usize, flow, width_of.width(flow), order);
+            }
+        }
+        // The flow range and highest order over every entry, as `ScreenGeometry::fill` finds
+        // them (flows can rise anywhere downstream, so the smallest is looked for again).
+        let (mut low, mut high, mut max_order) = (f64::INFINITY, 0.0f64, 0u32);
+        for &node in &self.node_of_entry {
+            let flow = self.flow[node as usize];
+            if flow > 0.0 && flow < low {
+                low = flow;
+            }
+            if flow > high {
+                high = flow;
+            }
+            max_order = max_order.max(self.order[node as usize]);
+        }
+        let flow_range = if high > 0.0 { (low, high) } else { (0.0, 0.0) };
+        geometry.finish_entries(flow_range, max_order);
+        true
+    }
+
+    /// Whether `network` is the forest last drawn plus appended nodes, each after its parent.
+    fn grows_from_last(
+        &self,
+        network: &Network,
+        rule: WidthRule,
+        geometry: &ScreenGeometry,
+    ) -> bool {
+        let old_nodes = self.parent.len();
+        if network.nodes.len() < old_nodes || geometry.len() != self.node_of_entry.len() {
+            return false;
+        }
+        if old_nodes > 0 && self.rule != Some(rule) {
+            return false;
+        }
+        let old_entries = geometry.len();
+        if network.segments.len() < old_entries {
+            return false;
+        }
+        let (old, new) = network.segments.split_at(old_entries);
+        let old_ok = old.iter().enumerate().all(|(entry, segment)| {
+            let from = segment.from as usize;
+            from < old_nodes
+                && self.parent[from] == segment.to
+                && self.entry_of[from] == entry as u32
+        });
+        let mut previous = None;
+        let new_ok = new.iter().all(|segment| {
+            let (from, to) = (segment.from as usize, segment.to as usize);
+            let ordered = previous.is_none_or(|last| from > last);
+            previous = Some(from);
+            ordered && from >= old_nodes && from < network.nodes.len() && to < from
+        });
+        old_ok && new_ok
+    }
+}
+
+/// `WidthRule::width` remembering the last flow's width: runs of equal flows (the tips) take
+/// one `pow`.
+struct WidthCache {
+    rule: WidthRule,
+    last: Option<(u64, f64)>,
+}
+
+impl WidthCache {
+    fn new(rule: WidthRule) -> WidthCache {
+        WidthCache { rule, last: None }
+    }
+
+    fn width(&mut self, flow: f64) -> f64 {
+        let bits = flow.to_bits();
+        match self.last {
+            Some((key, width)) if key == bits => width,
+            _ => {
+                let width = self.rule.width(flow);
+                self.last = Some((bits, width));
+                width
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::palette::Colouring;
+    use crate::raster::RasterView;
+    use ramulus_core::growth::Growth;
+    use ramulus_core::link::decode_link;
+    use ramulus_core::run::{conducting_network, topology_pass, width_rule, widths_pass};
+
+    /// The geometry as the core's pipeline gives it from scratch (topology, conducting
+    /// network and widths passes, then `ScreenGeometry::fill`).
+    fn full(network: &Network, rule: WidthRule) -> ScreenGeometry {
+        let forest = topology_pass(network).unwrap();
+        let table = widths_pass(network, forest.as_ref(), &conducting_network(network), rule);
+        let mut geometry = ScreenGeometry::default();
+        geometry.fill(network, &table);
+        geometry
+    }
+
+    fn pixels(geometry: &mut ScreenGeometry, colouring: Colouring) -> Vec<u8> {
+        let view = RasterView {
+            width: 160,
+            height: 140,
+            scale: 6.0,
+            offset_x: 4.0,
+            offset_y: 2.0,
+        };
+        geometry
+            .raster(view, colouring, 0.75, 1.6, [255, 253, 248])
+            .to_vec()
+    }
+
+    /// Grown step by step, refilled only where it changed, the geometry equals the core's
+    /// full pipeline after every step: every buffer bit for bit, and the picture pixel for
+    /// pixel under every colouring.
+    #[test]
+    fn incremental_refills_equal_the_full_pipeline_pixel_for_pixel() {
+        for link in [
+            "v=1&width=40&height=36&roots=20,34,0,1&cells=1200&joining=cheapest&w_turn=0\
+             &w_flow=0&w_path=0&seed=4",
+            "v=1&width=30&height=30&roots=3,3,0,1;26,26,0,-1&cells=700&joining=weighted\
+             &temperature=0.5&w_turn=1&w_flow=0.5&alpha=0.5&w_path=0.05&seed=9&gamma=2.5",
+        ] {
+            let params = decode_link(link).params;
+            let rule = width_rule(&params);
+            let mut growth = Growth::new(&params).unwrap();
+            let mut growing = GrowingScreen::default();
+            let mut geometry = ScreenGeometry::default();
+            for (steps, slice) in [1u64, 1, 3, 10, 40, 7, 150, 300, 2000]
+                .into_iter()
+                .enumerate()
+            {
+                growth.step(slice);
+                let network = growth.network();
+                assert!(growing.update(&network, rule, &mut geometry), "{link}");
+                let mut expected = full(&network, rule);
+                assert_eq!(geometry.ends, expected.ends);
+                assert_eq!(geometry.widths, expected.widths);
+                assert_eq!(geometry.orders, expected.orders);
+                assert_eq!(geometry.flows, expected.flows);
+                assert_eq!(geometry.lengths, expected.lengths);
+                assert_eq!(geometry.flow_range, expected.flow_range);
+                assert_eq!(geometry.max_order, expected.max_order);
+                assert_eq!(geometry.segment_count, expected.segment_count);
+                assert_eq!(geometry.draw_lines, expected.draw_lines);
+                for colouring in [Colouring::ByOrder, Colouring::ByFlow, Colouring::Plain] {
+                    assert_eq!(
+                        geometry.colour_indices(colouring),
+                        expected.colour_indices(colouring)
+                    );
+                    assert!(
+                        pixels(&mut geometry, colouring) == pixels(&mut expected, colouring),
+                        "{link}: pictures differ after step {steps}"
+                    );
+                }
+            }
+            assert!(geometry.len() > 500, "{link}: {} entries", geometry.len());
+        }
+    }
+
+    /// A network that is not the last one plus appended nodes (a run started over, a
+    /// segment split by a junction) is refused, so the caller refills in full.
+    #[test]
+    fn a_network_that_did_not_just_grow_is_refused() {
+        let params =
+            decode_link("v=1&width=30&height=30&roots=15,28,0,1&cells=400&joining=cheapest&seed=2")
+                .params;
+        let rule = width_rule(&params);
+        let mut growth = Growth::new(&params).unwrap();
+        growth.step(300);
+        let mut growing = GrowingScreen::default();
+        let mut geometry = ScreenGeometry::default();
+        assert!(growing.update(&growth.network(), rule, &mut geometry));
+        let mut smaller = Growth::new(&params).unwrap();
+        smaller.step(100);
+        assert!(!growing.update(&smaller.network(), rule, &mut geometry));
+        let mut rewired = growth.network();
+        let last = rewired.segments.len() - 1;
+        rewired.segments[last].to = rewired.segments[last - 1].from;
+        rewired.segments.swap(last, last - 1);
+        assert!(!growing.update(&rewired, rule, &mut geometry));
+        let mut other_rule = rule;
+        other_rule.gamma = 2.0;
+        assert!(!growing.update(&growth.network(), other_rule, &mut geometry));
+        // The geometry was left as the first update made it.
+        assert_eq!(geometry.len(), 300);
+    }
+}
