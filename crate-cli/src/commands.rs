@@ -1,4 +1,5 @@
-//! The `grow`, `measure` and `presets` commands: read inputs, call the core, print results.
+//! The `grow`, `measure` and `presets` commands: read inputs, call the core, print results
+//! (`measure` hands specimens and folders to `specimens.rs`).
 
 use ramulus_core::growth::{Growth, StopReason};
 use ramulus_core::import::mask_from_bytes;
@@ -161,7 +162,7 @@ pub fn grow_json(
     })
 }
 
-fn print_table(metrics: &Metrics, units: &str) {
+pub(crate) fn print_table(metrics: &Metrics, units: &str) {
     // Long values (the angle histogram) go on their own line so the columns stay narrow.
     const LONG: usize = 24;
     let rows = ramulus_draw::texts::readings_rows(metrics, units);
@@ -225,6 +226,9 @@ fn measured_json(measured: &Measured) -> serde_json::Value {
 /// `ramulus measure RECORD.json...`: measures every file; if any fails, names each failing
 /// file and prints nothing on stdout.
 pub fn measure(options: MeasureOptions) -> Result<(), CliError> {
+    if crate::specimens::wanted(&options) {
+        return crate::specimens::measure_specimens(options);
+    }
     let mut measured = Vec::new();
     let mut failures = Vec::new();
     for path in &options.files {

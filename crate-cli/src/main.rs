@@ -16,6 +16,7 @@ mod fit_command;
 mod interrupt;
 mod options;
 mod output;
+mod specimens;
 
 use std::process::ExitCode;
 
@@ -46,7 +47,7 @@ struct CommandLine {
 enum Command {
     /// Grow one network; print its figures, write its record or drawing
     Grow(GrowOptions),
-    /// Recompute the digest and metrics of saved run records
+    /// Measure saved run records, or traced specimens (SVG, GeoJSON, CSV edge lists)
     Measure(MeasureOptions),
     /// List the named parameter sets with their parameters
     Presets(PresetsOptions),

@@ -122,13 +122,54 @@ fragment (the #fragment alone).";
 #[derive(Args)]
 #[command(after_help = MEASURE_NOTES)]
 pub struct MeasureOptions {
-    /// Run records written by `ramulus grow --record` or kept on
-    /// the page; several are all measured
-    #[arg(value_name = "RECORD.json", required = true, verbatim_doc_comment)]
+    /// Run records (RECORD.json, written by `ramulus grow --record`
+    /// or kept on the page), traced specimens (SVG, GeoJSON, CSV
+    /// edge list x1,y1,x2,y2[,width], told apart by content) or
+    /// folders of them; several are all measured
+    #[arg(value_name = "FILE", required = true, verbatim_doc_comment)]
     pub files: Vec<String>,
     /// Print exactly one JSON object on stdout instead of the tables
     #[arg(long)]
     pub json: bool,
+    /// Specimens: the output length unit (mm, cm, m, in, um for an
+    /// SVG's physical size, default mm); GeoJSON and CSV need it
+    #[arg(long, value_name = "UNIT", verbatim_doc_comment)]
+    pub units: Option<String>,
+    /// Specimens: output units per file unit, instead of the SVG's
+    /// physical size
+    #[arg(
+        long,
+        value_name = "FACTOR",
+        conflicts_with = "scale_bar",
+        verbatim_doc_comment
+    )]
+    pub scale: Option<f64>,
+    /// Specimens: two points of the drawing (file coordinates) a
+    /// known distance apart, in output units: X1,Y1,X2,Y2,LENGTH
+    #[arg(
+        long = "scale-bar",
+        value_name = "X1,Y1,X2,Y2,LENGTH",
+        verbatim_doc_comment
+    )]
+    pub scale_bar: Option<String>,
+    /// Specimens: the root (petiole base) in file coordinates; the
+    /// nearest node is taken (default: the line end nearest the
+    /// drawing's bottom edge, and the report says so)
+    #[arg(
+        long,
+        value_name = "X,Y",
+        allow_hyphen_values = true,
+        verbatim_doc_comment
+    )]
+    pub root: Option<String>,
+    /// Specimens: snap tolerance in output units for line ends and
+    /// T-junctions (default 0.2 % of the drawing's larger extent)
+    #[arg(long, value_name = "TOL", verbatim_doc_comment)]
+    pub snap: Option<f64>,
+    /// Specimens: largest distance between a curve and the straight
+    /// pieces replacing it, in output units (default 0.01)
+    #[arg(long, value_name = "TOL", verbatim_doc_comment)]
+    pub flatten: Option<f64>,
 }
 
 /// What `ramulus measure --help` adds below the options.
@@ -139,7 +180,16 @@ each failing file is named on stderr and nothing is printed on stdout (exit 1).
 With --json and one file, stdout holds one object: digest (recomputed), stored_digest (as
 written in the record), digest_matches, segments, total_length (in the record's units) and
 metrics. A record whose stored digest differs is also named in a warning on stderr. With several files it holds one object {\"records\": [...]} with
-one such object per file, in the order given, each with its `file` added.";
+one such object per file, in the order given, each with its `file` added.
+
+Specimens (any file that is not a run record, or a folder: its .svg, .geojson, .json and .csv
+files in name order) are read, calibrated and repaired, then measured like a grown network.
+Every repair (merged ends, ends joined to a line, crossings split into junctions, zero-length
+and repeated pieces dropped, disconnected parts, the roots chosen) is listed on stderr with
+coordinates, or under `repairs` with --json. One specimen prints its table; several print one
+CSV row per file (header first) on stdout, for a spreadsheet or R. With --json: one object
+(several: {\"specimens\": [...]}) with file, format, units, calibration, nodes, segments,
+total_length, metrics (the keys of `grow --json`), repairs and notes.";
 
 /// Options of `ramulus presets`.
 #[derive(Args)]

@@ -378,7 +378,19 @@ const COMMAND_FLAGS: [(&str, &[&str]); 4] = [
             "--color", "--json",
         ],
     ),
-    ("measure", &["--json", "RECORD.json"]),
+    (
+        "measure",
+        &[
+            "--json",
+            "RECORD.json",
+            "--units",
+            "--scale",
+            "--scale-bar",
+            "--root",
+            "--snap",
+            "--flatten",
+        ],
+    ),
     ("presets", &["--json"]),
     ("bench", &["--quick", "--json"]),
 ];
@@ -962,6 +974,160 @@ fn non_utf8_input_names_the_byte_offset() {
     // `#v=1&seed=` is 10 bytes.
     assert!(stderr.contains("--link: not UTF-8"), "{stderr}");
     assert!(stderr.contains("byte offset 10"), "{stderr}");
+}
+
+/// The hand-traced leaf shipped with the tests (invented demo data, see
+/// examples/specimens/hand-traced-leaf.svg).
+fn traced_leaf() -> String {
+    concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/../examples/specimens/hand-traced-leaf.svg"
+    )
+    .to_string()
+}
+
+/// A traced SVG is recognised by content and measured: the table on stdout, and on stderr the
+/// scale found in the file (80 mm over 320 user units: 0.25 mm per unit), every repair with
+/// coordinates and the root rule. Counted by hand on the drawing: 7 line ends joined to the
+/// midrib, 1 crossing, 1 loop, 2 parts.
+#[test]
+fn a_traced_svg_is_measured_with_its_repair_report() {
+    let leaf = traced_leaf();
+    let outcome = ramulus(&["measure", &leaf, "--snap", "0.2"]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    assert!(outcome.stdout.contains("loops"), "{}", outcome.stdout);
+    assert!(
+        outcome.stderr.contains("0.25 mm per user unit"),
+        "{}",
+        outcome.stderr
+    );
+    assert_eq!(outcome.stderr.matches("joined a line end to").count(), 7);
+    assert_eq!(
+        outcome.stderr.matches("split two crossing pieces").count(),
+        1
+    );
+    assert!(outcome.stderr.contains("nearest the drawing's bottom edge"));
+    assert!(outcome.stderr.contains("part 2 is not connected"));
+    // Each repair names the element as found in the file: the midrib is on line 17.
+    assert!(
+        outcome.stderr.contains("<path id=\"midrib\"> (line 17)"),
+        "{}",
+        outcome.stderr
+    );
+
+    let json = ramulus(&[
+        "measure", &leaf, "--snap", "0.2", "--root", "160,470", "--json",
+    ]);
+    assert!(json.success, "{}", json.stderr);
+    let value = single_json(&json.stdout);
+    assert_eq!(value["format"], "SVG");
+    assert_eq!(value["units"], "mm");
+    assert_eq!(value["metrics"]["loop_count"], 1);
+    assert_eq!(value["metrics"]["component_count"], 2);
+    assert_eq!(value["total_length"], value["metrics"]["total_length"]);
+    let repairs = value["repairs"].as_array().expect("repairs");
+    let root = repairs
+        .iter()
+        .find(|repair| repair["kind"] == "root" && repair["part"] == 1)
+        .expect("the root is reported");
+    // (160, 470) in user units is (40, 117.5) mm, the midrib's start.
+    assert_eq!(root["at"], serde_json::json!([40.0, 117.5]));
+    assert_eq!(root["rule"], "given");
+    assert!(repairs
+        .iter()
+        .all(|repair| repair["message"].as_str().is_some_and(|m| !m.is_empty())));
+}
+
+/// A folder of specimens gives one CSV row per file (header first), for a spreadsheet.
+#[test]
+fn a_folder_of_specimens_gives_one_csv_row_each() {
+    let folder = temp_path("specimens", "d");
+    std::fs::create_dir_all(&folder).expect("folder");
+    std::fs::copy(traced_leaf(), folder.join("a-leaf.svg")).expect("copy");
+    std::fs::write(
+        folder.join("b-edges.csv"),
+        "x1,y1,x2,y2\n0,0,3,0\n3,0,3,4\n",
+    )
+    .expect("csv");
+    std::fs::write(
+        folder.join("c-veins.geojson"),
+        r#"{"type":"LineString","coordinates":[[0,0],[0,2]]}"#,
+    )
+    .expect("geojson");
+    std::fs::write(folder.join("notes.txt"), "not a specimen").expect("txt");
+    let outcome = ramulus(&["measure", folder.to_str().expect("UTF-8"), "--units", "mm"]);
+    let _ = std::fs::remove_dir_all(&folder);
+    assert!(outcome.success, "{}", outcome.stderr);
+    let lines: Vec<&str> = outcome.stdout.lines().collect();
+    assert_eq!(lines.len(), 4, "{}", outcome.stdout);
+    let header: Vec<&str> = lines[0].trim_end().split(',').collect();
+    assert_eq!(&header[..3], &["file", "format", "units"]);
+    let length_column = header
+        .iter()
+        .position(|name| *name == "total_length")
+        .expect("a total_length column");
+    let expected = [
+        ("a-leaf.svg", "SVG", None),
+        ("b-edges.csv", "CSV", Some(7.0)),
+        ("c-veins.geojson", "GeoJSON", Some(2.0)),
+    ];
+    for (line, (file, format, length)) in lines[1..].iter().zip(expected) {
+        let fields: Vec<&str> = line.trim_end().split(',').collect();
+        assert_eq!(fields.len(), header.len(), "{line}");
+        assert!(fields[0].ends_with(file), "{line}");
+        assert_eq!(fields[1], format);
+        if let Some(length) = length {
+            assert_eq!(
+                fields[length_column].parse::<f64>().ok(),
+                Some(length),
+                "{line}"
+            );
+        }
+    }
+}
+
+/// Bad specimens and bad specimen options: the file and what is wrong are named, nothing is
+/// printed on stdout; malformed numbers in options are usage errors (exit 2).
+#[test]
+fn bad_specimens_are_named() {
+    let edges = TempFile::new("edges", "csv");
+    std::fs::write(&edges.0, "x1,y1,x2\n0,0,1\n").expect("csv");
+    let outcome = ramulus(&["measure", edges.path(), "--units", "mm"]);
+    check_failure(&outcome, &[edges.path(), "`y2`"]);
+    assert_eq!(outcome.code, Some(1));
+    assert!(outcome.stdout.is_empty());
+    let no_units = TempFile::new("veins", "geojson");
+    std::fs::write(
+        &no_units.0,
+        r#"{"type":"LineString","coordinates":[[0,0],[0,2]]}"#,
+    )
+    .expect("geojson");
+    check_failure(
+        &ramulus(&["measure", no_units.path()]),
+        &[no_units.path(), "--units"],
+    );
+    let usage = ramulus(&["measure", &traced_leaf(), "--root", "1"]);
+    check_failure(&usage, &["--root", "X,Y"]);
+    assert_eq!(usage.code, Some(2));
+    let bar = ramulus(&["measure", &traced_leaf(), "--scale-bar", "0,0,0,0,10"]);
+    check_failure(&bar, &["scale bar", "must differ"]);
+}
+
+/// README's specimen examples run as written: the shipped folder of invented specimens gives
+/// a header and one row for each of its three files.
+#[test]
+fn the_readme_specimen_examples_run() {
+    let examples = concat!(env!("CARGO_MANIFEST_DIR"), "/../examples/specimens");
+    let one = ramulus(&[
+        "measure",
+        &format!("{examples}/hand-traced-leaf.svg"),
+        "--snap",
+        "0.2",
+    ]);
+    assert!(one.success, "{}", one.stderr);
+    let folder = ramulus(&["measure", examples, "--units", "mm"]);
+    assert!(folder.success, "{}", folder.stderr);
+    assert_eq!(folder.stdout.lines().count(), 4, "{}", folder.stdout);
 }
 
 /// `--page` sets the address the printed link opens (a page served elsewhere); an address

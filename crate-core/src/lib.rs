@@ -21,6 +21,7 @@ pub mod region;
 pub mod run;
 pub mod schema;
 pub mod segments;
+pub mod specimen;
 pub mod utf8_text;
 
 pub use growth::{Growth, StepReport, StopReason};
