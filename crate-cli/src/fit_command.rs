@@ -31,8 +31,13 @@ use crate::output::OutputPlan;
 #[command(after_help = FIT_NOTES)]
 pub struct FitOptions {
     /// The specimen to match: a run record (ramulus grow --record)
-    #[arg(long, value_name = "FILE.json", required = true, verbatim_doc_comment)]
+    /// or a traced specimen (SVG, GeoJSON, CSV edge list)
+    #[arg(long, value_name = "FILE", required = true, verbatim_doc_comment)]
     pub specimen: String,
+    /// How a traced specimen is calibrated and repaired (as for measure;
+    /// its length unit defaults to the growth parameters' `units`)
+    #[command(flatten)]
+    pub tracing: crate::options::SpecimenArgs,
     /// Start from this named parameter set (default: broad-leaf)
     #[arg(long, value_name = "NAME")]
     pub preset: Option<String>,
@@ -418,7 +423,7 @@ fn build_plan(options: &FitOptions) -> Result<FitPlan, CliError> {
             scale,
         });
     }
-    let specimen = measure_specimen(&options.specimen)?;
+    let specimen = measure_specimen(&options.specimen, &options.tracing, &base)?;
     let mut targets = Vec::new();
     for text in &options.matched {
         let (key, weight) = match text.split_once('=') {
@@ -468,13 +473,55 @@ fn build_plan(options: &FitOptions) -> Result<FitPlan, CliError> {
 }
 
 /// The specimen's metrics: a run record, measured as `ramulus measure` measures it.
-fn measure_specimen(path: &str) -> Result<ramulus_core::metrics::Metrics, CliError> {
-    let text = read_text(path)?;
-    let (record, network) =
-        read_record(&text).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
-    let alpha = record.params.as_ref().map_or(0.5, |p| p.costs.alpha);
-    ramulus_core::metrics::measure(&network, alpha)
-        .map_err(|error| CliError::Failed(format!("{path}: {error}")))
+fn measure_specimen(
+    path: &str,
+    tracing: &crate::options::SpecimenArgs,
+    base: &ramulus_core::params::Params,
+) -> Result<ramulus_core::metrics::Metrics, CliError> {
+    let bytes = std::fs::read(path)
+        .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))?;
+    let units = &base.domain.units;
+    if crate::specimens::is_record(&bytes) {
+        let text = read_text(path)?;
+        let (record, network) =
+            read_record(&text).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+        if &network.units != units {
+            return Err(CliError::Failed(format!(
+                "{path}: the specimen is measured in {} but the growth parameters in {units}; \
+                 set --set units={} (and a cell_size in that unit)",
+                network.units, network.units
+            )));
+        }
+        let alpha = record.params.as_ref().map_or(0.5, |p| p.costs.alpha);
+        return ramulus_core::metrics::measure(&network, alpha)
+            .map_err(|error| CliError::Failed(format!("{path}: {error}")));
+    }
+    let mut tracing = tracing.clone();
+    let units_given = tracing.units.is_some();
+    tracing.units.get_or_insert_with(|| units.clone());
+    let options = crate::specimens::specimen_options(&tracing)?;
+    let specimen = ramulus_core::specimen::build_specimen(&bytes, &options)
+        .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+    if &specimen.calibration.units != units {
+        return Err(CliError::Failed(format!(
+            "{path}: the specimen is measured in {} but the growth parameters in {units}{}",
+            specimen.calibration.units,
+            if units_given {
+                "; give --units in the parameters' unit"
+            } else {
+                ""
+            }
+        )));
+    }
+    eprintln!(
+        "{path}: traced specimen read with {} repairs (`ramulus measure {path}` lists them); \
+         transport cost measured with the base alpha {}",
+        specimen.report.repairs.len(),
+        base.costs.alpha
+    );
+    let view = ramulus_core::run::RunView::new(specimen.network, base)
+        .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+    Ok(view.metrics)
 }
 
 /// `I/N` with 1 <= I <= N.

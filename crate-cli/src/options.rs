@@ -131,6 +131,14 @@ pub struct MeasureOptions {
     /// Print exactly one JSON object on stdout instead of the tables
     #[arg(long)]
     pub json: bool,
+    /// How traced specimens are calibrated and repaired
+    #[command(flatten)]
+    pub specimen: SpecimenArgs,
+}
+
+/// Calibration and repair of traced specimens (shared by `measure` and `fit`).
+#[derive(Args, Clone, Default)]
+pub struct SpecimenArgs {
     /// Specimens: the output length unit (mm, cm, m, in, um for an
     /// SVG's physical size, default mm); GeoJSON and CSV need it
     #[arg(long, value_name = "UNIT", verbatim_doc_comment)]

@@ -15,7 +15,7 @@ use ramulus_core::specimen::{
 };
 use serde_json::json;
 
-use crate::options::{CliError, MeasureOptions};
+use crate::options::{CliError, MeasureOptions, SpecimenArgs};
 
 /// File name endings a folder is searched for.
 const SPECIMEN_ENDINGS: [&str; 4] = [".svg", ".geojson", ".json", ".csv"];
@@ -23,7 +23,7 @@ const SPECIMEN_ENDINGS: [&str; 4] = [".svg", ".geojson", ".json", ".csv"];
 /// Whether the bytes are a run record rather than a specimen: a JSON object that names the
 /// `ramulus-run` format, or one without a `"type"` key (which every GeoJSON object has), so
 /// that a damaged record gets the record reader's message.
-fn is_record(bytes: &[u8]) -> bool {
+pub(crate) fn is_record(bytes: &[u8]) -> bool {
     let start = bytes.iter().position(|b| !b.is_ascii_whitespace());
     let has = |needle: &[u8]| bytes.windows(needle.len()).any(|window| window == needle);
     start.is_some_and(|index| bytes[index] == b'{')
@@ -33,12 +33,13 @@ fn is_record(bytes: &[u8]) -> bool {
 /// Whether `measure` has specimen work: a folder, a file that is not a run record, or a
 /// specimen option.
 pub fn wanted(options: &MeasureOptions) -> bool {
-    options.units.is_some()
-        || options.scale.is_some()
-        || options.scale_bar.is_some()
-        || options.root.is_some()
-        || options.snap.is_some()
-        || options.flatten.is_some()
+    let specimen = &options.specimen;
+    specimen.units.is_some()
+        || specimen.scale.is_some()
+        || specimen.scale_bar.is_some()
+        || specimen.root.is_some()
+        || specimen.snap.is_some()
+        || specimen.flatten.is_some()
         || options.files.iter().any(|path| {
             let path = std::path::Path::new(path);
             path.is_dir() || std::fs::read(path).is_ok_and(|bytes| !is_record(&bytes))
@@ -62,7 +63,7 @@ fn numbers(option: &str, text: &str, count: usize, shape: &str) -> Result<Vec<f6
 }
 
 /// The core's options from the command line's.
-fn specimen_options(options: &MeasureOptions) -> Result<SpecimenOptions, CliError> {
+pub(crate) fn specimen_options(options: &SpecimenArgs) -> Result<SpecimenOptions, CliError> {
     let scale = match (&options.scale, &options.scale_bar) {
         (Some(factor), _) => ScaleRule::Factor(*factor),
         (None, Some(text)) => {
@@ -235,7 +236,7 @@ fn measured_json(one: &Measured) -> serde_json::Value {
 /// `ramulus measure` with specimens: every file is measured; if any fails, each failing file is
 /// named and nothing is printed on stdout.
 pub fn measure_specimens(options: MeasureOptions) -> Result<(), CliError> {
-    let core_options = specimen_options(&options)?;
+    let core_options = specimen_options(&options.specimen)?;
     let paths = expand(&options.files)?;
     let progress = paths.len() > 1 && std::io::stderr().is_terminal();
     let mut measured = Vec::new();

@@ -1558,3 +1558,52 @@ fn a_bad_fit_is_refused_naming_the_problem() {
     }
     assert!(!std::path::Path::new("x.json").exists());
 }
+
+/// A traced specimen (the shipped hand-traced demo leaf, in mm from its physical size) is
+/// matched like a record: the fit prints its posterior inside the bounds and says on stderr
+/// that a traced specimen was read. A specimen in another length unit than the growth
+/// parameters is refused, naming both units.
+#[test]
+fn a_traced_specimen_is_fitted_and_a_unit_mismatch_refused() {
+    let leaf = traced_leaf();
+    let arguments = [
+        "fit",
+        "--specimen",
+        &leaf,
+        "--preset",
+        "broad-leaf",
+        "--set",
+        "cells=600",
+        "--fit",
+        "w_turn=0.5:3",
+        "--match",
+        "tip_density",
+        "--replicates",
+        "1",
+        "--method",
+        "quick",
+        "--simulations",
+        "30",
+        "--accept",
+        "8",
+        "--predictive",
+        "2",
+        "--json",
+    ];
+    let outcome = ramulus(&arguments);
+    assert!(outcome.success, "{}", outcome.stderr);
+    assert!(
+        outcome.stderr.contains("traced specimen"),
+        "{}",
+        outcome.stderr
+    );
+    let value = single_json(&outcome.stdout);
+    let median = value["posterior"]["w_turn"]["median"]
+        .as_f64()
+        .expect("a median");
+    assert!((0.5..=3.0).contains(&median), "{median}");
+    let mut in_cm = arguments.to_vec();
+    in_cm.extend(["--units", "cm"]);
+    let outcome = ramulus(&in_cm);
+    check_failure(&outcome, &["measured in cm", "growth parameters in mm"]);
+}
