@@ -43,6 +43,8 @@ struct CommandLine {
     command: Command,
 }
 
+// One command is parsed once per process, so the size of its largest options is of no account.
+#[allow(clippy::large_enum_variant)]
 #[derive(Subcommand)]
 enum Command {
     /// Grow one network; print its figures, write its record or drawing
