@@ -30,6 +30,36 @@ pub(crate) fn read_text(path: &str) -> Result<String, CliError> {
         .map_err(|error| CliError::Failed(format!("{path}: {error}")))
 }
 
+/// The parameter file of `--params`, read and checked (keys, types, repeated keys), with its
+/// path.
+pub(crate) fn parameter_file(
+    path: Option<&str>,
+) -> Result<Option<(&str, ramulus_core::params::file::ParameterFile)>, CliError> {
+    match path {
+        Some(path) => {
+            let file = read_parameter_file(&read_bytes(path)?)
+                .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+            Ok(Some((path, file)))
+        }
+        None => Ok(None),
+    }
+}
+
+/// The parameters of `--link` (refused when not UTF-8, naming the byte); each field the link
+/// had to reset is a warning on stderr.
+pub(crate) fn link_parameters(link: Option<&std::ffi::OsStr>) -> Result<Option<Params>, CliError> {
+    let Some(link) = link else {
+        return Ok(None);
+    };
+    let text = utf8_text(link.as_encoded_bytes())
+        .map_err(|error| CliError::Failed(format!("--link: {error}")))?;
+    let read = decode_link(text);
+    for problem in &read.problems {
+        eprintln!("warning: {problem}");
+    }
+    Ok(Some(read.params))
+}
+
 /// `ramulus grow`.
 pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     // Every output is checked against the inputs and the other outputs before any work.
@@ -46,26 +76,8 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     if let Some(path) = &options.svg_file {
         plan.output("--svg", path)?;
     }
-    let file = match &options.params_file {
-        Some(path) => {
-            let file = read_parameter_file(&read_bytes(path)?)
-                .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
-            Some((path.as_str(), file))
-        }
-        None => None,
-    };
-    let link_params = match &options.link {
-        Some(link) => {
-            let text = utf8_text(link.as_encoded_bytes())
-                .map_err(|error| CliError::Failed(format!("--link: {error}")))?;
-            let read = decode_link(text);
-            for problem in &read.problems {
-                eprintln!("warning: {problem}");
-            }
-            Some(read.params)
-        }
-        None => None,
-    };
+    let file = parameter_file(options.params_file.as_deref())?;
+    let link_params = link_parameters(options.link.as_deref())?;
     let mask = match &options.mask_file {
         Some(path) => {
             let bytes = read_bytes(path)?;

@@ -18,11 +18,10 @@ use ramulus_core::fit::simulate::run_job;
 use ramulus_core::fit::{
     Fit, FitPlan, FitResult, FittedKey, Job, Method, Outcome, Sensitivity, Target,
 };
-use ramulus_core::link::{decode_link, encode_link};
-use ramulus_core::params::file::read_parameter_file;
+use ramulus_core::link::encode_link;
 use ramulus_core::record::read_record;
 
-use crate::commands::read_text;
+use crate::commands::{link_parameters, parameter_file, read_text};
 use crate::options::{assemble_params, CliError, DEFAULT_PAGE};
 use crate::output::OutputPlan;
 
@@ -46,7 +45,7 @@ pub struct FitOptions {
     pub params_file: Option<String>,
     /// Start from a run link (not with --preset or --params)
     #[arg(long, value_name = "LINK", conflicts_with_all = ["preset", "params_file"])]
-    pub link: Option<String>,
+    pub link: Option<std::ffi::OsString>,
     /// Override one fixed parameter; repeat for more keys
     #[arg(long = "set", value_name = "KEY=VALUE")]
     pub sets: Vec<String>,
@@ -375,21 +374,8 @@ pub fn merge(options: MergeOptions) -> Result<(), CliError> {
 
 /// The plan from the options and the specimen, checked.
 fn build_plan(options: &FitOptions) -> Result<FitPlan, CliError> {
-    let file = match &options.params_file {
-        Some(path) => {
-            let file = read_parameter_file(read_text(path)?.as_bytes())
-                .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
-            Some((path.as_str(), file))
-        }
-        None => None,
-    };
-    let link_params = options.link.as_deref().map(|text| {
-        let read = decode_link(text);
-        for problem in &read.problems {
-            eprintln!("warning: {problem}");
-        }
-        read.params
-    });
+    let file = parameter_file(options.params_file.as_deref())?;
+    let link_params = link_parameters(options.link.as_deref())?;
     let base = assemble_params(
         link_params,
         options.preset.as_deref(),
