@@ -155,6 +155,13 @@ const fn open_below(min: f64, max: f64) -> Option<Bounds> {
 
 /// Largest cost weight: larger weights only rescale the cost, and keep sums far from overflow.
 const MAX_WEIGHT: f64 = 1.0e6;
+/// Why a bound is what it is, shared by keys of one sort.
+const WEIGHT_BOUNDS: &str = "Weights are relative; 0 turns a term off and 1e6 is six orders above the others, where the term alone decides.";
+/// Why a bound is what it is, shared by keys of one sort.
+const GRADE_BOUNDS: &str =
+    "A rise of at most 1 per unit run (45 degrees) covers sites and terrain that can be built on.";
+/// Why a bound is what it is, shared by keys of one sort.
+const SIDE_BOUNDS: &str = "20,000 cells a side at most, and width x height within 25,000,000.";
 
 /// The parameter table, in the order the page shows the fields and links write them.
 static PARAMETERS: &[ParamSpec] = &[
@@ -268,7 +275,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Length weight",
         unit: "",
         bounds: closed(0.0, MAX_WEIGHT),
-        bounds_why: "Weights are relative; 0 turns a term off and 1e6 is six orders above the others, where the term alone decides.",
+        bounds_why: WEIGHT_BOUNDS,
         default: "1",
         link_v1_default: "1",
         fit: Some(FitScale::Linear),
@@ -281,7 +288,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Angle weight",
         unit: "",
         bounds: closed(0.0, MAX_WEIGHT),
-        bounds_why: "Weights are relative; 0 turns a term off and 1e6 is six orders above the others, where the term alone decides.",
+        bounds_why: WEIGHT_BOUNDS,
         default: "1",
         link_v1_default: "1",
         fit: Some(FitScale::Linear),
@@ -307,7 +314,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Transport weight",
         unit: "",
         bounds: closed(0.0, MAX_WEIGHT),
-        bounds_why: "Weights are relative; 0 turns a term off and 1e6 is six orders above the others, where the term alone decides.",
+        bounds_why: WEIGHT_BOUNDS,
         default: "0.5",
         link_v1_default: "0.5",
         fit: Some(FitScale::Linear),
@@ -333,7 +340,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Supply-distance weight",
         unit: "",
         bounds: closed(0.0, MAX_WEIGHT),
-        bounds_why: "Weights are relative; 0 turns a term off and 1e6 is six orders above the others, where the term alone decides.",
+        bounds_why: WEIGHT_BOUNDS,
         default: "0",
         link_v1_default: "0",
         fit: Some(FitScale::Linear),
@@ -372,7 +379,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Uphill weight",
         unit: "",
         bounds: closed(0.0, MAX_WEIGHT),
-        bounds_why: "Weights are relative; 0 turns a term off and 1e6 is six orders above the others, where the term alone decides.",
+        bounds_why: WEIGHT_BOUNDS,
         default: "0",
         link_v1_default: "0",
         fit: Some(FitScale::Linear),
@@ -385,7 +392,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Slope east",
         unit: "m/m",
         bounds: closed(-1.0, 1.0),
-        bounds_why: "A rise of at most 1 per unit run (45 degrees) covers sites and terrain that can be built on.",
+        bounds_why: GRADE_BOUNDS,
         default: "0",
         link_v1_default: "0",
         fit: Some(FitScale::Linear),
@@ -398,7 +405,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Slope south",
         unit: "m/m",
         bounds: closed(-1.0, 1.0),
-        bounds_why: "A rise of at most 1 per unit run (45 degrees) covers sites and terrain that can be built on.",
+        bounds_why: GRADE_BOUNDS,
         default: "0",
         link_v1_default: "0",
         fit: Some(FitScale::Linear),
@@ -450,7 +457,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Width",
         unit: "cells",
         bounds: closed(1.0, 20_000.0),
-        bounds_why: "20,000 cells a side at most, and width x height within 25,000,000.",
+        bounds_why: SIDE_BOUNDS,
         default: "120",
         link_v1_default: "120",
         fit: None,
@@ -463,7 +470,7 @@ static PARAMETERS: &[ParamSpec] = &[
         label: "Height",
         unit: "cells",
         bounds: closed(1.0, 20_000.0),
-        bounds_why: "20,000 cells a side at most, and width x height within 25,000,000.",
+        bounds_why: SIDE_BOUNDS,
         default: "120",
         link_v1_default: "120",
         fit: None,
