@@ -1,7 +1,9 @@
 //! `ScreenGeometry`: per-segment buffers (end points, widths, orders, flows, lengths, colour
 //! index) that the page reads through typed-array views into wasm memory, refilled in place
 //! from a network and its segment table; `ScreenGeometry::raster` draws the thin segments into
-//! a pixel buffer, and `legend_facts` describes what is drawn for the colour key.
+//! a pixel buffer, at once or a slice at a time (`begin_raster`, `continue_raster`: the same
+//! pixels, spread over animation frames), and `legend_facts` describes what is drawn for the
+//! colour key.
 
 use ramulus_core::network::Network;
 use ramulus_core::segments::SegmentTable;
@@ -41,6 +43,19 @@ pub struct ScreenGeometry {
     /// What `raster` reads of every entry, in an order where neighbours lie close together:
     /// one sequential read per line instead of three scattered ones.
     pub draw_lines: Vec<DrawLine>,
+    /// The raster being drawn a slice at a time (`begin_raster`), if any.
+    raster_job: Option<RasterJob>,
+}
+
+/// A raster begun by `ScreenGeometry::begin_raster`: what it draws with and how far it got.
+#[derive(Clone, Copy, Debug)]
+struct RasterJob {
+    view: RasterView,
+    colouring: Colouring,
+    min_px: f64,
+    max_px: f64,
+    /// The next entry of `draw_lines` to draw.
+    next: usize,
 }
 
 /// One entry as `ScreenGeometry::raster` reads it.
@@ -134,6 +149,7 @@ impl ScreenGeometry {
 
     /// Rebuilds the raster's copy of the entries (`draw_lines`) in spatial order.
     pub(crate) fn rebuild_draw_lines(&mut self) {
+        self.raster_job = None;
         self.draw_lines.clear();
         let ends = &self.ends;
         let midpoints = (0..ends.len() / 4).map(|index| {
@@ -190,7 +206,8 @@ impl ScreenGeometry {
     }
 
     /// Draws every segment whose width on screen, `max(width * scale, min_px)`, is at most
-    /// `max_px` into the pixel buffer over a `background` fill, at opacity `min(1, px)`.
+    /// `max_px` into the pixel buffer over a `background` fill, at opacity `min(1, px)`:
+    /// `begin_raster` then `continue_raster` over every entry.
     pub fn raster(
         &mut self,
         view: RasterView,
@@ -199,10 +216,56 @@ impl ScreenGeometry {
         max_px: f64,
         background: [u8; 3],
     ) -> &[u8] {
+        self.begin_raster(view, colouring, min_px, max_px, background);
+        self.continue_raster(usize::MAX);
+        &self.pixels
+    }
+
+    /// Starts a raster drawn a slice at a time (the page spreads one over several animation
+    /// frames): sizes the pixel buffer, fills it with `background` and computes the colours;
+    /// `continue_raster` then draws the entries. Any raster in progress is dropped. The
+    /// finished buffer equals `raster`'s with the same arguments, byte for byte: the same
+    /// lines are blended in the same order (blending is not commutative, so the order counts).
+    pub fn begin_raster(
+        &mut self,
+        view: RasterView,
+        colouring: Colouring,
+        min_px: f64,
+        max_px: f64,
+        background: [u8; 3],
+    ) {
         let size = view.width as usize * view.height as usize * 4;
         self.pixels.resize(size, 0);
         fill(&mut self.pixels, background);
         self.colour_indices(colouring);
+        self.raster_job = Some(RasterJob {
+            view,
+            colouring,
+            min_px,
+            max_px,
+            next: 0,
+        });
+    }
+
+    /// Draws up to `count` more entries of the raster begun by `begin_raster`; returns how
+    /// many are left (0 once it is finished, or when no raster is in progress: see
+    /// `raster_in_progress`). A refill of the geometry drops the raster in progress.
+    pub fn continue_raster(&mut self, count: usize) -> usize {
+        let Some(job) = self.raster_job else {
+            return 0;
+        };
+        let RasterJob {
+            view,
+            colouring,
+            min_px,
+            max_px,
+            next,
+        } = job;
+        // The colours the raster began with (another colouring may have been asked for since).
+        self.colour_indices(colouring);
+        let end = next.saturating_add(count).min(self.draw_lines.len());
+        let left = self.draw_lines.len() - end;
+        self.raster_job = (left > 0).then_some(RasterJob { next: end, ..job });
         let ScreenGeometry {
             colours,
             palette,
@@ -210,7 +273,7 @@ impl ScreenGeometry {
             draw_lines: entries,
             ..
         } = self;
-        let lines = entries.iter().filter_map(|entry| {
+        let lines = entries[next.min(end)..end].iter().filter_map(|entry| {
             // Comparisons, not `max` and `min`: those are library calls on wasm32.
             let scaled = entry.width as f64 * view.scale;
             let px = if scaled > min_px { scaled } else { min_px };
@@ -229,7 +292,12 @@ impl ScreenGeometry {
             })
         });
         draw_lines(pixels, &view, lines);
-        &self.pixels
+        left
+    }
+
+    /// Whether a raster begun by `begin_raster` still has entries to draw.
+    pub fn raster_in_progress(&self) -> bool {
+        self.raster_job.is_some()
     }
 
     /// What the canvas shows, for its colour key (the canvas draws no root markers).
@@ -289,6 +357,7 @@ impl ScreenGeometry {
         self.segment_count = 0;
         self.colouring = None;
         self.draw_lines.clear();
+        self.raster_job = None;
     }
 }
 
@@ -353,5 +422,74 @@ mod tests {
         let facts = screen.legend_facts(Colouring::ByFlow, "mm");
         assert_eq!(facts.flow_range, Some((1.0, 2.0)));
         assert!(!facts.roots_drawn);
+    }
+
+    /// A raster drawn a slice at a time, in slices of any size, ends with the very pixels of
+    /// one drawn at once, under every colouring. Both blend the same lines in the same order,
+    /// and Wu blending (`raster.rs`) is exact integer arithmetic, so equality is byte for
+    /// byte, with no tolerance. At about two pixels a cell the lines meet at every junction,
+    /// where a different blending order would show.
+    #[test]
+    fn a_raster_drawn_in_slices_equals_one_drawn_at_once() {
+        use ramulus_core::growth::Growth;
+        use ramulus_core::link::decode_link;
+        use ramulus_core::run::width_rule;
+
+        let params = decode_link(
+            "v=1&width=60&height=50&roots=30,48,0,1&cells=2500&joining=weighted\
+             &temperature=0.5&w_turn=1&w_flow=0.5&alpha=0.5&w_path=0.05&seed=5",
+        )
+        .params;
+        let mut growth = Growth::new(&params).unwrap();
+        growth.run();
+        let network = growth.network();
+        let forest = topology_pass(&network).unwrap();
+        let table = widths_pass(
+            &network,
+            forest.as_ref(),
+            &conducting_network(&network),
+            width_rule(&params),
+        );
+        let mut screen = ScreenGeometry::default();
+        screen.fill(&network, &table);
+        // The whole lattice in 120 x 100 pixels: about two pixels a cell.
+        let view = RasterView {
+            width: 130,
+            height: 110,
+            scale: 2.0 / params.domain.cell_size,
+            offset_x: 3.0,
+            offset_y: 4.0,
+        };
+        let background = [255, 253, 248];
+        for colouring in [Colouring::ByOrder, Colouring::ByFlow, Colouring::Plain] {
+            let whole = screen.raster(view, colouring, 0.75, 1.6, background).to_vec();
+            let inked = whole
+                .chunks(4)
+                .filter(|pixel| pixel[..3] != background)
+                .count();
+            assert!(inked > 4000, "{colouring:?}: {inked} pixels inked");
+            for slice in [1usize, 7, 1000, 2498, 2499, 100_000] {
+                screen.begin_raster(view, colouring, 0.75, 1.6, background);
+                let mut left = screen.draw_lines.len();
+                let mut rounds = 0;
+                while screen.raster_in_progress() {
+                    let now = screen.continue_raster(slice);
+                    assert_eq!(now, left - slice.min(left), "entries left");
+                    left = now;
+                    rounds += 1;
+                }
+                assert_eq!(rounds, screen.draw_lines.len().div_ceil(slice));
+                assert!(
+                    screen.pixels == whole,
+                    "{colouring:?}: slices of {slice} differ from one raster"
+                );
+            }
+        }
+        // A refill drops the raster in progress; continuing then draws nothing.
+        screen.begin_raster(view, Colouring::ByOrder, 0.75, 1.6, background);
+        screen.continue_raster(10);
+        screen.fill(&network, &table);
+        assert!(!screen.raster_in_progress());
+        assert_eq!(screen.continue_raster(10), 0);
     }
 }
