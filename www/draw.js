@@ -2,7 +2,10 @@
 // by order, flow or plain, zoom and pan, the scale bar and finding the segment under the
 // pointer. Lines at most RASTER_MAX_PX wide (the great majority of a network's segments) are
 // painted by the core with putImageData; wider ones are stroked by the canvas on top. The
-// scale bar's length and label and the segment search come from the core too.
+// scale bar's length and label and the segment search come from the core too. While a run is
+// animated, `drawPart` spreads one picture over several frames (the core draws the thin lines
+// a slice at a time into its pixel buffer, off screen, and the canvas gets the finished picture,
+// the same pixels as `draw`).
 
 // Draw every line at least this wide in device pixels, so that true-scale veinlets thinner
 // than a pixel stay visible (common practice, no source).
@@ -14,6 +17,8 @@ const BUCKET_COUNT = 48;
 // Lines up to this width in device pixels are rasterised by the core; wider ones are stroked.
 const RASTER_MAX_PX = 1.6;
 const BACKGROUND = 0xfffdf8;
+// The fewest thin lines drawn in one slice of a picture drawn a part at a time.
+const MIN_SLICE_LINES = 512;
 
 export class NetworkView {
   /// `session`: the wasm session (its run and geometry); `colours`: the core's colour scheme.
@@ -32,6 +37,10 @@ export class NetworkView {
     this.sorted = new Uint32Array(0);
     this.lastDrawMs = 0;
     this.pixelRatio = 0; // 0: follow the screen's devicePixelRatio
+    // A picture drawn a part at a time (drawPart): null, or {linesDone, ms} while one is.
+    this.painting = null;
+    this.msPerLine = 1e-4; // thin-line raster, measured
+    this.finishMs = 0; // putting the picture on the canvas and stroking the wide lines, measured
   }
 
   ratio() {
@@ -87,6 +96,7 @@ export class NetworkView {
   /// Draws the whole picture; returns the time it took in milliseconds.
   draw() {
     const started = performance.now();
+    this.painting = null;
     const ctx = this.context;
     ctx.setTransform(1, 0, 0, 1, 0, 0);
     if (this.session.simulation && this.session.count > 0) {
@@ -120,6 +130,67 @@ export class NetworkView {
     return [this.colours.plain];
   }
 
+  /// Draws the picture of the geometry as last refilled a part at a time: each call works
+  /// about `budgetMs` (thin lines in slices sized from their measured cost; the canvas is
+  /// touched only by the last call, which puts the finished picture on it, strokes the wide
+  /// lines and draws the frame and scale bar, as `draw` does). Returns true once the picture
+  /// is on the canvas. A refill (`dropPart`) or a whole `draw` in between starts it over.
+  drawPart(budgetMs) {
+    const started = performance.now();
+    const session = this.session;
+    if (!session.simulation || session.count === 0) {
+      this.draw();
+      return true;
+    }
+    if (!this.painting) {
+      this.resize();
+      session.startThinLines(this.canvas.width, this.canvas.height, this.scale, this.offsetX,
+        this.offsetY, this.colouring, MIN_LINE_PX, RASTER_MAX_PX, BACKGROUND);
+      this.painting = { linesDone: false, left: session.count };
+    }
+    // At least one slice a call, so that every call makes progress.
+    let sliced = false;
+    while (!this.painting.linesDone) {
+      const left = budgetMs - (performance.now() - started);
+      if (sliced && left <= 0.5) return false;
+      sliced = true;
+      const count = Math.max(MIN_SLICE_LINES, Math.floor(left / this.msPerLine));
+      const sliceStart = performance.now();
+      const remaining = session.drawThinLines(count);
+      if (remaining < 0) {
+        // The core dropped the painting (a refill): start it over next time.
+        this.painting = null;
+        return false;
+      }
+      const drawn = this.painting.left - remaining;
+      this.painting.left = remaining;
+      if (drawn > 0) {
+        const perLine = (performance.now() - sliceStart) / drawn;
+        this.msPerLine = 0.7 * this.msPerLine + 0.3 * Math.max(perLine, 1e-6);
+      }
+      if (remaining === 0) this.painting.linesDone = true;
+    }
+    // Finishing goes to the next frame unless it fits in what is left of this one's budget.
+    if (performance.now() - started + this.finishMs > budgetMs && performance.now() - started > 0.5) {
+      return false;
+    }
+    const finishStart = performance.now();
+    const ctx = this.context;
+    ctx.setTransform(1, 0, 0, 1, 0, 0);
+    session.putThinLines(ctx);
+    this.strokeWideLines(ctx);
+    this.drawFrame(ctx);
+    this.drawScaleBar(ctx);
+    this.painting = null;
+    this.finishMs = performance.now() - finishStart;
+    return true;
+  }
+
+  /// Forgets a picture being drawn a part at a time (the geometry has changed).
+  dropPart() {
+    this.painting = null;
+  }
+
   drawSegments(ctx) {
     const w = this.canvas.width;
     const h = this.canvas.height;
@@ -127,6 +198,16 @@ export class NetworkView {
     const ox = this.offsetX;
     const oy = this.offsetY;
     this.session.paintThinLines(ctx, w, h, s, ox, oy, this.colouring, MIN_LINE_PX, RASTER_MAX_PX, BACKGROUND);
+    this.strokeWideLines(ctx);
+  }
+
+  /// Strokes the lines wider than RASTER_MAX_PX over the painted thin ones.
+  strokeWideLines(ctx) {
+    const w = this.canvas.width;
+    const h = this.canvas.height;
+    const s = this.scale;
+    const ox = this.offsetX;
+    const oy = this.offsetY;
     // Fresh views after the painting (which may have grown wasm memory), used before any
     // other wasm call.
     const { colours: colourOf, ends, widths } = this.session.drawingViews(this.colouring);

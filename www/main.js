@@ -22,6 +22,8 @@ const state = {
   // The colour key on the page, as JSON: a key that has not changed is left in place, since
   // rebuilding it at every redraw made the browser lay the page out again before the next.
   shownLegend: null,
+  // The picture being drawn a part at a time while animating: its milliseconds and parts so far.
+  drawing: { ms: 0, parts: 0 },
   /// The current run (the session's), for the page tests.
   get simulation() {
     return this.session?.simulation ?? null;
@@ -42,7 +44,7 @@ async function start() {
   view = new NetworkView(byId('canvas'), state.session, state.colours);
   form = new ParameterForm(byId('form'), byId('param-seed'), schema, commitField);
   runner = new Runner({
-    redraw, refill, draw, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying, failed: onFailure,
+    redraw, refill, draw, drawPart, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying, failed: onFailure,
   });
   window.ramulusPage = { runner, view, state };
 
@@ -205,6 +207,7 @@ function redraw() {
 function refill() {
   const started = performance.now();
   const count = state.session.refill();
+  view.dropPart();
   const refillMs = performance.now() - started;
   runner.record('refills', { refillMs, segments: count });
   return refillMs;
@@ -219,6 +222,22 @@ function draw() {
   const drawMs = performance.now() - started;
   runner.record('drawTimes', { drawMs, segments: state.session.count });
   return drawMs;
+}
+
+/// Works about `budgetMs` on drawing the geometry as last refilled (see NetworkView.drawPart);
+/// returns `{ms, done}`, done once the picture and colour key are on the page.
+function drawPart(budgetMs) {
+  const started = performance.now();
+  const done = view.drawPart(budgetMs);
+  if (done) showLegend();
+  const ms = performance.now() - started;
+  state.drawing.ms += ms;
+  state.drawing.parts += 1;
+  if (done) {
+    runner.record('drawTimes', { drawMs: state.drawing.ms, parts: state.drawing.parts, segments: state.session.count });
+    state.drawing = { ms: 0, parts: 0 };
+  }
+  return { ms, done };
 }
 
 function showProgress() {

@@ -5,6 +5,9 @@
 // Milliseconds of growth per animation frame (of about 16.7 ms at 60 frames a second), which
 // leaves the rest of the frame for drawing and the browser (common practice, no source).
 const STEP_BUDGET_MS = 8;
+// Milliseconds of drawing per animation frame while animating: a picture that takes longer is
+// spread over several frames, and growth gets what drawing leaves of STEP_BUDGET_MS.
+const DRAW_BUDGET_MS = 6;
 // Figures kept per list for the page benchmark (enough for any benchmark run).
 const STATS_KEPT = 100000;
 // Milliseconds of growth between yields when growing without animation.
@@ -12,7 +15,8 @@ const QUIET_CHUNK_MS = 40;
 
 export class Runner {
   /// `hooks`: `redraw()` (refill and draw; returns ms), `refill()` and `draw()` (each
-  /// returns its ms), `progress()`, `paused()`, `finished()`,
+  /// returns its ms), `drawPart(budgetMs)` (works about that long on drawing; returns
+  /// `{ms, done}`), `progress()`, `paused()`, `finished()`,
   /// `playing(bool)`, `failed(error)` (growing or drawing threw; the loop has stopped).
   constructor(hooks) {
     this.hooks = hooks;
@@ -25,7 +29,9 @@ export class Runner {
     this.lastDraw = 0;
     this.drawCostMs = 0;
     this.refillMs = 0;
-    this.drawPending = false; // the geometry is refilled and waits for the next frame's drawing
+    this.drawPending = false; // the geometry is refilled and waits for the coming frames' drawing
+    this.drawingMs = 0; // drawing time so far of the pending picture
+    this.refilledFinished = false; // the pending picture shows the run's last cell
     this.generation = 0;
     this.quiet = false; // growing to the end without drawing (see growQuietly)
     this.stats = freshStats();
@@ -53,6 +59,7 @@ export class Runner {
   play() {
     if (!this.simulation || this.simulation.finished() || this.quiet) return;
     this.drawPending = false;
+    this.drawingMs = 0;
     this.refillMs = 0;
     this.playingNow = true;
     this.hooks.playing(true);
@@ -111,26 +118,34 @@ export class Runner {
     });
   }
 
-  /// One animation frame. A redraw is spread over two frames, the geometry refill in one and
-  /// the drawing in the next, and growth gets what the drawing leaves of its budget, so that
-  /// no frame carries growth, refill and drawing together.
+  /// One animation frame. A redraw is spread over several frames, the geometry refill in one
+  /// and the drawing in the next ones (DRAW_BUDGET_MS each), and growth gets what the drawing
+  /// leaves of its budget, so that no frame carries growth, refill and drawing together.
   tick(now, generation) {
     if (!this.playingNow || generation !== this.generation) return;
     const simulation = this.simulation;
     const frameStart = performance.now();
     let growthBudget = STEP_BUDGET_MS;
     if (this.drawPending) {
-      this.drawPending = false;
-      const drawMs = this.hooks.draw();
-      this.drawCostMs = this.refillMs + drawMs;
-      this.lastDraw = performance.now();
-      this.stats.draws += 1;
-      growthBudget -= drawMs;
-      if (simulation.finished()) {
-        this.endFrame(frameStart, simulation);
-        this.stop();
-        this.hooks.finished();
-        return;
+      // Test hook (tests/e2e/frames.test.mjs): a smaller budget, so pictures take many parts.
+      const budget = globalThis.ramulusTestHooks?.drawBudgetMs ?? DRAW_BUDGET_MS;
+      const { ms, done } = this.hooks.drawPart(budget);
+      this.drawingMs += ms;
+      growthBudget -= ms;
+      if (done) {
+        this.drawPending = false;
+        this.drawCostMs = this.refillMs + this.drawingMs;
+        this.drawingMs = 0;
+        this.lastDraw = performance.now();
+        this.stats.draws += 1;
+        // Growth goes on while a picture is drawn: the run has ended on screen only when the
+        // geometry drawn was refilled after the last cell.
+        if (this.refilledFinished) {
+          this.endFrame(frameStart, simulation);
+          this.stop();
+          this.hooks.finished();
+          return;
+        }
       }
     }
     // Redraw when drawing has had its share (at most a third of the time goes to it): this
@@ -170,6 +185,7 @@ export class Runner {
     if (this.stats.firstTick === 0) this.stats.firstTick = frameStart;
     this.stats.lastTick = performance.now();
     if (refillNow) {
+      this.refilledFinished = simulation.finished();
       this.refillMs = this.hooks.refill();
       this.drawPending = true;
     } else if (simulation.finished()) {

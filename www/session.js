@@ -84,6 +84,23 @@ export class Session {
     this.simulation.paint_thin_lines(context, width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background);
   }
 
+  /// Starts painting the thin lines a slice at a time (arguments as paintThinLines, without
+  /// the context): see Simulation.start_thin_lines.
+  startThinLines(width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background) {
+    this.simulation.start_thin_lines(width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background);
+  }
+
+  /// Draws up to `count` more thin lines; returns how many are left, or -1 when no painting
+  /// is in progress (a refill dropped it).
+  drawThinLines(count) {
+    return this.simulation.draw_thin_lines(count);
+  }
+
+  /// Puts the painted thin lines onto `context`'s canvas.
+  putThinLines(context) {
+    this.simulation.put_thin_lines(context);
+  }
+
   /// The colour key of the canvas: `[{pieces: [{line: '#rrggbb'} | 'circle' | {text}]}]`.
   legend(colouring) {
     return this.simulation ? JSON.parse(this.simulation.legend_json(colouring)) : [];

@@ -45,6 +45,8 @@ pub struct ScreenGeometry {
     pub draw_lines: Vec<DrawLine>,
     /// The raster being drawn a slice at a time (`begin_raster`), if any.
     raster_job: Option<RasterJob>,
+    /// The view `pixels` were last begun with.
+    pixels_view: Option<RasterView>,
 }
 
 /// A raster begun by `ScreenGeometry::begin_raster`: what it draws with and how far it got.
@@ -238,6 +240,7 @@ impl ScreenGeometry {
         self.pixels.resize(size, 0);
         fill(&mut self.pixels, background);
         self.colour_indices(colouring);
+        self.pixels_view = Some(view);
         self.raster_job = Some(RasterJob {
             view,
             colouring,
@@ -293,6 +296,11 @@ impl ScreenGeometry {
         });
         draw_lines(pixels, &view, lines);
         left
+    }
+
+    /// The view of the last raster begun (the size of `pixels`), `None` before the first.
+    pub fn raster_view(&self) -> Option<RasterView> {
+        self.pixels_view
     }
 
     /// Whether a raster begun by `begin_raster` still has entries to draw.

@@ -406,11 +406,35 @@ impl Simulation {
     /// Paints the thin segments (on-screen width at most `max_px`) over the `background`
     /// colour (0xRRGGBB) into the whole of `context`'s canvas, `width` x `height` pixels, with
     /// `putImageData`; pixel = coordinate * `scale` + offset. Wider segments are left for the
-    /// page to stroke on top.
+    /// page to stroke on top. The same as `start_thin_lines`, `draw_thin_lines` over every
+    /// entry and `put_thin_lines`.
     #[allow(clippy::too_many_arguments)]
     pub fn paint_thin_lines(
         &mut self,
         context: &CanvasRenderingContext2d,
+        width: u32,
+        height: u32,
+        scale: f64,
+        offset_x: f64,
+        offset_y: f64,
+        colouring: &str,
+        min_px: f64,
+        max_px: f64,
+        background: u32,
+    ) -> Result<(), JsError> {
+        self.start_thin_lines(
+            width, height, scale, offset_x, offset_y, colouring, min_px, max_px, background,
+        )?;
+        self.geometry.continue_raster(usize::MAX);
+        self.put_thin_lines(context)
+    }
+
+    /// Starts painting the thin segments a slice at a time (arguments as `paint_thin_lines`):
+    /// fills the pixel buffer with the background; `draw_thin_lines` draws the segments and
+    /// `put_thin_lines` shows the result. Drops any painting in progress; so does a refill.
+    #[allow(clippy::too_many_arguments)]
+    pub fn start_thin_lines(
+        &mut self,
         width: u32,
         height: u32,
         scale: f64,
@@ -434,9 +458,34 @@ impl Simulation {
             (background >> 8) as u8,
             background as u8,
         ];
-        let pixels = self.geometry.raster(view, colouring, min_px, max_px, rgb);
-        let image = ImageData::new_with_u8_clamped_array_and_sh(Clamped(pixels), width, height)
-            .map_err(|_| JsError::new("the canvas refused an image of this size"))?;
+        self.geometry
+            .begin_raster(view, colouring, min_px, max_px, rgb);
+        Ok(())
+    }
+
+    /// Draws up to `count` more segments of the painting begun by `start_thin_lines`; returns
+    /// how many are left, 0 when it is finished, or -1 when no painting is in progress (never
+    /// started, or dropped by a refill or another painting).
+    pub fn draw_thin_lines(&mut self, count: u32) -> i32 {
+        if !self.geometry.raster_in_progress() {
+            return -1;
+        }
+        self.geometry.continue_raster(count as usize).min(i32::MAX as usize) as i32
+    }
+
+    /// Puts the pixel buffer as last drawn onto the whole of `context`'s canvas with
+    /// `putImageData` (the image reads wasm memory in place; the canvas copies it).
+    pub fn put_thin_lines(&self, context: &CanvasRenderingContext2d) -> Result<(), JsError> {
+        let view = self
+            .geometry
+            .raster_view()
+            .ok_or_else(|| JsError::new("no thin lines painted yet"))?;
+        let image = ImageData::new_with_u8_clamped_array_and_sh(
+            Clamped(&self.geometry.pixels),
+            view.width,
+            view.height,
+        )
+        .map_err(|_| JsError::new("the canvas refused an image of this size"))?;
         context
             .put_image_data(&image, 0.0, 0.0)
             .map_err(|_| JsError::new("the canvas refused the drawing"))
