@@ -1,7 +1,8 @@
 //! `ramulus bench`: growth speed and memory figures (cells per second, peak bytes per cell,
 //! scaling between sizes), measured with a counting global allocator; the whole work of
 //! `grow --json` on the cheapest-first lattice beside two general minimum-spanning-tree codes
-//! on the same points (petgraph's, and a plain binary-heap Prim), in alternating rounds.
+//! on the same points (petgraph's, and a plain binary-heap Prim), in alternating rounds; and
+//! the whole work of `grow --json` on the full cost model, phase by phase.
 //! Prints figures; it never fails on slowness.
 
 use ramulus_core::params::{CostWeights, Domain, RunControl};
@@ -201,7 +202,64 @@ pub fn run(options: BenchOptions) -> Result<(), CliError> {
         large.seconds / small.seconds
     );
     pipeline_figures()?;
+    full_model_command_figures(if quick { 25_000 } else { 100_000 }, 5)?;
     spanning_tree_figures(side, 3)
+}
+
+/// Where the whole work of `ramulus grow --json` goes on the full cost model, phase by phase,
+/// over `rounds` rounds (min-max): setting up the lattice (`Growth::new`), growth, handing
+/// the network over, the pipeline after growth (topology, widths, metrics, digest) and the
+/// JSON text. Process start and printing are not included.
+fn full_model_command_figures(cells: u64, rounds: usize) -> Result<(), CliError> {
+    let params = full_model(cells);
+    let names = [
+        "set-up (Growth::new: lattice, jitter, frontier)",
+        "growth (Growth::run)",
+        "network handed over (Growth::network)",
+        "pipeline (topology, widths, metrics, digest)",
+        "JSON text",
+        "whole",
+    ];
+    let mut times: Vec<Vec<f64>> = vec![Vec::new(); names.len()];
+    for _ in 0..rounds {
+        let start = Instant::now();
+        let mut growth =
+            Growth::new(&params).map_err(|error| CliError::Failed(error.to_string()))?;
+        let set_up = start.elapsed().as_secs_f64();
+        let stopped = growth.run();
+        let grown = start.elapsed().as_secs_f64();
+        let cell_count = growth.cell_count();
+        let network = growth.network();
+        drop(growth);
+        let handed = start.elapsed().as_secs_f64();
+        let view = ramulus_core::run::RunView::new(network, &params)
+            .map_err(|error| CliError::Failed(error.to_string()))?;
+        let piped = start.elapsed().as_secs_f64();
+        let text = crate::commands::grow_json(
+            &view,
+            &params,
+            cell_count,
+            stopped,
+            crate::options::DEFAULT_PAGE,
+        )
+        .to_string();
+        std::hint::black_box(text);
+        let whole = start.elapsed().as_secs_f64();
+        let marks = [set_up, grown, handed, piped, whole];
+        let mut last = 0.0;
+        for (phase, &mark) in marks.iter().enumerate() {
+            times[phase].push(mark - last);
+            last = mark;
+        }
+        times[names.len() - 1].push(whole);
+    }
+    say!("full cost model, {cells} cells, whole work of grow --json by phase, {rounds} rounds (min-max):");
+    for (name, times) in names.iter().zip(&times) {
+        let fastest = times.iter().copied().fold(f64::INFINITY, f64::min);
+        let slowest = times.iter().copied().fold(0.0, f64::max);
+        say!("  {name:<50} {:>7.1}-{:.1} ms", fastest * 1e3, slowest * 1e3);
+    }
+    Ok(())
 }
 
 /// Times, in `rounds` alternating rounds, the whole work of `ramulus grow --json` on the
