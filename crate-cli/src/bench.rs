@@ -257,7 +257,11 @@ fn full_model_command_figures(cells: u64, rounds: usize) -> Result<(), CliError>
     for (name, times) in names.iter().zip(&times) {
         let fastest = times.iter().copied().fold(f64::INFINITY, f64::min);
         let slowest = times.iter().copied().fold(0.0, f64::max);
-        say!("  {name:<50} {:>7.1}-{:.1} ms", fastest * 1e3, slowest * 1e3);
+        say!(
+            "  {name:<50} {:>7.1}-{:.1} ms",
+            fastest * 1e3,
+            slowest * 1e3
+        );
     }
     Ok(())
 }

@@ -470,7 +470,9 @@ mod tests {
         };
         let background = [255, 253, 248];
         for colouring in [Colouring::ByOrder, Colouring::ByFlow, Colouring::Plain] {
-            let whole = screen.raster(view, colouring, 0.75, 1.6, background).to_vec();
+            let whole = screen
+                .raster(view, colouring, 0.75, 1.6, background)
+                .to_vec();
             let inked = whole
                 .chunks(4)
                 .filter(|pixel| pixel[..3] != background)

@@ -470,7 +470,9 @@ impl Simulation {
         if !self.geometry.raster_in_progress() {
             return -1;
         }
-        self.geometry.continue_raster(count as usize).min(i32::MAX as usize) as i32
+        self.geometry
+            .continue_raster(count as usize)
+            .min(i32::MAX as usize) as i32
     }
 
     /// Puts the pixel buffer as last drawn onto the whole of `context`'s canvas with
