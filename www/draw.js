@@ -2,7 +2,8 @@
 // by order, flow or plain, zoom and pan, the scale bar and finding the segment under the
 // pointer. Lines at most RASTER_MAX_PX wide (the great majority of a network's segments) are
 // painted by the core with putImageData; wider ones are stroked by the canvas on top. The
-// scale bar's length and label and the segment search come from the core too.
+// scale bar's length and label and the segment search come from the core too. Fit frames the
+// network's extent (the core's marks) with a margin; every root gets a ring.
 
 // Draw every line at least this wide in device pixels, so that true-scale veinlets thinner
 // than a pixel stay visible (common practice, no source).
@@ -14,6 +15,11 @@ const BUCKET_COUNT = 48;
 // Lines up to this width in device pixels are rasterised by the core; wider ones are stroked.
 const RASTER_MAX_PX = 1.6;
 const BACKGROUND = 0xfffdf8;
+// Free canvas on each side of a fitted view, as a fraction of its width or height (room for
+// the root markers, the zoom buttons and the scale bar; common practice, no source).
+const FIT_MARGIN = 0.06;
+// Root marker radius in CSS pixels (its colours are the core's, as in the SVG export).
+const ROOT_RADIUS_PX = 5;
 
 export class NetworkView {
   /// `session`: the wasm session (its run and geometry); `colours`: the core's colour scheme.
@@ -27,6 +33,10 @@ export class NetworkView {
     this.offsetX = 0; // device pixels
     this.offsetY = 0;
     this.fitted = true;
+    // What Fit frames: [x0, y0, x1, y1] of the network (the core's marks), or null for the
+    // whole lattice; and where the roots are marked.
+    this.fitBounds = null;
+    this.roots = [];
     this.colouring = 'order';
     this.keys = new Uint16Array(0);
     this.sorted = new Uint32Array(0);
@@ -41,6 +51,8 @@ export class NetworkView {
   /// Sets the physical frame `{width, height, units, ...}` of the lattice.
   setFrame(frame) {
     this.frame = frame;
+    this.fitBounds = null;
+    this.roots = [];
     if (this.fitted) this.fit();
   }
 
@@ -56,15 +68,25 @@ export class NetworkView {
     }
   }
 
-  /// Zooms so the whole lattice shows, centred.
+  /// Fits the view to `bounds` ([x0, y0, x1, y1] of the network, or null for the lattice)
+  /// from now on, until the next run.
+  fitTo(bounds) {
+    this.fitBounds = bounds;
+    this.fit();
+  }
+
+  /// Zooms so the network (or, before it has grown, the whole lattice) shows, centred, with
+  /// FIT_MARGIN of the canvas free on each side.
   fit() {
-    const margin = 0.04;
-    const { width, height } = this.frame;
+    const margin = FIT_MARGIN;
+    const [x0, y0, x1, y1] = this.fitBounds ?? [0, 0, this.frame.width, this.frame.height];
+    const width = x1 - x0;
+    const height = y1 - y0;
     const sx = (this.canvas.width * (1 - 2 * margin)) / Math.max(width, 1e-12);
     const sy = (this.canvas.height * (1 - 2 * margin)) / Math.max(height, 1e-12);
     this.scale = Math.min(sx, sy);
-    this.offsetX = (this.canvas.width - width * this.scale) / 2;
-    this.offsetY = (this.canvas.height - height * this.scale) / 2;
+    this.offsetX = (this.canvas.width - width * this.scale) / 2 - x0 * this.scale;
+    this.offsetY = (this.canvas.height - height * this.scale) / 2 - y0 * this.scale;
     this.fitted = true;
   }
 
@@ -96,6 +118,7 @@ export class NetworkView {
       ctx.fillRect(0, 0, this.canvas.width, this.canvas.height);
     }
     this.drawFrame(ctx);
+    this.drawRoots(ctx);
     this.drawScaleBar(ctx);
     this.lastDrawMs = performance.now() - started;
     return this.lastDrawMs;
@@ -179,6 +202,21 @@ export class NetworkView {
         ctx.moveTo(ends[4 * i] * s + ox, ends[4 * i + 1] * s + oy);
         ctx.lineTo(ends[4 * i + 2] * s + ox, ends[4 * i + 3] * s + oy);
       }
+      ctx.stroke();
+    }
+  }
+
+  /// A ring on every root (petiole or outlet), the marker of the colour key.
+  drawRoots(ctx) {
+    if (!this.session.simulation || this.roots.length === 0) return;
+    const ratio = this.ratio();
+    ctx.lineWidth = 2 * ratio;
+    ctx.strokeStyle = this.colours.root_ring;
+    ctx.fillStyle = this.colours.root_fill;
+    for (const [x, y] of this.roots) {
+      ctx.beginPath();
+      ctx.arc(x * this.scale + this.offsetX, y * this.scale + this.offsetY, ROOT_RADIUS_PX * ratio, 0, 2 * Math.PI);
+      ctx.fill();
       ctx.stroke();
     }
   }

@@ -7,7 +7,7 @@ const STORE = 'kept';
 const RECORD_KEY = 'last-opened-record';
 const PNG_LONG_SIDE = 2400;
 
-/// Offers `text` or a Blob as a file download.
+/// Offers `text` or a Blob as a file download; returns its size in bytes.
 export function download(name, content, type) {
   const blob = content instanceof Blob ? content : new Blob([content], { type });
   const url = URL.createObjectURL(blob);
@@ -18,6 +18,7 @@ export function download(name, content, type) {
   anchor.click();
   anchor.remove();
   setTimeout(() => URL.revokeObjectURL(url), 10000);
+  return blob.size;
 }
 
 /// Draws the whole lattice at a fixed size on a white page, with the caution for sites, and

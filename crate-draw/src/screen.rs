@@ -232,7 +232,7 @@ impl ScreenGeometry {
         &self.pixels
     }
 
-    /// What the canvas shows, for its colour key (the canvas draws no root markers).
+    /// What the canvas shows, for its colour key (the page marks every root, see `marks`).
     pub fn legend_facts<'a>(&self, colouring: Colouring, units: &'a str) -> LegendFacts<'a> {
         let (low, high) = self.flow_range;
         LegendFacts {
@@ -240,7 +240,7 @@ impl ScreenGeometry {
             max_order: self.max_order,
             flow_range: (high > 0.0).then_some((low, high)),
             segment_count: self.segment_count,
-            roots_drawn: false,
+            roots_drawn: true,
             units,
         }
     }
@@ -352,6 +352,6 @@ mod tests {
         assert_eq!(screen.segment_at(1.5, 0.4, 0.3), None);
         let facts = screen.legend_facts(Colouring::ByFlow, "mm");
         assert_eq!(facts.flow_range, Some((1.0, 2.0)));
-        assert!(!facts.roots_drawn);
+        assert!(facts.roots_drawn);
     }
 }
