@@ -379,3 +379,25 @@ for (const width of [1400, 420]) {
     await page.close();
   });
 }
+
+test('under the Content-Security-Policy the page works and an inline script does not run', async () => {
+  const page = await openAt(1400);
+  const policy = await page.getAttribute('meta[http-equiv="Content-Security-Policy"]', 'content');
+  assert.match(policy, /script-src 'self' 'wasm-unsafe-eval'(;|$)/);
+  assert.doesNotMatch(policy, /unsafe-inline|https?:/);
+  // The page grew its first leaf under the policy (openAt waited for the digest) with no
+  // console error, which a blocked module or wasm compile would have logged.
+  assert.deepEqual(page.errors, []);
+  const outcome = await page.evaluate(() => new Promise((resolve) => {
+    document.addEventListener('securitypolicyviolation', (event) => {
+      resolve({ ran: window.injectedScriptRan === true, blocked: event.violatedDirective });
+    }, { once: true });
+    const script = document.createElement('script');
+    script.textContent = 'window.injectedScriptRan = true;';
+    document.body.append(script);
+    setTimeout(() => resolve({ ran: window.injectedScriptRan === true, blocked: '' }), 2000);
+  }));
+  assert.equal(outcome.ran, false, 'the inline script did not run');
+  assert.match(outcome.blocked, /^script-src/);
+  await page.close();
+});
