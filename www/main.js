@@ -23,6 +23,8 @@ const state = {
   // The colour key on the page, as JSON: a key that has not changed is left in place, since
   // rebuilding it at every redraw made the browser lay the page out again before the next.
   shownLegend: null,
+  // page-ux: [x0, y0, x1, y1] of the network that Fit frames, or null for the lattice.
+  networkBounds: null,
   /// The current run (the session's), for the page tests.
   get simulation() {
     return this.session?.simulation ?? null;
@@ -269,7 +271,8 @@ function fitNetwork() {
 // ---- end page-ux ----------------------------------------------------------------------------
 
 function onPaused() {
-  showMarks(true);
+  // The marks only: a paused run may grow on, past a view fitted to it now.
+  showMarks(false);
   showReadingsNow();
   byId('digest').textContent = 'paused (the digest is shown when the run ends)';
   setExports(true);
