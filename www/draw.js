@@ -18,6 +18,9 @@ const BACKGROUND = 0xfffdf8;
 // Free canvas on each side of a fitted view, as a fraction of its width or height (room for
 // the root markers, the zoom buttons and the scale bar; common practice, no source).
 const FIT_MARGIN = 0.06;
+// Height in CSS pixels kept free for the scale bar under a fitted view (it is drawn 18 px
+// above the bottom, its label 20 px higher).
+const SCALE_BAR_BAND_PX = 40;
 // Root marker radius in CSS pixels (its colours are the core's, as in the SVG export).
 const ROOT_RADIUS_PX = 5;
 
@@ -82,11 +85,14 @@ export class NetworkView {
     const [x0, y0, x1, y1] = this.fitBounds ?? [0, 0, this.frame.width, this.frame.height];
     const width = x1 - x0;
     const height = y1 - y0;
+    // The scale bar keeps a band of its own at the bottom.
+    const band = Math.min(SCALE_BAR_BAND_PX * this.ratio(), this.canvas.height / 4);
+    const tall = this.canvas.height - band;
     const sx = (this.canvas.width * (1 - 2 * margin)) / Math.max(width, 1e-12);
-    const sy = (this.canvas.height * (1 - 2 * margin)) / Math.max(height, 1e-12);
+    const sy = (tall * (1 - 2 * margin)) / Math.max(height, 1e-12);
     this.scale = Math.min(sx, sy);
     this.offsetX = (this.canvas.width - width * this.scale) / 2 - x0 * this.scale;
-    this.offsetY = (this.canvas.height - height * this.scale) / 2 - y0 * this.scale;
+    this.offsetY = (tall - height * this.scale) / 2 - y0 * this.scale;
     this.fitted = true;
   }
 
