@@ -534,7 +534,7 @@ function wireKeep() {
   byId('save-png').addEventListener('click', () => {
     const caution = state.frame.site ? core.site_caution() : '';
     const file = name('png');
-    renderPng(state.session, state.frame, state.colours, view.colouring, caution)
+    renderPng(state.session, state.frame, state.colours, view.colouring, caution, view.roots)
       .then((blob) => saved(file, 'picture', download(file, blob)))
       .catch((error) => notice(`PNG export failed: ${messageOf(error)}`));
   });

@@ -49,7 +49,7 @@ pub fn presets() -> Vec<Preset> {
         },
         Preset {
             name: "spanning-tree",
-            title: "Shortest connecting tree (reference)",
+            title: "Shortest tree (reference)",
             description: "cheapest-first pure length without jitter: Prim's minimum spanning tree",
             params: spanning_tree(),
         },

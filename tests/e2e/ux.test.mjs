@@ -75,14 +75,14 @@ function overflowsIn(page) {
         problems.push(`${name(element)} cuts its text: ${element.scrollWidth} > ${element.clientWidth}`);
       }
       if (element.tagName === 'SELECT') {
-        // The chosen option's text, in the select's font, must fit beside the arrow (about 18 px).
+        // The chosen option's text, in the select's font, must fit beside the arrow and padding (about 22 px).
         const probe = document.createElement('span');
         probe.style.font = style.font;
         probe.style.position = 'absolute';
         probe.style.whiteSpace = 'pre';
         probe.textContent = element.selectedOptions[0]?.textContent ?? '';
         document.body.append(probe);
-        const needed = probe.getBoundingClientRect().width + 18;
+        const needed = probe.getBoundingClientRect().width + 22;
         probe.remove();
         if (needed > box.width + 1) problems.push(`${name(element)} cuts its option: needs ${needed.toFixed(0)} px, has ${box.width.toFixed(0)}`);
       }
