@@ -6,6 +6,8 @@
 // animated, `drawPart` spreads one picture over several frames (the core draws the thin lines
 // a slice at a time into its pixel buffer, off screen, and the canvas gets the finished picture,
 // the same pixels as `draw`).
+// scale bar's length and label and the segment search come from the core too. Fit frames the
+// network's extent (the core's marks) with a margin; every root gets a ring.
 
 // Draw every line at least this wide in device pixels, so that true-scale veinlets thinner
 // than a pixel stay visible (common practice, no source).
@@ -19,6 +21,14 @@ const RASTER_MAX_PX = 1.6;
 const BACKGROUND = 0xfffdf8;
 // The fewest thin lines drawn in one slice of a picture drawn a part at a time.
 const MIN_SLICE_LINES = 512;
+// Free canvas on each side of a fitted view, as a fraction of its width or height (room for
+// the root markers, the zoom buttons and the scale bar; common practice, no source).
+const FIT_MARGIN = 0.06;
+// Height in CSS pixels kept free for the scale bar under a fitted view (it is drawn 18 px
+// above the bottom, its label 20 px higher).
+const SCALE_BAR_BAND_PX = 40;
+// Root marker radius in CSS pixels (its colours are the core's, as in the SVG export).
+const ROOT_RADIUS_PX = 5;
 
 export class NetworkView {
   /// `session`: the wasm session (its run and geometry); `colours`: the core's colour scheme.
@@ -32,6 +42,10 @@ export class NetworkView {
     this.offsetX = 0; // device pixels
     this.offsetY = 0;
     this.fitted = true;
+    // What Fit frames: [x0, y0, x1, y1] of the network (the core's marks), or null for the
+    // whole lattice; and where the roots are marked.
+    this.fitBounds = null;
+    this.roots = [];
     this.colouring = 'order';
     this.keys = new Uint16Array(0);
     this.sorted = new Uint32Array(0);
@@ -50,6 +64,8 @@ export class NetworkView {
   /// Sets the physical frame `{width, height, units, ...}` of the lattice.
   setFrame(frame) {
     this.frame = frame;
+    this.fitBounds = null;
+    this.roots = [];
     if (this.fitted) this.fit();
   }
 
@@ -65,15 +81,28 @@ export class NetworkView {
     }
   }
 
-  /// Zooms so the whole lattice shows, centred.
+  /// Fits the view to `bounds` ([x0, y0, x1, y1] of the network, or null for the lattice)
+  /// from now on, until the next run.
+  fitTo(bounds) {
+    this.fitBounds = bounds;
+    this.fit();
+  }
+
+  /// Zooms so the network (or, before it has grown, the whole lattice) shows, centred, with
+  /// FIT_MARGIN of the canvas free on each side.
   fit() {
-    const margin = 0.04;
-    const { width, height } = this.frame;
+    const margin = FIT_MARGIN;
+    const [x0, y0, x1, y1] = this.fitBounds ?? [0, 0, this.frame.width, this.frame.height];
+    const width = x1 - x0;
+    const height = y1 - y0;
+    // The scale bar keeps a band of its own at the bottom.
+    const band = Math.min(SCALE_BAR_BAND_PX * this.ratio(), this.canvas.height / 4);
+    const tall = this.canvas.height - band;
     const sx = (this.canvas.width * (1 - 2 * margin)) / Math.max(width, 1e-12);
-    const sy = (this.canvas.height * (1 - 2 * margin)) / Math.max(height, 1e-12);
+    const sy = (tall * (1 - 2 * margin)) / Math.max(height, 1e-12);
     this.scale = Math.min(sx, sy);
-    this.offsetX = (this.canvas.width - width * this.scale) / 2;
-    this.offsetY = (this.canvas.height - height * this.scale) / 2;
+    this.offsetX = (this.canvas.width - width * this.scale) / 2 - x0 * this.scale;
+    this.offsetY = (tall - height * this.scale) / 2 - y0 * this.scale;
     this.fitted = true;
   }
 
@@ -106,6 +135,7 @@ export class NetworkView {
       ctx.fillRect(0, 0, this.canvas.width, this.canvas.height);
     }
     this.drawFrame(ctx);
+    this.drawRoots(ctx);
     this.drawScaleBar(ctx);
     this.lastDrawMs = performance.now() - started;
     return this.lastDrawMs;
@@ -133,7 +163,7 @@ export class NetworkView {
   /// Draws the picture of the geometry as last refilled a part at a time: each call works
   /// about `budgetMs` (thin lines in slices sized from their measured cost; the canvas is
   /// touched only by the last call, which puts the finished picture on it, strokes the wide
-  /// lines and draws the frame and scale bar, as `draw` does). Returns true once the picture
+  /// lines and draws the frame, root rings and scale bar, as `draw` does). Returns true once the picture
   /// is on the canvas. A refill (`dropPart`) or a whole `draw` in between starts it over.
   drawPart(budgetMs) {
     const started = performance.now();
@@ -180,6 +210,7 @@ export class NetworkView {
     session.putThinLines(ctx);
     this.strokeWideLines(ctx);
     this.drawFrame(ctx);
+    this.drawRoots(ctx);
     this.drawScaleBar(ctx);
     this.painting = null;
     this.finishMs = performance.now() - finishStart;
@@ -260,6 +291,21 @@ export class NetworkView {
         ctx.moveTo(ends[4 * i] * s + ox, ends[4 * i + 1] * s + oy);
         ctx.lineTo(ends[4 * i + 2] * s + ox, ends[4 * i + 3] * s + oy);
       }
+      ctx.stroke();
+    }
+  }
+
+  /// A ring on every root (petiole or outlet), the marker of the colour key.
+  drawRoots(ctx) {
+    if (!this.session.simulation || this.roots.length === 0) return;
+    const ratio = this.ratio();
+    ctx.lineWidth = 2 * ratio;
+    ctx.strokeStyle = this.colours.root_ring;
+    ctx.fillStyle = this.colours.root_fill;
+    for (const [x, y] of this.roots) {
+      ctx.beginPath();
+      ctx.arc(x * this.scale + this.offsetX, y * this.scale + this.offsetY, ROOT_RADIUS_PX * ratio, 0, 2 * Math.PI);
+      ctx.fill();
       ctx.stroke();
     }
   }

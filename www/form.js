@@ -88,7 +88,9 @@ export class ParameterForm {
     const help = document.createElement('p');
     help.className = 'hint';
     help.id = `help-${spec.key}`;
-    help.textContent = `${spec.help} Allowed: ${spec.allowed}.`;
+    // The plain help line; the allowed range shows on hover and in any error message.
+    help.textContent = spec.help;
+    input.title = `Allowed: ${spec.allowed}.`;
     const error = document.createElement('p');
     error.className = 'field-error';
     error.id = `error-${spec.key}`;

@@ -7,7 +7,7 @@ const STORE = 'kept';
 const RECORD_KEY = 'last-opened-record';
 const PNG_LONG_SIDE = 2400;
 
-/// Offers `text` or a Blob as a file download.
+/// Offers `text` or a Blob as a file download; returns its size in bytes.
 export function download(name, content, type) {
   const blob = content instanceof Blob ? content : new Blob([content], { type });
   const url = URL.createObjectURL(blob);
@@ -18,11 +18,13 @@ export function download(name, content, type) {
   anchor.click();
   anchor.remove();
   setTimeout(() => URL.revokeObjectURL(url), 10000);
+  return blob.size;
 }
 
 /// Draws the whole lattice at a fixed size on a white page, with the caution for sites, and
 /// resolves to a PNG Blob.
-export function renderPng(session, frame, colours, colouring, caution) {
+/// `roots`: the [x, y] of each root, ringed as on the canvas.
+export function renderPng(session, frame, colours, colouring, caution, roots = []) {
   const aspect = frame.height / Math.max(frame.width, 1e-12);
   const width = aspect > 1 ? Math.round(PNG_LONG_SIDE / aspect) : PNG_LONG_SIDE;
   const drawingHeight = aspect > 1 ? PNG_LONG_SIDE : Math.round(PNG_LONG_SIDE * aspect);
@@ -37,6 +39,7 @@ export function renderPng(session, frame, colours, colouring, caution) {
   view.pixelRatio = 2.5;
   view.colouring = colouring;
   view.setFrame(frame);
+  view.roots = roots;
   view.fit();
   view.draw();
   const ctx = canvas.getContext('2d');

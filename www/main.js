@@ -4,6 +4,7 @@
 // the run comes from Rust through the session (session.js).
 import { NetworkView } from './draw.js';
 import { ParameterForm } from './form.js';
+import { showGuide } from './guide.js';
 import { download, forgetRecord, keepRecord, keptRecord, renderPng } from './keep.js';
 import { clearReadings, showReadings } from './readings.js';
 import { Runner } from './runner.js';
@@ -24,6 +25,8 @@ const state = {
   shownLegend: null,
   // The picture being drawn a part at a time while animating: its milliseconds and parts so far.
   drawing: { ms: 0, parts: 0 },
+  // page-ux: [x0, y0, x1, y1] of the network that Fit frames, or null for the lattice.
+  networkBounds: null,
   /// The current run (the session's), for the page tests.
   get simulation() {
     return this.session?.simulation ?? null;
@@ -49,6 +52,9 @@ async function start() {
   window.ramulusPage = { runner, view, state };
 
   fillStartList();
+  // page-ux: the guide, and the image-mask upload beside the mask field it sets.
+  showGuide(byId('guide'), byId('guide-close'));
+  byId('param-mask')?.closest('.field-block')?.after(byId('mask-file-row'));
   wireControls();
   wireCanvas();
   wireKeep();
@@ -155,11 +161,13 @@ function startRun(simulation = null) {
   state.frame = JSON.parse(state.simulation.frame_json());
   view.setFrame(state.frame);
   view.fit();
+  showMarks(false);
   showCaution(state.frame.site);
   byId('digest').textContent = 'growing…';
   byId('digest-note').textContent = '';
   clearReadings('Readings appear when growth pauses or ends.');
   setExports(false);
+  byId('saved').textContent = '';
   const mode = byId('animate').checked ? 'animate' : 'quiet';
   runner.guarded(() => {
     runner.start(state.simulation, mode);
@@ -169,6 +177,7 @@ function startRun(simulation = null) {
 
 /// No run on the canvas: `message` says why, in the notices; the form and link stay as set.
 function showNoRun(message) {
+  state.networkBounds = null;
   runner.clear();
   state.session.setSimulation(null);
   notice(message);
@@ -245,12 +254,44 @@ function showProgress() {
   if (!simulation) return;
   const cells = simulation.cells();
   const budget = simulation.budget();
+  // A finished run fills the bar, also when it stopped before its budget (the text says why).
+  const finished = simulation.finished();
   byId('progress').max = budget;
-  byId('progress').value = cells;
+  byId('progress').value = finished ? budget : cells;
   byId('progress-text').textContent = state.session.progressText();
 }
 
+// ---- page-ux: framing and root markers ----------------------------------------------------
+
+/// Reads the network's extent and roots from the core; with `refit`, a view the user has not
+/// zoomed or panned is fitted to the network.
+function showMarks(refit) {
+  if (!state.simulation) return;
+  const marks = JSON.parse(state.simulation.marks_json());
+  view.roots = marks.roots;
+  state.networkBounds = framedBounds(marks.bounds);
+  if (refit && view.fitted) view.fitTo(state.networkBounds);
+  view.draw();
+}
+
+/// Bounds worth fitting to: a network at least a few cells across (a lone root would zoom to
+/// a speck), else null (the lattice).
+function framedBounds(bounds) {
+  if (!bounds) return null;
+  const least = 4 * (state.frame?.cell_size ?? 0);
+  return Math.max(bounds[2] - bounds[0], bounds[3] - bounds[1]) >= least ? bounds : null;
+}
+
+function fitNetwork() {
+  view.fitTo(state.networkBounds ?? null);
+  view.draw();
+}
+
+// ---- end page-ux ----------------------------------------------------------------------------
+
 function onPaused() {
+  // The marks only: a paused run may grow on, past a view fitted to it now.
+  showMarks(false);
   showReadingsNow();
   byId('digest').textContent = 'paused (the digest is shown when the run ends)';
   setExports(true);
@@ -261,6 +302,7 @@ function onFinished() {
   if (!simulation) return;
   // The runner has already redrawn the final network.
   showProgress();
+  showMarks(true);
   showReadingsNow();
   const digest = simulation.digest();
   byId('digest').textContent = digest;
@@ -340,7 +382,7 @@ function fillStartList() {
   for (const preset of state.presets) {
     const option = document.createElement('option');
     option.value = preset.name;
-    option.textContent = preset.name.replace('-', ' ');
+    option.textContent = preset.title ?? preset.name.replace('-', ' ');
     select.append(option);
   }
   select.addEventListener('change', () => {
@@ -445,7 +487,7 @@ function wireCanvas() {
       '+': () => view.zoom(1.25),
       '=': () => view.zoom(1.25),
       '-': () => view.zoom(0.8),
-      0: () => view.fit(),
+      0: () => view.fitTo(state.networkBounds ?? null),
       ArrowLeft: () => view.pan(step, 0),
       ArrowRight: () => view.pan(-step, 0),
       ArrowUp: () => view.pan(0, step),
@@ -460,7 +502,7 @@ function wireCanvas() {
   });
   byId('zoom-in').addEventListener('click', () => { view.zoom(1.25); view.draw(); });
   byId('zoom-out').addEventListener('click', () => { view.zoom(0.8); view.draw(); });
-  byId('zoom-fit').addEventListener('click', () => { view.fit(); view.draw(); });
+  byId('zoom-fit').addEventListener('click', fitNetwork);
 }
 
 /// Shows order, flow, width and length of the segment under the pointer.
@@ -497,20 +539,35 @@ function wireKeep() {
     }
   });
   const name = (extension) => `ramulus-${state.simulation?.digest() ?? 'run'}.${extension}`;
+  // page-ux: each export is confirmed with what was saved and its size (the core's sentence).
+  const saved = (file, what, bytes) => {
+    byId('saved').textContent = core.saved_text(file, what, bytes);
+  };
+  const trueSize = () => (state.frame.site ? 'drawing to a stated map scale' : 'drawing at true size');
   byId('save-svg').addEventListener('click', () => {
-    guarded(() => download(name('svg'), state.simulation.svg(view.colouring), 'image/svg+xml'));
+    guarded(() => {
+      const file = name('svg');
+      saved(file, trueSize(), download(file, state.simulation.svg(view.colouring), 'image/svg+xml'));
+    });
   });
   byId('save-png').addEventListener('click', () => {
     const caution = state.frame.site ? core.site_caution() : '';
-    renderPng(state.session, state.frame, state.colours, view.colouring, caution)
-      .then((blob) => download(name('png'), blob))
+    const file = name('png');
+    renderPng(state.session, state.frame, state.colours, view.colouring, caution, view.roots)
+      .then((blob) => saved(file, 'picture', download(file, blob)))
       .catch((error) => notice(`PNG export failed: ${messageOf(error)}`));
   });
   byId('save-record').addEventListener('click', () => {
-    guarded(() => download(name('json'), state.simulation.record_json(), 'application/json'));
+    guarded(() => {
+      const file = name('json');
+      saved(file, 'run record, reopens this run', download(file, state.simulation.record_json(), 'application/json'));
+    });
   });
   byId('save-csv').addEventListener('click', () => {
-    guarded(() => download(name('csv'), state.simulation.metrics_csv(), 'text/csv'));
+    guarded(() => {
+      const file = name('csv');
+      saved(file, 'readings table', download(file, state.simulation.metrics_csv(), 'text/csv'));
+    });
   });
   byId('record-file').addEventListener('change', async (event) => {
     const file = event.target.files[0];

@@ -1,4 +1,5 @@
-// The readings panel: the core's labelled metric rows in a table, the Horton plot and the
+// The readings panel: the core's labelled metric rows in a table, each with its short
+// explanation (what it measures, when it says little), the Horton plot and the
 // branching-angle histogram (laid out by the core, drawn by plots.js). Text only through
 // textContent.
 import { drawAngleHistogram, drawHortonPlot } from './plots.js';
@@ -11,10 +12,23 @@ export function showReadings(session) {
   const plots = session.plots();
   const body = document.querySelector('#metrics tbody');
   body.replaceChildren();
-  for (const [label, value, unit] of rows) {
+  for (const [label, value, unit, about = ''] of rows) {
     if (label.startsWith(PLOTTED_ROW)) continue;
     const row = document.createElement('tr');
-    for (const text of [label, value, unit === '-' ? '' : unit]) {
+    // The measure's name, and under it the core's short explanation of what it says.
+    const name = document.createElement('td');
+    const title = document.createElement('span');
+    title.className = 'measure';
+    title.textContent = label;
+    name.append(title);
+    if (about) {
+      const note = document.createElement('span');
+      note.className = 'about';
+      note.textContent = about;
+      name.append(note);
+    }
+    row.append(name);
+    for (const text of [value, unit === '-' ? '' : unit]) {
       const cell = document.createElement('td');
       cell.textContent = text;
       row.append(cell);

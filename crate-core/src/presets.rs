@@ -12,6 +12,8 @@ use crate::params::{Joining, Params, Root};
 pub struct Preset {
     /// Short name used on the command line and in links.
     pub name: &'static str,
+    /// The name people pick it by on the page, in the words of its kind.
+    pub title: &'static str,
     /// What it shows.
     pub description: &'static str,
     /// The parameters.
@@ -23,26 +25,31 @@ pub fn presets() -> Vec<Preset> {
     vec![
         Preset {
             name: "broad-leaf",
+            title: "Broad leaf (egg-shaped blade)",
             description: "open growth: an egg-shaped blade around a midrib, petiole at the base",
             params: broad_leaf(),
         },
         Preset {
             name: "narrow-leaf",
+            title: "Narrow leaf (long, tapering blade)",
             description: "open growth: a long, tapering blade, petiole at the base",
             params: narrow_leaf(),
         },
         Preset {
             name: "filled-outline",
+            title: "Heart-shaped leaf, outline given",
             description: "fills a given heart-shaped leaf outline from its base",
             params: filled_outline(),
         },
         Preset {
             name: "drainage-site",
+            title: "Drainage site (300 m × 200 m)",
             description: "a 300 m x 200 m site sloping to one outlet, around a building",
             params: drainage_site(),
         },
         Preset {
             name: "spanning-tree",
+            title: "Shortest tree (reference)",
             description: "cheapest-first pure length without jitter: Prim's minimum spanning tree",
             params: spanning_tree(),
         },

@@ -102,10 +102,23 @@ pub fn legend_items(facts: &LegendFacts) -> Vec<LegendItem> {
     }
     if facts.roots_drawn {
         items.push(LegendItem {
-            pieces: vec![Piece::Circle, Piece::Text("root".to_string())],
+            pieces: vec![
+                Piece::Circle,
+                Piece::Text(root_word(facts.units).to_string()),
+            ],
         });
     }
     items
+}
+
+/// What the root marker stands for, in the words of the network's kind: a leaf's veins
+/// leave through the petiole, a site's drains through its outlet.
+pub fn root_word(units: &str) -> &'static str {
+    if ramulus_core::params::is_site_unit(units) {
+        "outlet (root)"
+    } else {
+        "petiole (root)"
+    }
 }
 
 #[cfg(test)]
@@ -153,5 +166,15 @@ mod tests {
         assert_eq!(legend_items(&with_roots).len(), 1);
         with_roots.roots_drawn = true;
         assert_eq!(legend_items(&with_roots)[1].pieces[0], Piece::Circle,);
+        // Leaf words for leaves (millimetres), drainage words for sites (metres).
+        assert_eq!(
+            legend_items(&with_roots)[1].pieces[1],
+            Piece::Text("petiole (root)".to_string())
+        );
+        with_roots.units = "m";
+        assert_eq!(
+            legend_items(&with_roots)[1].pieces[1],
+            Piece::Text("outlet (root)".to_string())
+        );
     }
 }

@@ -1,7 +1,8 @@
 //! Ramulus drawing: everything people see of a run. The SVG export (`svg`), the anti-aliased
 //! raster of thin lines and the page's per-segment buffers (`raster`, `screen`, refilled
 //! where growth changed them by `screen_growth`), colours
-//! (`palette`), number formats (`format`), the colour key shared by SVG and page (`legend`),
+//! (`palette`), number formats (`format`), the colour key shared by SVG and page (`legend`), the extent and roots the page frames and
+//! marks (`marks`),
 //! the descriptions of the readings plots (`plots`), the scale bar (`scale_bar`) and the
 //! sentences the page and the command line show (`texts`).
 //!
@@ -12,6 +13,7 @@
 
 pub mod format;
 pub mod legend;
+pub mod marks;
 pub mod palette;
 pub mod plots;
 pub mod posterior_svg;

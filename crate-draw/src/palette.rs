@@ -113,6 +113,10 @@ pub struct ColourScheme {
     pub flow: Vec<String>,
     /// Colour of plain drawing.
     pub plain: &'static str,
+    /// Fill and ring of a root marker (as the SVG export draws it).
+    pub root_fill: &'static str,
+    /// Ring of a root marker.
+    pub root_ring: &'static str,
 }
 
 /// The page's colours.
@@ -123,6 +127,8 @@ pub fn colour_scheme() -> ColourScheme {
             .map(|step| flow_colour(step as f64 / (FLOW_RAMP_STEPS - 1) as f64))
             .collect(),
         plain: PLAIN,
+        root_fill: ROOT_FILL,
+        root_ring: TEXT,
     }
 }
 

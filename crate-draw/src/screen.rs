@@ -308,7 +308,7 @@ impl ScreenGeometry {
         self.raster_job.is_some()
     }
 
-    /// What the canvas shows, for its colour key (the canvas draws no root markers).
+    /// What the canvas shows, for its colour key (the page marks every root, see `marks`).
     pub fn legend_facts<'a>(&self, colouring: Colouring, units: &'a str) -> LegendFacts<'a> {
         let (low, high) = self.flow_range;
         LegendFacts {
@@ -316,7 +316,7 @@ impl ScreenGeometry {
             max_order: self.max_order,
             flow_range: (high > 0.0).then_some((low, high)),
             segment_count: self.segment_count,
-            roots_drawn: false,
+            roots_drawn: true,
             units,
         }
     }
@@ -429,7 +429,7 @@ mod tests {
         assert_eq!(screen.segment_at(1.5, 0.4, 0.3), None);
         let facts = screen.legend_facts(Colouring::ByFlow, "mm");
         assert_eq!(facts.flow_range, Some((1.0, 2.0)));
-        assert!(!facts.roots_drawn);
+        assert!(facts.roots_drawn);
     }
 
     /// A raster drawn a slice at a time, in slices of any size, ends with the very pixels of

@@ -4,28 +4,47 @@
 
 use ramulus_core::growth::StopReason;
 
-use crate::format::{four_digits, grouped};
+use crate::format::{four_digits, grouped, significant_digits};
 
 /// Why growth stopped, in words.
 pub fn stop_text(reason: StopReason) -> &'static str {
     match reason {
         StopReason::Budget => "cell budget reached",
         StopReason::Full => "no allowed cell left within reach",
-        StopReason::Threshold => "no frontier cell below the cost threshold",
+        StopReason::Threshold => "no frontier cell costs less than the stop threshold",
     }
 }
 
 /// The stop text of a network read from a run record without parameters: it does not grow.
 pub const SAVED_NETWORK_TEXT: &str = "network as saved in the record";
 
-/// `1,234 of 5,000 cells`, followed by `, stopped: <why>` once growth has stopped.
+/// `1,234 of 5,000 cells` while growing; once growth has stopped, `complete` and why (a run
+/// that stops before its budget is finished too, which a bar short of its end would hide).
 pub fn progress_text(cells: u64, budget: u64, stopped: Option<&str>) -> String {
     let mut text = format!("{} of {} cells", grouped(cells), grouped(budget));
     if let Some(why) = stopped {
-        text.push_str(", stopped: ");
+        text.push_str(if cells < budget {
+            ", complete before the budget: "
+        } else {
+            ", complete: "
+        });
         text.push_str(why);
     }
     text
+}
+
+/// What an export saved, for the page to confirm it: `Saved ramulus-1f2e.svg (drawing at true
+/// size, 48.2 kB).` Sizes in kB and MB are decimal (1 kB = 1000 bytes, SI prefixes as the
+/// SI Brochure, 9th edition, 2019, table 7, defines them).
+pub fn saved_text(file_name: &str, what: &str, bytes: u64) -> String {
+    let size = if bytes < 1000 {
+        format!("{bytes} bytes")
+    } else if bytes < 1_000_000 {
+        format!("{} kB", significant_digits(bytes as f64 / 1e3, 3))
+    } else {
+        format!("{} MB", significant_digits(bytes as f64 / 1e6, 3))
+    };
+    format!("Saved {file_name} ({what}, {size}).")
 }
 
 /// The readings of one segment, one per line: Strahler order, flow, width and length with
@@ -49,6 +68,15 @@ pub fn readings_rows(
     ramulus_core::metrics::metric_rows(metrics, units, crate::format::four_digits)
 }
 
+/// The rows of `readings_rows` with a short explanation as a fourth field (the page shows it
+/// beside each reading).
+pub fn readings_rows_explained(
+    metrics: &ramulus_core::metrics::Metrics,
+    units: &str,
+) -> Vec<(String, String, String, String)> {
+    ramulus_core::metrics::metric_rows_explained(metrics, units, crate::format::four_digits)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -58,7 +86,29 @@ mod tests {
         assert_eq!(progress_text(1234, 5000, None), "1,234 of 5,000 cells");
         assert_eq!(
             progress_text(5000, 5000, Some(stop_text(StopReason::Budget))),
-            "5,000 of 5,000 cells, stopped: cell budget reached"
+            "5,000 of 5,000 cells, complete: cell budget reached"
+        );
+        assert_eq!(
+            progress_text(1234, 5000, Some(stop_text(StopReason::Threshold))),
+            "1,234 of 5,000 cells, complete before the budget: no frontier cell costs less than \
+             the stop threshold"
+        );
+    }
+
+    /// Decimal prefixes: 48,213 bytes are 48.2 kB, 2,500,000 bytes 2.5 MB.
+    #[test]
+    fn saved_files_are_named_with_their_size() {
+        assert_eq!(
+            saved_text("a.svg", "drawing", 48_213),
+            "Saved a.svg (drawing, 48.2 kB)."
+        );
+        assert_eq!(
+            saved_text("a.csv", "readings", 999),
+            "Saved a.csv (readings, 999 bytes)."
+        );
+        assert_eq!(
+            saved_text("a.json", "run record", 2_500_000),
+            "Saved a.json (run record, 2.5 MB)."
         );
     }
 

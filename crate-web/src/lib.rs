@@ -19,7 +19,7 @@ mod simulation;
 pub use memory::RunMemory;
 pub use simulation::Simulation;
 
-/// Every preset as a JSON array of `{name, description, params, link}`.
+/// Every preset as a JSON array of `{name, title, description, params, link}`.
 #[wasm_bindgen]
 pub fn presets_json() -> String {
     let list: Vec<serde_json::Value> = presets()
@@ -27,6 +27,7 @@ pub fn presets_json() -> String {
         .map(|preset| {
             json!({
                 "name": preset.name,
+                "title": preset.title,
                 "description": preset.description,
                 "params": preset.params,
                 "link": encode_link(&preset.params),
@@ -142,6 +143,14 @@ pub fn wasm_memory_bytes() -> f64 {
 pub fn site_caution() -> String {
     SITE_CAUTION.to_string()
 }
+
+// ---- page-ux: export confirmation ----
+/// The sentence confirming an export: file name, what it holds and its size.
+#[wasm_bindgen]
+pub fn saved_text(file_name: &str, what: &str, bytes: f64) -> String {
+    ramulus_draw::texts::saved_text(file_name, what, bytes.max(0.0) as u64)
+}
+// ---- end page-ux ----
 
 /// The JSON `{error: {key, message}}` that names the field at fault.
 fn field_error(key: &str, message: &str) -> String {

@@ -13,6 +13,7 @@ use ramulus_core::run::{
     conducting_network, topology_pass, width_rule, widths_pass, RunView, SITE_CAUTION,
 };
 use ramulus_draw::legend::legend_items;
+use ramulus_draw::marks::network_marks;
 use ramulus_draw::palette::Colouring;
 use ramulus_draw::plots::readings_plots;
 use ramulus_draw::raster::RasterView;
@@ -247,10 +248,11 @@ impl Simulation {
         serde_json::to_string(&view.metrics).map_err(|error| JsError::new(&error.to_string()))
     }
 
-    /// Metrics as labelled rows `[[label, value, unit], ...]` (four significant digits).
+    /// Metrics as labelled rows `[[label, value, unit, about], ...]` (four significant digits;
+    /// `about` a short explanation for people, possibly empty).
     pub fn metrics_rows_json(&mut self) -> Result<String, JsError> {
         let units = self.params.domain.units.clone();
-        let rows = ramulus_draw::texts::readings_rows(&self.view()?.metrics, &units);
+        let rows = ramulus_draw::texts::readings_rows_explained(&self.view()?.metrics, &units);
         serde_json::to_string(&rows).map_err(|error| JsError::new(&error.to_string()))
     }
 
@@ -280,6 +282,15 @@ impl Simulation {
         };
         progress_text(self.cells() as u64, self.budget() as u64, stopped)
     }
+
+    // ---- page-ux: framing the view and marking the roots ----
+    /// The network's extent and roots as JSON `{bounds: [x0, y0, x1, y1] | null, roots:
+    /// [[x, y], ...]}` in physical units (`ramulus_draw::marks`): the page fits its view to
+    /// the bounds and draws a marker on each root.
+    pub fn marks_json(&self) -> String {
+        serde_json::to_string(&network_marks(&self.network())).unwrap_or_default()
+    }
+    // ---- end page-ux ----
 
     /// The colour key of the canvas under `colouring`, as JSON `[{pieces: [{line: "#rrggbb"} |
     /// "circle" | {text}]}]` (the SVG's legend, for what the canvas draws).

@@ -268,10 +268,10 @@ test('the colour key on the page is the SVG export\'s, and the probe reads a seg
     const parsed = new DOMParser().parseFromString(text, 'image/svg+xml');
     return [...parsed.querySelectorAll('text.legend')].map((element) => element.textContent);
   }, svg);
-  // Both come from one Rust function; the SVG adds the root marker's entry (the canvas draws
-  // no root markers).
-  assert.deepEqual(svgKey, [...pageKey, 'root']);
-  assert.equal(pageKey.length, 3, 'title, least and most flow');
+  // Both come from one Rust function, root markers included (a leaf's root is its petiole).
+  assert.deepEqual(svgKey, pageKey);
+  assert.equal(pageKey.length, 4, 'title, least and most flow, the root');
+  assert.equal(pageKey[3], 'petiole (root)');
   assert.equal(pageKey[0], 'flow (mm²)');
   assert.ok(Number(pageKey[1]) > 0 && Number(pageKey[2]) > Number(pageKey[1]), pageKey.join(' '));
   for (let i = 0; i < 4; i += 1) await page.click('#zoom-in');

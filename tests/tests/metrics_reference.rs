@@ -723,9 +723,38 @@ fn table_rows() {
         Some((
             "vein density".to_string(),
             "2.6".to_string(),
-            "mm/mm^2".to_string()
+            "mm/mm\u{b2}".to_string()
         ))
     );
+    // The same reading for a site, in metres, speaks drainage words: drainage density is
+    // channel length per area (Horton 1945), with the square written as SI does (SI Brochure,
+    // 9th edition, 2019, 5.4.3: superscript exponent).
+    let site_rows = ramulus_draw::texts::readings_rows(&measured(&network, 0.5), "m");
+    assert!(site_rows.iter().all(|row| !row.0.contains("vein")));
+    assert_eq!(
+        site_rows.iter().find(|row| row.0 == "drainage density"),
+        Some(&(
+            "drainage density".to_string(),
+            "2.6".to_string(),
+            "m/m\u{b2}".to_string()
+        ))
+    );
+    // Every reading people see carries an explanation, and the one of circularity says what
+    // it measures of a grown shape.
+    let explained = ramulus_draw::texts::readings_rows_explained(&measured(&network, 0.5), "mm");
+    let about = |label: &str| {
+        explained
+            .iter()
+            .find(|row| row.0 == label)
+            .map(|row| row.3.clone())
+            .unwrap_or_default()
+    };
+    assert!(about("circularity").contains("growth front"));
+    assert!(about("vein density").contains("area"));
+    assert!(explained
+        .iter()
+        .filter(|row| !row.0.contains("of order"))
+        .all(|row| !row.3.is_empty()));
     // B and C are order-1 tips meeting at A, so A's segment is order 2 (Strahler 1957).
     assert_eq!(
         find("streams of order 1").map(|row| row.1),

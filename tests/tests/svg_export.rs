@@ -343,6 +343,45 @@ fn leaf_units_give_true_size() {
     assert!(close(millimetres(&document, "width"), 10.0 * width, 1e-5));
 }
 
+/// Text printed at true size stays readable: every text element's font size, in millimetres of
+/// paper (SVG 1.1 section 7.10: width="Nmm" over a viewBox width gives mm per user unit), is at
+/// least 2.5 mm, about 7 pt (a lettering height for print, common practice, no source), even
+/// for the 10 mm leaf here; and the drawing itself stays at true size.
+#[test]
+fn text_printed_at_true_size_is_at_least_two_and_a_half_millimetres() {
+    let leaf = leaf();
+    let table = table(&leaf);
+    for units in ["mm", "um"] {
+        let mut leaf = leaf.clone();
+        leaf.units = units.to_string();
+        let document_text = render(&leaf, &table, &options(Colouring::ByOrder));
+        let document = parse(&document_text);
+        let [_, _, width, _] = view_box(&document);
+        let paper_per_unit = millimetres(&document, "width") / width;
+        let expected_paper_per_unit = if units == "mm" { 1.0 } else { 0.001 };
+        assert!(
+            close(paper_per_unit, expected_paper_per_unit, 1e-5),
+            "{units}: true size"
+        );
+        let group = document
+            .descendants()
+            .find(|node| node.attribute("class") == Some("annotation"))
+            .expect("an annotation group");
+        let font_mm = number(&group, "font-size") * paper_per_unit;
+        assert!(font_mm >= 2.5 - 1e-9, "{units}: text {font_mm} mm high");
+        for text in document
+            .descendants()
+            .filter(|node| node.has_tag_name("text"))
+        {
+            assert!(
+                text.attribute("font-size").is_none(),
+                "{units}: a text with its own size: {:?}",
+                text.text()
+            );
+        }
+    }
+}
+
 /// The stated map scales.
 const MAP_SCALES: [f64; 7] = [100.0, 200.0, 500.0, 1000.0, 2000.0, 5000.0, 10000.0];
 

@@ -30,8 +30,8 @@ mod tortuosity;
 mod transport;
 
 pub use table::{
-    metric_readme_table, metric_rows, metrics_csv, AppliesTo, MetricEntry, MetricUnit, Reading,
-    METRIC_TABLE,
+    metric_readme_table, metric_rows, metric_rows_explained, metrics_csv, AppliesTo, MetricEntry,
+    MetricUnit, Reading, METRIC_TABLE,
 };
 
 /// Number of bins of the branching-angle histogram.

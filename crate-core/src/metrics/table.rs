@@ -34,15 +34,17 @@ pub enum MetricUnit {
 
 impl MetricUnit {
     /// The unit text for length unit `unit` (`mm`, `m`, ...) and transport exponent `alpha`.
+    /// Powers are written with superscript digits (`mm²`, SI Brochure, 9th edition, 2019,
+    /// section 5.4.3); a power that is not a whole number keeps a caret (`mm^1.6`).
     pub fn text(self, unit: &str, alpha: f64) -> String {
         match self {
             MetricUnit::Count | MetricUnit::Dimensionless => NO_UNIT.to_string(),
             MetricUnit::Length => unit.to_string(),
-            MetricUnit::Area => format!("{unit}^2"),
-            MetricUnit::LengthPerArea => format!("{unit}/{unit}^2"),
-            MetricUnit::PerArea => format!("1/{unit}^2"),
-            MetricUnit::Degrees => "degrees".to_string(),
-            MetricUnit::TransportCost => format!("{unit}^{}", 2.0 * alpha + 1.0),
+            MetricUnit::Area => format!("{unit}\u{b2}"),
+            MetricUnit::LengthPerArea => format!("{unit}/{unit}\u{b2}"),
+            MetricUnit::PerArea => format!("1/{unit}\u{b2}"),
+            MetricUnit::Degrees => "\u{b0}".to_string(),
+            MetricUnit::TransportCost => format!("{unit}{}", power_text(2.0 * alpha + 1.0)),
         }
     }
 
@@ -58,6 +60,26 @@ impl MetricUnit {
             MetricUnit::TransportCost => "(units^2)^alpha x units",
         }
     }
+}
+
+/// The exponent `power` written after a unit: superscript digits for a whole power from 0 to
+/// 99 (nothing for 1), a caret and the number otherwise.
+fn power_text(power: f64) -> String {
+    const SUPERSCRIPTS: [char; 10] = [
+        '\u{2070}', '\u{b9}', '\u{b2}', '\u{b3}', '\u{2074}', '\u{2075}', '\u{2076}', '\u{2077}',
+        '\u{2078}', '\u{2079}',
+    ];
+    if power == 1.0 {
+        return String::new();
+    }
+    if power.fract() == 0.0 && (0.0..100.0).contains(&power) {
+        return (power as u32)
+            .to_string()
+            .chars()
+            .map(|digit| SUPERSCRIPTS[digit.to_digit(10).unwrap_or(0) as usize])
+            .collect();
+    }
+    format!("^{power}")
 }
 
 /// Which network kinds a metric applies to.
@@ -111,6 +133,12 @@ pub struct MetricEntry {
     pub unit: MetricUnit,
     /// One-line definition for README.
     pub description: &'static str,
+    /// The label in drainage words, for sites (lengths in m or ft); empty when `label` suits
+    /// leaves and sites alike.
+    pub site_label: &'static str,
+    /// A short explanation for people beside the reading: what it measures and when it says
+    /// little.
+    pub about: &'static str,
     /// Network kinds it applies to.
     pub applies_to: AppliesTo,
     /// Reads the value from `Metrics`.
@@ -125,6 +153,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "area",
         unit: MetricUnit::Area,
         description: "area of the leaf or site the network drains (occupied cells x cell area)",
+        site_label: "",
+        about: "Area the network fills: occupied cells × cell area.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Number(Some(m.area)),
     },
@@ -133,6 +163,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "nodes",
         unit: MetricUnit::Count,
         description: "number of nodes",
+        site_label: "",
+        about: "Points where segments meet, bend or end.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Count(m.node_count),
     },
@@ -141,6 +173,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "roots",
         unit: MetricUnit::Count,
         description: "nodes without a downstream segment (petiole bases, outlets)",
+        site_label: "outlets",
+        about: "Where flow leaves the network: a leaf's petiole base, a site's outlet.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Count(m.root_count),
     },
@@ -149,6 +183,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "segments",
         unit: MetricUnit::Count,
         description: "number of segments",
+        site_label: "",
+        about: "Straight pieces between two nodes.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Count(m.segment_count),
     },
@@ -157,6 +193,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "connected components",
         unit: MetricUnit::Count,
         description: "connected components of the network's graph, a lone node counting as one",
+        site_label: "",
+        about: "Separate pieces of network: one per root when each root grows its own tree.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Count(m.component_count),
     },
@@ -165,6 +203,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "loops",
         unit: MetricUnit::Count,
         description: "independent loops: cyclomatic number segments - nodes + components (0 for a forest)",
+        site_label: "",
+        about: "Closed circuits; 0 for a tree-like network, which growth always gives.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Count(m.loop_count),
     },
@@ -173,6 +213,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "total vein length",
         unit: MetricUnit::Length,
         description: "sum of segment lengths",
+        site_label: "total channel length",
+        about: "Sum of all segment lengths.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Number(Some(m.total_length)),
     },
@@ -181,6 +223,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "vein density",
         unit: MetricUnit::LengthPerArea,
         description: "total segment length / area",
+        site_label: "drainage density",
+        about: "Length per area: total length ÷ area.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Number(m.vein_density),
     },
@@ -189,6 +233,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "junctions",
         unit: MetricUnit::Count,
         description: "nodes of degree >= 3 (every segment at the node counts)",
+        site_label: "",
+        about: "Nodes where three or more segments meet.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Count(m.junction_count),
     },
@@ -197,6 +243,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "junction density",
         unit: MetricUnit::PerArea,
         description: "junctions / area",
+        site_label: "",
+        about: "Junctions per area.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Number(m.junction_density),
     },
@@ -205,6 +253,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "free-ending veinlets",
         unit: MetricUnit::Count,
         description: "nodes of degree 1 with a downstream segment (non-root nodes without children)",
+        site_label: "channel heads",
+        about: "Branches that end without feeding another: where flow starts.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Count(m.tip_count),
     },
@@ -213,6 +263,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "free-ending veinlet density",
         unit: MetricUnit::PerArea,
         description: "free-ending veinlets / area",
+        site_label: "channel head density",
+        about: "Free ends per area.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Number(m.tip_density),
     },
@@ -221,6 +273,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "branching angles measured",
         unit: MetricUnit::Count,
         description: "angles measured: at each node with >= 2 upstream segments, one per upstream segment other than the main (largest-flow) one",
+        site_label: "",
+        about: "How many angles the mean and spread below come from; under about 10 they say little.",
         applies_to: AppliesTo::ForestOnly,
         read: |m| Reading::Count(m.branching_angle_count),
     },
@@ -229,6 +283,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "mean branching angle",
         unit: MetricUnit::Degrees,
         description: "mean angle between the main upstream segment and each other one",
+        site_label: "",
+        about: "Angle between a side branch and the main branch where they meet, averaged; n/a without junctions.",
         applies_to: AppliesTo::ForestOnly,
         read: |m| Reading::Number(m.branching_angle_mean),
     },
@@ -237,6 +293,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "branching angle standard deviation",
         unit: MetricUnit::Degrees,
         description: "sample standard deviation of the branching angles (divisor n - 1)",
+        site_label: "",
+        about: "Spread of those angles; needs at least two.",
         applies_to: AppliesTo::ForestOnly,
         read: |m| Reading::Number(m.branching_angle_sd),
     },
@@ -245,6 +303,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "branching angles per 10-degree bin, 0 to 180",
         unit: MetricUnit::Count,
         description: "branching angles in 18 bins of 10 degrees",
+        site_label: "",
+        about: "How many branching angles fall in each 10° bin (plotted below).",
         applies_to: AppliesTo::ForestOnly,
         read: |m| Reading::Histogram(&m.branching_angle_histogram),
     },
@@ -253,6 +313,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "highest Strahler order",
         unit: MetricUnit::Count,
         description: "highest Strahler order carried by a segment (Strahler 1957)",
+        site_label: "",
+        about: "Order of the main trunk: free ends are order 1; two streams of one order meeting start the next.",
         applies_to: AppliesTo::ForestOnly,
         read: |m| Reading::OptionalCount(m.max_strahler_order.map(u64::from)),
     },
@@ -261,6 +323,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "streams",
         unit: MetricUnit::Count,
         description: "per Strahler order w: stream count N_w (-) and mean stream length L_w (units); a stream is a maximal chain of segments of one order",
+        site_label: "",
+        about: "Per order: how many streams (chains of one order) and their mean length. The top order is cut off at the root, where several of its streams may meet, so its mean length can be shorter than the next order's.",
         applies_to: AppliesTo::ForestOnly,
         read: |m| Reading::Streams(&m.streams),
     },
@@ -269,6 +333,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "bifurcation ratio",
         unit: MetricUnit::Dimensionless,
         description: "Horton R_B = 10^-(slope of log10 N_w on w), least squares over all orders",
+        site_label: "",
+        about: "How many times more streams each lower order has (Horton); needs three orders or more to mean much.",
         applies_to: AppliesTo::ForestOnly,
         read: |m| Reading::Number(m.bifurcation_ratio),
     },
@@ -277,6 +343,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "length ratio",
         unit: MetricUnit::Dimensionless,
         description: "Horton R_L = 10^(slope of log10 L_w on w), least squares over all orders",
+        site_label: "",
+        about: "How many times longer streams get from one order to the next (Horton); needs three orders or more.",
         applies_to: AppliesTo::ForestOnly,
         read: |m| Reading::Number(m.length_ratio),
     },
@@ -285,6 +353,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "Hack exponent",
         unit: MetricUnit::Dimensionless,
         description: "least-squares slope of ln(longest upstream length) on ln(upstream area), one point per segment",
+        site_label: "",
+        about: "How the longest path upstream grows with the area drained (length ∝ area to this power, Hack's law).",
         applies_to: AppliesTo::ForestOnly,
         read: |m| Reading::Number(m.hack_exponent),
     },
@@ -293,6 +363,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "tortuosity",
         unit: MetricUnit::Dimensionless,
         description: "mean over cells of path length to root / straight distance to root",
+        site_label: "",
+        about: "Path along the network to the root ÷ straight distance, averaged over cells: 1 is perfectly straight.",
         applies_to: AppliesTo::ForestOnly,
         read: |m| Reading::Number(m.tortuosity),
     },
@@ -301,6 +373,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "transport cost",
         unit: MetricUnit::TransportCost,
         description: "sum over segments of q^alpha x length (the label names alpha)",
+        site_label: "",
+        about: "What growth saves on carrying flow: the sum of flow to the power α × length; compare runs with the same α only.",
         applies_to: AppliesTo::ForestOnly,
         read: |m| Reading::Number(m.transport_cost),
     },
@@ -309,6 +383,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "outline area",
         unit: MetricUnit::Area,
         description: "occupied cells x cell area",
+        site_label: "",
+        about: "Area inside the grown shape's edge.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Number(m.outline_area),
     },
@@ -317,6 +393,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "outline perimeter",
         unit: MetricUnit::Length,
         description: "perimeter by marching squares through edge midpoints",
+        site_label: "",
+        about: "Length of the grown shape's edge, ragged growth front included.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Number(m.outline_perimeter),
     },
@@ -325,6 +403,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "circularity",
         unit: MetricUnit::Dimensionless,
         description: "4 pi A / P^2 of the outline",
+        site_label: "",
+        about: "4πA/P² of the grown shape, 1 for a disc. It measures the ragged growth front as much as the outline, so an egg-shaped blade can read 0.2; compare runs with the same cell size.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Number(m.circularity),
     },
@@ -333,6 +413,8 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "aspect ratio",
         unit: MetricUnit::Dimensionless,
         description: "sqrt(l1 / l2) of the covariance of occupied cell centres",
+        site_label: "",
+        about: "Length ÷ breadth of the grown shape, from the spread of its cells; 1 when round.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Number(m.aspect_ratio),
     },
@@ -414,24 +496,56 @@ fn format_precise(value: f64) -> String {
     }
 }
 
+/// Rows of `metric_rows` with a fourth field: the short explanation people read beside the
+/// reading (`MetricEntry::about`; for the per-order stream rows, the streams' explanation on the
+/// first row and why the top order's mean length can be short on its row).
+pub fn metric_rows_explained(
+    metrics: &Metrics,
+    units: &str,
+    format_number: fn(f64) -> String,
+) -> Vec<(String, String, String, String)> {
+    explained_rows(metrics, units, format_number)
+}
+
 fn rows(
     metrics: &Metrics,
     units: &str,
     format_number: fn(f64) -> String,
 ) -> Vec<(String, String, String)> {
+    explained_rows(metrics, units, format_number)
+        .into_iter()
+        .map(|(label, value, unit, _)| (label, value, unit))
+        .collect()
+}
+
+/// Why the top order's mean stream length can be shorter than the next order's.
+const TOP_ORDER_ABOUT: &str = "The top order's streams end at the root, where several may meet, so their mean length can be shorter than the order below.";
+
+fn explained_rows(
+    metrics: &Metrics,
+    units: &str,
+    format_number: fn(f64) -> String,
+) -> Vec<(String, String, String, String)> {
     let unit = if units.is_empty() { "unit" } else { units };
+    let site = crate::params::is_site_unit(units);
     let alpha = metrics.transport_alpha;
-    let mut rows: Vec<(String, String, String)> = Vec::new();
+    let mut rows: Vec<(String, String, String, String)> = Vec::new();
     for entry in METRIC_TABLE {
         let unit_text = entry.unit.text(unit, alpha);
-        let label = if entry.unit == MetricUnit::TransportCost {
-            format!("{} (alpha {alpha})", entry.label)
+        let name = if site && !entry.site_label.is_empty() {
+            entry.site_label
         } else {
-            entry.label.to_string()
+            entry.label
         };
+        let label = if entry.unit == MetricUnit::TransportCost {
+            format!("{name} (\u{3b1} = {alpha})")
+        } else {
+            name.to_string()
+        };
+        let about = entry.about.to_string();
         if !entry.applies_to.includes(metrics.kind) {
             if !matches!((entry.read)(metrics), Reading::Streams(_)) {
-                rows.push((label, UNDEFINED_TEXT.to_string(), unit_text));
+                rows.push((label, UNDEFINED_TEXT.to_string(), unit_text, about));
             }
             continue;
         }
@@ -449,22 +563,32 @@ fn rows(
                 .collect::<Vec<_>>()
                 .join(" "),
             Reading::Streams(streams) => {
-                for stream in streams {
+                for (index, stream) in streams.iter().enumerate() {
                     rows.push((
                         format!("streams of order {}", stream.order),
                         stream.stream_count.to_string(),
                         NO_UNIT.to_string(),
+                        if index == 0 {
+                            about.clone()
+                        } else {
+                            String::new()
+                        },
                     ));
                     rows.push((
                         format!("mean stream length of order {}", stream.order),
                         format_number(stream.mean_stream_length),
                         unit.to_string(),
+                        if index + 1 == streams.len() && index > 0 {
+                            TOP_ORDER_ABOUT.to_string()
+                        } else {
+                            String::new()
+                        },
                     ));
                 }
                 continue;
             }
         };
-        rows.push((label, value, unit_text));
+        rows.push((label, value, unit_text, about));
     }
     rows
 }

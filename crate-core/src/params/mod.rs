@@ -230,6 +230,11 @@ fn parts_from_value(value: &serde_json::Value) -> Result<Params, serde_json::Err
 /// Physical length units that the exporters know how to label.
 pub const UNITS: [&str; 5] = ["um", "mm", "cm", "m", "ft"];
 
+/// Whether length unit `units` is a drainage site's (metres or feet) rather than a leaf's.
+pub fn is_site_unit(units: &str) -> bool {
+    units == "m" || units == "ft"
+}
+
 impl Params {
     /// Parses parameters from JSON text; unknown keys and wrong types are errors naming the key.
     pub fn from_json(text: &str) -> Result<Params, ParamError> {
@@ -286,7 +291,7 @@ impl Params {
 
     /// Whether the run is a drainage site (lengths in metres or feet) rather than a leaf.
     pub fn is_site(&self) -> bool {
-        self.domain.units == "m" || self.domain.units == "ft"
+        is_site_unit(&self.domain.units)
     }
 
     /// Checks every parameter; the first failure is returned, naming the key. The lattice size

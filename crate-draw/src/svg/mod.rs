@@ -89,9 +89,13 @@ pub fn run_svg(view: &RunView, params: &Params, colour: Colouring) -> String {
 /// width 0, order 1, flow 0. Never panics.
 pub fn render_svg(network: &Network, table: &SegmentTable, options: &SvgOptions) -> String {
     let drawing = Drawing::collect(network, table);
-    let frame = Frame::new(&drawing, network, options);
     let units = network.units.as_str();
     let paper = PaperUnit::of(units);
+    let least_width = match paper {
+        PaperUnit::TrueSize { mm_per_unit } => PRINT_LEAST_WIDTH_MM / mm_per_unit,
+        PaperUnit::Map { .. } | PaperUnit::Unknown => 0.0,
+    };
+    let frame = Frame::new(&drawing, network, options, least_width);
     let denominators = map_scale_candidates();
     let (band, page) = match paper {
         PaperUnit::TrueSize { mm_per_unit } => {

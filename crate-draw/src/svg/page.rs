@@ -19,7 +19,14 @@ pub(super) struct Frame {
 }
 
 impl Frame {
-    pub(super) fn new(drawing: &Drawing, network: &Network, options: &SvgOptions) -> Frame {
+    /// `least_width`: the narrowest view in physical units (the band's text must fit; 0 for
+    /// none).
+    pub(super) fn new(
+        drawing: &Drawing,
+        network: &Network,
+        options: &SvgOptions,
+        least_width: f64,
+    ) -> Frame {
         let [bx0, by0, bx1, by1] = drawing.bounds.unwrap_or([0.0; 4]);
         let network_width = finite_or_zero(bx1 - bx0);
         let network_height = finite_or_zero(by1 - by0);
@@ -48,7 +55,7 @@ impl Frame {
         let mut width = network_width + 2.0 * pad;
         let height = network_height + 2.0 * pad;
         // Leave room for the legend under a narrow drawing.
-        let least = 0.6 * base;
+        let least = (0.6 * base).max(finite_or_zero(least_width));
         if width < least {
             x0 -= 0.5 * (least - width);
             width = least;
@@ -74,12 +81,21 @@ impl Frame {
     }
 }
 
+/// Narrowest paper, in millimetres, of a drawing printed at true size: the band's text is 2.5 mm
+/// high (`PRINT_FONT_MM`), which the width rule of `font_size` (at most 4.5 % of the width)
+/// allows from 2.5 / 0.045 = 55.6 mm on; a small leaf (18 mm wide) is centred on it.
+pub(super) const PRINT_LEAST_WIDTH_MM: f64 = 60.0;
+
+/// Height of the band's text on paper: 2.5 mm, about 7 pt, readable when printed (common
+/// practice, no source).
+pub(super) const PRINT_FONT_MM: f64 = 2.5;
+
 /// Font size in physical units: about 2.5 mm on paper, kept between 2 % and 4.5 % of the width.
 pub(super) fn font_size(frame: &Frame, paper_mm_per_unit: Option<f64>) -> f64 {
     let low = 0.02 * frame.width;
     let high = 0.045 * frame.width;
     let font = match paper_mm_per_unit {
-        Some(scale) if scale > 0.0 && scale.is_finite() => 2.5 / scale,
+        Some(scale) if scale > 0.0 && scale.is_finite() => PRINT_FONT_MM / scale,
         _ => 0.035 * frame.width,
     };
     let font = font.clamp(low.min(high), high.max(low));
