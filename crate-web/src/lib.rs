@@ -19,8 +19,8 @@ mod simulation;
 // ---- specimens (issue 10, page side): traced files measured for the page; see specimen.rs ----
 mod specimen;
 pub use specimen::{
-    measure_specimen, specimen_comparison_json, specimen_max_bytes, specimen_scale_bar_json,
-    specimen_size_refusal,
+    measure_specimen, specimen_comparison_json, specimen_max_bytes, specimen_number_text,
+    specimen_scale_bar_json, specimen_size_refusal,
 };
 // ---- end of specimens ----
 

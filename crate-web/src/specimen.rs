@@ -73,6 +73,12 @@ pub fn specimen_size_refusal(bytes: f64) -> String {
     }
 }
 
+/// A number as the readings write it (up to four significant digits, `format::four_digits`).
+#[wasm_bindgen]
+pub fn specimen_number_text(value: f64) -> String {
+    four_digits(value)
+}
+
 /// A round scale bar about `target_pixels` long in `units` (see `ramulus_draw::scale_bar`), as
 /// JSON `{length, pixels, label}`.
 #[wasm_bindgen]
