@@ -169,10 +169,18 @@ export class SpecimenView extends PlaneView {
     this.message = 'Load a specimen: pick a file, drop one here, or open a demo.';
   }
 
+  /// The specimen's bounds and the image's, together.
   bounds() {
-    if (this.specimen) return this.specimen.bounds;
-    if (this.image) return [this.image.x, this.image.y, this.image.x + this.image.width, this.image.y + this.image.height];
-    return null;
+    const boxes = [];
+    if (this.specimen) boxes.push(this.specimen.bounds);
+    if (this.image) boxes.push([this.image.x, this.image.y, this.image.x + this.image.width, this.image.y + this.image.height]);
+    if (boxes.length === 0) return null;
+    return [
+      Math.min(...boxes.map((box) => box[0])),
+      Math.min(...boxes.map((box) => box[1])),
+      Math.max(...boxes.map((box) => box[2])),
+      Math.max(...boxes.map((box) => box[3])),
+    ];
   }
 
   draw() {

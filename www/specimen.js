@@ -103,7 +103,10 @@ class SpecimenPanel {
       this.showMessage(`${file.name}: ${refusal}. The file was not read.`);
       return;
     }
+    byId('specimen-status').textContent = `Reading ${file.name} (${file.size} bytes)…`;
     const bytes = new Uint8Array(await file.arrayBuffer());
+    // A frame for the line above before the core works on a large file.
+    await new Promise((resolve) => { requestAnimationFrame(() => setTimeout(resolve, 0)); });
     const previous = { file: this.file, root: this.root, bar: this.bar, picks: this.picks };
     this.file = { name: file.name, bytes };
     this.root = null;
@@ -113,6 +116,8 @@ class SpecimenPanel {
     if (!this.measure()) {
       // The file shown before (if any) stays, with its own settings.
       Object.assign(this, previous);
+      if (this.result) this.showStatus();
+      else byId('specimen-status').textContent = '';
       this.showMessage(`${file.name}: ${this.lastError}${this.file ? ` The specimen shown is still ${this.file.name}.` : ''}`);
     }
   }
@@ -174,6 +179,8 @@ class SpecimenPanel {
     this.fitBoth();
     byId('specimen-caption').textContent = `Specimen: ${this.file.name} (${result.format})`;
     byId('specimen-root-default').disabled = this.root === null;
+    byId('specimen-root-pick').disabled = false;
+    byId('specimen-bar-pick').disabled = false;
     byId('specimen-bar-file').hidden = result.scale_bars.length === 0;
     this.showStatus();
     this.showRepairs();
@@ -193,7 +200,7 @@ class SpecimenPanel {
     };
     line(`${this.file.name}: ${result.format}, ${result.nodes} nodes, ${result.segments} segments, total length ${rowValue(result, 'total vein length')} ${result.units}.`);
     line(`Scale: ${result.calibration.rule}.`);
-    for (const root of result.roots) line(`Root: ${root.message}${root.rule === 'given' ? ' (clicked)' : ''}.`);
+    for (const root of result.roots) line(`Root: ${root.message}.`);
   }
 
   showRepairs() {
@@ -474,6 +481,19 @@ class SpecimenPanel {
     status.textContent = '';
     this.placeImage();
     this.fitBoth();
+  }
+
+  /// The image as the browser decoded it: `{width, height, rgba}` with four bytes per pixel,
+  /// rows from the top (unpremultiplied RGBA, as `getImageData` gives). This is what the
+  /// core's image pipeline (threshold, thinning, skeleton graph) takes once it is on the page.
+  imageRgba() {
+    if (!this.image) return null;
+    const { bitmap } = this.image;
+    const canvas = new OffscreenCanvas(bitmap.width, bitmap.height);
+    const context = canvas.getContext('2d', { willReadFrequently: true });
+    context.drawImage(bitmap, 0, 0);
+    const data = context.getImageData(0, 0, bitmap.width, bitmap.height).data;
+    return { width: bitmap.width, height: bitmap.height, rgba: new Uint8Array(data.buffer) };
   }
 
   /// Puts the image under the drawing: its top left corner at the file's origin, one pixel

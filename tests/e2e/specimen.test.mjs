@@ -144,6 +144,7 @@ test('a clicked root and the file\'s scale bar measure as --root and --scale-bar
   const spot = await page.evaluate(() => {
     const view = window.ramulusSpecimens.view;
     const ratio = window.devicePixelRatio || 1;
+    view.canvas.scrollIntoView({ block: 'center' });
     const rect = view.canvas.getBoundingClientRect();
     return { x: rect.left + (160 * 0.25 * view.scale + view.offsetX) / ratio, y: rect.top + (50 * 0.25 * view.scale + view.offsetY) / ratio };
   });
@@ -164,6 +165,29 @@ test('a clicked root and the file\'s scale bar measure as --root and --scale-bar
   const barred = await shown(page);
   const cliBarred = measure('hand-traced-leaf.svg', '--root', '160,50', '--scale-bar', '230,460,270,460,20');
   assert.deepEqual(barred.metrics, cliBarred.metrics);
+  // Two clicks on the drawn bar's ends (file points 230,460 and 270,460) said to be 10 mm:
+  // the clicks land within a screen pixel of them, so the scale is 0.25 mm per user unit
+  // within that pixel's share of the bar.
+  await page.fill('#specimen-bar-length', '10');
+  await page.click('#specimen-bar-pick');
+  for (const [x, y] of [[230, 460], [270, 460]]) {
+    const where = await page.evaluate(([fx, fy]) => {
+      const panel = window.ramulusSpecimens;
+      const view = panel.view;
+      const ratio = window.devicePixelRatio || 1;
+      view.canvas.scrollIntoView({ block: 'center' });
+      const rect = view.canvas.getBoundingClientRect();
+      const [sx, sy] = panel.result.to_file;
+      return { x: rect.left + ((fx / sx) * view.scale + view.offsetX) / ratio, y: rect.top + ((fy / sy) * view.scale + view.offsetY) / ratio, pixel: ratio / view.scale / sx };
+    }, [x, y]);
+    await page.mouse.click(where.x, where.y);
+    if (x === 230) assert.match(await page.textContent('#specimen-message'), /\(1 of 2\)/);
+  }
+  await page.waitForFunction(() => Math.abs(window.ramulusSpecimens.result.calibration.factor - 0.25) < 0.01);
+  const clickedBar = await page.evaluate(() => window.ramulusSpecimens.bar);
+  assert.ok(Math.hypot(clickedBar.from[0] - 230, clickedBar.from[1] - 460) < 2, JSON.stringify(clickedBar));
+  assert.ok(Math.hypot(clickedBar.to[0] - 270, clickedBar.to[1] - 460) < 2, JSON.stringify(clickedBar));
+  assert.match(await page.textContent('#specimen-status'), /Scale: 0\.2\d* mm per file unit, from two points 10 mm apart/);
   // A factor typed in: 0.1 mm per user unit.
   await page.selectOption('#specimen-scale', 'factor');
   await page.fill('#specimen-factor', '0.1');
@@ -238,6 +262,51 @@ test('bad files are refused with the core\'s message naming the place; the page 
   assert.equal(await page.textContent('[data-role="digest"]'), digest);
   await page.click('#restart');
   assert.equal(await finishedDigest(page), nativeRun(await fragmentOf(page)).digest);
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});
+
+test('a cleared-leaf image lies under the specimen at its calibrated scale; a broken image is named', async () => {
+  const page = await newPage(context);
+  await page.goto(site.url);
+  await finishedDigest(page);
+  await openDemo(page, 'hand-traced-leaf.svg');
+  // A 320 x 480 picture (the drawing's viewBox in pixels), one pixel per user unit: at the
+  // file's 4 user units per mm (80 mm wide, viewBox 320 wide) it spans 80 x 120 mm.
+  const placed = await page.evaluate(async () => {
+    const canvas = new OffscreenCanvas(320, 480);
+    const context = canvas.getContext('2d');
+    context.fillStyle = 'rgb(200, 220, 180)';
+    context.fillRect(0, 0, 320, 480);
+    context.fillStyle = 'rgb(10, 20, 30)';
+    context.fillRect(100, 200, 1, 1);
+    const blob = await canvas.convertToBlob({ type: 'image/png' });
+    const panel = window.ramulusSpecimens;
+    await panel.openFile(new File([blob], 'cleared.png', { type: 'image/png' }));
+    const pixels = panel.imageRgba();
+    const at = (x, y) => [...pixels.rgba.slice(4 * (y * pixels.width + x), 4 * (y * pixels.width + x) + 4)];
+    return {
+      image: { ...panel.view.image, bitmap: undefined },
+      size: [pixels.width, pixels.height],
+      dark: at(100, 200),
+      light: at(0, 0),
+      status: document.getElementById('specimen-image-status').textContent,
+    };
+  });
+  assert.deepEqual(placed.size, [320, 480]);
+  assert.deepEqual(placed.dark, [10, 20, 30, 255]);
+  assert.deepEqual(placed.light, [200, 220, 180, 255]);
+  assert.equal(placed.image.width, 80);
+  assert.equal(placed.image.height, 120);
+  assert.match(placed.status, /320 × 480 pixels, each 0\.25 mm/);
+  // Two file units per pixel: twice as large.
+  await page.fill('#specimen-image-pixel', '2');
+  await page.press('#specimen-image-pixel', 'Tab');
+  assert.equal(await page.evaluate(() => window.ramulusSpecimens.view.image.width), 160);
+  await screenshot(page, '22-specimen-image');
+  await page.setInputFiles('#specimen-image', { name: 'broken.png', mimeType: 'image/png', buffer: Buffer.from('\x89PNG\r\n\x1a\nnot really') });
+  await page.waitForFunction(() => document.getElementById('specimen-message').textContent.startsWith('broken.png'));
+  assert.match(await page.textContent('#specimen-message'), /not an image this browser can decode/);
   assert.deepEqual(page.errors, []);
   await page.close();
 });
