@@ -129,7 +129,7 @@ class SpecimenPanel {
       units: byId('specimen-units').value,
       scale: this.scaleOption(),
       root: this.root,
-      snap: null,
+      snap: this.snapOption(),
     };
     if (options.scale === undefined) return false;
     const result = JSON.parse(this.core.measure_specimen(this.file.bytes, JSON.stringify(options)));
@@ -143,13 +143,18 @@ class SpecimenPanel {
     return true;
   }
 
+  /// The snap tolerance as typed (the core reads it; empty for its default).
+  snapOption() {
+    return byId('specimen-snap').value;
+  }
+
   /// The scale option for the core, or undefined while a scale bar is not complete.
   scaleOption() {
     const kind = byId('specimen-scale').value;
-    if (kind === 'factor') return { factor: Number(byId('specimen-factor').value.trim() || NaN) };
+    if (kind === 'factor') return { factor: byId('specimen-factor').value };
     if (kind === 'bar') {
       if (!this.bar) return undefined;
-      return { from: this.bar.from, to: this.bar.to, distance: Number(byId('specimen-bar-length').value.trim() || NaN) };
+      return { from: this.bar.from, to: this.bar.to, distance: byId('specimen-bar-length').value };
     }
     return 'file';
   }
@@ -269,7 +274,7 @@ class SpecimenPanel {
     }
     for (const bar of this.result.scale_bars) {
       const item = document.createElement('li');
-      item.textContent = `A scale bar is drawn in the file (${bar.element}); type its length and press "Use the file's bar" to scale by it.`;
+      item.textContent = `A scale bar is drawn in the file (${bar.element}); to scale by it, choose Scale from "a scale bar", type its length and press "Use the file's bar".`;
       notes.append(item);
     }
   }
@@ -592,6 +597,7 @@ class SpecimenPanel {
       this.remeasure();
     });
     byId('specimen-factor').addEventListener('change', () => this.remeasure());
+    byId('specimen-snap').addEventListener('change', () => this.remeasure());
     byId('specimen-bar-length').addEventListener('change', () => this.remeasure());
     byId('specimen-image-pixel').addEventListener('change', () => {
       this.placeImage();

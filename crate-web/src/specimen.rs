@@ -105,11 +105,20 @@ pub fn specimen_comparison_json(
     }
 }
 
-/// A number of an options object, `None` when absent or null.
+/// A number of an options object, as a JSON number or as the text the user typed; `None`
+/// when absent, null or empty.
 fn number(value: &Value, what: &str) -> Result<Option<f64>, String> {
     match value {
         Value::Null => Ok(None),
         Value::Number(number) => Ok(number.as_f64()),
+        Value::String(text) if text.trim().is_empty() => Ok(None),
+        Value::String(text) => match text.trim().parse::<f64>() {
+            Ok(number) if number.is_finite() => Ok(Some(number)),
+            _ => Err(format!(
+                "{what} must be a finite number, is \"{}\"",
+                text.trim()
+            )),
+        },
         other => Err(format!("{what} must be a number, is {other}")),
     }
 }
@@ -140,9 +149,11 @@ fn options_from_json(options_json: &str) -> Result<SpecimenOptions, String> {
     let scale = match &options["scale"] {
         Value::Null => ScaleRule::FromFile,
         Value::String(text) if text == "file" => ScaleRule::FromFile,
-        object @ Value::Object(_) if !object["factor"].is_null() => {
-            ScaleRule::Factor(number(&object["factor"], "the scale factor")?.unwrap_or(f64::NAN))
-        }
+        object @ Value::Object(_) if !object["factor"].is_null() => ScaleRule::Factor(
+            number(&object["factor"], "the scale factor")?.ok_or_else(|| {
+                "the scale factor is empty: type the units per file unit".to_string()
+            })?,
+        ),
         object @ Value::Object(_) => {
             let from = point(&object["from"], "the scale bar's first point")?;
             let to = point(&object["to"], "the scale bar's second point")?;
@@ -150,6 +161,9 @@ fn options_from_json(options_json: &str) -> Result<SpecimenOptions, String> {
             match (from, to, distance) {
                 (Some(from), Some(to), Some(distance)) => {
                     ScaleRule::TwoPoints { from, to, distance }
+                }
+                (Some(_), Some(_), None) => {
+                    return Err("the scale bar's length is empty: type it".to_string())
                 }
                 _ => {
                     return Err(
@@ -428,6 +442,20 @@ mod tests {
             .as_str()
             .unwrap()
             .contains("scale factor"));
+        // Typed text: a number reads, anything else is named, never taken as absent.
+        let typed: Value = serde_json::from_str(&measure_specimen(
+            csv,
+            r#"{"units": "mm", "scale": {"factor": " 2 "}, "snap": ""}"#,
+        ))
+        .unwrap();
+        assert_eq!(typed["total_length"], 14.0);
+        let typo: Value =
+            serde_json::from_str(&measure_specimen(csv, r#"{"units": "mm", "snap": "0,1"}"#))
+                .unwrap();
+        assert_eq!(
+            typo["error"]["message"],
+            "the snap tolerance must be a finite number, is \"0,1\""
+        );
     }
 
     /// The comparison: a specimen with total length 10 against runs of 8, 10 and 12 (mean 10,

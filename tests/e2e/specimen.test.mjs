@@ -194,6 +194,17 @@ test('a clicked root and the file\'s scale bar measure as --root and --scale-bar
   await page.press('#specimen-factor', 'Tab');
   await page.waitForFunction(() => window.ramulusSpecimens.result.calibration.factor === 0.1);
   assert.deepEqual((await shown(page)).metrics, measure('hand-traced-leaf.svg', '--root', '160,50', '--scale', '0.1').metrics);
+  // A typing slip is named and the specimen stays as last measured.
+  await page.fill('#specimen-factor', 'abc');
+  await page.press('#specimen-factor', 'Tab');
+  assert.match(await page.textContent('#specimen-message'), /the scale factor must be a finite number, is "abc"/);
+  assert.equal(await page.evaluate(() => window.ramulusSpecimens.result.calibration.factor), 0.1);
+  // A snap tolerance typed in reaches the core as --snap does.
+  await page.selectOption('#specimen-scale', 'file');
+  await page.fill('#specimen-snap', '0.5');
+  await page.press('#specimen-snap', 'Tab');
+  await page.waitForFunction(() => window.ramulusSpecimens.result.snap_tolerance === 0.5);
+  assert.deepEqual((await shown(page)).metrics, measure('hand-traced-leaf.svg', '--root', '160,50', '--snap', '0.5').metrics);
   // Back to the core's default root.
   await page.click('#specimen-root-default');
   await page.waitForFunction(() => window.ramulusSpecimens.result.roots[0].rule === 'lowest end');
