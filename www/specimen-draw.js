@@ -61,6 +61,11 @@ class PlaneView {
     this.offsetY = this.canvas.height / 2 - ((y0 + y1) / 2) * scale;
   }
 
+  /// Plane coordinates of the middle of the canvas.
+  centre() {
+    return [(this.canvas.width / 2 - this.offsetX) / this.scale, (this.canvas.height / 2 - this.offsetY) / this.scale];
+  }
+
   /// Centres `(x, y)` and zooms so that `span` units fill about a third of the canvas.
   showPoint(x, y, span) {
     const scale = Math.min(this.canvas.width, this.canvas.height) / 3 / Math.max(span, 1e-9);
@@ -166,6 +171,8 @@ export class SpecimenView extends PlaneView {
     this.image = null; // {bitmap, x, y, width, height} in output units
     this.picked = []; // points picked for a scale bar, in output units
     this.highlighted = -1; // index into specimen.repairs
+    this.picking = false; // waiting for a point to be picked
+    this.focused = false; // the canvas has the keyboard
     this.message = 'Load a specimen: pick a file, drop one here, or open a demo.';
   }
 
@@ -266,6 +273,19 @@ export class SpecimenView extends PlaneView {
         ctx.fill();
         ctx.stroke();
       }
+    }
+    if (this.picking && this.focused) {
+      // The keyboard's pointer: a cross in the middle of the drawing.
+      const cx = this.canvas.width / 2;
+      const cy = this.canvas.height / 2;
+      ctx.strokeStyle = '#0072b2';
+      ctx.lineWidth = 1.5 * ratio;
+      ctx.beginPath();
+      ctx.moveTo(cx - 14 * ratio, cy);
+      ctx.lineTo(cx + 14 * ratio, cy);
+      ctx.moveTo(cx, cy - 14 * ratio);
+      ctx.lineTo(cx, cy + 14 * ratio);
+      ctx.stroke();
     }
     for (const [x, y] of this.picked) {
       ctx.strokeStyle = '#d55e00';

@@ -405,9 +405,11 @@ class SpecimenPanel {
     byId('specimen-root-pick').setAttribute('aria-pressed', String(mode === 'root'));
     byId('specimen-bar-pick').setAttribute('aria-pressed', String(mode === 'bar'));
     byId('specimen-canvas').classList.toggle('picking', mode !== null);
+    this.view.picking = mode !== null;
+    this.view.draw();
     const prompt = {
-      root: 'Click the root (petiole base) on the specimen drawing.',
-      bar: `Click the two ends of the scale bar on the specimen drawing (${this.picks.length} of 2).`,
+      root: 'Click the root (petiole base) on the specimen drawing (or, with the drawing focused, move it under the cross with the arrow keys and press Enter).',
+      bar: `Click the two ends of the scale bar on the specimen drawing (${this.picks.length} of 2; or arrow keys and Enter).`,
     }[mode];
     byId('specimen-canvas').dataset.mode = mode ?? '';
     if (prompt) this.showPrompt(prompt);
@@ -633,9 +635,33 @@ class SpecimenPanel {
     byId('specimen-compare-stop').addEventListener('click', () => { this.stopRequested = true; });
     this.view.wire((point) => this.clicked(point));
     this.runView.wire(() => {});
-    byId('specimen-canvas').addEventListener('keydown', (event) => {
-      if (event.key === 'Escape' && this.mode) this.setMode(null);
+    // The keyboard's way: arrows pan, + and - zoom, 0 fits; while picking, Enter or Space
+    // picks the point under the cross in the middle of the drawing, Escape stops.
+    const canvas = byId('specimen-canvas');
+    canvas.addEventListener('keydown', (event) => {
+      const view = this.view;
+      const step = 40 * view.ratio();
+      const actions = {
+        '+': () => view.zoom(1.25),
+        '=': () => view.zoom(1.25),
+        '-': () => view.zoom(0.8),
+        0: () => this.fitBoth(),
+        ArrowLeft: () => view.pan(step, 0),
+        ArrowRight: () => view.pan(-step, 0),
+        ArrowUp: () => view.pan(0, step),
+        ArrowDown: () => view.pan(0, -step),
+        Escape: () => this.setMode(null),
+        Enter: () => this.clicked(view.centre()),
+        ' ': () => this.clicked(view.centre()),
+      };
+      const action = actions[event.key];
+      if (!action || (!this.mode && ['Enter', ' ', 'Escape'].includes(event.key))) return;
+      event.preventDefault();
+      action();
+      view.draw();
     });
+    canvas.addEventListener('focus', () => { this.view.focused = true; this.view.draw(); });
+    canvas.addEventListener('blur', () => { this.view.focused = false; this.view.draw(); });
     new ResizeObserver(() => this.fitBoth()).observe(byId('specimen-canvas'));
     // The page shows a finished run's digest (16 hex digits) in #digest: then the run is
     // copied beside the specimen.

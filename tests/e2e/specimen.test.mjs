@@ -181,7 +181,7 @@ test('a clicked root and the file\'s scale bar measure as --root and --scale-bar
       return { x: rect.left + ((fx / sx) * view.scale + view.offsetX) / ratio, y: rect.top + ((fy / sy) * view.scale + view.offsetY) / ratio, pixel: ratio / view.scale / sx };
     }, [x, y]);
     await page.mouse.click(where.x, where.y);
-    if (x === 230) assert.match(await page.textContent('#specimen-message'), /\(1 of 2\)/);
+    if (x === 230) assert.match(await page.textContent('#specimen-message'), /\(1 of 2;/);
   }
   await page.waitForFunction(() => Math.abs(window.ramulusSpecimens.result.calibration.factor - 0.25) < 0.01);
   const clickedBar = await page.evaluate(() => window.ramulusSpecimens.bar);
@@ -208,6 +208,21 @@ test('a clicked root and the file\'s scale bar measure as --root and --scale-bar
   // Back to the core's default root.
   await page.click('#specimen-root-default');
   await page.waitForFunction(() => window.ramulusSpecimens.result.roots[0].rule === 'lowest end');
+  // By keyboard: the cross in the middle of the drawing is put on the midrib's top end (here by
+  // the view, as arrow keys would), Enter picks it.
+  await page.focus('#specimen-root-pick');
+  await page.keyboard.press('Enter');
+  await page.focus('#specimen-canvas');
+  await page.evaluate(() => {
+    const view = window.ramulusSpecimens.view;
+    view.offsetX = view.canvas.width / 2 - 40 * view.scale;
+    view.offsetY = view.canvas.height / 2 - 12.5 * view.scale;
+  });
+  await page.keyboard.press('ArrowLeft');
+  await page.keyboard.press('ArrowRight');
+  await page.keyboard.press('Enter');
+  await page.waitForFunction(() => window.ramulusSpecimens.result.roots[0].rule === 'given');
+  assert.deepEqual((await shown(page)).metrics, measure('hand-traced-leaf.svg', '--root', '160,50', '--snap', '0.5').metrics);
   assert.deepEqual(page.errors, []);
   await page.close();
 });
