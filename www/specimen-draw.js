@@ -172,6 +172,7 @@ export class SpecimenView extends PlaneView {
     this.picked = []; // points picked for a scale bar, in output units
     this.highlighted = -1; // index into specimen.repairs
     this.picking = false; // waiting for a point to be picked
+    this.hiddenKinds = new Set(); // repair kinds whose markers are not drawn
     this.focused = false; // the canvas has the keyboard
     this.message = 'Load a specimen: pick a file, drop one here, or open a demo.';
   }
@@ -247,13 +248,16 @@ export class SpecimenView extends PlaneView {
         ctx.stroke();
       }
       const colours = Object.fromEntries(specimen.kinds.map((kind) => [kind.kind, kind.colour]));
+      // Smaller rings when there are many.
+      const ring = specimen.repairs.length > 200 ? 3 : 5;
       specimen.repairs.forEach((repair, index) => {
-        const [x, y] = repair.marker;
         const big = index === this.highlighted;
+        if (!big && this.hiddenKinds.has(repair.kind)) return;
+        const [x, y] = repair.marker;
         ctx.strokeStyle = colours[repair.kind] ?? INK;
         ctx.lineWidth = (big ? 3 : 2) * ratio;
         ctx.beginPath();
-        ctx.arc(x * s + ox, y * s + oy, (big ? 11 : 5) * ratio, 0, 2 * Math.PI);
+        ctx.arc(x * s + ox, y * s + oy, (big ? 11 : ring) * ratio, 0, 2 * Math.PI);
         ctx.stroke();
         if (big) {
           ctx.beginPath();

@@ -217,17 +217,29 @@ class SpecimenPanel {
       total += kind.count;
       const item = document.createElement('li');
       item.dataset.kind = kind.kind;
+      // Each kind's markers can be hidden, so that thousands of one kind do not hide the rest.
+      const label = document.createElement('label');
+      const box = document.createElement('input');
+      box.type = 'checkbox';
+      box.checked = !this.view.hiddenKinds.has(kind.kind);
+      box.disabled = kind.count === 0;
+      box.addEventListener('change', () => {
+        if (box.checked) this.view.hiddenKinds.delete(kind.kind);
+        else this.view.hiddenKinds.add(kind.kind);
+        this.view.draw();
+      });
       const swatch = document.createElement('i');
       swatch.style.borderColor = kind.colour;
       const text = document.createElement('span');
       text.textContent = `${kind.label}: ${kind.count}`;
-      item.append(swatch, text);
+      label.append(box, swatch, text);
+      item.append(label);
       if (kind.count === 0) item.classList.add('none');
       kinds.append(item);
     }
     byId('specimen-repair-summary').textContent = total === 0
       ? `No repairs were needed (snap tolerance ${this.core.specimen_number_text(result.snap_tolerance)} ${result.units}).`
-      : `${total} repair${total === 1 ? '' : 's'} (snap tolerance ${this.core.specimen_number_text(result.snap_tolerance)} ${result.units}), each marked on the drawing with a ring of its kind's colour. Pick one to see where it is.`;
+      : `${total} repair${total === 1 ? '' : 's'} (snap tolerance ${this.core.specimen_number_text(result.snap_tolerance)} ${result.units}), each marked on the drawing with a ring of its kind's colour (untick a kind to hide its rings). Pick one in the list to see where it is.`;
     const list = byId('specimen-repairs');
     list.replaceChildren();
     const colours = Object.fromEntries(result.kinds.map((kind) => [kind.kind, kind.colour]));
