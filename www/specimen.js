@@ -113,7 +113,15 @@ class SpecimenPanel {
     this.bar = null;
     this.picks = [];
     this.setMode(null);
+    // A scale bar clicked on another file means nothing here: start from the file's scale.
+    const scaleBefore = byId('specimen-scale').value;
+    if (scaleBefore === 'bar') {
+      byId('specimen-scale').value = 'file';
+      this.showScaleRows();
+    }
     if (!this.measure()) {
+      byId('specimen-scale').value = scaleBefore;
+      this.showScaleRows();
       // The file shown before (if any) stays, with its own settings.
       Object.assign(this, previous);
       if (this.result) this.showStatus();
@@ -131,7 +139,10 @@ class SpecimenPanel {
       root: this.root,
       snap: this.snapOption(),
     };
-    if (options.scale === undefined) return false;
+    if (options.scale === undefined) {
+      this.lastError = 'The scale bar is not set yet: click its two ends on the drawing.';
+      return false;
+    }
     const result = JSON.parse(this.core.measure_specimen(this.file.bytes, JSON.stringify(options)));
     if (result.error) {
       this.lastError = `${result.error.message}.`;
