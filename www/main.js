@@ -51,6 +51,13 @@ async function start() {
   });
   window.ramulusPage = { runner, view, state };
 
+  // ---- specimens (issue 10, page side): its own modules (specimen*.js), sharing the session;
+  // a failure there leaves the rest of the page working ----
+  import('./specimen.js')
+    .then(({ startSpecimens }) => startSpecimens({ session: state.session, state }))
+    .catch((error) => notice(`The specimen panel could not start: ${messageOf(error)}`));
+  // ---- end of specimens ----
+
   fillStartList();
   // page-ux: the guide, and the image-mask upload beside the mask field it sets.
   showGuide(byId('guide'), byId('guide-close'));

@@ -16,6 +16,14 @@ use wasm_bindgen::prelude::*;
 pub mod memory;
 mod simulation;
 
+// ---- specimens (issue 10, page side): traced files measured for the page; see specimen.rs ----
+mod specimen;
+pub use specimen::{
+    measure_specimen, specimen_comparison_json, specimen_max_bytes, specimen_number_text,
+    specimen_scale_bar_json, specimen_size_refusal,
+};
+// ---- end of specimens ----
+
 pub use memory::RunMemory;
 pub use simulation::Simulation;
 
