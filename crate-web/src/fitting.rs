@@ -7,7 +7,7 @@
 
 use ramulus_core::fit::plan::{fittable, metric_value};
 use ramulus_core::fit::sensitivity::{
-    design_jobs, predictive_jobs, predictive_rows, sensitivity, PredictiveRow,
+    design_jobs, predictive_jobs, predictive_rows, sensitivity, PredictiveRow, NOISE_UNITS,
 };
 use ramulus_core::fit::simulate::run_job;
 use ramulus_core::fit::{
@@ -21,6 +21,7 @@ use ramulus_core::params::Params;
 use ramulus_core::record::read_record;
 use ramulus_core::run::RunView;
 use ramulus_core::specimen::{build_specimen, SpecimenOptions};
+use ramulus_draw::format::{four_digits, grouped};
 use ramulus_draw::palette::Colouring;
 use serde::{Deserialize, Serialize};
 use serde_json::json;
@@ -280,7 +281,9 @@ impl FitSession {
             let observed = metric_value(&metrics, key)
                 .map_err(fit_error)?
                 .ok_or_else(|| {
-                    JsError::new(&format!("{name}: the specimen has no value for metric `{key}`"))
+                    JsError::new(&format!(
+                        "{name}: the specimen has no value for metric `{key}`"
+                    ))
                 })?;
             targets.push(Target {
                 key: key.to_string(),
@@ -478,6 +481,38 @@ impl FitSession {
         serde_json::to_string(&self.checks).unwrap_or_default()
     }
 
+    /// The sensitivity table for the page, numbers as text: `{rows: [{key, metric, effect,
+    /// noise, ratio, seen}], warnings: [text]}`, or `null` before the design has run.
+    pub fn sensitivity_table_json(&self) -> String {
+        let Some(checks) = &self.checks else {
+            return "null".into();
+        };
+        let rows: Vec<serde_json::Value> = checks
+            .rows
+            .iter()
+            .map(|row| {
+                json!({
+                    "key": row.key, "metric": row.metric,
+                    "effect": four_digits(row.effect), "noise": four_digits(row.noise),
+                    "ratio": if row.ratio.is_finite() { four_digits(row.ratio) } else { "no noise".into() },
+                    "seen": row.ratio >= NOISE_UNITS,
+                })
+            })
+            .collect();
+        let warnings: Vec<String> = checks
+            .unidentifiable
+            .iter()
+            .map(|key| {
+                format!(
+                    "No chosen metric moves `{key}` by {NOISE_UNITS} times its seed noise \
+                     across the fitted range: its interval will mostly echo the bounds given. \
+                     Match a metric that moves it, or fix it instead of fitting it."
+                )
+            })
+            .collect();
+        json!({"rows": rows, "warnings": warnings}).to_string()
+    }
+
     /// Exactly what `ramulus fit --json --page PAGE` prints for this plan, once done.
     pub fn report_json(&self, page: &str) -> Result<String, JsError> {
         let (result, checks) = self.finished()?;
@@ -506,8 +541,9 @@ impl FitSession {
         .to_string())
     }
 
-    /// The page's tables: `{posterior: [{key, median, low, high, fit_low, fit_high, scale}],
-    /// predictive: [{metric, label, unit, specimen, median, low, high, inside}]}`.
+    /// The page's tables, numbers as text: `{posterior: [{key, label, unit, median, low, high,
+    /// range, scale}], predictive: [{metric, label, unit, specimen, median, low, high,
+    /// inside}], summary}`.
     pub fn tables_json(&self) -> Result<String, JsError> {
         let (result, _) = self.finished()?;
         let units = &self.plan.base.domain.units;
@@ -520,8 +556,10 @@ impl FitSession {
                     "key": interval.key,
                     "label": parameter(&interval.key).map(|spec| spec.label).unwrap_or_default(),
                     "unit": parameter(&interval.key).map(|spec| spec.unit).unwrap_or_default(),
-                    "median": interval.median, "low": interval.low, "high": interval.high,
-                    "fit_low": key.low, "fit_high": key.high, "scale": key.scale,
+                    "median": four_digits(interval.median), "low": four_digits(interval.low),
+                    "high": four_digits(interval.high),
+                    "range": format!("{} to {}", four_digits(key.low), four_digits(key.high)),
+                    "scale": key.scale,
                 })
             })
             .collect();
@@ -534,12 +572,26 @@ impl FitSession {
                     "metric": row.metric,
                     "label": entry.map(|entry| entry.label).unwrap_or_default(),
                     "unit": entry.map(|entry| entry.unit.text(units, self.plan.base.costs.alpha)).unwrap_or_default(),
-                    "specimen": row.specimen, "median": row.median,
-                    "low": row.low, "high": row.high, "inside": row.inside,
+                    "specimen": four_digits(row.specimen), "median": four_digits(row.median),
+                    "low": four_digits(row.low), "high": four_digits(row.high),
+                    "inside": row.inside,
                 })
             })
             .collect();
-        Ok(json!({"posterior": posterior, "predictive": predictive}).to_string())
+        let summary = format!(
+            "{} parameter sets simulated ({} seeds each), {} accepted; best distance {}.",
+            grouped(result.simulations),
+            self.plan.replicates,
+            grouped(result.accepted),
+            four_digits(result.best.distance)
+        );
+        Ok(json!({
+            "posterior": posterior,
+            "predictive": predictive,
+            "summary": summary,
+            "notes": result.notes,
+        })
+        .to_string())
     }
 
     /// The weighted posterior sample as CSV: one row per particle, the fitted keys' values,
@@ -568,16 +620,16 @@ impl FitSession {
     /// The pairwise posterior plots and the convergence panel (`ramulus fit --plots`).
     pub fn posterior_svg(&self) -> Result<String, JsError> {
         let (result, _) = self.finished()?;
-        Ok(ramulus_draw::posterior_svg::posterior_svg(&self.plan, result))
+        Ok(ramulus_draw::posterior_svg::posterior_svg(
+            &self.plan, result,
+        ))
     }
 
     /// The best run's link fragment (without `#`).
     pub fn best_fragment(&self) -> String {
         self.result
             .as_ref()
-            .map(|result| {
-                encode_link(&self.plan.params_for(&result.best.values, result.best.seed))
-            })
+            .map(|result| encode_link(&self.plan.params_for(&result.best.values, result.best.seed)))
             .unwrap_or_default()
     }
 
@@ -587,7 +639,11 @@ impl FitSession {
             return Ok(String::new());
         };
         let view = RunView::new(network.clone(), params).map_err(fit_error)?;
-        Ok(ramulus_draw::run_svg(&view, params, colouring_named(colouring)?))
+        Ok(ramulus_draw::run_svg(
+            &view,
+            params,
+            colouring_named(colouring)?,
+        ))
     }
 }
 
@@ -651,6 +707,39 @@ impl FitWorker {
     }
 }
 
+/// The progress line: `Fit: 120 of about 2,000 parameter sets, 1 min 5 s left (2 workers)`.
+#[wasm_bindgen]
+pub fn fit_progress_text(
+    phase: &str,
+    done: f64,
+    total: f64,
+    seconds_left: f64,
+    workers: u32,
+) -> String {
+    let stage = match phase {
+        "design" => "Sensitivity check",
+        "fit" => "Fit",
+        "predictive" => "Predictive check",
+        _ => "Done",
+    };
+    let left = if seconds_left.is_finite() && seconds_left >= 0.0 && done > 0.0 {
+        let seconds = (seconds_left + 0.5) as u64;
+        if seconds >= 60 {
+            format!(", {} min {} s left", seconds / 60, seconds % 60)
+        } else {
+            format!(", {seconds} s left")
+        }
+    } else {
+        String::new()
+    };
+    format!(
+        "{stage}: {} of about {} parameter sets{left} ({workers} worker{})",
+        grouped(done.max(0.0) as u64),
+        grouped(total.max(0.0) as u64),
+        if workers == 1 { "" } else { "s" }
+    )
+}
+
 /// The SVG of the run a link grows, grown to its end (the best run, drawn in a worker).
 #[wasm_bindgen]
 pub fn fit_run_svg(link: &str, colouring: &str) -> Result<String, JsError> {
@@ -659,7 +748,11 @@ pub fn fit_run_svg(link: &str, colouring: &str) -> Result<String, JsError> {
     let mut growth = ramulus_core::growth::Growth::new(&params).map_err(fit_error)?;
     growth.run();
     let view = RunView::new(growth.network(), &params).map_err(fit_error)?;
-    Ok(ramulus_draw::run_svg(&view, &params, colouring_named(colouring)?))
+    Ok(ramulus_draw::run_svg(
+        &view,
+        &params,
+        colouring_named(colouring)?,
+    ))
 }
 
 fn colouring_named(name: &str) -> Result<Colouring, JsError> {
@@ -719,8 +812,7 @@ mod tests {
     #[test]
     fn default_ranges_pass_the_plans_bound_check() {
         let link = encode_link(&ramulus_core::presets::presets()[0].params);
-        let choices: serde_json::Value =
-            serde_json::from_str(&fit_choices_json(&link)).unwrap();
+        let choices: serde_json::Value = serde_json::from_str(&fit_choices_json(&link)).unwrap();
         let keys = choices["keys"].as_array().unwrap();
         assert!(keys.len() >= 10, "{choices}");
         for key in keys {
