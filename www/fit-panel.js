@@ -88,12 +88,12 @@ class FitPanel {
       tick.checked = STARTING_KEYS.includes(key.key);
       const low = element('input', { id: `fit-low-${key.key}`, inputmode: 'decimal', autocomplete: 'off', size: '7' });
       const high = element('input', { id: `fit-high-${key.key}`, inputmode: 'decimal', autocomplete: 'off', size: '7' });
-      low.value = String(key.low);
-      high.value = String(key.high);
+      low.value = key.low_text;
+      high.value = key.high_text;
       low.setAttribute('aria-label', `${key.key}: lower bound`);
       high.setAttribute('aria-label', `${key.key}: upper bound`);
       const label = element('label', { for: tick.id, title: `Allowed: ${key.allowed}` });
-      label.append(element('code', {}, key.key), ` ${key.label}${key.unit ? ` (${key.unit})` : ''}`);
+      label.append(element('code', {}, key.key), describe(key));
       row.append(cell(tick), cell(label), cell(low), cell(high), element('td', {}, key.scale));
       keyBody.append(row);
       this.keyRows.set(key.key, { tick, low, high });
@@ -115,7 +115,7 @@ class FitPanel {
       const weight = element('input', { id: `fit-weight-${metric.key}`, inputmode: 'decimal', autocomplete: 'off', size: '5', placeholder: '1' });
       weight.setAttribute('aria-label', `${metric.key}: weight`);
       const label = element('label', { for: tick.id });
-      label.append(element('code', {}, metric.key), ` ${metric.label}${metric.unit ? ` (${metric.unit})` : ''}`);
+      label.append(element('code', {}, metric.key), describe(metric));
       row.append(cell(tick), cell(label), cell(weight));
       metricBody.append(row);
       this.metricRows.set(metric.key, { tick, weight });
@@ -128,8 +128,8 @@ class FitPanel {
     const defaults = choices.defaults;
     this.method = element('select', { id: 'fit-method' });
     this.method.append(
-      element('option', { value: 'sequential' }, 'sequential (ABC-SMC, adaptive tolerances)'),
-      element('option', { value: 'quick' }, 'quick (rejection with regression adjustment)'),
+      element('option', { value: 'sequential' }, 'sequential (ABC-SMC)'),
+      element('option', { value: 'quick' }, 'quick (rejection)'),
     );
     const number = (id, value) => {
       const input = element('input', { id, inputmode: 'numeric', autocomplete: 'off', size: '8' });
@@ -504,6 +504,14 @@ class FitPanel {
     this.root.scrollIntoView?.();
     this.start(false);
   }
+}
+
+/// ` label (unit)` after a key: the label when it says more than the key, the unit when
+/// there is one.
+function describe({ key, label, unit }) {
+  const words = label && label !== key ? ` ${label}` : '';
+  const shownUnit = unit && unit !== '-' ? ` (${unit})` : '';
+  return `${words}${shownUnit}`;
 }
 
 function headRow(names) {

@@ -14,7 +14,7 @@ use ramulus_core::fit::{
     Fit, FitPlan, FitResult, FittedKey, Job, Method, Outcome, Sensitivity, Target,
 };
 use ramulus_core::link::{decode_link, encode_link};
-use ramulus_core::metrics::{Metrics, METRIC_TABLE};
+use ramulus_core::metrics::{MetricEntry, MetricUnit, Metrics, METRIC_TABLE};
 use ramulus_core::network::Network;
 use ramulus_core::params::table::{parameter, parameters, Access, FitScale};
 use ramulus_core::params::Params;
@@ -52,7 +52,7 @@ struct Defaults {
     seed: u64,
 }
 
-/// What the panel offers: `{keys: [{key, label, unit, scale, low, high, allowed}], metrics:
+/// What the panel offers: `{keys: [{key, label, unit, scale, low_text, high_text, allowed}], metrics:
 /// [{key, label, unit}], defaults: {...}}`. A key's default range is the whole allowed range
 /// when that spans at most 200 of its units, else the value in `link` plus or minus its own
 /// size (at least 1), or a third to three times it on a log scale, clipped to the allowed range
@@ -70,8 +70,8 @@ pub fn fit_choices_json(link: &str) -> String {
                 "label": spec.label,
                 "unit": spec.unit,
                 "scale": scale,
-                "low": low,
-                "high": high,
+                "low_text": four_digits(low),
+                "high_text": four_digits(high),
                 "allowed": spec.allowed_text(),
             }))
         })
@@ -84,7 +84,7 @@ pub fn fit_choices_json(link: &str) -> String {
             json!({
                 "key": entry.key,
                 "label": entry.label,
-                "unit": entry.unit.text(&units, params.costs.alpha),
+                "unit": unit_text(entry, &units, params.costs.alpha),
             })
         })
         .collect();
@@ -571,7 +571,7 @@ impl FitSession {
                 json!({
                     "metric": row.metric,
                     "label": entry.map(|entry| entry.label).unwrap_or_default(),
-                    "unit": entry.map(|entry| entry.unit.text(units, self.plan.base.costs.alpha)).unwrap_or_default(),
+                    "unit": entry.map(|entry| unit_text(entry, units, self.plan.base.costs.alpha)).unwrap_or_default(),
                     "specimen": four_digits(row.specimen), "median": four_digits(row.median),
                     "low": four_digits(row.low), "high": four_digits(row.high),
                     "inside": row.inside,
@@ -755,6 +755,16 @@ pub fn fit_run_svg(link: &str, colouring: &str) -> Result<String, JsError> {
     ))
 }
 
+/// A metric's unit for a table cell: empty for counts and ratios.
+fn unit_text(entry: &MetricEntry, units: &str, alpha: f64) -> String {
+    let text = entry.unit.text(units, alpha);
+    if matches!(entry.unit, MetricUnit::Count | MetricUnit::Dimensionless) {
+        String::new()
+    } else {
+        text
+    }
+}
+
 fn colouring_named(name: &str) -> Result<Colouring, JsError> {
     Colouring::from_name(name).ok_or_else(|| JsError::new(&format!("no colouring `{name}`")))
 }
@@ -821,8 +831,8 @@ mod tests {
                 base: decode_link(&link).params,
                 fitted: vec![FittedKey {
                     key: name.into(),
-                    low: key["low"].as_f64().unwrap(),
-                    high: key["high"].as_f64().unwrap(),
+                    low: key["low_text"].as_str().unwrap().parse().unwrap(),
+                    high: key["high_text"].as_str().unwrap().parse().unwrap(),
                     scale: fittable(name).unwrap(),
                 }],
                 targets: vec![Target {
