@@ -128,6 +128,40 @@ for (const method of ['quick', 'sequential']) {
   });
 }
 
+test('the sensitivity check warns about a key no chosen metric sees, before the fit starts', async () => {
+  const page = await newPage(context);
+  await openSmallLeaf(page);
+  // The leaf grows from its one root whatever gamma is, so the root count moves with no key
+  // and has no seed noise: it sees nothing. alpha is the exponent of the transport cost
+  // (sum of flow^alpha times length, flows of many mm^2), so that metric sees alpha far beyond
+  // seed noise. gamma only sets widths (width grows as flow^(1/gamma), Murray 1926), so the
+  // check must name gamma, and only gamma.
+  await fillPlan(page, {
+    keys: { gamma: ['1', '10'], alpha: ['0.3', '0.9'] },
+    metrics: ['root_count', 'transport_cost'],
+    settings: { method: 'quick', replicates: '2', simulations: '40', accept: '10', seed: '5' },
+  });
+  await page.evaluate(() => { window.ramulusTestHooks = { fitWorkers: 2 }; });
+  await page.click('#fit-check');
+  await page.waitForSelector('#fit-sensitivity-table tbody tr', { timeout: 120000 });
+  await page.waitForFunction(() => !document.getElementById('fit-start').disabled);
+  const warnings = await page.locator('.fit-warning').allTextContents();
+  assert.equal(warnings.length, 1, warnings.join('\n'));
+  assert.match(warnings[0], /`gamma`/);
+  const rows = await page.locator('#fit-sensitivity-table tbody tr').evaluateAll((trs) => trs.map((tr) => [...tr.cells].map((td) => td.textContent)));
+  const row = (key, metric) => rows.find((cells) => cells[0] === key && cells[1] === metric);
+  assert.deepEqual(row('gamma', 'root_count').slice(2), ['0', '0', '0', 'no']);
+  assert.deepEqual(row('alpha', 'root_count').slice(2), ['0', '0', '0', 'no']);
+  assert.equal(row('alpha', 'transport_cost')[5], 'yes');
+  assert.equal(await page.locator('#fit-posterior').count(), 0, 'the check alone runs no fit');
+  // Start fit continues from the check and finishes; the warning stays beside the result.
+  await page.click('#fit-start');
+  await page.waitForSelector('#fit-posterior tbody tr', { timeout: 240000 });
+  assert.equal(await page.locator('.fit-warning').count(), 1);
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});
+
 test('cancel ends every fit worker and leaves the panel ready', async () => {
   const page = await newPage(context);
   await openSmallLeaf(page);
