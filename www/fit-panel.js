@@ -222,6 +222,7 @@ class FitPanel {
     if (this.linked) {
       const linked = this.linked;
       this.linked = null;
+      this.specimenShown = null; // a fit link holds the specimen's values, not its drawing
       return linked;
     }
     let bytes;
@@ -235,7 +236,10 @@ class FitPanel {
       bytes = new TextEncoder().encode(record);
       name = 'this page\'s run';
     }
-    return new this.core.FitSession(JSON.stringify(this.request()), bytes, name);
+    const request = this.request();
+    const session = new this.core.FitSession(JSON.stringify(request), bytes, name);
+    this.specimenShown = { bytes, name, link: request.link };
+    return session;
   }
 
   formEdited() {
@@ -399,7 +403,8 @@ class FitPanel {
 
     out.append(element('h3', {}, 'Pairwise posterior and convergence'));
     out.append(element('p', { class: 'hint' }, 'Each dot a posterior particle (darker: more weight); axes span the searched ranges, so a cloud that fills its panel has learned nothing, and a ridge marks parameters that trade off.'));
-    out.append(this.svgImage(session.posterior_svg(), 'Pairwise posterior plots, histograms with 90 % intervals, and tolerance and acceptance per generation', 'fit-plots'));
+    const svgText = session.posterior_svg();
+    out.append(this.svgImage(svgText, 'Pairwise posterior plots, histograms with 90 % intervals, and tolerance and acceptance per generation', 'fit-plots'));
 
     out.append(element('h3', {}, 'Posterior predictive check'));
     const predictive = element('table', { class: 'fit-table', id: 'fit-predictive' });
@@ -414,11 +419,10 @@ class FitPanel {
 
     out.append(element('h3', {}, 'Specimen and best run'));
     const pair = element('div', { class: 'fit-pair' });
-    const specimenSvg = session.specimen_svg('order');
     const left = element('figure');
-    if (specimenSvg) left.append(this.svgImage(specimenSvg, 'The specimen', 'fit-specimen-image'));
-    else left.append(element('p', { class: 'hint' }, 'A fit link holds the specimen\'s metric values, not its drawing.'));
-    left.append(element('figcaption', {}, 'Specimen'));
+    const specimenCaption = element('figcaption', {}, this.specimenShown ? 'Specimen (drawing…)' : 'Specimen');
+    if (!this.specimenShown) left.append(element('p', { class: 'hint' }, 'A fit link holds the specimen\'s metric values, not its drawing.'));
+    left.append(specimenCaption);
     const right = element('figure');
     const bestCaption = element('figcaption', {}, 'Best run (growing…)');
     right.append(bestCaption);
@@ -431,7 +435,6 @@ class FitPanel {
     const json = element('button', { type: 'button', id: 'fit-save-json' }, 'Posterior (JSON)');
     const csv = element('button', { type: 'button', id: 'fit-save-csv' }, 'Posterior sample (CSV)');
     const plots = element('button', { type: 'button', id: 'fit-save-plots' }, 'Plots (SVG)');
-    const svgText = session.posterior_svg();
     json.addEventListener('click', () => saveFile('ramulus-fit.json', this.reportText, 'application/json'));
     csv.addEventListener('click', () => saveFile('ramulus-fit-sample.csv', session.posterior_csv(), 'text/csv'));
     plots.addEventListener('click', () => saveFile('ramulus-fit-plots.svg', svgText, 'image/svg+xml'));
@@ -449,13 +452,22 @@ class FitPanel {
       'The link holds the whole plan (starting settings, ranges, the specimen\'s metric values, seeds, method); opening it runs the same fit again, '
       + 'which gives this result exactly, since every draw comes from the fit seed. It stays short because it holds no samples.'));
 
-    try {
-      const svg = await this.pool.draw(fragment, 'order');
+    // Both drawings grow or read a whole network: in the workers, not on the page's thread.
+    const drawings = [this.pool.draw(fragment, 'order').then((svg) => {
       right.prepend(this.svgImage(svg, 'The best run', 'fit-best-image'));
       bestCaption.textContent = 'Best run';
-    } catch (error) {
+    }).catch((error) => {
       bestCaption.textContent = `Best run: could not be drawn (${messageOf(error)})`;
+    })];
+    if (this.specimenShown) {
+      drawings.push(this.pool.drawSpecimen(this.specimenShown, 'order').then((svg) => {
+        left.prepend(this.svgImage(svg, 'The specimen', 'fit-specimen-image'));
+        specimenCaption.textContent = 'Specimen';
+      }).catch((error) => {
+        specimenCaption.textContent = `Specimen: could not be drawn (${messageOf(error)})`;
+      }));
     }
+    await Promise.all(drawings);
   }
 
   /// An SVG from Rust shown as an image (never parsed into the page).

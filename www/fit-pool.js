@@ -36,6 +36,7 @@ export class FitPool {
 
   constructor() {
     this.workers = [];
+    this.pending = new Map(); // worker -> its last request
     this.paused = false;
     this.cancelled = false;
     this.wake = null; // resumes dispatching after a pause
@@ -46,8 +47,16 @@ export class FitPool {
     this.msPerJob = 0;
   }
 
-  /// Sends one message and waits for the reply of type `wanted`.
+  /// Sends one message and waits for the reply of type `wanted`; requests to one worker
+  /// wait for each other.
   request(worker, message, wanted) {
+    const previous = this.pending.get(worker) ?? Promise.resolve();
+    const next = previous.catch(() => {}).then(() => this.exchange(worker, message, wanted));
+    this.pending.set(worker, next);
+    return next;
+  }
+
+  exchange(worker, message, wanted) {
     return new Promise((resolve, reject) => {
       worker.onmessage = (event) => {
         if (event.data.type === wanted) resolve(event.data);
@@ -164,6 +173,12 @@ export class FitPool {
   draw(link, colouring) {
     const worker = this.workers[0];
     return this.request(worker, { type: 'draw', link, colouring }, 'drawn').then((reply) => reply.svg);
+  }
+
+  /// Draws the specimen (its bytes read as the fit read them) in the last worker.
+  drawSpecimen({ bytes, name, link }, colouring) {
+    const worker = this.workers[this.workers.length - 1];
+    return this.request(worker, { type: 'draw-specimen', bytes, name, link, colouring }, 'drawn').then((reply) => reply.svg);
   }
 
   /// Ends every worker at once (work in flight is lost); a running batch rejects.

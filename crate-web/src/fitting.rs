@@ -2,8 +2,9 @@
 //! (sensitivity design, then the fit's batches, then the posterior predictive check; outcomes
 //! put back in any order, absorbed in job order), `FitWorker`, what each Web Worker holds to
 //! run jobs, and free functions for the fit panel (fittable keys with default ranges, matchable
-//! metrics, the best run's SVG). Nothing here samples, measures or draws: the core and
-//! `crate-draw` do, exactly as for `ramulus fit`, so the same plan gives the same JSON.
+//! metrics, the best run's and the specimen's SVG, drawn in a worker). Nothing here samples,
+//! measures or draws: the core and `crate-draw` do, exactly as for `ramulus fit`, so the same
+//! plan gives the same JSON.
 
 use ramulus_core::fit::plan::{fittable, metric_value};
 use ramulus_core::fit::sensitivity::{
@@ -208,7 +209,6 @@ pub struct FitSession {
     checks: Option<Sensitivity>,
     result: Option<FitResult>,
     predictive_rows: Vec<PredictiveRow>,
-    specimen: Option<(Network, Params)>,
 }
 
 fn text_number<T: std::str::FromStr>(name: &str, text: &str) -> Result<T, JsError> {
@@ -270,7 +270,7 @@ impl FitSession {
         for text in &request.matched {
             metric_value(&Metrics::default(), text.key.trim()).map_err(fit_error)?;
         }
-        let (metrics, specimen) = measure_specimen(specimen, name, &base)?;
+        let (metrics, _) = measure_specimen(specimen, name, &base)?;
         let mut targets = Vec::new();
         for text in &request.matched {
             let key = text.key.trim();
@@ -311,11 +311,11 @@ impl FitSession {
             method,
         };
         let predictive = text_number("predictive runs", &request.predictive)?;
-        FitSession::start(plan, predictive, Some(specimen))
+        FitSession::start(plan, predictive)
     }
 
     /// The fit a fit link describes (see `fit_link`); it has the specimen's metric values but
-    /// not its network, so `specimen_svg` is empty.
+    /// not its network.
     pub fn from_fit_link(text: &str) -> Result<FitSession, JsError> {
         console_error_panic_hook::set_once();
         let link: FitLink = serde_json::from_str(text)
@@ -334,7 +334,7 @@ impl FitSession {
             seed: link.seed,
             method: link.method,
         };
-        FitSession::start(plan, link.predictive, None)
+        FitSession::start(plan, link.predictive)
     }
 
     /// The fit link's JSON: the whole plan (base parameters as a run link, fitted bounds,
@@ -632,27 +632,10 @@ impl FitSession {
             .map(|result| encode_link(&self.plan.params_for(&result.best.values, result.best.seed)))
             .unwrap_or_default()
     }
-
-    /// The specimen drawn as a run is (empty for a fit opened from a fit link).
-    pub fn specimen_svg(&self, colouring: &str) -> Result<String, JsError> {
-        let Some((network, params)) = &self.specimen else {
-            return Ok(String::new());
-        };
-        let view = RunView::new(network.clone(), params).map_err(fit_error)?;
-        Ok(ramulus_draw::run_svg(
-            &view,
-            params,
-            colouring_named(colouring)?,
-        ))
-    }
 }
 
 impl FitSession {
-    fn start(
-        plan: FitPlan,
-        predictive: u32,
-        specimen: Option<(Network, Params)>,
-    ) -> Result<FitSession, JsError> {
+    fn start(plan: FitPlan, predictive: u32) -> Result<FitSession, JsError> {
         let fit = Fit::new(plan.clone()).map_err(fit_error)?;
         let batch = design_jobs(&plan);
         Ok(FitSession {
@@ -666,7 +649,6 @@ impl FitSession {
             checks: None,
             result: None,
             predictive_rows: Vec::new(),
-            specimen,
         })
     }
 
@@ -763,6 +745,25 @@ fn unit_text(entry: &MetricEntry, units: &str, alpha: f64) -> String {
     } else {
         text
     }
+}
+
+/// The specimen drawn as a run is, read as `FitSession::new` reads it (drawn in a worker).
+#[wasm_bindgen]
+pub fn fit_specimen_svg(
+    specimen: &[u8],
+    name: &str,
+    link: &str,
+    colouring: &str,
+) -> Result<String, JsError> {
+    console_error_panic_hook::set_once();
+    let base = decode_link(link).params;
+    let (_, (network, params)) = measure_specimen(specimen, name, &base)?;
+    let view = RunView::new(network, &params).map_err(fit_error)?;
+    Ok(ramulus_draw::run_svg(
+        &view,
+        &params,
+        colouring_named(colouring)?,
+    ))
 }
 
 fn colouring_named(name: &str) -> Result<Colouring, JsError> {

@@ -69,6 +69,23 @@ try {
 
   async function pageFit(workers) {
     await page.evaluate((count) => { window.ramulusTestHooks = { fitWorkers: count }; }, workers);
+    // The main thread while the fit runs: the longest gap between animation frames and the
+    // longest task the browser reports (Long Tasks API), so a freeze would show.
+    await page.evaluate(() => {
+      const watch = { gap: 0, longest: 0, running: true };
+      let last = performance.now();
+      const frame = (now) => {
+        watch.gap = Math.max(watch.gap, now - last);
+        last = now;
+        if (watch.running) requestAnimationFrame(frame);
+      };
+      requestAnimationFrame(frame);
+      watch.observer = new PerformanceObserver((list) => {
+        for (const entry of list.getEntries()) watch.longest = Math.max(watch.longest, entry.duration);
+      });
+      watch.observer.observe({ type: 'longtask' });
+      window.fitWatch = watch;
+    });
     const before = load();
     const started = Date.now();
     await page.click('#fit-start');
@@ -76,7 +93,12 @@ try {
     const seconds = (Date.now() - started) / 1000;
     const report = await page.evaluate(() => window.ramulusFit.reportText);
     await page.waitForSelector('#fit-best-image', { timeout: 600000 });
-    return { seconds, report, before };
+    const main = await page.evaluate(() => {
+      window.fitWatch.running = false;
+      window.fitWatch.observer.disconnect();
+      return { gap: window.fitWatch.gap, longest: window.fitWatch.longest };
+    });
+    return { seconds, report, before, main };
   }
 
   function cliFit(jobs) {
@@ -101,6 +123,7 @@ try {
     for (const workers of [2, 1]) {
       const browser = await pageFit(workers);
       line(`page, ${workers} worker(s)`, browser);
+      console.log(`  main thread during the fit: longest frame gap ${browser.main.gap.toFixed(0)} ms, longest task ${browser.main.longest.toFixed(0)} ms`);
       const command = cliFit(workers);
       line(`ramulus fit --jobs ${workers}`, command);
       results[workers] = { browser, command };
