@@ -12,7 +12,9 @@ const STARTING_METRICS = ['transport_cost', 'branching_angle_mean', 'tortuosity'
 const FIT_QUERY = 'fit';
 
 /// Mounts the panel into `root`. `page` gives `core` (the session's wasm exports), `link()`
-/// (the page's run link) and `record()` (the finished run's record text, or null).
+/// (the page's settings as a run link), and of the finished run (else null): `metrics()` (its
+/// metrics as JSON), `runLink()` (the link that grows it; empty for a record shown as saved)
+/// and `record()` (its run record).
 export function mountFitPanel(root, page) {
   const panel = new FitPanel(root, page);
   window.ramulusFit = panel; // for the page tests and the benchmark
@@ -146,11 +148,11 @@ class FitPanel {
       seed: number('fit-seed', defaults.seed),
     };
     const labels = {
-      replicates: 'Seeds per parameter set',
-      population: 'Particles per generation',
+      replicates: 'Replicates (seeds per parameter set)',
+      population: 'Population (particles per generation)',
       generations: 'Generations after the first',
-      simulations: 'Parameter sets drawn',
-      accept: 'Parameter sets kept',
+      simulations: 'Simulations (parameter sets drawn)',
+      accept: 'Accepted (parameter sets kept)',
       predictive: 'Runs for the predictive check',
       seed: 'Fit seed',
     };
@@ -217,29 +219,31 @@ class FitPanel {
     return { link: this.page.link(), fitted, matched, method: this.method.value, ...texts };
   }
 
-  /// A new FitSession from the form and the specimen; throws the core's message.
-  newSession() {
+  /// What the next fit starts from, checked as far as it can be before any work (throws the
+  /// core's message): `{session}` ready, or `{request, file}` whose specimen file a worker
+  /// measures first. Also notes how the specimen will be drawn.
+  prepare() {
     if (this.linked) {
-      const linked = this.linked;
+      const session = this.linked;
       this.linked = null;
       this.specimenShown = null; // a fit link holds the specimen's values, not its drawing
-      return linked;
-    }
-    let bytes;
-    let name;
-    if (this.useFile.checked) {
-      if (!this.specimen) throw new Error('Choose a specimen file first.');
-      ({ bytes, name } = this.specimen);
-    } else {
-      const record = this.page.record();
-      if (!record) throw new Error('This page\'s run has not finished growing yet: let it finish, or choose a specimen file.');
-      bytes = new TextEncoder().encode(record);
-      name = 'this page\'s run';
+      return { session };
     }
     const request = this.request();
-    const session = new this.core.FitSession(JSON.stringify(request), bytes, name);
-    this.specimenShown = { bytes, name, link: request.link };
-    return session;
+    const requestText = JSON.stringify(request);
+    this.core.fit_check_request(requestText);
+    if (this.useFile.checked) {
+      if (!this.specimen) throw new Error('Choose a specimen file first.');
+      const file = { ...this.specimen, link: request.link };
+      this.specimenShown = { file };
+      return { requestText, file };
+    }
+    // This page's run: its metrics are already measured for the readings.
+    const metrics = this.page.metrics();
+    if (!metrics) throw new Error('This page\'s run has not finished growing yet: let it finish, or choose a specimen file.');
+    const runLink = this.page.runLink();
+    this.specimenShown = runLink ? { link: runLink } : { record: true };
+    return { session: new this.core.FitSession(requestText, metrics, 'this page\'s run') };
   }
 
   formEdited() {
@@ -260,16 +264,18 @@ class FitPanel {
     this.showError('');
     const requestText = JSON.stringify({ request: this.request(), file: this.useFile.checked ? this.specimen?.name : null });
     const reuse = this.session && this.session.phase() === 'fit' && this.sessionRequest === requestText && !this.linked;
+    let prepared = null;
     if (!reuse) {
       this.clearResults();
       this.session?.free();
       this.session = null;
       try {
-        this.session = this.newSession();
+        prepared = this.prepare();
       } catch (error) {
         this.showError(messageOf(error));
         return;
       }
+      this.session = prepared.session ?? null;
       this.sessionRequest = requestText;
     } else {
       this.results.replaceChildren();
@@ -280,12 +286,29 @@ class FitPanel {
     this.status.textContent = 'Starting workers…';
     const started = performance.now();
     try {
+      this.cancelAsked = false;
       this.pool = await FitPool.open(this.workerCount);
+      if (this.cancelAsked) this.pool.cancel(); // cancelled while the workers were loading
+      if (this.pool.cancelled) throw new FitCancelled();
+      if (!this.session) {
+        // A specimen file is read and measured in a worker, then the plan gets its values.
+        this.status.textContent = `Measuring ${prepared.file.name}…`;
+        const metrics = await this.pool.measure(prepared.file);
+        if (this.pool.cancelled) throw new FitCancelled();
+        try {
+          this.session = new this.core.FitSession(prepared.requestText, metrics, prepared.file.name);
+        } catch (error) {
+          this.showError(messageOf(error));
+          this.status.textContent = '';
+          return;
+        }
+      }
       this.pool.setPlan(this.session);
       const progress = (done, total, secondsLeft, phase) => {
         this.progress.max = Math.max(total, 1);
         this.progress.value = done;
-        this.status.textContent = this.core.fit_progress_text(phase, done, total, secondsLeft, this.workerCount);
+        const paused = this.pool?.paused ? ' (paused: parameter sets already running finish)' : '';
+        this.status.textContent = `${this.core.fit_progress_text(phase, done, total, secondsLeft, this.workerCount)}${paused}`;
       };
       await this.pool.run(this.session, {
         progress,
@@ -332,6 +355,7 @@ class FitPanel {
   }
 
   cancel() {
+    this.cancelAsked = true;
     this.pool?.cancel();
   }
 
@@ -420,8 +444,9 @@ class FitPanel {
     out.append(element('h3', {}, 'Specimen and best run'));
     const pair = element('div', { class: 'fit-pair' });
     const left = element('figure');
-    const specimenCaption = element('figcaption', {}, this.specimenShown ? 'Specimen (drawing…)' : 'Specimen');
-    if (!this.specimenShown) left.append(element('p', { class: 'hint' }, 'A fit link holds the specimen\'s metric values, not its drawing.'));
+    const shown = this.specimenShown;
+    const specimenCaption = element('figcaption', {}, shown ? 'Specimen (drawing…)' : 'Specimen');
+    if (!shown) left.append(element('p', { class: 'hint' }, 'A fit link holds the specimen\'s metric values, not its drawing.'));
     left.append(specimenCaption);
     const right = element('figure');
     const bestCaption = element('figcaption', {}, 'Best run (growing…)');
@@ -459,8 +484,12 @@ class FitPanel {
     }).catch((error) => {
       bestCaption.textContent = `Best run: could not be drawn (${messageOf(error)})`;
     })];
-    if (this.specimenShown) {
-      drawings.push(this.pool.drawSpecimen(this.specimenShown, 'order').then((svg) => {
+    if (shown) {
+      // A grown run is drawn from its link, a file from its bytes, a record without
+      // parameters (shown as saved) from its text.
+      const record = shown.record ? { bytes: new TextEncoder().encode(this.page.record() ?? ''), name: 'this page\'s run', link: this.page.link() } : null;
+      const drawing = shown.link ? this.pool.draw(shown.link, 'order') : this.pool.drawSpecimen(shown.file ?? record, 'order');
+      drawings.push(drawing.then((svg) => {
         left.prepend(this.svgImage(svg, 'The specimen', 'fit-specimen-image'));
         specimenCaption.textContent = 'Specimen';
       }).catch((error) => {

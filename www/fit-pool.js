@@ -175,6 +175,11 @@ export class FitPool {
     return this.request(worker, { type: 'draw', link, colouring }, 'drawn').then((reply) => reply.svg);
   }
 
+  /// Measures a specimen file in a worker; resolves to its metrics as JSON.
+  measure({ bytes, name, link }) {
+    return this.request(this.workers[0], { type: 'measure', bytes, name, link }, 'measured').then((reply) => reply.metrics);
+  }
+
   /// Draws the specimen (its bytes read as the fit read them) in the last worker.
   drawSpecimen({ bytes, name, link }, colouring) {
     const worker = this.workers[this.workers.length - 1];

@@ -1,8 +1,11 @@
 // A fit worker (a module Web Worker): loads its own wasm instance (from the compiled module
 // the pool sends, or the file) and runs batches of fit jobs, each grown and measured by the
-// core exactly as `ramulus fit` runs them; also draws the best run and the specimen. The pool
+// core exactly as `ramulus fit` runs them; also measures a specimen file and draws the best
+// run and the specimen. The pool
 // (fit-pool.js) hands out the batches; this worker keeps no state but the plan.
-import init, { FitWorker, fit_run_svg, fit_specimen_svg } from './pkg/ramulus_web.js';
+import init, {
+  FitWorker, fit_run_svg, fit_specimen_metrics, fit_specimen_svg,
+} from './pkg/ramulus_web.js';
 
 let ready = null;
 let runner = null;
@@ -29,6 +32,9 @@ self.onmessage = async (event) => {
       });
     } else if (message.type === 'draw') {
       self.postMessage({ type: 'drawn', svg: fit_run_svg(message.link, message.colouring) });
+    } else if (message.type === 'measure') {
+      const { bytes, name, link } = message;
+      self.postMessage({ type: 'measured', metrics: fit_specimen_metrics(bytes, name, link) });
     } else if (message.type === 'draw-specimen') {
       const { bytes, name, link, colouring } = message;
       self.postMessage({ type: 'drawn', svg: fit_specimen_svg(bytes, name, link, colouring) });

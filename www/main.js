@@ -79,6 +79,8 @@ async function start() {
       core,
       link: () => state.link,
       record: () => (state.simulation?.finished() ? state.simulation.record_json() : null),
+      metrics: () => (state.simulation?.finished() ? state.simulation.metrics_json() : null),
+      runLink: () => state.simulation?.link() ?? '',
     }))
     .catch((error) => notice(`The fit panel could not start: ${messageOf(error)}`));
   // ---- end of page fitting ----------------------------------------------------------------

@@ -223,94 +223,16 @@ fn fit_error(error: impl std::fmt::Display) -> JsError {
 
 #[wasm_bindgen]
 impl FitSession {
-    /// A fit of the request (JSON, see `Request`) against a specimen: a run record's bytes,
-    /// or a traced specimen (SVG, GeoJSON, CSV edge list) read with default calibration in the
-    /// base parameters' length unit. Every check runs here, before any work: an error names
-    /// the key, bound, metric or count at fault in the core's words.
+    /// A fit of the request (JSON, see `Request`) against a specimen's metrics (JSON of the
+    /// core's `Metrics`, from `fit_specimen_metrics` or the page's run). Every check runs here,
+    /// before any work: an error names the key, bound, metric or count at fault in the core's
+    /// words, or the metric the specimen lacks.
     #[wasm_bindgen(constructor)]
-    pub fn new(request: &str, specimen: &[u8], name: &str) -> Result<FitSession, JsError> {
+    pub fn new(request: &str, specimen_metrics: &str, name: &str) -> Result<FitSession, JsError> {
         console_error_panic_hook::set_once();
-        let request: Request = serde_json::from_str(request).map_err(fit_error)?;
-        let base = decode_link(&request.link).params;
-        let mut fitted = Vec::new();
-        for text in &request.fitted {
-            let key = text.key.trim();
-            let scale = fittable(key).map_err(fit_error)?;
-            fitted.push(FittedKey {
-                key: key.to_string(),
-                low: text_number(&format!("lower bound of `{key}`"), &text.low)?,
-                high: text_number(&format!("upper bound of `{key}`"), &text.high)?,
-                scale,
-            });
-        }
-        let checked = FitPlan {
-            base: base.clone(),
-            fitted: fitted.clone(),
-            targets: Vec::new(),
-            replicates: 1,
-            seed: 0,
-            method: Method::Quick {
-                simulations: 10,
-                accepted: 5,
-            },
-        };
-        // Keys and bounds first (the plan's own check, with a stand-in target), so a wrong
-        // bound is named before the specimen is read.
-        let mut stand_in = checked.clone();
-        stand_in.targets = vec![Target {
-            key: METRIC_TABLE[0].key.into(),
-            weight: None,
-            observed: 1.0,
-        }];
-        if let Err(error) = stand_in.check() {
-            if !matches!(error, ramulus_core::fit::FitError::UnknownMetric(_)) {
-                return Err(fit_error(error));
-            }
-        }
-        for text in &request.matched {
-            metric_value(&Metrics::default(), text.key.trim()).map_err(fit_error)?;
-        }
-        let (metrics, _) = measure_specimen(specimen, name, &base)?;
-        let mut targets = Vec::new();
-        for text in &request.matched {
-            let key = text.key.trim();
-            let weight = match text.weight.trim() {
-                "" => None,
-                weight => Some(text_number(&format!("weight of `{key}`"), weight)?),
-            };
-            let observed = metric_value(&metrics, key)
-                .map_err(fit_error)?
-                .ok_or_else(|| {
-                    JsError::new(&format!(
-                        "{name}: the specimen has no value for metric `{key}`"
-                    ))
-                })?;
-            targets.push(Target {
-                key: key.to_string(),
-                weight,
-                observed,
-            });
-        }
-        let method = match request.method.as_str() {
-            "quick" => Method::Quick {
-                simulations: text_number("simulations", &request.simulations)?,
-                accepted: text_number("accepted", &request.accept)?,
-            },
-            "sequential" => Method::Sequential {
-                population: text_number("population", &request.population)?,
-                generations: text_number("generations", &request.generations)?,
-            },
-            other => return Err(JsError::new(&format!("`{other}` is not a method"))),
-        };
-        let plan = FitPlan {
-            base,
-            fitted,
-            targets,
-            replicates: text_number("replicates", &request.replicates)?,
-            seed: text_number("seed", &request.seed)?,
-            method,
-        };
-        let predictive = text_number("predictive runs", &request.predictive)?;
+        let metrics: Metrics = serde_json::from_str(specimen_metrics)
+            .map_err(|error| JsError::new(&format!("{name}: metrics unreadable: {error}")))?;
+        let (plan, predictive) = plan_from_request(request, Some((&metrics, name)))?;
         FitSession::start(plan, predictive)
     }
 
@@ -634,6 +556,84 @@ impl FitSession {
     }
 }
 
+/// Checks a request (JSON, see `Request`) as far as it can be without the specimen: keys,
+/// bounds, metric names, weights, counts, seed. Throws the core's message; nothing runs.
+#[wasm_bindgen]
+pub fn fit_check_request(request: &str) -> Result<(), JsError> {
+    console_error_panic_hook::set_once();
+    plan_from_request(request, None).map(|_| ())
+}
+
+/// The plan a request asks for, checked: with the specimen's metrics, the targets take their
+/// values; without, each target stands at 1 so everything else can be checked.
+fn plan_from_request(
+    request: &str,
+    specimen: Option<(&Metrics, &str)>,
+) -> Result<(FitPlan, u32), JsError> {
+    let request: Request = serde_json::from_str(request).map_err(fit_error)?;
+    let base = decode_link(&request.link).params;
+    let mut fitted = Vec::new();
+    for text in &request.fitted {
+        let key = text.key.trim();
+        let scale = fittable(key).map_err(fit_error)?;
+        fitted.push(FittedKey {
+            key: key.to_string(),
+            low: text_number(&format!("lower bound of `{key}`"), &text.low)?,
+            high: text_number(&format!("upper bound of `{key}`"), &text.high)?,
+            scale,
+        });
+    }
+    let mut targets = Vec::new();
+    for text in &request.matched {
+        let key = text.key.trim();
+        let weight = match text.weight.trim() {
+            "" => None,
+            weight => Some(text_number(&format!("weight of `{key}`"), weight)?),
+        };
+        let observed =
+            match specimen {
+                Some((metrics, name)) => metric_value(metrics, key)
+                    .map_err(fit_error)?
+                    .ok_or_else(|| {
+                        JsError::new(&format!(
+                            "{name}: the specimen has no value for metric `{key}`"
+                        ))
+                    })?,
+                None => {
+                    metric_value(&Metrics::default(), key).map_err(fit_error)?;
+                    1.0
+                }
+            };
+        targets.push(Target {
+            key: key.to_string(),
+            weight,
+            observed,
+        });
+    }
+    let method = match request.method.as_str() {
+        "quick" => Method::Quick {
+            simulations: text_number("simulations", &request.simulations)?,
+            accepted: text_number("accepted", &request.accept)?,
+        },
+        "sequential" => Method::Sequential {
+            population: text_number("population", &request.population)?,
+            generations: text_number("generations", &request.generations)?,
+        },
+        other => return Err(JsError::new(&format!("`{other}` is not a method"))),
+    };
+    let plan = FitPlan {
+        base,
+        fitted,
+        targets,
+        replicates: text_number("replicates", &request.replicates)?,
+        seed: text_number("seed", &request.seed)?,
+        method,
+    };
+    plan.check().map_err(fit_error)?;
+    let predictive = text_number("predictive runs", &request.predictive)?;
+    Ok((plan, predictive))
+}
+
 impl FitSession {
     fn start(plan: FitPlan, predictive: u32) -> Result<FitSession, JsError> {
         let fit = Fit::new(plan.clone()).map_err(fit_error)?;
@@ -747,7 +747,18 @@ fn unit_text(entry: &MetricEntry, units: &str, alpha: f64) -> String {
     }
 }
 
-/// The specimen drawn as a run is, read as `FitSession::new` reads it (drawn in a worker).
+/// A specimen file's metrics as JSON (for `FitSession::new`): a run record measured as
+/// `ramulus fit` measures it (its own `alpha`), or a traced specimen through the core's
+/// importer with default calibration in the length unit of `link`. Run in a worker.
+#[wasm_bindgen]
+pub fn fit_specimen_metrics(specimen: &[u8], name: &str, link: &str) -> Result<String, JsError> {
+    console_error_panic_hook::set_once();
+    let base = decode_link(link).params;
+    let (metrics, _) = measure_specimen(specimen, name, &base)?;
+    serde_json::to_string(&metrics).map_err(fit_error)
+}
+
+/// The specimen drawn as a run is, read as `fit_specimen_metrics` reads it (in a worker).
 #[wasm_bindgen]
 pub fn fit_specimen_svg(
     specimen: &[u8],

@@ -109,6 +109,13 @@ for (const method of ['quick', 'sequential']) {
     if (method === 'quick') assert.equal(rows.length - 1, Number(settings.accept));
 
     if (method === 'quick') {
+      // The same record loaded as a specimen file (measured in a worker) fits the same.
+      await page.setInputFiles('#fit-specimen-file', specimen);
+      await page.waitForFunction(() => document.getElementById('fit-use-file').checked);
+      await page.click('#fit-start');
+      await page.waitForSelector('#fit-specimen-image', { timeout: 240000 });
+      const fromFile = JSON.parse(await page.evaluate(() => window.ramulusFit.reportText));
+      assert.deepEqual(fromFile, cliResult);
       await screenshot(page, 'fit-01-result-1400');
       await page.setViewportSize({ width: 420, height: 900 });
       await screenshot(page, 'fit-02-result-420');
