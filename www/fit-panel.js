@@ -260,7 +260,7 @@ class FitPanel {
   /// Runs the sensitivity check (and, unless `checkOnly`, the fit and the predictive check).
   /// A session whose check has run continues from there when the form is unchanged.
   async start(checkOnly) {
-    if (this.pool) return;
+    if (this.running) return;
     this.showError('');
     const requestText = JSON.stringify({ request: this.request(), file: this.useFile.checked ? this.specimen?.name : null });
     const reuse = this.session && this.session.phase() === 'fit' && this.sessionRequest === requestText && !this.linked;
@@ -360,6 +360,7 @@ class FitPanel {
   }
 
   setRunning(running) {
+    this.running = running;
     this.checkButton.disabled = running;
     this.startButton.disabled = running;
     this.pauseButton.disabled = !running;
