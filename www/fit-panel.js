@@ -318,6 +318,7 @@ class FitPanel {
         },
       });
       this.lastSeconds = (performance.now() - started) / 1000;
+      this.longestCall = this.pool.longestCall; // for the benchmark
       if (this.session.phase() === 'done') {
         this.status.textContent = this.core.fit_progress_text('done', ...this.session.progress(), Number.NaN, this.workerCount);
         await this.showResults();

@@ -45,6 +45,7 @@ export class FitPool {
     this.jobsDone = 0; // jobs finished in this pool's life
     this.replicateRuns = 0;
     this.msPerJob = 0;
+    this.longestCall = 0; // ms, see `timed`
   }
 
   /// Sends one message and waits for the reply of type `wanted`; requests to one worker
@@ -79,7 +80,7 @@ export class FitPool {
     while (session.phase() !== 'done' && !stopAt(session.phase())) {
       await this.runBatch(session, progress);
       if (this.cancelled) throw new FitCancelled();
-      session.absorb();
+      this.timed(() => session.absorb());
     }
   }
 
@@ -114,7 +115,8 @@ export class FitPool {
         const start = next;
         next += count;
         running += 1;
-        worker.postMessage({ type: 'jobs', start, count, jobs: session.jobs_json(start, start + count) });
+        const jobs = this.timed(() => session.jobs_json(start, start + count));
+        worker.postMessage({ type: 'jobs', start, count, jobs });
       };
       for (const worker of this.workers) {
         worker.onmessage = (event) => {
@@ -128,7 +130,7 @@ export class FitPool {
           tick();
           running -= 1;
           try {
-            session.put_outcomes(message.start, message.outcomes);
+            this.timed(() => session.put_outcomes(message.start, message.outcomes));
           } catch (error) {
             reject(error);
             return;
@@ -155,6 +157,15 @@ export class FitPool {
     }).finally(() => {
       this.fail = null;
     });
+  }
+
+  /// Runs `call` (a call into the page's wasm) and keeps the longest time one took, in ms: what
+  /// the fit costs the page's thread at most at once.
+  timed(call) {
+    const started = performance.now();
+    const value = call();
+    this.longestCall = Math.max(this.longestCall, performance.now() - started);
+    return value;
   }
 
   /// Stops handing out chunks; those running finish and are kept.

@@ -96,7 +96,7 @@ try {
     const main = await page.evaluate(() => {
       window.fitWatch.running = false;
       window.fitWatch.observer.disconnect();
-      return { gap: window.fitWatch.gap, longest: window.fitWatch.longest };
+      return { gap: window.fitWatch.gap, longest: window.fitWatch.longest, call: window.ramulusFit.longestCall };
     });
     return { seconds, report, before, main };
   }
@@ -123,7 +123,8 @@ try {
     for (const workers of [2, 1]) {
       const browser = await pageFit(workers);
       line(`page, ${workers} worker(s)`, browser);
-      console.log(`  main thread during the fit: longest frame gap ${browser.main.gap.toFixed(0)} ms, longest task ${browser.main.longest.toFixed(0)} ms`);
+      console.log(`  page's thread during the fit: longest frame gap ${browser.main.gap.toFixed(0)} ms, longest task ${browser.main.longest.toFixed(0)} ms, `
+        + `longest call into the fit's wasm ${browser.main.call.toFixed(1)} ms`);
       const command = cliFit(workers);
       line(`ramulus fit --jobs ${workers}`, command);
       results[workers] = { browser, command };
