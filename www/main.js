@@ -87,6 +87,18 @@ async function start() {
   });
   const fragment = location.hash.replace(/^#/, '');
   openLink(fragment || presetLink(DEFAULT_START));
+
+  // ---- page fitting (issue 11): the fit panel, its logic in fit-panel.js ----------------
+  import('./fit-panel.js')
+    .then(({ mountFitPanel }) => mountFitPanel(byId('fit-panel'), {
+      core,
+      link: () => state.link,
+      record: () => (state.simulation?.finished() ? state.simulation.record_json() : null),
+      metrics: () => (state.simulation?.finished() ? state.simulation.metrics_json() : null),
+      runLink: () => state.simulation?.link() ?? '',
+    }))
+    .catch((error) => notice(`The fit panel could not start: ${messageOf(error)}`));
+  // ---- end of page fitting ----------------------------------------------------------------
 }
 
 // ---- run links ----------------------------------------------------------------------------

@@ -27,6 +27,11 @@ pub use specimen::{
 pub use memory::RunMemory;
 pub use simulation::Simulation;
 
+// ---- page fitting (issue 11): the fit panel's coordinator and Web Worker handles ----
+pub mod fitting;
+pub use fitting::{FitSession, FitWorker};
+// ---- end of page fitting ----
+
 /// Every preset as a JSON array of `{name, title, description, params, link}`.
 #[wasm_bindgen]
 pub fn presets_json() -> String {
