@@ -99,6 +99,11 @@ fn check_euler(specimen: &Specimen, name: &str) {
         faces - 1,
         "{name}: areoles (bounded faces) equal the loop count"
     );
+    assert_eq!(
+        metrics.areoles,
+        Some((faces - 1) as u64),
+        "{name}: the metric table's areoles equal the faces traced here"
+    );
 }
 
 /// A broad leaf grown here with a small budget.
