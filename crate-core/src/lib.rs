@@ -4,6 +4,7 @@
 //! knows nothing of drawing: pictures, colours and the texts people read live in `ramulus-draw`.
 #![deny(missing_docs)]
 
+pub mod cleared;
 pub mod digest;
 pub mod fast_libm;
 pub mod fit;

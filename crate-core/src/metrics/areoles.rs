@@ -118,9 +118,8 @@ pub(crate) fn trace_faces(points: &[(f64, f64)], edges: &[(u32, u32)]) -> Vec<Fa
         libm::atan2(b.1 - a.1, b.0 - a.0)
     };
     for node in 0..count {
-        around[start[node]..start[node + 1]].sort_by(|&p, &q| {
-            direction(node as u32, p).total_cmp(&direction(node as u32, q))
-        });
+        around[start[node]..start[node + 1]]
+            .sort_by(|&p, &q| direction(node as u32, p).total_cmp(&direction(node as u32, q)));
     }
     // Half-edge k is (node, around[k]); visited per half-edge.
     let mut visited = vec![false; around.len()];
@@ -174,7 +173,10 @@ pub(crate) fn is_plane_drawing(points: &[(f64, f64)], edges: &[(u32, u32)]) -> b
         .iter()
         .map(|&(a, b)| (points[a as usize], points[b as usize]))
         .collect();
-    if spans.iter().any(|&(a, b)| a == b || !finite(a) || !finite(b)) {
+    if spans
+        .iter()
+        .any(|&(a, b)| a == b || !finite(a) || !finite(b))
+    {
         return false;
     }
     let total: f64 = spans.iter().map(|&(a, b)| length(a, b)).sum();
