@@ -149,7 +149,13 @@ fn veinlets_inside_an_areole_are_counted_once() {
 /// A tree has no loop and so no areole (E - V + C = 0), whatever its drawing.
 #[test]
 fn a_tree_has_no_areole() {
-    let points = [(0.0, 0.0), (0.0, -1.0), (-1.0, -2.0), (1.0, -2.0), (1.0, -3.0)];
+    let points = [
+        (0.0, 0.0),
+        (0.0, -1.0),
+        (-1.0, -2.0),
+        (1.0, -2.0),
+        (1.0, -3.0),
+    ];
     let edges = [(1, 0), (2, 1), (3, 1), (4, 3)];
     let m = metrics(&network(&points, &edges, 4.0));
     assert_eq!(euler_bounded_faces(&m), 0);
@@ -186,7 +192,8 @@ fn imported_specimens_follow_euler_formula() {
     assert!(m.loop_count > 0, "the traced leaf has loops");
     assert_eq!(m.areoles, Some(euler_bounded_faces(&m)));
 
-    let csv = "x1,y1,x2,y2\n0,0,4,0\n4,0,4,4\n4,4,0,4\n0,4,0,0\n2,2,6,2\n6,2,6,6\n6,6,2,6\n2,6,2,2\n";
+    let csv =
+        "x1,y1,x2,y2\n0,0,4,0\n4,0,4,4\n4,4,0,4\n0,4,0,0\n2,2,6,2\n6,2,6,6\n6,6,2,6\n2,6,2,2\n";
     let options = SpecimenOptions {
         units: Some("mm".into()),
         scale: ScaleRule::FromFile,
