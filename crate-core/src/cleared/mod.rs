@@ -9,8 +9,8 @@
 //!    holes filled (`regions`). The mask is usable as a growth mask (`leaf_mask_grid`), and
 //!    its outline ring (along pixel edges) has exactly the mask's pixel count as its area.
 //! 2. **Veins.** Inside the leaf, veins are the pixels on the vein side (darker by default)
-//!    of a second Otsu threshold over the leaf's pixels only, or of the local mean over a
-//!    square window minus an offset (`threshold`).
+//!    of a second Otsu threshold over the leaf's pixels only, or of the local mean of the
+//!    leaf's pixels in a square window minus an offset (`threshold`).
 //! 3. **Skeleton.** Zhang & Suen thinning (1984), then staircase corners removed
 //!    (`thinning`).
 //! 4. **Graph.** End points, branch points and the pixel chains between them; spurs shorter
@@ -405,10 +405,17 @@ pub fn analyse_cleared_leaf(
         VeinThreshold::Local { window, offset } => {
             let window = (window as usize) | 1;
             let mask = if options.veins_darker {
-                threshold::local_mean_below(&image.pixels, width, height, window, offset)
+                threshold::local_mean_below(
+                    &image.pixels,
+                    &leaf_mask,
+                    width,
+                    height,
+                    window,
+                    offset,
+                )
             } else {
                 let inverted: Vec<u8> = image.pixels.iter().map(|&v| 255 - v).collect();
-                threshold::local_mean_below(&inverted, width, height, window, offset)
+                threshold::local_mean_below(&inverted, &leaf_mask, width, height, window, offset)
             };
             (None, mask)
         }

@@ -1,6 +1,7 @@
 //! Grey-level thresholds: Otsu's global threshold (`otsu_threshold`) over a histogram of 8-bit
 //! values, and the local mean threshold (`local_mean_below`) over a square window by an
-//! integral image.
+//! integral image, over
+//! a region's pixels only.
 
 /// Number of grey levels of an 8-bit image.
 pub const GREY_LEVELS: usize = 256;
@@ -77,12 +78,15 @@ pub fn otsu_threshold(counts: &[u64; GREY_LEVELS]) -> Option<u8> {
     Some((low + best.0) as u8)
 }
 
-/// Marks the pixels darker than the mean of the `window x window` square around them minus
-/// `offset` grey levels (the square is cut at the image's edges; `window` is made odd).
-/// Sums come from an integral image (summed-area table; Crow 1984, "Summed-area tables for
-/// texture mapping", SIGGRAPH), so the time does not depend on the window.
+/// Marks the pixels of `region` darker than the mean of the region's pixels in the
+/// `window x window` square around them minus `offset` grey levels (the square is cut at the
+/// image's edges; `window` is made odd). Only the region's pixels enter the means, so a leaf's
+/// edge against a bright background does not read as a vein. Sums come from integral images
+/// (summed-area tables; Crow 1984, "Summed-area tables for texture mapping", SIGGRAPH), so
+/// the time does not depend on the window.
 pub fn local_mean_below(
     pixels: &[u8],
+    region: &[bool],
     width: usize,
     height: usize,
     window: usize,
@@ -90,24 +94,40 @@ pub fn local_mean_below(
 ) -> Vec<bool> {
     let half = window / 2;
     let stride = width + 1;
-    let mut integral = vec![0u64; stride * (height + 1)];
+    let mut sums = vec![0u64; stride * (height + 1)];
+    let mut counts = vec![0u32; stride * (height + 1)];
     for y in 0..height {
-        let mut row = 0u64;
+        let (mut row_sum, mut row_count) = (0u64, 0u32);
         for x in 0..width {
-            row += u64::from(pixels[y * width + x]);
-            integral[(y + 1) * stride + x + 1] = integral[y * stride + x + 1] + row;
+            let index = y * width + x;
+            if region[index] {
+                row_sum += u64::from(pixels[index]);
+                row_count += 1;
+            }
+            sums[(y + 1) * stride + x + 1] = sums[y * stride + x + 1] + row_sum;
+            counts[(y + 1) * stride + x + 1] = counts[y * stride + x + 1] + row_count;
         }
     }
     let mut below = vec![false; width * height];
     for y in 0..height {
         let (y0, y1) = (y.saturating_sub(half), (y + half + 1).min(height));
         for x in 0..width {
+            let index = y * width + x;
+            if !region[index] {
+                continue;
+            }
             let (x0, x1) = (x.saturating_sub(half), (x + half + 1).min(width));
-            let sum = integral[y1 * stride + x1] + integral[y0 * stride + x0]
-                - integral[y0 * stride + x1]
-                - integral[y1 * stride + x0];
-            let count = ((y1 - y0) * (x1 - x0)) as f64;
-            below[y * width + x] = f64::from(pixels[y * width + x]) < sum as f64 / count - offset;
+            let box_of = |table: &[u64]| {
+                table[y1 * stride + x1] + table[y0 * stride + x0]
+                    - table[y0 * stride + x1]
+                    - table[y1 * stride + x0]
+            };
+            let sum = box_of(&sums);
+            let count = counts[y1 * stride + x1] + counts[y0 * stride + x0]
+                - counts[y0 * stride + x1]
+                - counts[y1 * stride + x0];
+            // The pixel itself is in the region, so count >= 1.
+            below[index] = f64::from(pixels[index]) < sum as f64 / f64::from(count) - offset;
         }
     }
     below
@@ -136,7 +156,7 @@ mod tests {
     fn local_mean_finds_a_dark_dot() {
         let mut pixels = vec![200u8; 25];
         pixels[12] = 20;
-        let below = local_mean_below(&pixels, 5, 5, 3, 10.0);
+        let below = local_mean_below(&pixels, &[true; 25], 5, 5, 3, 10.0);
         assert_eq!(below.iter().filter(|&&b| b).count(), 1);
         assert!(below[12]);
     }
