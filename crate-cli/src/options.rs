@@ -62,6 +62,15 @@ pub struct GrowOptions {
     /// in the run's units), with scale bar and legend, to this file
     #[arg(long = "svg", value_name = "OUT.svg", verbatim_doc_comment)]
     pub svg_file: Option<String>,
+    /// Write the network as GeoJSON (a LineString per segment with
+    /// its width, the outline of the grown cells as a Polygon; y
+    /// north, in the run's units) to this file
+    #[arg(long = "geojson", value_name = "OUT.geojson", verbatim_doc_comment)]
+    pub geojson_file: Option<String>,
+    /// Write the network as a CSV edge list x1,y1,x2,y2,width (the
+    /// run's units, y down) to this file
+    #[arg(long = "edge-list", value_name = "OUT.csv", verbatim_doc_comment)]
+    pub edge_list_file: Option<String>,
     /// How --svg colours segments: `order` (Strahler order, the
     /// default), `flow` or `plain` (all alike)
     #[arg(

@@ -374,8 +374,18 @@ const COMMAND_FLAGS: [(&str, &[&str]); 4] = [
     (
         "grow",
         &[
-            "--preset", "--params", "--set", "--mask", "--link", "--record", "--svg", "--colour",
-            "--color", "--json",
+            "--preset",
+            "--params",
+            "--set",
+            "--mask",
+            "--link",
+            "--record",
+            "--svg",
+            "--geojson",
+            "--edge-list",
+            "--colour",
+            "--color",
+            "--json",
         ],
     ),
     (

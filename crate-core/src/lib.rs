@@ -15,6 +15,7 @@ pub mod link;
 pub mod mask;
 pub mod metrics;
 pub mod network;
+pub mod network_export;
 pub mod params;
 pub mod presets;
 pub mod record;
