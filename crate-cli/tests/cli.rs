@@ -1716,3 +1716,44 @@ fn bad_images_and_image_options_are_named() {
         &["--local-threshold", "WINDOW"],
     );
 }
+
+/// `grow --geojson` and `--edge-list` write the network as data that `measure` reads back to
+/// the same total length (full-precision coordinates; the spanning-tree preset grows no
+/// crossing, so nothing is split), and an output may not name another output.
+#[test]
+fn grown_networks_export_as_geojson_and_edge_lists_that_measure_back() {
+    let geojson = TempFile::new("grown", "geojson");
+    let edges = TempFile::new("grown", "csv");
+    let grown = grow_json(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--set",
+        "cells=400",
+        "--geojson",
+        geojson.path(),
+        "--edge-list",
+        edges.path(),
+        "--json",
+    ]);
+    let length = grown["total_length"].as_f64().expect("length");
+    for file in [&geojson, &edges] {
+        let outcome = ramulus(&["measure", file.path(), "--units", "mm", "--json"]);
+        assert!(outcome.success, "{}", outcome.stderr);
+        let value = single_json(&outcome.stdout);
+        let back = value["total_length"].as_f64().expect("length");
+        assert!((back - length).abs() <= 1e-9 * length, "{back} against {length}");
+        assert_eq!(value["segments"], grown["segments"]);
+    }
+    let same = ramulus(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--geojson",
+        geojson.path(),
+        "--edge-list",
+        geojson.path(),
+    ]);
+    assert_eq!(same.code, Some(2), "{}", same.stderr);
+    assert!(same.stderr.contains("--edge-list"), "{}", same.stderr);
+}

@@ -10,6 +10,7 @@
 //! in dots per inch or per centimetre, gives `millimetres_per_pixel`.
 
 use png::{BitDepth, ColorType, Transformations};
+use zune_jpeg::zune_core::bytestream::ZCursor;
 use zune_jpeg::zune_core::colorspace::ColorSpace;
 use zune_jpeg::zune_core::options::DecoderOptions;
 
@@ -179,7 +180,7 @@ fn decode_jpeg(bytes: &[u8]) -> Result<GreyImage, ClearedError> {
         .set_max_width(MAX_IMAGE_SIDE as usize)
         .set_max_height(MAX_IMAGE_SIDE as usize)
         .jpeg_set_out_colorspace(ColorSpace::Luma);
-    let mut decoder = zune_jpeg::JpegDecoder::new_with_options(bytes, options);
+    let mut decoder = zune_jpeg::JpegDecoder::new_with_options(ZCursor::new(bytes), options);
     decoder
         .decode_headers()
         .map_err(|error| jpeg_problem(format!("{error:?}")))?;
