@@ -283,6 +283,10 @@ pub struct BenchOptions {
     /// a 20,000-cell specimen, on 1 and on every core, and as shards
     #[arg(long, verbatim_doc_comment)]
     pub fit: bool,
+    /// Time reading a drawn cleared-leaf image of 2000 x 2000
+    /// pixels (1000 x 1000 with --quick), step by step
+    #[arg(long, verbatim_doc_comment, conflicts_with = "fit")]
+    pub image: bool,
 }
 
 /// Accepts a `--set` value of the form KEY=VALUE (an empty VALUE is allowed).

@@ -409,7 +409,7 @@ const COMMAND_FLAGS: [(&str, &[&str]); 4] = [
         ],
     ),
     ("presets", &["--json"]),
-    ("bench", &["--quick", "--json"]),
+    ("bench", &["--quick", "--json", "--image"]),
 ];
 
 /// `ramulus COMMAND --help` prints that command's usage and every flag on stdout and exits 0;
@@ -1742,7 +1742,10 @@ fn grown_networks_export_as_geojson_and_edge_lists_that_measure_back() {
         assert!(outcome.success, "{}", outcome.stderr);
         let value = single_json(&outcome.stdout);
         let back = value["total_length"].as_f64().expect("length");
-        assert!((back - length).abs() <= 1e-9 * length, "{back} against {length}");
+        assert!(
+            (back - length).abs() <= 1e-9 * length,
+            "{back} against {length}"
+        );
         assert_eq!(value["segments"], grown["segments"]);
     }
     let same = ramulus(&[
