@@ -85,7 +85,9 @@ fn check(input: &FuzzInput) -> Result<Verdict, TestCaseError> {
     prop_assert!(image.width <= MAX_IMAGE_SIDE && image.height <= MAX_IMAGE_SIDE);
     prop_assert!((width * height) as u64 <= MAX_IMAGE_PIXELS);
     if bytes.starts_with(&PNG_SIGNATURE) {
-        let header = |at: usize| u32::from_be_bytes([bytes[at], bytes[at + 1], bytes[at + 2], bytes[at + 3]]);
+        let header = |at: usize| {
+            u32::from_be_bytes([bytes[at], bytes[at + 1], bytes[at + 2], bytes[at + 3]])
+        };
         prop_assert_eq!((image.width, image.height), (header(16), header(20)));
     }
     if width * height > 200_000 {
