@@ -249,7 +249,7 @@ fn measure_one(
     path: &str,
     options: &SpecimenOptions,
     image_options: &ClearedOptions,
-    mut keep_masks: Option<&mut Option<ClearedLeaf>>,
+    keep_masks: Option<&mut Option<ClearedLeaf>>,
 ) -> Result<Measured, CliError> {
     let bytes = std::fs::read(path)
         .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))?;
@@ -266,7 +266,7 @@ fn measure_one(
             ))
         })?;
         let report = image_report(&read.leaf, image_options, read.specimen.calibration.factor);
-        if let Some(slot) = keep_masks.as_deref_mut() {
+        if let Some(slot) = keep_masks {
             *slot = Some(read.leaf);
         }
         return Ok(Measured {

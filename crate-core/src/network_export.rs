@@ -19,7 +19,12 @@ use crate::network::{CellSet, Network};
 /// part's cell count times the cell area). `None` without cells or cell size.
 pub fn cells_outline(cells: &CellSet, cell_size: f64) -> Option<Vec<(f64, f64)>> {
     let (width, height) = (cells.width as usize, cells.height as usize);
-    if cells.occupied.is_empty() || !(cell_size > 0.0) || width == 0 || height == 0 {
+    if cells.occupied.is_empty()
+        || cell_size.is_nan()
+        || cell_size <= 0.0
+        || width == 0
+        || height == 0
+    {
         return None;
     }
     let mut on = vec![false; width * height];

@@ -59,9 +59,9 @@ pub fn zhang_suen_thin(on: &mut [bool], width: usize, height: usize) -> usize {
                 }
                 let [p2, _p3, p4, _p5, p6, _p7, p8, _p9] = p;
                 let keep = if step == 0 {
-                    (p2 && p4 && p6) || (p4 && p6 && p8)
+                    p4 && p6 && (p2 || p8)
                 } else {
-                    (p2 && p4 && p8) || (p2 && p6 && p8)
+                    p2 && p8 && (p4 || p6)
                 };
                 if !keep {
                     delete.push(index);
