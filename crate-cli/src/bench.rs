@@ -134,6 +134,9 @@ fn full_model(cells: u64) -> Params {
 
 /// Runs the benchmark cases and prints one line of figures per case.
 pub fn run(options: BenchOptions) -> Result<(), CliError> {
+    if options.image {
+        return crate::image_bench::run(options.quick);
+    }
     if options.fit {
         return crate::fit_bench::run(options.quick);
     }

@@ -15,6 +15,8 @@ use ramulus_draw::texts::stop_text;
 use ramulus_draw::{run_svg, Colouring};
 use serde_json::json;
 
+use ramulus_core::network_export::{cells_outline, network_edge_csv, network_geojson};
+
 use crate::options::{assemble_params, CliError, GrowOptions, MeasureOptions, PresetsOptions};
 use crate::output::OutputPlan;
 
@@ -76,6 +78,12 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     if let Some(path) = &options.svg_file {
         plan.output("--svg", path)?;
     }
+    if let Some(path) = &options.geojson_file {
+        plan.output("--geojson", path)?;
+    }
+    if let Some(path) = &options.edge_list_file {
+        plan.output("--edge-list", path)?;
+    }
     let file = parameter_file(options.params_file.as_deref())?;
     let link_params = link_parameters(options.link.as_deref())?;
     let mask = match &options.mask_file {
@@ -122,6 +130,18 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     if let Some(path) = &options.svg_file {
         let svg = run_svg(&view, &params, colour);
         plan.stage(path, &svg)?;
+    }
+    if let Some(path) = &options.geojson_file {
+        let network = &view.network;
+        let outline = cells_outline(&network.cells, network.cell_size);
+        let text = network_geojson(network, Some(&view.table.width), outline.as_deref());
+        plan.stage(path, &text)?;
+    }
+    if let Some(path) = &options.edge_list_file {
+        plan.stage(
+            path,
+            &network_edge_csv(&view.network, Some(&view.table.width)),
+        )?;
     }
     // Only now, with every output written in full beside its target, are they put in place.
     plan.commit()?;

@@ -29,8 +29,9 @@ use crate::output::OutputPlan;
 #[derive(Args)]
 #[command(after_help = FIT_NOTES)]
 pub struct FitOptions {
-    /// The specimen to match: a run record (ramulus grow --record)
-    /// or a traced specimen (SVG, GeoJSON, CSV edge list)
+    /// The specimen to match: a run record (ramulus grow --record),
+    /// a traced specimen (SVG, GeoJSON, CSV edge list) or a
+    /// cleared-leaf image (PNG, JPEG; default image steps)
     #[arg(long, value_name = "FILE", required = true, verbatim_doc_comment)]
     pub specimen: String,
     /// How a traced specimen is calibrated and repaired (as for measure;
@@ -486,8 +487,22 @@ fn measure_specimen(
     let units_given = tracing.units.is_some();
     tracing.units.get_or_insert_with(|| units.clone());
     let options = crate::specimens::specimen_options(&tracing)?;
-    let specimen = ramulus_core::specimen::build_specimen(&bytes, &options)
-        .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+    // A cleared-leaf image is read with the default image steps (as `measure` without image
+    // options); a traced file as `measure` reads it.
+    let specimen = if ramulus_core::cleared::decode::is_image(&bytes) {
+        let image = ramulus_core::cleared::decode::decode_image(&bytes)
+            .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+        ramulus_core::cleared::build_cleared_specimen(
+            &image,
+            &ramulus_core::cleared::ClearedOptions::default(),
+            &options,
+        )
+        .map_err(|error| CliError::Failed(format!("{path}: {error}")))?
+        .specimen
+    } else {
+        ramulus_core::specimen::build_specimen(&bytes, &options)
+            .map_err(|error| CliError::Failed(format!("{path}: {error}")))?
+    };
     if &specimen.calibration.units != units {
         return Err(CliError::Failed(format!(
             "{path}: the specimen is measured in {} but the growth parameters in {units}{}",

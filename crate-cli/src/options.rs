@@ -62,6 +62,15 @@ pub struct GrowOptions {
     /// in the run's units), with scale bar and legend, to this file
     #[arg(long = "svg", value_name = "OUT.svg", verbatim_doc_comment)]
     pub svg_file: Option<String>,
+    /// Write the network as GeoJSON (a LineString per segment with
+    /// its width, the outline of the grown cells as a Polygon; y
+    /// north, in the run's units) to this file
+    #[arg(long = "geojson", value_name = "OUT.geojson", verbatim_doc_comment)]
+    pub geojson_file: Option<String>,
+    /// Write the network as a CSV edge list x1,y1,x2,y2,width (the
+    /// run's units, y down) to this file
+    #[arg(long = "edge-list", value_name = "OUT.csv", verbatim_doc_comment)]
+    pub edge_list_file: Option<String>,
     /// How --svg colours segments: `order` (Strahler order, the
     /// default), `flow` or `plain` (all alike)
     #[arg(
@@ -124,8 +133,9 @@ fragment (the #fragment alone).";
 pub struct MeasureOptions {
     /// Run records (RECORD.json, written by `ramulus grow --record`
     /// or kept on the page), traced specimens (SVG, GeoJSON, CSV
-    /// edge list x1,y1,x2,y2[,width], told apart by content) or
-    /// folders of them; several are all measured
+    /// edge list x1,y1,x2,y2[,width]), cleared-leaf images (PNG,
+    /// JPEG), told apart by content, or folders of them; several
+    /// are all measured
     #[arg(value_name = "FILE", required = true, verbatim_doc_comment)]
     pub files: Vec<String>,
     /// Print exactly one JSON object on stdout instead of the tables
@@ -134,6 +144,47 @@ pub struct MeasureOptions {
     /// How traced specimens are calibrated and repaired
     #[command(flatten)]
     pub specimen: SpecimenArgs,
+    /// How cleared-leaf images are read
+    #[command(flatten)]
+    pub image: ImageArgs,
+}
+
+/// How cleared-leaf images (PNG, JPEG) are read by `measure`.
+#[derive(Args, Clone, Default)]
+pub struct ImageArgs {
+    /// Images: the leaf is lighter than its background (default:
+    /// darker, as with light shining through from behind)
+    #[arg(long = "leaf-light", verbatim_doc_comment)]
+    pub leaf_light: bool,
+    /// Images: the veins are lighter than the tissue around them
+    /// (default: darker, as stained veins)
+    #[arg(long = "veins-light", verbatim_doc_comment)]
+    pub veins_light: bool,
+    /// Images: tell veins by the mean grey level of the leaf in a
+    /// WINDOW x WINDOW pixel square minus OFFSET grey levels (for
+    /// uneven light), instead of Otsu's threshold over the leaf
+    #[arg(
+        long = "local-threshold",
+        value_name = "WINDOW,OFFSET",
+        verbatim_doc_comment
+    )]
+    pub local_threshold: Option<String>,
+    /// Images: prune skeleton spurs (a chain from an end point)
+    /// shorter than this many pixels (default 10)
+    #[arg(long, value_name = "PIXELS", verbatim_doc_comment)]
+    pub spur: Option<f64>,
+    /// Images: write the leaf mask (black leaf on white) to this
+    /// PNG, for tuning (one image only)
+    #[arg(long = "write-leaf-mask", value_name = "OUT.png", verbatim_doc_comment)]
+    pub write_leaf_mask: Option<String>,
+    /// Images: write the vein mask (black veins on white) to this
+    /// PNG, for tuning (one image only)
+    #[arg(long = "write-veins", value_name = "OUT.png", verbatim_doc_comment)]
+    pub write_veins: Option<String>,
+    /// Images: write the skeleton (black on white) to this PNG,
+    /// for tuning (one image only)
+    #[arg(long = "write-skeleton", value_name = "OUT.png", verbatim_doc_comment)]
+    pub write_skeleton: Option<String>,
 }
 
 /// Calibration and repair of traced specimens (shared by `measure` and `fit`).
@@ -143,8 +194,8 @@ pub struct SpecimenArgs {
     /// SVG's physical size, default mm); GeoJSON and CSV need it
     #[arg(long, value_name = "UNIT", verbatim_doc_comment)]
     pub units: Option<String>,
-    /// Specimens: output units per file unit, instead of the SVG's
-    /// physical size
+    /// Specimens: output units per file unit (per pixel for an
+    /// image), instead of the SVG's or image's stated size
     #[arg(
         long,
         value_name = "FACTOR",
@@ -197,7 +248,16 @@ and repeated pieces dropped, disconnected parts, the roots chosen) is listed on 
 coordinates, or under `repairs` with --json. One specimen prints its table; several print one
 CSV row per file (header first) on stdout, for a spreadsheet or R. With --json: one object
 (several: {\"specimens\": [...]}) with file, format, units, calibration, nodes, segments,
-total_length, metrics (the keys of `grow --json`), repairs and notes.";
+total_length, metrics (the keys of `grow --json`), repairs and notes.
+
+Cleared-leaf images (PNG or JPEG, told by their signatures) are read step by step: the leaf by
+Otsu's threshold (largest part, holes filled), the veins by a second Otsu threshold over the
+leaf or --local-threshold, Zhang-Suen thinning, the skeleton's graph with spurs under --spur
+pixels pruned, widths from the distance transform. Coordinates (--root, --scale-bar) are in
+pixels from the top-left corner; the scale comes from the image's stated resolution (PNG pHYs,
+JPEG density) or --scale (output units per pixel). Each step's numbers are listed on stderr,
+or under `image` with --json; --write-leaf-mask, --write-veins and --write-skeleton write the
+intermediate images for tuning.";
 
 /// Options of `ramulus presets`.
 #[derive(Args)]
@@ -223,6 +283,10 @@ pub struct BenchOptions {
     /// a 20,000-cell specimen, on 1 and on every core, and as shards
     #[arg(long, verbatim_doc_comment)]
     pub fit: bool,
+    /// Time reading a drawn cleared-leaf image of 2000 x 2000
+    /// pixels (1000 x 1000 with --quick), step by step
+    #[arg(long, verbatim_doc_comment, conflicts_with = "fit")]
+    pub image: bool,
 }
 
 /// Accepts a `--set` value of the form KEY=VALUE (an empty VALUE is allowed).

@@ -1,10 +1,16 @@
-//! `ramulus measure` on traced specimens (SVG, GeoJSON, CSV edge lists) and folders: reads the
-//! files, hands them to `ramulus_core::specimen::build_specimen`, measures each network with
-//! the same pipeline as a grown one (`RunView`), and prints a table, one CSV row per file, or
-//! JSON, with the repair report on stderr (or under `repairs`).
+//! `ramulus measure` on traced specimens (SVG, GeoJSON, CSV edge lists), cleared-leaf images
+//! (PNG, JPEG) and folders: reads the files, hands them to
+//! `ramulus_core::specimen::build_specimen` or `ramulus_core::cleared::build_cleared_specimen`,
+//! measures each network with the same pipeline as a grown one (`RunView`), and prints a
+//! table, one CSV row per file, or JSON, with the repair report and each image step's numbers
+//! on stderr (or under `repairs` and `image`); writes an image's intermediate masks on request.
 
 use std::io::IsTerminal;
 
+use ramulus_core::cleared::decode::{decode_image, is_image};
+use ramulus_core::cleared::{
+    build_cleared_specimen, ClearedLeaf, ClearedOptions, VeinThreshold, DEFAULT_SPUR_LENGTH,
+};
 use ramulus_core::metrics::Metrics;
 use ramulus_core::params::Params;
 use ramulus_core::record::read_record;
@@ -15,10 +21,11 @@ use ramulus_core::specimen::{
 };
 use serde_json::json;
 
-use crate::options::{CliError, MeasureOptions, SpecimenArgs};
+use crate::options::{CliError, ImageArgs, MeasureOptions, SpecimenArgs};
+use crate::output::OutputPlan;
 
 /// File name endings a folder is searched for.
-const SPECIMEN_ENDINGS: [&str; 4] = [".svg", ".geojson", ".json", ".csv"];
+const SPECIMEN_ENDINGS: [&str; 7] = [".svg", ".geojson", ".json", ".csv", ".png", ".jpg", ".jpeg"];
 
 /// Whether the bytes are a run record rather than a specimen: a JSON object that names the
 /// `ramulus-run` format, or one without a `"type"` key (which every GeoJSON object has), so
@@ -34,7 +41,15 @@ pub(crate) fn is_record(bytes: &[u8]) -> bool {
 /// specimen option.
 pub fn wanted(options: &MeasureOptions) -> bool {
     let specimen = &options.specimen;
+    let image = &options.image;
     specimen.units.is_some()
+        || image.leaf_light
+        || image.veins_light
+        || image.local_threshold.is_some()
+        || image.spur.is_some()
+        || image.write_leaf_mask.is_some()
+        || image.write_veins.is_some()
+        || image.write_skeleton.is_some()
         || specimen.scale.is_some()
         || specimen.scale_bar.is_some()
         || specimen.root.is_some()
@@ -92,6 +107,67 @@ pub(crate) fn specimen_options(options: &SpecimenArgs) -> Result<SpecimenOptions
     })
 }
 
+/// The core's image options from the command line's.
+fn cleared_options(options: &ImageArgs) -> Result<ClearedOptions, CliError> {
+    let vein_threshold = match &options.local_threshold {
+        Some(text) => {
+            let values = numbers("--local-threshold", text, 2, "WINDOW,OFFSET")?;
+            if values[0] < 3.0 || values[0] > 1001.0 || values[0].fract() != 0.0 {
+                return Err(CliError::Usage(format!(
+                    "`--local-threshold {text}`: WINDOW must be a whole number of pixels from 3 \
+                     to 1001"
+                )));
+            }
+            VeinThreshold::Local {
+                window: values[0] as u32,
+                offset: values[1],
+            }
+        }
+        None => VeinThreshold::Global,
+    };
+    let spur_length = options.spur.unwrap_or(DEFAULT_SPUR_LENGTH);
+    if !(spur_length >= 0.0 && spur_length.is_finite()) {
+        return Err(CliError::Usage(format!(
+            "`--spur {spur_length}`: expected a length in pixels, 0 or more"
+        )));
+    }
+    Ok(ClearedOptions {
+        leaf_darker: !options.leaf_light,
+        veins_darker: !options.veins_light,
+        vein_threshold,
+        spur_length,
+        ..ClearedOptions::default()
+    })
+}
+
+/// The intermediate images asked for, with their flags.
+fn image_outputs(options: &ImageArgs) -> Vec<(&'static str, &str)> {
+    [
+        ("--write-leaf-mask", &options.write_leaf_mask),
+        ("--write-veins", &options.write_veins),
+        ("--write-skeleton", &options.write_skeleton),
+    ]
+    .into_iter()
+    .filter_map(|(flag, path)| path.as_deref().map(|path| (flag, path)))
+    .collect()
+}
+
+/// A black-on-white 8-bit grey PNG of a mask.
+fn mask_png(width: u32, height: u32, on: &[bool]) -> std::io::Result<Vec<u8>> {
+    let mut bytes = Vec::new();
+    {
+        let mut encoder = png::Encoder::new(&mut bytes, width, height);
+        encoder.set_color(png::ColorType::Grayscale);
+        encoder.set_depth(png::BitDepth::Eight);
+        let mut writer = encoder.write_header().map_err(std::io::Error::other)?;
+        let grey: Vec<u8> = on.iter().map(|&b| if b { 0 } else { 255 }).collect();
+        writer
+            .write_image_data(&grey)
+            .map_err(std::io::Error::other)?;
+    }
+    Ok(bytes)
+}
+
 /// The files named, folders replaced by their specimen files in name order.
 fn expand(files: &[String]) -> Result<Vec<String>, CliError> {
     let mut paths = Vec::new();
@@ -114,7 +190,8 @@ fn expand(files: &[String]) -> Result<Vec<String>, CliError> {
             found.sort();
             if found.is_empty() {
                 return Err(CliError::Failed(format!(
-                    "{path}: the folder holds no .svg, .geojson, .json or .csv file"
+                    "{path}: the folder holds no .svg, .geojson, .json, .csv, .png, .jpg or \
+                     .jpeg file"
                 )));
             }
             paths.extend(found);
@@ -134,12 +211,75 @@ struct Measured {
     nodes: usize,
     segments: usize,
     metrics: Metrics,
+    /// Each step's numbers, for an image.
+    image: Option<serde_json::Value>,
 }
 
-fn measure_one(path: &str, options: &SpecimenOptions) -> Result<Measured, CliError> {
+/// The numbers of each step of reading an image, in pixels and grey levels (and the mean
+/// width in output units too).
+fn image_report(leaf: &ClearedLeaf, options: &ClearedOptions, factor: f64) -> serde_json::Value {
+    json!({
+        "width": leaf.width,
+        "height": leaf.height,
+        "leaf_threshold": leaf.leaf_threshold,
+        "leaf_pixels": leaf.leaf_pixels,
+        "leaf_holes_filled": leaf.leaf_holes_filled,
+        "vein_threshold": match options.vein_threshold {
+            VeinThreshold::Global => json!({ "otsu": leaf.vein_threshold }),
+            VeinThreshold::Local { window, offset } => json!({
+                "local_mean": { "window": window | 1, "offset": offset }
+            }),
+        },
+        "vein_pixels": leaf.vein_pixels,
+        "thinning_iterations": leaf.thinning_iterations,
+        "skeleton_pixels": leaf.skeleton_pixels,
+        "end_points_before_pruning": leaf.end_points_before_pruning,
+        "spur_length_pixels": options.spur_length,
+        "spurs_pruned": leaf.spurs_pruned,
+        "lone_pixels": leaf.lone_pixels,
+        "chains": leaf.veins.len(),
+        "end_points": leaf.end_points,
+        "branch_points": leaf.branch_points,
+        "mean_vein_width_pixels": leaf.mean_vein_width,
+        "mean_vein_width": leaf.mean_vein_width.map(|w| w * factor),
+    })
+}
+
+fn measure_one(
+    path: &str,
+    options: &SpecimenOptions,
+    image_options: &ClearedOptions,
+    keep_masks: Option<&mut Option<ClearedLeaf>>,
+) -> Result<Measured, CliError> {
     let bytes = std::fs::read(path)
         .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))?;
     let params = Params::default();
+    if is_image(&bytes) {
+        let image =
+            decode_image(&bytes).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+        drop(bytes);
+        let read = build_cleared_specimen(&image, image_options, options)
+            .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+        let view = RunView::new(read.specimen.network.clone(), &params).map_err(|error| {
+            CliError::Failed(format!(
+                "{path}: internal: the repaired network is not valid: {error}"
+            ))
+        })?;
+        let report = image_report(&read.leaf, image_options, read.specimen.calibration.factor);
+        if let Some(slot) = keep_masks {
+            *slot = Some(read.leaf);
+        }
+        return Ok(Measured {
+            file: path.to_string(),
+            format: read.specimen.format.name().to_string(),
+            units: read.specimen.calibration.units.clone(),
+            nodes: view.network.nodes.len(),
+            segments: view.network.segment_count(),
+            metrics: view.metrics,
+            specimen: Some(read.specimen),
+            image: Some(report),
+        });
+    }
     if is_record(&bytes) {
         let text = String::from_utf8_lossy(&bytes);
         let (_, network) =
@@ -154,6 +294,7 @@ fn measure_one(path: &str, options: &SpecimenOptions) -> Result<Measured, CliErr
             nodes: view.network.nodes.len(),
             segments: view.network.segment_count(),
             metrics: view.metrics,
+            image: None,
         });
     }
     let specimen = build_specimen(&bytes, options)
@@ -172,6 +313,7 @@ fn measure_one(path: &str, options: &SpecimenOptions) -> Result<Measured, CliErr
         segments: view.network.segment_count(),
         metrics: view.metrics,
         specimen: Some(specimen),
+        image: None,
     })
 }
 
@@ -202,6 +344,52 @@ fn report_on_stderr(one: &Measured) {
     for repair in &specimen.report.repairs {
         eprintln!("    {repair}");
     }
+    if let Some(image) = &one.image {
+        let number = |key: &str| image[key].to_string();
+        eprintln!(
+            "  image {} x {} pixels: leaf split from background at grey level {} (Otsu), {} \
+             pixels ({} in holes filled)",
+            number("width"),
+            number("height"),
+            number("leaf_threshold"),
+            number("leaf_pixels"),
+            number("leaf_holes_filled")
+        );
+        let threshold = &image["vein_threshold"];
+        let rule = if threshold["otsu"].is_null() {
+            format!(
+                "below the local mean of a {} pixel window minus {} grey levels",
+                threshold["local_mean"]["window"], threshold["local_mean"]["offset"]
+            )
+        } else {
+            format!("at grey level {} (Otsu over the leaf)", threshold["otsu"])
+        };
+        eprintln!("  veins: {} pixels, split {rule}", number("vein_pixels"));
+        eprintln!(
+            "  skeleton: {} pixels after {} Zhang-Suen iterations; {} end points, {} spurs \
+             under {} pixels pruned, {} lone pixels dropped",
+            number("skeleton_pixels"),
+            number("thinning_iterations"),
+            number("end_points_before_pruning"),
+            number("spurs_pruned"),
+            number("spur_length_pixels"),
+            number("lone_pixels")
+        );
+        eprintln!(
+            "  graph: {} chains, {} end points, {} branch points; mean vein width {} pixels \
+             ({} {})",
+            number("chains"),
+            number("end_points"),
+            number("branch_points"),
+            image["mean_vein_width_pixels"]
+                .as_f64()
+                .map_or("n/a".to_string(), |w| format!("{w:.2}")),
+            image["mean_vein_width"]
+                .as_f64()
+                .map_or("n/a".to_string(), |w| format!("{w:.4}")),
+            one.units
+        );
+    }
 }
 
 fn measured_json(one: &Measured) -> serde_json::Value {
@@ -227,6 +415,7 @@ fn measured_json(one: &Measured) -> serde_json::Value {
             }).collect::<Vec<_>>()
         }),
         "notes": specimen.map(|s| s.notes.clone()),
+        "image": one.image,
         "scale_bars": specimen.map(|s| s.scale_bars.iter().map(|(from, to, element)| json!({
             "from": [from.0, from.1], "to": [to.0, to.1], "element": element,
         })).collect::<Vec<_>>()),
@@ -237,7 +426,24 @@ fn measured_json(one: &Measured) -> serde_json::Value {
 /// named and nothing is printed on stdout.
 pub fn measure_specimens(options: MeasureOptions) -> Result<(), CliError> {
     let core_options = specimen_options(&options.specimen)?;
+    let image_options = cleared_options(&options.image)?;
     let paths = expand(&options.files)?;
+    let writes = image_outputs(&options.image);
+    let mut plan = OutputPlan::default();
+    if !writes.is_empty() {
+        if paths.len() != 1 {
+            return Err(CliError::Usage(format!(
+                "`{}` writes the steps of one image; {} files were given",
+                writes[0].0,
+                paths.len()
+            )));
+        }
+        plan.input("FILE", &paths[0]);
+        for (flag, path) in &writes {
+            plan.output(flag, path)?;
+        }
+    }
+    let mut masks: Option<ClearedLeaf> = None;
     let progress = paths.len() > 1 && std::io::stderr().is_terminal();
     let mut measured = Vec::new();
     let mut failures = Vec::new();
@@ -245,7 +451,8 @@ pub fn measure_specimens(options: MeasureOptions) -> Result<(), CliError> {
         if progress {
             eprint!("\rmeasuring {} of {}: {path}\x1b[K", index + 1, paths.len());
         }
-        match measure_one(path, &core_options) {
+        let keep = (!writes.is_empty()).then_some(&mut masks);
+        match measure_one(path, &core_options, &image_options, keep) {
             Ok(one) => measured.push(one),
             Err(CliError::Failed(message) | CliError::Usage(message)) => failures.push(message),
         }
@@ -264,6 +471,25 @@ pub fn measure_specimens(options: MeasureOptions) -> Result<(), CliError> {
                 failures.join("\n  ")
             )
         }));
+    }
+    if !writes.is_empty() {
+        let Some(leaf) = masks.take() else {
+            return Err(CliError::Failed(format!(
+                "{}: not a PNG or JPEG image, so it has no leaf mask, veins or skeleton to write",
+                paths[0]
+            )));
+        };
+        for (flag, path) in &writes {
+            let on = match *flag {
+                "--write-leaf-mask" => &leaf.leaf_mask,
+                "--write-veins" => &leaf.vein_mask,
+                _ => &leaf.skeleton,
+            };
+            let bytes = mask_png(leaf.width, leaf.height, on)
+                .map_err(|error| CliError::Failed(format!("{path}: cannot encode: {error}")))?;
+            plan.stage_writing(path, |writer| writer.write_all(&bytes))?;
+        }
+        plan.commit()?;
     }
     if options.json {
         let output = match measured.as_slice() {

@@ -374,8 +374,18 @@ const COMMAND_FLAGS: [(&str, &[&str]); 4] = [
     (
         "grow",
         &[
-            "--preset", "--params", "--set", "--mask", "--link", "--record", "--svg", "--colour",
-            "--color", "--json",
+            "--preset",
+            "--params",
+            "--set",
+            "--mask",
+            "--link",
+            "--record",
+            "--svg",
+            "--geojson",
+            "--edge-list",
+            "--colour",
+            "--color",
+            "--json",
         ],
     ),
     (
@@ -389,10 +399,17 @@ const COMMAND_FLAGS: [(&str, &[&str]); 4] = [
             "--root",
             "--snap",
             "--flatten",
+            "--leaf-light",
+            "--veins-light",
+            "--local-threshold",
+            "--spur",
+            "--write-leaf-mask",
+            "--write-veins",
+            "--write-skeleton",
         ],
     ),
     ("presets", &["--json"]),
-    ("bench", &["--quick", "--json"]),
+    ("bench", &["--quick", "--json", "--image"]),
 ];
 
 /// `ramulus COMMAND --help` prints that command's usage and every flag on stdout and exits 0;
@@ -1114,7 +1131,7 @@ fn bad_specimens_are_named() {
 }
 
 /// README's specimen examples run as written: the shipped folder of invented specimens gives
-/// a header and one row for each of its three files.
+/// a header and one row for each of its four files (three traced, one cleared-leaf image).
 #[test]
 fn the_readme_specimen_examples_run() {
     let examples = concat!(env!("CARGO_MANIFEST_DIR"), "/../examples/specimens");
@@ -1127,7 +1144,7 @@ fn the_readme_specimen_examples_run() {
     assert!(one.success, "{}", one.stderr);
     let folder = ramulus(&["measure", examples, "--units", "mm"]);
     assert!(folder.success, "{}", folder.stderr);
-    assert_eq!(folder.stdout.lines().count(), 4, "{}", folder.stdout);
+    assert_eq!(folder.stdout.lines().count(), 5, "{}", folder.stdout);
 }
 
 /// `--page` sets the address the printed link opens (a page served elsewhere); an address
@@ -1606,4 +1623,140 @@ fn a_traced_specimen_is_fitted_and_a_unit_mismatch_refused() {
     in_cm.extend(["--units", "cm"]);
     let outcome = ramulus(&in_cm);
     check_failure(&outcome, &["measured in cm", "growth parameters in mm"]);
+}
+
+/// The shipped cleared-leaf image measures as an image specimen: the scale from its pHYs chunk
+/// (50,000 pixels per metre, so 0.02 mm per pixel), each step's numbers under `image`, the
+/// metrics under the keys of `grow --json` (areoles included), and the intermediate images
+/// written as PNG files of the image's size (its IHDR width and height, PNG specification
+/// section 11.2.2).
+#[test]
+fn a_cleared_leaf_image_measures_and_writes_its_steps() {
+    let image = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/../examples/specimens/cleared-leaf.png"
+    );
+    let skeleton = TempFile::new("skeleton", "png");
+    let veins = TempFile::new("veins", "png");
+    let outcome = ramulus(&[
+        "measure",
+        image,
+        "--json",
+        "--write-skeleton",
+        skeleton.path(),
+        "--write-veins",
+        veins.path(),
+    ]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    let value = single_json(&outcome.stdout);
+    assert_eq!(value["format"], "image");
+    assert_eq!(value["calibration"]["factor"], 0.02);
+    assert_eq!(value["units"], "mm");
+    let steps = &value["image"];
+    assert!(steps["chains"].as_u64().unwrap() > 10, "{steps}");
+    assert!(steps["vein_pixels"].as_u64() < steps["leaf_pixels"].as_u64());
+    assert_eq!(value["metrics"]["areoles"], 0, "a grown leaf drawn: a tree");
+    assert!(value["metrics"]["total_length"].as_f64().unwrap() > 50.0);
+    for written in [&skeleton, &veins] {
+        let bytes = std::fs::read(written.path()).expect("written");
+        assert_eq!(&bytes[..8], b"\x89PNG\r\n\x1a\n");
+        assert_eq!(&bytes[12..16], b"IHDR");
+        assert_eq!(u32::from_be_bytes(bytes[16..20].try_into().unwrap()), 527);
+        assert_eq!(u32::from_be_bytes(bytes[20..24].try_into().unwrap()), 583);
+    }
+    let text = ramulus(&["measure", image, "--spur", "4"]);
+    assert!(text.success, "{}", text.stderr);
+    for step in [
+        "Zhang-Suen",
+        "Otsu",
+        "spurs under 4.0 pixels pruned",
+        "branch points",
+    ] {
+        assert!(text.stderr.contains(step), "{step}: {}", text.stderr);
+    }
+}
+
+/// Bad images and image options are named: a PNG whose header claims 100,000 x 100,000
+/// pixels is refused before decoding, writing steps of two files is a usage error, and a
+/// local threshold window must be a whole number of pixels.
+#[test]
+fn bad_images_and_image_options_are_named() {
+    let image = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/../examples/specimens/cleared-leaf.png"
+    );
+    let mut bytes = std::fs::read(image).expect("demo image");
+    bytes[16..20].copy_from_slice(&100_000u32.to_be_bytes());
+    bytes[20..24].copy_from_slice(&100_000u32.to_be_bytes());
+    // The IHDR CRC (PNG specification, annex D), so the size is what is refused.
+    let mut crc = 0xffff_ffffu32;
+    for &byte in &bytes[12..29] {
+        crc ^= u32::from(byte);
+        for _ in 0..8 {
+            crc = if crc & 1 == 1 {
+                (crc >> 1) ^ 0xedb8_8320
+            } else {
+                crc >> 1
+            };
+        }
+    }
+    bytes[29..33].copy_from_slice(&(!crc).to_be_bytes());
+    let huge = TempFile::new("huge", "png");
+    std::fs::write(huge.path(), &bytes).unwrap();
+    check_failure(
+        &ramulus(&["measure", huge.path()]),
+        &["100000 x 100000", "limit"],
+    );
+    let out = TempFile::new("steps", "png");
+    let two = ramulus(&["measure", image, image, "--write-skeleton", out.path()]);
+    assert_eq!(two.code, Some(2), "{}", two.stderr);
+    assert!(two.stderr.contains("--write-skeleton"), "{}", two.stderr);
+    check_failure(
+        &ramulus(&["measure", image, "--local-threshold", "2.5,10"]),
+        &["--local-threshold", "WINDOW"],
+    );
+}
+
+/// `grow --geojson` and `--edge-list` write the network as data that `measure` reads back to
+/// the same total length (full-precision coordinates; the spanning-tree preset grows no
+/// crossing, so nothing is split), and an output may not name another output.
+#[test]
+fn grown_networks_export_as_geojson_and_edge_lists_that_measure_back() {
+    let geojson = TempFile::new("grown", "geojson");
+    let edges = TempFile::new("grown", "csv");
+    let grown = grow_json(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--set",
+        "cells=400",
+        "--geojson",
+        geojson.path(),
+        "--edge-list",
+        edges.path(),
+        "--json",
+    ]);
+    let length = grown["total_length"].as_f64().expect("length");
+    for file in [&geojson, &edges] {
+        let outcome = ramulus(&["measure", file.path(), "--units", "mm", "--json"]);
+        assert!(outcome.success, "{}", outcome.stderr);
+        let value = single_json(&outcome.stdout);
+        let back = value["total_length"].as_f64().expect("length");
+        assert!(
+            (back - length).abs() <= 1e-9 * length,
+            "{back} against {length}"
+        );
+        assert_eq!(value["segments"], grown["segments"]);
+    }
+    let same = ramulus(&[
+        "grow",
+        "--preset",
+        "spanning-tree",
+        "--geojson",
+        geojson.path(),
+        "--edge-list",
+        geojson.path(),
+    ]);
+    assert_eq!(same.code, Some(2), "{}", same.stderr);
+    assert!(same.stderr.contains("--edge-list"), "{}", same.stderr);
 }

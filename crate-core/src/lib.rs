@@ -4,6 +4,7 @@
 //! knows nothing of drawing: pictures, colours and the texts people read live in `ramulus-draw`.
 #![deny(missing_docs)]
 
+pub mod cleared;
 pub mod digest;
 pub mod fast_libm;
 pub mod fit;
@@ -14,6 +15,7 @@ pub mod link;
 pub mod mask;
 pub mod metrics;
 pub mod network;
+pub mod network_export;
 pub mod params;
 pub mod presets;
 pub mod record;

@@ -1,6 +1,7 @@
 //! Shared helpers for the cross-crate tests (hand-built networks, parameter strategies, the
 //! fuzzing harness of the readers).
 
+pub mod cleared_drawing;
 pub mod fuzz;
 pub mod hand_built;
 pub mod param_strategy;

@@ -99,6 +99,11 @@ fn check_euler(specimen: &Specimen, name: &str) {
         faces - 1,
         "{name}: areoles (bounded faces) equal the loop count"
     );
+    assert_eq!(
+        metrics.areoles,
+        Some((faces - 1) as u64),
+        "{name}: the metric table's areoles equal the faces traced here"
+    );
 }
 
 /// A broad leaf grown here with a small budget.
@@ -543,8 +548,8 @@ fn assert_names(message: &str, parts: &[&str]) {
     }
 }
 
-/// RFC 7946 section 1.5's example collection holds a Point (feature 0): not a vein or an
-/// outline, refused by index. Coordinates that are not numbers, and numbers beyond f64, are
+/// RFC 7946 section 1.5's example collection holds a Point (feature 0), read as a root mark;
+/// a MultiPoint (section 3.1.3) is neither vein, outline nor root, refused by index. Coordinates that are not numbers, and numbers beyond f64, are
 /// refused with their place.
 #[test]
 fn bad_geojson_is_named_by_feature() {
@@ -552,7 +557,25 @@ fn bad_geojson_is_named_by_feature() {
     let point = r#"{"type":"FeatureCollection","features":[
       {"type":"Feature","geometry":{"type":"Point","coordinates":[102.0,0.5]},"properties":{"prop0":"value0"}},
       {"type":"Feature","geometry":{"type":"LineString","coordinates":[[102.0,0.0],[103.0,1.0]]},"properties":{}}]}"#;
-    assert_names(&error_of(point.as_bytes(), &geo), &["feature 0", "Point"]);
+    let rooted = build(point.as_bytes(), &geo);
+    assert!(
+        rooted.report.repairs.iter().any(|repair| matches!(
+            repair,
+            // y north in the file, so the mark lies at y = -0.5 once calibrated, 0.5 from the
+            // nearest line end, (102, 0).
+            Repair::Root { at, distance, .. } if *at == (102.0, 0.0) && *distance == 0.5
+        )),
+        "{:?}",
+        rooted.report.repairs
+    );
+    let multi = point.replace(
+        r#""type":"Point","coordinates":[102.0,0.5]"#,
+        r#""type":"MultiPoint","coordinates":[[102.0,0.5]]"#,
+    );
+    assert_names(
+        &error_of(multi.as_bytes(), &geo),
+        &["feature 0", "MultiPoint"],
+    );
     let nan = r#"{"type":"LineString","coordinates":[[0,0],[NaN,1]]}"#;
     assert_names(&error_of(nan.as_bytes(), &geo), &["line 1", "column"]);
     let huge = "{\"type\":\"LineString\",\n\"coordinates\":[[0,0],[1e999,1]]}";

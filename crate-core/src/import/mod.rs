@@ -6,7 +6,7 @@
 //! from the top of the image down, as in `MaskGrid`.
 
 mod pbm;
-mod png_mask;
+pub(crate) mod png_mask;
 
 pub use pbm::mask_from_pbm;
 pub use png_mask::mask_from_png;

@@ -170,7 +170,7 @@ fn indexed_pixels(
 /// fits in the data, has a length the specification allows and matches its CRC (PNG
 /// specification, W3C 2003, section 5.3); the first failure names the chunk and its byte
 /// offset.
-fn check_chunks(bytes: &[u8]) -> Result<(), ImportError> {
+pub(crate) fn check_chunks(bytes: &[u8]) -> Result<(), ImportError> {
     let mut offset = PNG_SIGNATURE.len();
     while offset < bytes.len() {
         let chunk_name = |bytes: &[u8]| match bytes.get(offset + 4..offset + 8) {
@@ -267,7 +267,7 @@ fn luminance(red: u8, green: u8, blue: u8) -> u32 {
 }
 
 /// Puts a decoder error into words.
-fn png_error(error: DecodingError) -> ImportError {
+pub(crate) fn png_error(error: DecodingError) -> ImportError {
     let message = match error {
         DecodingError::IoError(error) if error.kind() == std::io::ErrorKind::UnexpectedEof => {
             "the data ends before the image does (truncated file)".to_string()

@@ -5,7 +5,7 @@
 //!
 //! One code path serves grown, recorded and looped networks. Each measurement lives in its own
 //! file: `densities` (lengths, junctions, tips), `loops` (components and independent loops,
-//! with petgraph), `angles`, `strahler_horton`, `hack`, `tortuosity`, `transport`, `outline`,
+//! with petgraph), `areoles` (bounded faces of the plane drawing), `angles`, `strahler_horton`, `hack`, `tortuosity`, `transport`, `outline`,
 //! with the least-squares fit in `regression` and the table in `table`. Transcendental
 //! functions come from `libm`, so native and wasm builds agree to the bit.
 //!
@@ -19,6 +19,7 @@ use crate::network::{Network, NetworkKind, Topology, TopologyError};
 use crate::segments::strahler_orders;
 
 mod angles;
+mod areoles;
 mod densities;
 mod hack;
 mod loops;
@@ -65,6 +66,25 @@ pub struct Metrics {
     pub component_count: u64,
     /// Independent loops: the cyclomatic number `segments - nodes + components` (count).
     pub loop_count: u64,
+    /// Areoles: bounded faces of the network drawn in the plane, `segments - nodes +
+    /// components` of them by Euler's formula (count); 0 for a forest; `None` when the network
+    /// has loops but two of its segments cross or overlap (see `metrics/areoles.rs`).
+    pub areoles: Option<u64>,
+    /// Areoles per area, in 1/units^2; `None` when the area is not positive or the areoles are
+    /// unknown.
+    pub areole_density: Option<f64>,
+    /// Mean area of an areole (shoelace formula over its boundary walk), in units^2; `None`
+    /// without areoles.
+    pub mean_areole_area: Option<f64>,
+    /// Sample standard deviation of the areole areas (divisor `count - 1`), in units^2; `None`
+    /// with fewer than two areoles.
+    pub areole_area_sd: Option<f64>,
+    /// Free-ending veinlets (nodes of degree 1) inside areoles per areole (dimensionless);
+    /// `None` without areoles.
+    pub veinlets_per_areole: Option<f64>,
+    /// Loopiness: independent loops per area, `loop_count / area`, in 1/units^2; `None` when
+    /// the area is not positive.
+    pub loopiness: Option<f64>,
     /// Sum of all segment lengths, in units.
     pub total_length: f64,
     /// Vein length per area (`total_length / area`), in units/units^2 (1/units); `None` when the
@@ -205,6 +225,8 @@ pub fn measure_with(network: &Network, forest: Option<(&Topology, &[u32])>, alph
     );
     let components = loops::count_components_and_loops(network);
     let outline = outline::measure_outline(&network.cells, network.cell_size);
+    let areoles = areoles::find_areoles(network, components.loop_count);
+    let areole_summary = summarise_areas(&areoles.areas);
     let mut metrics = Metrics {
         kind: NetworkKind::Looped,
         area,
@@ -213,6 +235,15 @@ pub fn measure_with(network: &Network, forest: Option<(&Topology, &[u32])>, alph
         segment_count: counts.segment_count,
         component_count: components.component_count,
         loop_count: components.loop_count,
+        areoles: areoles.count,
+        areole_density: areoles.count.and_then(|count| per_area(count as f64)),
+        mean_areole_area: areole_summary.0,
+        areole_area_sd: areole_summary.1,
+        veinlets_per_areole: match areoles.count {
+            Some(count) if count > 0 => Some(areoles.veinlets_inside as f64 / count as f64),
+            _ => None,
+        },
+        loopiness: per_area(components.loop_count as f64),
         total_length: counts.total_length,
         vein_density: per_area(counts.total_length),
         junction_count: counts.junction_count,
@@ -245,4 +276,18 @@ pub fn measure_with(network: &Network, forest: Option<(&Topology, &[u32])>, alph
         metrics.transport_cost = transport::transport_cost(network, topology, alpha);
     }
     metrics
+}
+
+/// Mean and sample standard deviation (divisor n - 1) of areole areas.
+fn summarise_areas(areas: &[f64]) -> (Option<f64>, Option<f64>) {
+    if areas.is_empty() {
+        return (None, None);
+    }
+    let count = areas.len() as f64;
+    let mean = areas.iter().sum::<f64>() / count;
+    let sd = (areas.len() > 1).then(|| {
+        let squares: f64 = areas.iter().map(|area| (area - mean) * (area - mean)).sum();
+        (squares / (count - 1.0)).sqrt()
+    });
+    (Some(mean), sd)
 }

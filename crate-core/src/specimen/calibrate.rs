@@ -136,7 +136,26 @@ pub fn ring_area(ring: &[Point]) -> f64 {
 /// as in a grown network.
 pub fn build_specimen(bytes: &[u8], options: &SpecimenOptions) -> Result<Specimen, SpecimenError> {
     let flatten = positive("flattening tolerance", options.flatten_tolerance)?;
-    let stated = match &options.scale {
+    let stated = stated_factor(options)?;
+    let non_svg_factor = stated.or(Some(1.0));
+    let peek = super::sniff_format(bytes)?;
+    let mut trace = read_trace(
+        bytes,
+        flatten,
+        if peek == SpecimenFormat::Svg {
+            stated
+        } else {
+            non_svg_factor
+        },
+    )?;
+    trace.format = trace.format.or(Some(peek));
+    build_specimen_from_trace(trace, options)
+}
+
+/// The output units per file unit that `options` state (a factor, or two points a known
+/// distance apart), `None` when the scale is to come from the file.
+fn stated_factor(options: &SpecimenOptions) -> Result<Option<f64>, SpecimenError> {
+    Ok(match &options.scale {
         ScaleRule::FromFile => None,
         ScaleRule::Factor(factor) => Some(positive("scale factor", *factor)?),
         ScaleRule::TwoPoints {
@@ -157,18 +176,19 @@ pub fn build_specimen(bytes: &[u8], options: &SpecimenOptions) -> Result<Specime
             }
             Some(known / apart)
         }
-    };
-    let non_svg_factor = stated.or(Some(1.0));
-    let peek = super::sniff_format(bytes)?;
-    let trace = read_trace(
-        bytes,
-        flatten,
-        if peek == SpecimenFormat::Svg {
-            stated
-        } else {
-            non_svg_factor
-        },
-    )?;
+    })
+}
+
+/// Calibrates and repairs a trace already read (from a file by `read_trace`, or from an
+/// image by `cleared::analyse_cleared_leaf`): the second half of `build_specimen`, with the
+/// same rules. `trace.format` names the reader (SVG when unset).
+pub fn build_specimen_from_trace(
+    trace: Trace,
+    options: &SpecimenOptions,
+) -> Result<Specimen, SpecimenError> {
+    positive("flattening tolerance", options.flatten_tolerance)?;
+    let stated = stated_factor(options)?;
+    let peek = SpecimenFormat::Svg;
     let format = trace.format.unwrap_or(peek);
     let calibration = calibrate(&trace, format, options, stated)?;
     let Trace {
@@ -336,7 +356,9 @@ fn calibrate(
         (Some(factor), _) => {
             let units = match units {
                 Some(units) => units,
-                None if format == SpecimenFormat::Svg => "mm".to_string(),
+                None if matches!(format, SpecimenFormat::Svg | SpecimenFormat::Image) => {
+                    "mm".to_string()
+                }
                 None => {
                     return Err(SpecimenError::Option {
                         option: "units",
@@ -360,7 +382,15 @@ fn calibrate(
                 rule,
             })
         }
-        (None, SpecimenFormat::Svg) => {
+        (None, SpecimenFormat::Image) if trace.physical_scale.is_none() => {
+            Err(SpecimenError::Option {
+                option: "scale",
+                problem: "the image states no resolution: give --scale (output units per \
+                          pixel) or --scale-bar X1,Y1,X2,Y2,LENGTH in pixels"
+                    .to_string(),
+            })
+        }
+        (None, SpecimenFormat::Svg | SpecimenFormat::Image) => {
             let units = units.unwrap_or_else(|| "mm".to_string());
             let per = millimetres_per(&units).ok_or_else(|| SpecimenError::Option {
                 option: "units",
@@ -374,9 +404,13 @@ fn calibrate(
             Ok(Calibration {
                 factor,
                 units: units.clone(),
-                rule: format!(
-                    "{factor} {units} per user unit, from the SVG's width, height and viewBox"
-                ),
+                rule: if format == SpecimenFormat::Image {
+                    format!("{factor} {units} per pixel, from the image's stated resolution")
+                } else {
+                    format!(
+                        "{factor} {units} per user unit, from the SVG's width, height and viewBox"
+                    )
+                },
             })
         }
         (None, _) => match units {

@@ -1,7 +1,9 @@
 //! `read_geojson`: a GeoJSON object (RFC 7946) into a `Trace`. `LineString` and
-//! `MultiLineString` geometries are veins, one `Polygon` the leaf outline (its exterior ring;
-//! holes are named in the notes and not used). Any other geometry type is refused with its
-//! feature's index. Positions are projected coordinates in a unit the user states, y growing
+//! `MultiLineString` geometries are veins (a feature's numeric `width` property, in file units,
+//! is kept as the vein's width), one `Polygon` the leaf outline (its exterior ring; holes are
+//! named in the notes and not used), and each `Point` marks a root (petiole base or outlet),
+//! as `network_export::network_geojson` writes them. Any other geometry type is refused with
+//! its feature's index. Positions are projected coordinates in a unit the user states, y growing
 //! north; a third coordinate (height) is ignored.
 
 use geojson::{Feature, GeoJson, Geometry, Value};
@@ -47,7 +49,15 @@ pub(crate) fn read_geojson(text: &str) -> Result<Trace, SpecimenError> {
                     problem: error.to_string(),
                 })?;
             if let Some(geometry) = &feature.geometry {
+                let before = reader.trace.lines.len();
                 reader.geometry(geometry, &place)?;
+                let width = feature
+                    .property("width")
+                    .and_then(|width| width.as_f64())
+                    .filter(|width| width.is_finite() && *width >= 0.0);
+                for line in &mut reader.trace.lines[before..] {
+                    line.width = width;
+                }
             }
         }
     } else {
@@ -157,6 +167,10 @@ impl GeoJsonReader<'_> {
                 }
                 self.trace.outline = Some(ring);
             }
+            Value::Point(position) => {
+                let point = self.positions(std::slice::from_ref(position), place)?;
+                self.trace.root_marks.extend(point);
+            }
             Value::GeometryCollection(geometries) => {
                 for (index, inner) in geometries.iter().enumerate() {
                     self.geometry(inner, &format!("{place}, geometry {index}"))?;
@@ -166,8 +180,8 @@ impl GeoJsonReader<'_> {
                 return Err(SpecimenError::GeoJson {
                     place: place.to_string(),
                     problem: format!(
-                        "a {} is neither a vein (LineString, MultiLineString) nor a leaf \
-                         outline (Polygon)",
+                        "a {} is neither a vein (LineString, MultiLineString), a leaf \
+                         outline (Polygon) nor a root (Point)",
                         other.type_name()
                     ),
                 })

@@ -22,7 +22,9 @@ mod repair;
 mod svg_trace;
 mod table;
 
-pub use calibrate::{build_specimen, Calibration, ScaleRule, Specimen, SpecimenOptions};
+pub use calibrate::{
+    build_specimen, build_specimen_from_trace, Calibration, ScaleRule, Specimen, SpecimenOptions,
+};
 pub use calibrate::{ring_area, DEFAULT_FLATTEN_TOLERANCE, DEFAULT_SNAP_FRACTION};
 pub use flatten::{flatten_arc, flatten_cubic, flatten_quadratic, EndpointArc};
 pub use repair::{Repair, RepairReport};
@@ -54,6 +56,9 @@ pub enum SpecimenFormat {
     GeoJson,
     /// A CSV edge list `x1,y1,x2,y2[,width]` with a header line.
     Csv,
+    /// A cleared-leaf image (PNG or JPEG), its veins found by `cleared`; never told by
+    /// `sniff_format`, which reads text formats only.
+    Image,
 }
 
 impl SpecimenFormat {
@@ -63,6 +68,7 @@ impl SpecimenFormat {
             SpecimenFormat::Svg => "SVG",
             SpecimenFormat::GeoJson => "GeoJSON",
             SpecimenFormat::Csv => "CSV",
+            SpecimenFormat::Image => "image",
         }
     }
 }
@@ -222,8 +228,8 @@ impl std::fmt::Display for SpecimenError {
 
 impl std::error::Error for SpecimenError {}
 
-/// The first bytes of a file, printable (for messages).
-pub(crate) fn printable_start(bytes: &[u8]) -> String {
+/// The first 16 bytes of a file, printable (for messages).
+pub fn printable_start(bytes: &[u8]) -> String {
     bytes
         .iter()
         .take(16)
@@ -291,6 +297,7 @@ pub fn read_trace(
         SpecimenFormat::Svg => svg_trace::read_svg(text, flatten_tolerance, stated_factor)?,
         SpecimenFormat::GeoJson => geojson_trace::read_geojson(text)?,
         SpecimenFormat::Csv => csv_trace::read_csv(text)?,
+        SpecimenFormat::Image => Trace::default(),
     };
     trace.format = Some(format);
     if trace.lines.is_empty() {
@@ -303,6 +310,7 @@ pub fn read_trace(
                 }
                 SpecimenFormat::GeoJson => "LineString or MultiLineString geometries",
                 SpecimenFormat::Csv => "data lines after the header",
+                SpecimenFormat::Image => "PNG or JPEG bytes (read them with `cleared`)",
             },
         });
     }
