@@ -1607,3 +1607,44 @@ fn a_traced_specimen_is_fitted_and_a_unit_mismatch_refused() {
     let outcome = ramulus(&in_cm);
     check_failure(&outcome, &["measured in cm", "growth parameters in mm"]);
 }
+
+/// `none` turns an optional value off on the command line as in a run link and as the
+/// parameter's help says: `--set threshold=none` grows what the JSON `null` grows, and the
+/// run link it prints says `threshold=none`.
+#[test]
+fn set_none_turns_an_optional_value_off() {
+    let by_word = grow_json(&[
+        "grow",
+        "--preset",
+        "broad-leaf",
+        "--set",
+        "cells=600",
+        "--set",
+        "threshold=none",
+        "--json",
+    ]);
+    let by_null = grow_json(&[
+        "grow",
+        "--preset",
+        "broad-leaf",
+        "--set",
+        "cells=600",
+        "--set",
+        "threshold=null",
+        "--json",
+    ]);
+    assert_eq!(by_word["digest"], by_null["digest"]);
+    let link = by_word["fragment"].as_str().expect("a fragment");
+    assert!(link.contains("&threshold=none&"), "{link}");
+    // A word that is not `none` is still refused, naming the key.
+    let refused = ramulus(&[
+        "grow",
+        "--preset",
+        "broad-leaf",
+        "--set",
+        "threshold=off",
+        "--json",
+    ]);
+    assert_ne!(refused.code, Some(0));
+    assert!(refused.stderr.contains("threshold"), "{}", refused.stderr);
+}
