@@ -117,7 +117,7 @@ export class ParameterForm {
     }
     for (const unit of this.container.querySelectorAll('.unit')) {
       const name = unit.dataset.unit;
-      unit.textContent = name === 'length' ? this.units : name;
+      unit.textContent = name === 'length' ? this.units : name === 'area' ? `${this.units}²` : name;
     }
   }
 

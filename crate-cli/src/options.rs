@@ -297,6 +297,20 @@ fn key_equals_value(text: &str) -> Result<String, String> {
     }
 }
 
+/// The JSON value of `--set KEY=TEXT`: JSON when it parses, `null` for `none` on a key that
+/// may be off (as a run link writes it, and as the parameter's help says), else the text.
+fn set_value(key: &str, text: &str) -> Value {
+    if let Ok(value) = serde_json::from_str(text) {
+        return value;
+    }
+    let may_be_off = ramulus_core::params::table::parameter(key)
+        .is_some_and(|spec| spec.kind() == ramulus_core::params::table::FieldKind::OptionalNumber);
+    if may_be_off && text.trim() == "none" {
+        return Value::Null;
+    }
+    Value::String(text.to_string())
+}
+
 /// Assembles parameters: a link's parameters, or a preset (or defaults when a file is given),
 /// then file keys, then `--set`s, then the image mask `(path, mask)`, whose size is the
 /// lattice's: a `--set` of `width` or `height` that disagrees with it is refused, and
@@ -341,8 +355,7 @@ pub fn assemble_params(
                 "`--set {set}` needs the form KEY=VALUE"
             )));
         };
-        let value = serde_json::from_str(text).unwrap_or_else(|_| Value::String(text.to_string()));
-        object.insert(key.trim().to_string(), value);
+        object.insert(key.trim().to_string(), set_value(key.trim(), text));
     }
     if let Some((path, mask)) = mask {
         for (key, size) in [("width", mask.width), ("height", mask.height)] {

@@ -1759,4 +1759,43 @@ fn grown_networks_export_as_geojson_and_edge_lists_that_measure_back() {
     ]);
     assert_eq!(same.code, Some(2), "{}", same.stderr);
     assert!(same.stderr.contains("--edge-list"), "{}", same.stderr);
+/// `none` turns an optional value off on the command line as in a run link and as the
+/// parameter's help says: `--set threshold=none` grows what the JSON `null` grows, and the
+/// run link it prints says `threshold=none`.
+#[test]
+fn set_none_turns_an_optional_value_off() {
+    let by_word = grow_json(&[
+        "grow",
+        "--preset",
+        "broad-leaf",
+        "--set",
+        "cells=600",
+        "--set",
+        "threshold=none",
+        "--json",
+    ]);
+    let by_null = grow_json(&[
+        "grow",
+        "--preset",
+        "broad-leaf",
+        "--set",
+        "cells=600",
+        "--set",
+        "threshold=null",
+        "--json",
+    ]);
+    assert_eq!(by_word["digest"], by_null["digest"]);
+    let link = by_word["fragment"].as_str().expect("a fragment");
+    assert!(link.contains("&threshold=none&"), "{link}");
+    // A word that is not `none` is still refused, naming the key.
+    let refused = ramulus(&[
+        "grow",
+        "--preset",
+        "broad-leaf",
+        "--set",
+        "threshold=off",
+        "--json",
+    ]);
+    assert_ne!(refused.code, Some(0));
+    assert!(refused.stderr.contains("threshold"), "{}", refused.stderr);
 }

@@ -25,6 +25,7 @@ pub mod schema;
 pub mod segments;
 pub mod specimen;
 pub mod utf8_text;
+pub mod veins;
 
 pub use growth::{Growth, StepReport, StopReason};
 pub use network::{Children, Network, NetworkKind, Node, Segment, Topology, NO_PARENT};

@@ -4,8 +4,10 @@
 //!
 //! 1. **topology**: `Network::check`, then the forest view (`Topology`) and Strahler orders
 //!    when the network is a forest (`topology_pass`);
-//! 2. **conducting network**: which segments carry flow (`conducting_network`); today every
-//!    segment conducts, and a later area threshold will drop the finest ones here;
+//! 2. **conducting network**: which segments carry flow (`conducting_network`): those draining
+//!    at least `vein_area` (every segment when it is 0); with a threshold, the vein network
+//!    (`veins::vein_network`) is what the metrics measure and its Strahler orders are the
+//!    table's (tissue segments have order 0 and width 0);
 //! 3. **widths**: the per-segment table of flows, widths, orders and lengths (`SegmentTable`);
 //! 4. **sizing**: room for sizing pipes or channels from flows (`Sizing`, empty for now, so
 //!    nothing is sized yet);
@@ -14,9 +16,10 @@
 
 use crate::digest::digest_hex;
 use crate::metrics::{measure_with, Metrics};
-use crate::network::{Network, Topology, TopologyError};
+use crate::network::{Network, Topology, TopologyError, NO_PARENT};
 use crate::params::Params;
 use crate::segments::{strahler_orders, SegmentTable, WidthRule};
+use crate::veins::{conducting_segments, vein_network};
 
 /// The forest view and Strahler orders of a forest, the output of the topology pass.
 #[derive(Clone, Debug)]
@@ -28,10 +31,31 @@ pub struct ForestView {
 }
 
 /// Which segments conduct, the output of the conducting-network pass: one entry per segment.
-#[derive(Clone, Debug, Default, PartialEq)]
+#[derive(Clone, Debug, Default)]
 pub struct ConductingNetwork {
     /// Whether segment `k` conducts.
     pub conducts: Vec<bool>,
+    /// The vein network when some segment of a forest is tissue; `None` when every segment
+    /// conducts (the whole network is the vein network).
+    pub veins: Option<VeinView>,
+}
+
+/// The vein network (conducting segments only) with its forest view.
+#[derive(Clone, Debug)]
+pub struct VeinView {
+    /// The conducting segments and their nodes (`veins::vein_network`).
+    pub network: Network,
+    /// Its forest view and Strahler orders.
+    pub forest: ForestView,
+    /// Each whole-network node's index in `network`, `NO_PARENT` for tissue nodes.
+    pub index: Vec<u32>,
+}
+
+impl ConductingNetwork {
+    /// How many segments are tissue (do not conduct).
+    pub fn tissue_count(&self) -> usize {
+        self.conducts.iter().filter(|&&conducts| !conducts).count()
+    }
 }
 
 /// The output of the sizing pass. Room for sizing from flows (pipe or channel sizes of a site,
@@ -72,12 +96,77 @@ pub fn topology_pass(network: &Network) -> Result<Option<ForestView>, TopologyEr
     }
 }
 
-/// Conducting-network pass: every segment conducts (identity). A threshold on the area a
-/// segment drains will drop the finest segments here, and every later pass reads the result.
-pub fn conducting_network(network: &Network) -> ConductingNetwork {
-    ConductingNetwork {
-        conducts: vec![true; network.segments.len()],
+/// Conducting-network pass: a segment of a forest conducts when it drains at least
+/// `vein_area` (`veins::conducting_segments`); the vein network is built when some segment does
+/// not. Every segment of a network with loops conducts (its flows are unknown).
+pub fn conducting_network(
+    network: &Network,
+    forest: Option<&ForestView>,
+    params: &Params,
+) -> ConductingNetwork {
+    let topology = forest.map(|view| &view.topology);
+    let conducts = conducting_segments(
+        network,
+        topology,
+        params.widths.vein_area,
+        params.domain.runoff,
+    );
+    let veins = match topology {
+        Some(topology) if conducts.iter().any(|&conducts| !conducts) => {
+            let (veins, index) = vein_network(network, topology, &conducts);
+            // The vein network of a forest is a forest (conducting segments hold the roots).
+            topology_pass(&veins).ok().flatten().map(|forest| VeinView {
+                network: veins,
+                forest,
+                index,
+            })
+        }
+        _ => None,
+    };
+    ConductingNetwork { conducts, veins }
+}
+
+/// The conducting-network pass as the pipeline runs it: `conducting_network`, then the forest
+/// view's Strahler orders replaced by those counted on the vein network (0 for tissue) when some
+/// segment is tissue.
+pub fn conducting_pass(
+    network: &Network,
+    forest: &mut Option<ForestView>,
+    params: &Params,
+) -> ConductingNetwork {
+    let conducting = conducting_network(network, forest.as_ref(), params);
+    if let Some(view) = forest.as_mut() {
+        if conducting.veins.is_some() {
+            view.orders = conducting_orders(view, &conducting);
+        }
     }
+    conducting
+}
+
+/// The Strahler order of each node's downstream segment counted on the vein network, 0 for
+/// tissue; the whole network's orders when every segment conducts.
+fn conducting_orders(forest: &ForestView, conducting: &ConductingNetwork) -> Vec<u32> {
+    let Some(veins) = &conducting.veins else {
+        return forest.orders.clone();
+    };
+    (0..forest.orders.len())
+        .map(|node| {
+            let segment = forest.topology.segment_of[node];
+            // A root has no downstream segment; it is always in the vein network.
+            let conducts = segment == NO_PARENT
+                || conducting
+                    .conducts
+                    .get(segment as usize)
+                    .copied()
+                    .unwrap_or(true);
+            match veins.index[node] {
+                vein_node if conducts && vein_node != NO_PARENT => {
+                    veins.forest.orders[vein_node as usize]
+                }
+                _ => 0,
+            }
+        })
+        .collect()
 }
 
 /// Widths pass: the per-segment table.
@@ -95,17 +184,24 @@ impl RunView {
     /// Runs every pass on a network with the parameters that set widths and `alpha`; fails
     /// only when the network is not valid (`Network::check`).
     pub fn new(network: Network, params: &Params) -> Result<RunView, TopologyError> {
-        let forest = topology_pass(&network)?;
-        let conducting = conducting_network(&network);
+        let mut forest = topology_pass(&network)?;
+        let conducting = conducting_pass(&network, &mut forest, params);
         let table = widths_pass(&network, forest.as_ref(), &conducting, width_rule(params));
         let sizing = Sizing::default();
-        let metrics = measure_with(
-            &network,
-            forest
-                .as_ref()
-                .map(|view| (&view.topology, view.orders.as_slice())),
-            params.costs.alpha,
-        );
+        let metrics = match &conducting.veins {
+            Some(veins) => measure_with(
+                &veins.network,
+                Some((&veins.forest.topology, veins.forest.orders.as_slice())),
+                params.costs.alpha,
+            ),
+            None => measure_with(
+                &network,
+                forest
+                    .as_ref()
+                    .map(|view| (&view.topology, view.orders.as_slice())),
+                params.costs.alpha,
+            ),
+        };
         let digest = digest_hex(&network);
         Ok(RunView {
             network,

@@ -402,7 +402,11 @@ mod tests {
         let table = widths_pass(
             &network,
             forest.as_ref(),
-            &conducting_network(&network),
+            &conducting_network(
+                &network,
+                forest.as_ref(),
+                &ramulus_core::params::Params::default(),
+            ),
             rule,
         );
         let mut screen = ScreenGeometry::default();
@@ -455,7 +459,7 @@ mod tests {
         let table = widths_pass(
             &network,
             forest.as_ref(),
-            &conducting_network(&network),
+            &conducting_network(&network, forest.as_ref(), &params),
             width_rule(&params),
         );
         let mut screen = ScreenGeometry::default();

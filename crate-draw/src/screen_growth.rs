@@ -242,7 +242,16 @@ mod tests {
     /// network and widths passes, then `ScreenGeometry::fill`).
     fn full(network: &Network, rule: WidthRule) -> ScreenGeometry {
         let forest = topology_pass(network).unwrap();
-        let table = widths_pass(network, forest.as_ref(), &conducting_network(network), rule);
+        let table = widths_pass(
+            network,
+            forest.as_ref(),
+            &conducting_network(
+                network,
+                forest.as_ref(),
+                &ramulus_core::params::Params::default(),
+            ),
+            rule,
+        );
         let mut geometry = ScreenGeometry::default();
         geometry.fill(network, &table);
         geometry

@@ -10,7 +10,7 @@ use ramulus_core::params::Domain;
 use ramulus_core::params::Params;
 use ramulus_core::record::{make_record, read_record, write_record};
 use ramulus_core::run::{
-    conducting_network, topology_pass, width_rule, widths_pass, RunView, SITE_CAUTION,
+    conducting_pass, topology_pass, width_rule, widths_pass, RunView, SITE_CAUTION,
 };
 use ramulus_draw::legend::legend_items;
 use ramulus_draw::marks::network_marks;
@@ -364,7 +364,9 @@ impl Simulation {
     pub fn update_geometry(&mut self) -> u32 {
         let network = self.network();
         let rule = width_rule(&self.params);
-        if !self.full_refill {
+        // The growing refill follows the passes with every segment conducting; with a
+        // conducting threshold a segment's state changes as flows grow, so refill in full.
+        if !self.full_refill && self.params.widths.vein_area == 0.0 {
             if self.growing.update(&network, rule, &mut self.geometry) {
                 return self.geometry.len() as u32;
             }
@@ -377,8 +379,8 @@ impl Simulation {
         }
         self.growing.clear();
         match topology_pass(&network) {
-            Ok(forest) => {
-                let conducting = conducting_network(&network);
+            Ok(mut forest) => {
+                let conducting = conducting_pass(&network, &mut forest, &self.params);
                 let table = widths_pass(&network, forest.as_ref(), &conducting, rule);
                 self.geometry.fill(&network, &table);
             }

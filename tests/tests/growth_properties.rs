@@ -124,6 +124,8 @@ fn valid_params() -> impl Strategy<Value = Params> {
                     temperature,
                     threshold,
                     attach_to_segments: attach,
+                    // Plane and crossing growth, half of the cases each (by the drawn seed).
+                    planar: seed % 2 == 0,
                     refresh,
                 },
                 ..Params::default()

@@ -535,6 +535,7 @@ fn widths_obey_murrays_law_at_junctions() {
             widths: Widths {
                 gamma,
                 tip_width: 0.2,
+                vein_area: 0.0,
             },
             ..Params::default()
         };

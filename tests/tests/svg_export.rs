@@ -55,7 +55,11 @@ fn table(network: &Network) -> SegmentTable {
     widths_pass(
         network,
         forest.as_ref(),
-        &conducting_network(network),
+        &conducting_network(
+            network,
+            forest.as_ref(),
+            &ramulus_core::params::Params::default(),
+        ),
         WidthRule {
             gamma: 3.0,
             base_width: 0.05,

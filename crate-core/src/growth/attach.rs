@@ -139,14 +139,25 @@ impl Growth {
 
     /// Recomputes a cell's best attachment from every node and segment within reach.
     pub(super) fn best_from_scratch(&self, cell: usize) -> Option<(f64, Attachment)> {
-        let (column, row) = self.lattice.column_row(cell);
-        let (cx, cy) = self.lattice.position(cell);
         let mut best: Option<(f64, Attachment)> = None;
-        let mut consider = |cost: f64, attachment: Attachment| {
+        self.each_candidate(cell, |cost, attachment| {
             if best.is_none_or(|(best_cost, _)| cost < best_cost) {
                 best = Some((cost, attachment));
             }
-        };
+        });
+        best
+    }
+
+    /// Every attachment of `cell` to a node or segment within reach with its cost, appended to
+    /// `candidates` in the order `best_from_scratch` considers them.
+    pub(super) fn candidates_of(&self, cell: usize, candidates: &mut Vec<(f64, Attachment)>) {
+        self.each_candidate(cell, |cost, attachment| candidates.push((cost, attachment)));
+    }
+
+    /// Calls `visit` with every attachment of `cell` within reach and its cost.
+    fn each_candidate(&self, cell: usize, mut visit: impl FnMut(f64, Attachment)) {
+        let (column, row) = self.lattice.column_row(cell);
+        let (cx, cy) = self.lattice.position(cell);
         for &(dx, dy) in &self.lattice.offsets {
             let Some(other) = self.lattice.neighbour(column, row, dx, dy) else {
                 continue;
@@ -168,7 +179,7 @@ impl Growth {
                     } else {
                         self.model.cost(cx, cy, &self.node_anchor(node))
                     };
-                    consider(
+                    visit(
                         cost,
                         Attachment {
                             target: node,
@@ -178,7 +189,7 @@ impl Growth {
                     );
                     if self.params.run.attach_to_segments {
                         if let Some((cost, attachment)) = self.best_on_segment(cx, cy, node) {
-                            consider(cost, attachment);
+                            visit(cost, attachment);
                         }
                     }
                     node = if kind == 1 {
@@ -189,6 +200,5 @@ impl Growth {
                 }
             }
         }
-        best
     }
 }

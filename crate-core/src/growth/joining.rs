@@ -84,7 +84,26 @@ impl Growth {
             if !self.recheck {
                 return Ok((slot_index, slot.best));
             }
-            let Some((cost, attachment)) = self.best_from_scratch(slot.cell as usize) else {
+            let mut found = if self.stale_costs {
+                self.best_from_scratch(slot.cell as usize)
+            } else {
+                Some((slot.cost, slot.best))
+            };
+            if self.params.run.planar {
+                let cell = slot.cell as usize;
+                let (cx, cy) = self.lattice.position(cell);
+                if found.is_some_and(|(_, best)| self.crosses_network(cx, cy, best)) {
+                    found = self.best_plane_attachment(cell);
+                }
+            }
+            let Some((cost, attachment)) = found else {
+                if self.params.run.planar {
+                    // Every attachment within reach would cross a segment: the cell leaves the
+                    // frontier until a new node within reach offers it one again.
+                    self.frontier.remove(slot_index);
+                    self.lattice.state[slot.cell as usize] = FREE;
+                    continue;
+                }
                 return Ok((slot_index, slot.best));
             };
             let still_valid = cost <= slot.cost + 1e-12;

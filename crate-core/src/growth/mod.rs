@@ -12,6 +12,7 @@ mod cost;
 mod frontier;
 mod joining;
 mod lattice;
+mod planar;
 mod refresh;
 
 use rand_chacha::ChaCha8Rng;
@@ -85,13 +86,21 @@ pub struct Growth {
     /// Whether a segment has been split: a junction then drains an older node, so node order
     /// is no longer a parents-first order (`refresh_flows`).
     has_junctions: bool,
-    /// Whether a stored attachment may be out of date and must be re-checked when picked.
+    /// Whether a stored attachment must be re-checked when picked (its cost may be out of
+    /// date, or it may cross a segment added since it was offered).
     recheck: bool,
+    /// Whether a stored attachment's cost may be out of date (segment attachments, branch
+    /// angles): the re-check then recomputes it from scratch.
+    stale_costs: bool,
     /// Reference cost for weights of weighted joining.
     weight_reference: f64,
     last_refresh_nodes: usize,
     scratch_order: Vec<u32>,
     scratch_children: crate::network::Children,
+    /// Candidate attachments of one cell, reused by plane growth.
+    scratch_candidates: Vec<(f64, Attachment)>,
+    /// Longest segment so far, in cells (plane growth's search square).
+    longest_segment: f64,
     stopped: Option<StopReason>,
 }
 
@@ -132,11 +141,16 @@ impl Growth {
             cell_count: 0,
             cell_weight: params.domain.runoff,
             has_junctions: false,
-            recheck: params.run.attach_to_segments || params.costs.branch_angle.is_some(),
+            recheck: params.run.attach_to_segments
+                || params.costs.branch_angle.is_some()
+                || params.run.planar,
+            stale_costs: params.run.attach_to_segments || params.costs.branch_angle.is_some(),
             weight_reference: f64::NAN,
             last_refresh_nodes: 0,
             scratch_order: Vec::new(),
             scratch_children: Default::default(),
+            scratch_candidates: Vec::new(),
+            longest_segment: 0.0,
             stopped: None,
         };
         if params.run.attach_to_segments {
@@ -384,6 +398,9 @@ impl Growth {
             cell as u32,
         );
         self.flow[node as usize] = self.cell_weight;
+        if self.params.run.planar {
+            self.note_segment_length(node, target);
+        }
         self.occupy(cell, node);
         self.maybe_refresh();
     }

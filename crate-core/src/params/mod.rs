@@ -113,6 +113,12 @@ pub struct RunControl {
     pub radius: f64,
     /// Whether a new cell may attach to the interior of a segment, splitting it. Default false.
     pub attach_to_segments: bool,
+    /// Whether a new segment must not cross or overlap an existing one (veins and channels
+    /// never cross): an attachment that would is passed over for the cheapest one that does not.
+    /// Default true; false in version-1 links, whose runs could cross themselves, and in
+    /// parameters saved before the key existed (records and files read by serde).
+    #[serde(default)]
+    pub planar: bool,
     /// Flows and transport costs are recomputed exactly whenever the network has grown by this
     /// fraction since the last refresh. Default 0.05; 0.001 ..= 1.
     pub refresh: f64,
@@ -126,6 +132,9 @@ pub struct Widths {
     pub gamma: f64,
     /// Width of a one-cell veinlet, as a fraction of the cell size. Default 0.12; > 0 ..= 1.
     pub tip_width: f64,
+    /// Conducting threshold: a segment is a vein (a channel) when the area it drains, in the
+    /// run's length unit squared, is at least this. Default 0 (every segment conducts); 0 ..= 1e12.
+    pub vein_area: f64,
 }
 
 /// A root of one tree: a cell and the direction its flow leaves the network.
@@ -382,11 +391,13 @@ fn blank() -> Params {
             threshold: None,
             radius: 0.0,
             attach_to_segments: false,
+            planar: false,
             refresh: 0.0,
         },
         widths: Widths {
             gamma: 0.0,
             tip_width: 0.0,
+            vein_area: 0.0,
         },
     }
 }

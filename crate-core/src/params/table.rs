@@ -257,6 +257,19 @@ static PARAMETERS: &[ParamSpec] = &[
         access: field!(Flag, run.attach_to_segments),
     },
     ParamSpec {
+        key: "planar",
+        group: "Run",
+        label: "Veins never cross",
+        unit: "",
+        bounds: None,
+        bounds_why: "",
+        default: "true",
+        link_v1_default: "false",
+        fit: None,
+        help: "Whether a new segment is kept from crossing or running over an existing one (a plane network, as real veins and channels are).",
+        access: field!(Flag, run.planar),
+    },
+    ParamSpec {
         key: "refresh",
         group: "Run",
         label: "How often flows are updated",
@@ -450,6 +463,19 @@ static PARAMETERS: &[ParamSpec] = &[
         fit: Some(FitScale::Log),
         help: "Width of a one-cell branch end, as a fraction of a cell (tip width).",
         access: field!(Real, widths.tip_width),
+    },
+    ParamSpec {
+        key: "vein_area",
+        group: "Widths",
+        label: "Smallest vein's drained area",
+        unit: "area",
+        bounds: closed(0.0, 1e12),
+        bounds_why: "0 makes every segment a vein (as version-1 links drew); up to 10^12 square units, far beyond any blade or site, when no segment should conduct.",
+        default: "0",
+        link_v1_default: "0",
+        fit: Some(FitScale::Linear),
+        help: "A segment is a vein (a channel on a site) when the area it drains is at least this; finer segments are tissue (hillslope) supplied by the nearest vein, drawn faint and left out of the measurements (the conducting threshold: canalisation in leaves, channel initiation in drainage).",
+        access: field!(Real, widths.vein_area),
     },
     ParamSpec {
         key: "width",
@@ -858,6 +884,7 @@ pub fn readme_table() -> String {
         let unit = match spec.unit {
             "" => "-".to_string(),
             "length" => "`units`".to_string(),
+            "area" => "`units`²".to_string(),
             unit => unit.to_string(),
         };
         let default = match spec.default {
