@@ -1759,6 +1759,8 @@ fn grown_networks_export_as_geojson_and_edge_lists_that_measure_back() {
     ]);
     assert_eq!(same.code, Some(2), "{}", same.stderr);
     assert!(same.stderr.contains("--edge-list"), "{}", same.stderr);
+}
+
 /// `none` turns an optional value off on the command line as in a run link and as the
 /// parameter's help says: `--set threshold=none` grows what the JSON `null` grows, and the
 /// run link it prints says `threshold=none`.
