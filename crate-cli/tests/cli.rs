@@ -1657,12 +1657,20 @@ fn a_cleared_leaf_image_measures_and_writes_its_steps() {
     assert!(steps["vein_pixels"].as_u64() < steps["leaf_pixels"].as_u64());
     assert_eq!(value["metrics"]["areoles"], 0, "a grown leaf drawn: a tree");
     assert!(value["metrics"]["total_length"].as_f64().unwrap() > 50.0);
+    // Each step's image has the input's size, read from the input's own PNG header (PNG
+    // specification, ISO/IEC 15948:2003, 11.2.2: IHDR's width and height come first).
+    let input = std::fs::read(image).expect("the demo image");
+    let size_of = |bytes: &[u8]| {
+        (
+            u32::from_be_bytes(bytes[16..20].try_into().unwrap()),
+            u32::from_be_bytes(bytes[20..24].try_into().unwrap()),
+        )
+    };
     for written in [&skeleton, &veins] {
         let bytes = std::fs::read(written.path()).expect("written");
         assert_eq!(&bytes[..8], b"\x89PNG\r\n\x1a\n");
         assert_eq!(&bytes[12..16], b"IHDR");
-        assert_eq!(u32::from_be_bytes(bytes[16..20].try_into().unwrap()), 527);
-        assert_eq!(u32::from_be_bytes(bytes[20..24].try_into().unwrap()), 583);
+        assert_eq!(size_of(&bytes), size_of(&input));
     }
     let text = ramulus(&["measure", image, "--spur", "4"]);
     assert!(text.success, "{}", text.stderr);

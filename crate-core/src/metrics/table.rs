@@ -253,7 +253,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         label: "free-ending veinlets per areole",
         unit: MetricUnit::Dimensionless,
         description: "nodes of degree 1 inside areoles / areoles",
-        site_label: "",
+        site_label: "free channel ends per enclosed area",
         about: "Free vein ends lying inside areoles, per areole; n/a without areoles.",
         applies_to: AppliesTo::AnyNetwork,
         read: |m| Reading::Number(m.veinlets_per_areole),
