@@ -479,26 +479,72 @@ class FitPanel {
       'The link holds the whole plan (starting settings, ranges, the specimen\'s metric values, seeds, method); opening it runs the same fit again, '
       + 'which gives this result exactly, since every draw comes from the fit seed. It stays short because it holds no samples.'));
 
-    // Both drawings grow or read a whole network: in the workers, not on the page's thread.
-    const drawings = [this.pool.draw(fragment, 'order').then((svg) => {
-      right.prepend(this.svgImage(svg, 'The best run', 'fit-best-image'));
-      bestCaption.textContent = 'Best run';
-    }).catch((error) => {
-      bestCaption.textContent = `Best run: could not be drawn (${messageOf(error)})`;
-    })];
+    // Both pictures grow or read a whole network and are drawn to pixels in the workers; the
+    // page's thread only puts finished pixels on two canvases (an SVG of ~20,000 segments
+    // shown as an image froze the page for about a second while the browser drew it).
+    const scaleRow = element('p', { class: 'hint fit-scale', id: 'fit-scale' });
+    out.append(scaleRow);
+    const sources = [{ which: 'best', source: { link: fragment }, figure: right, caption: bestCaption, label: 'Best run', alt: 'The best run' }];
     if (shown) {
       // A grown run is drawn from its link, a file from its bytes, a record without
       // parameters (shown as saved) from its text.
       const record = shown.record ? { bytes: new TextEncoder().encode(this.page.record() ?? ''), name: 'this page\'s run', link: this.page.link() } : null;
-      const drawing = shown.link ? this.pool.draw(shown.link, 'order') : this.pool.drawSpecimen(shown.file ?? record, 'order');
-      drawings.push(drawing.then((svg) => {
-        left.prepend(this.svgImage(svg, 'The specimen', 'fit-specimen-image'));
-        specimenCaption.textContent = 'Specimen';
-      }).catch((error) => {
-        specimenCaption.textContent = `Specimen: could not be drawn (${messageOf(error)})`;
+      sources.push({ which: 'specimen', source: shown.link ? { link: shown.link } : (shown.file ?? record), figure: left, caption: specimenCaption, label: 'Specimen', alt: 'The specimen' });
+    }
+    const grown = await Promise.all(sources.map((item) => this.pool.picture(item.which, item.source).then(
+      (info) => ({ ...item, info }),
+      (error) => {
+        item.caption.textContent = `${item.label}: could not be drawn (${messageOf(error)})`;
+        return null;
+      },
+    )));
+    const ready = grown.filter(Boolean);
+    if (ready.length > 0) {
+      const view = pictureView(ready.map((item) => item.info.extent), right.clientWidth || pair.clientWidth / 2 || 400);
+      const bar = JSON.parse(this.core.fit_scale_bar_json(view.scale / view.ratio, 100, ready[0].info.units));
+      const barLine = element('span', { class: 'fit-scale-bar' });
+      barLine.style.width = `${bar.pixels.toFixed(1)}px`;
+      scaleRow.replaceChildren(element('span', {}, 'Both pictures at one scale: '), barLine, element('span', {}, ` ${bar.label}`));
+      await Promise.all(ready.map(async (item) => {
+        const [minX, minY, maxX, maxY] = item.info.extent;
+        const offsetX = view.width / 2 - ((minX + maxX) / 2) * view.scale;
+        const offsetY = view.height / 2 - ((minY + maxY) / 2) * view.scale;
+        try {
+          const painted = await this.pool.paint(item.which, {
+            width: view.width, height: view.height, scale: view.scale, offsetX, offsetY, colouring: 'order',
+          });
+          const canvas = element('canvas', { id: `fit-${item.which}-image`, class: 'fit-image', role: 'img', 'aria-label': item.alt });
+          canvas.width = painted.width;
+          canvas.height = painted.height;
+          canvas.style.aspectRatio = `${painted.width} / ${painted.height}`;
+          canvas.dataset.scale = String(view.scale);
+          canvas.dataset.offsetX = String(offsetX);
+          canvas.dataset.offsetY = String(offsetY);
+          const pixels = new Uint8ClampedArray(painted.pixels.buffer, painted.pixels.byteOffset, painted.pixels.byteLength);
+          canvas.getContext('2d').putImageData(new ImageData(pixels, painted.width, painted.height), 0, 0);
+          item.figure.prepend(canvas);
+          item.caption.textContent = item.label;
+        } catch (error) {
+          item.caption.textContent = `${item.label}: could not be drawn (${messageOf(error)})`;
+        }
       }));
     }
-    await Promise.all(drawings);
+    // The SVGs, for download only, made in the workers after the pictures.
+    const svgButtons = element('div', { class: 'buttons fit-exports' });
+    const svgOf = [this.pool.draw(fragment, 'order').then((svg) => ['fit-save-best-svg', 'Best run (SVG)', 'ramulus-fit-best-run.svg', svg])];
+    if (shown) {
+      const record = shown.record ? { bytes: new TextEncoder().encode(this.page.record() ?? ''), name: 'this page\'s run', link: this.page.link() } : null;
+      svgOf.push((shown.link ? this.pool.draw(shown.link, 'order') : this.pool.drawSpecimen(shown.file ?? record, 'order'))
+        .then((svg) => ['fit-save-specimen-svg', 'Specimen (SVG)', 'ramulus-fit-specimen.svg', svg]));
+    }
+    for (const made of await Promise.allSettled(svgOf)) {
+      if (made.status !== 'fulfilled') continue;
+      const [id, label, file, svg] = made.value;
+      const button = element('button', { type: 'button', id }, label);
+      button.addEventListener('click', () => saveFile(file, svg, 'image/svg+xml'));
+      svgButtons.append(button);
+    }
+    if (svgButtons.childElementCount > 0) pair.after(svgButtons);
   }
 
   /// An SVG from Rust shown as an image (never parsed into the page).
@@ -588,4 +634,19 @@ function saveFile(name, content, type) {
 
 function messageOf(error) {
   return error?.message ?? String(error);
+}
+
+/// One view for both result pictures, so they compare at one scale: both canvases
+/// `cssWidth` wide (device pixels: times `devicePixelRatio`), as tall as the taller extent
+/// needs (at most 26 rem), and pixels per unit that fit the widest and tallest extent with a
+/// margin. `{width, height, scale, ratio}` in device pixels.
+function pictureView(extents, cssWidth) {
+  const ratio = globalThis.devicePixelRatio || 1;
+  const spanX = Math.max(...extents.map(([minX, , maxX]) => maxX - minX), 1e-9);
+  const spanY = Math.max(...extents.map(([, minY, , maxY]) => maxY - minY), 1e-9);
+  const margin = 6 * ratio;
+  const width = Math.max(16, Math.round(cssWidth * ratio));
+  const height = Math.max(16, Math.min(Math.round(width * spanY / spanX), Math.round(416 * ratio)));
+  const scale = Math.min((width - 2 * margin) / spanX, (height - 2 * margin) / spanY);
+  return { width, height, scale, ratio };
 }

@@ -180,7 +180,29 @@ export class FitPool {
     this.wake?.();
   }
 
-  /// Grows the run a link describes in a worker and resolves to its SVG.
+  /// The worker that holds a picture: the best run in the first, the specimen in the last, so
+  /// the two grow at once when there are two workers.
+  pictureWorker(which) {
+    return which === 'best' ? this.workers[0] : this.workers[this.workers.length - 1];
+  }
+
+  /// Grows the run `source.link` describes, or reads the specimen file `{bytes, name, base}`,
+  /// in a worker and keeps it there as picture `which` ('best' or 'specimen'); resolves to
+  /// `{extent: [min_x, min_y, max_x, max_y], units}`.
+  picture(which, source) {
+    const message = source.bytes
+      ? { type: 'picture', id: which, bytes: source.bytes, name: source.name, base: source.link }
+      : { type: 'picture', id: which, link: source.link };
+    return this.request(this.pictureWorker(which), message, 'pictured');
+  }
+
+  /// Draws picture `which` to RGBA pixels in its worker (`{width, height, scale, offsetX,
+  /// offsetY, colouring}`); resolves to `{pixels, width, height}`, the buffer transferred.
+  paint(which, view) {
+    return this.request(this.pictureWorker(which), { type: 'paint', id: which, ...view }, 'painted');
+  }
+
+  /// Grows the run a link describes in a worker and resolves to its SVG (for download).
   draw(link, colouring) {
     const worker = this.workers[0];
     return this.request(worker, { type: 'draw', link, colouring }, 'drawn').then((reply) => reply.svg);
@@ -191,7 +213,8 @@ export class FitPool {
     return this.request(this.workers[0], { type: 'measure', bytes, name, link }, 'measured').then((reply) => reply.metrics);
   }
 
-  /// Draws the specimen (its bytes read as the fit read them) in the last worker.
+  /// Draws the specimen (its bytes read as the fit read them) as SVG in the last worker (for
+  /// download).
   drawSpecimen({ bytes, name, link }, colouring) {
     const worker = this.workers[this.workers.length - 1];
     return this.request(worker, { type: 'draw-specimen', bytes, name, link, colouring }, 'drawn').then((reply) => reply.svg);

@@ -2,7 +2,9 @@
 //! (sensitivity design, then the fit's batches, then the posterior predictive check; outcomes
 //! put back in any order, absorbed in job order), `FitWorker`, what each Web Worker holds to
 //! run jobs, and free functions for the fit panel (fittable keys with default ranges, matchable
-//! metrics, the best run's and the specimen's SVG, drawn in a worker). Nothing here samples,
+//! metrics, the best run's and the specimen's SVG for download, and `FitPicture`, the same
+//! networks drawn to RGBA pixels in a worker with the main canvas's thin-line raster, so the
+//! page's thread only puts finished pixels on a canvas). Nothing here samples,
 //! measures or draws: the core and `crate-draw` do, exactly as for `ramulus fit`, so the same
 //! plan gives the same JSON.
 
@@ -24,6 +26,9 @@ use ramulus_core::run::RunView;
 use ramulus_core::specimen::{build_specimen, SpecimenOptions};
 use ramulus_draw::format::{four_digits, grouped};
 use ramulus_draw::palette::Colouring;
+use ramulus_draw::raster::RasterView;
+use ramulus_draw::scale_bar::scale_bar;
+use ramulus_draw::screen::ScreenGeometry;
 use serde::{Deserialize, Serialize};
 use serde_json::json;
 use wasm_bindgen::prelude::*;
@@ -777,6 +782,128 @@ pub fn fit_specimen_svg(
     ))
 }
 
+/// A network grown from a link or read from a specimen file, kept in a worker to be drawn to
+/// pixels: `extent` first (so the panel can give both pictures one scale), then `pixels`.
+#[wasm_bindgen]
+pub struct FitPicture {
+    geometry: ScreenGeometry,
+    extent: [f64; 4],
+    units: String,
+}
+
+#[wasm_bindgen]
+impl FitPicture {
+    /// The run a link grows, grown to its end.
+    pub fn from_link(link: &str) -> Result<FitPicture, JsError> {
+        console_error_panic_hook::set_once();
+        let params = decode_link(link).params;
+        let mut growth = ramulus_core::growth::Growth::new(&params).map_err(fit_error)?;
+        growth.run();
+        let view = RunView::new(growth.network(), &params).map_err(fit_error)?;
+        Ok(FitPicture::of_view(&view))
+    }
+
+    /// A specimen file read as `fit_specimen_metrics` reads it.
+    pub fn from_specimen(specimen: &[u8], name: &str, link: &str) -> Result<FitPicture, JsError> {
+        console_error_panic_hook::set_once();
+        let base = decode_link(link).params;
+        let (_, (network, params)) = measure_specimen(specimen, name, &base)?;
+        let view = RunView::new(network, &params).map_err(fit_error)?;
+        Ok(FitPicture::of_view(&view))
+    }
+
+    /// The bounding box of the network's segment ends, `[min_x, min_y, max_x, max_y]` in its
+    /// length unit (all zero for a network without segments).
+    pub fn extent(&self) -> Vec<f64> {
+        self.extent.to_vec()
+    }
+
+    /// The network's length unit.
+    pub fn units(&self) -> String {
+        self.units.clone()
+    }
+
+    /// Every segment drawn as a thin anti-aliased line (the main canvas's raster, at least
+    /// half a pixel wide in strength) into `width` x `height` RGBA pixels over a white
+    /// background, with `pixel = coordinate * scale + offset` (`scale` in pixels per unit).
+    pub fn pixels(
+        &mut self,
+        width: u32,
+        height: u32,
+        scale: f64,
+        offset_x: f64,
+        offset_y: f64,
+        colouring: &str,
+    ) -> Result<Vec<u8>, JsError> {
+        let colouring = colouring_named(colouring)?;
+        if !(scale.is_finite() && scale > 0.0) || width == 0 || height == 0 {
+            return Err(JsError::new(&format!(
+                "a picture of {width} x {height} px at {scale} px per unit cannot be drawn"
+            )));
+        }
+        let view = RasterView {
+            width,
+            height,
+            scale,
+            offset_x,
+            offset_y,
+        };
+        Ok(self
+            .geometry
+            .raster(
+                view,
+                colouring,
+                PICTURE_MIN_PX,
+                f64::INFINITY,
+                [255, 255, 255],
+            )
+            .to_vec())
+    }
+}
+
+/// Thinnest line strength of a picture, in pixels: thinner veins stay visible at half
+/// strength (common practice, no source).
+const PICTURE_MIN_PX: f64 = 0.5;
+
+impl FitPicture {
+    fn of_view(view: &RunView) -> FitPicture {
+        let mut geometry = ScreenGeometry::default();
+        geometry.fill(&view.network, &view.table);
+        let mut extent = [
+            f64::INFINITY,
+            f64::INFINITY,
+            f64::NEG_INFINITY,
+            f64::NEG_INFINITY,
+        ];
+        let nodes = &view.network.nodes;
+        for segment in &view.network.segments {
+            for end in [segment.from, segment.to] {
+                if let Some(node) = nodes.get(end as usize) {
+                    extent[0] = extent[0].min(node.x);
+                    extent[1] = extent[1].min(node.y);
+                    extent[2] = extent[2].max(node.x);
+                    extent[3] = extent[3].max(node.y);
+                }
+            }
+        }
+        if !extent.iter().all(|value| value.is_finite()) {
+            extent = [0.0; 4];
+        }
+        FitPicture {
+            geometry,
+            extent,
+            units: view.network.units.clone(),
+        }
+    }
+}
+
+/// The scale bar shared by both pictures: `{length, pixels, label}`, a round length about
+/// `target_pixels` long at `pixels_per_unit`.
+#[wasm_bindgen]
+pub fn fit_scale_bar_json(pixels_per_unit: f64, target_pixels: f64, units: &str) -> String {
+    serde_json::to_string(&scale_bar(pixels_per_unit, target_pixels, units)).unwrap_or_default()
+}
+
 fn colouring_named(name: &str) -> Result<Colouring, JsError> {
     Colouring::from_name(name).ok_or_else(|| JsError::new(&format!("no colouring `{name}`")))
 }
@@ -862,6 +989,56 @@ mod tests {
             assert_eq!(plan.check(), Ok(()), "{name}");
             plan.fitted[0].low = plan.fitted[0].high;
             assert!(plan.check().is_err(), "{name}: equal bounds refused");
+        }
+    }
+
+    /// A picture's drawn pixels lie within its extent mapped to pixels, give or take the one
+    /// pixel an anti-aliased line reaches beside its end (Wu 1991, SIGGRAPH '91), and reach
+    /// every side of it; the rest stays background.
+    #[test]
+    fn a_picture_draws_inside_its_extent_and_reaches_every_side() {
+        let mut params = ramulus_core::presets::presets()[0].params.clone();
+        params.run.cells = 400;
+        let mut picture = FitPicture::from_link(&encode_link(&params)).unwrap();
+        let [min_x, min_y, max_x, max_y] = picture.extent;
+        assert!(max_x > min_x && max_y > min_y, "{:?}", picture.extent);
+        let (width, height, scale) = (200u32, 150u32, 3.0);
+        let (offset_x, offset_y) = (
+            100.0 - scale * (min_x + max_x) / 2.0,
+            75.0 - scale * (min_y + max_y) / 2.0,
+        );
+        let pixels = picture
+            .pixels(width, height, scale, offset_x, offset_y, "order")
+            .unwrap();
+        assert_eq!(pixels.len(), (width * height * 4) as usize);
+        let mut box_ = [
+            f64::INFINITY,
+            f64::INFINITY,
+            f64::NEG_INFINITY,
+            f64::NEG_INFINITY,
+        ];
+        for (index, pixel) in pixels.chunks(4).enumerate() {
+            if pixel[..3] != [255, 255, 255] {
+                let (x, y) = ((index as u32 % width) as f64, (index as u32 / width) as f64);
+                box_ = [
+                    box_[0].min(x),
+                    box_[1].min(y),
+                    box_[2].max(x),
+                    box_[3].max(y),
+                ];
+            }
+        }
+        let expected = [
+            min_x * scale + offset_x,
+            min_y * scale + offset_y,
+            max_x * scale + offset_x,
+            max_y * scale + offset_y,
+        ];
+        for side in 0..4 {
+            assert!(
+                (box_[side] - expected[side]).abs() <= 2.0,
+                "side {side}: drawn {box_:?}, extent {expected:?}"
+            );
         }
     }
 }

@@ -2,7 +2,11 @@
 // line: the page's posterior JSON (its fit run in Web Workers, outcomes absorbed in job order)
 // must equal `ramulus fit --json` for the same plan, specimen and seed, key for key. Also:
 // cancel ends every worker (Playwright's own list of the page's workers), and bad input gets
-// the core's message before any worker starts. Screenshots at 1400 and 420 px wide.
+// the core's message before any worker starts. The specimen and the best run are drawn to
+// pixels in the workers: both canvases hold drawn (non-white) pixels, and the best run's
+// inked box matches the extent of the network the native binary grows from the best run's
+// link (`ramulus grow --link ... --record`), mapped by the canvas's own scale and offset.
+// Screenshots at 1400 and 420 px wide.
 import { after, before, test } from 'node:test';
 import assert from 'node:assert/strict';
 import { execFileSync } from 'node:child_process';
@@ -45,6 +49,30 @@ async function fillPlan(page, { keys, metrics, settings }) {
     if (id === 'method') await page.selectOption('#fit-method', value);
     else await page.fill(`#fit-${id}`, value);
   }
+}
+
+/// A result canvas's view (device pixels per unit, offsets) and the box of its drawn pixels,
+/// those not the white background: `[minX, minY, maxX, maxY]` in pixels, or null.
+async function pictureFacts(page, id) {
+  return page.evaluate((id) => {
+    const canvas = document.getElementById(id);
+    const { width, height } = canvas;
+    const data = canvas.getContext('2d').getImageData(0, 0, width, height).data;
+    let box = null;
+    let inked = 0;
+    for (let y = 0; y < height; y += 1) {
+      for (let x = 0; x < width; x += 1) {
+        const at = 4 * (y * width + x);
+        if (data[at] === 255 && data[at + 1] === 255 && data[at + 2] === 255) continue;
+        inked += 1;
+        box = box ? [Math.min(box[0], x), Math.min(box[1], y), Math.max(box[2], x), Math.max(box[3], y)] : [x, y, x, y];
+      }
+    }
+    return {
+      width, height, inked, box,
+      scale: Number(canvas.dataset.scale), offsetX: Number(canvas.dataset.offsetX), offsetY: Number(canvas.dataset.offsetY),
+    };
+  }, id);
 }
 
 async function openSmallLeaf(page) {
@@ -98,9 +126,33 @@ for (const method of ['quick', 'sequential']) {
     assert.equal(await page.locator('#fit-posterior tbody tr').count(), 2);
     assert.equal(await page.locator('#fit-predictive tbody tr').count(), 3);
     assert.equal(await page.locator('#fit-sensitivity-table tbody tr').count(), 6);
-    for (const id of ['fit-plots', 'fit-specimen-image', 'fit-best-image']) {
-      assert.ok(await page.evaluate((id) => document.getElementById(id).naturalWidth > 0, id), id);
+    assert.ok(await page.evaluate(() => document.getElementById('fit-plots').naturalWidth > 0));
+    await page.waitForSelector('#fit-specimen-image', { timeout: 60000 });
+    const specimenPicture = await pictureFacts(page, 'fit-specimen-image');
+    const bestPicture = await pictureFacts(page, 'fit-best-image');
+    // Both drawn, at one scale (the page's rule: so they compare), on canvases of one size.
+    assert.ok(specimenPicture.inked > 100, `specimen: ${specimenPicture.inked} drawn pixels`);
+    assert.ok(bestPicture.inked > 100, `best run: ${bestPicture.inked} drawn pixels`);
+    assert.equal(specimenPicture.scale, bestPicture.scale);
+    assert.deepEqual([specimenPicture.width, specimenPicture.height], [bestPicture.width, bestPicture.height]);
+    // The outside check: the native binary grows the best run's link; the extent of its
+    // segment ends, mapped by the canvas's scale and offset, is the inked box within 2 px (an
+    // anti-aliased line reaches into the pixel beside its end: Wu 1991).
+    const recordFile = path.join(folder, 'best-run.json');
+    execFileSync(native, ['grow', '--link', cliResult.best_link, '--record', recordFile], { stdio: ['ignore', 'pipe', 'pipe'] });
+    const grown = JSON.parse(readFileSync(recordFile, 'utf8'));
+    const ends = grown.segments.flatMap((segment) => [grown.nodes[segment.from], grown.nodes[segment.to]]);
+    const expected = [
+      Math.min(...ends.map(([x]) => x)) * bestPicture.scale + bestPicture.offsetX,
+      Math.min(...ends.map(([, y]) => y)) * bestPicture.scale + bestPicture.offsetY,
+      Math.max(...ends.map(([x]) => x)) * bestPicture.scale + bestPicture.offsetX,
+      Math.max(...ends.map(([, y]) => y)) * bestPicture.scale + bestPicture.offsetY,
+    ];
+    for (let side = 0; side < 4; side += 1) {
+      assert.ok(Math.abs(bestPicture.box[side] - expected[side]) <= 2,
+        `best run's drawn box ${bestPicture.box} against the grown extent ${expected.map((v) => v.toFixed(1))} px`);
     }
+    assert.match(await page.textContent('#fit-scale'), /one scale: \d/);
     const best = await page.getAttribute('#fit-best-link', 'href');
     assert.equal(`${pageAddress}${best}`, cliResult.best_link);
     const csv = await page.evaluate(() => window.ramulusFit.session.posterior_csv());
