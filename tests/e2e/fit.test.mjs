@@ -152,7 +152,7 @@ for (const method of ['quick', 'sequential']) {
       assert.ok(Math.abs(bestPicture.box[side] - expected[side]) <= 2,
         `best run's drawn box ${bestPicture.box} against the grown extent ${expected.map((v) => v.toFixed(1))} px`);
     }
-    assert.match(await page.textContent('#fit-scale'), /one scale: \d/);
+    assert.match(await page.textContent('#fit-scale'), /one scale: +[\d.]+ mm$/);
     const best = await page.getAttribute('#fit-best-link', 'href');
     assert.equal(`${pageAddress}${best}`, cliResult.best_link);
     const csv = await page.evaluate(() => window.ramulusFit.session.posterior_csv());
