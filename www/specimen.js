@@ -515,9 +515,11 @@ class SpecimenPanel {
     }
     // The browser drops a PNG's stated resolution; the core reads it from the chunk headers.
     const millimetres = this.core.cleared_image_stated_resolution(new Uint8Array(await file.arrayBuffer()));
-    this.image?.bitmap.close();
+    const before = this.image;
     this.image = { bitmap, name: file.name, millimetres, rgba: null };
     this.forgetSteps();
+    this.placeImage();
+    before?.bitmap.close();
     this.clearMessage();
     status.textContent = '';
     byId('specimen-trace').disabled = false;
@@ -577,6 +579,12 @@ class SpecimenPanel {
       }
     }
     this.setMode(null);
+    if (byId('specimen-scale').value === 'file' && !Number.isFinite(this.image.millimetres)) {
+      Object.assign(this, previous);
+      status.textContent = 'Not traced.';
+      this.showMessage(`${this.image.name} states no pixel size: choose Scale from "units per file unit" above and type the length of one image pixel, then trace again.`);
+      return;
+    }
     if (this.measure()) {
       status.textContent = `Traced in ${Math.round(this.lastTraceMilliseconds)} ms.`;
       byId('specimen-trace-step').disabled = false;
@@ -588,9 +596,13 @@ class SpecimenPanel {
     if (!this.file?.image) byId('specimen-trace-step').disabled = true;
   }
 
+  /// Drops the last trace's step pictures; the photo takes their place under the drawing
+  /// before they are closed.
   forgetSteps() {
-    for (const bitmap of Object.values(this.steps)) bitmap.close();
+    const old = Object.values(this.steps);
     this.steps = {};
+    if (old.includes(this.view.image?.bitmap)) this.placeImage();
+    for (const bitmap of old) bitmap.close();
   }
 
   /// Puts the chosen step of the last trace under the drawing (the photo for "photo").
@@ -636,6 +648,7 @@ class SpecimenPanel {
     }
     // A trace of the image is in image pixels: one pixel is one file unit.
     const traced = Boolean(this.file?.image);
+    byId('specimen-image-pixel').disabled = traced;
     const filePerPixel = traced ? 1 : (pixel > 0 && Number.isFinite(pixel) ? pixel : 1);
     let unitsPerFileUnit;
     let units;
