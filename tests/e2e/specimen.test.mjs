@@ -245,8 +245,8 @@ test('bad files are refused with the core\'s message naming the place; the page 
   assert.match(await message(), /SVG <path> \(line 2\): path data `d` is not readable/);
   await pick('nan.geojson', '{"type":"Feature","geometry":{"type":"LineString","coordinates":[[0,0],[NaN,1]]}}');
   assert.match(await message(), /GeoJSON text \(line 1, column 73\)/);
-  await pick('wrong.geojson', '{"type":"FeatureCollection","features":[{"type":"Feature","geometry":{"type":"LineString","coordinates":[[0,0],[1,1]]}},{"type":"Feature","geometry":{"type":"Point","coordinates":[0,0]}}]}');
-  assert.match(await message(), /GeoJSON feature 1: a Point is neither a vein/);
+  await pick('wrong.geojson', '{"type":"FeatureCollection","features":[{"type":"Feature","geometry":{"type":"LineString","coordinates":[[0,0],[1,1]]}},{"type":"Feature","geometry":{"type":"MultiPoint","coordinates":[[0,0]]}}]}');
+  assert.match(await message(), /GeoJSON feature 1: a MultiPoint is neither a vein/);
   await pick('short.csv', 'x1,y1,x2,y2\n0,0,1,1\n2,2,3\n');
   assert.match(await message(), /line 3/);
 
