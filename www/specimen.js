@@ -522,6 +522,9 @@ class SpecimenPanel {
     before?.bitmap.close();
     this.clearMessage();
     status.textContent = '';
+    // The tracing box shows once there is an image to trace (a leaf tool: it stays out of a
+    // drainage designer's way until asked for).
+    byId('specimen-trace-box').hidden = false;
     byId('specimen-trace').disabled = false;
     byId('specimen-trace-status').textContent = '';
     // A new image under a trace of another image: the trace no longer matches it.
