@@ -62,13 +62,15 @@ class FitPanel {
     current.append(this.useCurrent, ' this page\'s run, once it has finished growing');
     const fromFile = element('label', { class: 'check' });
     this.useFile = element('input', { type: 'radio', name: 'fit-specimen', id: 'fit-use-file' });
-    fromFile.append(this.useFile, ' a file: ');
+    fromFile.append(this.useFile, ' a file');
     this.file = element('input', { type: 'file', id: 'fit-specimen-file', accept: '.json,.svg,.geojson,.csv,application/json,image/svg+xml,text/csv' });
-    this.file.setAttribute('aria-label', 'Specimen file: a run record (JSON) or a traced network (SVG, GeoJSON, CSV edge list)');
-    fromFile.append(this.file);
+    // The chooser has its own visible label beside it (a label names one control only).
+    const fileLabel = element('label', { class: 'fit-inline-label', for: this.file.id }, 'specimen file:');
+    const fileRow = element('span', { class: 'fit-file-row' });
+    fileRow.append(fileLabel, this.file);
     this.specimenNote = element('p', { class: 'hint', id: 'fit-specimen-note' },
       'A run record (JSON) or a traced network (SVG, GeoJSON, CSV edge list), read in this run\'s length unit.');
-    specimen.append(current, fromFile, this.specimenNote);
+    specimen.append(current, fromFile, fileRow, this.specimenNote);
     this.file.addEventListener('change', async () => {
       const chosen = this.file.files[0];
       if (!chosen) return;
@@ -96,7 +98,8 @@ class FitPanel {
       high.setAttribute('aria-label', `${key.key}: upper bound`);
       const label = element('label', { for: tick.id, title: `Allowed: ${key.allowed}` });
       label.append(element('code', {}, key.key), describe(key));
-      row.append(cell(tick), cell(label), cell(low), cell(high), element('td', {}, key.scale));
+      row.append(cell(tick), cell(label), cell(inlineLabelled('from', low)),
+        cell(inlineLabelled('to', high)), element('td', {}, key.scale));
       keyBody.append(row);
       this.keyRows.set(key.key, { tick, low, high });
     }
@@ -118,7 +121,7 @@ class FitPanel {
       weight.setAttribute('aria-label', `${metric.key}: weight`);
       const label = element('label', { for: tick.id });
       label.append(element('code', {}, metric.key), describe(metric));
-      row.append(cell(tick), cell(label), cell(weight));
+      row.append(cell(tick), cell(label), cell(inlineLabelled('weight', weight)));
       metricBody.append(row);
       this.metricRows.set(metric.key, { tick, weight });
     }
@@ -615,6 +618,13 @@ function textRow(texts, className = '') {
   const row = element('tr', className ? { class: className } : {});
   for (const text of texts) row.append(element('td', {}, String(text)));
   return row;
+}
+
+/// A control with its own small visible label beside it (`text`), inside one label element.
+function inlineLabelled(text, control) {
+  const label = element('label', { class: 'fit-inline-label' }, `${text} `);
+  label.append(control);
+  return label;
 }
 
 function cell(child) {

@@ -2,7 +2,10 @@
 // demo in one click), has the core read, calibrate, repair and measure it
 // (`measure_specimen`), shows it with its repairs marked and listed, lets the user set the
 // scale (unit, factor, or two clicks a known length apart) and the root (a click), puts a
-// cleared-leaf image under it at the calibrated scale, and compares its measures with the
+// cleared-leaf image under it at the calibrated scale, traces veins from that image
+// (`trace_cleared_image`: thresholds, thinning and skeleton graph in the core) into a specimen
+// measured like a traced file, with each step's picture shown under the drawing on request,
+// and compares its measures with the
 // current settings grown over several seeds (specimen-compare.js). Every text from a file
 // reaches the page through `textContent` only; a file is refused by size before it is read;
 // whatever fails here leaves the grown run on the page as it was.
@@ -39,7 +42,9 @@ class SpecimenPanel {
     this.runs = null; // {link, seeds, metrics: JSON text of an array, units}
     this.comparing = false;
     this.stopRequested = false;
-    this.image = null; // {bitmap, name}
+    this.image = null; // {bitmap, name, millimetres (stated per pixel, or NaN), rgba (cached)}
+    this.steps = {}; // step name -> ImageBitmap of the last trace's step
+    this.step = 'photo';
     this.view = new SpecimenView(byId('specimen-canvas'), this.core);
     this.runView = new RunSnapshotView(byId('specimen-run-canvas'), this.core);
     this.wire();
@@ -143,7 +148,9 @@ class SpecimenPanel {
       this.lastError = 'The scale bar is not set yet: click its two ends on the drawing.';
       return false;
     }
-    const result = JSON.parse(this.core.measure_specimen(this.file.bytes, JSON.stringify(options)));
+    const result = this.file.image
+      ? this.traceImage(options)
+      : JSON.parse(this.core.measure_specimen(this.file.bytes, JSON.stringify(options)));
     if (result.error) {
       this.lastError = `${result.error.message}.`;
       return false;
@@ -217,6 +224,7 @@ class SpecimenPanel {
     line(`${this.file.name}: ${result.format}, ${result.nodes} nodes, ${result.segments} segments, total length ${rowValue(result, 'total vein length')} ${result.units}.`);
     line(`Scale: ${result.calibration.rule}.`);
     for (const root of result.roots) line(`Root: ${root.message}.`);
+    if (result.image) line(stepsText(result.image, this.core));
   }
 
   showRepairs() {
@@ -495,7 +503,7 @@ class SpecimenPanel {
     let bitmap;
     try {
       // The browser decodes PNG and JPEG.
-      bitmap = await createImageBitmap(file);
+      bitmap = await createImageBitmap(file, { colorSpaceConversion: 'none', premultiplyAlpha: 'none' });
     } catch (error) {
       this.showMessage(`${file.name}: not an image this browser can decode (PNG or JPEG): ${messageOf(error)}.`);
       return;
@@ -505,12 +513,113 @@ class SpecimenPanel {
       bitmap.close();
       return;
     }
-    this.image?.bitmap.close();
-    this.image = { bitmap, name: file.name };
+    // The browser drops a PNG's stated resolution; the core reads it from the chunk headers.
+    const millimetres = this.core.cleared_image_stated_resolution(new Uint8Array(await file.arrayBuffer()));
+    const before = this.image;
+    this.image = { bitmap, name: file.name, millimetres, rgba: null };
+    this.forgetSteps();
+    this.placeImage();
+    before?.bitmap.close();
     this.clearMessage();
     status.textContent = '';
+    // The tracing box shows once there is an image to trace (a leaf tool: it stays out of a
+    // drainage designer's way until asked for).
+    byId('specimen-trace-box').hidden = false;
+    byId('specimen-trace').disabled = false;
+    byId('specimen-trace-status').textContent = '';
+    // A new image under a trace of another image: the trace no longer matches it.
+    if (this.file?.image) this.traceFromImage();
+    else {
+      this.placeImage();
+      this.fitBoth();
+    }
+  }
+
+  /// The image options for the core, from the trace controls.
+  imageOptions() {
+    const threshold = byId('specimen-trace-threshold').value === 'local'
+      ? { window: byId('specimen-trace-window').value, offset: byId('specimen-trace-offset').value }
+      : 'otsu';
+    return {
+      leaf: byId('specimen-trace-leaf').value,
+      veins: byId('specimen-trace-veins').value,
+      threshold,
+      spur: byId('specimen-trace-spur').value,
+      millimetres_per_pixel: Number.isFinite(this.image.millimetres) ? this.image.millimetres : null,
+    };
+  }
+
+  /// The core's trace of the image under `options` (the calibration), as parsed JSON.
+  traceImage(options) {
+    const pixels = this.imageRgba();
+    const started = performance.now();
+    const text = this.core.trace_cleared_image(pixels.rgba, pixels.width, pixels.height, JSON.stringify({ ...options, image: this.imageOptions() }));
+    this.lastTraceMilliseconds = performance.now() - started;
+    this.forgetSteps();
+    // The chosen step's picture of this trace, once the specimen is shown.
+    if (this.step !== 'photo') setTimeout(() => this.showStep(), 0);
+    return JSON.parse(text);
+  }
+
+  /// "Trace veins from the image": the image becomes the specimen (file coordinates are image
+  /// pixels), measured, repaired and compared like a traced file.
+  async traceFromImage() {
+    if (!this.image) return;
+    const status = byId('specimen-trace-status');
+    status.textContent = `Tracing ${this.image.name}…`;
+    // A frame for the line above before the core works on a large image.
+    await new Promise((resolve) => { requestAnimationFrame(() => setTimeout(resolve, 0)); });
+    const previous = { file: this.file, root: this.root, bar: this.bar, picks: this.picks };
+    const fresh = !this.file?.image || this.file.name !== this.image.name;
+    if (fresh) {
+      this.file = { name: this.image.name, image: true };
+      this.root = null;
+      this.bar = null;
+      this.picks = [];
+      if (byId('specimen-scale').value === 'bar') {
+        byId('specimen-scale').value = 'file';
+        this.showScaleRows();
+      }
+    }
+    this.setMode(null);
+    if (byId('specimen-scale').value === 'file' && !Number.isFinite(this.image.millimetres)) {
+      Object.assign(this, previous);
+      status.textContent = 'Not traced.';
+      this.showMessage(`${this.image.name} states no pixel size: choose Scale from "units per file unit" above and type the length of one image pixel, then trace again.`);
+      return;
+    }
+    if (this.measure()) {
+      status.textContent = `Traced in ${Math.round(this.lastTraceMilliseconds)} ms.`;
+      byId('specimen-trace-step').disabled = false;
+      return;
+    }
+    Object.assign(this, previous);
+    status.textContent = 'Not traced.';
+    this.showMessage(`${this.image.name}: ${this.lastError}${this.file ? ` The specimen shown is still ${this.file.name}.` : ''}`);
+    if (!this.file?.image) byId('specimen-trace-step').disabled = true;
+  }
+
+  /// Drops the last trace's step pictures; the photo takes their place under the drawing
+  /// before they are closed.
+  forgetSteps() {
+    const old = Object.values(this.steps);
+    this.steps = {};
+    if (old.includes(this.view.image?.bitmap)) this.placeImage();
+    for (const bitmap of old) bitmap.close();
+  }
+
+  /// Puts the chosen step of the last trace under the drawing (the photo for "photo").
+  async showStep() {
+    this.step = byId('specimen-trace-step').value;
+    if (this.step !== 'photo' && this.file?.image && !this.steps[this.step]) {
+      const rgba = this.core.cleared_image_step_rgba(this.step);
+      const { width, height } = this.image.bitmap;
+      if (rgba.length === width * height * 4) {
+        this.steps[this.step] = await createImageBitmap(new ImageData(new Uint8ClampedArray(rgba.buffer), width, height));
+      }
+    }
     this.placeImage();
-    this.fitBoth();
+    this.view.draw();
   }
 
   /// The image as the browser decoded it: `{width, height, rgba}` with four bytes per pixel,
@@ -518,12 +627,14 @@ class SpecimenPanel {
   /// core's image pipeline (threshold, thinning, skeleton graph) takes once it is on the page.
   imageRgba() {
     if (!this.image) return null;
+    if (this.image.rgba) return this.image.rgba;
     const { bitmap } = this.image;
     const canvas = new OffscreenCanvas(bitmap.width, bitmap.height);
     const context = canvas.getContext('2d', { willReadFrequently: true });
     context.drawImage(bitmap, 0, 0);
     const data = context.getImageData(0, 0, bitmap.width, bitmap.height).data;
-    return { width: bitmap.width, height: bitmap.height, rgba: new Uint8Array(data.buffer) };
+    this.image.rgba = { width: bitmap.width, height: bitmap.height, rgba: new Uint8Array(data.buffer) };
+    return this.image.rgba;
   }
 
   /// Puts the image under the drawing: its top left corner at the file's origin, one pixel
@@ -538,7 +649,10 @@ class SpecimenPanel {
     if (!(pixel > 0 && Number.isFinite(pixel))) {
       status.textContent = 'One image pixel must be a positive number of file units; the image is shown at 1.';
     }
-    const filePerPixel = pixel > 0 && Number.isFinite(pixel) ? pixel : 1;
+    // A trace of the image is in image pixels: one pixel is one file unit.
+    const traced = Boolean(this.file?.image);
+    byId('specimen-image-pixel').disabled = traced;
+    const filePerPixel = traced ? 1 : (pixel > 0 && Number.isFinite(pixel) ? pixel : 1);
     let unitsPerFileUnit;
     let units;
     if (this.result) {
@@ -551,9 +665,13 @@ class SpecimenPanel {
       this.view.units = units;
     }
     const perPixel = filePerPixel * unitsPerFileUnit;
-    const { bitmap, name } = this.image;
-    this.view.image = { bitmap, x: 0, y: 0, width: bitmap.width * perPixel, height: bitmap.height * perPixel };
-    status.textContent = `${name}: ${bitmap.width} × ${bitmap.height} pixels, each ${this.core.specimen_number_text(perPixel)} ${units}, under the drawing. Tracing veins from the image itself is not on the page yet.`;
+    const { bitmap: photo, name } = this.image;
+    const step = traced && this.step !== 'photo' ? this.steps[this.step] : null;
+    const bitmap = step ?? photo;
+    this.view.image = { bitmap, x: 0, y: 0, width: photo.width * perPixel, height: photo.height * perPixel };
+    const stated = Number.isFinite(this.image.millimetres) ? ` (the file states ${this.core.specimen_number_text(this.image.millimetres)} mm)` : '';
+    const shownText = step ? `its ${byId('specimen-trace-step').selectedOptions[0].textContent.replace(/^the /, '')}` : 'the photo';
+    status.textContent = `${name}: ${photo.width} × ${photo.height} pixels, each ${this.core.specimen_number_text(perPixel)} ${units}${stated}; ${shownText} under the drawing.${traced ? '' : ' Press "Trace veins from the image" to measure its veins.'}`;
   }
 
   // ---- messages ---------------------------------------------------------------------------
@@ -628,6 +746,17 @@ class SpecimenPanel {
       this.placeImage();
       this.fitBoth();
     });
+    byId('specimen-trace').addEventListener('click', () => this.traceFromImage());
+    byId('specimen-trace-step').addEventListener('change', () => this.showStep());
+    byId('specimen-trace-threshold').addEventListener('change', () => {
+      byId('specimen-trace-local-row').hidden = byId('specimen-trace-threshold').value !== 'local';
+    });
+    // Changed image options trace again once an image has been traced.
+    for (const id of ['specimen-trace-leaf', 'specimen-trace-veins', 'specimen-trace-threshold', 'specimen-trace-window', 'specimen-trace-offset', 'specimen-trace-spur']) {
+      byId(id).addEventListener('change', () => {
+        if (this.file?.image) this.traceFromImage();
+      });
+    }
     byId('specimen-bar-pick').addEventListener('click', () => {
       if (!this.result) return;
       this.picks = [];
@@ -693,6 +822,15 @@ class SpecimenPanel {
       if (/^[0-9a-f]{16}$/.test(digest.textContent)) this.runFinished();
     }).observe(digest, { childList: true, characterData: true, subtree: true });
   }
+}
+
+/// One line of each step's numbers of an image trace.
+function stepsText(steps, core) {
+  const threshold = steps.vein_threshold.otsu !== undefined
+    ? `Otsu's threshold ${steps.vein_threshold.otsu}`
+    : `local mean over ${steps.vein_threshold.local_mean.window} pixels minus ${core.specimen_number_text(steps.vein_threshold.local_mean.offset)}`;
+  const width = steps.mean_vein_width_pixels === null ? 'n/a' : core.specimen_number_text(steps.mean_vein_width_pixels);
+  return `Image steps: leaf ${steps.leaf_pixels} pixels (grey level ${steps.leaf_threshold}, ${steps.leaf_holes_filled} hole pixels filled); veins ${steps.vein_pixels} pixels (${threshold}); thinned in ${steps.thinning_iterations} passes to ${steps.skeleton_pixels} pixels; ${steps.spurs_pruned} twigs under ${core.specimen_number_text(steps.spur_length_pixels)} pixels dropped; ${steps.chains} vein pieces, ${steps.branch_points} branch points, ${steps.end_points} ends; mean vein width ${width} pixels.`;
 }
 
 /// Number text of one of the core's readings rows, by its label.

@@ -22,6 +22,10 @@ pub use specimen::{
     measure_specimen, specimen_comparison_json, specimen_max_bytes, specimen_number_text,
     specimen_scale_bar_json, specimen_size_refusal,
 };
+mod specimen_image;
+pub use specimen_image::{
+    cleared_image_stated_resolution, cleared_image_step_rgba, trace_cleared_image,
+};
 // ---- end of specimens ----
 
 pub use memory::RunMemory;

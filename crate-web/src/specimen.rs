@@ -11,7 +11,7 @@ use ramulus_core::metrics::{Metrics, Reading, METRIC_TABLE};
 use ramulus_core::params::Params;
 use ramulus_core::run::RunView;
 use ramulus_core::specimen::{
-    build_specimen, Repair, ScaleRule, SpecimenError, SpecimenFormat, SpecimenOptions,
+    build_specimen, Repair, ScaleRule, Specimen, SpecimenError, SpecimenFormat, SpecimenOptions,
     DEFAULT_FLATTEN_TOLERANCE, MAX_SPECIMEN_BYTES,
 };
 use ramulus_draw::format::four_digits;
@@ -137,7 +137,7 @@ fn point(value: &Value, what: &str) -> Result<Option<(f64, f64)>, String> {
 }
 
 /// The core's options from the page's JSON.
-fn options_from_json(options_json: &str) -> Result<SpecimenOptions, String> {
+pub(crate) fn options_from_json(options_json: &str) -> Result<SpecimenOptions, String> {
     let options: Value = serde_json::from_str(options_json)
         .map_err(|error| format!("specimen options are not JSON: {error}"))?;
     let units = match &options["units"] {
@@ -199,6 +199,11 @@ fn marker_of(repair: &Repair) -> (f64, f64) {
 fn measure(bytes: &[u8], options_json: &str) -> Result<Value, String> {
     let options = options_from_json(options_json)?;
     let specimen = build_specimen(bytes, &options).map_err(|error| error.to_string())?;
+    specimen_json(&specimen)
+}
+
+/// The page's JSON of a calibrated, repaired specimen (see `measure_specimen`).
+pub(crate) fn specimen_json(specimen: &Specimen) -> Result<Value, String> {
     // The same pipeline as a grown network and as `ramulus measure`: topology, conducting
     // network, widths, metrics.
     let view = RunView::new(specimen.network.clone(), &Params::default())

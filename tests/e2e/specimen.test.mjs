@@ -245,8 +245,8 @@ test('bad files are refused with the core\'s message naming the place; the page 
   assert.match(await message(), /SVG <path> \(line 2\): path data `d` is not readable/);
   await pick('nan.geojson', '{"type":"Feature","geometry":{"type":"LineString","coordinates":[[0,0],[NaN,1]]}}');
   assert.match(await message(), /GeoJSON text \(line 1, column 73\)/);
-  await pick('wrong.geojson', '{"type":"FeatureCollection","features":[{"type":"Feature","geometry":{"type":"LineString","coordinates":[[0,0],[1,1]]}},{"type":"Feature","geometry":{"type":"Point","coordinates":[0,0]}}]}');
-  assert.match(await message(), /GeoJSON feature 1: a Point is neither a vein/);
+  await pick('wrong.geojson', '{"type":"FeatureCollection","features":[{"type":"Feature","geometry":{"type":"LineString","coordinates":[[0,0],[1,1]]}},{"type":"Feature","geometry":{"type":"MultiPoint","coordinates":[[0,0]]}}]}');
+  assert.match(await message(), /GeoJSON feature 1: a MultiPoint is neither a vein/);
   await pick('short.csv', 'x1,y1,x2,y2\n0,0,1,1\n2,2,3\n');
   assert.match(await message(), /line 3/);
 
@@ -333,6 +333,73 @@ test('a cleared-leaf image lies under the specimen at its calibrated scale; a br
   await page.setInputFiles('#specimen-image', { name: 'broken.png', mimeType: 'image/png', buffer: Buffer.from('\x89PNG\r\n\x1a\nnot really') });
   await page.waitForFunction(() => document.getElementById('specimen-message').textContent.startsWith('broken.png'));
   assert.match(await page.textContent('#specimen-message'), /not an image this browser can decode/);
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});
+
+test('the demo cleared-leaf image traced on the page measures as `ramulus measure IMAGE.png --json` does; a broken or empty image is named', async () => {
+  const page = await newPage(context);
+  await page.goto(site.url);
+  await finishedDigest(page);
+  await page.click('[data-demo="cleared-leaf.png"]');
+  await page.waitForFunction(() => !document.getElementById('specimen-trace').disabled);
+  await page.click('#specimen-trace');
+  await page.waitForFunction(() => window.ramulusSpecimens?.result?.image !== undefined
+    && document.querySelector('#specimen-table tbody tr') !== null);
+  // The outside check: the native command line decodes the PNG itself (its own decoder and
+  // its reading of the pHYs resolution), the page had the browser decode it.
+  const cli = measure('cleared-leaf.png');
+  const result = await shown(page);
+  assert.deepEqual(result.metrics, cli.metrics);
+  assert.equal(result.nodes, cli.nodes);
+  assert.equal(result.segments, cli.segments);
+  assert.equal(result.calibration.factor, cli.calibration.factor);
+  assert.deepEqual(result.image, cli.image);
+  const cells = await specimenCells(page);
+  assertShown(cells.total_length, cli.metrics.total_length, 'total length');
+  assertShown(cells.vein_density, cli.metrics.vein_density, 'vein density');
+  assertShown(cells.tip_count, cli.metrics.tip_count, 'tips');
+  const status = await page.textContent('#specimen-status');
+  assert.match(status, new RegExp(`thinned in ${cli.image.thinning_iterations} passes to ${cli.image.skeleton_pixels} pixels`));
+  // Each step's picture under the drawing: the skeleton's coloured pixels are its pixels.
+  await page.selectOption('#specimen-trace-step', 'skeleton');
+  const skeleton = await page.waitForFunction(() => {
+    const panel = window.ramulusSpecimens;
+    const bitmap = panel.view.image?.bitmap;
+    if (!bitmap || bitmap === panel.image.bitmap) return null;
+    const canvas = new OffscreenCanvas(bitmap.width, bitmap.height);
+    const context = canvas.getContext('2d');
+    context.drawImage(bitmap, 0, 0);
+    const data = context.getImageData(0, 0, bitmap.width, bitmap.height).data;
+    let on = 0;
+    for (let i = 3; i < data.length; i += 4) if (data[i] === 255) on += 1;
+    return on;
+  });
+  assert.equal(await skeleton.jsonValue(), cli.image.skeleton_pixels);
+  await page.selectOption('#specimen-trace-step', 'veins');
+  await page.waitForFunction(() => window.ramulusSpecimens.steps.veins !== undefined);
+  await screenshot(page, '23-specimen-traced-image');
+  // Changed options trace again: a local threshold as `--local-threshold 31,5`.
+  await page.selectOption('#specimen-trace-threshold', 'local');
+  await page.fill('#specimen-trace-window', '31');
+  await page.fill('#specimen-trace-offset', '5');
+  await page.press('#specimen-trace-offset', 'Tab');
+  await page.waitForFunction(() => window.ramulusSpecimens.result.image.vein_threshold.local_mean !== undefined);
+  const local = measure('cleared-leaf.png', '--local-threshold', '31,5');
+  assert.deepEqual((await shown(page)).metrics, local.metrics);
+  // A bad option is named and the trace shown stays.
+  await page.fill('#specimen-trace-window', '2');
+  await page.press('#specimen-trace-window', 'Tab');
+  await page.waitForFunction(() => /window must be a whole number/.test(document.getElementById('specimen-message').textContent));
+  assert.deepEqual((await shown(page)).metrics, local.metrics);
+  // An empty image: the core names its size.
+  const empty = await page.evaluate(() => JSON.parse(window.ramulusSpecimens.core.trace_cleared_image(new Uint8Array(0), 0, 0, '{"image": {}}')));
+  assert.match(empty.error.message, /0 x 0 pixels: it holds no pixel/);
+  // A broken image is named and the page still works: the traced specimen stays and grows on.
+  await page.setInputFiles('#specimen-image', { name: 'broken.png', mimeType: 'image/png', buffer: Buffer.from('\x89PNG\r\n\x1a\nnot really') });
+  await page.waitForFunction(() => document.getElementById('specimen-message').textContent.startsWith('broken.png'));
+  assert.match(await page.textContent('#specimen-message'), /not an image this browser can decode/);
+  assert.equal(await page.evaluate(() => window.ramulusSpecimens.file.name), 'cleared-leaf.png');
   assert.deepEqual(page.errors, []);
   await page.close();
 });
