@@ -92,8 +92,8 @@ try {
     await page.waitForSelector('#fit-posterior tbody tr', { timeout: 1800000 });
     const seconds = (Date.now() - started) / 1000;
     const report = await page.evaluate(() => window.ramulusFit.reportText);
-    // Up to the posterior table: the fit itself; after it: the results drawn (two network
-    // pictures decoded as images).
+    // Up to the posterior table: the fit itself; after it: the results drawn (the two network
+    // pictures are canvases put in place once painted; images among the results are decoded).
     const fit = await page.evaluate(() => {
       const taken = { gap: window.fitWatch.gap, longest: window.fitWatch.longest, call: window.ramulusFit.longestCall };
       window.fitWatch.gap = 0;
@@ -102,7 +102,7 @@ try {
     });
     await page.waitForSelector('#fit-best-image', { timeout: 600000 });
     await page.waitForSelector('#fit-specimen-image', { timeout: 600000 });
-    await page.evaluate(() => Promise.all([...document.querySelectorAll('.fit-image')].map((image) => image.decode())));
+    await page.evaluate(() => Promise.all([...document.querySelectorAll('.fit-image')].map((image) => (typeof image.decode === 'function' ? image.decode() : null))));
     await page.waitForTimeout(1000);
     const shown = await page.evaluate(() => {
       window.fitWatch.running = false;
