@@ -215,36 +215,6 @@ struct Measured {
     image: Option<serde_json::Value>,
 }
 
-/// The numbers of each step of reading an image, in pixels and grey levels (and the mean
-/// width in output units too).
-fn image_report(leaf: &ClearedLeaf, options: &ClearedOptions, factor: f64) -> serde_json::Value {
-    json!({
-        "width": leaf.width,
-        "height": leaf.height,
-        "leaf_threshold": leaf.leaf_threshold,
-        "leaf_pixels": leaf.leaf_pixels,
-        "leaf_holes_filled": leaf.leaf_holes_filled,
-        "vein_threshold": match options.vein_threshold {
-            VeinThreshold::Global => json!({ "otsu": leaf.vein_threshold }),
-            VeinThreshold::Local { window, offset } => json!({
-                "local_mean": { "window": window | 1, "offset": offset }
-            }),
-        },
-        "vein_pixels": leaf.vein_pixels,
-        "thinning_iterations": leaf.thinning_iterations,
-        "skeleton_pixels": leaf.skeleton_pixels,
-        "end_points_before_pruning": leaf.end_points_before_pruning,
-        "spur_length_pixels": options.spur_length,
-        "spurs_pruned": leaf.spurs_pruned,
-        "lone_pixels": leaf.lone_pixels,
-        "chains": leaf.veins.len(),
-        "end_points": leaf.end_points,
-        "branch_points": leaf.branch_points,
-        "mean_vein_width_pixels": leaf.mean_vein_width,
-        "mean_vein_width": leaf.mean_vein_width.map(|w| w * factor),
-    })
-}
-
 fn measure_one(
     path: &str,
     options: &SpecimenOptions,
@@ -265,7 +235,11 @@ fn measure_one(
                 "{path}: internal: the repaired network is not valid: {error}"
             ))
         })?;
-        let report = image_report(&read.leaf, image_options, read.specimen.calibration.factor);
+        let report = ramulus_core::cleared::report::steps_report(
+            &read.leaf,
+            image_options,
+            read.specimen.calibration.factor,
+        );
         if let Some(slot) = keep_masks {
             *slot = Some(read.leaf);
         }

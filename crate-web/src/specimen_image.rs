@@ -153,35 +153,6 @@ fn cleared_options(image: &Value) -> Result<ClearedOptions, String> {
     })
 }
 
-/// Each step's numbers, in pixels and grey levels (as `ramulus measure --json` gives them).
-fn steps_json(leaf: &ClearedLeaf, options: &ClearedOptions, factor: f64) -> Value {
-    json!({
-        "width": leaf.width,
-        "height": leaf.height,
-        "leaf_threshold": leaf.leaf_threshold,
-        "leaf_pixels": leaf.leaf_pixels,
-        "leaf_holes_filled": leaf.leaf_holes_filled,
-        "vein_threshold": match options.vein_threshold {
-            VeinThreshold::Global => json!({ "otsu": leaf.vein_threshold }),
-            VeinThreshold::Local { window, offset } => json!({
-                "local_mean": { "window": window | 1, "offset": offset }
-            }),
-        },
-        "vein_pixels": leaf.vein_pixels,
-        "thinning_iterations": leaf.thinning_iterations,
-        "skeleton_pixels": leaf.skeleton_pixels,
-        "end_points_before_pruning": leaf.end_points_before_pruning,
-        "spur_length_pixels": options.spur_length,
-        "spurs_pruned": leaf.spurs_pruned,
-        "lone_pixels": leaf.lone_pixels,
-        "chains": leaf.veins.len(),
-        "end_points": leaf.end_points,
-        "branch_points": leaf.branch_points,
-        "mean_vein_width_pixels": leaf.mean_vein_width,
-        "mean_vein_width": leaf.mean_vein_width.map(|w| w * factor),
-    })
-}
-
 fn trace(rgba: &[u8], width: u32, height: u32, options_json: &str) -> Result<Value, String> {
     let options = options_from_json(options_json)?;
     let page: Value = serde_json::from_str(options_json)
@@ -199,7 +170,11 @@ fn trace(rgba: &[u8], width: u32, height: u32, options_json: &str) -> Result<Val
         .map_err(|error| error.to_string())?;
     drop(image);
     let mut value = specimen_json(&read.specimen)?;
-    value["image"] = steps_json(&read.leaf, &image_options, read.specimen.calibration.factor);
+    value["image"] = ramulus_core::cleared::report::steps_report(
+        &read.leaf,
+        &image_options,
+        read.specimen.calibration.factor,
+    );
     LAST_TRACE.with(|last| *last.borrow_mut() = Some(read.leaf));
     Ok(value)
 }

@@ -30,6 +30,7 @@
 pub mod decode;
 pub mod distance;
 pub mod regions;
+pub mod report;
 pub mod skeleton_graph;
 pub mod thinning;
 pub mod threshold;
