@@ -57,6 +57,11 @@ async function start() {
     .then(({ startSpecimens }) => startSpecimens({ session: state.session, state }))
     .catch((error) => notice(`The specimen panel could not start: ${messageOf(error)}`));
   // ---- end of specimens ----
+  // ---- drainage sites (issue 12, page side): site-panel.js and site-sketch.js ----
+  import('./site-panel.js')
+    .then(({ startSitePanel }) => startSitePanel({ session: state.session, state }))
+    .catch((error) => notice(`The site panel could not start: ${messageOf(error)}`));
+  // ---- end of drainage sites ----
 
   fillStartList();
   // page-ux: the guide, and the image-mask upload beside the mask field it sets.
@@ -332,6 +337,8 @@ function onFinished() {
       : `differs from the digest saved in the record (${recorded})`;
   }
   setExports(true);
+  // The site panel sizes a finished layout's channels.
+  window.dispatchEvent(new CustomEvent('ramulus:finished'));
 }
 
 function showReadingsNow() {

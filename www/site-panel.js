@@ -1,0 +1,310 @@
+// The drainage-site panel: a site comes from a file, the demo or the sketch; "Grow" turns it
+// into a run link (the core reads the site file and names what is wrong), and when the run ends
+// the core sizes every channel for the design storm the designer enters. Every rule, default,
+// number format and sentence is the core's; this module moves values between the form and it.
+import { download } from './keep.js';
+import { SiteSketch, TOOLS, shapesFromGeojson } from './site-sketch.js';
+
+const DEMO_SITE = 'sites/community-garden.geojson';
+// Rows of the schedule shown on the page; the CSV holds them all.
+const SHOWN_ROWS = 300;
+
+const byId = (id) => document.getElementById(id);
+
+/// Starts the panel. `state`: the page's state (its simulation and frame); `session`: the wasm
+/// session.
+export function startSitePanel({ session, state }) {
+  const panel = new SitePanel(session, state);
+  window.ramulusSite = panel;
+  return panel;
+}
+
+class SitePanel {
+  constructor(session, state) {
+    this.session = session;
+    this.state = state;
+    this.core = session.core;
+    this.sized = null;
+    this.siteText = null;
+    byId('site-caution').textContent = `Caution: ${this.core.site_caution()}`;
+    this.surfaces = JSON.parse(this.core.runoff_surfaces_json());
+    this.sketch = new SiteSketch(byId('site-canvas'), () => this.showFeatures());
+    this.sketch.pointProperties = (role) => (role === 'outlet'
+      ? { name: byId('site-outlet-name').value.trim() || 'outlet' }
+      : { elevation: Number(byId('site-level-z').value) });
+    this.sketch.zoneProperties = () => ({
+      surface: byId('site-zone-surface').selectedOptions[0]?.dataset.surface ?? 'zone',
+      runoff_coefficient: Number(byId('site-zone-c').value),
+    });
+    this.sketch.obstacleProperties = () => ({ name: byId('site-obstacle-name').value.trim() || 'kept clear' });
+    this.fillSurfaces();
+    this.setSystem('si');
+    this.wire();
+    this.showFeatures();
+  }
+
+  // ---- the form --------------------------------------------------------------------------
+
+  fillSurfaces() {
+    const select = byId('site-zone-surface');
+    select.replaceChildren();
+    for (const surface of this.surfaces) {
+      const option = document.createElement('option');
+      option.value = String(surface.coefficient);
+      option.dataset.surface = surface.surface;
+      option.textContent = `${surface.surface} (${surface.coefficient.toFixed(2)})`;
+      select.append(option);
+    }
+    byId('site-zone-c').value = select.value;
+  }
+
+  /// Unit labels and the defaults of the chosen unit system, from the core.
+  setSystem(system) {
+    const defaults = JSON.parse(this.core.drainage_defaults_json(system));
+    for (const element of document.querySelectorAll('.site-panel [data-unit]')) {
+      element.textContent = defaults.units[element.dataset.unit] ?? '';
+    }
+    byId('site-pipes').value = defaults.pipe_sizes.join(', ');
+    byId('site-v-min').value = String(defaults.velocity_min);
+    byId('site-v-max').value = String(defaults.velocity_max);
+  }
+
+  wire() {
+    for (const radio of document.querySelectorAll('input[name="site-tool"]')) {
+      radio.addEventListener('change', () => this.setTool(radio.value));
+    }
+    byId('site-zone-surface').addEventListener('change', (event) => { byId('site-zone-c').value = event.target.value; });
+    byId('site-snap').addEventListener('change', (event) => { this.sketch.snap = Number(event.target.value) || 0; });
+    byId('site-close').addEventListener('click', () => {
+      if (!this.sketch.closeDraft()) this.message('A shape needs at least three corners before it can close.');
+    });
+    byId('site-undo').addEventListener('click', () => this.sketch.undo());
+    byId('site-units').addEventListener('change', (event) => this.setSiteUnits(event.target.value));
+    byId('site-system').addEventListener('change', (event) => { this.setSystem(event.target.value); this.resize(); });
+    byId('site-rain-kind').addEventListener('change', (event) => {
+      byId('site-intensity-row').hidden = event.target.value !== 'constant';
+      byId('site-idf-row').hidden = event.target.value !== 'idf';
+    });
+    byId('site-conveyance').addEventListener('change', () => this.resize());
+    byId('site-demo').addEventListener('click', () => this.openDemo());
+    byId('site-blank').addEventListener('click', () => {
+      const width = Number(byId('site-blank-width').value);
+      const height = Number(byId('site-blank-height').value);
+      if (!(width > 0 && height > 0)) {
+        this.message('A blank site needs a width and a height above 0.');
+        return;
+      }
+      this.sketch.blank(width, height, byId('site-units').value);
+    });
+    byId('site-file').addEventListener('change', async (event) => {
+      const file = event.target.files?.[0];
+      if (file) this.openText(await file.text(), file.name);
+      event.target.value = '';
+    });
+    byId('site-grow').addEventListener('click', () => this.grow());
+    byId('site-size').addEventListener('click', () => this.resize(true));
+    window.addEventListener('ramulus:finished', () => this.runEnded());
+    byId('site-save-plan').addEventListener('click', () => this.save('svg', 'plan drawing to a stated map scale',
+      () => this.state.simulation.drainage_plan_svg(this.rulesText()), 'image/svg+xml'));
+    byId('site-save-csv').addEventListener('click', () => this.save('csv', 'channel schedule',
+      () => this.state.simulation.drainage_csv(this.rulesText()), 'text/csv'));
+    byId('site-save-geojson').addEventListener('click', () => this.save('geojson', 'channels with their flows and sizes',
+      () => this.state.simulation.drainage_geojson(this.rulesText()), 'application/geo+json'));
+    byId('site-save-site').addEventListener('click', () => {
+      const text = JSON.stringify(this.sketch.geojson(), null, 1);
+      const file = 'ramulus-site.geojson';
+      byId('site-saved').textContent = this.core.saved_text(file, 'site file', download(file, text, 'application/geo+json'));
+    });
+  }
+
+  setTool(tool) {
+    this.sketch.tool = tool;
+    this.sketch.draft = [];
+    this.sketch.draw();
+    byId('site-obstacle-row').hidden = tool !== 'obstacle';
+    byId('site-zone-row').hidden = tool !== 'zone';
+    byId('site-level-row').hidden = tool !== 'level';
+    byId('site-outlet-row').hidden = tool !== 'outlet';
+  }
+
+  setSiteUnits(units) {
+    this.sketch.units = units;
+    for (const id of ['site-level-unit', 'site-snap-unit', 'site-cell-unit']) byId(id).textContent = units;
+    this.sketch.emit();
+  }
+
+  // ---- opening a site --------------------------------------------------------------------
+
+  async openDemo() {
+    try {
+      const response = await fetch(DEMO_SITE);
+      if (!response.ok) throw new Error(`the demo site could not be loaded (${response.status})`);
+      this.openText(await response.text(), 'community-garden.geojson');
+    } catch (error) {
+      this.message(`The demo site could not be opened: ${error.message ?? error}`);
+    }
+  }
+
+  /// A site file's text: the core checks it first and names what is wrong; a good file fills
+  /// the sketch.
+  openText(text, name) {
+    const checked = JSON.parse(this.core.site_summary_json(text));
+    if (checked.error) {
+      this.message(`${name}: ${checked.error}`);
+      return;
+    }
+    this.message('');
+    const { units, shapes } = shapesFromGeojson(JSON.parse(text));
+    byId('site-units').value = units;
+    this.setSiteUnits(units);
+    this.sketch.load(shapes, units);
+    byId('site-status').textContent = `${name}: ${checked.summary}`;
+  }
+
+  showFeatures() {
+    const list = byId('site-features');
+    list.replaceChildren();
+    this.sketch.features.forEach((feature, index) => {
+      const item = document.createElement('li');
+      const text = document.createElement('span');
+      text.textContent = describe(feature, this.sketch.units);
+      const remove = document.createElement('button');
+      remove.type = 'button';
+      remove.textContent = 'Remove';
+      remove.setAttribute('aria-label', `Remove ${describe(feature, this.sketch.units)}`);
+      remove.addEventListener('click', () => this.sketch.remove(index));
+      item.append(text, ' ', remove);
+      list.append(item);
+    });
+    if (this.sketch.features.length === 0) {
+      const item = document.createElement('li');
+      item.textContent = 'Nothing yet: open a site file, the demo, or draw the outline.';
+      list.append(item);
+    }
+  }
+
+  // ---- growing and sizing ----------------------------------------------------------------
+
+  /// The sketch as a run link; the page opens it (through the address bar) and grows it.
+  grow() {
+    const text = JSON.stringify(this.sketch.geojson());
+    const result = JSON.parse(this.core.site_link_json(text, byId('site-cell').value));
+    if (result.error) {
+      this.message(result.error);
+      return;
+    }
+    this.message('');
+    this.siteText = text;
+    byId('site-status').textContent = result.summary;
+    byId('site-results').hidden = true;
+    this.sized = null;
+    location.hash = result.link;
+    document.querySelector('.field')?.scrollIntoView({ block: 'start' });
+  }
+
+  runEnded() {
+    const site = Boolean(this.state.frame?.site);
+    byId('site-size').disabled = !site;
+    if (site && this.rainGiven()) this.resize();
+  }
+
+  rainGiven() {
+    return byId('site-rain-kind').value === 'constant'
+      ? byId('site-intensity').value.trim() !== ''
+      : ['a', 'b', 'c'].every((k) => byId(`site-idf-${k}`).value.trim() !== '');
+  }
+
+  /// The design storm and sizing rules as the core reads them (texts as typed: the core checks
+  /// each and names the one that is wrong).
+  rulesText() {
+    const idf = byId('site-rain-kind').value === 'idf';
+    return JSON.stringify({
+      system: byId('site-system').value,
+      rain: idf
+        ? { kind: 'idf', a: byId('site-idf-a').value, b: byId('site-idf-b').value, c: byId('site-idf-c').value }
+        : { kind: 'constant', intensity: byId('site-intensity').value },
+      inlet_time: byId('site-inlet').value,
+      conveyance: byId('site-conveyance').value,
+      pipe_sizes: byId('site-pipes').value,
+      manning_n: byId('site-manning').value,
+      min_grade_percent: byId('site-min-grade').value,
+      velocity_min: byId('site-v-min').value,
+      velocity_max: byId('site-v-max').value,
+    });
+  }
+
+  /// Sizes the finished run's channels and shows the tables (`explicit`: the button, which
+  /// also reports a missing storm).
+  resize(explicit = false) {
+    const simulation = this.state.simulation;
+    if (!simulation || !this.state.frame?.site || !simulation.finished()) {
+      if (explicit) this.message('Grow a layout on a site first, and let it finish.');
+      return;
+    }
+    if (!this.rainGiven()) {
+      if (explicit) this.message('Enter the design rainfall from your local records first.');
+      return;
+    }
+    const result = JSON.parse(simulation.drainage_json(this.rulesText()));
+    if (result.error) {
+      this.message(result.error);
+      byId('site-results').hidden = true;
+      return;
+    }
+    this.message('');
+    this.sized = result;
+    this.showResults(result);
+  }
+
+  showResults(result) {
+    byId('site-results').hidden = false;
+    const outlets = byId('site-outlets').tBodies[0];
+    outlets.replaceChildren(...result.outlets.map((outlet) => row([outlet.name, outlet.area_text, outlet.peak_flow_text, outlet.time_text])));
+    const head = byId('site-schedule').tHead;
+    head.replaceChildren(row(result.columns, 'th'));
+    const body = byId('site-schedule').tBodies[0];
+    body.replaceChildren(...result.rows.slice(0, SHOWN_ROWS).map((cells) => row(cells)));
+    const more = result.rows.length > SHOWN_ROWS ? ` The first ${SHOWN_ROWS} of ${result.rows.length} channels are shown; the CSV holds them all.` : '';
+    byId('site-flags').textContent = `${result.flags_text}${more}`;
+  }
+
+  save(extension, what, make, type) {
+    if (!this.sized) {
+      this.message('Size the channels first.');
+      return;
+    }
+    try {
+      const file = `ramulus-site-layout.${extension}`;
+      byId('site-saved').textContent = this.core.saved_text(file, what, download(file, make(), type));
+    } catch (error) {
+      this.message(`The export failed: ${error.message ?? error}`);
+    }
+  }
+
+  message(text) {
+    const box = byId('site-message');
+    box.hidden = !text;
+    box.textContent = text;
+  }
+}
+
+function describe(feature, units) {
+  const label = TOOLS[feature.role]?.label ?? feature.role;
+  if (feature.role === 'zone') return `${label}: ${feature.surface ?? 'zone'}, C ${Number(feature.runoff_coefficient).toFixed(2)}, ${feature.points.length} corners`;
+  if (feature.role === 'obstacle') return `${label}: ${feature.name ?? ''}, ${feature.points.length} corners`;
+  if (feature.role === 'outline') return `${label}: ${feature.points.length} corners`;
+  const [x, y] = feature.points[0];
+  if (feature.role === 'level') return `${label}: ${Number(feature.elevation).toFixed(2)} ${units} at ${x}, ${y}`;
+  return `${label}: ${feature.name ?? ''} at ${x}, ${y}`;
+}
+
+function row(cells, tag = 'td') {
+  const tr = document.createElement('tr');
+  for (const cell of cells) {
+    const td = document.createElement(tag);
+    if (tag === 'th') td.scope = 'col';
+    td.textContent = cell;
+    tr.append(td);
+  }
+  return tr;
+}
