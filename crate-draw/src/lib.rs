@@ -3,7 +3,8 @@
 //! where growth changed them by `screen_growth`), colours
 //! (`palette`), number formats (`format`), the colour key shared by SVG and page (`legend`), the extent and roots the page frames and
 //! marks (`marks`),
-//! the descriptions of the readings plots (`plots`), the scale bar (`scale_bar`) and the
+//! the descriptions of the readings plots (`plots`), the scale bar (`scale_bar`), the drainage
+//! plan (`site_plan`) and the
 //! sentences the page and the command line show (`texts`).
 //!
 //! The core computes; this crate only turns its values into pictures and words. Its inputs are
@@ -21,6 +22,7 @@ pub mod raster;
 pub mod scale_bar;
 pub mod screen;
 pub mod screen_growth;
+pub mod site_plan;
 pub mod svg;
 pub mod texts;
 
