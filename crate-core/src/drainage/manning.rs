@@ -269,13 +269,25 @@ mod tests {
         let pipe = smallest_pipe(&list, 0.013, 0.01, 0.15).unwrap();
         assert_eq!(pipe.diameter, 0.375);
         assert!(pipe.large_enough);
-        assert!((pipe.capacity - 0.17533).abs() < 0.00002, "{}", pipe.capacity);
+        assert!(
+            (pipe.capacity - 0.17533).abs() < 0.00002,
+            "{}",
+            pipe.capacity
+        );
         let small = smallest_pipe(&list, 0.013, 0.01, 0.09).unwrap();
         assert_eq!(small.diameter, 0.3);
-        assert!((small.capacity - 0.09670).abs() < 0.00002, "{}", small.capacity);
+        assert!(
+            (small.capacity - 0.09670).abs() < 0.00002,
+            "{}",
+            small.capacity
+        );
         let too_big = smallest_pipe(&list, 0.013, 0.01, 0.3).unwrap();
         assert_eq!((too_big.diameter, too_big.large_enough), (0.45, false));
-        assert!((too_big.capacity - 0.28511).abs() < 0.00002, "{}", too_big.capacity);
+        assert!(
+            (too_big.capacity - 0.28511).abs() < 0.00002,
+            "{}",
+            too_big.capacity
+        );
         assert!(smallest_pipe(&[], 0.013, 0.01, 0.1).is_none());
     }
 

@@ -44,13 +44,22 @@ impl DesignStorm {
             }
             DesignStorm::IntensityDuration { a, b, c, .. } => {
                 if !(a.is_finite() && a > 0.0) {
-                    return Err(DrainageError::StormCoefficient { name: "a", value: a });
+                    return Err(DrainageError::StormCoefficient {
+                        name: "a",
+                        value: a,
+                    });
                 }
                 if !b.is_finite() {
-                    return Err(DrainageError::StormCoefficient { name: "b", value: b });
+                    return Err(DrainageError::StormCoefficient {
+                        name: "b",
+                        value: b,
+                    });
                 }
                 if !c.is_finite() {
-                    return Err(DrainageError::StormCoefficient { name: "c", value: c });
+                    return Err(DrainageError::StormCoefficient {
+                        name: "c",
+                        value: c,
+                    });
                 }
             }
         }
@@ -65,7 +74,11 @@ impl DesignStorm {
             DesignStorm::Constant { intensity, unit } => (intensity, unit),
             DesignStorm::IntensityDuration { a, b, c, unit } => {
                 let base = duration_minutes + b;
-                let value = if base > 0.0 { a / base.powf(c) } else { f64::NAN };
+                let value = if base > 0.0 {
+                    a / base.powf(c)
+                } else {
+                    f64::NAN
+                };
                 (value, unit)
             }
         };
@@ -111,7 +124,11 @@ mod tests {
             intensity: 0.0,
             unit: UnitSystem::Si,
         };
-        assert!(zero.validate().unwrap_err().to_string().contains("intensity 0"));
+        assert!(zero
+            .validate()
+            .unwrap_err()
+            .to_string()
+            .contains("intensity 0"));
         let nan = DesignStorm::Constant {
             intensity: f64::NAN,
             unit: UnitSystem::Si,
@@ -124,7 +141,10 @@ mod tests {
             unit: UnitSystem::Si,
         };
         let message = negative_a.validate().unwrap_err().to_string();
-        assert!(message.contains("coefficient a") && message.contains("-5"), "{message}");
+        assert!(
+            message.contains("coefficient a") && message.contains("-5"),
+            "{message}"
+        );
         // b = -20 makes t + b negative at t = 10 minutes: no intensity there.
         let negative_base = DesignStorm::IntensityDuration {
             a: 1500.0,

@@ -78,12 +78,48 @@ const DEFAULT_ROWS: [(&str, &str, f64, f64, &str); 16] = [
     ("concrete", "Concrete paving", 0.80, 0.95, HEC22_TABLE),
     ("brick", "Brick paving", 0.70, 0.85, HEC22_TABLE),
     ("drives_walks", "Drives and walks", 0.75, 0.85, HEC22_TABLE),
-    ("lawn_sandy_flat", "Lawn, sandy soil, flat (2 %)", 0.05, 0.10, HEC22_TABLE),
-    ("lawn_sandy_average", "Lawn, sandy soil, average (2-7 %)", 0.10, 0.15, HEC22_TABLE),
-    ("lawn_sandy_steep", "Lawn, sandy soil, steep (7 %)", 0.15, 0.20, HEC22_TABLE),
-    ("lawn_heavy_flat", "Lawn, heavy soil, flat (2 %)", 0.13, 0.17, HEC22_TABLE),
-    ("lawn_heavy_average", "Lawn, heavy soil, average (2-7 %)", 0.18, 0.22, HEC22_TABLE),
-    ("lawn_heavy_steep", "Lawn, heavy soil, steep (7 %)", 0.25, 0.35, HEC22_TABLE),
+    (
+        "lawn_sandy_flat",
+        "Lawn, sandy soil, flat (2 %)",
+        0.05,
+        0.10,
+        HEC22_TABLE,
+    ),
+    (
+        "lawn_sandy_average",
+        "Lawn, sandy soil, average (2-7 %)",
+        0.10,
+        0.15,
+        HEC22_TABLE,
+    ),
+    (
+        "lawn_sandy_steep",
+        "Lawn, sandy soil, steep (7 %)",
+        0.15,
+        0.20,
+        HEC22_TABLE,
+    ),
+    (
+        "lawn_heavy_flat",
+        "Lawn, heavy soil, flat (2 %)",
+        0.13,
+        0.17,
+        HEC22_TABLE,
+    ),
+    (
+        "lawn_heavy_average",
+        "Lawn, heavy soil, average (2-7 %)",
+        0.18,
+        0.22,
+        HEC22_TABLE,
+    ),
+    (
+        "lawn_heavy_steep",
+        "Lawn, heavy soil, steep (7 %)",
+        0.25,
+        0.35,
+        HEC22_TABLE,
+    ),
     ("park", "Parks, cemeteries", 0.10, 0.25, HEC22_TABLE),
     ("playground", "Playgrounds", 0.20, 0.35, HEC22_TABLE),
     ("unimproved", "Unimproved areas", 0.10, 0.30, HEC22_TABLE),
@@ -217,7 +253,11 @@ mod tests {
         // steep 0.25-0.35, asphalt streets 0.70-0.95, concrete 0.80-0.95, roofs 0.75-0.95.
         let table = RunoffTable::default();
         let range = |key: &str| {
-            let row = table.surfaces.iter().find(|row| row.surface == key).unwrap();
+            let row = table
+                .surfaces
+                .iter()
+                .find(|row| row.surface == key)
+                .unwrap();
             (row.low, row.high)
         };
         assert_eq!(range("lawn_sandy_flat"), (0.05, 0.10));
@@ -229,6 +269,9 @@ mod tests {
         let mut edited = table.clone();
         edited.surfaces[0].c = 1.2;
         let message = edited.validate().unwrap_err().to_string();
-        assert!(message.contains("roof") && message.contains("1.2"), "{message}");
+        assert!(
+            message.contains("roof") && message.contains("1.2"),
+            "{message}"
+        );
     }
 }

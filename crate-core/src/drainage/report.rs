@@ -80,7 +80,11 @@ pub fn schedule_csv(site: &SiteHydraulics) -> String {
     ];
     text.push_str(&header.join(","));
     text.push('\n');
-    let size_decimals = if site.pipes && units == UnitSystem::Si { 0 } else { 2 };
+    let size_decimals = if site.pipes && units == UnitSystem::Si {
+        0
+    } else {
+        2
+    };
     for segment in &site.segments {
         let row = [
             segment.segment.to_string(),
@@ -160,13 +164,19 @@ pub fn site_geojson(network: &Network, site: &SiteHydraulics) -> String {
             put("to", json!(segment.to));
             put("length", json!(units.length_from_si(segment.length)));
             put("grade", json!(segment.grade));
-            put("drained_area", json!(units.area_from_si(segment.drained_area)));
+            put(
+                "drained_area",
+                json!(units.area_from_si(segment.drained_area)),
+            );
             put("runoff_coefficient", json!(segment.runoff_coefficient));
             put(
                 "time_of_concentration_min",
                 json!(segment.time_of_concentration),
             );
-            put("intensity", json!(units.intensity_from_si(segment.intensity)));
+            put(
+                "intensity",
+                json!(units.intensity_from_si(segment.intensity)),
+            );
             put("peak_flow", json!(units.flow_from_si(segment.peak_flow)));
             match segment.size {
                 ChannelSize::Pipe { diameter } => {

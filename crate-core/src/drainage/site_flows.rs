@@ -60,8 +60,8 @@ pub struct SizingRules {
 
 /// Common metric nominal pipe diameters, mm (from memory).
 pub const METRIC_PIPE_SIZES_MM: [f64; 14] = [
-    150.0, 225.0, 300.0, 375.0, 450.0, 525.0, 600.0, 675.0, 750.0, 900.0, 1050.0, 1200.0,
-    1350.0, 1500.0,
+    150.0, 225.0, 300.0, 375.0, 450.0, 525.0, 600.0, 675.0, 750.0, 900.0, 1050.0, 1200.0, 1350.0,
+    1500.0,
 ];
 /// Common US nominal pipe diameters, inches (from memory).
 pub const US_PIPE_SIZES_IN: [f64; 14] = [
@@ -151,8 +151,7 @@ impl SizingRules {
                 rule(
                     "swale side_slope",
                     shape.side_slope,
-                    shape.side_slope >= 0.0
-                        && (shape.side_slope > 0.0 || shape.bottom_width > 0.0),
+                    shape.side_slope >= 0.0 && (shape.side_slope > 0.0 || shape.bottom_width > 0.0),
                 )?;
                 rule("swale max_depth", shape.max_depth, shape.max_depth > 0.0)?;
             }
@@ -358,7 +357,11 @@ pub fn size_network(
         return Err(mismatch());
     }
 
-    let mut drained: Vec<f64> = input.node_area.iter().map(|a| a * metres * metres).collect();
+    let mut drained: Vec<f64> = input
+        .node_area
+        .iter()
+        .map(|a| a * metres * metres)
+        .collect();
     let mut runoff_area: Vec<f64> = drained
         .iter()
         .zip(&input.node_runoff)

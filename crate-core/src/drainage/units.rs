@@ -58,9 +58,7 @@ impl UnitSystem {
     pub fn square_metres_per_area(self) -> f64 {
         match self {
             UnitSystem::Si => SQUARE_METRES_PER_HECTARE,
-            UnitSystem::Us => {
-                SQUARE_FEET_PER_ACRE * METRES_PER_FOOT * METRES_PER_FOOT
-            }
+            UnitSystem::Us => SQUARE_FEET_PER_ACRE * METRES_PER_FOOT * METRES_PER_FOOT,
         }
     }
 
@@ -207,7 +205,10 @@ mod tests {
         assert!((acre - 4046.856_422_4).abs() < 1e-9, "{acre}");
         // 1 ha = 2.471 054 acres.
         let hectare_in_acres = UnitSystem::Us.area_from_si(UnitSystem::Si.area_to_si(1.0));
-        assert!((hectare_in_acres - 2.471_054).abs() < 1e-6, "{hectare_in_acres}");
+        assert!(
+            (hectare_in_acres - 2.471_054).abs() < 1e-6,
+            "{hectare_in_acres}"
+        );
     }
 
     #[test]
