@@ -403,7 +403,7 @@ pub fn size_network(
             return Err(mismatch());
         }
         let length = topology.length[node] * metres;
-        if !(length > 0.0) {
+        if length.is_nan() || length <= 0.0 {
             return Err(DrainageError::ZeroLength { segment: index });
         }
         let grade = (input.node_ground[node] - input.node_ground[parent]) * metres / length;

@@ -202,7 +202,7 @@ mod tests {
     fn an_acre_is_4046_856_square_metres() {
         // 43,560 * 0.3048^2 = 4046.8564224 m^2 exactly (NIST Handbook 44, Appendix C).
         let acre = UnitSystem::Us.area_to_si(1.0);
-        assert!((acre - 4046.856_422_4).abs() < 1e-9, "{acre}");
+        assert!((acre - 4_046.856_422_4).abs() < 1e-9, "{acre}");
         // 1 ha = 2.471 054 acres.
         let hectare_in_acres = UnitSystem::Us.area_from_si(UnitSystem::Si.area_to_si(1.0));
         assert!(
