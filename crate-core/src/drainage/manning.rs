@@ -208,8 +208,8 @@ mod tests {
 
     #[test]
     fn us_factor_is_the_cube_root_of_the_foot() {
-        // k_US = (1 m / 1 ft)^(1/3) = 0.3048^(-1/3) = 1.4859 (Chow 1959, sec. 5-6; the 1.49 of
-        // handbooks is this rounded).
+        // k_US = (1 m / 1 ft)^(1/3) = 0.3048^(-1/3) = 1.4859 (Chow 1959, ch. 5, from memory: the
+        // 1.49 of US handbooks is this rounded).
         let exact = FOOT.powf(-1.0 / 3.0);
         assert!((exact - 1.4859).abs() < 1e-4, "{exact}");
         assert!((MANNING_K_US - exact).abs() / exact < 0.003);

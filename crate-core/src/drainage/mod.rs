@@ -74,6 +74,13 @@ pub enum DrainageError {
         /// The value given.
         value: f64,
     },
+    /// A surface the runoff table does not list.
+    UnknownSurface {
+        /// The surface key asked for.
+        surface: String,
+        /// The keys the table lists.
+        known: Vec<String>,
+    },
     /// A per-node input list whose length is not the node count.
     InputLength {
         /// The list (`node_area`, `node_runoff`, `node_ground`).
@@ -156,6 +163,11 @@ impl std::fmt::Display for DrainageError {
                 f,
                 "runoff table, surface {surface:?}: {field} = {value} must lie between 0 and 1 \
                  (and low at most high)"
+            ),
+            DrainageError::UnknownSurface { surface, known } => write!(
+                f,
+                "runoff table has no surface {surface:?}; it lists {}",
+                known.join(", ")
             ),
             DrainageError::InputLength {
                 field,

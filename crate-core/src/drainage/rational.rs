@@ -166,6 +166,19 @@ impl RunoffTable {
             .map(|row| row.c)
     }
 
+    /// The coefficient used for `surface`, or an error naming it and the surfaces listed.
+    pub fn coefficient_of(&self, surface: &str) -> Result<f64, DrainageError> {
+        self.coefficient(surface)
+            .ok_or_else(|| DrainageError::UnknownSurface {
+                surface: surface.to_string(),
+                known: self
+                    .surfaces
+                    .iter()
+                    .map(|row| row.surface.clone())
+                    .collect(),
+            })
+    }
+
     /// Checks every row: coefficients (and range ends) between 0 and 1, the range in order.
     pub fn validate(&self) -> Result<(), DrainageError> {
         for row in &self.surfaces {
@@ -196,8 +209,8 @@ mod tests {
 
     #[test]
     fn si_form_matches_a_published_worked_example() {
-        // Ponce, Engineering Hydrology (San Diego State University course CIVE 445, midterm 2,
-        // problem 1, facets.sdsu.edu): effective intensity 45.48 mm/h on 80 ha (runoff fully
+        // San Diego State University course CIVE 445, midterm 2, problem 1, worked solution
+        // (facets.sdsu.edu/protected29/cive445_midterm_2_problem_1.html): effective intensity 45.48 mm/h on 80 ha (runoff fully
         // effective, C = 1) gives Qp = 10.11 m^3/s.
         let q = peak_flow(1.0, 45.48, 80.0, UnitSystem::Si);
         assert!((q - 10.11).abs() < 0.005, "{q}");
@@ -266,6 +279,11 @@ mod tests {
         assert_eq!(range("concrete"), (0.80, 0.95));
         assert_eq!(range("roof"), (0.75, 0.95));
         assert!(table.validate().is_ok());
+        let unknown = table.coefficient_of("moss").unwrap_err().to_string();
+        assert!(
+            unknown.contains("\"moss\"") && unknown.contains("roof"),
+            "{unknown}"
+        );
         let mut edited = table.clone();
         edited.surfaces[0].c = 1.2;
         let message = edited.validate().unwrap_err().to_string();
