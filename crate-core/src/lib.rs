@@ -6,6 +6,7 @@
 
 pub mod cleared;
 pub mod digest;
+pub mod drainage;
 pub mod fast_libm;
 pub mod fit;
 pub mod growth;
