@@ -24,6 +24,7 @@ pub mod region;
 pub mod run;
 pub mod schema;
 pub mod segments;
+pub mod site_sizing;
 pub mod specimen;
 pub mod utf8_text;
 pub mod veins;

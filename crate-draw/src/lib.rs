@@ -23,6 +23,7 @@ pub mod scale_bar;
 pub mod screen;
 pub mod screen_growth;
 pub mod site_plan;
+pub mod site_texts;
 pub mod svg;
 pub mod texts;
 

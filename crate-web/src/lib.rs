@@ -28,6 +28,11 @@ pub use specimen_image::{
 };
 // ---- end of specimens ----
 
+// ---- drainage sites (issue 12, page side): see site.rs ----
+mod site;
+pub use site::{drainage_defaults_json, runoff_surfaces_json};
+// ---- end of drainage sites ----
+
 pub use memory::RunMemory;
 pub use simulation::Simulation;
 

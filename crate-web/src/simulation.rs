@@ -274,6 +274,52 @@ impl Simulation {
         Ok(run_svg(view, &self.params, colour))
     }
 
+    /// A finished site's channels sized for the design form (JSON texts as typed): the page's
+    /// tables as JSON `{columns, rows, outlets, flags_text, caution}`, or `{error}` naming the
+    /// field or value at fault.
+    pub fn drainage_json(&mut self, form_json: &str) -> Result<String, JsError> {
+        self.view()?;
+        let view = self
+            .view_cache
+            .as_ref()
+            .ok_or_else(|| JsError::new("derived view missing"))?;
+        Ok(crate::site::drainage_tables_json(
+            view,
+            &self.params,
+            form_json,
+        ))
+    }
+
+    /// The channel schedule as CSV (caution first), for the design form.
+    pub fn drainage_csv(&mut self, form_json: &str) -> Result<String, JsError> {
+        self.view()?;
+        let view = self
+            .view_cache
+            .as_ref()
+            .ok_or_else(|| JsError::new("derived view missing"))?;
+        crate::site::drainage_csv(view, &self.params, form_json).map_err(|e| JsError::new(&e))
+    }
+
+    /// The channels with their flows and sizes as GeoJSON, for the design form.
+    pub fn drainage_geojson(&mut self, form_json: &str) -> Result<String, JsError> {
+        self.view()?;
+        let view = self
+            .view_cache
+            .as_ref()
+            .ok_or_else(|| JsError::new("derived view missing"))?;
+        crate::site::drainage_geojson(view, &self.params, form_json).map_err(|e| JsError::new(&e))
+    }
+
+    /// The drainage plan (SVG to a stated map scale), for the design form.
+    pub fn drainage_plan_svg(&mut self, form_json: &str) -> Result<String, JsError> {
+        self.view()?;
+        let view = self
+            .view_cache
+            .as_ref()
+            .ok_or_else(|| JsError::new("derived view missing"))?;
+        crate::site::drainage_plan_svg(view, &self.params, form_json).map_err(|e| JsError::new(&e))
+    }
+
     /// The progress line: `1,234 of 5,000 cells`, with why growth stopped once it has.
     pub fn progress_text(&self) -> String {
         let stopped = match &self.source {

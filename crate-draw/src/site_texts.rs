@@ -1,0 +1,376 @@
+//! Words and numbers of a sized site for people: the page's channel schedule and outlet rows
+//! (`site_tables`), the flag words, and the drainage plan's input (`site_plan_input`) with its
+//! size and flow labels. Units follow the report unit system of the hydraulics.
+
+use ramulus_core::drainage::{ChannelSize, HydraulicFlag, SiteHydraulics, UnitSystem};
+use ramulus_core::params::Params;
+use ramulus_core::site_sizing::{SiteDesign, SizedSite};
+use serde::Serialize;
+
+use crate::format::{fixed, four_digits, grouped};
+use crate::site_plan::{PlanArea, PlanAreaKind, PlanChannel, PlanInput, PlanOutlet};
+
+/// The page's tables of a sized site.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct SiteTables {
+    /// Column headings of the schedule, units included.
+    pub columns: Vec<String>,
+    /// One row of texts per channel segment, in segment order.
+    pub rows: Vec<Vec<String>>,
+    /// One entry per outlet.
+    pub outlets: Vec<OutletRow>,
+    /// A sentence counting the flagged channels by flag, or saying none is flagged.
+    pub flags_text: String,
+}
+
+/// One outlet's texts.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct OutletRow {
+    /// "outlet 1", ...
+    pub name: String,
+    /// Contributing area with its unit.
+    pub area_text: String,
+    /// Peak flow with its unit.
+    pub peak_flow_text: String,
+    /// Time of concentration in minutes.
+    pub time_text: String,
+}
+
+/// What a flag says to a designer.
+pub fn flag_words(flag: HydraulicFlag) -> &'static str {
+    match flag {
+        HydraulicFlag::Uphill => "runs uphill",
+        HydraulicFlag::BelowMinimumGrade => "flatter than the least grade",
+        HydraulicFlag::TooFast => "faster than the scour limit",
+        HydraulicFlag::TooSlow => "slower than the self-cleansing limit",
+        HydraulicFlag::NoPipeLargeEnough => "no pipe on the list is large enough",
+        HydraulicFlag::SwaleTooDeep => "swale deeper than allowed",
+    }
+}
+
+const ALL_FLAGS: [HydraulicFlag; 6] = [
+    HydraulicFlag::Uphill,
+    HydraulicFlag::BelowMinimumGrade,
+    HydraulicFlag::TooFast,
+    HydraulicFlag::TooSlow,
+    HydraulicFlag::NoPipeLargeEnough,
+    HydraulicFlag::SwaleTooDeep,
+];
+
+/// A contributing area in the report units: m² below a tenth of a hectare, else ha (acres in
+/// US units, ft² below a tenth of an acre).
+pub fn area_text(square_metres: f64, units: UnitSystem) -> String {
+    match units {
+        UnitSystem::Si if square_metres < 1000.0 => format!("{} m²", four_digits(square_metres)),
+        UnitSystem::Si => format!("{} ha", four_digits(square_metres / 10_000.0)),
+        UnitSystem::Us => {
+            let acres = units.area_from_si(square_metres);
+            if acres < 0.1 {
+                format!("{} ft²", four_digits(acres * SQUARE_FEET_PER_ACRE))
+            } else {
+                format!("{} acres", four_digits(acres))
+            }
+        }
+    }
+}
+
+/// Square feet in an acre (by definition, 43,560).
+const SQUARE_FEET_PER_ACRE: f64 = 43_560.0;
+
+/// A flow with its unit (m³/s or ft³/s), four significant digits.
+pub fn flow_text(cubic_metres_per_second: f64, units: UnitSystem) -> String {
+    let unit = match units {
+        UnitSystem::Si => "m³/s",
+        UnitSystem::Us => "ft³/s",
+    };
+    format!(
+        "{} {unit}",
+        four_digits(units.flow_from_si(cubic_metres_per_second))
+    )
+}
+
+/// A size as drawn on the plan: "Ø300" (mm) or "Ø12 in", or a swale's flow depth.
+pub fn size_text(size: ChannelSize, units: UnitSystem) -> String {
+    match (size, units) {
+        (ChannelSize::Pipe { diameter }, UnitSystem::Si) => {
+            format!("Ø{}", fixed(diameter * 1000.0, 0))
+        }
+        (ChannelSize::Pipe { diameter }, UnitSystem::Us) => {
+            format!("Ø{} in", fixed(units.diameter_from_si(diameter), 0))
+        }
+        (ChannelSize::Swale { depth }, _) => format!(
+            "swale {} {} deep",
+            four_digits(units.length_from_si(depth)),
+            units.length_unit()
+        ),
+    }
+}
+
+/// The schedule, outlets and flag summary of a sized site.
+pub fn site_tables(site: &SiteHydraulics) -> SiteTables {
+    let units = site.report_units;
+    let length = units.length_unit();
+    let columns = vec![
+        "Channel".to_string(),
+        "From → to".into(),
+        format!("Length ({length})"),
+        "Grade (%)".into(),
+        "Drained area".into(),
+        "C".into(),
+        "t_c (min)".into(),
+        format!("i ({})", intensity_unit(units)),
+        "Peak flow".into(),
+        if site.pipes {
+            "Pipe".into()
+        } else {
+            "Swale".into()
+        },
+        format!("Velocity ({})", units.velocity_unit()),
+        "Look at".into(),
+    ];
+    let rows = site
+        .segments
+        .iter()
+        .map(|segment| {
+            vec![
+                (segment.segment + 1).to_string(),
+                format!("{} → {}", segment.from, segment.to),
+                fixed(units.length_from_si(segment.length), 2),
+                fixed(segment.grade * 100.0, 2),
+                area_text(segment.drained_area, units),
+                fixed(segment.runoff_coefficient, 2),
+                fixed(segment.time_of_concentration, 1),
+                four_digits(units.intensity_from_si(segment.intensity)),
+                flow_text(segment.peak_flow, units),
+                size_text(segment.size, units),
+                fixed(units.velocity_from_si(segment.velocity), 2),
+                segment
+                    .flags
+                    .iter()
+                    .map(|&flag| flag_words(flag))
+                    .collect::<Vec<_>>()
+                    .join("; "),
+            ]
+        })
+        .collect();
+    let outlets = site
+        .outlets
+        .iter()
+        .enumerate()
+        .map(|(k, outlet)| OutletRow {
+            name: format!("outlet {}", k + 1),
+            area_text: area_text(outlet.contributing_area, units),
+            peak_flow_text: flow_text(outlet.peak_flow, units),
+            time_text: format!("{} min", fixed(outlet.time_of_concentration, 1)),
+        })
+        .collect();
+    SiteTables {
+        columns,
+        rows,
+        outlets,
+        flags_text: flags_summary(site),
+    }
+}
+
+fn intensity_unit(units: UnitSystem) -> &'static str {
+    units.intensity_unit()
+}
+
+/// "No channel is flagged." or "Flagged: 12 run uphill, 3 ... (of 240 channels)."
+pub fn flags_summary(site: &SiteHydraulics) -> String {
+    let counts: Vec<String> = ALL_FLAGS
+        .iter()
+        .filter_map(|&flag| {
+            let count = site
+                .segments
+                .iter()
+                .filter(|segment| segment.flags.contains(&flag))
+                .count();
+            (count > 0).then(|| format!("{} {}", grouped(count as u64), flag_words(flag)))
+        })
+        .collect();
+    if counts.is_empty() {
+        format!(
+            "No channel is flagged (of {}).",
+            grouped(site.segments.len() as u64)
+        )
+    } else {
+        format!(
+            "Flagged channels (of {}): {}. Flagged channels are drawn dashed in red on the plan.",
+            grouped(site.segments.len() as u64),
+            counts.join(", ")
+        )
+    }
+}
+
+/// The drainage plan's input for a sized run: the outline and kept-clear areas of the
+/// parameters, every channel with its size and flow, the outlets with their area and flow, the
+/// design notes and `caution`.
+pub fn site_plan_input(
+    sized: &SizedSite,
+    params: &Params,
+    design: &SiteDesign,
+    caution: &str,
+    metadata_json: String,
+) -> PlanInput {
+    let site = &sized.hydraulics;
+    let units = site.report_units;
+    let cell = params.domain.cell_size;
+    let to_units = |points: &[[f64; 2]]| -> Vec<[f64; 2]> {
+        points.iter().map(|p| [p[0] * cell, p[1] * cell]).collect()
+    };
+    let mut areas = Vec::new();
+    if let Some(outline) = &params.domain.outline {
+        areas.push(PlanArea {
+            kind: PlanAreaKind::Outline,
+            ring: to_units(&polygon_points(outline)),
+            label: String::new(),
+        });
+    } else {
+        let (w, h) = (
+            params.domain.width as f64 * cell,
+            params.domain.height as f64 * cell,
+        );
+        areas.push(PlanArea {
+            kind: PlanAreaKind::Outline,
+            ring: vec![[0.0, 0.0], [w, 0.0], [w, h], [0.0, h]],
+            label: String::new(),
+        });
+    }
+    for obstacle in &params.domain.obstacles {
+        areas.push(PlanArea {
+            kind: PlanAreaKind::KeptClear,
+            ring: to_units(&polygon_points(obstacle)),
+            label: "kept clear".into(),
+        });
+    }
+    let largest = site
+        .segments
+        .iter()
+        .map(|segment| size_metres(segment.size))
+        .fold(0.0, f64::max);
+    let channels = site
+        .segments
+        .iter()
+        .map(|segment| {
+            let from = &sized.network.nodes[segment.from as usize];
+            let to = &sized.network.nodes[segment.to as usize];
+            let share = if largest > 0.0 {
+                size_metres(segment.size) / largest
+            } else {
+                0.0
+            };
+            PlanChannel {
+                from_node: segment.from as usize,
+                to_node: segment.to as usize,
+                from: [from.x, from.y],
+                to: [to.x, to.y],
+                size_label: size_text(segment.size, units),
+                flow_label: flow_text(segment.peak_flow, units),
+                width_mm: 0.35 + 1.4 * share,
+                flagged: !segment.flags.is_empty(),
+            }
+        })
+        .collect();
+    let outlets = site
+        .outlets
+        .iter()
+        .enumerate()
+        .filter_map(|(k, outlet)| {
+            let node = sized.network.nodes.get(outlet.node as usize)?;
+            Some(PlanOutlet {
+                at: [node.x, node.y],
+                label: format!(
+                    "outlet {}: {}, {}",
+                    k + 1,
+                    area_text(outlet.contributing_area, units),
+                    flow_text(outlet.peak_flow, units)
+                ),
+            })
+        })
+        .collect();
+    let mut notes = vec![storm_words(design), rules_words(design)];
+    notes.push(flags_summary(site));
+    PlanInput {
+        title: "Ramulus drainage concept plan".into(),
+        units: params.domain.units.clone(),
+        areas,
+        channels,
+        outlets,
+        notes,
+        caution: caution.to_string(),
+        metadata_json,
+    }
+}
+
+fn size_metres(size: ChannelSize) -> f64 {
+    match size {
+        ChannelSize::Pipe { diameter } => diameter,
+        ChannelSize::Swale { depth } => depth,
+    }
+}
+
+fn polygon_points(polygon: &[[f64; 2]]) -> Vec<[f64; 2]> {
+    polygon.to_vec()
+}
+
+/// The design storm in words, e.g. "Design rainfall: 75 mm/h for every duration (from the
+/// user's local records)."
+pub fn storm_words(design: &SiteDesign) -> String {
+    use ramulus_core::drainage::DesignStorm;
+    match design.storm {
+        DesignStorm::Constant { intensity, unit } => format!(
+            "Design rainfall: {} {} for every duration, as entered from local records.",
+            four_digits(intensity),
+            unit.intensity_unit()
+        ),
+        DesignStorm::IntensityDuration { a, b, c, unit } => format!(
+            "Design rainfall: i = {} / (t + {})^{} {} (t in minutes), as entered from local records; each channel takes i at its time of concentration.",
+            four_digits(a),
+            four_digits(b),
+            four_digits(c),
+            unit.intensity_unit()
+        ),
+    }
+}
+
+/// The sizing rules in words.
+pub fn rules_words(design: &SiteDesign) -> String {
+    let rules = &design.rules;
+    let units = design.system;
+    format!(
+        "Rational Method peak flows; sizes by Manning's equation with n = {}; inlet time {} min; least grade {} %; velocity limits {} to {} {}.",
+        four_digits(rules.manning_n),
+        four_digits(rules.inlet_time_minutes),
+        four_digits(rules.min_grade * 100.0),
+        four_digits(units.velocity_from_si(rules.min_velocity)),
+        four_digits(units.velocity_from_si(rules.max_velocity)),
+        units.velocity_unit()
+    )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn areas_switch_to_hectares_and_acres() {
+        // 1 ha = 10,000 m²; 1 acre = 43,560 ft² = 4046.856 m² (exact foot of 1959).
+        assert_eq!(area_text(500.0, UnitSystem::Si), "500 m²");
+        assert_eq!(area_text(25_000.0, UnitSystem::Si), "2.5 ha");
+        assert_eq!(area_text(4046.856_422_4, UnitSystem::Us), "1 acres");
+    }
+
+    #[test]
+    fn us_pipes_are_labelled_in_inches() {
+        // 0.3048 m = 12 in exactly.
+        assert_eq!(
+            size_text(ChannelSize::Pipe { diameter: 0.3048 }, UnitSystem::Us),
+            "Ø12 in"
+        );
+        assert_eq!(
+            size_text(ChannelSize::Pipe { diameter: 0.3 }, UnitSystem::Si),
+            "Ø300"
+        );
+    }
+}

@@ -1,0 +1,121 @@
+//! Drainage sites for the page: the runoff table and the sizing defaults of each unit system
+//! (`runoff_surfaces_json`, `drainage_defaults_json`), and the texts of a sized run (tables,
+//! CSV, GeoJSON, plan) that `Simulation`'s drainage methods return. Computing is the core's,
+//! words and drawing `ramulus-draw`'s.
+
+use ramulus_core::drainage::{
+    schedule_csv, site_geojson, Conveyance, RunoffTable, SizingRules, UnitSystem,
+};
+use ramulus_core::params::Params;
+use ramulus_core::run::{RunView, SITE_CAUTION};
+use ramulus_core::site_sizing::{read_sizing_form, size_run, SiteDesign, SizedSite};
+use ramulus_draw::site_plan::plan_svg;
+use ramulus_draw::site_texts::{site_plan_input, site_tables};
+use serde_json::json;
+use wasm_bindgen::prelude::*;
+
+/// The runoff table's surfaces as `[{surface, coefficient, low, high, source}]` (HEC-22's
+/// ranges; the coefficient offered is the upper end).
+#[wasm_bindgen]
+pub fn runoff_surfaces_json() -> String {
+    let rows: Vec<_> = RunoffTable::default()
+        .surfaces
+        .into_iter()
+        .map(|row| {
+            json!({ "surface": row.label, "key": row.surface, "coefficient": row.c,
+                    "low": row.low, "high": row.high, "source": row.source })
+        })
+        .collect();
+    serde_json::Value::Array(rows).to_string()
+}
+
+/// The design form's defaults and unit labels for `si` or `us`: pipe sizes (mm or in),
+/// velocity limits, and the unit of each quantity.
+#[wasm_bindgen]
+pub fn drainage_defaults_json(system: &str) -> String {
+    let system = if system == "us" {
+        UnitSystem::Us
+    } else {
+        UnitSystem::Si
+    };
+    let rules = SizingRules::pipes(system);
+    let pipe_sizes: Vec<f64> = match &rules.conveyance {
+        Conveyance::Pipes { diameters } => diameters
+            .iter()
+            .map(|&d| (system.diameter_from_si(d) * 1000.0).round() / 1000.0)
+            .collect(),
+        Conveyance::Swale(_) => Vec::new(),
+    };
+    let round = |v: f64| (v * 100.0).round() / 100.0;
+    json!({
+        "pipe_sizes": pipe_sizes,
+        "velocity_min": round(system.velocity_from_si(rules.min_velocity)),
+        "velocity_max": round(system.velocity_from_si(rules.max_velocity)),
+        "units": {
+            "intensity": system.intensity_unit(),
+            "diameter": system.diameter_unit(),
+            "velocity": system.velocity_unit(),
+            "length": system.length_unit(),
+        },
+    })
+    .to_string()
+}
+
+/// A run sized for the design form `form_json`, or the message naming what is wrong.
+pub(crate) fn sized(
+    view: &RunView,
+    params: &Params,
+    form_json: &str,
+) -> Result<(SizedSite, SiteDesign), String> {
+    let design = read_sizing_form(form_json).map_err(|error| error.to_string())?;
+    let sized = size_run(view, params, &design).map_err(|error| error.to_string())?;
+    Ok((sized, design))
+}
+
+/// The page's tables as JSON `{columns, rows, outlets, flags_text, caution}`, or `{error}`.
+pub(crate) fn drainage_tables_json(view: &RunView, params: &Params, form_json: &str) -> String {
+    match sized(view, params, form_json) {
+        Ok((sized, _)) => {
+            let tables = site_tables(&sized.hydraulics);
+            let mut value = serde_json::to_value(&tables).unwrap_or_else(|_| json!({}));
+            value["caution"] = json!(SITE_CAUTION);
+            value.to_string()
+        }
+        Err(message) => json!({ "error": message }).to_string(),
+    }
+}
+
+/// The schedule as CSV.
+pub(crate) fn drainage_csv(
+    view: &RunView,
+    params: &Params,
+    form_json: &str,
+) -> Result<String, String> {
+    sized(view, params, form_json).map(|(sized, _)| schedule_csv(&sized.hydraulics))
+}
+
+/// The channels as GeoJSON.
+pub(crate) fn drainage_geojson(
+    view: &RunView,
+    params: &Params,
+    form_json: &str,
+) -> Result<String, String> {
+    sized(view, params, form_json).map(|(sized, _)| site_geojson(&sized.network, &sized.hydraulics))
+}
+
+/// The drainage plan as SVG.
+pub(crate) fn drainage_plan_svg(
+    view: &RunView,
+    params: &Params,
+    form_json: &str,
+) -> Result<String, String> {
+    let (sized, design) = sized(view, params, form_json)?;
+    let metadata = json!({ "params": params, "digest": view.digest }).to_string();
+    Ok(plan_svg(&site_plan_input(
+        &sized,
+        params,
+        &design,
+        SITE_CAUTION,
+        metadata,
+    )))
+}
