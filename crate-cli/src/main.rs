@@ -11,6 +11,7 @@ macro_rules! say {
 
 mod bench;
 mod commands;
+mod drain;
 mod fit_bench;
 mod fit_command;
 mod image_bench;
@@ -56,6 +57,8 @@ enum Command {
     Presets(PresetsOptions),
     /// Time growth on fixed cases: cells per second, peak bytes per cell
     Bench(BenchOptions),
+    /// Grow a drainage layout on a site and size its channels for a design storm
+    Drain(drain::DrainOptions),
     /// Fit growth parameters to a specimen: posterior intervals, sensitivity, best run
     Fit(fit_command::FitOptions),
     /// Combine the shard files of a fit run as a job array
@@ -71,6 +74,7 @@ fn main() -> ExitCode {
         Command::Measure(options) => commands::measure(options),
         Command::Presets(options) => commands::presets(options),
         Command::Bench(options) => bench::run(options),
+        Command::Drain(options) => drain::drain(options),
         Command::Fit(options) => fit_command::fit(options),
         Command::Merge(options) => fit_command::merge(options),
     };

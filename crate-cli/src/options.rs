@@ -290,7 +290,7 @@ pub struct BenchOptions {
 }
 
 /// Accepts a `--set` value of the form KEY=VALUE (an empty VALUE is allowed).
-fn key_equals_value(text: &str) -> Result<String, String> {
+pub(crate) fn key_equals_value(text: &str) -> Result<String, String> {
     match text.split_once('=') {
         Some((key, _)) if !key.trim().is_empty() => Ok(text.to_string()),
         _ => Err("needs the form KEY=VALUE, e.g. seed=9".to_string()),

@@ -33,9 +33,7 @@ pub use site_flows::{
 pub use units::UnitSystem;
 
 /// The caution every output of site flows or sizes carries.
-pub const DRAINAGE_CAUTION: &str = "CAUTION: results are for concept layouts only, not a \
-drainage design. The design rainfall must come from local rainfall records, and a licensed \
-engineer must check the design against local stormwater codes.";
+pub const DRAINAGE_CAUTION: &str = crate::run::SITE_CAUTION;
 
 /// Why drainage figures cannot be computed: each names the field and the value (and the node
 /// or segment) that is wrong.

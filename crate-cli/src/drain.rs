@@ -1,0 +1,272 @@
+//! The `drain` command: grows a drainage layout on a site (a site file, a preset or a run link),
+//! sizes every channel for the design storm given on the command line, and prints or writes the
+//! schedule, the channels as GeoJSON and the plan, each with the concept-design caution.
+
+use clap::Args;
+use ramulus_core::drainage::{schedule_csv, site_geojson};
+use ramulus_core::growth::Growth;
+use ramulus_core::params::Params;
+use ramulus_core::run::{RunView, SITE_CAUTION};
+use ramulus_core::site_sizing::{size_run, RainForm, SizingForm};
+use ramulus_draw::site_plan::plan_svg;
+use ramulus_draw::site_texts::{flags_summary, site_plan_input, site_tables};
+use serde_json::json;
+
+use crate::commands::link_parameters;
+use crate::options::{assemble_params, key_equals_value, CliError};
+use crate::output::OutputPlan;
+
+/// Options of `ramulus drain`; the doc comments are its help text.
+#[derive(Default, Args)]
+#[command(after_help = DRAIN_NOTES)]
+pub struct DrainOptions {
+    /// Start from this named parameter set (default: drainage-site)
+    #[arg(long, value_name = "NAME", conflicts_with = "link")]
+    pub preset: Option<String>,
+    /// Start from a run link copied from the page (a URL or its #fragment)
+    #[arg(long, value_name = "LINK", value_parser = clap::value_parser!(std::ffi::OsString))]
+    pub link: Option<std::ffi::OsString>,
+    /// Override one growth parameter (KEY=VALUE); repeat for more keys
+    #[arg(long = "set", value_name = "KEY=VALUE", value_parser = key_equals_value)]
+    pub sets: Vec<String>,
+    /// Design rainfall intensity from local records, mm/h (or in/h
+    /// with --units us), the same for every duration
+    #[arg(
+        long,
+        value_name = "VALUE",
+        conflicts_with = "idf",
+        verbatim_doc_comment
+    )]
+    pub intensity: Option<String>,
+    /// Intensity-duration relation i = A / (t + B)^C from local
+    /// records (t in minutes; i in mm/h, or in/h with --units us)
+    #[arg(long, value_name = "A,B,C", verbatim_doc_comment)]
+    pub idf: Option<String>,
+    /// Units of the results and of the values given: si (m, ha,
+    /// m³/s, mm/h, mm pipes) or us (ft, acres, ft³/s, in/h, inch
+    /// pipes), whatever the site's own length unit
+    #[arg(long, value_name = "SYSTEM", default_value = "si", value_parser = ["si", "us"], verbatim_doc_comment)]
+    pub units: String,
+    /// Inlet (overland) time, minutes (default 5)
+    #[arg(long = "inlet-time", value_name = "MIN")]
+    pub inlet_time: Option<String>,
+    /// Nominal pipe diameters to choose from, mm or in (default: a
+    /// common list of the unit system)
+    #[arg(long, value_name = "LIST", verbatim_doc_comment)]
+    pub pipes: Option<String>,
+    /// Size grassed swales instead of pipes
+    #[arg(long)]
+    pub swale: bool,
+    /// Manning's n of the channels (default 0.013 for pipes, 0.030
+    /// for swales)
+    #[arg(long = "manning-n", value_name = "N", verbatim_doc_comment)]
+    pub manning_n: Option<String>,
+    /// Least grade, percent (default 0.5)
+    #[arg(long = "min-grade", value_name = "PERCENT")]
+    pub min_grade: Option<String>,
+    /// Write the plan drawing (SVG, to a stated map scale)
+    #[arg(long = "svg", value_name = "OUT.svg")]
+    pub svg_file: Option<String>,
+    /// Write the channels with their flows and sizes (GeoJSON)
+    #[arg(long = "geojson", value_name = "OUT.geojson")]
+    pub geojson_file: Option<String>,
+    /// Write the channel schedule (CSV)
+    #[arg(long = "csv", value_name = "OUT.csv")]
+    pub csv_file: Option<String>,
+    /// Print exactly one JSON object on stdout instead of the tables
+    #[arg(long)]
+    pub json: bool,
+}
+
+const DRAIN_NOTES: &str = "\
+The design rainfall has no default: give --intensity or --idf from your local records.
+CAUTION: layouts, flows and sizes are for concept design only. A licensed engineer must
+check any design against local stormwater codes before anything is built.";
+
+/// `ramulus drain`.
+pub fn drain(options: DrainOptions) -> Result<(), CliError> {
+    let mut plan = OutputPlan::default();
+    for (flag, path) in [
+        ("--svg", &options.svg_file),
+        ("--geojson", &options.geojson_file),
+        ("--csv", &options.csv_file),
+    ] {
+        if let Some(path) = path {
+            plan.output(flag, path)?;
+        }
+    }
+    let form = design_form(&options)?;
+    let design = form
+        .design()
+        .map_err(|error| CliError::Failed(format!("design storm and sizing: {error}")))?;
+    let params = drain_params(&options)?;
+    if !params.is_site() {
+        return Err(CliError::Failed(format!(
+            "a site's lengths are in m or ft; these parameters are in {:?} (a leaf?): use \
+             --preset drainage-site, a site's run link, or --set units=m",
+            params.domain.units
+        )));
+    }
+    let mut growth = Growth::new(&params).map_err(|error| CliError::Failed(error.to_string()))?;
+    growth.run();
+    let view = RunView::new(growth.network(), &params)
+        .map_err(|error| CliError::Failed(format!("internal: {error}")))?;
+    let sized =
+        size_run(&view, &params, &design).map_err(|error| CliError::Failed(error.to_string()))?;
+    let site = &sized.hydraulics;
+
+    if let Some(path) = &options.csv_file {
+        plan.stage(path, &schedule_csv(site))?;
+    }
+    if let Some(path) = &options.geojson_file {
+        plan.stage(path, &site_geojson(&sized.network, site))?;
+    }
+    if let Some(path) = &options.svg_file {
+        let metadata = json!({ "params": params, "digest": view.digest }).to_string();
+        let input = site_plan_input(&sized, &params, &design, SITE_CAUTION, metadata);
+        plan.stage(path, &plan_svg(&input))?;
+    }
+    plan.commit()?;
+
+    let units = design.system;
+    if options.json {
+        let outlets: Vec<_> = site
+            .outlets
+            .iter()
+            .map(|outlet| {
+                json!({
+                    "node": outlet.node,
+                    "area": units.area_from_si(outlet.contributing_area),
+                    "runoff_coefficient": outlet.runoff_coefficient,
+                    "time_of_concentration": outlet.time_of_concentration,
+                    "intensity": units.intensity_from_si(outlet.intensity),
+                    "peak_flow": units.flow_from_si(outlet.peak_flow),
+                })
+            })
+            .collect();
+        let segments: Vec<_> = site
+            .segments
+            .iter()
+            .map(|segment| {
+                let mut value = json!({
+                    "segment": segment.segment,
+                    "from": segment.from,
+                    "to": segment.to,
+                    "length": units.length_from_si(segment.length),
+                    "grade": segment.grade,
+                    "area": units.area_from_si(segment.drained_area),
+                    "runoff_coefficient": segment.runoff_coefficient,
+                    "time_of_concentration": segment.time_of_concentration,
+                    "intensity": units.intensity_from_si(segment.intensity),
+                    "peak_flow": units.flow_from_si(segment.peak_flow),
+                    "roughness": segment.manning_n,
+                    "velocity": units.velocity_from_si(segment.velocity),
+                    "flags": segment.flags.iter().map(|flag| flag.key()).collect::<Vec<_>>(),
+                });
+                match segment.size {
+                    ramulus_core::drainage::ChannelSize::Pipe { diameter } => {
+                        value["diameter"] = json!(units.length_from_si(diameter));
+                    }
+                    ramulus_core::drainage::ChannelSize::Swale { depth } => {
+                        value["swale"] = json!({ "depth": units.length_from_si(depth) });
+                    }
+                }
+                value
+            })
+            .collect();
+        say!(
+            "{}",
+            json!({
+                "caution": SITE_CAUTION,
+                "units": {
+                    "system": options.units,
+                    "length": units.length_unit(),
+                    "area": units.area_unit(),
+                    "flow": units.flow_unit(),
+                    "intensity": units.intensity_unit(),
+                    "velocity": units.velocity_unit(),
+                    "diameter": units.length_unit(),
+                },
+                "seed": params.run.seed,
+                "digest": view.digest,
+                "outlets": outlets,
+                "segments": segments,
+            })
+        );
+        return Ok(());
+    }
+    let tables = site_tables(site);
+    say!("CAUTION: {SITE_CAUTION}");
+    say!("");
+    say!("Outlets");
+    for outlet in &tables.outlets {
+        say!(
+            "  {}: contributing area {}, peak flow {}, time of concentration {}",
+            outlet.name,
+            outlet.area_text,
+            outlet.peak_flow_text,
+            outlet.time_text
+        );
+    }
+    say!("");
+    say!(
+        "{} channel segments. {}",
+        site.segments.len(),
+        flags_summary(site)
+    );
+    say!("Channel schedule: --csv FILE writes every row; --svg FILE the plan.");
+    Ok(())
+}
+
+fn design_form(options: &DrainOptions) -> Result<SizingForm, CliError> {
+    let rain = match (&options.intensity, &options.idf) {
+        (Some(intensity), None) => RainForm {
+            kind: "constant".into(),
+            intensity: intensity.clone(),
+            ..RainForm::default()
+        },
+        (None, Some(idf)) => {
+            let parts: Vec<&str> = idf.split(',').collect();
+            let [a, b, c] = parts.as_slice() else {
+                return Err(CliError::Usage(format!(
+                    "`--idf {idf}` needs three numbers A,B,C for i = A / (t + B)^C"
+                )));
+            };
+            RainForm {
+                kind: "idf".into(),
+                a: a.to_string(),
+                b: b.to_string(),
+                c: c.to_string(),
+                ..RainForm::default()
+            }
+        }
+        _ => {
+            return Err(CliError::Usage(
+                "give the design rainfall from your local records: --intensity VALUE or \
+                 --idf A,B,C (there is no default)"
+                    .into(),
+            ))
+        }
+    };
+    Ok(SizingForm {
+        system: options.units.clone(),
+        rain,
+        inlet_time: options.inlet_time.clone().unwrap_or_default(),
+        conveyance: if options.swale { "swale" } else { "pipe" }.into(),
+        pipe_sizes: options.pipes.clone().unwrap_or_default(),
+        manning_n: options.manning_n.clone().unwrap_or_default(),
+        min_grade_percent: options.min_grade.clone().unwrap_or_default(),
+        velocity_min: String::new(),
+        velocity_max: String::new(),
+    })
+}
+
+fn drain_params(options: &DrainOptions) -> Result<Params, CliError> {
+    let link = link_parameters(options.link.as_deref())?;
+    let preset = if link.is_none() {
+        Some(options.preset.as_deref().unwrap_or("drainage-site"))
+    } else {
+        None
+    };
+    assemble_params(link, preset, None, &options.sets, None)
+}
