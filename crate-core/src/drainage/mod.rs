@@ -32,9 +32,10 @@ pub use site_flows::{
 };
 pub use units::UnitSystem;
 
-/// The caution every output of site flows or sizes carries.
-pub const DRAINAGE_CAUTION: &str = "CAUTION: results are for concept layouts only, not a \
-drainage design. The design rainfall must come from local rainfall records, and a licensed \
+/// The caution every output of site flows or sizes carries (no comma, so it stays one CSV
+/// field).
+pub const DRAINAGE_CAUTION: &str = "CAUTION: results are for concept layouts only and are not \
+a drainage design. The design rainfall must come from local rainfall records. A licensed \
 engineer must check the design against local stormwater codes.";
 
 /// Why drainage figures cannot be computed: each names the field and the value (and the node
