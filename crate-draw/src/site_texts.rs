@@ -358,7 +358,7 @@ mod tests {
         // 1 ha = 10,000 m²; 1 acre = 43,560 ft² = 4046.856 m² (exact foot of 1959).
         assert_eq!(area_text(500.0, UnitSystem::Si), "500 m²");
         assert_eq!(area_text(25_000.0, UnitSystem::Si), "2.5 ha");
-        assert_eq!(area_text(4046.856_422_4, UnitSystem::Us), "1 acres");
+        assert_eq!(area_text(4_046.856_422_4, UnitSystem::Us), "1 acres");
     }
 
     #[test]

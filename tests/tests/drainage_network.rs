@@ -306,6 +306,15 @@ fn reports_carry_the_caution_and_the_units() {
     let csv = schedule_csv(&us);
     let mut lines = csv.lines();
     assert_eq!(lines.next().unwrap(), format!("# {DRAINAGE_CAUTION}"));
+    // The caution line is one CSV field, and says all three things.
+    assert!(!DRAINAGE_CAUTION.contains(',') && !DRAINAGE_CAUTION.contains('"'));
+    for part in [
+        "concept layouts only",
+        "local rainfall records",
+        "licensed engineer",
+    ] {
+        assert!(DRAINAGE_CAUTION.contains(part), "{part}");
+    }
     let header = lines.next().unwrap();
     for unit in [
         "(ft)",

@@ -32,7 +32,8 @@ pub use site_flows::{
 };
 pub use units::UnitSystem;
 
-/// The caution every output of site flows or sizes carries.
+/// The caution every output of site flows or sizes carries: the one site caution (it holds no
+/// comma, so it stays one CSV field).
 pub const DRAINAGE_CAUTION: &str = crate::run::SITE_CAUTION;
 
 /// Why drainage figures cannot be computed: each names the field and the value (and the node
