@@ -231,7 +231,7 @@ pub fn width_rule(params: &Params) -> WidthRule {
 }
 
 /// Caution carried by every drainage output (SVG, record, command line, page).
-pub const SITE_CAUTION: &str = "Concept layout only: flows and sizes are rough estimates for \
+pub const SITE_CAUTION: &str = "Concept layouts only: flows and sizes are rough estimates for \
 early design and are not a drainage design. The design rainfall must come from local rainfall \
 records. A licensed engineer must check the design against local stormwater codes before \
 anything is built.";

@@ -309,7 +309,7 @@ fn reports_carry_the_caution_and_the_units() {
     // The caution line is one CSV field, and says all three things.
     assert!(!DRAINAGE_CAUTION.contains(',') && !DRAINAGE_CAUTION.contains('"'));
     for part in [
-        "concept layouts only",
+        "Concept layouts only",
         "local rainfall records",
         "licensed engineer",
     ] {
