@@ -1,0 +1,133 @@
+// The drainage-site panel in headless Chromium, as a designer uses it: open the demo site,
+// enter a design rainfall, grow the layout, read the outlets and the schedule, export the plan
+// and the schedule; and sketch a site by clicking. Outside references: the Rational Method
+// Q = C i A / 360 (Q in m³/s, i in mm/h, A in ha; US FHWA HEC-22, the Rational Method
+// equation) checked on the exported schedule's rows, and the native command line's
+// `ramulus drain` on the same run link (a separate path from the page's wasm).
+// Screenshots go to artifacts/e2e/site-*.png.
+import { after, before, test } from 'node:test';
+import assert from 'node:assert/strict';
+import { execFileSync } from 'node:child_process';
+import path from 'node:path';
+import {
+  finishedDigest, fragmentOf, launchBrowser, newPage, root, screenshot, serveSite,
+} from './support.mjs';
+
+const native = path.join(root, 'target', 'release', 'ramulus');
+
+let site;
+let context;
+
+before(async () => {
+  site = await serveSite();
+  context = await launchBrowser({ width: 1400, height: 1000 });
+});
+
+after(async () => {
+  await context?.close();
+  site?.close();
+});
+
+async function openPage() {
+  const page = await newPage(context);
+  await page.goto(site.url);
+  await finishedDigest(page);
+  await page.waitForFunction(() => window.ramulusSite != null);
+  return page;
+}
+
+/// Clicks inside the site canvas at fractions of its box.
+async function clickAt(page, fx, fy, options = {}) {
+  const box = await page.locator('#site-canvas').boundingBox();
+  await page.mouse.click(box.x + fx * box.width, box.y + fy * box.height, options);
+}
+
+test('the demo garden grows, sizes by the Rational Method and exports with the caution', async () => {
+  const page = await openPage();
+  await page.click('#site-demo');
+  await page.waitForFunction(() => document.querySelectorAll('#site-features li').length > 5);
+  const features = await page.textContent('#site-features');
+  for (const role of ['site outline', 'area to keep clear', 'surface zone', 'outlet', 'spot level']) {
+    assert.match(features, new RegExp(role), `the demo lists a ${role}`);
+  }
+  // No rainfall is filled in for the designer.
+  assert.equal(await page.inputValue('#site-intensity'), '');
+  await page.fill('#site-intensity', '60');
+  await page.click('#site-grow');
+  await page.waitForFunction(() => window.ramulusPage.state.frame?.site === true);
+  await finishedDigest(page);
+  await page.waitForFunction(() => !document.querySelector('#site-results').hidden, null, { timeout: 60000 });
+
+  const words = await page.evaluate(() => document.querySelector('main').innerText);
+  assert.doesNotMatch(words, /vein/i, 'drainage words only on a site');
+  assert.match(await page.textContent('#site-caution'), /licensed engineer/);
+  const outlets = await page.$$eval('#site-outlets tbody tr', (rows) => rows.map((row) => row.innerText));
+  assert.equal(outlets.length, 1, `one outlet: ${outlets}`);
+
+  // The schedule the page exports, checked row by row against Q = C i A / 360 (HEC-22).
+  const form = await page.evaluate(() => window.ramulusSite.rulesText());
+  const csv = await page.evaluate((rules) => window.ramulusPage.state.simulation.drainage_csv(rules), form);
+  const lines = csv.trim().split('\n');
+  assert.match(lines[0], /^# Concept layouts only/);
+  const header = lines[1].split(',');
+  const column = (name) => header.findIndex((heading) => heading.startsWith(name));
+  const [area, c, intensity, flow] = ['drained area (ha)', 'runoff coefficient C', 'intensity (mm/h)', 'peak flow (m3/s)'].map(column);
+  assert.ok(lines.length > 3, 'some channels were sized');
+  for (const line of lines.slice(2)) {
+    const cells = line.split(',').map(Number);
+    assert.equal(cells[intensity], 60, 'a constant intensity is used as entered');
+    const expected = (cells[c] * cells[intensity] * cells[area]) / 360;
+    // The CSV rounds A to 4 decimals and C to 3: allow for that rounding.
+    const slack = 0.0006 * cells[intensity] * (cells[area] + 1e-4) / 360 + 0.00006 + 0.002 * expected;
+    assert.ok(Math.abs(cells[flow] - expected) <= slack, `${line}: Q ${cells[flow]} vs C i A / 360 = ${expected}`);
+  }
+
+  // The same run link sized by the native command line gives the same outlet flow.
+  const link = await fragmentOf(page);
+  const json = JSON.parse(execFileSync(native, ['drain', '--link', link, '--intensity', '60', '--json']).toString());
+  const pageOutlet = await page.evaluate((rules) => JSON.parse(window.ramulusPage.state.simulation.drainage_json(rules)), form);
+  assert.equal(json.outlets.length, 1);
+  assert.match(pageOutlet.outlets[0].peak_flow_text, new RegExp(`^${json.outlets[0].peak_flow.toPrecision(4).replace('.', '\\.')}`),
+    `page ${pageOutlet.outlets[0].peak_flow_text} vs command line ${json.outlets[0].peak_flow}`);
+
+  // The plan: a map scale, a north arrow, the outlet and the caution.
+  const svg = await page.evaluate((rules) => window.ramulusPage.state.simulation.drainage_plan_svg(rules), form);
+  assert.match(svg, /scale 1:\d+/);
+  assert.match(svg, />N<\/text>/);
+  assert.match(svg, /outlet 1:/);
+  assert.match(svg, /licensed engineer/);
+  await screenshot(page, 'site-garden-sized');
+  await page.locator('#site-panel').screenshot({ path: path.join(root, 'artifacts', 'e2e', 'site-panel.png') });
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});
+
+test('a sketched site without an outlet is refused by name; with one it grows', async () => {
+  const page = await openPage();
+  await page.fill('#site-blank-width', '40');
+  await page.fill('#site-blank-height', '30');
+  await page.click('#site-blank');
+  assert.match(await page.textContent('#site-features'), /site outline: 4 corners/);
+  // A building: four clicks and Enter.
+  await page.check('input[name="site-tool"][value="obstacle"]');
+  await page.fill('#site-obstacle-name', 'shed');
+  for (const [fx, fy] of [[0.45, 0.4], [0.55, 0.4], [0.55, 0.55], [0.45, 0.55]]) await clickAt(page, fx, fy);
+  await page.focus('#site-canvas');
+  await page.keyboard.press('Enter');
+  assert.match(await page.textContent('#site-features'), /area to keep clear: shed, 4 corners/);
+  await page.fill('#site-cell', '1');
+  await page.click('#site-grow');
+  const message = await page.textContent('#site-message');
+  assert.match(message, /outlet/i, `the message names what is missing: ${message}`);
+  // An outlet near the low corner, then growth.
+  await page.check('input[name="site-tool"][value="outlet"]');
+  await clickAt(page, 0.15, 0.8);
+  await page.click('#site-grow');
+  await page.waitForFunction(() => window.ramulusPage.state.frame?.site === true);
+  await finishedDigest(page);
+  const geojson = await page.evaluate(() => window.ramulusSite.sketch.geojson());
+  assert.deepEqual(geojson.features.map((f) => f.properties.role).sort(), ['obstacle', 'outlet', 'outline']);
+  await screenshot(page, 'site-sketched');
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});
