@@ -1,0 +1,1 @@
+//! Drainage sites (placeholder).
