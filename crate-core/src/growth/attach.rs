@@ -201,8 +201,7 @@ impl Growth {
                         },
                     );
                     if self.params.run.attach_to_segments {
-                        if let Some((cost, attachment)) =
-                            self.best_on_segment(cx, cy, ground, node)
+                        if let Some((cost, attachment)) = self.best_on_segment(cx, cy, ground, node)
                         {
                             visit(cost, attachment);
                         }

@@ -70,8 +70,7 @@ impl CostModel {
             preferred,
             grade_x: params.domain.grade_x,
             grade_y: params.domain.grade_y,
-            levels_scale: (!params.domain.levels.is_empty())
-                .then(|| 1.0 / params.domain.cell_size),
+            levels_scale: (!params.domain.levels.is_empty()).then(|| 1.0 / params.domain.cell_size),
             // Validated weights are finite and not negative, so `<= 0` is "the term is off".
             length_only: params.costs.w_turn <= 0.0
                 && params.costs.w_flow <= 0.0

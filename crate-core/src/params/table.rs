@@ -936,7 +936,10 @@ fn check_levels(key: &str, levels: &[[f64; 3]]) -> Result<(), ParamError> {
         });
     }
     for (index, level) in levels.iter().enumerate() {
-        if !level.iter().all(|value| value.abs() <= MAX_LEVEL_COORDINATE) {
+        if !level
+            .iter()
+            .all(|value| value.abs() <= MAX_LEVEL_COORDINATE)
+        {
             return Err(ParamError {
                 key: format!("{key}[{index}]"),
                 value: format!(

@@ -60,7 +60,12 @@ pub(crate) fn inside_or_on(ring: &[[f64; 2]], point: [f64; 2]) -> bool {
 pub(crate) fn nearest_edge(ring: &[[f64; 2]], point: [f64; 2]) -> Option<(usize, f64)> {
     let count = ring.len();
     (0..count)
-        .map(|k| (k, distance_to_segment(point, ring[k], ring[(k + 1) % count])))
+        .map(|k| {
+            (
+                k,
+                distance_to_segment(point, ring[k], ring[(k + 1) % count]),
+            )
+        })
         .min_by(|a, b| a.1.total_cmp(&b.1))
 }
 
@@ -124,7 +129,10 @@ fn orientation(a: [f64; 2], b: [f64; 2], c: [f64; 2]) -> f64 {
 
 /// Whether `p`, known to lie on the line through `a` and `b`, lies within their box.
 fn within_box(a: [f64; 2], b: [f64; 2], p: [f64; 2]) -> bool {
-    p[0] >= a[0].min(b[0]) && p[0] <= a[0].max(b[0]) && p[1] >= a[1].min(b[1]) && p[1] <= a[1].max(b[1])
+    p[0] >= a[0].min(b[0])
+        && p[0] <= a[0].max(b[0])
+        && p[1] >= a[1].min(b[1])
+        && p[1] <= a[1].max(b[1])
 }
 
 /// Whether closed segments `ab` and `cd` share a point (the classic orientation test, with

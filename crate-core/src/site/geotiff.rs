@@ -41,8 +41,8 @@ pub const MAX_RASTER_PIXELS: usize = 1 << 26;
 /// Reads a single-band GeoTIFF of elevations. Errors say what is missing or not readable.
 pub fn read_geotiff(bytes: &[u8]) -> Result<ElevationRaster, SiteError> {
     let fail = |problem: String| SiteError::Raster { problem };
-    let mut decoder =
-        Decoder::new(Cursor::new(bytes)).map_err(|error| fail(format!("not a readable TIFF: {error}")))?;
+    let mut decoder = Decoder::new(Cursor::new(bytes))
+        .map_err(|error| fail(format!("not a readable TIFF: {error}")))?;
     let (width, height) = decoder
         .dimensions()
         .map_err(|error| fail(format!("no image size: {error}")))?;
@@ -52,16 +52,19 @@ pub fn read_geotiff(bytes: &[u8]) -> Result<ElevationRaster, SiteError> {
             "{width} x {height} pixels; an elevation raster holds 1 to {MAX_RASTER_PIXELS} pixels"
         )));
     }
-    let tag_numbers = |decoder: &mut Decoder<Cursor<&[u8]>>, tag: Tag| -> Result<Option<Vec<f64>>, SiteError> {
-        match decoder.find_tag(tag) {
-            Ok(None) => Ok(None),
-            Ok(Some(value)) => value
-                .into_f64_vec()
-                .map(Some)
-                .map_err(|error| fail(format!("tag {} is not a list of numbers: {error}", tag.to_u16()))),
-            Err(error) => Err(fail(format!("tag {} unreadable: {error}", tag.to_u16()))),
-        }
-    };
+    let tag_numbers =
+        |decoder: &mut Decoder<Cursor<&[u8]>>, tag: Tag| -> Result<Option<Vec<f64>>, SiteError> {
+            match decoder.find_tag(tag) {
+                Ok(None) => Ok(None),
+                Ok(Some(value)) => value.into_f64_vec().map(Some).map_err(|error| {
+                    fail(format!(
+                        "tag {} is not a list of numbers: {error}",
+                        tag.to_u16()
+                    ))
+                }),
+                Err(error) => Err(fail(format!("tag {} unreadable: {error}", tag.to_u16()))),
+            }
+        };
     let scale = tag_numbers(&mut decoder, Tag::ModelPixelScaleTag)?;
     let tiepoint = tag_numbers(&mut decoder, Tag::ModelTiepointTag)?;
     let (Some(scale), Some(tiepoint)) = (scale, tiepoint) else {
@@ -106,9 +109,11 @@ pub fn read_geotiff(bytes: &[u8]) -> Result<ElevationRaster, SiteError> {
             .and_then(|text| text.trim_matches(char::from(0)).trim().parse::<f64>().ok()),
         _ => None,
     };
-    let image = decoder
-        .read_image()
-        .map_err(|error| fail(format!("pixels unreadable (one band of numbers needed): {error}")))?;
+    let image = decoder.read_image().map_err(|error| {
+        fail(format!(
+            "pixels unreadable (one band of numbers needed): {error}"
+        ))
+    })?;
     let mut values: Vec<f64> = match image {
         DecodingResult::U8(data) => data.into_iter().map(f64::from).collect(),
         DecodingResult::U16(data) => data.into_iter().map(f64::from).collect(),
@@ -118,7 +123,11 @@ pub fn read_geotiff(bytes: &[u8]) -> Result<ElevationRaster, SiteError> {
         DecodingResult::I32(data) => data.into_iter().map(f64::from).collect(),
         DecodingResult::F32(data) => data.into_iter().map(f64::from).collect(),
         DecodingResult::F64(data) => data,
-        _ => return Err(fail("sample type not read (8 to 32-bit integers, 32 or 64-bit floats are)".to_string())),
+        _ => {
+            return Err(fail(
+                "sample type not read (8 to 32-bit integers, 32 or 64-bit floats are)".to_string(),
+            ))
+        }
     };
     if values.len() != width * height {
         return Err(fail(format!(
@@ -249,9 +258,18 @@ mod tests {
     fn a_plane_reads_back_at_sample_points() {
         let raster = read_geotiff(&plane_geotiff(true)).expect("raster");
         assert_eq!((raster.width, raster.height), (20, 12));
-        for (x, y) in [(1001.25, 2059.0), (1020.0, 2040.0), (1033.3, 2047.7), (1048.0, 2037.0)] {
+        for (x, y) in [
+            (1001.25, 2059.0),
+            (1020.0, 2040.0),
+            (1033.3, 2047.7),
+            (1048.0, 2037.0),
+        ] {
             let z = raster.at(x, y).expect("inside");
-            assert!((z - plane(x, y)).abs() < 1e-4, "at ({x}, {y}): {z} vs {}", plane(x, y));
+            assert!(
+                (z - plane(x, y)).abs() < 1e-4,
+                "at ({x}, {y}): {z} vs {}",
+                plane(x, y)
+            );
         }
         assert_eq!(raster.at(999.0, 2040.0), None);
         assert_eq!(raster.at(1020.0, 2061.0), None);
@@ -267,7 +285,12 @@ mod tests {
     #[test]
     fn samples_fall_inside_the_outline() {
         let raster = read_geotiff(&plane_geotiff(true)).expect("raster");
-        let outline = [[1005.0, 2038.0], [1045.0, 2038.0], [1045.0, 2058.0], [1005.0, 2058.0]];
+        let outline = [
+            [1005.0, 2038.0],
+            [1045.0, 2038.0],
+            [1045.0, 2058.0],
+            [1005.0, 2058.0],
+        ];
         let levels = raster.sample_levels(&outline, 4);
         assert_eq!(levels.len(), 16);
         for level in &levels {

@@ -29,7 +29,12 @@ pub fn read_spot_levels_csv(bytes: &[u8]) -> Result<Vec<SpotLevel>, SiteError> {
         let fields: Vec<&str> = line.split(',').map(str::trim).collect();
         let is_first = !seen_content;
         seen_content = true;
-        if is_first && fields.iter().map(|field| field.to_ascii_lowercase()).eq(["x", "y", "z"]) {
+        if is_first
+            && fields
+                .iter()
+                .map(|field| field.to_ascii_lowercase())
+                .eq(["x", "y", "z"])
+        {
             continue;
         }
         let [x, y, z] = fields[..] else {

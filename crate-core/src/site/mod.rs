@@ -436,3 +436,6 @@ pub(crate) fn check_levels(outline: &[[f64; 2]], levels: &[SpotLevel]) -> Result
     }
     Ok(())
 }
+
+#[cfg(test)]
+mod tests;

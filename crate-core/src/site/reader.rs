@@ -53,10 +53,11 @@ pub fn read_site(bytes: &[u8]) -> Result<Site, SiteError> {
             })
         }
     };
-    let runoff_coefficient = match collection.and_then(|properties| properties.get("runoff_coefficient")) {
-        None | Some(Json::Null) => None,
-        Some(value) => Some(coefficient(value, "the site")?),
-    };
+    let runoff_coefficient =
+        match collection.and_then(|properties| properties.get("runoff_coefficient")) {
+            None | Some(Json::Null) => None,
+            Some(value) => Some(coefficient(value, "the site")?),
+        };
     let mut outline: Option<(usize, Vec<[f64; 2]>)> = None;
     let mut obstacles = Vec::new();
     let mut zones = Vec::new();
@@ -69,11 +70,10 @@ pub fn read_site(bytes: &[u8]) -> Result<Site, SiteError> {
             .and_then(Json::as_str)
             .map(str::to_string);
         let place = feature_place(index, name.as_deref());
-        let feature = Feature::from_json_value(feature.clone()).map_err(|error| {
-            SiteError::NotSite {
+        let feature =
+            Feature::from_json_value(feature.clone()).map_err(|error| SiteError::NotSite {
                 problem: format!("{place}: not a GeoJSON feature: {error}"),
-            }
-        })?;
+            })?;
         match feature.property("units") {
             None | Some(Json::Null) => {}
             Some(Json::String(found)) if *found == units => {}
@@ -123,7 +123,9 @@ pub fn read_site(bytes: &[u8]) -> Result<Site, SiteError> {
                     None | Some(Json::Null) => {
                         return Err(SiteError::RunoffCoefficient {
                             feature: place,
-                            problem: "missing; a zone needs `runoff_coefficient`, a number in [0, 1]".to_string(),
+                            problem:
+                                "missing; a zone needs `runoff_coefficient`, a number in [0, 1]"
+                                    .to_string(),
                         })
                     }
                     Some(value) => coefficient(value, &place)?,
@@ -157,7 +159,9 @@ pub fn read_site(bytes: &[u8]) -> Result<Site, SiteError> {
                     None => {
                         return Err(SiteError::Elevation {
                             feature: place,
-                            problem: "no `elevation` property (the ground's height, in the site's unit)".to_string(),
+                            problem:
+                                "no `elevation` property (the ground's height, in the site's unit)"
+                                    .to_string(),
                         })
                     }
                 };
@@ -232,12 +236,15 @@ fn geometry<'a>(
     role: &'static str,
     expected: &'static str,
 ) -> Result<&'a Geometry, SiteError> {
-    feature.geometry.as_ref().ok_or_else(|| SiteError::Geometry {
-        feature: place.to_string(),
-        role,
-        expected,
-        found: "no geometry".to_string(),
-    })
+    feature
+        .geometry
+        .as_ref()
+        .ok_or_else(|| SiteError::Geometry {
+            feature: place.to_string(),
+            role,
+            expected,
+            found: "no geometry".to_string(),
+        })
 }
 
 /// A Polygon feature's single ring, checked closed and simple, without its closing position.
@@ -274,7 +281,10 @@ fn polygon(feature: &Feature, place: &str, role: &'static str) -> Result<Vec<[f6
     }
     let mut ring = Vec::with_capacity(exterior.len());
     for (index, position) in exterior.iter().enumerate() {
-        ring.push(position_xy(position, &format!("{place}, position {index}"))?);
+        ring.push(position_xy(
+            position,
+            &format!("{place}, position {index}"),
+        )?);
     }
     if ring.len() < 4 {
         return Err(SiteError::OpenRing {

@@ -203,17 +203,16 @@ impl Site {
         params.run.cells = allowed_count as u64;
         params.domain.runoff = self.ground_runoff(&params, &allowed)?;
         params.domain.roots = self.roots(&params, &allowed, &to_cells, &levels)?;
-        params.validate().map_err(|error| problem(error.to_string()))?;
+        params
+            .validate()
+            .map_err(|error| problem(error.to_string()))?;
         let parts = cut_off_parts(&params);
         if !parts.is_empty() {
             return Err(SiteError::CutOff {
                 parts: parts
                     .into_iter()
                     .map(|part| CutOffPart {
-                        centre: [
-                            low[0] + part.centre[0],
-                            high[1] - part.centre[1],
-                        ],
+                        centre: [low[0] + part.centre[0], high[1] - part.centre[1]],
                         ..part
                     })
                     .collect(),
@@ -251,11 +250,15 @@ impl Site {
                 ),
             });
         }
-        let (sum, count) = (0..allowed.len())
-            .filter(|&cell| allowed[cell])
-            .fold((0.0, 0usize), |(sum, count), cell| {
-                (sum + params.domain.zones[zone_of[cell] as usize - 1].runoff, count + 1)
-            });
+        let (sum, count) = (0..allowed.len()).filter(|&cell| allowed[cell]).fold(
+            (0.0, 0usize),
+            |(sum, count), cell| {
+                (
+                    sum + params.domain.zones[zone_of[cell] as usize - 1].runoff,
+                    count + 1,
+                )
+            },
+        );
         Ok(sum / count as f64)
     }
 
@@ -315,7 +318,11 @@ impl Site {
                 let a = self.outline[edge];
                 let b = self.outline[(edge + 1) % self.outline.len()];
                 let (dx, dy) = (b[0] - a[0], b[1] - a[1]);
-                let normal = if counter_clockwise { [dy, -dx] } else { [-dy, dx] };
+                let normal = if counter_clockwise {
+                    [dy, -dx]
+                } else {
+                    [-dy, dx]
+                };
                 (normal, distance)
             });
             // Downhill at the outlet, in the site's frame (x east, y north).
