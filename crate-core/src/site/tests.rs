@@ -7,7 +7,11 @@ use super::*;
 use crate::growth::Growth;
 use crate::network::{Network, NO_PARENT};
 use crate::params::Params;
-use crate::presets::{GARDEN_SITE_CELL, GARDEN_SITE_GEOJSON};
+
+/// The demo site file (the `garden-site` preset reads the same file on the same cells).
+const GARDEN_SITE_GEOJSON: &str = include_str!("../../../examples/sites/community-garden.geojson");
+/// Cell size of the `garden-site` preset, in metres.
+const GARDEN_SITE_CELL: f64 = 0.5;
 use crate::region::allowed_cells;
 use crate::terrain::{node_ground, Elevation};
 
@@ -467,7 +471,10 @@ fn uphill_share(network: &Network, params: &Params) -> f64 {
 /// the direction of the effect). Run with `--nocapture` to see the figures.
 #[test]
 fn the_uphill_term_lowers_the_uphill_share_on_spot_levels() {
-    let base = crate::presets::preset("garden-site").expect("preset");
+    let base = read_site(GARDEN_SITE_GEOJSON.as_bytes())
+        .expect("reads")
+        .to_params(GARDEN_SITE_CELL, &Terrain::SpotLevels)
+        .expect("parameters");
     assert!(!base.domain.levels.is_empty());
     let mut shares = [Vec::new(), Vec::new()];
     for seed in 1..=4 {
