@@ -217,6 +217,32 @@ mod tests {
         }
     }
 
+    /// Later zones lie over earlier ones; cells in no zone are 0. A 6 x 4 lattice, zone 1
+    /// over columns 0..4, zone 2 over columns 2..6 of rows 1..3 (counted by hand).
+    #[test]
+    fn later_zones_lie_over_earlier_ones() {
+        let mut params = Params::default();
+        params.domain.width = 6;
+        params.domain.height = 4;
+        params.domain.zones = vec![
+            crate::params::Zone {
+                runoff: 0.9,
+                polygon: vec![[0.0, 0.0], [4.0, 0.0], [4.0, 4.0], [0.0, 4.0]],
+            },
+            crate::params::Zone {
+                runoff: 0.2,
+                polygon: vec![[2.0, 1.0], [6.0, 1.0], [6.0, 3.0], [2.0, 3.0]],
+            },
+        ];
+        let expected: Vec<u16> = vec![
+            1, 1, 1, 1, 0, 0, //
+            1, 1, 2, 2, 2, 2, //
+            1, 1, 2, 2, 2, 2, //
+            1, 1, 1, 1, 0, 0, //
+        ];
+        assert_eq!(zone_cells(&params), expected);
+    }
+
     #[test]
     fn square_contains_its_centre_only() {
         let square = [[1.0, 1.0], [3.0, 1.0], [3.0, 3.0], [1.0, 3.0]];
