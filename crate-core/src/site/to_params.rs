@@ -72,6 +72,18 @@ impl Site {
                 self.units
             )));
         }
+        // A `Site` from `read_site` always passes; one built by hand may not.
+        let rings = std::iter::once(&self.outline)
+            .chain(self.obstacles.iter().map(|obstacle| &obstacle.ring))
+            .chain(self.zones.iter().map(|zone| &zone.ring));
+        for ring in rings {
+            if ring.len() < 3 || !ring.iter().flatten().all(|value| value.is_finite()) {
+                return Err(problem(format!(
+                    "a ring of {} positions; every ring needs at least 3 finite positions",
+                    ring.len()
+                )));
+            }
+        }
         let (low, high) = bounds(&self.outline);
         let columns = ((high[0] - low[0]) / cell_size).ceil().max(1.0);
         let rows = ((high[1] - low[1]) / cell_size).ceil().max(1.0);
@@ -281,7 +293,7 @@ impl Site {
                 .collect(),
         );
         let mut roots: Vec<Root> = Vec::new();
-        for (index, outlet) in self.outlets.iter().enumerate() {
+        for outlet in &self.outlets {
             let place = feature_place(outlet.feature, outlet.name.as_deref());
             let [ox, oy] = to_cells(outlet.point);
             let nearest = (0..allowed.len())
@@ -313,7 +325,6 @@ impl Site {
                     ),
                 });
             }
-            let _ = index;
             let outward = nearest_edge(&self.outline, outlet.point).map(|(edge, distance)| {
                 let a = self.outline[edge];
                 let b = self.outline[(edge + 1) % self.outline.len()];
@@ -440,6 +451,6 @@ pub fn cut_off_parts(params: &Params) -> Vec<CutOffPart> {
             rows,
         });
     }
-    parts.sort_by(|a, b| b.cells.cmp(&a.cells));
+    parts.sort_by_key(|part| std::cmp::Reverse(part.cells));
     parts
 }
