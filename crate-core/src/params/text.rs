@@ -222,3 +222,61 @@ pub(crate) fn zones(text: &str) -> Result<Vec<Zone>, String> {
         })
         .collect()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn levels_and_zones_read_back_exactly() {
+        let levels = vec![[1.5, 2.0, 100.25], [-3.0, 7.0, 99.1]];
+        assert_eq!(levels_text(&levels), "1.5,2,100.25;-3,7,99.1");
+        assert_eq!(super::levels(&levels_text(&levels)), Ok(levels));
+        assert_eq!(levels_text(&[]), "none");
+        let zones = vec![
+            Zone {
+                runoff: 0.9,
+                polygon: vec![[0.0, 0.0], [4.0, 0.0], [4.0, 3.0]],
+            },
+            Zone {
+                runoff: 0.15,
+                polygon: vec![[5.0, 5.0], [6.5, 5.0], [6.0, 7.0]],
+            },
+        ];
+        let text = zones_text(&zones);
+        assert_eq!(text, "0.9:0,0;4,0;4,3~0.15:5,5;6.5,5;6,7");
+        assert_eq!(super::zones(&text), Ok(zones));
+    }
+
+    #[test]
+    fn bad_levels_and_zones_say_what_is_expected() {
+        let error = super::levels("1,2,3;4,5").unwrap_err();
+        assert!(
+            error.contains("\"4,5\"") && error.contains("x,y,z"),
+            "{error}"
+        );
+        let error = super::zones("0.9:0,0;1,0;1,1~0,0;1,0;1,1").unwrap_err();
+        assert!(
+            error.contains("zone 1") && error.contains("C:x,y"),
+            "{error}"
+        );
+        let error = super::zones("wet:0,0;1,0;1,1").unwrap_err();
+        assert!(error.contains("runoff coefficient"), "{error}");
+    }
+
+    /// Validation names the level or zone at fault.
+    #[test]
+    fn validation_names_the_level_or_zone() {
+        let mut params = crate::params::Params::default();
+        params.domain.levels = vec![[1.0, 1.0, 5.0], [2.0, 1.0, 5.0], [1.0, 1.0, 6.0]];
+        let error = params.validate().unwrap_err();
+        assert_eq!(error.key, "levels[2]");
+        params.domain.levels.clear();
+        params.domain.zones = vec![Zone {
+            runoff: 0.0,
+            polygon: vec![[0.0, 0.0], [4.0, 0.0], [4.0, 3.0]],
+        }];
+        let error = params.validate().unwrap_err();
+        assert_eq!(error.key, "zones[0].runoff");
+    }
+}
