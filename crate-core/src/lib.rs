@@ -24,11 +24,15 @@ pub mod region;
 pub mod run;
 pub mod schema;
 pub mod segments;
+pub mod site;
 pub mod site_sizing;
 pub mod specimen;
+pub mod terrain;
 pub mod utf8_text;
 pub mod veins;
 
 pub use growth::{Growth, StepReport, StopReason};
 pub use network::{Children, Network, NetworkKind, Node, Segment, Topology, NO_PARENT};
-pub use params::{CostWeights, Domain, Joining, ParamError, Params, Root, RunControl, Widths};
+pub use params::{
+    CostWeights, Domain, Joining, ParamError, Params, Root, RunControl, Widths, Zone,
+};

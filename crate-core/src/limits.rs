@@ -5,3 +5,11 @@ pub const MAX_CELLS: u64 = 25_000_000;
 
 /// Largest search radius, in cells.
 pub const MAX_RADIUS: f64 = 12.0;
+
+/// Most spot levels a run takes: the uphill term interpolates the ground from every level at
+/// each cell it prices once, so the count bounds that work (4,096 levels: a 64 x 64 sampling
+/// of an elevation raster).
+pub const MAX_LEVELS: usize = 4096;
+
+/// Most runoff zones a run takes: each cell keeps its zone's number in 16 bits.
+pub const MAX_ZONES: usize = 4096;

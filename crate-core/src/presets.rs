@@ -1,11 +1,13 @@
 //! Named parameter presets (`Preset`, `presets`, `preset`): two leaves whose outline emerges
-//! from the costs, a leaf that fills a given outline, a drainage site, and the spanning-tree
-//! reference.
+//! from the costs, a leaf that fills a given outline, two drainage sites (one drawn by hand in
+//! cells, one read from the demo site file `examples/sites/community-garden.geojson`), and the
+//! spanning-tree reference.
 
 use crate::params::{CostWeights, Domain, RunControl, Widths};
 use serde::Serialize;
 
 use crate::params::{Joining, Params, Root};
+use crate::site::{read_site, Terrain};
 
 /// A named set of parameters with a one-line description.
 #[derive(Clone, Debug, PartialEq, Serialize)]
@@ -46,6 +48,12 @@ pub fn presets() -> Vec<Preset> {
             title: "Drainage site (300 m × 200 m)",
             description: "a 300 m x 200 m site sloping to one outlet, around a building",
             params: drainage_site(),
+        },
+        Preset {
+            name: "garden-site",
+            title: "Community garden drainage (60 m × 40 m)",
+            description: "the demo site file: a garden's roof, gravel paths, lawns and planting beds with their own runoff coefficients, ground from 10 spot levels falling to one street drain",
+            params: garden_site(),
         },
         Preset {
             name: "spanning-tree",
@@ -244,6 +252,23 @@ fn drainage_site() -> Params {
     }
 }
 
+/// The demo site file, compiled in: the source of the `garden-site` preset.
+pub const GARDEN_SITE_GEOJSON: &str = include_str!("../../examples/sites/community-garden.geojson");
+
+/// Cell size of the `garden-site` preset, in metres: 120 x 80 cells over the garden.
+pub const GARDEN_SITE_CELL: f64 = 0.5;
+
+/// The community garden on 0.5 m cells, its ground from its spot levels.
+fn garden_site() -> Params {
+    // The file is compiled in and `the_garden_site_reads` checks that it reads and converts.
+    let site = read_site(GARDEN_SITE_GEOJSON.as_bytes()).expect("the demo site file reads");
+    let mut params = site
+        .to_params(GARDEN_SITE_CELL, &Terrain::SpotLevels)
+        .expect("the demo site makes valid parameters");
+    params.run.seed = 3;
+    params
+}
+
 fn spanning_tree() -> Params {
     Params {
         domain: Domain {
@@ -280,6 +305,16 @@ fn spanning_tree() -> Params {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn the_garden_site_reads() {
+        let site = read_site(GARDEN_SITE_GEOJSON.as_bytes()).expect("reads");
+        assert_eq!(site.outlets.len(), 1);
+        assert!((6..=12).contains(&site.levels.len()));
+        assert!(site
+            .to_params(GARDEN_SITE_CELL, &Terrain::SpotLevels)
+            .is_ok());
+    }
 
     #[test]
     fn every_preset_validates() {

@@ -41,6 +41,32 @@ pub fn allowed_cells(params: &Params) -> Vec<bool> {
     allowed
 }
 
+/// The runoff zone of every cell of a validated `Params`, row-major: 0 for a cell in no zone,
+/// `k + 1` for a cell whose centre lies inside zone `k` and inside no later zone (later zones
+/// lie over earlier ones). Empty when the run has no zones.
+pub fn zone_cells(params: &Params) -> Vec<u16> {
+    let zones = &params.domain.zones;
+    if zones.is_empty() {
+        return Vec::new();
+    }
+    let width = params.domain.width as usize;
+    let height = params.domain.height as usize;
+    let mut zone_of = vec![0u16; width * height];
+    let mut inside = vec![true; width * height];
+    for (index, zone) in zones.iter().enumerate() {
+        inside.fill(true);
+        fill_polygon(&mut inside, width, height, &zone.polygon, false);
+        // Validated runs hold at most `MAX_ZONES` (4,096) zones, so the number fits 16 bits.
+        let number = u16::try_from(index + 1).unwrap_or(u16::MAX);
+        for (cell, &held) in zone_of.iter_mut().zip(&inside) {
+            if held {
+                *cell = number;
+            }
+        }
+    }
+    zone_of
+}
+
 /// Whether a run of validated `params` can start on its `allowed` cells: at least one allowed
 /// cell, and every root on an allowed cell of its own. The error names the root or region.
 pub fn check_start(params: &Params, allowed: &[bool]) -> Result<(), ParamError> {
@@ -189,6 +215,32 @@ mod tests {
                 }
             }
         }
+    }
+
+    /// Later zones lie over earlier ones; cells in no zone are 0. A 6 x 4 lattice, zone 1
+    /// over columns 0..4, zone 2 over columns 2..6 of rows 1..3 (counted by hand).
+    #[test]
+    fn later_zones_lie_over_earlier_ones() {
+        let mut params = Params::default();
+        params.domain.width = 6;
+        params.domain.height = 4;
+        params.domain.zones = vec![
+            crate::params::Zone {
+                runoff: 0.9,
+                polygon: vec![[0.0, 0.0], [4.0, 0.0], [4.0, 4.0], [0.0, 4.0]],
+            },
+            crate::params::Zone {
+                runoff: 0.2,
+                polygon: vec![[2.0, 1.0], [6.0, 1.0], [6.0, 3.0], [2.0, 3.0]],
+            },
+        ];
+        let expected: Vec<u16> = vec![
+            1, 1, 1, 1, 0, 0, //
+            1, 1, 2, 2, 2, 2, //
+            1, 1, 2, 2, 2, 2, //
+            1, 1, 1, 1, 0, 0, //
+        ];
+        assert_eq!(zone_cells(&params), expected);
     }
 
     #[test]

@@ -113,6 +113,30 @@ fn field_text(spec: &ParamSpec, width: u32, height: u32) -> BoxedStrategy<String
         Access::Polygons(..) => proptest::collection::vec(polygon_text(), 0..3)
             .prop_map(|polygons| polygons.join("~"))
             .boxed(),
+        Access::Levels(..) => prop_oneof![
+            Just("none".to_string()),
+            // Distinct places: the k-th level stands at x = k (no two at one place).
+            proptest::collection::vec((-1.0e6f64..=1.0e6, -1.0e6f64..=1.0e6), 1..6).prop_map(
+                |levels| {
+                    levels
+                        .iter()
+                        .enumerate()
+                        .map(|(index, (y, z))| format!("{index},{y},{z}"))
+                        .collect::<Vec<_>>()
+                        .join(";")
+                }
+            ),
+        ]
+        .boxed(),
+        Access::Zones(..) => proptest::collection::vec((0.01f64..=1.0, polygon_text()), 0..3)
+            .prop_map(|zones| {
+                zones
+                    .iter()
+                    .map(|(runoff, polygon)| format!("{runoff}:{polygon}"))
+                    .collect::<Vec<_>>()
+                    .join("~")
+            })
+            .boxed(),
         Access::Mask(..) => {
             let total = width as u64 * height as u64;
             prop_oneof![

@@ -22,14 +22,15 @@ impl Growth {
                 continue;
             }
             let (cx, cy) = self.lattice.position_at(cell, cell_column, cell_row);
-            let mut best_cost = self.model.cost(cx, cy, &node_anchor);
+            let ground = self.cell_ground_remembered(cell, cx, cy);
+            let mut best_cost = self.model.cost(cx, cy, ground, &node_anchor);
             let mut best = Attachment {
                 target: node,
                 segment_parent: NONE,
                 along: 0.0,
             };
             if segment {
-                if let Some((cost, attachment)) = self.best_on_segment(cx, cy, node) {
+                if let Some((cost, attachment)) = self.best_on_segment(cx, cy, ground, node) {
                     if cost < best_cost {
                         best_cost = cost;
                         best = attachment;
@@ -68,6 +69,7 @@ impl Growth {
             axis_x,
             axis_y,
             is_tip: self.child_count[index] == 0,
+            ground: self.node_ground.get(index).copied().unwrap_or(0.0),
         }
     }
 
@@ -95,12 +97,22 @@ impl Growth {
             axis_x,
             axis_y,
             is_tip: false,
+            ground: match &self.surface {
+                Some(surface) => surface.at(x, y),
+                None => 0.0,
+            },
         }
     }
 
     /// Cheapest interior point of the segment `node -> parent` for a cell at `(cx, cy)`: the
     /// foot of the perpendicular, and the point that makes a 45 degree junction downstream.
-    pub(super) fn best_on_segment(&self, cx: f64, cy: f64, node: u32) -> Option<(f64, Attachment)> {
+    pub(super) fn best_on_segment(
+        &self,
+        cx: f64,
+        cy: f64,
+        ground: f64,
+        node: u32,
+    ) -> Option<(f64, Attachment)> {
         let index = node as usize;
         let parent = self.parent[index];
         if parent == NO_PARENT {
@@ -122,7 +134,7 @@ impl Growth {
                 continue;
             }
             let anchor = self.segment_anchor(node, along);
-            let cost = self.model.cost(cx, cy, &anchor);
+            let cost = self.model.cost(cx, cy, ground, &anchor);
             if best.is_none_or(|(best_cost, _)| cost < best_cost) {
                 best = Some((
                     cost,
@@ -158,6 +170,7 @@ impl Growth {
     fn each_candidate(&self, cell: usize, mut visit: impl FnMut(f64, Attachment)) {
         let (column, row) = self.lattice.column_row(cell);
         let (cx, cy) = self.lattice.position(cell);
+        let ground = self.cell_ground(cell, cx, cy);
         for &(dx, dy) in &self.lattice.offsets {
             let Some(other) = self.lattice.neighbour(column, row, dx, dy) else {
                 continue;
@@ -177,7 +190,7 @@ impl Growth {
                         let index = node as usize;
                         self.model.length_cost(cx, cy, self.x[index], self.y[index])
                     } else {
-                        self.model.cost(cx, cy, &self.node_anchor(node))
+                        self.model.cost(cx, cy, ground, &self.node_anchor(node))
                     };
                     visit(
                         cost,
@@ -188,7 +201,8 @@ impl Growth {
                         },
                     );
                     if self.params.run.attach_to_segments {
-                        if let Some((cost, attachment)) = self.best_on_segment(cx, cy, node) {
+                        if let Some((cost, attachment)) = self.best_on_segment(cx, cy, ground, node)
+                        {
                             visit(cost, attachment);
                         }
                     }
@@ -199,6 +213,45 @@ impl Growth {
                     };
                 }
             }
+        }
+    }
+}
+
+// The ground under cells and the weight of cells (spot levels and runoff zones).
+impl Growth {
+    /// The ground under `cell`'s node at `(cx, cy)` (its jittered position), remembered the
+    /// first time it is asked for; 0 without spot levels.
+    pub(super) fn cell_ground_remembered(&mut self, cell: usize, cx: f64, cy: f64) -> f64 {
+        let Some(surface) = &self.surface else {
+            return 0.0;
+        };
+        let known = self.cell_ground[cell];
+        if !known.is_nan() {
+            return known;
+        }
+        let ground = surface.at(cx, cy);
+        self.cell_ground[cell] = ground;
+        ground
+    }
+
+    /// `cell_ground_remembered` without remembering: the remembered value when there is one.
+    pub(super) fn cell_ground(&self, cell: usize, cx: f64, cy: f64) -> f64 {
+        match &self.surface {
+            None => 0.0,
+            Some(surface) => match self.cell_ground[cell] {
+                known if !known.is_nan() => known,
+                _ => surface.at(cx, cy),
+            },
+        }
+    }
+
+    /// The flow weight a cell adds itself: its runoff zone's coefficient, or `runoff` outside
+    /// every zone (and always without zones).
+    #[inline]
+    pub(super) fn own_weight(&self, cell: usize) -> f64 {
+        match self.zone_of.get(cell) {
+            Some(&zone) if zone > 0 => self.zone_weights[zone as usize - 1],
+            _ => self.cell_weight,
         }
     }
 }

@@ -25,6 +25,8 @@ pub(crate) struct Anchor {
     /// Whether the point is a vein tip (no upstream segment yet): extending a tip always
     /// prefers going straight on.
     pub is_tip: bool,
+    /// Ground elevation at the point from the spot levels, in the length unit (0 without).
+    pub ground: f64,
 }
 
 /// Weights and constants of the cost formula.
@@ -43,6 +45,9 @@ pub(crate) struct CostModel {
     pub preferred: Option<(f64, f64)>,
     pub grade_x: f64,
     pub grade_y: f64,
+    /// With spot levels: `1 / cell_size`, turning a rise in the length unit into a rise in
+    /// cells (the unit of `grade_x * vx`); none without levels (the tilted plane counts).
+    pub levels_scale: Option<f64>,
     /// Whether only the length term counts (every other weight is not positive), so the cost
     /// of an anchor needs nothing but its position (`length_cost`).
     pub length_only: bool,
@@ -65,6 +70,7 @@ impl CostModel {
             preferred,
             grade_x: params.domain.grade_x,
             grade_y: params.domain.grade_y,
+            levels_scale: (!params.domain.levels.is_empty()).then(|| 1.0 / params.domain.cell_size),
             // Validated weights are finite and not negative, so `<= 0` is "the term is off".
             length_only: params.costs.w_turn <= 0.0
                 && params.costs.w_flow <= 0.0
@@ -73,9 +79,10 @@ impl CostModel {
         }
     }
 
-    /// Cost of joining the cell at `(x, y)` to `anchor`:
+    /// Cost of joining the cell at `(x, y)`, whose ground is `ground` (from the spot levels; 0
+    /// without), to `anchor`:
     /// `w_len * len + w_turn * turn + w_flow * D + w_path * (dist + len_aniso) + w_grade * uphill`.
-    pub fn cost(&self, x: f64, y: f64, anchor: &Anchor) -> f64 {
+    pub fn cost(&self, x: f64, y: f64, ground: f64, anchor: &Anchor) -> f64 {
         let vx = anchor.x - x;
         let vy = anchor.y - y;
         let length = (vx * vx + vy * vy).sqrt();
@@ -100,8 +107,13 @@ impl CostModel {
             cost += self.w_path * (anchor.dist + supply);
         }
         if self.w_grade > 0.0 {
-            // Rise of the anchor over the cell, in percent of one cell length.
-            let rise = self.grade_x * vx + self.grade_y * vy;
+            // Rise of the anchor over the cell, in cells, counted in percent of one cell
+            // length: from the interpolated ground with spot levels (z(to) - z(from)), else
+            // along the tilted plane.
+            let rise = match self.levels_scale {
+                Some(scale) => (anchor.ground - ground) * scale,
+                None => self.grade_x * vx + self.grade_y * vy,
+            };
             if rise > 0.0 {
                 cost += self.w_grade * 100.0 * rise;
             }
@@ -212,7 +224,32 @@ mod tests {
             axis_x: 0.0,
             axis_y: 1.0,
             is_tip: false,
+            ground: 0.0,
         }
+    }
+
+    /// With spot levels the uphill term reads the ground: joining a cell to an anchor 0.1 m
+    /// higher on 0.5 m cells rises 0.2 cells, costing `w_grade * 100 * 0.2 = 20`; downhill
+    /// costs nothing (the term of DOMAIN.md section 1, `w_grade * uphill(c, p)`).
+    #[test]
+    fn uphill_on_spot_levels_costs_and_downhill_does_not() {
+        let mut params = Params::default();
+        params.domain.cell_size = 0.5;
+        params.domain.levels = vec![[0.0, 0.0, 1.0], [9.0, 9.0, 2.0], [5.0, 0.0, 1.5]];
+        params.costs = CostWeights {
+            w_len: 0.0,
+            w_turn: 0.0,
+            w_flow: 0.0,
+            w_path: 0.0,
+            w_grade: 1.0,
+            ..CostWeights::default()
+        };
+        let model = CostModel::new(&params);
+        let mut higher = anchor(0.0, 1.0);
+        higher.ground = 10.1;
+        assert!((model.cost(1.0, 0.0, 10.0, &higher) - 20.0).abs() < 1e-9);
+        higher.ground = 9.9;
+        assert_eq!(model.cost(1.0, 0.0, 10.0, &higher), 0.0);
     }
 
     #[test]

@@ -20,7 +20,8 @@ use rand_core::{RngCore, SeedableRng};
 
 use crate::network::{segments_from_parents, CellSet, Network, Node, NO_PARENT};
 use crate::params::{Joining, ParamError, Params};
-use crate::region::{allowed_cells, check_start};
+use crate::region::{allowed_cells, check_start, zone_cells};
+use crate::terrain::SpotSurface;
 use cost::{marginal, Anchor, CostModel};
 use frontier::{Attachment, Frontier, Slot, NONE};
 use lattice::{Lattice, BLOCKED, FREE, FRONTIER_TAG};
@@ -82,7 +83,18 @@ pub struct Growth {
     junction_next: Vec<u32>,
     axes: Vec<(f64, f64)>,
     cell_count: u64,
+    /// The site-wide runoff coefficient: the weight of a cell in no runoff zone.
     cell_weight: f64,
+    /// Runoff zone of each cell, 1-based (0: in no zone); empty without zones.
+    zone_of: Vec<u16>,
+    /// Runoff coefficient of each zone.
+    zone_weights: Vec<f64>,
+    /// The ground through the spot levels (in cells), when there are levels.
+    surface: Option<SpotSurface>,
+    /// Ground under each cell's node, NaN until first asked for; empty without levels.
+    cell_ground: Vec<f64>,
+    /// Ground under each node; empty without levels.
+    node_ground: Vec<f64>,
     /// Whether a segment has been split: a junction then drains an older node, so node order
     /// is no longer a parents-first order (`refresh_flows`).
     has_junctions: bool,
@@ -140,6 +152,11 @@ impl Growth {
             axes: Vec::new(),
             cell_count: 0,
             cell_weight: params.domain.runoff,
+            zone_of: zone_cells(params),
+            zone_weights: params.domain.zones.iter().map(|zone| zone.runoff).collect(),
+            surface: SpotSurface::new(params.domain.levels.clone()),
+            cell_ground: Vec::new(),
+            node_ground: Vec::new(),
             has_junctions: false,
             recheck: params.run.attach_to_segments
                 || params.costs.branch_angle.is_some()
@@ -155,6 +172,9 @@ impl Growth {
         };
         if params.run.attach_to_segments {
             growth.junction_head = vec![NONE; growth.lattice.cell_total()];
+        }
+        if growth.surface.is_some() {
+            growth.cell_ground = vec![f64::NAN; growth.lattice.cell_total()];
         }
         // One node per occupied cell (junctions come on top): reserving them at once spares
         // the copies of eleven doubling arrays.
@@ -248,15 +268,13 @@ impl Growth {
     pub fn network(&self) -> Network {
         let size = self.params.domain.cell_size;
         let cell_area = size * size;
-        let weight = self.cell_weight * cell_area;
         let nodes = (0..self.x.len())
             .map(|index| Node {
                 x: self.x[index] * size,
                 y: self.y[index] * size,
-                weight: if self.cell_of[index] == NONE {
-                    0.0
-                } else {
-                    weight
+                weight: match self.cell_of[index] {
+                    NONE => 0.0,
+                    cell => self.own_weight(cell as usize) * cell_area,
                 },
             })
             .collect();
@@ -297,7 +315,7 @@ impl Growth {
             root_index,
             cell as u32,
         );
-        self.flow[node as usize] = self.cell_weight;
+        self.flow[node as usize] = self.own_weight(cell);
         self.occupy(cell, node);
     }
 
@@ -346,6 +364,14 @@ impl Growth {
         if self.params.run.attach_to_segments {
             self.junction_next.push(NONE);
         }
+        if let Some(surface) = &self.surface {
+            // A junction (no cell of its own) reads the ground at its own place.
+            let ground = match cell {
+                NONE => surface.at(x, y),
+                cell => self.cell_ground(cell as usize, x, y),
+            };
+            self.node_ground.push(ground);
+        }
         if parent != NO_PARENT {
             self.child_count[parent as usize] += 1;
         }
@@ -384,8 +410,9 @@ impl Growth {
         let root = self.root_of[t];
         let (axis_x, axis_y) = self.axes[root as usize];
         let dist = self.dist[t] + self.model.supply_length(vx, vy, axis_x, axis_y);
-        let transport = self.transport[t]
-            + length * marginal(self.cell_weight, self.cell_weight, self.params.costs.alpha);
+        let own = self.own_weight(cell);
+        let transport =
+            self.transport[t] + length * marginal(own, self.cell_weight, self.params.costs.alpha);
         let node = self.push_node(
             cx,
             cy,
@@ -397,7 +424,7 @@ impl Growth {
             root,
             cell as u32,
         );
-        self.flow[node as usize] = self.cell_weight;
+        self.flow[node as usize] = own;
         if self.params.run.planar {
             self.note_segment_length(node, target);
         }

@@ -23,6 +23,7 @@ impl Growth {
                 continue;
             }
             let (cx, cy) = self.lattice.position(slot.cell as usize);
+            let ground = self.cell_ground(slot.cell as usize, cx, cy);
             let best = slot.best;
             let split = best.segment_parent != NONE
                 && self.parent[best.target as usize] != best.segment_parent;
@@ -35,10 +36,15 @@ impl Growth {
                     None => f64::INFINITY,
                 }
             } else if best.segment_parent == NONE {
-                self.model.cost(cx, cy, &self.node_anchor(best.target))
-            } else {
                 self.model
-                    .cost(cx, cy, &self.segment_anchor(best.target, best.along))
+                    .cost(cx, cy, ground, &self.node_anchor(best.target))
+            } else {
+                self.model.cost(
+                    cx,
+                    cy,
+                    ground,
+                    &self.segment_anchor(best.target, best.along),
+                )
             };
             self.frontier.slots[index].cost = cost;
         }
@@ -68,10 +74,9 @@ impl Growth {
                 .extend_from_slice(self.scratch_children.of(node));
         }
         for node in 0..count {
-            self.flow[node] = if self.cell_of[node] == NONE {
-                0.0
-            } else {
-                self.cell_weight
+            self.flow[node] = match self.cell_of[node] {
+                NONE => 0.0,
+                cell => self.own_weight(cell as usize),
             };
         }
         for &node in self.scratch_order.iter().rev() {
@@ -107,10 +112,9 @@ impl Growth {
         let count = self.x.len();
         for node in 0..count {
             debug_assert!(self.parent[node] == NO_PARENT || (self.parent[node] as usize) < node);
-            self.flow[node] = if self.cell_of[node] == NONE {
-                0.0
-            } else {
-                self.cell_weight
+            self.flow[node] = match self.cell_of[node] {
+                NONE => 0.0,
+                cell => self.own_weight(cell as usize),
             };
         }
         for node in (0..count).rev() {

@@ -14,7 +14,7 @@ pub mod file;
 pub mod table;
 mod text;
 
-pub use crate::limits::{MAX_CELLS, MAX_RADIUS};
+pub use crate::limits::{MAX_CELLS, MAX_LEVELS, MAX_RADIUS, MAX_ZONES};
 
 /// Every parameter of a run, in four named parts. The JSON keys and link keys are the field
 /// names of the parts (flat: `{"width": 200, "alpha": 0.5}`, never nested).
@@ -63,7 +63,27 @@ pub struct Domain {
     /// Terrain rise per unit run along +y, i.e. down the page (m/m). Default 0; -1 ..= 1.
     pub grade_y: f64,
     /// Runoff coefficient of every cell (sites); a cell's flow weight. Default 1; > 0 ..= 1.
+    /// Cells inside a runoff zone (`zones`) take the zone's coefficient instead.
     pub runoff: f64,
+    /// Spot levels `[x, y, z]`: x and y in cells, z (ground elevation) in the length unit.
+    /// When set, the uphill term reads the ground from these levels interpolated by inverse
+    /// distance weighting (`terrain::SpotSurface`) instead of the tilted plane of `grade_x`
+    /// and `grade_y`. Default none (empty); at most `MAX_LEVELS`, no two at one place.
+    pub levels: Vec<[f64; 3]>,
+    /// Runoff zones: polygons in cells, each with its own runoff coefficient. A cell whose
+    /// centre lies inside takes the coefficient of the last zone listed that holds it; cells
+    /// in no zone take `runoff`. Default none (empty); at most `MAX_ZONES`.
+    pub zones: Vec<Zone>,
+}
+
+/// A runoff zone: a polygon in cell coordinates and the runoff coefficient of its surface.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Zone {
+    /// Runoff coefficient C of the zone's surface (rational method); 0.01 ..= 1.
+    pub runoff: f64,
+    /// The zone's polygon, `[x, y]` points in cells.
+    pub polygon: Vec<[f64; 2]>,
 }
 
 /// The cost of joining a cell: the weight of each term and the shape of each term.
@@ -371,6 +391,8 @@ fn blank() -> Params {
             grade_x: 0.0,
             grade_y: 0.0,
             runoff: 0.0,
+            levels: Vec::new(),
+            zones: Vec::new(),
         },
         costs: CostWeights {
             w_len: 0.0,

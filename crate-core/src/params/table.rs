@@ -9,8 +9,8 @@
 //! model.
 
 use super::text;
-use super::{check_polygon, format_number, Joining, ParamError, Params, Root, UNITS};
-use crate::limits::{MAX_CELLS, MAX_RADIUS};
+use super::{check_polygon, format_number, Joining, ParamError, Params, Root, Zone, UNITS};
+use crate::limits::{MAX_CELLS, MAX_LEVELS, MAX_RADIUS, MAX_ZONES};
 use crate::mask::MaskGrid;
 
 /// One parameter: what the page shows, what validation allows, and how to reach its field.
@@ -84,6 +84,10 @@ pub enum FieldKind {
     Polygons,
     /// A run-length coded image mask, set by importing an image.
     Mask,
+    /// Spot levels as `x,y,z` groups separated by `;`, or `none`.
+    Levels,
+    /// Runoff zones as `C:x,y;x,y;x,y` separated by `~`, or empty.
+    Zones,
 }
 
 /// Reads and writes one field of `Params`: a getter and a mutable getter of the field's type.
@@ -123,6 +127,13 @@ pub enum Access {
         fn(&Params) -> &Option<MaskGrid>,
         fn(&mut Params) -> &mut Option<MaskGrid>,
     ),
+    /// Spot levels `[x, y, z]`.
+    Levels(
+        fn(&Params) -> &Vec<[f64; 3]>,
+        fn(&mut Params) -> &mut Vec<[f64; 3]>,
+    ),
+    /// Runoff zones.
+    Zones(fn(&Params) -> &Vec<Zone>, fn(&mut Params) -> &mut Vec<Zone>),
 }
 
 /// `field!(Real, costs.alpha)`: the accessor of `params.costs.alpha`.
@@ -439,6 +450,32 @@ static PARAMETERS: &[ParamSpec] = &[
         access: field!(Real, domain.runoff),
     },
     ParamSpec {
+        key: "levels",
+        group: "Terrain",
+        label: "Spot levels of the ground",
+        unit: "",
+        bounds: None,
+        bounds_why: "",
+        default: "none",
+        link_v1_default: "none",
+        fit: None,
+        help: "Ground levels x,y,z;x,y,z;... with x and y in cells and z the elevation in the length unit; when given, the ground between them is interpolated by inverse distance weighting (Shepard 1968, power 2) and replaces the slopes above in the uphill cost; none uses the slopes (spot levels).",
+        access: Access::Levels(|params| &params.domain.levels, |params| &mut params.domain.levels),
+    },
+    ParamSpec {
+        key: "zones",
+        group: "Terrain",
+        label: "Surfaces with their own runoff",
+        unit: "",
+        bounds: None,
+        bounds_why: "",
+        default: "",
+        link_v1_default: "",
+        fit: None,
+        help: "Runoff zones C:x,y;x,y;x,y separated by ~, each a runoff coefficient C and a polygon in cells (roof 0.9:..., lawn 0.2:...); a cell takes the coefficient of the last zone holding its centre, other cells the share of rain that runs off above (runoff zones).",
+        access: Access::Zones(|params| &params.domain.zones, |params| &mut params.domain.zones),
+    },
+    ParamSpec {
         key: "gamma",
         group: "Widths",
         label: "How width follows flow",
@@ -630,6 +667,8 @@ impl ParamSpec {
             Access::Polygon(..) => FieldKind::Polygon,
             Access::Polygons(..) => FieldKind::Polygons,
             Access::Mask(..) => FieldKind::Mask,
+            Access::Levels(..) => FieldKind::Levels,
+            Access::Zones(..) => FieldKind::Zones,
         }
     }
 
@@ -667,6 +706,8 @@ impl ParamSpec {
                 Some(mask) => text::mask_text(mask),
                 None => "none".to_string(),
             },
+            Access::Levels(get, _) => text::levels_text(get(params)),
+            Access::Zones(get, _) => text::zones_text(get(params)),
         }
     }
 
@@ -698,6 +739,8 @@ impl ParamSpec {
                     .collect::<Result<_, _>>()?
             }
             Access::Mask(_, get) => *get(params) = text::mask(value)?,
+            Access::Levels(_, get) => *get(params) = text::levels(value)?,
+            Access::Zones(_, get) => *get(params) = text::zones(value)?,
         }
         Ok(())
     }
@@ -752,6 +795,8 @@ impl ParamSpec {
                     }),
                 None => Ok(()),
             },
+            Access::Levels(get, _) => check_levels(self.key, get(params)),
+            Access::Zones(get, _) => check_zones(self.key, get(params)),
             _ => Ok(()),
         }
     }
@@ -814,6 +859,12 @@ impl ParamSpec {
             FieldKind::Polygon => "none or at least 3 finite points".to_string(),
             FieldKind::Polygons => "each at least 3 finite points".to_string(),
             FieldKind::Mask => "none or the lattice's size, runs adding up to it".to_string(),
+            FieldKind::Levels => format!(
+                "none or at most {MAX_LEVELS} x,y,z levels within +-1e6, no two at one place"
+            ),
+            FieldKind::Zones => format!(
+                "at most {MAX_ZONES}, each a coefficient in [0.01, 1] and at least 3 finite points"
+            ),
             _ => String::new(),
         }
     }
@@ -865,6 +916,84 @@ fn check_roots(params: &Params, roots: &[Root]) -> Result<(), ParamError> {
                 allowed: "a finite, non-zero direction [dx, dy]".into(),
             });
         }
+    }
+    Ok(())
+}
+
+/// Largest size of a spot level's coordinates and elevation: a million cells is fifty lattices
+/// wide and a million length units higher than any ground, and the inverse-distance weights of
+/// levels so placed stay far from overflow.
+const MAX_LEVEL_COORDINATE: f64 = 1.0e6;
+
+/// Spot levels: within `MAX_LEVEL_COORDINATE`, at most `MAX_LEVELS`, no two at the same place (the interpolated ground
+/// would not be a function there).
+fn check_levels(key: &str, levels: &[[f64; 3]]) -> Result<(), ParamError> {
+    if levels.len() > MAX_LEVELS {
+        return Err(ParamError {
+            key: key.into(),
+            value: format!("{} levels", levels.len()),
+            allowed: format!("at most {MAX_LEVELS} spot levels"),
+        });
+    }
+    for (index, level) in levels.iter().enumerate() {
+        if !level
+            .iter()
+            .all(|value| value.abs() <= MAX_LEVEL_COORDINATE)
+        {
+            return Err(ParamError {
+                key: format!("{key}[{index}]"),
+                value: format!(
+                    "[{}, {}, {}]",
+                    format_number(level[0]),
+                    format_number(level[1]),
+                    format_number(level[2])
+                ),
+                allowed: "x and y in cells and the elevation z each within +-1e6".into(),
+            });
+        }
+    }
+    let mut order: Vec<usize> = (0..levels.len()).collect();
+    order.sort_by(|&a, &b| {
+        levels[a][0]
+            .total_cmp(&levels[b][0])
+            .then(levels[a][1].total_cmp(&levels[b][1]))
+    });
+    for pair in order.windows(2) {
+        let (first, second) = (levels[pair[0]], levels[pair[1]]);
+        if first[0] == second[0] && first[1] == second[1] {
+            let later = pair[0].max(pair[1]);
+            return Err(ParamError {
+                key: format!("{key}[{later}]"),
+                value: format!("[{}, {}]", second[0], second[1]),
+                allowed: format!(
+                    "a place of its own: level {} stands at the same x,y",
+                    pair[0].min(pair[1])
+                ),
+            });
+        }
+    }
+    Ok(())
+}
+
+/// Runoff zones: at most `MAX_ZONES`, each a coefficient in [0.01, 1] (the bounds of `runoff`)
+/// and a polygon of at least three finite points.
+fn check_zones(key: &str, zones: &[Zone]) -> Result<(), ParamError> {
+    if zones.len() > MAX_ZONES {
+        return Err(ParamError {
+            key: key.into(),
+            value: format!("{} zones", zones.len()),
+            allowed: format!("at most {MAX_ZONES} runoff zones"),
+        });
+    }
+    for (index, zone) in zones.iter().enumerate() {
+        if !(zone.runoff.is_finite() && (0.01..=1.0).contains(&zone.runoff)) {
+            return Err(ParamError {
+                key: format!("{key}[{index}].runoff"),
+                value: format_number(zone.runoff),
+                allowed: "a runoff coefficient in [0.01, 1], as for `runoff`".into(),
+            });
+        }
+        check_polygon(&format!("{key}[{index}]"), &zone.polygon)?;
     }
     Ok(())
 }

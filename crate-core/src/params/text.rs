@@ -1,7 +1,8 @@
 //! Link text of parameter values: shortest round-trip numbers, `none`, `x,y,dx,dy` roots,
-//! `x,y;x,y` polygons and `WIDTHxHEIGHT:run.run` masks, written and read back exactly.
+//! `x,y;x,y` polygons, `WIDTHxHEIGHT:run.run` masks, `x,y,z;x,y,z` spot levels and
+//! `C:x,y;x,y;x,y~C:...` runoff zones, written and read back exactly.
 
-use super::{Joining, Root};
+use super::{Joining, Root, Zone};
 use crate::mask::MaskGrid;
 
 /// The words of the joining rules, in the order of `Joining`'s variants.
@@ -154,4 +155,128 @@ pub(crate) fn mask(text: &str) -> Result<Option<MaskGrid>, String> {
         height: whole(height)?,
         runs: runs.split('.').map(whole).collect::<Result<_, _>>()?,
     }))
+}
+
+/// Spot levels as `x,y,z` groups joined by `;`; `none` when there are none.
+pub(crate) fn levels_text(levels: &[[f64; 3]]) -> String {
+    if levels.is_empty() {
+        return "none".to_string();
+    }
+    levels
+        .iter()
+        .map(|level| {
+            format!(
+                "{},{},{}",
+                number(level[0]),
+                number(level[1]),
+                number(level[2])
+            )
+        })
+        .collect::<Vec<_>>()
+        .join(";")
+}
+
+/// Runoff zones as `C:x,y;x,y;x,y` joined by `~`; empty when there are none.
+pub(crate) fn zones_text(zones: &[Zone]) -> String {
+    zones
+        .iter()
+        .map(|zone| format!("{}:{}", number(zone.runoff), polygon_text(&zone.polygon)))
+        .collect::<Vec<_>>()
+        .join("~")
+}
+
+pub(crate) fn levels(text: &str) -> Result<Vec<[f64; 3]>, String> {
+    if text == "none" || text.is_empty() {
+        return Ok(Vec::new());
+    }
+    text.split(';')
+        .filter(|part| !part.trim().is_empty())
+        .map(|group| {
+            let parts: Vec<&str> = group.split(',').map(str::trim).collect();
+            let [x, y, z] = parts[..] else {
+                return Err(format!("spot level {group:?}: expected x,y,z"));
+            };
+            let read = |name: &str, value: &str| {
+                real(value).map_err(|error| format!("spot level {group:?}: {name}: {error}"))
+            };
+            Ok([read("x", x)?, read("y", y)?, read("z", z)?])
+        })
+        .collect()
+}
+
+pub(crate) fn zones(text: &str) -> Result<Vec<Zone>, String> {
+    text.split('~')
+        .filter(|part| !part.trim().is_empty())
+        .enumerate()
+        .map(|(index, part)| {
+            let Some((runoff, points)) = part.split_once(':') else {
+                return Err(format!(
+                    "zone {index}: expected C:x,y;x,y;x,y (a runoff coefficient, a colon, a polygon)"
+                ));
+            };
+            Ok(Zone {
+                runoff: real(runoff.trim())
+                    .map_err(|error| format!("zone {index}: runoff coefficient: {error}"))?,
+                polygon: polygon(points).map_err(|error| format!("zone {index}: {error}"))?,
+            })
+        })
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn levels_and_zones_read_back_exactly() {
+        let levels = vec![[1.5, 2.0, 100.25], [-3.0, 7.0, 99.1]];
+        assert_eq!(levels_text(&levels), "1.5,2,100.25;-3,7,99.1");
+        assert_eq!(super::levels(&levels_text(&levels)), Ok(levels));
+        assert_eq!(levels_text(&[]), "none");
+        let zones = vec![
+            Zone {
+                runoff: 0.9,
+                polygon: vec![[0.0, 0.0], [4.0, 0.0], [4.0, 3.0]],
+            },
+            Zone {
+                runoff: 0.15,
+                polygon: vec![[5.0, 5.0], [6.5, 5.0], [6.0, 7.0]],
+            },
+        ];
+        let text = zones_text(&zones);
+        assert_eq!(text, "0.9:0,0;4,0;4,3~0.15:5,5;6.5,5;6,7");
+        assert_eq!(super::zones(&text), Ok(zones));
+    }
+
+    #[test]
+    fn bad_levels_and_zones_say_what_is_expected() {
+        let error = super::levels("1,2,3;4,5").unwrap_err();
+        assert!(
+            error.contains("\"4,5\"") && error.contains("x,y,z"),
+            "{error}"
+        );
+        let error = super::zones("0.9:0,0;1,0;1,1~0,0;1,0;1,1").unwrap_err();
+        assert!(
+            error.contains("zone 1") && error.contains("C:x,y"),
+            "{error}"
+        );
+        let error = super::zones("wet:0,0;1,0;1,1").unwrap_err();
+        assert!(error.contains("runoff coefficient"), "{error}");
+    }
+
+    /// Validation names the level or zone at fault.
+    #[test]
+    fn validation_names_the_level_or_zone() {
+        let mut params = crate::params::Params::default();
+        params.domain.levels = vec![[1.0, 1.0, 5.0], [2.0, 1.0, 5.0], [1.0, 1.0, 6.0]];
+        let error = params.validate().unwrap_err();
+        assert_eq!(error.key, "levels[2]");
+        params.domain.levels.clear();
+        params.domain.zones = vec![Zone {
+            runoff: 0.0,
+            polygon: vec![[0.0, 0.0], [4.0, 0.0], [4.0, 3.0]],
+        }];
+        let error = params.validate().unwrap_err();
+        assert_eq!(error.key, "zones[0].runoff");
+    }
 }
