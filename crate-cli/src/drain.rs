@@ -7,6 +7,7 @@ use ramulus_core::drainage::{schedule_csv, site_geojson};
 use ramulus_core::growth::Growth;
 use ramulus_core::params::Params;
 use ramulus_core::run::{RunView, SITE_CAUTION};
+use ramulus_core::site::{read_geotiff, read_site, read_spot_levels_csv, Site, Terrain};
 use ramulus_core::site_sizing::{size_run, RainForm, SizingForm};
 use ramulus_draw::site_plan::plan_svg;
 use ramulus_draw::site_texts::{flags_summary, site_plan_input, site_tables};
@@ -20,7 +21,42 @@ use crate::output::OutputPlan;
 #[derive(Default, Args)]
 #[command(after_help = DRAIN_NOTES)]
 pub struct DrainOptions {
-    /// Start from this named parameter set (default: drainage-site)
+    /// The site: a GeoJSON FeatureCollection whose features carry
+    /// properties.role (outline, obstacle, zone with
+    /// runoff_coefficient, outlet, level with elevation);
+    /// properties.units of the collection is m (default) or ft
+    #[arg(long, value_name = "SITE.geojson", conflicts_with_all = ["preset", "link"], verbatim_doc_comment)]
+    pub site: Option<String>,
+    /// Grid cell of the layout, in the site's unit (default 0.5 m
+    /// or 1.5 ft); with --site
+    #[arg(
+        long = "cell-size",
+        value_name = "LENGTH",
+        requires = "site",
+        verbatim_doc_comment
+    )]
+    pub cell_size: Option<f64>,
+    /// Spot levels x,y,z (one per line, the site's coordinates and
+    /// unit) replacing the site file's own; with --site
+    #[arg(
+        long,
+        value_name = "LEVELS.csv",
+        requires = "site",
+        verbatim_doc_comment
+    )]
+    pub levels: Option<String>,
+    /// Ground from an elevation raster (GeoTIFF with its
+    /// georeferencing), sampled on a grid of 64 x 64 points; with
+    /// --site
+    #[arg(
+        long,
+        value_name = "GROUND.tif",
+        requires = "site",
+        conflicts_with = "levels",
+        verbatim_doc_comment
+    )]
+    pub terrain: Option<String>,
+    /// Start from this named parameter set (default: garden-site)
     #[arg(long, value_name = "NAME", conflicts_with = "link")]
     pub preset: Option<String>,
     /// Start from a run link copied from the page (a URL or its #fragment)
@@ -99,7 +135,11 @@ pub fn drain(options: DrainOptions) -> Result<(), CliError> {
     let design = form
         .design()
         .map_err(|error| CliError::Failed(format!("design storm and sizing: {error}")))?;
-    let params = drain_params(&options)?;
+    let site_file = read_site_file(&options, &mut plan)?;
+    let params = match &site_file {
+        Some(site) => site_params(site, &options)?,
+        None => drain_params(&options)?,
+    };
     if !params.is_site() {
         return Err(CliError::Failed(format!(
             "a site's lengths are in m or ft; these parameters are in {:?} (a leaf?): use \
@@ -123,7 +163,14 @@ pub fn drain(options: DrainOptions) -> Result<(), CliError> {
     }
     if let Some(path) = &options.svg_file {
         let metadata = json!({ "params": params, "digest": view.digest }).to_string();
-        let input = site_plan_input(&sized, &params, &design, SITE_CAUTION, metadata);
+        let input = site_plan_input(
+            &sized,
+            &params,
+            &design,
+            site_file.as_ref(),
+            SITE_CAUTION,
+            metadata,
+        );
         plan.stage(path, &plan_svg(&input))?;
     }
     plan.commit()?;
@@ -264,9 +311,67 @@ fn design_form(options: &DrainOptions) -> Result<SizingForm, CliError> {
 fn drain_params(options: &DrainOptions) -> Result<Params, CliError> {
     let link = link_parameters(options.link.as_deref())?;
     let preset = if link.is_none() {
-        Some(options.preset.as_deref().unwrap_or("drainage-site"))
+        Some(options.preset.as_deref().unwrap_or("garden-site"))
     } else {
         None
     };
     assemble_params(link, preset, None, &options.sets, None)
+}
+
+/// The site file of `--site` with the spot levels of `--levels`, if given.
+fn read_site_file(options: &DrainOptions, plan: &mut OutputPlan) -> Result<Option<Site>, CliError> {
+    let Some(path) = &options.site else {
+        return Ok(None);
+    };
+    plan.input("--site", path);
+    let bytes = std::fs::read(path)
+        .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))?;
+    let mut site =
+        read_site(&bytes).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+    if let Some(levels_path) = &options.levels {
+        plan.input("--levels", levels_path);
+        let bytes = std::fs::read(levels_path)
+            .map_err(|error| CliError::Failed(format!("{levels_path}: cannot read: {error}")))?;
+        let levels = read_spot_levels_csv(&bytes)
+            .map_err(|error| CliError::Failed(format!("{levels_path}: {error}")))?;
+        site.set_levels(levels)
+            .map_err(|error| CliError::Failed(format!("{levels_path}: {error}")))?;
+    }
+    Ok(Some(site))
+}
+
+/// The run parameters of a site: its cells, terrain (a raster, its spot levels, or flat with
+/// a warning) and the `--set` overrides.
+fn site_params(site: &Site, options: &DrainOptions) -> Result<Params, CliError> {
+    let cell = options
+        .cell_size
+        .unwrap_or(if site.units == "ft" { 1.5 } else { 0.5 });
+    let terrain = if let Some(path) = &options.terrain {
+        let bytes = std::fs::read(path)
+            .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))?;
+        let raster =
+            read_geotiff(&bytes).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+        Terrain::Raster {
+            raster,
+            per_side: 64,
+        }
+    } else if site.levels.len() >= 3 {
+        Terrain::SpotLevels
+    } else {
+        eprintln!(
+            "warning: the site has no spot levels (give --levels or --terrain): the ground is \
+             taken as flat, so every channel is flagged as flatter than the least grade"
+        );
+        Terrain::Grade {
+            east: 0.0,
+            north: 0.0,
+        }
+    };
+    let params = site
+        .to_params(cell, &terrain)
+        .map_err(|error| CliError::Failed(format!("--site: {error}")))?;
+    if options.sets.is_empty() {
+        return Ok(params);
+    }
+    assemble_params(Some(params), None, None, &options.sets, None)
 }

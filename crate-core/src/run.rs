@@ -19,7 +19,8 @@ use crate::metrics::{measure_with, Metrics};
 use crate::network::{Network, Topology, TopologyError, NO_PARENT};
 use crate::params::Params;
 use crate::segments::{strahler_orders, SegmentTable, WidthRule};
-use crate::veins::{conducting_segments, vein_network};
+use crate::site::node_area_runoff;
+use crate::veins::{conducting_segments, conducting_segments_by_area, vein_network};
 
 /// The forest view and Strahler orders of a forest, the output of the topology pass.
 #[derive(Clone, Debug)]
@@ -105,12 +106,18 @@ pub fn conducting_network(
     params: &Params,
 ) -> ConductingNetwork {
     let topology = forest.map(|view| &view.topology);
-    let conducts = conducting_segments(
-        network,
-        topology,
-        params.widths.vein_area,
-        params.domain.runoff,
-    );
+    let conducts = if params.domain.zones.is_empty() {
+        conducting_segments(
+            network,
+            topology,
+            params.widths.vein_area,
+            params.domain.runoff,
+        )
+    } else {
+        // Runoff varies by zone: the threshold is on the plain area drained.
+        let own = node_area_runoff(network, params);
+        conducting_segments_by_area(network, topology, params.widths.vein_area, &own.area)
+    };
     let veins = match topology {
         Some(topology) if conducts.iter().any(|&conducts| !conducts) => {
             let (veins, index) = vein_network(network, topology, &conducts);

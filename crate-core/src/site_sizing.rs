@@ -6,7 +6,8 @@
 //! Channels are the conducting network (`vein_area`, the channel-initiation threshold): with a
 //! threshold, every hillslope cell drains overland to the first channel node downstream of it,
 //! whose own area, runoff coefficient (area-weighted) and inlet time take it in; without one,
-//! every segment is a channel. Ground levels come from the run's terrain (`terrain_level`).
+//! every segment is a channel. Ground levels come from the run's terrain (`terrain::Elevation`:
+//! its spot levels, else its uniform grade).
 
 use serde::Deserialize;
 
@@ -17,6 +18,8 @@ use crate::drainage::{
 use crate::network::{Network, Topology, NO_PARENT};
 use crate::params::Params;
 use crate::run::RunView;
+use crate::site::node_area_runoff;
+use crate::terrain::{node_ground, Elevation};
 
 /// The design form as typed: every value a text, so a wrong one is named as the user wrote it.
 #[derive(Clone, Debug, Default, Deserialize)]
@@ -263,13 +266,6 @@ pub struct SizedSite {
     pub hydraulics: SiteHydraulics,
 }
 
-/// Ground level at (x, y), in the run's length unit: the uniform grade of the parameters
-/// (`grade_x`, `grade_y` are rises per unit of run to the right and down the page), 0 at the
-/// lattice's top-left corner.
-pub fn terrain_level(params: &Params, x: f64, y: f64) -> f64 {
-    params.domain.grade_x * x + params.domain.grade_y * y
-}
-
 /// Sizes a run's channels for `design`.
 pub fn size_run(
     view: &RunView,
@@ -283,14 +279,14 @@ pub fn size_run(
         return Err(SiteSizingError::NotAForest);
     };
     let whole = &view.network;
-    let cell_area = whole.cell_size * whole.cell_size;
-    // Each grown cell drains its own area; junctions off the cell centres drain none.
-    let own_area: Vec<f64> = whole
-        .nodes
+    // Each grown cell drains its own area at its zone's runoff coefficient; junctions none.
+    let own = node_area_runoff(whole, params);
+    let own_area = own.area;
+    let own_runoff_area: Vec<f64> = own_area
         .iter()
-        .map(|node| if node.weight > 0.0 { cell_area } else { 0.0 })
+        .zip(&own.runoff)
+        .map(|(&area, &runoff)| area * runoff)
         .collect();
-    let own_runoff_area: Vec<f64> = whole.nodes.iter().map(|node| node.weight).collect();
 
     let (network, topology, channel_of) = match &view.conducting.veins {
         Some(veins) => (
@@ -325,11 +321,7 @@ pub fn size_run(
             }
         })
         .collect();
-    let node_ground = network
-        .nodes
-        .iter()
-        .map(|node| terrain_level(params, node.x, node.y))
-        .collect();
+    let node_ground = node_ground(&network, &Elevation::of_run(params));
     let input = HydraulicsInput {
         node_area: area,
         node_runoff,

@@ -40,6 +40,39 @@ pub fn conducting_segments(
         .collect()
 }
 
+/// Like `conducting_segments`, with each node's own plain area given (`node_area`, as
+/// `site::node_area_runoff` gives it), for runs whose runoff coefficient varies by zone: the
+/// drained area is then the sum of the areas upstream, not the flow over one coefficient.
+pub fn conducting_segments_by_area(
+    network: &Network,
+    topology: Option<&Topology>,
+    vein_area: f64,
+    node_area: &[f64],
+) -> Vec<bool> {
+    let count = network.segments.len();
+    let Some(topology) =
+        topology.filter(|topology| vein_area > 0.0 && node_area.len() == topology.parent.len())
+    else {
+        return vec![true; count];
+    };
+    // Leaves first (the reverse of the root-first order), each node's area passed downstream.
+    let mut drained = node_area.to_vec();
+    for &node in topology.order.iter().rev() {
+        let parent = topology.parent[node as usize];
+        if parent != NO_PARENT {
+            drained[parent as usize] += drained[node as usize];
+        }
+    }
+    network
+        .segments
+        .iter()
+        .map(|segment| {
+            let from = segment.from as usize;
+            topology.parent.get(from) != Some(&segment.to) || drained[from] >= vein_area
+        })
+        .collect()
+}
+
 /// The vein network: the conducting segments and the nodes they join, plus every root. Each
 /// kept node's weight is its flow less its conducting children's flows, so it carries the
 /// tissue it supplies and every vein's flow is the same as in the whole network. Area, units,

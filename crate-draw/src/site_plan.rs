@@ -16,6 +16,10 @@ use crate::format::{escape_attribute, escape_text, fixed, round_length};
 /// Smallest text on the plan, in paper millimetres (2.5 mm: common drafting practice, no source).
 pub const PLAN_TEXT_MM: f64 = 2.5;
 
+/// Shortest run of equal size (paper mm) that gets its own arrow and label: about the length of
+/// a label, so labels do not pile up on short branches.
+const LABELLED_RUN_MM: f64 = 30.0;
+
 /// Map scales tried, largest first; the first at which the site fits the paper is used.
 const MAP_SCALES: [u32; 12] = [
     50, 100, 200, 250, 500, 1000, 1250, 2000, 2500, 5000, 10_000, 25_000,
@@ -248,6 +252,8 @@ fn plan_bounds(input: &PlanInput) -> [f64; 4] {
 }
 
 fn draw_areas(svg: &mut String, input: &PlanInput, to_paper: &dyn Fn([f64; 2]) -> [f64; 2]) {
+    // Labels go on top of every area, so a zone's name is not hidden under a building.
+    let mut labels = String::new();
     // Zones under kept-clear areas under the outline.
     for kind in [
         PlanAreaKind::Zone,
@@ -284,7 +290,7 @@ fn draw_areas(svg: &mut String, input: &PlanInput, to_paper: &dyn Fn([f64; 2]) -
                 let cx = points.iter().map(|p| p[0]).sum::<f64>() / n;
                 let cy = points.iter().map(|p| p[1]).sum::<f64>() / n;
                 let _ = writeln!(
-                    svg,
+                    labels,
                     "<text class=\"{class}-label\" x=\"{}\" y=\"{}\" font-size=\"{PLAN_TEXT_MM}\" text-anchor=\"middle\" fill=\"#333333\">{}</text>",
                     fixed(cx, 2),
                     fixed(cy, 2),
@@ -293,6 +299,7 @@ fn draw_areas(svg: &mut String, input: &PlanInput, to_paper: &dyn Fn([f64; 2]) -
             }
         }
     }
+    svg.push_str(&labels);
 }
 
 /// Channels, then one arrow and one label per run of equal size between confluences.
@@ -325,8 +332,8 @@ fn draw_channels(svg: &mut String, input: &PlanInput, to_paper: &dyn Fn([f64; 2]
             .iter()
             .map(|c| distance(to_paper(c.from), to_paper(c.to)))
             .sum();
-        // A run shorter than a label's height on paper gets no arrow or label of its own.
-        if length < 4.0 * PLAN_TEXT_MM {
+        // A run shorter than a label's length on paper gets no arrow or label of its own.
+        if length < LABELLED_RUN_MM {
             continue;
         }
         let middle = run[run.len() / 2];

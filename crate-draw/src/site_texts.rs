@@ -4,6 +4,7 @@
 
 use ramulus_core::drainage::{ChannelSize, HydraulicFlag, SiteHydraulics, UnitSystem};
 use ramulus_core::params::Params;
+use ramulus_core::site::Site;
 use ramulus_core::site_sizing::{SiteDesign, SizedSite};
 use serde::Serialize;
 
@@ -78,15 +79,29 @@ pub fn area_text(square_metres: f64, units: UnitSystem) -> String {
 const SQUARE_FEET_PER_ACRE: f64 = 43_560.0;
 
 /// A flow with its unit (m³/s or ft³/s), four significant digits.
+/// Flows under 0.1 m³/s are written in litres per second (1 m³/s = 1000 L/s), as site
+/// drainage usually states them.
 pub fn flow_text(cubic_metres_per_second: f64, units: UnitSystem) -> String {
-    let unit = match units {
-        UnitSystem::Si => "m³/s",
-        UnitSystem::Us => "ft³/s",
-    };
-    format!(
-        "{} {unit}",
-        four_digits(units.flow_from_si(cubic_metres_per_second))
-    )
+    match units {
+        UnitSystem::Si if cubic_metres_per_second < 0.1 => {
+            format!("{} L/s", three_digits(cubic_metres_per_second * 1000.0))
+        }
+        UnitSystem::Si => format!("{} m³/s", three_digits(cubic_metres_per_second)),
+        UnitSystem::Us => format!(
+            "{} ft³/s",
+            three_digits(units.flow_from_si(cubic_metres_per_second))
+        ),
+    }
+}
+
+/// Three significant digits in plain decimal notation (no exponent), e.g. 0.00179, 12.3, 1230.
+fn three_digits(value: f64) -> String {
+    if !value.is_finite() || value == 0.0 {
+        return "0".into();
+    }
+    let magnitude = value.abs().log10().floor() as i32;
+    let decimals = (2 - magnitude).max(0) as usize;
+    fixed(value, decimals)
 }
 
 /// A size as drawn on the plan: "Ø300" (mm) or "Ø12 in", or a swale's flow depth.
@@ -104,6 +119,40 @@ pub fn size_text(size: ChannelSize, units: UnitSystem) -> String {
             units.length_unit()
         ),
     }
+}
+
+/// What a site file holds, in one sentence: its size, area and features.
+pub fn site_summary(site: &Site) -> String {
+    let units = site.units.as_str();
+    let xs = site.outline.iter().map(|p| p[0]);
+    let ys = site.outline.iter().map(|p| p[1]);
+    let width = xs.clone().fold(f64::NEG_INFINITY, f64::max) - xs.fold(f64::INFINITY, f64::min);
+    let height = ys.clone().fold(f64::NEG_INFINITY, f64::max) - ys.fold(f64::INFINITY, f64::min);
+    let area = shoelace(&site.outline).abs();
+    let count = |n: usize, one: &str, many: &str| {
+        format!("{} {}", grouped(n as u64), if n == 1 { one } else { many })
+    };
+    format!(
+        "{} {units} × {} {units} site, {} {units}² inside the outline; {}, {}, {}, {}.",
+        four_digits(width),
+        four_digits(height),
+        four_digits(area),
+        count(site.obstacles.len(), "area kept clear", "areas kept clear"),
+        count(site.zones.len(), "surface zone", "surface zones"),
+        count(site.outlets.len(), "outlet", "outlets"),
+        count(site.levels.len(), "spot level", "spot levels"),
+    )
+}
+
+fn shoelace(ring: &[[f64; 2]]) -> f64 {
+    let n = ring.len();
+    (0..n)
+        .map(|i| {
+            let (a, b) = (ring[i], ring[(i + 1) % n]);
+            a[0] * b[1] - b[0] * a[1]
+        })
+        .sum::<f64>()
+        / 2.0
 }
 
 /// The schedule, outlets and flag summary of a sized site.
@@ -206,10 +255,14 @@ pub fn flags_summary(site: &SiteHydraulics) -> String {
 /// The drainage plan's input for a sized run: the outline and kept-clear areas of the
 /// parameters, every channel with its size and flow, the outlets with their area and flow, the
 /// design notes and `caution`.
+///
+/// `site`: the site file the run was made from, if known; its obstacle, zone and outlet names
+/// label the plan (matched in order, as `Site::to_params` keeps them).
 pub fn site_plan_input(
     sized: &SizedSite,
     params: &Params,
     design: &SiteDesign,
+    site_file: Option<&Site>,
     caution: &str,
     metadata_json: String,
 ) -> PlanInput {
@@ -237,29 +290,38 @@ pub fn site_plan_input(
             label: String::new(),
         });
     }
-    for obstacle in &params.domain.obstacles {
+    let names = |k: usize| -> Option<String> {
+        site_file
+            .filter(|site| site.obstacles.len() == params.domain.obstacles.len())
+            .and_then(|site| site.obstacles[k].name.clone())
+    };
+    for (k, obstacle) in params.domain.obstacles.iter().enumerate() {
         areas.push(PlanArea {
             kind: PlanAreaKind::KeptClear,
             ring: to_units(&polygon_points(obstacle)),
-            label: "kept clear".into(),
+            label: names(k).unwrap_or_else(|| "kept clear".into()),
         });
     }
-    let largest = site
-        .segments
-        .iter()
-        .map(|segment| size_metres(segment.size))
-        .fold(0.0, f64::max);
+    let zone_names = site_file.filter(|site| site.zones.len() == params.domain.zones.len());
+    for (k, zone) in params.domain.zones.iter().enumerate() {
+        let name = zone_names
+            .and_then(|site| site.zones[k].surface.clone().or(site.zones[k].name.clone()))
+            .unwrap_or_else(|| "zone".into());
+        areas.push(PlanArea {
+            kind: PlanAreaKind::Zone,
+            ring: to_units(&zone.polygon),
+            label: format!("{name}, C {}", fixed(zone.runoff, 2)),
+        });
+    }
     let channels = site
         .segments
         .iter()
         .map(|segment| {
             let from = &sized.network.nodes[segment.from as usize];
             let to = &sized.network.nodes[segment.to as usize];
-            let share = if largest > 0.0 {
-                size_metres(segment.size) / largest
-            } else {
-                0.0
-            };
+            // Drawn 0.3 mm plus 2 mm per metre of size: a 150 mm pipe 0.6 mm, a 600 mm one
+            // 1.5 mm (legible at any map scale; the label gives the size).
+            let share = size_metres(segment.size) * 2.0 / 1.4;
             PlanChannel {
                 from_node: segment.from as usize,
                 to_node: segment.to as usize,
@@ -267,7 +329,7 @@ pub fn site_plan_input(
                 to: [to.x, to.y],
                 size_label: size_text(segment.size, units),
                 flow_label: flow_text(segment.peak_flow, units),
-                width_mm: 0.35 + 1.4 * share,
+                width_mm: 0.3 + 1.4 * share,
                 flagged: !segment.flags.is_empty(),
             }
         })
@@ -281,8 +343,8 @@ pub fn site_plan_input(
             Some(PlanOutlet {
                 at: [node.x, node.y],
                 label: format!(
-                    "outlet {}: {}, {}",
-                    k + 1,
+                    "{}: {}, {}",
+                    outlet_name(site_file, k),
                     area_text(outlet.contributing_area, units),
                     flow_text(outlet.peak_flow, units)
                 ),
@@ -301,6 +363,14 @@ pub fn site_plan_input(
         caution: caution.to_string(),
         metadata_json,
     }
+}
+
+/// An outlet's name from the site file, else "outlet k".
+fn outlet_name(site_file: Option<&Site>, k: usize) -> String {
+    site_file
+        .and_then(|site| site.outlets.get(k))
+        .and_then(|outlet| outlet.name.clone())
+        .unwrap_or_else(|| format!("outlet {}", k + 1))
 }
 
 fn size_metres(size: ChannelSize) -> f64 {

@@ -310,14 +310,20 @@ impl Simulation {
         crate::site::drainage_geojson(view, &self.params, form_json).map_err(|e| JsError::new(&e))
     }
 
-    /// The drainage plan (SVG to a stated map scale), for the design form.
-    pub fn drainage_plan_svg(&mut self, form_json: &str) -> Result<String, JsError> {
+    /// The drainage plan (SVG to a stated map scale), for the design form; `site_text` is the
+    /// site file the run came from (its names label the plan), or empty.
+    pub fn drainage_plan_svg(
+        &mut self,
+        form_json: &str,
+        site_text: &str,
+    ) -> Result<String, JsError> {
         self.view()?;
         let view = self
             .view_cache
             .as_ref()
             .ok_or_else(|| JsError::new("derived view missing"))?;
-        crate::site::drainage_plan_svg(view, &self.params, form_json).map_err(|e| JsError::new(&e))
+        crate::site::drainage_plan_svg(view, &self.params, form_json, site_text)
+            .map_err(|e| JsError::new(&e))
     }
 
     /// The progress line: `1,234 of 5,000 cells`, with why growth stopped once it has.

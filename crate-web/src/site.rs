@@ -6,11 +6,13 @@
 use ramulus_core::drainage::{
     schedule_csv, site_geojson, Conveyance, RunoffTable, SizingRules, UnitSystem,
 };
+use ramulus_core::link::encode_link;
 use ramulus_core::params::Params;
 use ramulus_core::run::{RunView, SITE_CAUTION};
+use ramulus_core::site::{read_site, Site, Terrain};
 use ramulus_core::site_sizing::{read_sizing_form, size_run, SiteDesign, SizedSite};
 use ramulus_draw::site_plan::plan_svg;
-use ramulus_draw::site_texts::{site_plan_input, site_tables};
+use ramulus_draw::site_texts::{site_plan_input, site_summary, site_tables};
 use serde_json::json;
 use wasm_bindgen::prelude::*;
 
@@ -61,6 +63,68 @@ pub fn drainage_defaults_json(system: &str) -> String {
     .to_string()
 }
 
+/// A site file checked: `{summary}` (its size, area and features in a sentence) or `{error}`
+/// naming the feature and what is wrong.
+#[wasm_bindgen]
+pub fn site_summary_json(text: &str) -> String {
+    match read_site(text.as_bytes()) {
+        Ok(site) => json!({ "summary": site_summary(&site) }).to_string(),
+        Err(error) => json!({ "error": error.to_string() }).to_string(),
+    }
+}
+
+/// A site file as a run link on cells of `cell_text` (the site's unit): `{link, summary}`, or
+/// `{error}` naming what is wrong (the file, the cell size, or parts no outlet can reach). The
+/// ground comes from the file's spot levels, or is taken as flat when it has none.
+#[wasm_bindgen]
+pub fn site_link_json(text: &str, cell_text: &str) -> String {
+    let error = |message: String| json!({ "error": message }).to_string();
+    let site = match read_site(text.as_bytes()) {
+        Ok(site) => site,
+        Err(problem) => return error(problem.to_string()),
+    };
+    let cell: f64 = match cell_text.trim().parse() {
+        Ok(value) => value,
+        Err(_) => {
+            return error(format!(
+                "grid cell: \"{}\" is not a length in {}",
+                cell_text.chars().take(40).collect::<String>(),
+                site.units
+            ))
+        }
+    };
+    let terrain = if site.levels.len() >= 3 {
+        Terrain::SpotLevels
+    } else {
+        Terrain::Grade {
+            east: 0.0,
+            north: 0.0,
+        }
+    };
+    match site.to_params(cell, &terrain) {
+        Ok(params) => {
+            let flat = if matches!(terrain, Terrain::Grade { .. }) {
+                " No spot levels: the ground is taken as flat, so every channel will be flagged as flatter than the least grade."
+            } else {
+                ""
+            };
+            json!({
+                "link": encode_link(&params),
+                "summary": format!("{}{flat}", site_summary(&site)),
+            })
+            .to_string()
+        }
+        Err(problem) => error(problem.to_string()),
+    }
+}
+
+/// The site file the page's site panel grew, if its text reads.
+pub(crate) fn site_file(text: &str) -> Option<Site> {
+    (!text.trim().is_empty())
+        .then(|| read_site(text.as_bytes()).ok())
+        .flatten()
+}
+
 /// A run sized for the design form `form_json`, or the message naming what is wrong.
 pub(crate) fn sized(
     view: &RunView,
@@ -104,17 +168,21 @@ pub(crate) fn drainage_geojson(
 }
 
 /// The drainage plan as SVG.
+/// `site_text`: the site file the run was made from (names on the plan), or empty.
 pub(crate) fn drainage_plan_svg(
     view: &RunView,
     params: &Params,
     form_json: &str,
+    site_text: &str,
 ) -> Result<String, String> {
     let (sized, design) = sized(view, params, form_json)?;
     let metadata = json!({ "params": params, "digest": view.digest }).to_string();
+    let site = site_file(site_text);
     Ok(plan_svg(&site_plan_input(
         &sized,
         params,
         &design,
+        site.as_ref(),
         SITE_CAUTION,
         metadata,
     )))

@@ -52,6 +52,10 @@ pub struct CutOffPart {
     pub rows: [u32; 2],
 }
 
+/// Drained area at which a site's channels begin, m² (about one yard inlet's catchment;
+/// common practice, no source): the `vein_area` of a site's parameters.
+pub const CHANNEL_HEAD_AREA_M2: f64 = 25.0;
+
 /// Outlets farther than this from every allowed cell centre (in cells) are refused: the
 /// site is too narrow there for the cell size.
 const OUTLET_REACH_CELLS: f64 = 2.0;
@@ -201,6 +205,13 @@ impl Site {
             },
             widths: Widths {
                 tip_width: 0.05,
+                // Channels begin where this much drains; the rest is hillslope, drained
+                // overland to them (the inlet time covers it).
+                vein_area: if self.units == "ft" {
+                    CHANNEL_HEAD_AREA_M2 / (0.3048 * 0.3048)
+                } else {
+                    CHANNEL_HEAD_AREA_M2
+                },
                 ..Widths::default()
             },
         };
