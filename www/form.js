@@ -56,7 +56,7 @@ export class ParameterForm {
     } else if (spec.kind === 'flag') {
       input = document.createElement('input');
       input.type = 'checkbox';
-    } else if (['roots', 'polygon', 'polygons'].includes(spec.kind)) {
+    } else if (['roots', 'polygon', 'polygons', 'levels', 'zones'].includes(spec.kind)) {
       input = document.createElement('textarea');
       input.rows = 2;
       input.spellcheck = false;

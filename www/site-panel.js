@@ -105,7 +105,7 @@ class SitePanel {
     byId('site-size').addEventListener('click', () => this.resize(true));
     window.addEventListener('ramulus:finished', () => this.runEnded());
     byId('site-save-plan').addEventListener('click', () => this.save('svg', 'plan drawing to a stated map scale',
-      () => this.state.simulation.drainage_plan_svg(this.rulesText()), 'image/svg+xml'));
+      () => this.state.simulation.drainage_plan_svg(this.rulesText(), this.siteTextFor()), 'image/svg+xml'));
     byId('site-save-csv').addEventListener('click', () => this.save('csv', 'channel schedule',
       () => this.state.simulation.drainage_csv(this.rulesText()), 'text/csv'));
     byId('site-save-geojson').addEventListener('click', () => this.save('geojson', 'channels with their flows and sizes',
@@ -195,11 +195,17 @@ class SitePanel {
     }
     this.message('');
     this.siteText = text;
+    this.grownLink = result.link;
     byId('site-status').textContent = result.summary;
     byId('site-results').hidden = true;
     this.sized = null;
     location.hash = result.link;
     document.querySelector('.field')?.scrollIntoView({ block: 'start' });
+  }
+
+  /// The site file of the current run when the panel grew it (its names label the plan).
+  siteTextFor() {
+    return this.siteText && this.state.link === this.grownLink ? this.siteText : '';
   }
 
   runEnded() {
