@@ -126,13 +126,11 @@ pub fn close_loops(
         .filter(|&n| conducts_below(n))
         .map(|n| (n as u32, topology.parent[n]))
         .collect();
-    let longest = segments
-        .iter()
-        .map(|&(a, b)| distance(a as usize, b as usize))
-        .fold(0.0, f64::max);
-    let mut segment_grid = Grid::of_points(std::iter::empty(), (longest + gap).max(gap));
+    // Each segment sits in every cell its bounding box covers; a segment that meets the new
+    // one shares a cell with the new one's bounding box.
+    let mut segment_grid = Grid::of_points(std::iter::empty(), gap);
     for (index, &(a, b)) in segments.iter().enumerate() {
-        segment_grid.insert(index as u32, midpoint(point(a as usize), point(b as usize)));
+        segment_grid.insert_box(index as u32, point(a as usize), point(b as usize));
     }
     let mut linked: Vec<Vec<u32>> = vec![Vec::new(); count];
     let mut in_loop = vec![false; count];
@@ -236,7 +234,7 @@ pub fn close_loops(
             for candidate in candidates.iter().take(TRIES_PER_TIP) {
                 let (u, v) = (candidate.u as usize, candidate.v as usize);
                 let new = (point(u), point(v));
-                let crosses = segment_grid.near_box(new.0, new.1).iter().any(|&index| {
+                let crosses = segment_grid.in_box(new.0, new.1).iter().any(|&index| {
                     let (a, b) = segments[index as usize];
                     conflicts(new, (u as u32, v as u32), (point(a as usize), point(b as usize)), (a, b))
                 });
@@ -288,7 +286,7 @@ pub fn close_loops(
             in_loop[t] = true;
             linked[u].push(v as u32);
             linked[v].push(u as u32);
-            segment_grid.insert(segments.len() as u32, midpoint(point(u), point(v)));
+            segment_grid.insert_box(segments.len() as u32, point(u), point(v));
             segments.push((u as u32, v as u32));
             out.links.push(Segment {
                 from: u as u32,
@@ -309,10 +307,6 @@ struct Candidate {
     u: u32,
     v: u32,
     anchor: u32,
-}
-
-fn midpoint(a: (f64, f64), b: (f64, f64)) -> (f64, f64) {
-    ((a.0 + b.0) / 2.0, (a.1 + b.1) / 2.0)
 }
 
 /// A uniform grid of items keyed by one point each; `near` gives the items of the 3 x 3 cells
@@ -350,6 +344,31 @@ impl Grid {
         self.cells.entry(key).or_default().push(item);
     }
 
+    /// Puts `item` in every cell the bounding box of `a` and `b` covers.
+    fn insert_box(&mut self, item: u32, a: (f64, f64), b: (f64, f64)) {
+        let low = self.key((a.0.min(b.0), a.1.min(b.1)));
+        let high = self.key((a.0.max(b.0), a.1.max(b.1)));
+        for gx in low.0..=high.0 {
+            for gy in low.1..=high.1 {
+                self.cells.entry((gx, gy)).or_default().push(item);
+            }
+        }
+    }
+
+    /// Items in the cells the bounding box of `a` and `b` covers.
+    fn in_box(&self, a: (f64, f64), b: (f64, f64)) -> Vec<u32> {
+        let low = self.key((a.0.min(b.0), a.1.min(b.1)));
+        let high = self.key((a.0.max(b.0), a.1.max(b.1)));
+        let mut found = self.scratch.borrow_mut();
+        found.clear();
+        for gx in low.0..=high.0 {
+            for gy in low.1..=high.1 {
+                found.extend_from_slice(self.cells.get(&(gx, gy)).unwrap_or(&self.empty));
+            }
+        }
+        found.clone()
+    }
+
     /// Items in the 3 x 3 cells around `at`.
     fn near(&self, at: (f64, f64)) -> Vec<u32> {
         self.near_box(at, at)
@@ -370,10 +389,13 @@ impl Grid {
     }
 }
 
-/// Bounded shortest paths (Dijkstra 1959) with distances kept between searches.
+/// Bounded shortest paths by A* search (Hart, Nilsson & Raphael 1968, IEEE Trans. Syst. Sci.
+/// Cybern. 4) with the straight distance to the target as its lower bound, so only nodes that
+/// could lie on a path shorter than the bound are visited; distances kept between searches.
 struct PathSearch {
     distance: Vec<f64>,
     touched: Vec<u32>,
+    heap: BinaryHeap<Reverse<(Ordered, u32)>>,
 }
 
 impl PathSearch {
@@ -381,10 +403,12 @@ impl PathSearch {
         PathSearch {
             distance: vec![f64::INFINITY; count],
             touched: Vec::new(),
+            heap: BinaryHeap::new(),
         }
     }
 
     /// The length of the shortest path from `from` to `to` when it is shorter than `bound`.
+    /// `length(a, b)` is an edge's length and never less than the straight distance.
     fn shortest(
         &mut self,
         from: usize,
@@ -397,30 +421,31 @@ impl PathSearch {
             self.distance[node as usize] = f64::INFINITY;
         }
         self.touched.clear();
-        let mut heap = BinaryHeap::new();
-        self.distance[from] = 0.0;
-        self.touched.push(from as u32);
-        heap.push(Reverse((Ordered(0.0), from as u32)));
-        while let Some(Reverse((Ordered(reached), node))) = heap.pop() {
+        self.heap.clear();
+        let (distance, touched, heap) = (&mut self.distance, &mut self.touched, &mut self.heap);
+        distance[from] = 0.0;
+        touched.push(from as u32);
+        heap.push(Reverse((Ordered(length(from, to)), from as u32)));
+        while let Some(Reverse((Ordered(estimate), node))) = heap.pop() {
             let node = node as usize;
-            if reached > self.distance[node] {
-                continue;
-            }
+            let reached = distance[node];
             if node == to {
                 return Some(reached);
             }
-            let mut next = Vec::new();
-            neighbours(node, &mut |other| next.push(other));
-            for other in next {
-                let through = reached + length(node, other);
-                if through < bound && through < self.distance[other] {
-                    if self.distance[other].is_infinite() {
-                        self.touched.push(other as u32);
-                    }
-                    self.distance[other] = through;
-                    heap.push(Reverse((Ordered(through), other as u32)));
-                }
+            if estimate > reached + length(node, to) {
+                continue;
             }
+            neighbours(node, &mut |other| {
+                let through = reached + length(node, other);
+                let estimate = through + length(other, to);
+                if estimate < bound && through < distance[other] {
+                    if distance[other].is_infinite() {
+                        touched.push(other as u32);
+                    }
+                    distance[other] = through;
+                    heap.push(Reverse((Ordered(estimate), other as u32)));
+                }
+            });
         }
         None
     }
