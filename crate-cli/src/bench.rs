@@ -205,7 +205,11 @@ pub fn run(options: BenchOptions) -> Result<(), CliError> {
         large.seconds / small.seconds
     );
     pipeline_figures()?;
-    loop_figures(if quick { [25_000, 100_000] } else { [100_000, 400_000] })?;
+    loop_figures(if quick {
+        [25_000, 100_000]
+    } else {
+        [100_000, 400_000]
+    })?;
     full_model_command_figures(if quick { 25_000 } else { 100_000 }, 5)?;
     spanning_tree_figures(side, 3)
 }

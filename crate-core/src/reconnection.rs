@@ -77,9 +77,12 @@ pub fn close_loops(
         ..Reconnection::default()
     };
     if count == 0
-        || !(rule.ratio >= 1.0)
-        || !(rule.finest_area > 0.0)
-        || !(rule.runoff > 0.0)
+        || rule.ratio.partial_cmp(&1.0) == Some(std::cmp::Ordering::Less)
+        || rule.ratio.is_nan()
+        || rule.finest_area.is_nan()
+        || rule.finest_area <= 0.0
+        || rule.runoff.is_nan()
+        || rule.runoff <= 0.0
         || topology.parent.len() != count
     {
         return out;
@@ -236,7 +239,12 @@ pub fn close_loops(
                 let new = (point(u), point(v));
                 let crosses = segment_grid.in_box(new.0, new.1).iter().any(|&index| {
                     let (a, b) = segments[index as usize];
-                    conflicts(new, (u as u32, v as u32), (point(a as usize), point(b as usize)), (a, b))
+                    conflicts(
+                        new,
+                        (u as u32, v as u32),
+                        (point(a as usize), point(b as usize)),
+                        (a, b),
+                    )
                 });
                 if crosses {
                     continue;
@@ -452,10 +460,16 @@ impl PathSearch {
 }
 
 /// A finite f64 ordered for the heap.
-#[derive(Clone, Copy, PartialEq, PartialOrd)]
+#[derive(Clone, Copy, PartialEq)]
 struct Ordered(f64);
 
 impl Eq for Ordered {}
+
+impl PartialOrd for Ordered {
+    fn partial_cmp(&self, other: &Self) -> Option<std::cmp::Ordering> {
+        Some(self.cmp(other))
+    }
+}
 
 impl Ord for Ordered {
     fn cmp(&self, other: &Self) -> std::cmp::Ordering {
@@ -534,14 +548,25 @@ mod tests {
     /// two units apart side by side, joined at the root by a base segment: the tips face each
     /// other across a gap of 2 with a way round of 2 + 2 x 6 = 14 through the root.
     fn two_veins() -> Network {
-        let mut nodes = vec![Node { x: 1.0, y: 7.0, weight: 1.0 }];
+        let mut nodes = vec![Node {
+            x: 1.0,
+            y: 7.0,
+            weight: 1.0,
+        }];
         let mut segments = Vec::new();
         for column in [0.0, 2.0] {
             let mut below = 0u32;
             for row in (1..=6).rev() {
-                nodes.push(Node { x: column, y: row as f64, weight: 1.0 });
+                nodes.push(Node {
+                    x: column,
+                    y: row as f64,
+                    weight: 1.0,
+                });
                 let index = nodes.len() as u32 - 1;
-                segments.push(Segment { from: index, to: below });
+                segments.push(Segment {
+                    from: index,
+                    to: below,
+                });
                 below = index;
             }
         }
@@ -576,7 +601,10 @@ mod tests {
         let closed = close_loops(&network, &topology, &conducts, &rule(6.0));
         assert_eq!(closed.links.len(), 1);
         let link = closed.links[0];
-        let (a, b) = (network.nodes[link.from as usize], network.nodes[link.to as usize]);
+        let (a, b) = (
+            network.nodes[link.from as usize],
+            network.nodes[link.to as usize],
+        );
         assert_eq!((a.y, b.y), (1.0, 1.0));
         assert_eq!((a.x - b.x).abs(), 2.0);
         // A ratio of 7 asks for a way round of 14: none.

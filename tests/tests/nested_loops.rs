@@ -237,7 +237,10 @@ fn loops_nest_inside_loops() {
             metrics.areole_area_decades.unwrap_or(0.0),
             metrics.nesting_number
         );
-        assert!(big_count >= 3 && big_count * 3 <= all, "{name}: {big_count} of {all}");
+        assert!(
+            big_count >= 3 && big_count * 3 <= all,
+            "{name}: {big_count} of {all}"
+        );
         assert!(big_mean >= 3.0 * mean, "{name}: {big_mean} vs {mean}");
         assert!(metrics.areole_area_decades.expect("areoles") >= 1.0);
         assert!(metrics.nesting_number.is_some());
@@ -248,8 +251,7 @@ fn loops_nest_inside_loops() {
 #[test]
 fn print_loop_figures() {
     for name in ["broad-leaf", "narrow-leaf"] {
-        let mut params =
-            looped_params(name, 1, preset(name).expect("preset").run.cells, Some(6.0));
+        let mut params = looped_params(name, 1, preset(name).expect("preset").run.cells, Some(6.0));
         params.widths.vein_area = 0.05;
         let view = grow(&params);
         let loops = view.loops.as_ref().expect("loops");

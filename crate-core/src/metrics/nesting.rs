@@ -65,8 +65,7 @@ pub(crate) fn loop_hierarchy(
     let mut merges = Vec::new();
     for edge in order {
         let (left, right) = sides[edge];
-        let (Some(&a), Some(&b)) = (leaf_of.get(left as usize), leaf_of.get(right as usize))
-        else {
+        let (Some(&a), Some(&b)) = (leaf_of.get(left as usize), leaf_of.get(right as usize)) else {
             continue;
         };
         if a == u32::MAX || b == u32::MAX {
