@@ -288,6 +288,43 @@ impl RunView {
     /// Runs every pass on a network with the parameters that set widths and `alpha`; fails
     /// only when the network is not valid (`Network::check`).
     pub fn new(network: Network, params: &Params) -> Result<RunView, TopologyError> {
+        if params.widths.reconnect.is_some() {
+            if let Some(view) = RunView::with_loops_again(&network, params)? {
+                return Ok(view);
+            }
+        }
+        RunView::from_passes(network, params)
+    }
+
+    /// A network that a loop pass made (a run record read back): the grown tree is the longest
+    /// run of leading segments whose upstream ends all differ (every new segment starts at a
+    /// node that already has its tree segment); the passes are run on it again and kept when
+    /// they give back the very segments read. `None` when the network is not such a one.
+    fn with_loops_again(
+        network: &Network,
+        params: &Params,
+    ) -> Result<Option<RunView>, TopologyError> {
+        network.check()?;
+        let mut seen = vec![false; network.nodes.len()];
+        let grown = network
+            .segments
+            .iter()
+            .position(|segment| std::mem::replace(&mut seen[segment.from as usize], true))
+            .unwrap_or(network.segments.len());
+        if grown == network.segments.len() {
+            return Ok(None);
+        }
+        let mut tree = network.clone();
+        tree.segments.truncate(grown);
+        if tree.topology().is_err() {
+            return Ok(None);
+        }
+        let view = RunView::from_passes(tree, params)?;
+        Ok((view.network.segments == network.segments).then_some(view))
+    }
+
+    /// Every pass in order.
+    fn from_passes(network: Network, params: &Params) -> Result<RunView, TopologyError> {
         let mut forest = topology_pass(&network)?;
         let mut conducting = conducting_pass(&network, &mut forest, params);
         // A pass that closed no loop leaves the tree as it was.

@@ -296,3 +296,16 @@ fn preset_areoles_fall_in_the_range_of_dicot_leaves() {
         assert!((0.01..=1.0).contains(&mean), "{name}: {mean}");
     }
 }
+
+/// A looped network read back (as from a run record: the grown tree followed by the new
+/// segments) goes through the pipeline to the same network and metrics.
+#[test]
+fn a_looped_network_read_back_measures_the_same() {
+    let params = looped_params("narrow-leaf", 2, 15_000, Some(6.0));
+    let view = grow(&params);
+    assert!(view.loops.is_some());
+    let again = RunView::new(view.network.clone(), &params).expect("valid");
+    assert_eq!(again.digest, view.digest);
+    assert_eq!(again.metrics, view.metrics);
+    assert!(again.loops.is_some());
+}
