@@ -205,6 +205,11 @@ pub fn run(options: BenchOptions) -> Result<(), CliError> {
         large.seconds / small.seconds
     );
     pipeline_figures()?;
+    loop_figures(if quick {
+        [25_000, 100_000]
+    } else {
+        [100_000, 400_000]
+    })?;
     full_model_command_figures(if quick { 25_000 } else { 100_000 }, 5)?;
     spanning_tree_figures(side, 3)
 }
@@ -442,5 +447,96 @@ fn pipeline_figures() -> Result<(), CliError> {
         best.1 * 1e3,
         peak_bytes as f64 / (1024.0 * 1024.0)
     );
+    Ok(())
+}
+
+/// The broad-leaf model on a lattice scaled to hold `cells` cells (no stop threshold, so it
+/// grows to the budget), veins from 0.05 mm^2 of drained area, loops closed at ratio 6 over
+/// levels 0 to 3 (the loop settings suggested for the leaf presets).
+fn looped_leaf(cells: u64) -> Result<Params, CliError> {
+    let mut params = ramulus_core::presets::preset("broad-leaf")
+        .ok_or_else(|| CliError::Failed("preset broad-leaf is missing".into()))?;
+    let scale = (cells as f64 / (220.0 * 300.0 * 0.7)).sqrt().max(1.0);
+    params.domain.width = (220.0 * scale) as u32;
+    params.domain.height = (300.0 * scale) as u32;
+    params.domain.roots[0].x = (110.0 * scale) as u32;
+    params.domain.roots[0].y = (270.0 * scale) as u32;
+    params.run.cells = cells;
+    params.run.threshold = None;
+    params.widths.vein_area = 0.05;
+    params.widths.reconnect = Some(6.0);
+    params.widths.loop_levels = 3;
+    Ok(params)
+}
+
+/// Time of a leaf with loops (growth, then the pipeline after growth with and without the loop
+/// pass, best of 3), the loop pass's share of the whole, at two sizes.
+fn loop_figures(sizes: [u64; 2]) -> Result<(), CliError> {
+    for cells in sizes {
+        let params = looped_leaf(cells)?;
+        let mut tree_params = params.clone();
+        tree_params.widths.reconnect = None;
+        let mut best = (f64::INFINITY, f64::INFINITY, f64::INFINITY);
+        let mut figures = (0, 0, 0.0, 0.0);
+        let mut best_pass = f64::INFINITY;
+        for _ in 0..3 {
+            let start = Instant::now();
+            let mut growth =
+                Growth::new(&params).map_err(|error| CliError::Failed(error.to_string()))?;
+            growth.run();
+            let network = growth.network();
+            drop(growth);
+            let grown = start.elapsed().as_secs_f64();
+            let start = Instant::now();
+            let tree = ramulus_core::run::RunView::new(network.clone(), &tree_params)
+                .map_err(|error| CliError::Failed(error.to_string()))?;
+            let tree_seconds = start.elapsed().as_secs_f64();
+            std::hint::black_box(&tree);
+            // The loop pass alone, on the tree's passes.
+            let mut forest = ramulus_core::run::topology_pass(&network)
+                .map_err(|error| CliError::Failed(error.to_string()))?;
+            let conducting = ramulus_core::run::conducting_pass(&network, &mut forest, &params);
+            let start = Instant::now();
+            let closed =
+                ramulus_core::run::loop_pass(&network, forest.as_ref(), &conducting, &params);
+            best_pass = best_pass.min(start.elapsed().as_secs_f64());
+            std::hint::black_box(closed);
+            let start = Instant::now();
+            let view = ramulus_core::run::RunView::new(network, &params)
+                .map_err(|error| CliError::Failed(error.to_string()))?;
+            let looped_seconds = start.elapsed().as_secs_f64();
+            best = (
+                best.0.min(grown),
+                best.1.min(tree_seconds),
+                best.2.min(looped_seconds),
+            );
+            figures = (
+                view.network.cells.occupied.len(),
+                view.loops
+                    .as_ref()
+                    .map_or(0, |loops| loops.reconnection.links.len()),
+                view.metrics.areole_density.unwrap_or(0.0),
+                view.metrics.nesting_number.unwrap_or(0.0),
+            );
+        }
+        let whole = best.0 + best.2;
+        let loop_share = (best.2 - best.1).max(0.0);
+        say!(
+            "leaf with loops, {} cells, best of 3: growth {:.2} s, pipeline {:.2} s (tree \
+             alone {:.2} s), whole {:.2} s; loop pass and loop metrics {:.2} s = {:.0} % \
+             (loop pass alone {:.2} s; {} new segments, {:.2} areoles/mm\u{b2}, nesting {:.2})",
+            figures.0,
+            best.0,
+            best.2,
+            best.1,
+            whole,
+            loop_share,
+            100.0 * loop_share / whole,
+            best_pass,
+            figures.1,
+            figures.2,
+            figures.3
+        );
+    }
     Ok(())
 }

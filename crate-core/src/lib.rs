@@ -19,6 +19,7 @@ pub mod network;
 pub mod network_export;
 pub mod params;
 pub mod presets;
+pub mod reconnection;
 pub mod record;
 pub mod region;
 pub mod run;

@@ -8,16 +8,24 @@
 //!    at least `vein_area` (every segment when it is 0); with a threshold, the vein network
 //!    (`veins::vein_network`) is what the metrics measure and its Strahler orders are the
 //!    table's (tissue segments have order 0 and width 0);
-//! 3. **widths**: the per-segment table of flows, widths, orders and lengths (`SegmentTable`);
-//! 4. **sizing**: room for sizing pipes or channels from flows (`Sizing`, empty for now, so
+//! 3. **loops** (`loop_pass`, only with `reconnect` set): free-ending veins close nested loops
+//!    (`reconnection::close_loops`); the new segments are appended after the grown tree's, so
+//!    the network becomes looped while the forest view stays the grown tree's (the conducting
+//!    pass and the flows are the tree's); the metrics measure the vein network plus the new
+//!    segments;
+//! 4. **widths**: the per-segment table of flows, widths, orders and lengths (`SegmentTable`);
+//!    with loops, a new segment carries the flow of the tip that made it and a loop wall is at
+//!    least as wide as that flow gives;
+//! 5. **sizing**: room for sizing pipes or channels from flows (`Sizing`, empty for now, so
 //!    nothing is sized yet);
-//! 5. **metrics**: every entry of the metric table (`measure_with`);
-//! 6. **digest**: the hash of the exact geometry and topology.
+//! 6. **metrics**: every entry of the metric table (`measure_with`);
+//! 7. **digest**: the hash of the exact geometry and topology (new segments included).
 
 use crate::digest::digest_hex;
-use crate::metrics::{measure_with, Metrics};
-use crate::network::{Network, Topology, TopologyError, NO_PARENT};
+use crate::metrics::{measure_weighted, measure_with, Metrics};
+use crate::network::{Network, Segment, Topology, TopologyError, NO_PARENT};
 use crate::params::Params;
+use crate::reconnection::{close_loops, LoopRule, Reconnection};
 use crate::segments::{strahler_orders, SegmentTable, WidthRule};
 use crate::site::node_area_runoff;
 use crate::veins::{conducting_segments, conducting_segments_by_area, vein_network};
@@ -59,6 +67,20 @@ impl ConductingNetwork {
     }
 }
 
+/// The loops closed after growth, the output of the loop pass.
+#[derive(Clone, Debug)]
+pub struct LoopView {
+    /// The new segments and loop walls, in the whole network's node indices; the new segments
+    /// are the whole network's last `reconnection.links.len()` segments.
+    pub reconnection: Reconnection,
+    /// The measured network: the vein network (or the whole network when every segment
+    /// conducts) plus the new segments.
+    pub network: Network,
+    /// The width of each segment of `network` (the widths pass's), thinnest removed first by
+    /// the nesting metric.
+    pub widths: Vec<f64>,
+}
+
 /// The output of the sizing pass. Room for sizing from flows (pipe or channel sizes of a site,
 /// later); it holds nothing yet and no pass fills it.
 #[derive(Clone, Debug, Default, PartialEq)]
@@ -71,8 +93,11 @@ pub struct RunView {
     pub network: Network,
     /// Topology pass: the forest view, `None` when the network has loops.
     pub forest: Option<ForestView>,
-    /// Conducting-network pass.
+    /// Conducting-network pass (of the grown tree; the new segments of the loop pass conduct).
     pub conducting: ConductingNetwork,
+    /// Loop pass: the loops closed after growth; `None` when `reconnect` is off or the network
+    /// did not come as a forest.
+    pub loops: Option<LoopView>,
     /// Widths pass: flow, width, order and length per segment.
     pub table: SegmentTable,
     /// Sizing pass (room, empty).
@@ -176,6 +201,85 @@ fn conducting_orders(forest: &ForestView, conducting: &ConductingNetwork) -> Vec
         .collect()
 }
 
+/// Loop pass: closes nested loops on a grown forest when `reconnect` is set
+/// (`reconnection::close_loops`, levels from `loop_levels`, the finest at `vein_area` or one
+/// cell's area when every segment conducts); `None` otherwise.
+pub fn loop_pass(
+    network: &Network,
+    forest: Option<&ForestView>,
+    conducting: &ConductingNetwork,
+    params: &Params,
+) -> Option<Reconnection> {
+    let ratio = params.widths.reconnect?;
+    let forest = forest?;
+    let cell_size = params.domain.cell_size;
+    let rule = LoopRule {
+        ratio,
+        levels: params.widths.loop_levels,
+        finest_area: params.widths.vein_area.max(cell_size * cell_size),
+        runoff: params.domain.runoff,
+        cell_size,
+    };
+    Some(close_loops(
+        network,
+        &forest.topology,
+        &conducting.conducts,
+        &rule,
+    ))
+}
+
+/// The widths of a loop pass in the table: each new segment (the last rows) carries the flow of
+/// the tip that made it; a conducting loop wall is at least as wide as its wall flow gives.
+fn loop_widths(
+    table: &mut SegmentTable,
+    network: &Network,
+    reconnection: &Reconnection,
+    rule: WidthRule,
+) {
+    let grown = network.segments.len() - reconnection.links.len();
+    for (index, segment) in network.segments.iter().enumerate().take(grown) {
+        let wall = reconnection
+            .wall_flow
+            .get(segment.from as usize)
+            .copied()
+            .unwrap_or(0.0);
+        if wall > 0.0 && table.conducts[index] {
+            table.width[index] = table.width[index].max(rule.width(wall));
+        }
+    }
+    for (offset, &flow) in reconnection.link_flow.iter().enumerate() {
+        let index = grown + offset;
+        table.flow[index] = flow;
+        table.width[index] = rule.width(flow);
+    }
+}
+
+/// The measured network of a loop pass and its widths: the vein network plus the new segments.
+fn looped_veins(
+    network: &Network,
+    conducting: &ConductingNetwork,
+    table: &SegmentTable,
+    reconnection: &Reconnection,
+) -> (Network, Vec<f64>) {
+    let Some(veins) = &conducting.veins else {
+        return (network.clone(), table.width.clone());
+    };
+    let grown = network.segments.len() - reconnection.links.len();
+    let mut looped = veins.network.clone();
+    let mut widths: Vec<f64> = (0..grown)
+        .filter(|&index| table.conducts[index])
+        .map(|index| table.width[index])
+        .collect();
+    for (offset, link) in reconnection.links.iter().enumerate() {
+        looped.segments.push(Segment {
+            from: veins.index[link.from as usize],
+            to: veins.index[link.to as usize],
+        });
+        widths.push(table.width[grown + offset]);
+    }
+    (looped, widths)
+}
+
 /// Widths pass: the per-segment table.
 pub fn widths_pass(
     network: &Network,
@@ -191,17 +295,80 @@ impl RunView {
     /// Runs every pass on a network with the parameters that set widths and `alpha`; fails
     /// only when the network is not valid (`Network::check`).
     pub fn new(network: Network, params: &Params) -> Result<RunView, TopologyError> {
+        if params.widths.reconnect.is_some() {
+            if let Some(view) = RunView::with_loops_again(&network, params)? {
+                return Ok(view);
+            }
+        }
+        RunView::from_passes(network, params)
+    }
+
+    /// A network that a loop pass made (a run record read back): the grown tree is the longest
+    /// run of leading segments whose upstream ends all differ (every new segment starts at a
+    /// node that already has its tree segment); the passes are run on it again and kept when
+    /// they give back the very segments read. `None` when the network is not such a one.
+    fn with_loops_again(
+        network: &Network,
+        params: &Params,
+    ) -> Result<Option<RunView>, TopologyError> {
+        network.check()?;
+        let mut seen = vec![false; network.nodes.len()];
+        let grown = network
+            .segments
+            .iter()
+            .position(|segment| std::mem::replace(&mut seen[segment.from as usize], true))
+            .unwrap_or(network.segments.len());
+        if grown == network.segments.len() {
+            return Ok(None);
+        }
+        let mut tree = network.clone();
+        tree.segments.truncate(grown);
+        if tree.topology().is_err() {
+            return Ok(None);
+        }
+        let view = RunView::from_passes(tree, params)?;
+        Ok((view.network.segments == network.segments).then_some(view))
+    }
+
+    /// Every pass in order.
+    fn from_passes(network: Network, params: &Params) -> Result<RunView, TopologyError> {
         let mut forest = topology_pass(&network)?;
-        let conducting = conducting_pass(&network, &mut forest, params);
-        let table = widths_pass(&network, forest.as_ref(), &conducting, width_rule(params));
+        let mut conducting = conducting_pass(&network, &mut forest, params);
+        // A pass that closed no loop leaves the tree as it was.
+        let reconnection = loop_pass(&network, forest.as_ref(), &conducting, params)
+            .filter(|reconnection| !reconnection.links.is_empty());
+        let mut network = network;
+        if let Some(reconnection) = &reconnection {
+            network.segments.extend_from_slice(&reconnection.links);
+            conducting
+                .conducts
+                .extend(reconnection.links.iter().map(|_| true));
+        }
+        let rule = width_rule(params);
+        let mut table = widths_pass(&network, forest.as_ref(), &conducting, rule);
         let sizing = Sizing::default();
-        let metrics = match &conducting.veins {
-            Some(veins) => measure_with(
+        let loops = reconnection.map(|reconnection| {
+            loop_widths(&mut table, &network, &reconnection, rule);
+            let (looped, widths) = looped_veins(&network, &conducting, &table, &reconnection);
+            LoopView {
+                reconnection,
+                network: looped,
+                widths,
+            }
+        });
+        let metrics = match (&loops, &conducting.veins) {
+            (Some(loops), _) => measure_weighted(
+                &loops.network,
+                None,
+                params.costs.alpha,
+                Some(&loops.widths),
+            ),
+            (None, Some(veins)) => measure_with(
                 &veins.network,
                 Some((&veins.forest.topology, veins.forest.orders.as_slice())),
                 params.costs.alpha,
             ),
-            None => measure_with(
+            (None, None) => measure_with(
                 &network,
                 forest
                     .as_ref()
@@ -214,6 +381,7 @@ impl RunView {
             network,
             forest,
             conducting,
+            loops,
             table,
             sizing,
             metrics,

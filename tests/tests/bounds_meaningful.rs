@@ -7,6 +7,8 @@
 //! leave angles and the dimensionless vein density x cell size unchanged.
 
 use ramulus_core::growth::Growth;
+use ramulus_core::metrics::{AppliesTo, METRIC_TABLE};
+use ramulus_core::network::NetworkKind;
 use ramulus_core::params::table::{parameters, Access};
 use ramulus_core::params::{Params, Root};
 use ramulus_core::run::RunView;
@@ -153,11 +155,29 @@ fn every_real_parameter_at_each_bound_gives_a_finite_meaningful_run() {
             // At its top bound `vein_area` leaves no vein at all: the branching metrics have
             // nothing to measure, and must be absent rather than made up.
             let no_veins = spec.key == "vein_area" && run.table.conducts.iter().all(|&c| !c);
-            let missing = if spec.key == "threshold" || no_veins {
+            // With `reconnect` set the network may close loops (at the top ratio none
+            // qualifies on this small run, which stays a tree): the metric table says which
+            // metrics only a forest has (they must be the absent ones), and the areole metrics
+            // now have areoles to measure.
+            let looped = spec.key == "reconnect" && run.loops.is_some();
+            let missing = if spec.key == "threshold" || no_veins || looped {
                 missing_metrics(&run)
             } else {
                 missing_at_defaults.clone()
             };
+            if looped {
+                if run.metrics.kind != NetworkKind::Looped {
+                    problems.push(format!("{label}: loops closed, yet measured as a forest"));
+                }
+                for key in &missing {
+                    let forest_only = METRIC_TABLE
+                        .iter()
+                        .any(|entry| entry.key == key && entry.applies_to == AppliesTo::ForestOnly);
+                    if !forest_only {
+                        problems.push(format!("{label}: {key} missing on a looped network"));
+                    }
+                }
+            }
             problems.extend(check_view(&run, &label, &missing));
             let (width, height) = svg_size(&run_svg(&run, &params, Colouring::ByOrder));
             if !(width.is_finite() && width > 0.0 && height.is_finite() && height > 0.0) {

@@ -95,6 +95,16 @@ pub(crate) struct Face {
 
 /// Traces every face of a plane drawing (`edges` between `points`).
 pub(crate) fn trace_faces(points: &[(f64, f64)], edges: &[(u32, u32)]) -> Vec<Face> {
+    trace_faces_with_sides(points, edges).0
+}
+
+/// Traces every face of a plane drawing and gives, per edge `(a, b)`, the face on each side:
+/// the face of the walk along `a -> b` and the face of the walk along `b -> a` (indices into the
+/// faces).
+pub(crate) fn trace_faces_with_sides(
+    points: &[(f64, f64)],
+    edges: &[(u32, u32)],
+) -> (Vec<Face>, Vec<(u32, u32)>) {
     let count = points.len();
     // Neighbours of each node in compressed rows, sorted by direction.
     let mut start = vec![0usize; count + 1];
@@ -131,6 +141,7 @@ pub(crate) fn trace_faces(points: &[(f64, f64)], edges: &[(u32, u32)]) -> Vec<Fa
             .unwrap_or(range.start)
     };
     let mut faces = Vec::new();
+    let mut face_of = vec![u32::MAX; around.len()];
     for first in 0..count {
         for half_edge in start[first]..start[first + 1] {
             if visited[half_edge] {
@@ -141,6 +152,7 @@ pub(crate) fn trace_faces(points: &[(f64, f64)], edges: &[(u32, u32)]) -> Vec<Fa
             let (mut u, mut k) = (first as u32, half_edge);
             while !visited[k] {
                 visited[k] = true;
+                face_of[k] = faces.len() as u32;
                 let v = around[k];
                 let (a, b) = (points[u as usize], points[v as usize]);
                 twice_area += a.0 * b.1 - b.0 * a.1;
@@ -159,7 +171,11 @@ pub(crate) fn trace_faces(points: &[(f64, f64)], edges: &[(u32, u32)]) -> Vec<Fa
             });
         }
     }
-    faces
+    let sides = edges
+        .iter()
+        .map(|&(a, b)| (face_of[position_of(a, b)], face_of[position_of(b, a)]))
+        .collect();
+    (faces, sides)
 }
 
 /// Whether straight segments between the points form a plane drawing: every segment has

@@ -23,6 +23,7 @@ mod areoles;
 mod densities;
 mod hack;
 mod loops;
+mod nesting;
 mod outline;
 mod regression;
 mod strahler_horton;
@@ -82,6 +83,15 @@ pub struct Metrics {
     /// Free-ending veinlets (nodes of degree 1) inside areoles per areole (dimensionless);
     /// `None` without areoles.
     pub veinlets_per_areole: Option<f64>,
+    /// Decades spanned by the areole areas, `log10(largest / smallest)` (dimensionless); `None`
+    /// without areoles.
+    pub areole_area_decades: Option<f64>,
+    /// Nesting of loops: one minus the mean topological asymmetry of the hierarchical loop
+    /// decomposition, thinnest segments removed first (Katifori & Magnasco 2012; see
+    /// `metrics/nesting.rs`); 1 for loops halved evenly inside loops, 0 for a ladder
+    /// (dimensionless). Needs segment widths: `None` without them (a record measured again)
+    /// or without a merge of more than two areoles.
+    pub nesting_number: Option<f64>,
     /// Loopiness: independent loops per area, `loop_count / area`, in 1/units^2; `None` when
     /// the area is not positive.
     pub loopiness: Option<f64>,
@@ -201,6 +211,17 @@ pub fn measure(network: &Network, alpha: f64) -> Result<Metrics, TopologyError> 
 ///   the segment's own length plus the longest upstream length of its children (0 for a tip).
 ///   Points with positive length and positive area enter the fit.
 pub fn measure_with(network: &Network, forest: Option<(&Topology, &[u32])>, alpha: f64) -> Metrics {
+    measure_weighted(network, forest, alpha, None)
+}
+
+/// `measure_with` plus the nesting of loops, which needs one width per segment (`widths`, in
+/// the order of `network.segments`; the thinnest segments are removed first).
+pub fn measure_weighted(
+    network: &Network,
+    forest: Option<(&Topology, &[u32])>,
+    alpha: f64,
+    widths: Option<&[f64]>,
+) -> Metrics {
     let node_count = network.nodes.len();
     let forest = forest.filter(|(topology, orders)| {
         topology.children.len() == node_count
@@ -241,6 +262,17 @@ pub fn measure_with(network: &Network, forest: Option<(&Topology, &[u32])>, alph
         areole_area_sd: areole_summary.1,
         veinlets_per_areole: match areoles.count {
             Some(count) if count > 0 => Some(areoles.veinlets_inside as f64 / count as f64),
+            _ => None,
+        },
+        areole_area_decades: nesting::area_decades(&areoles.areas),
+        nesting_number: match (widths, areoles.count) {
+            (Some(widths), Some(count)) if count > 1 && widths.len() == network.segments.len() => {
+                let points: Vec<(f64, f64)> = network.nodes.iter().map(|n| (n.x, n.y)).collect();
+                let edges: Vec<(u32, u32)> =
+                    network.segments.iter().map(|s| (s.from, s.to)).collect();
+                let (leaves, merges) = nesting::loop_hierarchy(&points, &edges, widths);
+                nesting::nesting_number(leaves, &merges)
+            }
             _ => None,
         },
         loopiness: per_area(components.loop_count as f64),

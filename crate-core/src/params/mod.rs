@@ -155,6 +155,21 @@ pub struct Widths {
     /// Conducting threshold: a segment is a vein (a channel) when the area it drains, in the
     /// run's length unit squared, is at least this. Default 0 (every segment conducts); 0 ..= 1e12.
     pub vein_area: f64,
+    /// Loop closing after growth (`reconnection.rs`): a free-ending vein tip joins the vein
+    /// network when the network path it shortcuts is at least this many times the new
+    /// connection's length. Default none (off, the network stays a tree); 1 ..= 100. Absent in
+    /// records and version-1 links, which grew trees.
+    #[serde(default)]
+    pub reconnect: Option<f64>,
+    /// Scales of loop closing: levels 0 ..= `loop_levels`, the conducting threshold of level
+    /// `k` being the finest one times 4^(`loop_levels` - k). Default 3; 0 ..= 8.
+    #[serde(default = "default_loop_levels")]
+    pub loop_levels: u32,
+}
+
+/// `loop_levels` of parameters saved before the key existed (no effect: reconnection is off).
+fn default_loop_levels() -> u32 {
+    3
 }
 
 /// A root of one tree: a cell and the direction its flow leaves the network.
@@ -420,6 +435,8 @@ fn blank() -> Params {
             gamma: 0.0,
             tip_width: 0.0,
             vein_area: 0.0,
+            reconnect: None,
+            loop_levels: 0,
         },
     }
 }

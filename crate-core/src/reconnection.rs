@@ -1,0 +1,614 @@
+//! Loop closing after growth (`close_loops`): free-ending veins join the vein network at
+//! several scales, coarse veins first, so that major veins close large loops and finer veins
+//! divide them (parameters `reconnect` and `loop_levels`).
+//!
+//! The rule, level by level for `k = 0 ..= loop_levels`, with the conducting threshold of level
+//! `k` being `A_k = A * 4^(loop_levels - k)` (`A` the finest: `vein_area`, or one cell's area
+//! when every segment conducts):
+//! - the network of level `k` is the veins draining at least `A_k` plus every loop wall closed
+//!   at a coarser level; its free-ending tips are its nodes without a child in it;
+//! - a tip `t` closes its loop through the finer veins it feeds: from a vein `u` upstream of `t`
+//!   (within `2 sqrt(A_k)` along the veins) a new segment joins a vein node `v` of another
+//!   branch across the gap of tissue (at most `1.5 max(cell, sqrt(A))` long), and the loop's new
+//!   wall is the chain `t .. u`, the new segment `u v`, and the chain from `v` down to the first
+//!   node `a` of the level's network;
+//! - the join is taken when the way round through the level's network from `t` to `a` is at
+//!   least `reconnect` times the new wall's length (the local reconnection rule of developing
+//!   leaves, veins joining where they shortcut a long path: Scarpella et al. 2006, Genes Dev. 20;
+//!   closed venation patterns, Runions et al. 2005, ACM Trans. Graph. 24), the shortest such
+//!   wall first, and never when the new segment would cross or touch a vein or a loop segment.
+//!
+//! Coarse levels wall in large domains first and the finer levels divide them, so loops nest
+//! (hierarchical space-dividing patterns: Bohn, Douady & Couder 2005, PRL 94). Walls follow the
+//! grown veins and only the short new segments are added, so the network stays a plane graph.
+//!
+//! Flows: tree segments keep the tree's flows; a loop wall is drawn at least as wide as the
+//! flow of the tip that closed it (`Reconnection::wall_flow`), and each new segment carries that
+//! tip's flow. No Kirchhoff solve: the walls' widths record the scale of the loop they close.
+
+use std::cmp::Reverse;
+use std::collections::BinaryHeap;
+
+use crate::network::{Network, Segment, Topology, NO_PARENT};
+
+/// How loops close.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct LoopRule {
+    /// Path-to-gap ratio (`reconnect`), at least 1.
+    pub ratio: f64,
+    /// Coarser levels above the finest (`loop_levels`).
+    pub levels: u32,
+    /// The finest level's conducting threshold, in squared units (> 0).
+    pub finest_area: f64,
+    /// Runoff coefficient: a node's flow over it is its drained area.
+    pub runoff: f64,
+    /// Lattice cell size, in units.
+    pub cell_size: f64,
+}
+
+/// The new segments and the loop walls, in the whole network's node indices.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Reconnection {
+    /// The new segments, `from` on the tip's side.
+    pub links: Vec<Segment>,
+    /// The flow each new segment carries: that of the tip that made it (tree flow units).
+    pub link_flow: Vec<f64>,
+    /// The level (0 coarsest) at which each new segment closed its loop.
+    pub link_level: Vec<u32>,
+    /// Per node: the flow its downstream segment is drawn with as a loop wall (0 when it is
+    /// not a wall).
+    pub wall_flow: Vec<f64>,
+}
+
+/// Most candidate joins tried per tip (shortest first).
+const TRIES_PER_TIP: usize = 8;
+
+/// Closes loops on a grown forest whose conducting segments are marked in `conducts` (one per
+/// segment; missing entries conduct).
+pub fn close_loops(
+    network: &Network,
+    topology: &Topology,
+    conducts: &[bool],
+    rule: &LoopRule,
+) -> Reconnection {
+    let count = network.nodes.len();
+    let mut out = Reconnection {
+        wall_flow: vec![0.0; count],
+        ..Reconnection::default()
+    };
+    if count == 0
+        || rule.ratio.partial_cmp(&1.0) == Some(std::cmp::Ordering::Less)
+        || rule.ratio.is_nan()
+        || rule.finest_area.is_nan()
+        || rule.finest_area <= 0.0
+        || rule.runoff.is_nan()
+        || rule.runoff <= 0.0
+        || topology.parent.len() != count
+    {
+        return out;
+    }
+    let conducts_below = |node: usize| -> bool {
+        let segment = topology.segment_of[node];
+        segment != NO_PARENT && conducts.get(segment as usize).copied().unwrap_or(true)
+    };
+    // Vein nodes: roots and both ends of conducting segments.
+    let mut vein = vec![false; count];
+    for node in 0..count {
+        if topology.parent[node] == NO_PARENT {
+            vein[node] = true;
+        } else if conducts_below(node) {
+            vein[node] = true;
+            vein[topology.parent[node] as usize] = true;
+        }
+    }
+    let levels = rule.levels;
+    let threshold = |level: u32| rule.finest_area * libm::pow(4.0, f64::from(levels - level));
+    // The first level whose network holds each node (levels + 1 for none).
+    let mut level_of: Vec<u32> = (0..count)
+        .map(|node| {
+            if !vein[node] {
+                return levels + 1;
+            }
+            let drained = topology.flow[node] / rule.runoff;
+            let mut level = levels;
+            while level > 0 && drained >= threshold(level - 1) {
+                level -= 1;
+            }
+            level
+        })
+        .collect();
+    let point = |node: usize| (network.nodes[node].x, network.nodes[node].y);
+    let distance = |a: usize, b: usize| {
+        let (p, q) = (point(a), point(b));
+        crate::fast_libm::hypot(p.0 - q.0, p.1 - q.1)
+    };
+    let gap = 1.5 * rule.cell_size.max(rule.finest_area.sqrt());
+    let veins: Vec<u32> = (0..count).filter(|&n| vein[n]).map(|n| n as u32).collect();
+    let nodes_grid = Grid::of_points(veins.iter().map(|&n| (n, point(n as usize))), gap);
+    let mut segments: Vec<(u32, u32)> = (0..count)
+        .filter(|&n| conducts_below(n))
+        .map(|n| (n as u32, topology.parent[n]))
+        .collect();
+    // Each segment sits in every cell its bounding box covers; a segment that meets the new
+    // one shares a cell with the new one's bounding box.
+    let mut segment_grid = Grid::of_points(std::iter::empty(), gap);
+    for (index, &(a, b)) in segments.iter().enumerate() {
+        segment_grid.insert_box(index as u32, point(a as usize), point(b as usize));
+    }
+    let mut linked: Vec<Vec<u32>> = vec![Vec::new(); count];
+    let mut in_loop = vec![false; count];
+    let mut search = PathSearch::new(count);
+    let mut candidates: Vec<Candidate> = Vec::new();
+    let mut stack: Vec<(u32, f64)> = Vec::new();
+
+    for level in 0..=levels {
+        let reach = 2.0 * threshold(level).sqrt();
+        // Tips of this level's network: active, not a root, no active vein child, not on a
+        // loop wall.
+        let active = |level_of: &[u32], node: usize| level_of[node] <= level;
+        let mut has_child = vec![false; count];
+        for node in 0..count {
+            let parent = topology.parent[node];
+            if parent != NO_PARENT && conducts_below(node) && active(&level_of, node) {
+                has_child[parent as usize] = true;
+            }
+        }
+        let mut tips: Vec<u32> = (0..count)
+            .filter(|&n| {
+                active(&level_of, n)
+                    && topology.parent[n] != NO_PARENT
+                    && !has_child[n]
+                    && !in_loop[n]
+                    && linked[n].is_empty()
+            })
+            .map(|n| n as u32)
+            .collect();
+        // Larger veins close their loops first; ties by node index.
+        tips.sort_by(|&a, &b| {
+            topology.flow[b as usize]
+                .total_cmp(&topology.flow[a as usize])
+                .then(a.cmp(&b))
+        });
+        for &tip in &tips {
+            let t = tip as usize;
+            if in_loop[t] || !linked[t].is_empty() {
+                continue;
+            }
+            // Candidates: veins u upstream of t within reach, and vein nodes v across a gap.
+            candidates.clear();
+            stack.clear();
+            stack.push((tip, 0.0));
+            while let Some((u, along)) = stack.pop() {
+                let u_index = u as usize;
+                for v in nodes_grid.near(point(u_index)) {
+                    let v_index = v as usize;
+                    if v == u
+                        || topology.parent[u_index] == v
+                        || topology.parent[v_index] == u
+                        || linked[u_index].contains(&v)
+                    {
+                        continue;
+                    }
+                    let across = distance(u_index, v_index);
+                    if across > gap {
+                        continue;
+                    }
+                    // Down from v to this level's network; reaching t means v lies upstream
+                    // of t (the same branch).
+                    let (mut anchor, mut down) = (v_index, 0.0);
+                    let mut ok = true;
+                    while !active(&level_of, anchor) {
+                        let parent = topology.parent[anchor];
+                        if parent == NO_PARENT || down > reach {
+                            ok = false;
+                            break;
+                        }
+                        down += distance(anchor, parent as usize);
+                        anchor = parent as usize;
+                    }
+                    if !ok || anchor == t {
+                        continue;
+                    }
+                    candidates.push(Candidate {
+                        wall: along + across + down,
+                        u,
+                        v,
+                        anchor: anchor as u32,
+                    });
+                }
+                for &child in topology.children.of(u_index) {
+                    let c = child as usize;
+                    if !conducts_below(c) {
+                        continue;
+                    }
+                    let further = along + distance(u_index, c);
+                    if further <= reach {
+                        stack.push((child, further));
+                    }
+                }
+            }
+            candidates.sort_by(|a, b| {
+                a.wall
+                    .total_cmp(&b.wall)
+                    .then(a.u.cmp(&b.u))
+                    .then(a.v.cmp(&b.v))
+            });
+            let mut chosen = None;
+            for candidate in candidates.iter().take(TRIES_PER_TIP) {
+                let (u, v) = (candidate.u as usize, candidate.v as usize);
+                let new = (point(u), point(v));
+                let crosses = segment_grid.in_box(new.0, new.1).iter().any(|&index| {
+                    let (a, b) = segments[index as usize];
+                    conflicts(
+                        new,
+                        (u as u32, v as u32),
+                        (point(a as usize), point(b as usize)),
+                        (a, b),
+                    )
+                });
+                if crosses {
+                    continue;
+                }
+                let bound = rule.ratio * candidate.wall;
+                let way_round = search.shortest(
+                    t,
+                    candidate.anchor as usize,
+                    bound,
+                    |node, visit| {
+                        let parent = topology.parent[node];
+                        if parent != NO_PARENT && conducts_below(node) {
+                            visit(parent as usize);
+                        }
+                        for &child in topology.children.of(node) {
+                            let c = child as usize;
+                            if conducts_below(c) && active(&level_of, c) {
+                                visit(c);
+                            }
+                        }
+                        for &other in &linked[node] {
+                            visit(other as usize);
+                        }
+                    },
+                    distance,
+                );
+                if way_round.is_none() {
+                    chosen = Some(*candidate);
+                    break;
+                }
+            }
+            let Some(join) = chosen else {
+                continue;
+            };
+            let (u, v, anchor) = (join.u as usize, join.v as usize, join.anchor as usize);
+            let flow = topology.flow[t];
+            // The walls: t .. u and v .. anchor.
+            for (start, end) in [(u, t), (v, anchor)] {
+                let mut node = start;
+                while node != end {
+                    level_of[node] = level_of[node].min(level);
+                    in_loop[node] = true;
+                    out.wall_flow[node] = out.wall_flow[node].max(flow);
+                    node = topology.parent[node] as usize;
+                }
+            }
+            in_loop[t] = true;
+            linked[u].push(v as u32);
+            linked[v].push(u as u32);
+            segment_grid.insert_box(segments.len() as u32, point(u), point(v));
+            segments.push((u as u32, v as u32));
+            out.links.push(Segment {
+                from: u as u32,
+                to: v as u32,
+            });
+            out.link_flow.push(flow);
+            out.link_level.push(level);
+        }
+    }
+    out
+}
+
+/// One possible join of a tip.
+#[derive(Clone, Copy, Debug)]
+struct Candidate {
+    /// Length of the new wall: chain up to `u`, the new segment, chain from `v` to `anchor`.
+    wall: f64,
+    u: u32,
+    v: u32,
+    anchor: u32,
+}
+
+/// A uniform grid of items keyed by one point each; `near` gives the items of the 3 x 3 cells
+/// around a point (every item within one cell size of it, and some farther).
+struct Grid {
+    size: f64,
+    cells: std::collections::HashMap<(i64, i64), Vec<u32>>,
+    empty: Vec<u32>,
+    scratch: std::cell::RefCell<Vec<u32>>,
+}
+
+impl Grid {
+    fn of_points(items: impl Iterator<Item = (u32, (f64, f64))>, size: f64) -> Grid {
+        let mut grid = Grid {
+            size,
+            cells: std::collections::HashMap::new(),
+            empty: Vec::new(),
+            scratch: std::cell::RefCell::new(Vec::new()),
+        };
+        for (item, at) in items {
+            grid.insert(item, at);
+        }
+        grid
+    }
+
+    fn key(&self, at: (f64, f64)) -> (i64, i64) {
+        (
+            libm::floor(at.0 / self.size) as i64,
+            libm::floor(at.1 / self.size) as i64,
+        )
+    }
+
+    fn insert(&mut self, item: u32, at: (f64, f64)) {
+        let key = self.key(at);
+        self.cells.entry(key).or_default().push(item);
+    }
+
+    /// Puts `item` in every cell the bounding box of `a` and `b` covers.
+    fn insert_box(&mut self, item: u32, a: (f64, f64), b: (f64, f64)) {
+        let low = self.key((a.0.min(b.0), a.1.min(b.1)));
+        let high = self.key((a.0.max(b.0), a.1.max(b.1)));
+        for gx in low.0..=high.0 {
+            for gy in low.1..=high.1 {
+                self.cells.entry((gx, gy)).or_default().push(item);
+            }
+        }
+    }
+
+    /// Items in the cells the bounding box of `a` and `b` covers.
+    fn in_box(&self, a: (f64, f64), b: (f64, f64)) -> Vec<u32> {
+        let low = self.key((a.0.min(b.0), a.1.min(b.1)));
+        let high = self.key((a.0.max(b.0), a.1.max(b.1)));
+        let mut found = self.scratch.borrow_mut();
+        found.clear();
+        for gx in low.0..=high.0 {
+            for gy in low.1..=high.1 {
+                found.extend_from_slice(self.cells.get(&(gx, gy)).unwrap_or(&self.empty));
+            }
+        }
+        found.clone()
+    }
+
+    /// Items in the 3 x 3 cells around `at`.
+    fn near(&self, at: (f64, f64)) -> Vec<u32> {
+        self.near_box(at, at)
+    }
+
+    /// Items whose point lies in a cell within one cell of the box spanned by `a` and `b`.
+    fn near_box(&self, a: (f64, f64), b: (f64, f64)) -> Vec<u32> {
+        let low = self.key((a.0.min(b.0), a.1.min(b.1)));
+        let high = self.key((a.0.max(b.0), a.1.max(b.1)));
+        let mut found = self.scratch.borrow_mut();
+        found.clear();
+        for gx in low.0 - 1..=high.0 + 1 {
+            for gy in low.1 - 1..=high.1 + 1 {
+                found.extend_from_slice(self.cells.get(&(gx, gy)).unwrap_or(&self.empty));
+            }
+        }
+        found.clone()
+    }
+}
+
+/// Bounded shortest paths by A* search (Hart, Nilsson & Raphael 1968, IEEE Trans. Syst. Sci.
+/// Cybern. 4) with the straight distance to the target as its lower bound, so only nodes that
+/// could lie on a path shorter than the bound are visited; distances kept between searches.
+struct PathSearch {
+    distance: Vec<f64>,
+    touched: Vec<u32>,
+    heap: BinaryHeap<Reverse<(Ordered, u32)>>,
+}
+
+impl PathSearch {
+    fn new(count: usize) -> PathSearch {
+        PathSearch {
+            distance: vec![f64::INFINITY; count],
+            touched: Vec::new(),
+            heap: BinaryHeap::new(),
+        }
+    }
+
+    /// The length of the shortest path from `from` to `to` when it is shorter than `bound`.
+    /// `length(a, b)` is an edge's length and never less than the straight distance.
+    fn shortest(
+        &mut self,
+        from: usize,
+        to: usize,
+        bound: f64,
+        neighbours: impl Fn(usize, &mut dyn FnMut(usize)),
+        length: impl Fn(usize, usize) -> f64,
+    ) -> Option<f64> {
+        for &node in &self.touched {
+            self.distance[node as usize] = f64::INFINITY;
+        }
+        self.touched.clear();
+        self.heap.clear();
+        let (distance, touched, heap) = (&mut self.distance, &mut self.touched, &mut self.heap);
+        distance[from] = 0.0;
+        touched.push(from as u32);
+        heap.push(Reverse((Ordered(length(from, to)), from as u32)));
+        while let Some(Reverse((Ordered(estimate), node))) = heap.pop() {
+            let node = node as usize;
+            let reached = distance[node];
+            if node == to {
+                return Some(reached);
+            }
+            if estimate > reached + length(node, to) {
+                continue;
+            }
+            neighbours(node, &mut |other| {
+                let through = reached + length(node, other);
+                let estimate = through + length(other, to);
+                if estimate < bound && through < distance[other] {
+                    if distance[other].is_infinite() {
+                        touched.push(other as u32);
+                    }
+                    distance[other] = through;
+                    heap.push(Reverse((Ordered(estimate), other as u32)));
+                }
+            });
+        }
+        None
+    }
+}
+
+/// A finite f64 ordered for the heap.
+#[derive(Clone, Copy, PartialEq)]
+struct Ordered(f64);
+
+impl Eq for Ordered {}
+
+impl PartialOrd for Ordered {
+    fn partial_cmp(&self, other: &Self) -> Option<std::cmp::Ordering> {
+        Some(self.cmp(other))
+    }
+}
+
+impl Ord for Ordered {
+    fn cmp(&self, other: &Self) -> std::cmp::Ordering {
+        self.0.total_cmp(&other.0)
+    }
+}
+
+/// Twice the signed area of the triangle a, b, c.
+fn orientation(a: (f64, f64), b: (f64, f64), c: (f64, f64)) -> f64 {
+    (b.0 - a.0) * (c.1 - a.1) - (b.1 - a.1) * (c.0 - a.0)
+}
+
+fn within(a: (f64, f64), b: (f64, f64), c: (f64, f64)) -> bool {
+    c.0 >= a.0.min(b.0) && c.0 <= a.0.max(b.0) && c.1 >= a.1.min(b.1) && c.1 <= a.1.max(b.1)
+}
+
+/// Whether the new segment `new` (ends `ids`) meets the segment `old` (ends `old_ids`)
+/// anywhere but at a shared end node, by the orientation test (Cormen et al. 2009,
+/// Introduction to Algorithms, 3rd ed., section 33.1); a shared end conflicts only when the
+/// two run along each other.
+fn conflicts(
+    new: ((f64, f64), (f64, f64)),
+    ids: (u32, u32),
+    old: ((f64, f64), (f64, f64)),
+    old_ids: (u32, u32),
+) -> bool {
+    let (a, b) = new;
+    let (c, d) = old;
+    let shared = [ids.0, ids.1]
+        .iter()
+        .filter(|&&n| n == old_ids.0 || n == old_ids.1)
+        .count();
+    if shared == 2 {
+        return true;
+    }
+    if shared == 1 {
+        let (common, far_new, far_old) = if ids.0 == old_ids.0 {
+            (a, b, d)
+        } else if ids.0 == old_ids.1 {
+            (a, b, c)
+        } else if ids.1 == old_ids.0 {
+            (b, a, d)
+        } else {
+            (b, a, c)
+        };
+        let collinear = orientation(common, far_new, far_old) == 0.0;
+        let same_way = (far_new.0 - common.0) * (far_old.0 - common.0)
+            + (far_new.1 - common.1) * (far_old.1 - common.1)
+            > 0.0;
+        return collinear && same_way;
+    }
+    if a == c || a == d || b == c || b == d {
+        return true;
+    }
+    let d1 = orientation(c, d, a);
+    let d2 = orientation(c, d, b);
+    let d3 = orientation(a, b, c);
+    let d4 = orientation(a, b, d);
+    if ((d1 > 0.0 && d2 < 0.0) || (d1 < 0.0 && d2 > 0.0))
+        && ((d3 > 0.0 && d4 < 0.0) || (d3 < 0.0 && d4 > 0.0))
+    {
+        return true;
+    }
+    (d1 == 0.0 && within(c, d, a))
+        || (d2 == 0.0 && within(c, d, b))
+        || (d3 == 0.0 && within(a, b, c))
+        || (d4 == 0.0 && within(a, b, d))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::network::{CellSet, Node};
+
+    /// Two parallel veins from a root at the bottom, each a column of 6 nodes one unit apart,
+    /// two units apart side by side, joined at the root by a base segment: the tips face each
+    /// other across a gap of 2 with a way round of 2 + 2 x 6 = 14 through the root.
+    fn two_veins() -> Network {
+        let mut nodes = vec![Node {
+            x: 1.0,
+            y: 7.0,
+            weight: 1.0,
+        }];
+        let mut segments = Vec::new();
+        for column in [0.0, 2.0] {
+            let mut below = 0u32;
+            for row in (1..=6).rev() {
+                nodes.push(Node {
+                    x: column,
+                    y: row as f64,
+                    weight: 1.0,
+                });
+                let index = nodes.len() as u32 - 1;
+                segments.push(Segment {
+                    from: index,
+                    to: below,
+                });
+                below = index;
+            }
+        }
+        Network {
+            nodes,
+            segments,
+            area: 13.0,
+            units: "mm".into(),
+            cell_size: 1.0,
+            cells: CellSet::default(),
+        }
+    }
+
+    fn rule(ratio: f64) -> LoopRule {
+        LoopRule {
+            ratio,
+            levels: 0,
+            finest_area: 1.0,
+            runoff: 1.0,
+            cell_size: 2.0 / 1.5,
+        }
+    }
+
+    /// The gap rule allows 2 units; the tips (nodes 6 and 12 at y = 1) face each other. The way
+    /// round from tip 6 to tip 12's side: down 5 + 5 and the two base pieces of length
+    /// sqrt(1 + 1) each, about 12.8; the new wall is 2 long (ratio 6.4).
+    #[test]
+    fn a_tip_joins_the_other_vein_when_the_way_round_is_long_enough() {
+        let network = two_veins();
+        let topology = network.topology().expect("a tree");
+        let conducts = vec![true; network.segments.len()];
+        let closed = close_loops(&network, &topology, &conducts, &rule(6.0));
+        assert_eq!(closed.links.len(), 1);
+        let link = closed.links[0];
+        let (a, b) = (
+            network.nodes[link.from as usize],
+            network.nodes[link.to as usize],
+        );
+        assert_eq!((a.y, b.y), (1.0, 1.0));
+        assert_eq!((a.x - b.x).abs(), 2.0);
+        // A ratio of 7 asks for a way round of 14: none.
+        let closed = close_loops(&network, &topology, &conducts, &rule(7.0));
+        assert!(closed.links.is_empty());
+    }
+}
