@@ -43,7 +43,8 @@ pub struct Relaxation {
     pub sweeps: u32,
     /// Moves kept, over every sweep.
     pub moves: usize,
-    /// Moves refused (no shortened move kept the network plane and lowered the cost).
+    /// Moves refused: every shortened move came too near a neighbour or made a segment cross,
+    /// touch or run over another (junctions already at their optimum are not counted).
     pub refused: usize,
     /// `sum q^alpha L` before, in the network's flow and length units.
     pub cost_before: f64,
@@ -109,7 +110,14 @@ pub fn relax_junctions(
     for _ in 0..sweeps {
         report.sweeps += 1;
         for &junction in &junctions {
-            match relax_one(network, topology, &weight, &mut index, junction, &mut neighbours) {
+            match relax_one(
+                network,
+                topology,
+                &weight,
+                &mut index,
+                junction,
+                &mut neighbours,
+            ) {
                 Move::Kept => report.moves += 1,
                 Move::Refused => report.refused += 1,
                 Move::None => {}
@@ -214,14 +222,20 @@ fn relax_one(
     };
     let before = local(start);
     let mut step = 1.0;
+    // Whether a move was stopped by a neighbour or a crossing (rather than too small to pay).
+    let mut blocked = false;
     for _ in 0..=HALVINGS {
         let candidate = (start.0 + step * dx, start.1 + step * dy);
         step *= 0.5;
         let clear = neighbours
             .iter()
             .all(|n| hypot(candidate.0 - n.at.0, candidate.1 - n.at.1) >= gap);
+        if !clear {
+            blocked = true;
+            continue;
+        }
         // A move must lower the cost by more than rounding could: the total then never rises.
-        if !clear || local(candidate) >= before * (1.0 - 1e-12) {
+        if local(candidate) >= before * (1.0 - 1e-12) {
             continue;
         }
         if index.move_is_plane(network, topology, junction, candidate) {
@@ -230,8 +244,13 @@ fn relax_one(
             index.moved(network, topology, junction, start);
             return Move::Kept;
         }
+        blocked = true;
     }
-    Move::Refused
+    if blocked {
+        Move::Refused
+    } else {
+        Move::None
+    }
 }
 
 /// The point minimising `sum_i w_i |p - p_i|` over `neighbours` (weights >= 0), by Weiszfeld's
@@ -325,7 +344,10 @@ const BUCKETS_PER_NODE: f64 = 4.0;
 
 impl SegmentGrid {
     fn new(network: &Network, topology: &Topology) -> SegmentGrid {
-        let (mut low, mut high) = ((f64::INFINITY, f64::INFINITY), (f64::NEG_INFINITY, f64::NEG_INFINITY));
+        let (mut low, mut high) = (
+            (f64::INFINITY, f64::INFINITY),
+            (f64::NEG_INFINITY, f64::NEG_INFINITY),
+        );
         for node in &network.nodes {
             low = (low.0.min(node.x), low.1.min(node.y));
             high = (high.0.max(node.x), high.1.max(node.y));
@@ -467,11 +489,7 @@ fn coord(p: (f64, f64)) -> Coord<f64> {
 /// by the orientation test (Cormen et al. 2009, Introduction to Algorithms, 3rd ed., section
 /// 33.1) on exact predicates. Segments sharing a node conflict only when they are collinear and
 /// overlap.
-fn conflict(
-    first: (u32, u32),
-    second: (u32, u32),
-    position: &impl Fn(u32) -> (f64, f64),
-) -> bool {
+fn conflict(first: (u32, u32), second: (u32, u32), position: &impl Fn(u32) -> (f64, f64)) -> bool {
     let shared = [first.0, first.1]
         .into_iter()
         .find(|&node| node == second.0 || node == second.1);

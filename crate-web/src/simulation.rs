@@ -10,7 +10,7 @@ use ramulus_core::params::Domain;
 use ramulus_core::params::Params;
 use ramulus_core::record::{make_record, read_record, write_record};
 use ramulus_core::run::{
-    conducting_pass, topology_pass, width_rule, widths_pass, RunView, SITE_CAUTION,
+    conducting_pass, junction_pass, topology_pass, width_rule, widths_pass, RunView, SITE_CAUTION,
 };
 use ramulus_draw::legend::legend_items;
 use ramulus_draw::marks::network_marks;
@@ -360,13 +360,17 @@ impl Simulation {
     /// segment (0 when the network is not valid, which a grown network always is). While the
     /// network only grows by appended nodes, only the new segments and those downstream of
     /// them are refilled (`GrowingScreen`, equal to a full refill bit for bit); otherwise the
-    /// core's topology, conducting-network and widths passes refill everything.
+    /// core's topology, junction, conducting-network and widths passes refill everything.
     pub fn update_geometry(&mut self) -> u32 {
         let network = self.network();
         let rule = width_rule(&self.params);
-        // The growing refill follows the passes with every segment conducting; with a
-        // conducting threshold a segment's state changes as flows grow, so refill in full.
-        if !self.full_refill && self.params.widths.vein_area == 0.0 {
+        // The growing refill follows the passes with every segment conducting and every node
+        // on its cell; with a conducting threshold a segment's state changes as flows grow, and
+        // relaxed junctions move as the network grows, so refill in full.
+        if !self.full_refill
+            && self.params.widths.vein_area == 0.0
+            && self.params.run.relax_junctions == 0
+        {
             if self.growing.update(&network, rule, &mut self.geometry) {
                 return self.geometry.len() as u32;
             }
@@ -378,8 +382,10 @@ impl Simulation {
             }
         }
         self.growing.clear();
+        let mut network = network;
         match topology_pass(&network) {
             Ok(mut forest) => {
+                junction_pass(&mut network, forest.as_mut(), &self.params);
                 let conducting = conducting_pass(&network, &mut forest, &self.params);
                 let table = widths_pass(&network, forest.as_ref(), &conducting, rule);
                 self.geometry.fill(&network, &table);

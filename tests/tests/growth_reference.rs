@@ -536,6 +536,8 @@ fn widths_obey_murrays_law_at_junctions() {
                 gamma,
                 tip_width: 0.2,
                 vein_area: 0.0,
+                gamma_major: None,
+                major_order: 4,
             },
             ..Params::default()
         };

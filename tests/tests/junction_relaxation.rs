@@ -139,7 +139,11 @@ fn murray_branching_angles_at_alpha_two_thirds() {
         let (t1, t2) = (theta_1.to_radians(), theta_2.to_radians());
         let along = r1 * r1 * t1.cos() + r2 * r2 * t2.cos();
         let across = r1 * r1 * t1.sin() - r2 * r2 * t2.sin();
-        assert!((along - r0 * r0).abs() < 0.01 * r0 * r0, "along: {along} vs {}", r0 * r0);
+        assert!(
+            (along - r0 * r0).abs() < 0.01 * r0 * r0,
+            "along: {along} vs {}",
+            r0 * r0
+        );
         assert!(across.abs() < 0.01 * r0 * r0, "across: {across}");
     }
     let (between, _, _) = relaxed_y(1.0, 1.0, 2.0 / 3.0);
@@ -260,7 +264,11 @@ fn relaxation_lowers_the_cost_and_keeps_networks_plane() {
     for name in ["broad-leaf", "drainage-site"] {
         for seed in 1..=3 {
             let (mut params, network) = grown(name, seed, 6_000);
-            assert_eq!(conflicting_pairs(&network), 0, "{name} seed {seed} grew plane");
+            assert_eq!(
+                conflicting_pairs(&network),
+                0,
+                "{name} seed {seed} grew plane"
+            );
             let lattice = RunView::new(network.clone(), &params).expect("a forest");
             let mut previous = lattice.metrics.transport_cost.expect("a cost");
             for sweeps in [1, 2, 4] {
@@ -296,4 +304,90 @@ fn no_sweeps_move_nothing() {
     let view = RunView::new(network.clone(), &params).expect("a forest");
     assert!(view.relaxation.is_none());
     assert_eq!(view.network.nodes, network.nodes);
+}
+
+/// Figures for the report (run with `--ignored --nocapture`): on the full broad-leaf preset,
+/// how much relaxation lowers `sum q^alpha L` per number of sweeps, and the mean angle between
+/// the two upstream segments of bifurcations by flow ratio (smaller / larger upstream flow),
+/// on the lattice and relaxed, beside Xia's angle for the bin's junctions (mean of
+/// `xia_angles` with each junction's own flows). Prints; asserts only that the cost fell.
+#[test]
+#[ignore]
+fn relaxation_figures() {
+    for (name, seed) in [("broad-leaf", 1), ("broad-leaf", 2), ("drainage-site", 1)] {
+        let mut params = preset(name).expect("a preset");
+        params.run.seed = seed;
+        let mut growth = Growth::new(&params).expect("valid");
+        growth.run();
+        let network = growth.network();
+        let lattice = RunView::new(network.clone(), &params).expect("a forest");
+        let base = lattice.metrics.transport_cost.expect("a cost");
+        println!(
+            "{name} seed {seed}: {} nodes, alpha {}, sum q^alpha L on the lattice {base:.6e}",
+            network.nodes.len(),
+            params.costs.alpha
+        );
+        let mut relaxed = None;
+        for sweeps in [1, 2, 5, 10, 20] {
+            params.run.relax_junctions = sweeps;
+            let view = RunView::new(network.clone(), &params).expect("a forest");
+            let r = view.relaxation.expect("relaxed");
+            let cost = view.metrics.transport_cost.expect("a cost");
+            println!(
+                "  {sweeps:>2} sweeps (ran {:>2}): cost {cost:.6e} ({:+.3} %), {} junctions, {} moves, {} refused, mean angle {:.2} -> {:.2} deg",
+                r.sweeps,
+                100.0 * (cost - base) / base,
+                r.junctions,
+                r.moves,
+                r.refused,
+                lattice.metrics.branching_angle_mean.unwrap_or(f64::NAN),
+                view.metrics.branching_angle_mean.unwrap_or(f64::NAN),
+            );
+            assert!(cost < base);
+            relaxed = Some(view);
+        }
+        let relaxed = relaxed.expect("relaxed");
+        let topology = lattice.topology().expect("a forest");
+        let bins = [0.0, 0.05, 0.1, 0.2, 0.35, 0.5, 0.75, 1.0001];
+        let mut sums = vec![(0usize, 0.0, 0.0, 0.0); bins.len() - 1];
+        for node in 0..network.nodes.len() {
+            let children = topology.children.of(node);
+            if topology.is_root(node) || children.len() != 2 {
+                continue;
+            }
+            let (a, b) = (children[0] as usize, children[1] as usize);
+            let (qa, qb) = (topology.flow[a], topology.flow[b]);
+            let ratio = qa.min(qb) / qa.max(qb);
+            let bin = bins
+                .windows(2)
+                .position(|w| ratio >= w[0] && ratio < w[1])
+                .expect("bin");
+            let alpha = params.costs.alpha;
+            let (w1, w2, w0) = (
+                qa.powf(alpha),
+                qb.powf(alpha),
+                topology.flow[node].powf(alpha),
+            );
+            let xia = degrees((w0 * w0 - w1 * w1 - w2 * w2) / (2.0 * w1 * w2));
+            let entry = &mut sums[bin];
+            entry.0 += 1;
+            entry.1 += angle_at(&network, node, a, b);
+            entry.2 += angle_at(&relaxed.network, node, a, b);
+            entry.3 += xia;
+        }
+        println!("  flow ratio      junctions  lattice  relaxed  Xia (deg)");
+        for (k, (count, lattice, relaxed, xia)) in sums.iter().enumerate() {
+            if *count > 0 {
+                let n = *count as f64;
+                println!(
+                    "  {:.2} - {:.2}   {count:>9}  {:>7.1}  {:>7.1}  {:>7.1}",
+                    bins[k],
+                    bins[k + 1].min(1.0),
+                    lattice / n,
+                    relaxed / n,
+                    xia / n
+                );
+            }
+        }
+    }
 }

@@ -67,9 +67,7 @@ fn widths_by_order_match_the_hand_computed_tree() {
     assert_eq!(rule.exponent(3), 2.0);
     assert_eq!(rule.exponent(7), 2.0);
     let got = widths(rule);
-    let want = [
-        2.6390444, 1.5518456, 2.1345563, 1.0, 1.0, 1.0, 2.0,
-    ];
+    let want = [2.6390444, 1.5518456, 2.1345563, 1.0, 1.0, 1.0, 2.0];
     for (k, (got, want)) in got.iter().zip(want).enumerate() {
         assert!((got - want).abs() < 1e-6, "segment {k}: {got} vs {want}");
     }
