@@ -7,7 +7,8 @@
 //!
 //! It applies while the network only grows by appended nodes whose parent comes before them
 //! and old nodes keep their parents, as the growth engine grows networks without attaching to
-//! segments; otherwise `update` says so and the caller refills in full.
+//! segments, and while widths follow flow alone (not `WidthRule::by_order`); otherwise
+//! `update` says so and the caller refills in full.
 
 use ramulus_core::network::{Network, NO_PARENT};
 use ramulus_core::segments::WidthRule;
