@@ -63,12 +63,13 @@ pub const HALVINGS: u32 = 8;
 /// A sweep that lowers the total cost by less than this fraction of it ends the relaxation.
 pub const SETTLED: f64 = 1e-9;
 
-/// Weiszfeld iterations per junction at most (each lowers `f`; the iteration usually settles
-/// within a few dozen).
-const MAX_ITERATIONS: u32 = 2000;
+/// Weiszfeld iterations per junction and sweep at most (each lowers `f`; the next sweep goes
+/// on from where this one stopped). 100 rather than more: on broad-leaf, 5 sweeps take 0.45 s
+/// instead of 1.45 s at 2,000 with the same cost to 0.03 %.
+const MAX_ITERATIONS: u32 = 100;
 
 /// Weiszfeld stops once a step is shorter than this fraction of the neighbours' spread.
-const STEP_TOLERANCE: f64 = 1e-13;
+const STEP_TOLERANCE: f64 = 1e-10;
 
 /// Moves each junction of `network` (a forest with forest view `topology`) toward its weighted
 /// Fermat point, `sweeps` times at most; flows and topology stay as they are, only junction
