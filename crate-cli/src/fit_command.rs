@@ -520,8 +520,9 @@ fn measure_specimen(
         specimen.report.repairs.len(),
         base.costs.alpha
     );
-    let view = ramulus_core::run::RunView::new(specimen.network, base)
-        .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+    let view =
+        ramulus_core::run::RunView::new(specimen.network, &ramulus_core::run::as_measured(base))
+            .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
     Ok(view.metrics)
 }
 

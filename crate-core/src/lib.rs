@@ -11,6 +11,7 @@ pub mod fast_libm;
 pub mod fit;
 pub mod growth;
 pub mod import;
+pub mod junctions;
 pub mod limits;
 pub mod link;
 pub mod mask;

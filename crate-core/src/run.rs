@@ -4,6 +4,13 @@
 //!
 //! 1. **topology**: `Network::check`, then the forest view (`Topology`) and Strahler orders
 //!    when the network is a forest (`topology_pass`);
+//!    **junctions** (`junction_pass`, only with `relax_junctions` > 0 on a forest): each
+//!    junction moves off the lattice toward the flow-weighted Fermat point of its neighbours
+//!    (`junctions::relax_junctions`), lowering `sum q^alpha L` and keeping the network plane;
+//!    the forest view's lengths follow (flows, parents and orders do not change). Every later
+//!    pass, the exports and the digest see the moved nodes; `Growth` stays on its lattice. It
+//!    runs here, not in growth, so every caller of `RunView::new` (command line, page, fitting)
+//!    gets the same network from the same parameters;
 //! 2. **conducting network**: which segments carry flow (`conducting_network`): those draining
 //!    at least `vein_area` (every segment when it is 0); with a threshold, the vein network
 //!    (`veins::vein_network`) is what the metrics measure and its Strahler orders are the
@@ -22,6 +29,7 @@
 //! 7. **digest**: the hash of the exact geometry and topology (new segments included).
 
 use crate::digest::digest_hex;
+use crate::junctions::{relax_junctions, Relaxation};
 use crate::metrics::{measure_weighted, measure_with, Metrics};
 use crate::network::{Network, Segment, Topology, TopologyError, NO_PARENT};
 use crate::params::Params;
@@ -93,6 +101,8 @@ pub struct RunView {
     pub network: Network,
     /// Topology pass: the forest view, `None` when the network has loops.
     pub forest: Option<ForestView>,
+    /// Junction pass: what the relaxation did, `None` when it did not run.
+    pub relaxation: Option<Relaxation>,
     /// Conducting-network pass (of the grown tree; the new segments of the loop pass conduct).
     pub conducting: ConductingNetwork,
     /// Loop pass: the loops closed after growth; `None` when `reconnect` is off or the network
@@ -120,6 +130,35 @@ pub fn topology_pass(network: &Network) -> Result<Option<ForestView>, TopologyEr
         Err(TopologyError::TwoDownstream { .. } | TopologyError::Cycle { .. }) => Ok(None),
         Err(error) => Err(error),
     }
+}
+
+/// Junction pass: with `relax_junctions` > 0 and a forest, moves the junctions of `network`
+/// (`junctions::relax_junctions` with `alpha`) and brings the forest view's segment lengths up
+/// to the moved nodes; `None`, touching nothing, otherwise. Specimens and records are measured
+/// as they are: their callers pass parameters with `relax_junctions` 0.
+pub fn junction_pass(
+    network: &mut Network,
+    forest: Option<&mut ForestView>,
+    params: &Params,
+) -> Option<Relaxation> {
+    let sweeps = params.run.relax_junctions;
+    let view = forest.filter(|_| sweeps > 0)?;
+    let relaxation = relax_junctions(network, &view.topology, params.costs.alpha, sweeps);
+    for (node, length) in view.topology.length.iter_mut().enumerate() {
+        let parent = view.topology.parent[node];
+        if parent != NO_PARENT {
+            *length = network.segment_length(node as u32, parent);
+        }
+    }
+    Some(relaxation)
+}
+
+/// The parameters with which a network that is already final (a traced specimen, a run record
+/// read back) is measured: `params` without junction relaxation, so it is measured as it is.
+pub fn as_measured(params: &Params) -> Params {
+    let mut params = params.clone();
+    params.run.relax_junctions = 0;
+    params
 }
 
 /// Conducting-network pass: a segment of a forest conducts when it drains at least
@@ -292,7 +331,8 @@ pub fn widths_pass(
 }
 
 impl RunView {
-    /// Runs every pass on a network with the parameters that set widths and `alpha`; fails
+    /// Runs every pass on a network with the parameters that set widths, `alpha` and junction
+    /// relaxation; fails
     /// only when the network is not valid (`Network::check`).
     pub fn new(network: Network, params: &Params) -> Result<RunView, TopologyError> {
         if params.widths.reconnect.is_some() {
@@ -331,13 +371,13 @@ impl RunView {
     }
 
     /// Every pass in order.
-    fn from_passes(network: Network, params: &Params) -> Result<RunView, TopologyError> {
+    fn from_passes(mut network: Network, params: &Params) -> Result<RunView, TopologyError> {
         let mut forest = topology_pass(&network)?;
+        let relaxation = junction_pass(&mut network, forest.as_mut(), params);
         let mut conducting = conducting_pass(&network, &mut forest, params);
         // A pass that closed no loop leaves the tree as it was.
         let reconnection = loop_pass(&network, forest.as_ref(), &conducting, params)
             .filter(|reconnection| !reconnection.links.is_empty());
-        let mut network = network;
         if let Some(reconnection) = &reconnection {
             network.segments.extend_from_slice(&reconnection.links);
             conducting
@@ -380,6 +420,7 @@ impl RunView {
         Ok(RunView {
             network,
             forest,
+            relaxation,
             conducting,
             loops,
             table,
@@ -397,9 +438,12 @@ impl RunView {
 
 /// Widths: a segment carrying one cell's weight is `tip_width * cell_size` wide, and width
 /// grows as flow^(1/gamma).
+/// With `gamma_major` set, the exponent changes with Strahler order (`WidthRule::exponent`).
 pub fn width_rule(params: &Params) -> WidthRule {
     WidthRule {
         gamma: params.widths.gamma,
+        gamma_major: params.widths.gamma_major.unwrap_or(params.widths.gamma),
+        major_order: params.widths.major_order.max(2),
         base_width: params.widths.tip_width * params.domain.cell_size,
         reference_flow: params.domain.runoff * params.domain.cell_size * params.domain.cell_size,
     }

@@ -24,10 +24,28 @@ pub struct SegmentTable {
 }
 
 /// How widths are scaled.
+///
+/// With one exponent (`gamma_major == gamma`) a width is a function of flow alone,
+/// `base_width * (flow / reference_flow)^(1 / gamma)`. With an exponent by order
+/// (`gamma_major != gamma`) widths follow a branching rule junction by junction, from the tips
+/// down: the downstream segment of a node whose segment has Strahler order `w` is
+/// `r = (r_own^g + sum over children r_c^g)^(1/g)` with `g = exponent(w)` (see
+/// `WidthRule::exponent`) and `r_own = base_width * (weight / reference_flow)^(1/g)` the width
+/// the node's own weight would have alone. With one exponent this is the flow rule again
+/// (`r^g` adds up like flow); with `g = 3` it is Murray's law at each junction
+/// (`r_0^3 = r_1^3 + r_2^3`, Murray 1926), with `g = 2` area-preserving branching. Measured
+/// leaves follow Murray's law in minor veins and move toward area-preserving in major ones
+/// (Price, Knox & Brodribb 2013, PLoS ONE 8).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct WidthRule {
-    /// Width exponent gamma (3 = Murray's law, 2 = area preserving).
+    /// Width exponent gamma (3 = Murray's law, 2 = area preserving), of order 1 (every order
+    /// when `gamma_major == gamma`).
     pub gamma: f64,
+    /// Width exponent at Strahler order `major_order` and above; equal to `gamma` for one
+    /// exponent everywhere.
+    pub gamma_major: f64,
+    /// The Strahler order from which `gamma_major` applies in full (at least 2).
+    pub major_order: u32,
     /// Width of a segment that carries `reference_flow`, in length units.
     pub base_width: f64,
     /// The flow that gets `base_width` (one cell's weight on a lattice).
@@ -35,6 +53,36 @@ pub struct WidthRule {
 }
 
 impl WidthRule {
+    /// One exponent for every order: `gamma_major` and `major_order` set so that
+    /// `WidthRule::width` (flow alone) gives every width.
+    pub fn single(gamma: f64, base_width: f64, reference_flow: f64) -> WidthRule {
+        WidthRule {
+            gamma,
+            gamma_major: gamma,
+            major_order: 2,
+            base_width,
+            reference_flow,
+        }
+    }
+
+    /// Whether the exponent changes with Strahler order (widths then need the forest, not only
+    /// each segment's flow).
+    pub fn by_order(&self) -> bool {
+        self.gamma_major != self.gamma
+    }
+
+    /// The width exponent at a junction whose downstream segment has Strahler order `order`:
+    /// `gamma` at order 1 (and 0, tissue), `gamma_major` from `major_order` on, evenly between:
+    /// `gamma + (gamma_major - gamma) * min(1, (order - 1) / (major_order - 1))`.
+    pub fn exponent(&self, order: u32) -> f64 {
+        if order <= 1 || !self.by_order() {
+            return self.gamma;
+        }
+        let span = f64::from(self.major_order.max(2) - 1);
+        let share = (f64::from(order - 1) / span).min(1.0);
+        self.gamma + (self.gamma_major - self.gamma) * share
+    }
+
     /// The width of a segment carrying `flow`.
     pub fn width(&self, flow: f64) -> f64 {
         if flow <= 0.0 || self.reference_flow <= 0.0 {
@@ -106,13 +154,22 @@ impl SegmentTable {
             conducts: Vec::with_capacity(count),
         };
         let mut widths = WidthMemo::new(rule);
+        let by_order = match forest {
+            Some((topology, orders)) if rule.by_order() => {
+                Some(widths_by_order(network, topology, orders, rule))
+            }
+            _ => None,
+        };
         for (index, segment) in network.segments.iter().enumerate() {
             let conducting = conducts.get(index).copied().unwrap_or(true);
             let from = segment.from as usize;
             let (flow, width, order, length) = match forest {
                 Some((topology, orders)) if topology.parent.get(from) == Some(&segment.to) => (
                     topology.flow[from],
-                    widths.width(topology.flow[from]),
+                    match &by_order {
+                        Some(by_order) => by_order[from],
+                        None => widths.width(topology.flow[from]),
+                    },
                     orders.get(from).copied().unwrap_or(1),
                     topology.length[from],
                 ),
@@ -141,6 +198,46 @@ impl SegmentTable {
     pub fn is_empty(&self) -> bool {
         self.width.is_empty()
     }
+}
+
+/// The width of every node's downstream segment under a rule whose exponent changes with
+/// Strahler order (`orders`, one per node), by the branching rule of `WidthRule`, tips first.
+/// Widths of tissue segments are computed too (their flow reaches the veins); the table draws
+/// them 0.
+fn widths_by_order(
+    network: &Network,
+    topology: &Topology,
+    orders: &[u32],
+    rule: WidthRule,
+) -> Vec<f64> {
+    use crate::fast_libm::pow;
+    let mut width = vec![0.0; network.nodes.len()];
+    if rule.reference_flow <= 0.0 {
+        return width;
+    }
+    // Children come after parents in `topology.order`: the reverse settles children first.
+    for &node in topology.order.iter().rev() {
+        let node = node as usize;
+        let exponent = rule.exponent(orders.get(node).copied().unwrap_or(1));
+        let own = network.nodes[node].weight;
+        let mut sum = if own > 0.0 {
+            pow(rule.base_width, exponent) * (own / rule.reference_flow)
+        } else {
+            0.0
+        };
+        for &child in topology.children.of(node) {
+            let child_width = width[child as usize];
+            if child_width > 0.0 {
+                sum += pow(child_width, exponent);
+            }
+        }
+        width[node] = if sum > 0.0 {
+            pow(sum, 1.0 / exponent)
+        } else {
+            0.0
+        };
+    }
+    width
 }
 
 /// Strahler order of every node's downstream segment in a forest, computed upstream to
@@ -186,11 +283,7 @@ mod tests {
     /// that share a slot and flows that are zero or negative.
     #[test]
     fn remembered_widths_equal_computed_widths() {
-        let rule = WidthRule {
-            gamma: 3.0,
-            base_width: 0.05,
-            reference_flow: 0.01,
-        };
+        let rule = WidthRule::single(3.0, 0.05, 0.01);
         let mut memo = WidthMemo::new(rule);
         // 20,000 flows over 3,000 values: more values than slots, each seen several times.
         for step in 0..20_000u32 {

@@ -393,11 +393,7 @@ mod tests {
             cell_size: 1.0,
             cells: CellSet::default(),
         };
-        let rule = WidthRule {
-            gamma: 2.0,
-            base_width: 0.1,
-            reference_flow: 1.0,
-        };
+        let rule = WidthRule::single(2.0, 0.1, 1.0);
         let forest = topology_pass(&network).unwrap();
         let table = widths_pass(
             &network,

@@ -7,7 +7,8 @@
 //!
 //! It applies while the network only grows by appended nodes whose parent comes before them
 //! and old nodes keep their parents, as the growth engine grows networks without attaching to
-//! segments; otherwise `update` says so and the caller refills in full.
+//! segments, and while widths follow flow alone (not `WidthRule::by_order`); otherwise
+//! `update` says so and the caller refills in full.
 
 use ramulus_core::network::{Network, NO_PARENT};
 use ramulus_core::segments::WidthRule;
@@ -175,6 +176,10 @@ impl GrowingScreen {
         rule: WidthRule,
         geometry: &ScreenGeometry,
     ) -> bool {
+        // Widths by order follow the whole forest, not each segment's flow: refill in full.
+        if rule.by_order() {
+            return false;
+        }
         let old_nodes = self.parent.len();
         if network.nodes.len() < old_nodes || geometry.len() != self.node_of_entry.len() {
             return false;
@@ -341,6 +346,7 @@ mod tests {
         assert!(!growing.update(&rewired, rule, &mut geometry));
         let mut other_rule = rule;
         other_rule.gamma = 2.0;
+        other_rule.gamma_major = 2.0;
         assert!(!growing.update(&growth.network(), other_rule, &mut geometry));
         // The geometry was left as the first update made it.
         assert_eq!(geometry.len(), 300);

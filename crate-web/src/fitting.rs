@@ -22,7 +22,7 @@ use ramulus_core::network::Network;
 use ramulus_core::params::table::{parameter, parameters, Access, FitScale};
 use ramulus_core::params::Params;
 use ramulus_core::record::read_record;
-use ramulus_core::run::RunView;
+use ramulus_core::run::{as_measured, RunView};
 use ramulus_core::specimen::{build_specimen, SpecimenOptions};
 use ramulus_draw::format::{four_digits, grouped};
 use ramulus_draw::palette::Colouring;
@@ -932,7 +932,7 @@ fn measure_specimen(
         let alpha = record.params.as_ref().map_or(0.5, |p| p.costs.alpha);
         let metrics =
             ramulus_core::metrics::measure(&network, alpha).map_err(|error| failed(&error))?;
-        let params = record.params.unwrap_or_else(|| base.clone());
+        let params = as_measured(&record.params.unwrap_or_else(|| base.clone()));
         return Ok((metrics, (network, params)));
     }
     let options = SpecimenOptions {
@@ -940,8 +940,9 @@ fn measure_specimen(
         ..SpecimenOptions::default()
     };
     let specimen = build_specimen(bytes, &options).map_err(|error| failed(&error))?;
-    let view = RunView::new(specimen.network.clone(), base).map_err(|error| failed(&error))?;
-    Ok((view.metrics, (specimen.network, base.clone())))
+    let base = as_measured(base);
+    let view = RunView::new(specimen.network.clone(), &base).map_err(|error| failed(&error))?;
+    Ok((view.metrics, (specimen.network, base)))
 }
 
 /// A run record (JSON object naming `ramulus-run`, or no GeoJSON `type`), as `ramulus fit`

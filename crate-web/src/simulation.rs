@@ -10,7 +10,8 @@ use ramulus_core::params::Domain;
 use ramulus_core::params::Params;
 use ramulus_core::record::{make_record, read_record, write_record};
 use ramulus_core::run::{
-    conducting_pass, topology_pass, width_rule, widths_pass, RunView, SITE_CAUTION,
+    as_measured, conducting_pass, junction_pass, topology_pass, width_rule, widths_pass, RunView,
+    SITE_CAUTION,
 };
 use ramulus_draw::legend::legend_items;
 use ramulus_draw::marks::network_marks;
@@ -127,11 +128,13 @@ impl Simulation {
 
     /// Adds up to `count` cells; returns how many were added.
     pub fn step(&mut self, count: u32) -> u32 {
+        let was_finished = self.finished();
         let added = match &mut self.source {
             Source::Growing(growth) => growth.step(count as u64).added as u32,
             Source::Fixed(_) => 0,
         };
-        if added > 0 {
+        // Stopping changes the view too when junctions are relaxed once growth stops.
+        if added > 0 || self.finished() != was_finished {
             self.view_cache = None;
         }
         if self
@@ -412,13 +415,16 @@ impl Simulation {
     /// segment (0 when the network is not valid, which a grown network always is). While the
     /// network only grows by appended nodes, only the new segments and those downstream of
     /// them are refilled (`GrowingScreen`, equal to a full refill bit for bit); otherwise the
-    /// core's topology, conducting-network and widths passes refill everything.
+    /// core's topology, junction, conducting-network and widths passes refill everything.
     pub fn update_geometry(&mut self) -> u32 {
         let network = self.network();
         let rule = width_rule(&self.params);
-        // The growing refill follows the passes with every segment conducting; with a
-        // conducting threshold a segment's state changes as flows grow, so refill in full.
-        if !self.full_refill && self.params.widths.vein_area == 0.0 {
+        // The growing refill follows the passes with every segment conducting and every node
+        // on its cell; with a conducting threshold a segment's state changes as flows grow, and
+        // once a run with junction relaxation has finished its junctions move: refill in full.
+        // Junctions are relaxed once growth has stopped, not while it grows (a relaxation
+        // per frame would cost more than the growth).
+        if !self.full_refill && self.params.widths.vein_area == 0.0 && !self.relaxes_now() {
             if self.growing.update(&network, rule, &mut self.geometry) {
                 return self.geometry.len() as u32;
             }
@@ -430,8 +436,12 @@ impl Simulation {
             }
         }
         self.growing.clear();
+        let mut network = network;
         match topology_pass(&network) {
             Ok(mut forest) => {
+                if self.relaxes_now() {
+                    junction_pass(&mut network, forest.as_mut(), &self.params);
+                }
                 let conducting = conducting_pass(&network, &mut forest, &self.params);
                 let table = widths_pass(&network, forest.as_ref(), &conducting, rule);
                 self.geometry.fill(&network, &table);
@@ -567,11 +577,21 @@ impl Simulation {
         }
     }
 
+    /// Whether the pipeline relaxes junctions now: with `relax_junctions` > 0, once growth has
+    /// stopped (while it grows, the network is shown and measured on its lattice).
+    fn relaxes_now(&self) -> bool {
+        self.params.run.relax_junctions > 0 && self.finished()
+    }
+
     /// The derived view of the network as it stands, computed once per change of the network.
     fn view(&mut self) -> Result<&RunView, JsError> {
         if self.view_cache.is_none() {
-            let view = RunView::new(self.network(), &self.params)
-                .map_err(|error| JsError::new(&error.to_string()))?;
+            let view = if self.params.run.relax_junctions > 0 && !self.relaxes_now() {
+                RunView::new(self.network(), &as_measured(&self.params))
+            } else {
+                RunView::new(self.network(), &self.params)
+            }
+            .map_err(|error| JsError::new(&error.to_string()))?;
             self.view_cache = Some(view);
         }
         self.view_cache

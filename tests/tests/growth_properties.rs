@@ -127,6 +127,7 @@ fn valid_params() -> impl Strategy<Value = Params> {
                     // Plane and crossing growth, half of the cases each (by the drawn seed).
                     planar: seed % 2 == 0,
                     refresh,
+                    relax_junctions: 0,
                 },
                 ..Params::default()
             }

@@ -60,11 +60,7 @@ fn table(network: &Network) -> SegmentTable {
             forest.as_ref(),
             &ramulus_core::params::Params::default(),
         ),
-        WidthRule {
-            gamma: 3.0,
-            base_width: 0.05,
-            reference_flow: 0.0225,
-        },
+        WidthRule::single(3.0, 0.05, 0.0225),
     )
 }
 

@@ -142,6 +142,11 @@ pub struct RunControl {
     /// Flows and transport costs are recomputed exactly whenever the network has grown by this
     /// fraction since the last refresh. Default 0.05; 0.001 ..= 1.
     pub refresh: f64,
+    /// Junction relaxation after growth (`junctions::relax_junctions`): at most this many
+    /// sweeps moving each junction off the lattice to lower `sum q^alpha L`. Default 0 (off, as
+    /// version-1 links and parameters saved before the key existed); 0 ..= 50.
+    #[serde(default)]
+    pub relax_junctions: u32,
 }
 
 /// The width rule: how a segment's drawn width follows its flow.
@@ -165,11 +170,25 @@ pub struct Widths {
     /// `k` being the finest one times 4^(`loop_levels` - k). Default 3; 0 ..= 8.
     #[serde(default = "default_loop_levels")]
     pub loop_levels: u32,
+    /// Width exponent of the major veins (`segments::WidthRule`): the exponent at each junction
+    /// moves from `gamma` at Strahler order 1 to this at order `major_order` and above. Default
+    /// none (one exponent `gamma` for every order, as before the key existed); 1 ..= 10.
+    #[serde(default)]
+    pub gamma_major: Option<f64>,
+    /// The Strahler order from which `gamma_major` applies in full. Default 4; 2 ..= 12.
+    #[serde(default = "default_major_order")]
+    pub major_order: u32,
 }
 
 /// `loop_levels` of parameters saved before the key existed (no effect: reconnection is off).
 fn default_loop_levels() -> u32 {
     3
+}
+
+/// `Widths::major_order` of parameters saved before the key existed (it only matters with
+/// `gamma_major` set, which they lack).
+fn default_major_order() -> u32 {
+    4
 }
 
 /// A root of one tree: a cell and the direction its flow leaves the network.
@@ -430,6 +449,7 @@ fn blank() -> Params {
             attach_to_segments: false,
             planar: false,
             refresh: 0.0,
+            relax_junctions: 0,
         },
         widths: Widths {
             gamma: 0.0,
@@ -437,6 +457,8 @@ fn blank() -> Params {
             vein_area: 0.0,
             reconnect: None,
             loop_levels: 0,
+            gamma_major: None,
+            major_order: 0,
         },
     }
 }
