@@ -15,7 +15,7 @@
 //! 6. **digest**: the hash of the exact geometry and topology.
 
 use crate::digest::digest_hex;
-use crate::metrics::{measure_with, Metrics};
+use crate::metrics::{measure_with, Measured, Metrics};
 use crate::network::{Network, Topology, TopologyError, NO_PARENT};
 use crate::params::Params;
 use crate::segments::{strahler_orders, SegmentTable, WidthRule};
@@ -181,6 +181,17 @@ pub fn widths_pass(
 }
 
 impl RunView {
+    /// How the readings of this view read when its network was grown on the lattice: every
+    /// segment conducting (no tissue, as with `vein_area` 0) means the network runs through
+    /// every cell, and the readings marked `follows_lattice` measure the cell size.
+    pub fn grown_measured(&self) -> Measured {
+        if self.conducting.tissue_count() == 0 {
+            Measured::EveryCellConducts
+        } else {
+            Measured::AsGiven
+        }
+    }
+
     /// Runs every pass on a network with the parameters that set widths and `alpha`; fails
     /// only when the network is not valid (`Network::check`).
     pub fn new(network: Network, params: &Params) -> Result<RunView, TopologyError> {

@@ -23,5 +23,7 @@ pub mod screen;
 pub mod screen_growth;
 pub mod svg;
 pub mod texts;
+pub mod tissue;
 
-pub use svg::{render_svg, run_svg, Colouring, SvgOptions, METADATA_NAMESPACE};
+pub use svg::{render_svg, run_svg, run_svg_with, Colouring, SvgOptions, METADATA_NAMESPACE};
+pub use tissue::TissueView;

@@ -31,7 +31,7 @@ mod tortuosity;
 mod transport;
 
 pub use table::{
-    metric_readme_table, metric_rows, metric_rows_explained, metrics_csv, AppliesTo, MetricEntry,
+    metric_readme_table, metric_rows, metric_rows_explained, metric_rows_noted, metrics_csv, AppliesTo, Measured, MetricEntry,
     MetricUnit, Reading, METRIC_TABLE,
 };
 
