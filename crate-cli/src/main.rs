@@ -13,6 +13,7 @@ mod bench;
 mod commands;
 mod fit_bench;
 mod fit_command;
+mod identifiability_bench;
 mod image_bench;
 mod interrupt;
 mod options;
