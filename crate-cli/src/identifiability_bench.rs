@@ -51,7 +51,9 @@ pub fn run(quick: bool, as_json: bool) -> Result<(), CliError> {
         }
         let keys = studied_keys(&base);
         let jobs: Vec<(usize, usize, u64)> = (0..keys.len())
-            .flat_map(|k| (0..LEVELS).flat_map(move |level| (1..=seeds).map(move |seed| (k, level, seed))))
+            .flat_map(|k| {
+                (0..LEVELS).flat_map(move |level| (1..=seeds).map(move |seed| (k, level, seed)))
+            })
             .collect();
         let measured: Vec<Vec<Option<f64>>> = jobs
             .par_iter()
@@ -118,7 +120,13 @@ fn print_study(
     let level_texts: Vec<String> = study
         .keys
         .iter()
-        .map(|key| format!("{}..{}", short(key.levels[0]), short(key.levels[LEVELS - 1])))
+        .map(|key| {
+            format!(
+                "{}..{}",
+                short(key.levels[0]),
+                short(key.levels[LEVELS - 1])
+            )
+        })
         .collect();
     let widths: Vec<usize> = study
         .keys
@@ -187,18 +195,13 @@ fn print_study(
         size_free.join(" "),
         study.size_free_directions
     );
-    let pairs: Vec<String> = study
-        .confounded
-        .iter()
-        .map(|(a, b, cosine)| format!("{a} & {b} ({cosine:.2})"))
-        .collect();
     println!(
         "confounded pairs (|cosine| of their columns above {CONFOUNDED_COSINE}): {}",
-        if pairs.is_empty() {
-            "none".to_string()
-        } else {
-            pairs.join(", ")
-        }
+        pair_list(&study.confounded)
+    );
+    println!(
+        "confounded pairs without the size metrics: {}",
+        pair_list(&study.size_free_confounded)
     );
     println!(
         "parameters no metric sees (below {SEEN_RATIO} spreads per step): {}\n",
@@ -208,6 +211,18 @@ fn print_study(
             study.unseen.join(", ")
         }
     );
+}
+
+/// Pairs as `a & b (cosine)`, or `none`.
+fn pair_list(pairs: &[(String, String, f64)]) -> String {
+    if pairs.is_empty() {
+        return "none".to_string();
+    }
+    pairs
+        .iter()
+        .map(|(a, b, cosine)| format!("{a} & {b} ({cosine:.2})"))
+        .collect::<Vec<_>>()
+        .join(", ")
 }
 
 /// A level in at most 4 significant digits, for the table's header.

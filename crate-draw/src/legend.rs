@@ -207,6 +207,9 @@ mod tests {
         shown.tissue = Some(TissueView::Hidden);
         shown.units = "m";
         let text = format!("{:?}", legend_items(&shown));
-        assert!(text.contains("hillslope") && !text.contains("vein"), "{text}");
+        assert!(
+            text.contains("hillslope") && !text.contains("vein"),
+            "{text}"
+        );
     }
 }

@@ -370,8 +370,7 @@ impl ScreenGeometry {
         let mut best = None;
         let mut best_distance = reach * reach;
         for (index, ends) in self.ends.chunks_exact(4).enumerate() {
-            if tissue == TissueView::Hidden && !self.conducts.get(index).copied().unwrap_or(true)
-            {
+            if tissue == TissueView::Hidden && !self.conducts.get(index).copied().unwrap_or(true) {
                 continue;
             }
             let [x0, y0, x1, y1] = [ends[0], ends[1], ends[2], ends[3]].map(f64::from);
@@ -477,8 +476,14 @@ mod tests {
         );
         assert_eq!(screen.colour_indices(Colouring::ByOrder), [0, 0]);
         // (1.5, 0.2) is 0.2 from entry 1 (node 2 to node 1, x 1..2) and 0.5 from entry 0's end.
-        assert_eq!(screen.segment_at(1.5, 0.2, 0.3, TissueView::Hidden), Some(1));
-        assert_eq!(screen.segment_at(0.5, 0.2, 0.3, TissueView::Hidden), Some(0));
+        assert_eq!(
+            screen.segment_at(1.5, 0.2, 0.3, TissueView::Hidden),
+            Some(1)
+        );
+        assert_eq!(
+            screen.segment_at(0.5, 0.2, 0.3, TissueView::Hidden),
+            Some(0)
+        );
         assert_eq!(screen.segment_at(1.5, 0.4, 0.3, TissueView::Hidden), None);
         let facts = screen.legend_facts(Colouring::ByFlow, TissueView::Faint, "mm");
         assert_eq!(facts.flow_range, Some((1.0, 2.0)));

@@ -267,7 +267,14 @@ mod tests {
             offset_y: 2.0,
         };
         geometry
-            .raster(view, colouring, TissueView::Faint, 0.75, 1.6, [255, 253, 248])
+            .raster(
+                view,
+                colouring,
+                TissueView::Faint,
+                0.75,
+                1.6,
+                [255, 253, 248],
+            )
             .to_vec()
     }
 

@@ -26,9 +26,7 @@ impl TissueView {
     /// The view named `faint`, `hidden` or `veins` (the page's, the SVG's and the command
     /// line's word), or `None`.
     pub fn from_name(name: &str) -> Option<TissueView> {
-        TissueView::ALL
-            .into_iter()
-            .find(|view| view.name() == name)
+        TissueView::ALL.into_iter().find(|view| view.name() == name)
     }
 
     /// The view's word: `faint`, `hidden` or `veins`.
@@ -164,7 +162,10 @@ mod tests {
             .map(|colour| parse_hex(colour))
             .chain((0..=10).map(|step| parse_hex(&flow_colour(step as f64 / 10.0))));
         for colour in veins {
-            assert!(faint > luminance(colour), "{colour:?} is lighter than faint tissue");
+            assert!(
+                faint > luminance(colour),
+                "{colour:?} is lighter than faint tissue"
+            );
         }
     }
 

@@ -258,11 +258,8 @@ impl Simulation {
     pub fn metrics_rows_json(&mut self) -> Result<String, JsError> {
         let units = self.params.domain.units.clone();
         let view = self.view()?;
-        let rows = ramulus_draw::texts::readings_rows_noted(
-            &view.metrics,
-            &units,
-            view.grown_measured(),
-        );
+        let rows =
+            ramulus_draw::texts::readings_rows_noted(&view.metrics, &units, view.grown_measured());
         serde_json::to_string(&rows).map_err(|error| JsError::new(&error.to_string()))
     }
 
@@ -467,8 +464,7 @@ impl Simulation {
         background: u32,
     ) -> Result<(), JsError> {
         self.start_thin_lines(
-            width, height, scale, offset_x, offset_y, colouring, tissue, min_px, max_px,
-            background,
+            width, height, scale, offset_x, offset_y, colouring, tissue, min_px, max_px, background,
         )?;
         self.geometry.continue_raster(usize::MAX);
         self.put_thin_lines(context)

@@ -5,10 +5,17 @@
 // for "lighter". Screenshots go to artifacts/e2e/.
 import { after, before, test } from 'node:test';
 import assert from 'node:assert/strict';
-import { readFileSync } from 'node:fs';
+import { mkdirSync, readFileSync } from 'node:fs';
+import path from 'node:path';
 import {
-  finishedDigest, fragmentOf, launchBrowser, nativeRun, newPage, screenshot, serveSite,
+  artifacts, finishedDigest, fragmentOf, launchBrowser, nativeRun, newPage, screenshot, serveSite,
 } from './support.mjs';
+
+/// Saves the drawing with its controls and key (the page's network section) as a screenshot.
+async function drawingShot(page, name) {
+  mkdirSync(artifacts, { recursive: true });
+  await page.locator('section.field').screenshot({ path: path.join(artifacts, `${name}-drawing.png`) });
+}
 
 let site;
 let context;
@@ -100,10 +107,13 @@ test('tissue drawn faint, hidden or like veins on the canvas and in the SVG', as
 
   const asVeins = await showTissue(page, 'veins');
   await screenshot(page, 'tissue-veins');
+  await drawingShot(page, 'tissue-veins');
   const hidden = await showTissue(page, 'hidden');
   await screenshot(page, 'tissue-hidden');
+  await drawingShot(page, 'tissue-hidden');
   const faint = await showTissue(page, 'faint');
   await screenshot(page, 'tissue-faint');
+  await drawingShot(page, 'tissue-faint');
   assert.match(await page.textContent('#legend'), /tissue: drains less than the vein threshold/);
 
   // Where the veins-like drawing inks a pixel and the hidden one leaves the background, there
@@ -179,6 +189,7 @@ test('on a drainage site the control speaks of hillslope and channels, never vei
   assert.equal(await page.textContent('label[for="tissue"]'), 'Hillslope (below the channel threshold)');
   assert.match(await page.textContent('#legend'), /hillslope: drains less than the channel threshold/);
   await screenshot(page, 'tissue-site-faint');
+  await drawingShot(page, 'tissue-site-faint');
   const words = await page.evaluate(() => document.querySelector('main').innerText);
   assert.doesNotMatch(words, /vein/i);
   const svg = await savedSvg(page);

@@ -194,6 +194,10 @@ pub struct Identifiability {
     /// Pairs of keys whose ratio columns have a cosine above `CONFOUNDED_COSINE` in absolute
     /// value, with the cosine; only keys that move some metric by `SEEN_RATIO` count.
     pub confounded: Vec<(String, String, f64)>,
+    /// Pairs confounded as in `confounded`, judged on the metrics outside `SIZE_METRICS` only
+    /// (the totals, moved by most parameters through size, make many columns parallel); only
+    /// keys that move some of those metrics by `SEEN_RATIO` count.
+    pub size_free_confounded: Vec<(String, String, f64)>,
     /// Keys that move no metric by `SEEN_RATIO` spreads per step.
     pub unseen: Vec<String>,
 }
@@ -272,22 +276,9 @@ pub fn identifiability(
         .collect();
     let size_free_singular_values = self::singular_values(&size_free);
     let size_free_directions = above(&size_free_singular_values);
-    let seen: Vec<bool> = matrix
-        .iter()
-        .map(|column| column.iter().any(|value| value.abs() >= SEEN_RATIO))
-        .collect();
-    let mut confounded = Vec::new();
-    for a in 0..keys.len() {
-        for b in a + 1..keys.len() {
-            if !(seen[a] && seen[b]) {
-                continue;
-            }
-            let cosine = cosine(&matrix[a], &matrix[b]);
-            if cosine.abs() > CONFOUNDED_COSINE {
-                confounded.push((keys[a].key.clone(), keys[b].key.clone(), cosine));
-            }
-        }
-    }
+    let seen = seen_columns(&matrix);
+    let confounded = confounded_pairs(keys, &matrix);
+    let size_free_confounded = confounded_pairs(keys, &size_free);
     let unseen = keys
         .iter()
         .zip(&seen)
@@ -304,8 +295,35 @@ pub fn identifiability(
         size_free_singular_values,
         size_free_directions,
         confounded,
+        size_free_confounded,
         unseen,
     }
+}
+
+/// Whether each column has an entry of at least `SEEN_RATIO` in absolute value.
+fn seen_columns(columns: &[Vec<f64>]) -> Vec<bool> {
+    columns
+        .iter()
+        .map(|column| column.iter().any(|value| value.abs() >= SEEN_RATIO))
+        .collect()
+}
+
+/// Pairs of seen columns whose cosine exceeds `CONFOUNDED_COSINE` in absolute value.
+fn confounded_pairs(keys: &[StudiedKey], columns: &[Vec<f64>]) -> Vec<(String, String, f64)> {
+    let seen = seen_columns(columns);
+    let mut pairs = Vec::new();
+    for a in 0..keys.len() {
+        for b in a + 1..keys.len() {
+            if !(seen[a] && seen[b]) {
+                continue;
+            }
+            let cosine = cosine(&columns[a], &columns[b]);
+            if cosine.abs() > CONFOUNDED_COSINE {
+                pairs.push((keys[a].key.clone(), keys[b].key.clone(), cosine));
+            }
+        }
+    }
+    pairs
 }
 
 /// Cosine of the angle between two vectors (0 when either is zero).
@@ -335,10 +353,12 @@ pub fn singular_values(columns: &[Vec<f64>]) -> Vec<f64> {
         let mut rotated = false;
         for p in 0..count {
             for q in p + 1..count {
-                let (alpha, beta, gamma) = columns[p].iter().zip(&columns[q]).fold(
-                    (0.0, 0.0, 0.0),
-                    |(alpha, beta, gamma), (x, y)| (alpha + x * x, beta + y * y, gamma + x * y),
-                );
+                let (alpha, beta, gamma) = columns[p]
+                    .iter()
+                    .zip(&columns[q])
+                    .fold((0.0, 0.0, 0.0), |(alpha, beta, gamma), (x, y)| {
+                        (alpha + x * x, beta + y * y, gamma + x * y)
+                    });
                 if gamma == 0.0 || gamma.abs() <= 1e-15 * libm::sqrt(alpha * beta) {
                     continue;
                 }
@@ -424,7 +444,10 @@ mod tests {
         assert!((study.ratio[1][1].unwrap() - 5.0 / spread).abs() < 1e-12);
         assert_eq!(study.directions, 2);
         assert_eq!(study.confounded.len(), 1);
-        assert_eq!((&study.confounded[0].0[..], &study.confounded[0].1[..]), ("a", "c"));
+        assert_eq!(
+            (&study.confounded[0].0[..], &study.confounded[0].1[..]),
+            ("a", "c")
+        );
         assert_eq!(study.unseen, vec!["d".to_string()]);
     }
 
