@@ -621,10 +621,10 @@ pub enum Measured {
 
 /// The note that replaces a reading's explanation when it follows the cell size, in leaf
 /// and in drainage words.
-pub const FOLLOWS_LATTICE_NOTE: &str = "Says little here: every cell is a vein (no smallest drained area set), so this follows the cell size, not the model. Set \"Smallest drained area that conducts\" above 0 to measure veins.";
+pub const FOLLOWS_LATTICE_NOTE: &str = "Says little here: every cell is a vein, so this follows the cell size, not the model. Set \"Smallest drained area that conducts\" above 0 to measure veins.";
 
 /// `FOLLOWS_LATTICE_NOTE` in drainage words.
-pub const FOLLOWS_LATTICE_NOTE_SITE: &str = "Says little here: every cell is a channel (no smallest drained area set), so this follows the cell size, not the layout. Set \"Smallest drained area that conducts\" above 0 to measure channels.";
+pub const FOLLOWS_LATTICE_NOTE_SITE: &str = "Says little here: every cell is a channel, so this follows the cell size, not the layout. Set \"Smallest drained area that conducts\" above 0 to measure channels.";
 
 /// Rows of `metric_rows_explained` with a fifth field: whether the reading says little about
 /// the model for a network measured as `measured` says (then its explanation is
