@@ -567,4 +567,92 @@ mod tests {
         assert!(!screen.raster_in_progress());
         assert_eq!(screen.continue_raster(10), 0);
     }
+
+    /// Tissue as chosen: hidden leaves the background wherever only tissue was drawn and adds
+    /// no ink; faint draws it lighter (WCAG 2.0 relative luminance) than the veins.
+    #[test]
+    fn tissue_is_drawn_faint_hidden_or_like_veins() {
+        use ramulus_core::growth::Growth;
+        use ramulus_core::link::decode_link;
+        use ramulus_core::run::width_rule;
+
+        let mut params = decode_link(
+            "v=1&width=60&height=50&roots=30,48,0,1&cells=2500&joining=weighted\
+             &temperature=0.5&w_turn=1&w_flow=0.5&alpha=0.5&w_path=0.05&seed=5",
+        )
+        .params;
+        params.widths.vein_area = 10.0 * params.domain.cell_size * params.domain.cell_size;
+        let mut growth = Growth::new(&params).unwrap();
+        growth.run();
+        let network = growth.network();
+        let mut forest = topology_pass(&network).unwrap();
+        let conducting = ramulus_core::run::conducting_pass(&network, &mut forest, &params);
+        let table = widths_pass(&network, forest.as_ref(), &conducting, width_rule(&params));
+        let mut screen = ScreenGeometry::default();
+        screen.fill(&network, &table);
+        assert!(screen.tissue_count > 100 && screen.tissue_count < screen.len());
+        let view = RasterView {
+            width: 130,
+            height: 110,
+            scale: 2.0 / params.domain.cell_size,
+            offset_x: 3.0,
+            offset_y: 4.0,
+        };
+        let background = [255, 253, 248];
+        let mut draw = |tissue| {
+            screen
+                .raster(view, Colouring::ByOrder, tissue, 0.75, 1.6, background)
+                .to_vec()
+        };
+        let (veins, hidden, faint) = (
+            draw(TissueView::AsVeins),
+            draw(TissueView::Hidden),
+            draw(TissueView::Faint),
+        );
+        let luminance = |pixel: &[u8]| {
+            let channel = |value: u8| {
+                let value = value as f64 / 255.0;
+                if value <= 0.04045 {
+                    value / 12.92
+                } else {
+                    ((value + 0.055) / 1.055).powf(2.4)
+                }
+            };
+            0.2126 * channel(pixel[0]) + 0.7152 * channel(pixel[1]) + 0.0722 * channel(pixel[2])
+        };
+        let (mut tissue_only, mut vein, mut faint_tissue, mut faint_vein) = (0, 0, 0.0, 0.0);
+        for ((a, h), f) in veins.chunks(4).zip(hidden.chunks(4)).zip(faint.chunks(4)) {
+            let (inked, inked_hidden) = (a[..3] != background, h[..3] != background);
+            assert!(inked || !inked_hidden, "hiding tissue added ink");
+            if inked && !inked_hidden {
+                tissue_only += 1;
+                faint_tissue += luminance(f);
+            } else if inked_hidden {
+                vein += 1;
+                faint_vein += luminance(f);
+            }
+        }
+        assert!(
+            tissue_only > 500 && vein > 500,
+            "{tissue_only} and {vein} pixels"
+        );
+        assert!(faint_tissue / tissue_only as f64 > faint_vein / vein as f64 + 0.1);
+        // Hidden tissue cannot be pointed at; a tissue entry's midpoint finds it otherwise.
+        let entry = (0..screen.len())
+            .find(|&index| !screen.conducts[index])
+            .unwrap();
+        let ends = &screen.ends[4 * entry..4 * entry + 4];
+        let (x, y) = (
+            (ends[0] + ends[2]) as f64 / 2.0,
+            (ends[1] + ends[3]) as f64 / 2.0,
+        );
+        assert_eq!(
+            screen.segment_at(x, y, 1e-6, TissueView::Faint),
+            Some(entry)
+        );
+        assert_ne!(
+            screen.segment_at(x, y, 1e-6, TissueView::Hidden),
+            Some(entry)
+        );
+    }
 }
