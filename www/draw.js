@@ -1,5 +1,6 @@
 // Canvas drawing of a network through the wasm session (session.js): widths to scale, colouring
-// by order, flow or plain, zoom and pan, the scale bar and finding the segment under the
+// by order, flow or plain, tissue (below the conducting threshold) faint, hidden or like the
+// veins (the core draws it: tissue has no width, so it is never a wide stroke), zoom and pan, the scale bar and finding the segment under the
 // pointer. Lines at most RASTER_MAX_PX wide (the great majority of a network's segments) are
 // painted by the core with putImageData; wider ones are stroked by the canvas on top. The
 // scale bar's length and label and the segment search come from the core too. While a run is
@@ -47,6 +48,8 @@ export class NetworkView {
     this.fitBounds = null;
     this.roots = [];
     this.colouring = 'order';
+    // How segments below the conducting threshold are drawn: 'faint', 'hidden' or 'veins'.
+    this.tissue = 'faint';
     this.keys = new Uint16Array(0);
     this.sorted = new Uint32Array(0);
     this.lastDrawMs = 0;
@@ -175,7 +178,7 @@ export class NetworkView {
     if (!this.painting) {
       this.resize();
       session.startThinLines(this.canvas.width, this.canvas.height, this.scale, this.offsetX,
-        this.offsetY, this.colouring, MIN_LINE_PX, RASTER_MAX_PX, BACKGROUND);
+        this.offsetY, this.colouring, this.tissue, MIN_LINE_PX, RASTER_MAX_PX, BACKGROUND);
       this.painting = { linesDone: false, left: session.count };
     }
     // At least one slice a call, so that every call makes progress.
@@ -228,7 +231,7 @@ export class NetworkView {
     const s = this.scale;
     const ox = this.offsetX;
     const oy = this.offsetY;
-    this.session.paintThinLines(ctx, w, h, s, ox, oy, this.colouring, MIN_LINE_PX, RASTER_MAX_PX, BACKGROUND);
+    this.session.paintThinLines(ctx, w, h, s, ox, oy, this.colouring, this.tissue, MIN_LINE_PX, RASTER_MAX_PX, BACKGROUND);
     this.strokeWideLines(ctx);
   }
 
@@ -339,6 +342,6 @@ export class NetworkView {
     const ratio = this.ratio();
     const x = (cx * ratio - this.offsetX) / this.scale;
     const y = (cy * ratio - this.offsetY) / this.scale;
-    return this.session.segmentAt(x, y, (reach * ratio) / this.scale);
+    return this.session.segmentAt(x, y, (reach * ratio) / this.scale, this.tissue);
   }
 }

@@ -23,8 +23,9 @@ export function download(name, content, type) {
 
 /// Draws the whole lattice at a fixed size on a white page, with the caution for sites, and
 /// resolves to a PNG Blob.
-/// `roots`: the [x, y] of each root, ringed as on the canvas.
-export function renderPng(session, frame, colours, colouring, caution, roots = []) {
+/// `roots`: the [x, y] of each root, ringed as on the canvas; `tissue`: how segments below the
+/// conducting threshold are drawn ('faint', 'hidden' or 'veins'), as on the canvas.
+export function renderPng(session, frame, colours, colouring, caution, roots = [], tissue = 'faint') {
   const aspect = frame.height / Math.max(frame.width, 1e-12);
   const width = aspect > 1 ? Math.round(PNG_LONG_SIDE / aspect) : PNG_LONG_SIDE;
   const drawingHeight = aspect > 1 ? PNG_LONG_SIDE : Math.round(PNG_LONG_SIDE * aspect);
@@ -38,6 +39,7 @@ export function renderPng(session, frame, colours, colouring, caution, roots = [
   const view = new NetworkView(drawing, session, colours);
   view.pixelRatio = 2.5;
   view.colouring = colouring;
+  view.tissue = tissue;
   view.setFrame(frame);
   view.roots = roots;
   view.fit();

@@ -11,6 +11,8 @@ import { Runner } from './runner.js';
 import { Session } from './session.js';
 
 const ANIMATE_KEY = 'ramulus.animate';
+// How tissue is drawn, kept across visits: a view setting, never part of the run link.
+const TISSUE_KEY = 'ramulus.tissue';
 const DEFAULT_START = 'broad-leaf';
 
 const byId = (id) => document.getElementById(id);
@@ -45,6 +47,7 @@ async function start() {
   const schema = JSON.parse(core.schema_json());
 
   view = new NetworkView(byId('canvas'), state.session, state.colours);
+  view.tissue = readTissuePreference();
   form = new ParameterForm(byId('form'), byId('param-seed'), schema, commitField);
   runner = new Runner({
     redraw, refill, draw, drawPart, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying, failed: onFailure,
@@ -187,6 +190,7 @@ function startRun(simulation = null) {
   view.fit();
   showMarks(false);
   showCaution(state.frame.site);
+  showTissueControl();
   byId('digest').textContent = 'growing…';
   byId('digest-note').textContent = '';
   clearReadings('Readings appear when growth pauses or ends.');
@@ -360,6 +364,29 @@ function setExports(enabled) {
   for (const id of ['save-svg', 'save-png', 'save-record', 'save-csv']) byId(id).disabled = !enabled;
 }
 
+/// The tissue control, in the words of the run's kind (the core's), shown only when the run
+/// has a conducting threshold (`vein_area` above 0), so that some segments may be tissue.
+function showTissueControl() {
+  const control = JSON.parse(core.tissue_control_json(Boolean(state.frame.site)));
+  byId('tissue-label').textContent = control.label;
+  const select = byId('tissue');
+  const options = select.options;
+  control.choices.forEach((choice, index) => {
+    if (options[index]) {
+      options[index].value = choice.value;
+      options[index].textContent = choice.text;
+    } else {
+      const option = document.createElement('option');
+      option.value = choice.value;
+      option.textContent = choice.text;
+      select.append(option);
+    }
+  });
+  select.value = view.tissue;
+  const threshold = Number(JSON.parse(state.simulation.params_json()).vein_area ?? 0);
+  byId('tissue-pair').hidden = !(threshold > 0);
+}
+
 function showCaution(site) {
   const caution = byId('caution');
   caution.hidden = !site;
@@ -368,7 +395,7 @@ function showCaution(site) {
 
 /// The core's colour key of what the canvas shows: strokes, markers and labels.
 function showLegend() {
-  const items = state.simulation ? state.session.legend(view.colouring) : [];
+  const items = state.simulation ? state.session.legend(view.colouring, view.tissue) : [];
   const text = JSON.stringify(items);
   if (text === state.shownLegend) return;
   state.shownLegend = text;
@@ -430,6 +457,17 @@ function wireControls() {
   byId('colouring').addEventListener('change', (event) => {
     // Same network, other colours: no need to refill the geometry.
     view.colouring = event.target.value;
+    view.draw();
+    showLegend();
+  });
+  byId('tissue').addEventListener('change', (event) => {
+    // Same network, drawn otherwise: no refill, no new link.
+    view.tissue = event.target.value;
+    try {
+      localStorage.setItem(TISSUE_KEY, view.tissue);
+    } catch {
+      // Without storage the choice lasts until the page closes.
+    }
     view.draw();
     showLegend();
   });
@@ -573,13 +611,13 @@ function wireKeep() {
   byId('save-svg').addEventListener('click', () => {
     guarded(() => {
       const file = name('svg');
-      saved(file, trueSize(), download(file, state.simulation.svg(view.colouring), 'image/svg+xml'));
+      saved(file, trueSize(), download(file, state.simulation.svg(view.colouring, view.tissue), 'image/svg+xml'));
     });
   });
   byId('save-png').addEventListener('click', () => {
     const caution = state.frame.site ? core.site_caution() : '';
     const file = name('png');
-    renderPng(state.session, state.frame, state.colours, view.colouring, caution, view.roots)
+    renderPng(state.session, state.frame, state.colours, view.colouring, caution, view.roots, view.tissue)
       .then((blob) => saved(file, 'picture', download(file, blob)))
       .catch((error) => notice(`PNG export failed: ${messageOf(error)}`));
   });
@@ -677,6 +715,16 @@ function readAnimatePreference() {
     return localStorage.getItem(ANIMATE_KEY) !== 'no';
   } catch {
     return true;
+  }
+}
+
+/// The tissue view kept from an earlier visit, or 'faint'; the core's words check it.
+function readTissuePreference() {
+  try {
+    const kept = localStorage.getItem(TISSUE_KEY);
+    return ['faint', 'hidden', 'veins'].includes(kept) ? kept : 'faint';
+  } catch {
+    return 'faint';
   }
 }
 

@@ -12,9 +12,11 @@ export function showReadings(session) {
   const plots = session.plots();
   const body = document.querySelector('#metrics tbody');
   body.replaceChildren();
-  for (const [label, value, unit, about = ''] of rows) {
+  for (const [label, value, unit, about = '', saysLittle = false] of rows) {
     if (label.startsWith(PLOTTED_ROW)) continue;
     const row = document.createElement('tr');
+    // The core marks readings that follow the cell size here; its note says why.
+    if (saysLittle) row.className = 'says-little';
     // The measure's name, and under it the core's short explanation of what it says.
     const name = document.createElement('td');
     const title = document.createElement('span');

@@ -80,14 +80,14 @@ export class Session {
   }
 
   /// Paints the thin lines into `context`'s whole canvas (see Simulation.paint_thin_lines).
-  paintThinLines(context, width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background) {
-    this.simulation.paint_thin_lines(context, width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background);
+  paintThinLines(context, width, height, scale, offsetX, offsetY, colouring, tissue, minPx, maxPx, background) {
+    this.simulation.paint_thin_lines(context, width, height, scale, offsetX, offsetY, colouring, tissue, minPx, maxPx, background);
   }
 
   /// Starts painting the thin lines a slice at a time (arguments as paintThinLines, without
   /// the context): see Simulation.start_thin_lines.
-  startThinLines(width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background) {
-    this.simulation.start_thin_lines(width, height, scale, offsetX, offsetY, colouring, minPx, maxPx, background);
+  startThinLines(width, height, scale, offsetX, offsetY, colouring, tissue, minPx, maxPx, background) {
+    this.simulation.start_thin_lines(width, height, scale, offsetX, offsetY, colouring, tissue, minPx, maxPx, background);
   }
 
   /// Draws up to `count` more thin lines; returns how many are left, or -1 when no painting
@@ -102,8 +102,9 @@ export class Session {
   }
 
   /// The colour key of the canvas: `[{pieces: [{line: '#rrggbb'} | 'circle' | {text}]}]`.
-  legend(colouring) {
-    return this.simulation ? JSON.parse(this.simulation.legend_json(colouring)) : [];
+  /// `tissue`: how segments below the conducting threshold are drawn (faint, hidden, veins).
+  legend(colouring, tissue) {
+    return this.simulation ? JSON.parse(this.simulation.legend_json(colouring, tissue)) : [];
   }
 
   /// `{length, pixels, label}` of a round scale bar about `targetPixels` long.
@@ -111,9 +112,10 @@ export class Session {
     return JSON.parse(this.simulation.scale_bar_json(pixelsPerUnit, targetPixels));
   }
 
-  /// The entry nearest to (x, y) in physical units within `reach`, or -1.
-  segmentAt(x, y, reach) {
-    return this.simulation && this.count > 0 ? this.simulation.segment_at(x, y, reach) : -1;
+  /// The entry nearest to (x, y) in physical units within `reach`, or -1 (hidden tissue is
+  /// never found).
+  segmentAt(x, y, reach, tissue) {
+    return this.simulation && this.count > 0 ? this.simulation.segment_at(x, y, reach, tissue) : -1;
   }
 
   /// The readings of entry `index`, one per line.

@@ -140,6 +140,9 @@ pub fn run(options: BenchOptions) -> Result<(), CliError> {
     if options.fit {
         return crate::fit_bench::run(options.quick);
     }
+    if options.identifiability {
+        return crate::identifiability_bench::run(options.quick, options.json);
+    }
     let (quick, as_json) = (options.quick, options.json);
     let (side, small, large) = if quick {
         (300, 25_000, 100_000)

@@ -14,6 +14,7 @@ mod commands;
 mod drain;
 mod fit_bench;
 mod fit_command;
+mod identifiability_bench;
 mod image_bench;
 mod interrupt;
 mod options;

@@ -287,6 +287,13 @@ pub struct BenchOptions {
     /// pixels (1000 x 1000 with --quick), step by step
     #[arg(long, verbatim_doc_comment, conflicts_with = "fit")]
     pub image: bool,
+    /// Measure identifiability instead: for every leaf preset (with a
+    /// conducting threshold of 20 cells) and every parameter a fit may
+    /// vary, each metric's change per step over its seed-to-seed spread
+    /// (3 levels x 5 seeds; 2 seeds and 6,000 cells with --quick), the
+    /// independent metric directions and the confounded pairs
+    #[arg(long, verbatim_doc_comment, conflicts_with_all = ["fit", "image"])]
+    pub identifiability: bool,
 }
 
 /// Accepts a `--set` value of the form KEY=VALUE (an empty VALUE is allowed).

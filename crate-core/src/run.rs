@@ -30,7 +30,7 @@
 
 use crate::digest::digest_hex;
 use crate::junctions::{relax_junctions, Relaxation};
-use crate::metrics::{measure_weighted, measure_with, Metrics};
+use crate::metrics::{measure_weighted, measure_with, Measured, Metrics};
 use crate::network::{Network, Segment, Topology, TopologyError, NO_PARENT};
 use crate::params::Params;
 use crate::reconnection::{close_loops, LoopRule, Reconnection};
@@ -331,6 +331,17 @@ pub fn widths_pass(
 }
 
 impl RunView {
+    /// How the readings of this view read when its network was grown on the lattice: every
+    /// segment conducting (no tissue, as with `vein_area` 0) means the network runs through
+    /// every cell, and the readings marked `follows_lattice` measure the cell size.
+    pub fn grown_measured(&self) -> Measured {
+        if self.conducting.tissue_count() == 0 {
+            Measured::EveryCellConducts
+        } else {
+            Measured::AsGiven
+        }
+    }
+
     /// Runs every pass on a network with the parameters that set widths, `alpha` and junction
     /// relaxation; fails
     /// only when the network is not valid (`Network::check`).

@@ -6,6 +6,7 @@ use serde::Serialize;
 
 use crate::format::significant_digits;
 use crate::palette::{flow_colour, order_colour, Colouring, ORDER_COLOURS, PLAIN};
+use crate::tissue::{tissue_hidden_text, tissue_key_text, TissueView, TISSUE_FAINT};
 
 /// A legend entry: pieces laid side by side and never split across lines.
 #[derive(Clone, Debug, PartialEq, Serialize)]
@@ -40,6 +41,9 @@ impl LegendItem {
 pub struct LegendFacts<'a> {
     /// The colouring shown.
     pub colouring: Colouring,
+    /// How tissue (segments below the conducting threshold) is drawn; `None` when every
+    /// segment conducts.
+    pub tissue: Option<TissueView>,
     /// Highest Strahler order of a drawn segment (0 without segments).
     pub max_order: u32,
     /// Smallest and largest positive flow of a drawn segment, in units².
@@ -100,6 +104,17 @@ pub fn legend_items(facts: &LegendFacts) -> Vec<LegendItem> {
         }
         Colouring::ByOrder | Colouring::Plain => {}
     }
+    let site = ramulus_core::params::is_site_unit(facts.units);
+    match facts.tissue {
+        Some(TissueView::Faint) => items.push(LegendItem {
+            pieces: vec![
+                Piece::Line(TISSUE_FAINT.to_string()),
+                Piece::Text(tissue_key_text(site).to_string()),
+            ],
+        }),
+        Some(TissueView::Hidden) => items.push(LegendItem::text(tissue_hidden_text(site))),
+        Some(TissueView::AsVeins) | None => {}
+    }
     if facts.roots_drawn {
         items.push(LegendItem {
             pieces: vec![
@@ -128,6 +143,7 @@ mod tests {
     fn facts(colouring: Colouring, max_order: u32) -> LegendFacts<'static> {
         LegendFacts {
             colouring,
+            tissue: None,
             max_order,
             flow_range: Some((0.0225, 12.5)),
             segment_count: 5,
@@ -175,6 +191,25 @@ mod tests {
         assert_eq!(
             legend_items(&with_roots)[1].pieces[1],
             Piece::Text("outlet (root)".to_string())
+        );
+    }
+
+    /// Faint tissue gets a key entry in its colour, hidden tissue a sentence, and a site's
+    /// key says hillslope, never vein.
+    #[test]
+    fn tissue_gets_an_entry_in_the_kinds_words() {
+        let mut shown = facts(Colouring::Plain, 1);
+        shown.tissue = Some(TissueView::Faint);
+        let items = legend_items(&shown);
+        assert_eq!(items[1].pieces[0], Piece::Line(TISSUE_FAINT.to_string()));
+        shown.tissue = Some(TissueView::AsVeins);
+        assert_eq!(legend_items(&shown).len(), 1);
+        shown.tissue = Some(TissueView::Hidden);
+        shown.units = "m";
+        let text = format!("{:?}", legend_items(&shown));
+        assert!(
+            text.contains("hillslope") && !text.contains("vein"),
+            "{text}"
         );
     }
 }

@@ -26,5 +26,7 @@ pub mod site_plan;
 pub mod site_texts;
 pub mod svg;
 pub mod texts;
+pub mod tissue;
 
-pub use svg::{render_svg, run_svg, Colouring, SvgOptions, METADATA_NAMESPACE};
+pub use svg::{render_svg, run_svg, run_svg_with, Colouring, SvgOptions, METADATA_NAMESPACE};
+pub use tissue::TissueView;

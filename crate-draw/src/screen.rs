@@ -11,6 +11,7 @@ use ramulus_core::segments::SegmentTable;
 use crate::legend::LegendFacts;
 use crate::palette::{palette_rgb, Colouring, FLOW_RAMP_STEPS};
 use crate::raster::{draw_lines, fill, spatial_order, Line, RasterView};
+use crate::tissue::{TissueView, FAINT_STRENGTH, TISSUE_FAINT_RGB};
 
 /// Flat buffers, one entry per drawable segment: entry `k` runs from the upstream to the
 /// downstream end of `Network::segments[k]` (all segments of a valid network are drawable).
@@ -26,6 +27,10 @@ pub struct ScreenGeometry {
     pub flows: Vec<f32>,
     /// Length, units.
     pub lengths: Vec<f32>,
+    /// Whether the segment conducts (drains at least `vein_area`); tissue otherwise.
+    pub conducts: Vec<bool>,
+    /// Number of entries that do not conduct (tissue).
+    pub tissue_count: usize,
     /// Smallest and largest positive flow (0, 0 when none).
     pub flow_range: (f64, f64),
     /// Highest order present.
@@ -54,6 +59,7 @@ pub struct ScreenGeometry {
 struct RasterJob {
     view: RasterView,
     colouring: Colouring,
+    tissue: TissueView,
     min_px: f64,
     max_px: f64,
     /// The next entry of `draw_lines` to draw.
@@ -69,6 +75,8 @@ pub struct DrawLine {
     pub width: f32,
     /// The entry's index (for its colour).
     pub index: u32,
+    /// Whether the entry conducts (tissue otherwise).
+    pub conducts: bool,
 }
 
 /// Cells per side of the grid that orders segments for drawing.
@@ -87,6 +95,7 @@ impl ScreenGeometry {
         self.orders.reserve(count);
         self.flows.reserve(count);
         self.lengths.reserve(count);
+        self.conducts.reserve(count);
         let mut low = f64::INFINITY;
         let mut high = 0.0f64;
         for (index, segment) in network.segments.iter().enumerate() {
@@ -104,6 +113,11 @@ impl ScreenGeometry {
             let flow = at(&table.flow, index);
             self.flows.push(flow as f32);
             self.lengths.push(at(&table.length, index) as f32);
+            let conducts = table.conducts.get(index).copied().unwrap_or(true);
+            // Tissue has no width, so the page never strokes it as a wide line.
+            debug_assert!(conducts || at(&table.width, index) == 0.0);
+            self.conducts.push(conducts);
+            self.tissue_count += usize::from(!conducts);
             // Comparisons, not `f64::min` and `f64::max` (library calls on wasm32).
             if flow > 0.0 && flow < low {
                 low = flow;
@@ -118,9 +132,11 @@ impl ScreenGeometry {
         self.rebuild_draw_lines();
     }
 
-    /// Appends an entry with its ends and length; its values come with `set_values`.
+    /// Appends an entry with its ends and length; its values come with `set_values`. It
+    /// conducts: the growing refill (`screen_growth`) serves runs where every segment does.
     pub(crate) fn push_entry(&mut self, ends: [f32; 4], length: f64) {
         self.ends.extend_from_slice(&ends);
+        self.conducts.push(true);
         self.widths.push(0.0);
         self.orders.push(1);
         self.flows.push(0.0);
@@ -162,13 +178,14 @@ impl ScreenGeometry {
             ]
         });
         let order = spatial_order(midpoints, DRAW_ORDER_GRID);
-        let (ends, widths) = (&self.ends, &self.widths);
+        let (ends, widths, conducts) = (&self.ends, &self.widths, &self.conducts);
         self.draw_lines.extend(order.iter().filter_map(|&index| {
             let at = index as usize;
             Some(DrawLine {
                 ends: ends.get(4 * at..4 * at + 4)?.try_into().ok()?,
                 width: *widths.get(at)?,
                 index,
+                conducts: conducts.get(at).copied().unwrap_or(true),
             })
         }));
     }
@@ -208,17 +225,20 @@ impl ScreenGeometry {
     }
 
     /// Draws every segment whose width on screen, `max(width * scale, min_px)`, is at most
-    /// `max_px` into the pixel buffer over a `background` fill, at opacity `min(1, px)`:
-    /// `begin_raster` then `continue_raster` over every entry.
+    /// `max_px` into the pixel buffer over a `background` fill, at opacity `min(1, px)`;
+    /// tissue (segments that do not conduct) as `tissue` says: in `TISSUE_FAINT_RGB` at
+    /// `FAINT_STRENGTH`, not at all, or like the veins. `begin_raster` then `continue_raster`
+    /// over every entry.
     pub fn raster(
         &mut self,
         view: RasterView,
         colouring: Colouring,
+        tissue: TissueView,
         min_px: f64,
         max_px: f64,
         background: [u8; 3],
     ) -> &[u8] {
-        self.begin_raster(view, colouring, min_px, max_px, background);
+        self.begin_raster(view, colouring, tissue, min_px, max_px, background);
         self.continue_raster(usize::MAX);
         &self.pixels
     }
@@ -232,6 +252,7 @@ impl ScreenGeometry {
         &mut self,
         view: RasterView,
         colouring: Colouring,
+        tissue: TissueView,
         min_px: f64,
         max_px: f64,
         background: [u8; 3],
@@ -244,6 +265,7 @@ impl ScreenGeometry {
         self.raster_job = Some(RasterJob {
             view,
             colouring,
+            tissue,
             min_px,
             max_px,
             next: 0,
@@ -260,6 +282,7 @@ impl ScreenGeometry {
         let RasterJob {
             view,
             colouring,
+            tissue,
             min_px,
             max_px,
             next,
@@ -282,6 +305,19 @@ impl ScreenGeometry {
             let px = if scaled > min_px { scaled } else { min_px };
             if px > max_px {
                 return None;
+            }
+            if !entry.conducts {
+                match tissue {
+                    TissueView::Hidden => return None,
+                    TissueView::Faint => {
+                        return Some(Line {
+                            ends: entry.ends,
+                            rgb: TISSUE_FAINT_RGB,
+                            strength: FAINT_STRENGTH,
+                        })
+                    }
+                    TissueView::AsVeins => {}
+                }
             }
             let rgb = colours
                 .get(entry.index as usize)
@@ -309,10 +345,16 @@ impl ScreenGeometry {
     }
 
     /// What the canvas shows, for its colour key (the page marks every root, see `marks`).
-    pub fn legend_facts<'a>(&self, colouring: Colouring, units: &'a str) -> LegendFacts<'a> {
+    pub fn legend_facts<'a>(
+        &self,
+        colouring: Colouring,
+        tissue: TissueView,
+        units: &'a str,
+    ) -> LegendFacts<'a> {
         let (low, high) = self.flow_range;
         LegendFacts {
             colouring,
+            tissue: (self.tissue_count > 0).then_some(tissue),
             max_order: self.max_order,
             flow_range: (high > 0.0).then_some((low, high)),
             segment_count: self.segment_count,
@@ -322,11 +364,15 @@ impl ScreenGeometry {
     }
 
     /// The entry whose segment passes nearest to (`x`, `y`) (physical units) within `reach`,
-    /// or `None`; zero-length segments are never found.
-    pub fn segment_at(&self, x: f64, y: f64, reach: f64) -> Option<usize> {
+    /// or `None`; zero-length segments are never found, nor tissue under `TissueView::Hidden`
+    /// (what is not drawn cannot be pointed at).
+    pub fn segment_at(&self, x: f64, y: f64, reach: f64, tissue: TissueView) -> Option<usize> {
         let mut best = None;
         let mut best_distance = reach * reach;
         for (index, ends) in self.ends.chunks_exact(4).enumerate() {
+            if tissue == TissueView::Hidden && !self.conducts.get(index).copied().unwrap_or(true) {
+                continue;
+            }
             let [x0, y0, x1, y1] = [ends[0], ends[1], ends[2], ends[3]].map(f64::from);
             let (dx, dy) = (x1 - x0, y1 - y0);
             let squared = dx * dx + dy * dy;
@@ -360,6 +406,8 @@ impl ScreenGeometry {
         self.orders.clear();
         self.flows.clear();
         self.lengths.clear();
+        self.conducts.clear();
+        self.tissue_count = 0;
         self.flow_range = (0.0, 0.0);
         self.max_order = 0;
         self.segment_count = 0;
@@ -424,10 +472,16 @@ mod tests {
         );
         assert_eq!(screen.colour_indices(Colouring::ByOrder), [0, 0]);
         // (1.5, 0.2) is 0.2 from entry 1 (node 2 to node 1, x 1..2) and 0.5 from entry 0's end.
-        assert_eq!(screen.segment_at(1.5, 0.2, 0.3), Some(1));
-        assert_eq!(screen.segment_at(0.5, 0.2, 0.3), Some(0));
-        assert_eq!(screen.segment_at(1.5, 0.4, 0.3), None);
-        let facts = screen.legend_facts(Colouring::ByFlow, "mm");
+        assert_eq!(
+            screen.segment_at(1.5, 0.2, 0.3, TissueView::Hidden),
+            Some(1)
+        );
+        assert_eq!(
+            screen.segment_at(0.5, 0.2, 0.3, TissueView::Hidden),
+            Some(0)
+        );
+        assert_eq!(screen.segment_at(1.5, 0.4, 0.3, TissueView::Hidden), None);
+        let facts = screen.legend_facts(Colouring::ByFlow, TissueView::Faint, "mm");
         assert_eq!(facts.flow_range, Some((1.0, 2.0)));
         assert!(facts.roots_drawn);
     }
@@ -471,7 +525,7 @@ mod tests {
         let background = [255, 253, 248];
         for colouring in [Colouring::ByOrder, Colouring::ByFlow, Colouring::Plain] {
             let whole = screen
-                .raster(view, colouring, 0.75, 1.6, background)
+                .raster(view, colouring, TissueView::Faint, 0.75, 1.6, background)
                 .to_vec();
             let inked = whole
                 .chunks(4)
@@ -479,7 +533,7 @@ mod tests {
                 .count();
             assert!(inked > 4000, "{colouring:?}: {inked} pixels inked");
             for slice in [1usize, 7, 1000, 2498, 2499, 100_000] {
-                screen.begin_raster(view, colouring, 0.75, 1.6, background);
+                screen.begin_raster(view, colouring, TissueView::Faint, 0.75, 1.6, background);
                 let mut left = screen.draw_lines.len();
                 let mut rounds = 0;
                 while screen.raster_in_progress() {
@@ -496,10 +550,105 @@ mod tests {
             }
         }
         // A refill drops the raster in progress; continuing then draws nothing.
-        screen.begin_raster(view, Colouring::ByOrder, 0.75, 1.6, background);
+        screen.begin_raster(
+            view,
+            Colouring::ByOrder,
+            TissueView::Faint,
+            0.75,
+            1.6,
+            background,
+        );
         screen.continue_raster(10);
         screen.fill(&network, &table);
         assert!(!screen.raster_in_progress());
         assert_eq!(screen.continue_raster(10), 0);
+    }
+
+    /// Tissue as chosen: hidden leaves the background wherever only tissue was drawn and adds
+    /// no ink; faint draws it lighter (WCAG 2.0 relative luminance) than the veins.
+    #[test]
+    fn tissue_is_drawn_faint_hidden_or_like_veins() {
+        use ramulus_core::growth::Growth;
+        use ramulus_core::link::decode_link;
+        use ramulus_core::run::width_rule;
+
+        let mut params = decode_link(
+            "v=1&width=60&height=50&roots=30,48,0,1&cells=2500&joining=weighted\
+             &temperature=0.5&w_turn=1&w_flow=0.5&alpha=0.5&w_path=0.05&seed=5",
+        )
+        .params;
+        params.widths.vein_area = 10.0 * params.domain.cell_size * params.domain.cell_size;
+        let mut growth = Growth::new(&params).unwrap();
+        growth.run();
+        let network = growth.network();
+        let mut forest = topology_pass(&network).unwrap();
+        let conducting = ramulus_core::run::conducting_pass(&network, &mut forest, &params);
+        let table = widths_pass(&network, forest.as_ref(), &conducting, width_rule(&params));
+        let mut screen = ScreenGeometry::default();
+        screen.fill(&network, &table);
+        assert!(screen.tissue_count > 100 && screen.tissue_count < screen.len());
+        let view = RasterView {
+            width: 130,
+            height: 110,
+            scale: 2.0 / params.domain.cell_size,
+            offset_x: 3.0,
+            offset_y: 4.0,
+        };
+        let background = [255, 253, 248];
+        let mut draw = |tissue| {
+            screen
+                .raster(view, Colouring::ByOrder, tissue, 0.75, 1.6, background)
+                .to_vec()
+        };
+        let (veins, hidden, faint) = (
+            draw(TissueView::AsVeins),
+            draw(TissueView::Hidden),
+            draw(TissueView::Faint),
+        );
+        let luminance = |pixel: &[u8]| {
+            let channel = |value: u8| {
+                let value = value as f64 / 255.0;
+                if value <= 0.04045 {
+                    value / 12.92
+                } else {
+                    ((value + 0.055) / 1.055).powf(2.4)
+                }
+            };
+            0.2126 * channel(pixel[0]) + 0.7152 * channel(pixel[1]) + 0.0722 * channel(pixel[2])
+        };
+        let (mut tissue_only, mut vein, mut faint_tissue, mut faint_vein) = (0, 0, 0.0, 0.0);
+        for ((a, h), f) in veins.chunks(4).zip(hidden.chunks(4)).zip(faint.chunks(4)) {
+            let (inked, inked_hidden) = (a[..3] != background, h[..3] != background);
+            assert!(inked || !inked_hidden, "hiding tissue added ink");
+            if inked && !inked_hidden {
+                tissue_only += 1;
+                faint_tissue += luminance(f);
+            } else if inked_hidden {
+                vein += 1;
+                faint_vein += luminance(f);
+            }
+        }
+        assert!(
+            tissue_only > 500 && vein > 500,
+            "{tissue_only} and {vein} pixels"
+        );
+        assert!(faint_tissue / tissue_only as f64 > faint_vein / vein as f64 + 0.1);
+        // Hidden tissue cannot be pointed at; a tissue entry's midpoint finds it otherwise.
+        let entry = (0..screen.len())
+            .find(|&index| !screen.conducts[index])
+            .unwrap();
+        let ends = &screen.ends[4 * entry..4 * entry + 4];
+        let (x, y) = (
+            (ends[0] + ends[2]) as f64 / 2.0,
+            (ends[1] + ends[3]) as f64 / 2.0,
+        );
+        assert_eq!(
+            screen.segment_at(x, y, 1e-6, TissueView::Faint),
+            Some(entry)
+        );
+        assert_ne!(
+            screen.segment_at(x, y, 1e-6, TissueView::Hidden),
+            Some(entry)
+        );
     }
 }

@@ -239,6 +239,7 @@ mod tests {
     use super::*;
     use crate::palette::Colouring;
     use crate::raster::RasterView;
+    use crate::tissue::TissueView;
     use ramulus_core::growth::Growth;
     use ramulus_core::link::decode_link;
     use ramulus_core::run::{conducting_network, topology_pass, width_rule, widths_pass};
@@ -271,7 +272,14 @@ mod tests {
             offset_y: 2.0,
         };
         geometry
-            .raster(view, colouring, 0.75, 1.6, [255, 253, 248])
+            .raster(
+                view,
+                colouring,
+                TissueView::Faint,
+                0.75,
+                1.6,
+                [255, 253, 248],
+            )
             .to_vec()
     }
 

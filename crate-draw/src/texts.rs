@@ -58,6 +58,18 @@ pub fn segment_reading(order: u32, flow: f64, width: f64, length: f64, units: &s
     )
 }
 
+/// The readings of one segment below the conducting threshold (tissue in a leaf, hillslope
+/// on a site, told by `units`): what it is, its flow and length, one per line.
+pub fn tissue_reading(flow: f64, length: f64, units: &str) -> String {
+    let site = ramulus_core::params::is_site_unit(units);
+    format!(
+        "{}\nflow {} {units}\u{b2}\nlength {} {units}",
+        crate::tissue::tissue_key_text(site),
+        four_digits(flow),
+        four_digits(length),
+    )
+}
+
 /// The readings of a run as (label, value, unit) rows, in the metric table's order, numbers with
 /// up to four significant digits (`format::four_digits`): the page's readings table and the
 /// command line's table.
@@ -75,6 +87,16 @@ pub fn readings_rows_explained(
     units: &str,
 ) -> Vec<(String, String, String, String)> {
     ramulus_core::metrics::metric_rows_explained(metrics, units, crate::format::four_digits)
+}
+
+/// The rows of `readings_rows_explained` with a fifth field: whether the reading says little
+/// about the model for a network measured as `measured` says (its explanation then says why).
+pub fn readings_rows_noted(
+    metrics: &ramulus_core::metrics::Metrics,
+    units: &str,
+    measured: ramulus_core::metrics::Measured,
+) -> Vec<(String, String, String, String, bool)> {
+    ramulus_core::metrics::metric_rows_noted(metrics, units, crate::format::four_digits, measured)
 }
 
 #[cfg(test)]

@@ -853,6 +853,7 @@ impl FitPicture {
             .raster(
                 view,
                 colouring,
+                ramulus_draw::TissueView::Faint,
                 PICTURE_MIN_PX,
                 f64::INFINITY,
                 [255, 255, 255],

@@ -166,6 +166,13 @@ pub fn site_caution() -> String {
     SITE_CAUTION.to_string()
 }
 
+/// The tissue control in the words of the network's kind (`site`: a drainage site), as JSON
+/// `{label, choices: [{value, text}]}` (`ramulus_draw::tissue::tissue_control`).
+#[wasm_bindgen]
+pub fn tissue_control_json(site: bool) -> String {
+    serde_json::to_string(&ramulus_draw::tissue::tissue_control(site)).unwrap_or_default()
+}
+
 // ---- page-ux: export confirmation ----
 /// The sentence confirming an export: file name, what it holds and its size.
 #[wasm_bindgen]

@@ -18,11 +18,14 @@ use ramulus_draw::marks::network_marks;
 use ramulus_draw::palette::Colouring;
 use ramulus_draw::plots::readings_plots;
 use ramulus_draw::raster::RasterView;
-use ramulus_draw::run_svg;
+use ramulus_draw::run_svg_with;
 use ramulus_draw::scale_bar::scale_bar;
 use ramulus_draw::screen::ScreenGeometry;
 use ramulus_draw::screen_growth::GrowingScreen;
-use ramulus_draw::texts::{progress_text, segment_reading, stop_text, SAVED_NETWORK_TEXT};
+use ramulus_draw::texts::{
+    progress_text, segment_reading, stop_text, tissue_reading, SAVED_NETWORK_TEXT,
+};
+use ramulus_draw::tissue::TissueView;
 use wasm_bindgen::prelude::*;
 use wasm_bindgen::Clamped;
 use web_sys::{CanvasRenderingContext2d, ImageData};
@@ -251,11 +254,15 @@ impl Simulation {
         serde_json::to_string(&view.metrics).map_err(|error| JsError::new(&error.to_string()))
     }
 
-    /// Metrics as labelled rows `[[label, value, unit, about], ...]` (four significant digits;
-    /// `about` a short explanation for people, possibly empty).
+    /// Metrics as labelled rows `[[label, value, unit, about, says_little], ...]` (four
+    /// significant digits; `about` a short explanation for people, possibly empty;
+    /// `says_little` true for a reading that follows the cell size because every cell is a
+    /// vein, its `about` then saying so).
     pub fn metrics_rows_json(&mut self) -> Result<String, JsError> {
         let units = self.params.domain.units.clone();
-        let rows = ramulus_draw::texts::readings_rows_explained(&self.view()?.metrics, &units);
+        let view = self.view()?;
+        let rows =
+            ramulus_draw::texts::readings_rows_noted(&view.metrics, &units, view.grown_measured());
         serde_json::to_string(&rows).map_err(|error| JsError::new(&error.to_string()))
     }
 
@@ -266,15 +273,17 @@ impl Simulation {
         Ok(metrics_csv(&self.view()?.metrics, &units, caution))
     }
 
-    /// The network as SVG, coloured by `order`, `flow` or `plain`.
-    pub fn svg(&mut self, colouring: &str) -> Result<String, JsError> {
+    /// The network as SVG, coloured by `order`, `flow` or `plain`, tissue `faint`, `hidden`
+    /// or drawn like the `veins`.
+    pub fn svg(&mut self, colouring: &str, tissue: &str) -> Result<String, JsError> {
         let colour = colouring_named(colouring)?;
+        let tissue = tissue_named(tissue)?;
         self.view()?;
         let view = self
             .view_cache
             .as_ref()
             .ok_or_else(|| JsError::new("derived view missing"))?;
-        Ok(run_svg(view, &self.params, colour))
+        Ok(run_svg_with(view, &self.params, colour, tissue))
     }
 
     /// A finished site's channels sized for the design form (JSON texts as typed): the page's
@@ -347,12 +356,14 @@ impl Simulation {
     }
     // ---- end page-ux ----
 
-    /// The colour key of the canvas under `colouring`, as JSON `[{pieces: [{line: "#rrggbb"} |
-    /// "circle" | {text}]}]` (the SVG's legend, for what the canvas draws).
-    pub fn legend_json(&self, colouring: &str) -> Result<String, JsError> {
-        let facts = self
-            .geometry
-            .legend_facts(colouring_named(colouring)?, &self.params.domain.units);
+    /// The colour key of the canvas under `colouring` and `tissue`, as JSON `[{pieces:
+    /// [{line: "#rrggbb"} | "circle" | {text}]}]` (the SVG's legend, for what the canvas draws).
+    pub fn legend_json(&self, colouring: &str, tissue: &str) -> Result<String, JsError> {
+        let facts = self.geometry.legend_facts(
+            colouring_named(colouring)?,
+            tissue_named(tissue)?,
+            &self.params.domain.units,
+        );
         serde_json::to_string(&legend_items(&facts))
             .map_err(|error| JsError::new(&error.to_string()))
     }
@@ -369,12 +380,20 @@ impl Simulation {
     }
 
     /// The readings of geometry entry `index` (order, flow, width, length with units, one per
-    /// line), or an empty string when there is no such entry.
+    /// line; for tissue, what it is, flow and length), or an empty string when there is no
+    /// such entry.
     pub fn segment_reading(&self, index: u32) -> String {
         let geometry = &self.geometry;
         let index = index as usize;
         if index >= geometry.len() {
             return String::new();
+        }
+        if !geometry.conducts.get(index).copied().unwrap_or(true) {
+            return tissue_reading(
+                f64::from(geometry.flows[index]),
+                f64::from(geometry.lengths[index]),
+                &self.params.domain.units,
+            );
         }
         segment_reading(
             geometry.orders[index],
@@ -386,11 +405,18 @@ impl Simulation {
     }
 
     /// The geometry entry whose segment passes nearest to (`x`, `y`) in physical units within
-    /// `reach`, or -1.
-    pub fn segment_at(&self, x: f64, y: f64, reach: f64) -> i32 {
+    /// `reach`, or -1; hidden tissue (`tissue` = `hidden`) is never found.
+    pub fn segment_at(&self, x: f64, y: f64, reach: f64, tissue: &str) -> i32 {
+        let tissue = TissueView::from_name(tissue).unwrap_or_default();
         self.geometry
-            .segment_at(x, y, reach)
+            .segment_at(x, y, reach, tissue)
             .map_or(-1, |index| index as i32)
+    }
+
+    /// How many geometry entries are tissue (do not conduct): the page offers its tissue
+    /// control only when there are some.
+    pub fn tissue_count(&self) -> u32 {
+        self.geometry.tissue_count as u32
     }
 
     /// The Horton plot and angle histogram as data to draw (`ramulus_draw::plots`), JSON.
@@ -478,7 +504,8 @@ impl Simulation {
         Ok(unsafe { js_sys::Uint8Array::view(colours) })
     }
 
-    /// Paints the thin segments (on-screen width at most `max_px`) over the `background`
+    /// Paints the thin segments (on-screen width at most `max_px`; tissue as `tissue` says:
+    /// `faint`, `hidden` or like the `veins`) over the `background`
     /// colour (0xRRGGBB) into the whole of `context`'s canvas, `width` x `height` pixels, with
     /// `putImageData`; pixel = coordinate * `scale` + offset. Wider segments are left for the
     /// page to stroke on top. The same as `start_thin_lines`, `draw_thin_lines` over every
@@ -493,12 +520,13 @@ impl Simulation {
         offset_x: f64,
         offset_y: f64,
         colouring: &str,
+        tissue: &str,
         min_px: f64,
         max_px: f64,
         background: u32,
     ) -> Result<(), JsError> {
         self.start_thin_lines(
-            width, height, scale, offset_x, offset_y, colouring, min_px, max_px, background,
+            width, height, scale, offset_x, offset_y, colouring, tissue, min_px, max_px, background,
         )?;
         self.geometry.continue_raster(usize::MAX);
         self.put_thin_lines(context)
@@ -516,11 +544,13 @@ impl Simulation {
         offset_x: f64,
         offset_y: f64,
         colouring: &str,
+        tissue: &str,
         min_px: f64,
         max_px: f64,
         background: u32,
     ) -> Result<(), JsError> {
         let colouring = colouring_named(colouring)?;
+        let tissue = tissue_named(tissue)?;
         let view = RasterView {
             width,
             height,
@@ -534,7 +564,7 @@ impl Simulation {
             background as u8,
         ];
         self.geometry
-            .begin_raster(view, colouring, min_px, max_px, rgb);
+            .begin_raster(view, colouring, tissue, min_px, max_px, rgb);
         Ok(())
     }
 
@@ -604,4 +634,10 @@ impl Simulation {
 fn colouring_named(name: &str) -> Result<Colouring, JsError> {
     Colouring::from_name(name)
         .ok_or_else(|| JsError::new(&format!("colouring {name:?}: use order, flow or plain")))
+}
+
+/// The tissue view named `faint`, `hidden` or `veins`, or an error naming the word at fault.
+fn tissue_named(name: &str) -> Result<TissueView, JsError> {
+    TissueView::from_name(name)
+        .ok_or_else(|| JsError::new(&format!("tissue {name:?}: use faint, hidden or veins")))
 }

@@ -81,6 +81,7 @@ fn options(colour: Colouring) -> SvgOptions {
         digest: "0123456789abcdef".to_string(),
         caution: None,
         margin: 0.2,
+        tissue: ramulus_draw::TissueView::Faint,
     }
 }
 

@@ -13,6 +13,7 @@
 //! ABC-SMC (Toni et al. 2009, J. R. Soc. Interface 6) with the population Monte Carlo weights
 //! and kernel of Beaumont et al. (2009, Biometrika 96) and adaptive tolerances.
 
+pub mod identifiability;
 pub mod plan;
 pub mod prior;
 pub mod rejection;

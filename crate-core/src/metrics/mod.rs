@@ -32,8 +32,8 @@ mod tortuosity;
 mod transport;
 
 pub use table::{
-    metric_readme_table, metric_rows, metric_rows_explained, metrics_csv, AppliesTo, MetricEntry,
-    MetricUnit, Reading, METRIC_TABLE,
+    metric_readme_table, metric_rows, metric_rows_explained, metric_rows_noted, metrics_csv,
+    AppliesTo, Measured, MetricEntry, MetricUnit, Reading, METRIC_TABLE,
 };
 
 /// Number of bins of the branching-angle histogram.

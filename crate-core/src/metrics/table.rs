@@ -141,6 +141,10 @@ pub struct MetricEntry {
     pub about: &'static str,
     /// Network kinds it applies to.
     pub applies_to: AppliesTo,
+    /// Whether the reading follows the cell size rather than the model when every cell of a
+    /// grown network is a vein (`Measured::EveryCellConducts`): lengths and counts per area
+    /// of a network through every cell are fixed by the cell spacing.
+    pub follows_lattice: bool,
     /// Reads the value from `Metrics`.
     pub read: for<'a> fn(&'a Metrics) -> Reading<'a>,
 }
@@ -156,6 +160,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Area the network fills: occupied cells × cell area.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Number(Some(m.area)),
     },
     MetricEntry {
@@ -166,6 +171,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Points where segments meet, bend or end.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Count(m.node_count),
     },
     MetricEntry {
@@ -176,6 +182,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "outlets",
         about: "Where flow leaves the network: a leaf's petiole base, a site's outlet.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Count(m.root_count),
     },
     MetricEntry {
@@ -186,6 +193,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Straight pieces between two nodes.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Count(m.segment_count),
     },
     MetricEntry {
@@ -196,6 +204,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Separate pieces of network: one per root when each root grows its own tree.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Count(m.component_count),
     },
     MetricEntry {
@@ -206,6 +215,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Closed circuits; 0 for a tree-like network, which growth always gives.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Count(m.loop_count),
     },
     MetricEntry {
@@ -216,6 +226,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "enclosed areas",
         about: "Smallest regions closed off on all sides by the network, counted on the plane drawing; 0 for a tree-like network, n/a when segments cross without a junction.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::OptionalCount(m.areoles),
     },
     MetricEntry {
@@ -226,6 +237,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "enclosed areas per area",
         about: "Areoles per unit of leaf area; meaningful only when the network has loops.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Number(m.areole_density),
     },
     MetricEntry {
@@ -236,6 +248,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "mean enclosed area",
         about: "Average area inside one areole; n/a without areoles.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Number(m.mean_areole_area),
     },
     MetricEntry {
@@ -246,6 +259,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "spread of enclosed areas",
         about: "How much areole areas vary (sample standard deviation); needs at least two areoles.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Number(m.areole_area_sd),
     },
     MetricEntry {
@@ -256,6 +270,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "free channel ends per enclosed area",
         about: "Free ends of the network lying inside enclosed areas, per enclosed area; n/a without any.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Number(m.veinlets_per_areole),
     },
     MetricEntry {
@@ -266,6 +281,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "span of enclosed areas",
         about: "Orders of magnitude between the largest and the smallest areole: 0 for equal areoles, 1 or more when loops of several scales enclose one another; n/a without areoles.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Number(m.areole_area_decades),
     },
     MetricEntry {
@@ -276,6 +292,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "nesting of enclosed areas",
         about: "How evenly loops divide into smaller loops when the thinnest veins are taken away first: 1 when each loop splits into equal halves, 0 for a ladder of loops; n/a for a tree or a network without widths.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Number(m.nesting_number),
     },
     MetricEntry {
@@ -286,6 +303,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Independent closed circuits per unit area; 0 for a tree-like network.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Number(m.loopiness),
     },
     MetricEntry {
@@ -296,6 +314,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "total channel length",
         about: "Sum of all segment lengths.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Number(Some(m.total_length)),
     },
     MetricEntry {
@@ -306,6 +325,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "drainage density",
         about: "Length per area: total length ÷ area.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: true,
         read: |m| Reading::Number(m.vein_density),
     },
     MetricEntry {
@@ -316,6 +336,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Nodes where three or more segments meet.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Count(m.junction_count),
     },
     MetricEntry {
@@ -326,6 +347,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Junctions per area.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: true,
         read: |m| Reading::Number(m.junction_density),
     },
     MetricEntry {
@@ -336,6 +358,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "channel heads",
         about: "Branches that end without feeding another: where flow starts.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Count(m.tip_count),
     },
     MetricEntry {
@@ -346,6 +369,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "channel head density",
         about: "Free ends per area.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: true,
         read: |m| Reading::Number(m.tip_density),
     },
     MetricEntry {
@@ -356,6 +380,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "How many angles the mean and spread below come from; under about 10 they say little.",
         applies_to: AppliesTo::ForestOnly,
+        follows_lattice: false,
         read: |m| Reading::Count(m.branching_angle_count),
     },
     MetricEntry {
@@ -366,6 +391,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Angle between a side branch and the main branch where they meet, averaged; n/a without junctions.",
         applies_to: AppliesTo::ForestOnly,
+        follows_lattice: false,
         read: |m| Reading::Number(m.branching_angle_mean),
     },
     MetricEntry {
@@ -376,6 +402,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Spread of those angles; needs at least two.",
         applies_to: AppliesTo::ForestOnly,
+        follows_lattice: false,
         read: |m| Reading::Number(m.branching_angle_sd),
     },
     MetricEntry {
@@ -386,6 +413,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "How many branching angles fall in each 10° bin (plotted below).",
         applies_to: AppliesTo::ForestOnly,
+        follows_lattice: false,
         read: |m| Reading::Histogram(&m.branching_angle_histogram),
     },
     MetricEntry {
@@ -396,6 +424,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Order of the main trunk: free ends are order 1; two streams of one order meeting start the next.",
         applies_to: AppliesTo::ForestOnly,
+        follows_lattice: false,
         read: |m| Reading::OptionalCount(m.max_strahler_order.map(u64::from)),
     },
     MetricEntry {
@@ -406,6 +435,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Per order: how many streams (chains of one order) and their mean length. The top order is cut off at the root, where several of its streams may meet, so its mean length can be shorter than the next order's.",
         applies_to: AppliesTo::ForestOnly,
+        follows_lattice: false,
         read: |m| Reading::Streams(&m.streams),
     },
     MetricEntry {
@@ -416,6 +446,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "How many times more streams each lower order has (Horton); needs three orders or more to mean much.",
         applies_to: AppliesTo::ForestOnly,
+        follows_lattice: false,
         read: |m| Reading::Number(m.bifurcation_ratio),
     },
     MetricEntry {
@@ -426,6 +457,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "How many times longer streams get from one order to the next (Horton); needs three orders or more.",
         applies_to: AppliesTo::ForestOnly,
+        follows_lattice: false,
         read: |m| Reading::Number(m.length_ratio),
     },
     MetricEntry {
@@ -436,6 +468,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "How the longest path upstream grows with the area drained (length ∝ area to this power, Hack's law).",
         applies_to: AppliesTo::ForestOnly,
+        follows_lattice: false,
         read: |m| Reading::Number(m.hack_exponent),
     },
     MetricEntry {
@@ -446,6 +479,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Path along the network to the root ÷ straight distance, averaged over cells: 1 is perfectly straight.",
         applies_to: AppliesTo::ForestOnly,
+        follows_lattice: false,
         read: |m| Reading::Number(m.tortuosity),
     },
     MetricEntry {
@@ -456,6 +490,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "What growth saves on carrying flow: the sum of flow to the power α × length; compare runs with the same α only.",
         applies_to: AppliesTo::ForestOnly,
+        follows_lattice: false,
         read: |m| Reading::Number(m.transport_cost),
     },
     MetricEntry {
@@ -466,6 +501,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Area inside the grown shape's edge.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Number(m.outline_area),
     },
     MetricEntry {
@@ -476,6 +512,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Length of the grown shape's edge, ragged growth front included.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Number(m.outline_perimeter),
     },
     MetricEntry {
@@ -486,6 +523,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "4πA/P² of the grown shape, 1 for a disc. It measures the ragged growth front as much as the outline, so an egg-shaped blade can read 0.2; compare runs with the same cell size.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Number(m.circularity),
     },
     MetricEntry {
@@ -496,6 +534,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         site_label: "",
         about: "Length ÷ breadth of the grown shape, from the spread of its cells; 1 when round.",
         applies_to: AppliesTo::AnyNetwork,
+        follows_lattice: false,
         read: |m| Reading::Number(m.aspect_ratio),
     },
 ];
@@ -584,7 +623,41 @@ pub fn metric_rows_explained(
     units: &str,
     format_number: fn(f64) -> String,
 ) -> Vec<(String, String, String, String)> {
-    explained_rows(metrics, units, format_number)
+    explained_rows(metrics, units, format_number, Measured::AsGiven)
+        .into_iter()
+        .map(|(label, value, unit, about, _)| (label, value, unit, about))
+        .collect()
+}
+
+/// How the measured network came about, as far as the readings need to know.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum Measured {
+    /// Any network whose readings say what they say: a traced specimen, or a grown network
+    /// with a conducting threshold.
+    #[default]
+    AsGiven,
+    /// A grown network in which every segment conducts (`vein_area` 0): it runs through every
+    /// cell, so the readings marked `follows_lattice` measure the cell size, not the model.
+    EveryCellConducts,
+}
+
+/// The note that replaces a reading's explanation when it follows the cell size, in leaf
+/// and in drainage words.
+pub const FOLLOWS_LATTICE_NOTE: &str = "Says little here: every cell is a vein, so this follows the cell size, not the model. Set \"Smallest drained area that conducts\" above 0 to measure veins.";
+
+/// `FOLLOWS_LATTICE_NOTE` in drainage words.
+pub const FOLLOWS_LATTICE_NOTE_SITE: &str = "Says little here: every cell is a channel, so this follows the cell size, not the layout. Set \"Smallest drained area that conducts\" above 0 to measure channels.";
+
+/// Rows of `metric_rows_explained` with a fifth field: whether the reading says little about
+/// the model for a network measured as `measured` says (then its explanation is
+/// `FOLLOWS_LATTICE_NOTE` or its drainage form).
+pub fn metric_rows_noted(
+    metrics: &Metrics,
+    units: &str,
+    format_number: fn(f64) -> String,
+    measured: Measured,
+) -> Vec<(String, String, String, String, bool)> {
+    explained_rows(metrics, units, format_number, measured)
 }
 
 fn rows(
@@ -592,9 +665,9 @@ fn rows(
     units: &str,
     format_number: fn(f64) -> String,
 ) -> Vec<(String, String, String)> {
-    explained_rows(metrics, units, format_number)
+    explained_rows(metrics, units, format_number, Measured::AsGiven)
         .into_iter()
-        .map(|(label, value, unit, _)| (label, value, unit))
+        .map(|(label, value, unit, _, _)| (label, value, unit))
         .collect()
 }
 
@@ -605,11 +678,12 @@ fn explained_rows(
     metrics: &Metrics,
     units: &str,
     format_number: fn(f64) -> String,
-) -> Vec<(String, String, String, String)> {
+    measured: Measured,
+) -> Vec<(String, String, String, String, bool)> {
     let unit = if units.is_empty() { "unit" } else { units };
     let site = crate::params::is_site_unit(units);
     let alpha = metrics.transport_alpha;
-    let mut rows: Vec<(String, String, String, String)> = Vec::new();
+    let mut rows: Vec<(String, String, String, String, bool)> = Vec::new();
     for entry in METRIC_TABLE {
         let unit_text = entry.unit.text(unit, alpha);
         let name = if site && !entry.site_label.is_empty() {
@@ -622,10 +696,15 @@ fn explained_rows(
         } else {
             name.to_string()
         };
-        let about = entry.about.to_string();
+        let says_little = entry.follows_lattice && measured == Measured::EveryCellConducts;
+        let about = match (says_little, site) {
+            (false, _) => entry.about.to_string(),
+            (true, false) => FOLLOWS_LATTICE_NOTE.to_string(),
+            (true, true) => FOLLOWS_LATTICE_NOTE_SITE.to_string(),
+        };
         if !entry.applies_to.includes(metrics.kind) {
             if !matches!((entry.read)(metrics), Reading::Streams(_)) {
-                rows.push((label, UNDEFINED_TEXT.to_string(), unit_text, about));
+                rows.push((label, UNDEFINED_TEXT.to_string(), unit_text, about, false));
             }
             continue;
         }
@@ -653,6 +732,7 @@ fn explained_rows(
                         } else {
                             String::new()
                         },
+                        false,
                     ));
                     rows.push((
                         format!("mean stream length of order {}", stream.order),
@@ -663,12 +743,13 @@ fn explained_rows(
                         } else {
                             String::new()
                         },
+                        false,
                     ));
                 }
                 continue;
             }
         };
-        rows.push((label, value, unit_text, about));
+        rows.push((label, value, unit_text, about, says_little));
     }
     rows
 }

@@ -83,6 +83,7 @@ impl Band {
         // Legend.
         let items = legend_items(&LegendFacts {
             colouring: options.colour,
+            tissue: (drawing.tissue_count > 0).then_some(options.tissue),
             max_order: drawing.max_order,
             flow_range: drawing.flow_range,
             segment_count: drawing.segments.len(),

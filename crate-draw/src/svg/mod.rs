@@ -5,7 +5,11 @@
 //! Layout: the viewBox is in the network's physical units (y down, as in `Network`). The
 //! drawing sits at the top; a band below it holds the scale bar, the map scale or "true size",
 //! the legend and the optional caution. Segments are `<line class="segment">` elements drawn
-//! thinnest first, so that major veins or trunks lie on top; roots are circles.
+//! thinnest first, so that major veins or trunks lie on top; roots are circles. Segments below
+//! the conducting threshold (tissue) are drawn as `SvgOptions::tissue` says: faint, in a
+//! `<g class="tissue background">` under the veins (the specimen reader skips a group labelled
+//! background), left out, or like the thinnest veins; the choice is kept in the metadata
+//! (`ramulus:tissue`).
 
 use std::fmt::Write;
 
@@ -18,6 +22,8 @@ mod legend;
 mod page;
 
 pub use crate::palette::Colouring;
+pub use crate::tissue::TissueView;
+use crate::tissue::{FAINT_SVG_OPACITY, FAINT_SVG_WIDTH_FRACTION, TISSUE_FAINT};
 
 use crate::format::*;
 use crate::palette::*;
@@ -41,6 +47,8 @@ pub struct SvgOptions {
     /// Blank border around the network, in the network's length units; negative or non-finite
     /// values count as 0. Half the widest stroke is always added. Default 0.
     pub margin: f64,
+    /// How segments that do not conduct are drawn. Default `Faint`.
+    pub tissue: TissueView,
 }
 
 impl Default for SvgOptions {
@@ -52,6 +60,7 @@ impl Default for SvgOptions {
             digest: String::new(),
             caution: None,
             margin: 0.0,
+            tissue: TissueView::Faint,
         }
     }
 }
@@ -64,8 +73,18 @@ impl Default for SvgOptions {
 pub const METADATA_NAMESPACE: &str = "tag:ramulus.invalid,2026:run-metadata/1";
 
 /// Draws a run as SVG: its parameters, seed and digest in the metadata, the concept-layout
-/// caution for drainage sites, a two-cell margin.
+/// caution for drainage sites, a two-cell margin, tissue faint (`run_svg_with` to choose).
 pub fn run_svg(view: &RunView, params: &Params, colour: Colouring) -> String {
+    run_svg_with(view, params, colour, TissueView::Faint)
+}
+
+/// `run_svg` with the tissue drawn as `tissue` says.
+pub fn run_svg_with(
+    view: &RunView,
+    params: &Params,
+    colour: Colouring,
+    tissue: TissueView,
+) -> String {
     let metadata =
         serde_json::json!({ "params": params, "seed": params.run.seed, "digest": view.digest });
     let options = SvgOptions {
@@ -78,6 +97,7 @@ pub fn run_svg(view: &RunView, params: &Params, colour: Colouring) -> String {
         digest: view.digest.clone(),
         caution: params.is_site().then(|| SITE_CAUTION.to_string()),
         margin: params.domain.cell_size * 2.0,
+        tissue,
     };
     render_svg(&view.network, &view.table, &options)
 }
@@ -88,7 +108,7 @@ pub fn run_svg(view: &RunView, params: &Params, colour: Colouring) -> String {
 /// with an end out of range or not finite are left out, and missing table entries read as
 /// width 0, order 1, flow 0. Never panics.
 pub fn render_svg(network: &Network, table: &SegmentTable, options: &SvgOptions) -> String {
-    let drawing = Drawing::collect(network, table);
+    let drawing = Drawing::collect(network, table, options.tissue);
     let units = network.units.as_str();
     let paper = PaperUnit::of(units);
     let least_width = match paper {
@@ -139,6 +159,7 @@ pub fn render_svg(network: &Network, table: &SegmentTable, options: &SvgOptions)
 }
 
 /// One drawable segment.
+#[derive(Clone, Copy)]
 struct Segment {
     child: usize,
     parent: usize,
@@ -151,6 +172,11 @@ struct Segment {
 struct Drawing {
     nodes: Vec<(f64, f64)>,
     segments: Vec<Segment>,
+    /// Tissue drawn faint (under the veins), with the stroke width they all share.
+    faint: Vec<Segment>,
+    faint_width: f64,
+    /// Segments that do not conduct, drawn or not.
+    tissue_count: usize,
     roots: Vec<(usize, f64)>,
     /// `[min x, min y, max x, max y]` of finite nodes, or `None` when there are none.
     bounds: Option<[f64; 4]>,
@@ -161,7 +187,7 @@ struct Drawing {
 }
 
 impl Drawing {
-    fn collect(network: &Network, table: &SegmentTable) -> Drawing {
+    fn collect(network: &Network, table: &SegmentTable, tissue: TissueView) -> Drawing {
         let nodes: Vec<(f64, f64)> = network.nodes.iter().map(|node| (node.x, node.y)).collect();
         let finite = |index: usize| {
             nodes
@@ -177,6 +203,20 @@ impl Drawing {
             }
         };
         let mut segments = Vec::new();
+        let mut faint = Vec::new();
+        let mut tissue_count = 0;
+        // The thinnest vein's width: faint tissue is drawn thinner, tissue drawn like the
+        // veins as wide (the cell size stands in when no vein has a width).
+        let thinnest = (0..network.segments.len())
+            .filter(|&index| table.conducts.get(index).copied().unwrap_or(true))
+            .map(width_of)
+            .filter(|&width| width > 0.0)
+            .fold(f64::INFINITY, f64::min);
+        let thinnest = if thinnest.is_finite() {
+            thinnest
+        } else {
+            network.cell_size.max(0.0) * 0.1
+        };
         // Nodes without a downstream segment are roots, drawn as wide as their widest inflow.
         let mut has_downstream = vec![false; nodes.len()];
         let mut inflow_width = vec![0.0f64; nodes.len()];
@@ -192,13 +232,24 @@ impl Drawing {
                 continue;
             }
             let flow = table.flow.get(index).copied().unwrap_or(0.0);
-            segments.push(Segment {
+            let conducts = table.conducts.get(index).copied().unwrap_or(true);
+            let segment = Segment {
                 child,
                 parent,
-                width: width_of(index),
+                width: if conducts { width_of(index) } else { thinnest },
                 flow: if flow.is_finite() { flow } else { 0.0 },
                 order: table.order.get(index).copied().unwrap_or(1).max(1),
-            });
+            };
+            if conducts {
+                segments.push(segment);
+                continue;
+            }
+            tissue_count += 1;
+            match tissue {
+                TissueView::Faint => faint.push(segment),
+                TissueView::Hidden => {}
+                TissueView::AsVeins => segments.push(segment),
+            }
         }
         let roots: Vec<(usize, f64)> = (0..nodes.len())
             .filter(|&index| finite(index) && !has_downstream[index])
@@ -243,6 +294,9 @@ impl Drawing {
         Drawing {
             nodes,
             segments,
+            faint,
+            faint_width: FAINT_SVG_WIDTH_FRACTION * thinnest,
+            tissue_count,
             roots,
             bounds,
             widest,
@@ -276,10 +330,25 @@ fn write_document(
         c(band.view_height(frame)),
     );
     let _ = writeln!(svg, "<title>{}</title>", escape_text(&options.title));
+    let site = ramulus_core::params::is_site_unit(&network.units);
+    let tissue_note = match (drawing.tissue_count, options.tissue) {
+        (0, _) => String::new(),
+        (count, view) => format!(
+            "; {count} {} segment{} {}",
+            if site { "hillslope" } else { "tissue" },
+            plural(count),
+            match view {
+                TissueView::Faint => "drawn faint, under the rest",
+                TissueView::Hidden => "not drawn",
+                TissueView::AsVeins if site => "drawn like the thinnest channels",
+                TissueView::AsVeins => "drawn like the thinnest veins",
+            }
+        ),
+    };
     let _ = writeln!(
         svg,
         "<desc>Branching network: {} segment{}, {} root{}; lengths in {}; segment stroke widths \
-         are true to scale.</desc>",
+         are true to scale{tissue_note}.</desc>",
         drawing.segments.len(),
         plural(drawing.segments.len()),
         drawing.roots.len(),
@@ -288,9 +357,10 @@ fn write_document(
     );
     let _ = writeln!(
         svg,
-        "<metadata><ramulus:run xmlns:ramulus=\"{METADATA_NAMESPACE}\" ramulus:digest=\"{}\">{}\
-         </ramulus:run></metadata>",
+        "<metadata><ramulus:run xmlns:ramulus=\"{METADATA_NAMESPACE}\" ramulus:digest=\"{}\" \
+         ramulus:tissue=\"{}\">{}</ramulus:run></metadata>",
         escape_attribute(&options.digest),
+        options.tissue.name(),
         escape_text(&options.metadata_json),
     );
     let _ = writeln!(svg, "<rect class=\"background\" x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"#ffffff\"/>",
@@ -299,6 +369,30 @@ fn write_document(
         c(frame.width),
         c(band.view_height(frame)),
     );
+
+    // Faint tissue, under everything else.
+    if !drawing.faint.is_empty() {
+        let _ = writeln!(
+            svg,
+            "<g class=\"tissue background\" fill=\"none\" stroke=\"{TISSUE_FAINT}\" \
+             stroke-opacity=\"{FAINT_SVG_OPACITY}\" stroke-width=\"{}\" \
+             stroke-linecap=\"round\">",
+            significant(drawing.faint_width),
+        );
+        for segment in &drawing.faint {
+            let end = |index: usize| drawing.nodes.get(index).copied().unwrap_or((0.0, 0.0));
+            let ((x1, y1), (x2, y2)) = (end(segment.child), end(segment.parent));
+            let _ = writeln!(
+                svg,
+                "<line x1=\"{}\" y1=\"{}\" x2=\"{}\" y2=\"{}\"/>",
+                c(x1),
+                c(y1),
+                c(x2),
+                c(y2),
+            );
+        }
+        svg.push_str("</g>\n");
+    }
 
     // Segments.
     svg.push_str("<g class=\"network\" fill=\"none\">\n");
