@@ -13,6 +13,7 @@ mod frontier;
 mod joining;
 mod lattice;
 mod planar;
+mod refine;
 mod refresh;
 
 use rand_chacha::ChaCha8Rng;
@@ -59,6 +60,9 @@ pub struct StepReport {
 
 /// An incremental grower holding the lattice, the network so far and the frontier.
 pub struct Growth {
+    /// The parameters as given (`params()`).
+    given: Params,
+    /// The parameters growth runs on: the given ones on the refined lattice (`refine`).
     params: Params,
     model: CostModel,
     lattice: Lattice,
@@ -111,16 +115,22 @@ const WEIGHT_CEILING_EXPONENT: f64 = 500.0;
 
 impl Growth {
     /// Validates the parameters and plants the roots. Fails with an error naming the parameter.
-    pub fn new(params: &Params) -> Result<Growth, ParamError> {
-        params.validate()?;
+    pub fn new(given: &Params) -> Result<Growth, ParamError> {
+        given.validate()?;
+        if given.domain.refine > 1 {
+            // Errors name the given cells, not the refined ones.
+            check_start(given, &allowed_cells(given))?;
+        }
+        let params = &refine::refined(given);
         let allowed = allowed_cells(params);
         check_start(params, &allowed)?;
         let lattice = Lattice::new(params, &allowed);
         let mut random = ChaCha8Rng::seed_from_u64(params.run.seed);
         random.set_stream(1);
         let mut growth = Growth {
+            given: given.clone(),
             params: params.clone(),
-            model: CostModel::new(params),
+            model: CostModel::new(params, given.domain.refine),
             lattice,
             frontier: Frontier::new(params.run.joining != Joining::Cheapest),
             random,
@@ -225,7 +235,7 @@ impl Growth {
 
     /// The parameters this run was built from.
     pub fn params(&self) -> &Params {
-        &self.params
+        &self.given
     }
 
     /// Cells occupied so far (roots included).

@@ -30,6 +30,7 @@ mod table;
 mod tortuosity;
 mod transport;
 
+pub use outline::blade_length_width;
 pub use table::{
     metric_readme_table, metric_rows, metric_rows_explained, metrics_csv, AppliesTo, MetricEntry,
     MetricUnit, Reading, METRIC_TABLE,

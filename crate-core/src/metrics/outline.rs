@@ -50,6 +50,35 @@ fn measure_outline_of(grid: &OccupiedCells, cell_size: f64) -> OutlineMeasures {
     }
 }
 
+/// Length to width ratio of a blade (the laminar L:W ratio of leaf-architecture manuals):
+/// the extent of the occupied cells along `axis` (base to apex, the midrib's direction) over
+/// their largest extent across it, each cell counted as its unit square (extents of cell
+/// centres plus one cell). `None` when no cell lies inside the lattice or the axis has no
+/// direction. Independent of the cell size.
+pub fn blade_length_width(cells: &CellSet, axis: [f64; 2]) -> Option<f64> {
+    let norm = (axis[0] * axis[0] + axis[1] * axis[1]).sqrt();
+    if !(norm > 0.0 && norm.is_finite()) {
+        return None;
+    }
+    let (ux, uy) = (axis[0] / norm, axis[1] / norm);
+    let width = u64::from(cells.width);
+    let total = width * u64::from(cells.height);
+    let mut along = (f64::INFINITY, f64::NEG_INFINITY);
+    let mut across = (f64::INFINITY, f64::NEG_INFINITY);
+    for &index in &cells.occupied {
+        let index = u64::from(index);
+        if index >= total {
+            continue;
+        }
+        let (x, y) = ((index % width) as f64 + 0.5, (index / width) as f64 + 0.5);
+        let a = x * ux + y * uy;
+        let c = x * uy - y * ux;
+        along = (along.0.min(a), along.1.max(a));
+        across = (across.0.min(c), across.1.max(c));
+    }
+    (along.0 <= along.1).then(|| (along.1 - along.0 + 1.0) / (across.1 - across.0 + 1.0))
+}
+
 /// Occupied cells inside the lattice, distinct, in row-major order: a grid of flags over the
 /// cells' bounding box (with a margin of one empty cell) when the cells fill enough of it, or
 /// the sorted indices when they are few and spread out. Both give the same values to the bit:

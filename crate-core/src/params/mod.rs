@@ -64,6 +64,20 @@ pub struct Domain {
     pub grade_y: f64,
     /// Runoff coefficient of every cell (sites); a cell's flow weight. Default 1; > 0 ..= 1.
     pub runoff: f64,
+    /// Lattice refinement: every cell is split into `refine x refine` cells before growth while
+    /// every physical quantity keeps its value (`crate::growth` applies it). Default 1; 1 ..= 4;
+    /// 1 for parameters saved before the key existed.
+    #[serde(default = "one")]
+    pub refine: u32,
+    /// Whether cells behind the line through a root across its outflow (behind the petiole)
+    /// are kept out of growth. Default false; false in parameters saved before the key existed.
+    #[serde(default)]
+    pub front_only: bool,
+}
+
+/// `refine` of parameters saved before the key existed.
+fn one() -> u32 {
+    1
 }
 
 /// The cost of joining a cell: the weight of each term and the shape of each term.
@@ -329,6 +343,18 @@ impl Params {
                 spec.check(self)?;
             }
         }
+        // The refined lattice and budget must fit the same limits as a given one.
+        let factor = u64::from(self.domain.refine) * u64::from(self.domain.refine);
+        if factor > 1 && (total * factor > MAX_CELLS || self.run.cells.saturating_mul(factor) > MAX_CELLS) {
+            return Err(ParamError {
+                key: "refine".into(),
+                value: self.domain.refine.to_string(),
+                allowed: format!(
+                    "a refinement whose lattice ({total} cells) and budget ({} cells) times {factor} stay within {MAX_CELLS} cells",
+                    self.run.cells
+                ),
+            });
+        }
         // The budget counts the roots, which are all planted at once: it must hold them.
         if self.run.cells < self.domain.roots.len() as u64 {
             return Err(ParamError {
@@ -371,6 +397,8 @@ fn blank() -> Params {
             grade_x: 0.0,
             grade_y: 0.0,
             runoff: 0.0,
+            refine: 0,
+            front_only: false,
         },
         costs: CostWeights {
             w_len: 0.0,
