@@ -23,6 +23,7 @@ mod areoles;
 mod densities;
 mod hack;
 mod loops;
+pub mod margin;
 mod outline;
 mod regression;
 mod strahler_horton;
@@ -143,8 +144,8 @@ pub struct Metrics {
     /// Length of the outline traced by marching squares over the occupied cells, in units;
     /// `None` without cells or without a positive cell size.
     pub outline_perimeter: Option<f64>,
-    /// Circularity `4 pi A / P^2` of the outline (dimensionless, 1 for a circle); `None`
-    /// without cells.
+    /// Circularity `4 pi A / P^2` of the smooth margin (`margin::blade_margin`; dimensionless,
+    /// 1 for a circle); `None` without cells or for a lone cell.
     pub circularity: Option<f64>,
     /// Aspect ratio `sqrt(lambda_1 / lambda_2)` of the covariance of occupied cell centres,
     /// largest eigenvalue over smallest (dimensionless, >= 1); `None` with fewer than two cells

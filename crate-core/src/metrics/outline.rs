@@ -1,5 +1,6 @@
 //! Outline of the occupied lattice cells (`OutlineMeasures`): area, marching-squares perimeter,
-//! circularity and the aspect ratio of the cell centres' covariance.
+//! the circularity of the smooth margin (`margin`), the aspect ratio of the cell centres'
+//! covariance, and the blade's length to width ratio (`blade_length_width`).
 
 use crate::network::CellSet;
 
@@ -10,7 +11,7 @@ pub(crate) struct OutlineMeasures {
     pub(crate) area: Option<f64>,
     /// Marching-squares contour length, in length units.
     pub(crate) perimeter: Option<f64>,
-    /// `4 pi A / P^2`, from the cell count and the contour length in cell units.
+    /// `4 pi A / P^2` of the smooth margin (`margin`), in cell units.
     pub(crate) circularity: Option<f64>,
     /// `sqrt(lambda_1 / lambda_2)` of the covariance of occupied cell centres.
     pub(crate) aspect_ratio: Option<f64>,
@@ -22,7 +23,21 @@ pub(crate) struct OutlineMeasures {
 /// perimeter need a positive, finite `cell_size`; circularity and aspect ratio do not depend on
 /// it and are computed in cell units.
 pub(crate) fn measure_outline(cells: &CellSet, cell_size: f64) -> OutlineMeasures {
-    measure_outline_of(&OccupiedCells::new(cells, true), cell_size)
+    let measures = measure_outline_of(&OccupiedCells::new(cells, true), cell_size);
+    OutlineMeasures {
+        circularity: measures.circularity.and(margin_circularity(cells)),
+        ..measures
+    }
+}
+
+/// Circularity `4 pi A / P^2` of the smooth margin (`margin::blade_margin`), with `A` and `P`
+/// summed over its polygons; `None` when the margin has no length (a lone cell).
+fn margin_circularity(cells: &CellSet) -> Option<f64> {
+    let (area, perimeter) = super::margin::blade_margin(cells)
+        .iter()
+        .map(|polygon| super::margin::polygon_area_perimeter(polygon))
+        .fold((0.0, 0.0), |(a, p), (area, perimeter)| (a + area, p + perimeter));
+    (perimeter > 0.0).then(|| 4.0 * core::f64::consts::PI * area / (perimeter * perimeter))
 }
 
 /// `measure_outline` on cells already gathered.
