@@ -1,6 +1,7 @@
 //! Named parameter presets (`Preset`, `presets`, `preset`): three leaves named for their
-//! botanical shape class (ovate, elliptic, lanceolate) whose outline emerges from the costs, a leaf that fills a given outline, a drainage site, and the spanning-tree
-//! reference.
+//! botanical shape class (ovate, elliptic, lanceolate), each growing from its petiole to fill
+//! a blade outline of its class; a leaf that fills a heart-shaped outline; a drainage site; and
+//! the spanning-tree reference. Earlier names stay accepted (`PRESET_ALIASES`).
 
 use crate::params::{CostWeights, Domain, RunControl, Widths};
 use serde::Serialize;
@@ -26,19 +27,19 @@ pub fn presets() -> Vec<Preset> {
         Preset {
             name: "ovate-leaf",
             title: "Ovate leaf (egg-shaped blade)",
-            description: "open growth: an egg-shaped blade, widest below the middle, about 1.5 times as long as wide, midrib to the apex, petiole at the base",
+            description: "an egg-shaped blade, widest below the middle, about 1.7 times as long as wide, grown from the petiole with the midrib to the apex",
             params: ovate_leaf(),
         },
         Preset {
             name: "elliptic-leaf",
             title: "Elliptic leaf (oval blade)",
-            description: "open growth: an oval blade about twice as long as wide, midrib to the apex, petiole at the base",
+            description: "an oval blade, widest at the middle, about 2.4 times as long as wide, grown from the petiole with the midrib to the apex",
             params: elliptic_leaf(),
         },
         Preset {
             name: "lanceolate-leaf",
             title: "Lanceolate leaf (long, tapering blade)",
-            description: "open growth: a lance-shaped blade three to four times as long as wide, tapering to the apex, petiole at the base",
+            description: "a lance-shaped blade, widest below the middle, about 3.5 times as long as wide, tapering to the apex, grown from the petiole",
             params: lanceolate_leaf(),
         },
         Preset {
@@ -204,8 +205,8 @@ fn blade_outline(
 
 fn ovate_leaf() -> Params {
     shaped_leaf(LeafShape {
-        length: 300.0,
-        width: 190.0,
+        length: 310.0,
+        width: 180.0,
         base_exponent: 0.5,
         apex_exponent: 0.85,
         elongation: 3.0,
@@ -216,8 +217,8 @@ fn ovate_leaf() -> Params {
 
 fn elliptic_leaf() -> Params {
     shaped_leaf(LeafShape {
-        length: 340.0,
-        width: 170.0,
+        length: 360.0,
+        width: 150.0,
         base_exponent: 0.5,
         apex_exponent: 0.5,
         elongation: 4.0,
