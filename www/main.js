@@ -11,7 +11,7 @@ import { Runner } from './runner.js';
 import { Session } from './session.js';
 
 const ANIMATE_KEY = 'ramulus.animate';
-const DEFAULT_START = 'broad-leaf';
+const DEFAULT_START = 'ovate-leaf';
 
 const byId = (id) => document.getElementById(id);
 const state = {

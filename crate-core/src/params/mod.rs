@@ -65,7 +65,7 @@ pub struct Domain {
     /// Runoff coefficient of every cell (sites); a cell's flow weight. Default 1; > 0 ..= 1.
     pub runoff: f64,
     /// Lattice refinement: every cell is split into `refine x refine` cells before growth while
-    /// every physical quantity keeps its value (`crate::growth` applies it). Default 1; 1 ..= 4;
+    /// every physical quantity keeps its value (growth applies it). Default 1; 1 ..= 4;
     /// 1 for parameters saved before the key existed.
     #[serde(default = "one")]
     pub refine: u32,
