@@ -146,3 +146,38 @@ fn the_main_vein_reaches_toward_the_apex() {
         );
     }
 }
+
+/// The elliptic blade's smooth margin reads the circularity of an ellipse of its length to
+/// width ratio: `4 pi (pi a b) / P^2` with Ramanujan's perimeter `P = pi (3 (a + b) -
+/// sqrt((3a + b)(a + 3b)))` (Ramanujan 1914, Q. J. Pure Appl. Math. 45, from memory) within 3 %;
+/// the growth front's own ragged edge would read far less (0.17 for the egg-shaped blade of
+/// earlier releases).
+#[test]
+fn the_elliptic_margin_reads_an_ellipse() {
+    let (params, view) = grow("elliptic-leaf", 1);
+    let ratio = blade_length_width(&view.network.cells, params.domain.roots[0].outflow).expect("cells");
+    let (a, b) = (ratio, 1.0);
+    let perimeter = std::f64::consts::PI * (3.0 * (a + b) - ((3.0 * a + b) * (a + 3.0 * b)).sqrt());
+    let expected = 4.0 * std::f64::consts::PI * (std::f64::consts::PI * a * b) / (perimeter * perimeter);
+    let circularity = view.metrics.circularity.expect("a margin");
+    assert!(
+        (circularity - expected).abs() < 0.03 * expected,
+        "circularity {circularity}, ellipse {expected}"
+    );
+}
+
+/// Prints the circularity of the smooth margin of every leaf preset over seeds 1-5 (README,
+/// "Metrics"): `cargo test --release -p ramulus-tests --test leaf_shapes -- --ignored --nocapture`.
+#[test]
+#[ignore]
+fn margin_circularity_table() {
+    for (name, ..) in CLASSES {
+        let values: Vec<String> = (1..=5)
+            .map(|seed| {
+                let (_, view) = grow(name, seed);
+                format!("{:.3}", view.metrics.circularity.unwrap_or(0.0))
+            })
+            .collect();
+        println!("{name}: circularity {}", values.join(", "));
+    }
+}
