@@ -64,8 +64,10 @@ pub fn presets() -> Vec<Preset> {
 }
 
 /// Names of earlier releases that still pick a preset: `(old name, preset name)`.
-pub const PRESET_ALIASES: [(&str, &str); 2] =
-    [("broad-leaf", "ovate-leaf"), ("narrow-leaf", "elliptic-leaf")];
+pub const PRESET_ALIASES: [(&str, &str); 2] = [
+    ("broad-leaf", "ovate-leaf"),
+    ("narrow-leaf", "elliptic-leaf"),
+];
 
 /// The parameters of a preset by name (or by an earlier name, `PRESET_ALIASES`).
 pub fn preset(name: &str) -> Option<Params> {
@@ -190,7 +192,8 @@ fn blade_outline(
     let half = |t: f64| width / 2.0 * libm::pow(t, a) * libm::pow(1.0 - t, b) / peak;
     let side = points / 2;
     // Points bunched toward base and apex (t = (1 - cos s) / 2), where the outline turns.
-    let along = |index: usize| (1.0 - libm::cos(std::f64::consts::PI * index as f64 / side as f64)) / 2.0;
+    let along =
+        |index: usize| (1.0 - libm::cos(std::f64::consts::PI * index as f64 / side as f64)) / 2.0;
     let mut outline = Vec::with_capacity(2 * side);
     for index in 0..=side {
         let t = along(index);

@@ -106,7 +106,11 @@ fn nothing_grows_behind_the_petiole() {
     let network = growth.network();
     let root_row = params.domain.roots[0].y;
     let width = network.cells.width;
-    assert!(network.cells.occupied.iter().any(|&cell| cell / width > root_row));
+    assert!(network
+        .cells
+        .occupied
+        .iter()
+        .any(|&cell| cell / width > root_row));
 }
 
 /// One petiole and a midrib toward the apex: following the larger upstream flow from the root
@@ -155,10 +159,12 @@ fn the_main_vein_reaches_toward_the_apex() {
 #[test]
 fn the_elliptic_margin_reads_an_ellipse() {
     let (params, view) = grow("elliptic-leaf", 1);
-    let ratio = blade_length_width(&view.network.cells, params.domain.roots[0].outflow).expect("cells");
+    let ratio =
+        blade_length_width(&view.network.cells, params.domain.roots[0].outflow).expect("cells");
     let (a, b) = (ratio, 1.0);
     let perimeter = std::f64::consts::PI * (3.0 * (a + b) - ((3.0 * a + b) * (a + 3.0 * b)).sqrt());
-    let expected = 4.0 * std::f64::consts::PI * (std::f64::consts::PI * a * b) / (perimeter * perimeter);
+    let expected =
+        4.0 * std::f64::consts::PI * (std::f64::consts::PI * a * b) / (perimeter * perimeter);
     let circularity = view.metrics.circularity.expect("a margin");
     assert!(
         (circularity - expected).abs() < 0.03 * expected,

@@ -63,7 +63,7 @@ pub struct Growth {
     /// The parameters as given (`params()`).
     given: Params,
     /// The parameters growth runs on: the given ones on the refined lattice (`refine`).
-    params: Params,
+    refined: Params,
     model: CostModel,
     lattice: Lattice,
     frontier: Frontier,
@@ -129,7 +129,7 @@ impl Growth {
         random.set_stream(1);
         let mut growth = Growth {
             given: given.clone(),
-            params: params.clone(),
+            refined: params.clone(),
             model: CostModel::new(params, given.domain.refine),
             lattice,
             frontier: Frontier::new(params.run.joining != Joining::Cheapest),
@@ -206,7 +206,7 @@ impl Growth {
                 Ok((slot, attachment)) => {
                     self.join(slot, attachment);
                     added += 1;
-                    if self.cell_count >= self.params.run.cells {
+                    if self.cell_count >= self.refined.run.cells {
                         self.stopped = Some(StopReason::Budget);
                     }
                 }
@@ -256,7 +256,7 @@ impl Growth {
     /// The network so far in physical units: node `i` of the grower is node `i` here, and the
     /// segments run from each non-root node to its parent, in node order.
     pub fn network(&self) -> Network {
-        let size = self.params.domain.cell_size;
+        let size = self.refined.domain.cell_size;
         let cell_area = size * size;
         let weight = self.cell_weight * cell_area;
         let nodes = (0..self.x.len())
@@ -280,11 +280,11 @@ impl Growth {
             nodes,
             segments: segments_from_parents(&self.parent),
             area: self.cell_count as f64 * cell_area,
-            units: self.params.domain.units.clone(),
+            units: self.refined.domain.units.clone(),
             cell_size: size,
             cells: CellSet {
-                width: self.params.domain.width,
-                height: self.params.domain.height,
+                width: self.refined.domain.width,
+                height: self.refined.domain.height,
                 occupied,
             },
         }
@@ -323,7 +323,7 @@ impl Growth {
         self.root_of.reserve_exact(count);
         self.child_count.reserve_exact(count);
         self.cell_of.reserve_exact(count);
-        if self.params.run.attach_to_segments {
+        if self.refined.run.attach_to_segments {
             self.junction_next.reserve_exact(count);
         }
     }
@@ -353,7 +353,7 @@ impl Growth {
         self.root_of.push(root);
         self.child_count.push(0);
         self.cell_of.push(cell);
-        if self.params.run.attach_to_segments {
+        if self.refined.run.attach_to_segments {
             self.junction_next.push(NONE);
         }
         if parent != NO_PARENT {
@@ -395,7 +395,7 @@ impl Growth {
         let (axis_x, axis_y) = self.axes[root as usize];
         let dist = self.dist[t] + self.model.supply_length(vx, vy, axis_x, axis_y);
         let transport = self.transport[t]
-            + length * marginal(self.cell_weight, self.cell_weight, self.params.costs.alpha);
+            + length * marginal(self.cell_weight, self.cell_weight, self.refined.costs.alpha);
         let node = self.push_node(
             cx,
             cy,
@@ -408,7 +408,7 @@ impl Growth {
             cell as u32,
         );
         self.flow[node as usize] = self.cell_weight;
-        if self.params.run.planar {
+        if self.refined.run.planar {
             self.note_segment_length(node, target);
         }
         self.occupy(cell, node);

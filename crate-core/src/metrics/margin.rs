@@ -317,7 +317,9 @@ mod tests {
 
     #[test]
     fn two_pieces_give_two_polygons() {
-        let cells = cells_where(60, 20, |c, r| (2..12).contains(&r) && ((3..15).contains(&c) || (30..45).contains(&c)));
+        let cells = cells_where(60, 20, |c, r| {
+            (2..12).contains(&r) && ((3..15).contains(&c) || (30..45).contains(&c))
+        });
         assert_eq!(blade_margin(&cells).len(), 2);
         assert!(blade_margin(&cells_where(5, 5, |_, _| false)).is_empty());
     }

@@ -36,7 +36,9 @@ fn margin_circularity(cells: &CellSet) -> Option<f64> {
     let (area, perimeter) = super::margin::blade_margin(cells)
         .iter()
         .map(|polygon| super::margin::polygon_area_perimeter(polygon))
-        .fold((0.0, 0.0), |(a, p), (area, perimeter)| (a + area, p + perimeter));
+        .fold((0.0, 0.0), |(a, p), (area, perimeter)| {
+            (a + area, p + perimeter)
+        });
     (perimeter > 0.0).then(|| 4.0 * core::f64::consts::PI * area / (perimeter * perimeter))
 }
 

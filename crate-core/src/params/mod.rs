@@ -345,7 +345,9 @@ impl Params {
         }
         // The refined lattice and budget must fit the same limits as a given one.
         let factor = u64::from(self.domain.refine) * u64::from(self.domain.refine);
-        if factor > 1 && (total * factor > MAX_CELLS || self.run.cells.saturating_mul(factor) > MAX_CELLS) {
+        if factor > 1
+            && (total * factor > MAX_CELLS || self.run.cells.saturating_mul(factor) > MAX_CELLS)
+        {
             return Err(ParamError {
                 key: "refine".into(),
                 value: self.domain.refine.to_string(),
