@@ -187,3 +187,55 @@ fn margin_circularity_table() {
         println!("{name}: circularity {}", values.join(", "));
     }
 }
+
+/// Draws each leaf preset's veins (drained area at least 0.5 mm^2, stroke width growing with
+/// the flow) inside its smooth margin into `artifacts/shapes/NAME.png`, to look at:
+/// `cargo test --release -p ramulus-tests --test leaf_shapes -- --ignored --nocapture`.
+#[test]
+#[ignore]
+fn draw_leaf_presets() {
+    use ramulus_core::metrics::margin::blade_margin;
+    use ramulus_tests::cleared_drawing::{encode_grey_png, Canvas};
+    let folder = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../artifacts/shapes");
+    std::fs::create_dir_all(&folder).expect("artifacts folder");
+    for (name, ..) in CLASSES {
+        let (params, view) = grow(name, 1);
+        let scale = 2.0; // pixels per cell
+        let h = view.network.cell_size;
+        let (width, height) = (
+            (f64::from(params.domain.width) * scale) as usize,
+            (f64::from(params.domain.height) * scale) as usize,
+        );
+        let mut canvas = Canvas::new(width, height, 255.0);
+        for polygon in blade_margin(&view.network.cells) {
+            for (index, &[x0, y0]) in polygon.iter().enumerate() {
+                let [x1, y1] = polygon[(index + 1) % polygon.len()];
+                canvas.stroke(
+                    (x0 * scale, y0 * scale),
+                    (x1 * scale, y1 * scale),
+                    1.0,
+                    120.0,
+                );
+            }
+        }
+        let minimum = 0.5;
+        for (index, segment) in view.network.segments.iter().enumerate() {
+            let flow = view.table.flow[index];
+            if flow < minimum {
+                continue;
+            }
+            let a = &view.network.nodes[segment.from as usize];
+            let b = &view.network.nodes[segment.to as usize];
+            let radius = 0.6 * (flow / minimum).powf(1.0 / 3.0);
+            canvas.stroke(
+                (a.x / h * scale, a.y / h * scale),
+                (b.x / h * scale, b.y / h * scale),
+                radius,
+                0.0,
+            );
+        }
+        let grey: Vec<u8> = canvas.grey();
+        let png = encode_grey_png(width, height, &grey, None);
+        std::fs::write(folder.join(format!("{name}.png")), png).expect("written");
+    }
+}
