@@ -191,6 +191,19 @@ mod tests {
         );
     }
 
+    /// A refined run needs what the same run on the refined lattice needs (`refine` 2: a
+    /// lattice twice as wide and tall, four times the budget), and its largest budget is
+    /// offered in the given cells.
+    #[test]
+    fn a_refined_run_is_estimated_on_its_refined_lattice() {
+        let refined = estimate("v=1&width=1000&height=800&roots=10,10,0,1&cells=300000&refine=2");
+        let fine = estimate("v=1&width=2000&height=1600&roots=20,20,0,1&cells=1200000");
+        assert_eq!(refined.bytes, fine.bytes);
+        assert_eq!(refined.lattice_cells, fine.lattice_cells);
+        assert_eq!(refined.budget, 300_000);
+        assert_eq!(refined.largest_budget, fine.largest_budget / 4);
+    }
+
     /// The largest budget fits and one cell more does not, on several lattices.
     #[test]
     fn the_largest_budget_is_the_boundary() {
