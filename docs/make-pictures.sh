@@ -6,7 +6,7 @@ cd "$(dirname "$0")/.."
 cargo build --release -q -p ramulus-cli
 command -v rsvg-convert >/dev/null || apt-get install -y librsvg2-bin
 work="$(mktemp -d)"
-for preset in broad-leaf narrow-leaf filled-outline drainage-site spanning-tree; do
+for preset in ovate-leaf elliptic-leaf lanceolate-leaf filled-outline drainage-site spanning-tree; do
   target/release/ramulus grow --preset "$preset" --svg "$work/$preset.svg" > /dev/null
   rsvg-convert -w 420 "$work/$preset.svg" -o "docs/presets/$preset.png"
 done

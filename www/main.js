@@ -13,7 +13,7 @@ import { Session } from './session.js';
 const ANIMATE_KEY = 'ramulus.animate';
 // How tissue is drawn, kept across visits: a view setting, never part of the run link.
 const TISSUE_KEY = 'ramulus.tissue';
-const DEFAULT_START = 'broad-leaf';
+const DEFAULT_START = 'ovate-leaf';
 
 const byId = (id) => document.getElementById(id);
 const state = {

@@ -415,8 +415,8 @@ fn heap_prim_length(side: u32) -> f64 {
 /// Time and peak memory of everything computed after growth (topology, widths, metrics,
 /// digest, then the SVG, the record and the CSV) on the broad-leaf preset.
 fn pipeline_figures() -> Result<(), CliError> {
-    let params = ramulus_core::presets::preset("broad-leaf")
-        .ok_or_else(|| CliError::Failed("preset broad-leaf is missing".into()))?;
+    let params = ramulus_core::presets::preset("ovate-leaf")
+        .ok_or_else(|| CliError::Failed("preset ovate-leaf is missing".into()))?;
     let mut growth = Growth::new(&params).map_err(|error| CliError::Failed(error.to_string()))?;
     growth.run();
     let network = growth.network();

@@ -25,8 +25,8 @@ const METRICS: [&str; 4] = [
 ];
 
 fn plan(cells: u64, simulations: u32) -> Result<FitPlan, CliError> {
-    let mut base = ramulus_core::presets::preset("broad-leaf")
-        .ok_or_else(|| CliError::Failed("preset broad-leaf is missing".into()))?;
+    let mut base = ramulus_core::presets::preset("ovate-leaf")
+        .ok_or_else(|| CliError::Failed("preset ovate-leaf is missing".into()))?;
     base.run.cells = cells;
     let mut specimen = base.clone();
     specimen.costs.alpha = 0.6;

@@ -38,7 +38,7 @@ pub struct FitOptions {
     /// its length unit defaults to the growth parameters' `units`)
     #[command(flatten)]
     pub tracing: crate::options::SpecimenArgs,
-    /// Start from this named parameter set (default: broad-leaf)
+    /// Start from this named parameter set (default: ovate-leaf)
     #[arg(long, value_name = "NAME")]
     pub preset: Option<String>,
     /// Start from the defaults plus the keys of this JSON file

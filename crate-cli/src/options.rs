@@ -22,7 +22,7 @@ pub enum CliError {
 #[derive(Default, Args)]
 #[command(after_help = GROW_NOTES)]
 pub struct GrowOptions {
-    /// Start from this named parameter set (default: broad-leaf;
+    /// Start from this named parameter set (default: ovate-leaf;
     /// `ramulus presets` lists them)
     #[arg(long, value_name = "NAME", verbatim_doc_comment)]
     pub preset: Option<String>,
@@ -342,7 +342,7 @@ pub fn assemble_params(
             ))
         })?,
         (None, Some(_)) => Params::default(),
-        (None, None) => preset("broad-leaf").unwrap_or_default(),
+        (None, None) => preset("ovate-leaf").unwrap_or_default(),
     };
     let mut object = match serde_json::to_value(&base) {
         Ok(Value::Object(object)) => object,

@@ -301,8 +301,9 @@ fn presets_json_lists_every_preset() {
         assert_eq!(params, preset.params, "{}: params differ", preset.name);
     }
     for name in [
-        "broad-leaf",
-        "narrow-leaf",
+        "ovate-leaf",
+        "elliptic-leaf",
+        "lanceolate-leaf",
         "filled-outline",
         "drainage-site",
         "spanning-tree",

@@ -1,7 +1,9 @@
-//! Named parameter presets (`Preset`, `presets`, `preset`): two leaves whose outline emerges
-//! from the costs, a leaf that fills a given outline, two drainage sites (one drawn by hand in
-//! cells, one read from the demo site file `examples/sites/community-garden.geojson`), and the
-//! spanning-tree reference.
+//! Named parameter presets (`Preset`, `presets`, `preset`): three leaves named for their
+//! botanical shape class (ovate, elliptic, lanceolate), each growing from its petiole to fill
+//! a blade outline of its class; a leaf that fills a heart-shaped outline; two drainage sites
+//! (one drawn by hand in cells, one read from the demo site file
+//! `examples/sites/community-garden.geojson`); and the spanning-tree reference. Earlier names
+//! stay accepted (`PRESET_ALIASES`).
 
 use crate::params::{CostWeights, Domain, RunControl, Widths};
 use serde::Serialize;
@@ -26,16 +28,22 @@ pub struct Preset {
 pub fn presets() -> Vec<Preset> {
     vec![
         Preset {
-            name: "broad-leaf",
-            title: "Broad leaf (egg-shaped blade)",
-            description: "open growth: an egg-shaped blade around a midrib, petiole at the base",
-            params: broad_leaf(),
+            name: "ovate-leaf",
+            title: "Ovate leaf (egg-shaped blade)",
+            description: "an egg-shaped blade, widest below the middle, about 1.7 times as long as wide, grown from the petiole with the midrib to the apex",
+            params: ovate_leaf(),
         },
         Preset {
-            name: "narrow-leaf",
-            title: "Narrow leaf (long, tapering blade)",
-            description: "open growth: a long, tapering blade, petiole at the base",
-            params: narrow_leaf(),
+            name: "elliptic-leaf",
+            title: "Elliptic leaf (oval blade)",
+            description: "an oval blade, widest at the middle, about 2.4 times as long as wide, grown from the petiole with the midrib to the apex",
+            params: elliptic_leaf(),
+        },
+        Preset {
+            name: "lanceolate-leaf",
+            title: "Lanceolate leaf (long, tapering blade)",
+            description: "a lance-shaped blade, widest below the middle, about 3.5 times as long as wide, tapering to the apex, grown from the petiole",
+            params: lanceolate_leaf(),
         },
         Preset {
             name: "filled-outline",
@@ -64,8 +72,18 @@ pub fn presets() -> Vec<Preset> {
     ]
 }
 
-/// The parameters of a preset by name.
+/// Names of earlier releases that still pick a preset: `(old name, preset name)`.
+pub const PRESET_ALIASES: [(&str, &str); 2] = [
+    ("broad-leaf", "ovate-leaf"),
+    ("narrow-leaf", "elliptic-leaf"),
+];
+
+/// The parameters of a preset by name (or by an earlier name, `PRESET_ALIASES`).
 pub fn preset(name: &str) -> Option<Params> {
+    let name = PRESET_ALIASES
+        .iter()
+        .find(|(old, _)| *old == name)
+        .map_or(name, |(_, new)| *new);
     presets()
         .into_iter()
         .find(|preset| preset.name == name)
@@ -99,58 +117,138 @@ fn leaf_base() -> Params {
     }
 }
 
-fn broad_leaf() -> Params {
+/// A leaf blade of one shape class grown from its petiole: the blade's outline is given
+/// (`blade_outline`), growth starts at the petiole at the outline's base, keeps off everything
+/// behind it (`front_only`) and fills the outline; elongation along the petiole's axis draws the
+/// midrib toward the apex.
+struct LeafShape {
+    /// Blade length, base to apex, in cells.
+    length: f64,
+    /// Largest blade width in cells.
+    width: f64,
+    /// Exponents of the width profile near the base and near the apex (`blade_outline`).
+    base_exponent: f64,
+    apex_exponent: f64,
+    elongation: f64,
+    branch_angle: f64,
+    seed: u64,
+}
+
+/// Cells left free around the blade on every side of the lattice.
+const LEAF_MARGIN: u32 = 6;
+
+fn shaped_leaf(shape: LeafShape) -> Params {
+    let width = shape.width.ceil() as u32 + 2 * LEAF_MARGIN;
+    let height = shape.length.ceil() as u32 + 2 * LEAF_MARGIN;
+    let centre_x = f64::from(width) / 2.0;
+    // The outline's base lies two cells below the petiole's cell, so the petiole is inside.
+    let root_y = height - LEAF_MARGIN - 2;
+    let base_y = f64::from(root_y) + 2.5;
+    let outline = blade_outline(
+        centre_x,
+        base_y,
+        shape.length,
+        shape.width,
+        shape.base_exponent,
+        shape.apex_exponent,
+        96,
+    );
+    let cells = (shape.length * shape.width) as u64;
     Params {
         domain: Domain {
-            width: 220,
-            height: 300,
+            width,
+            height,
             roots: vec![Root {
-                x: 110,
-                y: 270,
+                x: width / 2,
+                y: root_y,
                 outflow: [0.0, 1.0],
             }],
+            outline: Some(outline),
+            front_only: true,
             ..leaf_base().domain
         },
         costs: CostWeights {
-            elongation: 3.0,
+            elongation: shape.elongation,
             rear_cost: 3.0,
-            branch_angle: Some(50.0),
+            branch_angle: Some(shape.branch_angle),
             ..leaf_base().costs
         },
         run: RunControl {
-            seed: 7,
-            threshold: Some(10.0),
+            seed: shape.seed,
+            cells,
             ..leaf_base().run
         },
         ..leaf_base()
     }
 }
 
-fn narrow_leaf() -> Params {
-    Params {
-        domain: Domain {
-            width: 160,
-            height: 340,
-            roots: vec![Root {
-                x: 80,
-                y: 315,
-                outflow: [0.0, 1.0],
-            }],
-            ..leaf_base().domain
-        },
-        costs: CostWeights {
-            elongation: 5.0,
-            rear_cost: 5.0,
-            branch_angle: Some(45.0),
-            ..leaf_base().costs
-        },
-        run: RunControl {
-            seed: 11,
-            threshold: Some(9.0),
-            ..leaf_base().run
-        },
-        ..leaf_base()
+/// A blade outline, base at `(centre_x, base_y)`, apex `length` cells up the page, as `points`
+/// polygon vertices in cell coordinates. The half-width at the fraction `t` of the length from
+/// the base is `width / 2 * (t^a (1 - t)^b) / (p^a (1 - p)^b)`, widest (`width`) at
+/// `p = a / (a + b)`: `a = b = 1/2` is an ellipse (elliptic), `b > a` puts the widest part below
+/// the middle (ovate, lanceolate when long), `a > b` above it (obovate).
+fn blade_outline(
+    centre_x: f64,
+    base_y: f64,
+    length: f64,
+    width: f64,
+    a: f64,
+    b: f64,
+    points: usize,
+) -> Vec<[f64; 2]> {
+    let p = a / (a + b);
+    let peak = libm::pow(p, a) * libm::pow(1.0 - p, b);
+    let half = |t: f64| width / 2.0 * libm::pow(t, a) * libm::pow(1.0 - t, b) / peak;
+    let side = points / 2;
+    // Points bunched toward base and apex (t = (1 - cos s) / 2), where the outline turns.
+    let along =
+        |index: usize| (1.0 - libm::cos(std::f64::consts::PI * index as f64 / side as f64)) / 2.0;
+    let mut outline = Vec::with_capacity(2 * side);
+    for index in 0..=side {
+        let t = along(index);
+        outline.push([centre_x + half(t), base_y - t * length]);
     }
+    for index in (1..side).rev() {
+        let t = along(index);
+        outline.push([centre_x - half(t), base_y - t * length]);
+    }
+    outline
+}
+
+fn ovate_leaf() -> Params {
+    shaped_leaf(LeafShape {
+        length: 310.0,
+        width: 180.0,
+        base_exponent: 0.5,
+        apex_exponent: 0.85,
+        elongation: 3.0,
+        branch_angle: 50.0,
+        seed: 7,
+    })
+}
+
+fn elliptic_leaf() -> Params {
+    shaped_leaf(LeafShape {
+        length: 360.0,
+        width: 150.0,
+        base_exponent: 0.5,
+        apex_exponent: 0.5,
+        elongation: 4.0,
+        branch_angle: 45.0,
+        seed: 11,
+    })
+}
+
+fn lanceolate_leaf() -> Params {
+    shaped_leaf(LeafShape {
+        length: 400.0,
+        width: 112.0,
+        base_exponent: 0.55,
+        apex_exponent: 1.1,
+        elongation: 6.0,
+        branch_angle: 40.0,
+        seed: 13,
+    })
 }
 
 fn filled_outline() -> Params {

@@ -38,6 +38,9 @@ pub fn allowed_cells(params: &Params) -> Vec<bool> {
     for obstacle in &params.domain.obstacles {
         fill_polygon(&mut allowed, width, height, obstacle, true);
     }
+    if params.domain.front_only {
+        clear_behind_roots(&mut allowed, width, params);
+    }
     allowed
 }
 
@@ -65,6 +68,40 @@ pub fn zone_cells(params: &Params) -> Vec<u16> {
         }
     }
     zone_of
+}
+
+/// The rule of `front_only`: a cell is kept out when its centre lies strictly behind the line
+/// through every root's centre across that root's outflow, i.e. `(c - r) . u > 0` for the
+/// cell centre `c`, the root centre `r` and the root's outflow `u` (flow leaves through the
+/// petiole, so the blade lies on the side the outflow points away from). Cells on the line
+/// stay, so the root's own row is open. With several roots a cell stays when it lies in front
+/// of at least one of them.
+fn clear_behind_roots(allowed: &mut [bool], width: usize, params: &Params) {
+    let roots: Vec<(f64, f64, f64, f64)> = params
+        .domain
+        .roots
+        .iter()
+        .map(|root| {
+            let [dx, dy] = root.outflow;
+            // Only the sign of the dot product matters, so the outflow need not be unit.
+            (f64::from(root.x), f64::from(root.y), dx, dy)
+        })
+        .collect();
+    if roots.is_empty() || width == 0 {
+        return;
+    }
+    for (index, cell) in allowed.iter_mut().enumerate() {
+        if !*cell {
+            continue;
+        }
+        let (column, row) = ((index % width) as f64, (index / width) as f64);
+        let behind_all = roots
+            .iter()
+            .all(|&(x, y, dx, dy)| (column - x) * dx + (row - y) * dy > 0.0);
+        if behind_all {
+            *cell = false;
+        }
+    }
 }
 
 /// Whether a run of validated `params` can start on its `allowed` cells: at least one allowed

@@ -46,9 +46,10 @@ pub const JUNCTION_BYTES_PER_GROWN_CELL: u64 = 760;
 pub struct RunMemory {
     /// The cell budget asked for.
     pub budget: u64,
-    /// Cells the run can grow at most: the budget or the lattice, whichever is smaller.
+    /// Cells the run can grow at most: the budget or the lattice, whichever is smaller (in
+    /// refined cells when refined).
     pub grown_cells: u64,
-    /// Lattice cells (width x height).
+    /// Lattice cells (width x height, times refine^2 when refined).
     pub lattice_cells: u64,
     /// Estimated peak bytes of the run on the page.
     pub bytes: u64,
@@ -60,7 +61,10 @@ pub struct RunMemory {
 impl RunMemory {
     /// The estimate for a run with these parameters.
     pub fn of(params: &Params) -> RunMemory {
-        let lattice_cells = u64::from(params.domain.width) * u64::from(params.domain.height);
+        // A refined run grows on refine x refine cells per given cell (`refine`).
+        let factor = u64::from(params.domain.refine.max(1)).pow(2);
+        let lattice_cells =
+            u64::from(params.domain.width) * u64::from(params.domain.height) * factor;
         let junctions = params.run.attach_to_segments;
         let (per_lattice_cell, per_grown_cell) = if junctions {
             (
@@ -71,10 +75,12 @@ impl RunMemory {
             (LATTICE_BYTES_PER_CELL, BYTES_PER_GROWN_CELL)
         };
         let budget = params.run.cells;
-        let grown_cells = budget.min(lattice_cells);
+        let grown_cells = budget.saturating_mul(factor).min(lattice_cells);
         let base = FIXED_BYTES.saturating_add(lattice_cells.saturating_mul(per_lattice_cell));
         let bytes = base.saturating_add(grown_cells.saturating_mul(per_grown_cell));
-        let largest_budget = WASM_MEMORY_CEILING_BYTES.saturating_sub(base) / per_grown_cell;
+        // In the given cells, as the budget is typed.
+        let largest_budget =
+            WASM_MEMORY_CEILING_BYTES.saturating_sub(base) / per_grown_cell / factor;
         RunMemory {
             budget,
             grown_cells,
@@ -183,6 +189,19 @@ mod tests {
             message.contains(&grouped(memory.largest_budget)),
             "{message}"
         );
+    }
+
+    /// A refined run needs what the same run on the refined lattice needs (`refine` 2: a
+    /// lattice twice as wide and tall, four times the budget), and its largest budget is
+    /// offered in the given cells.
+    #[test]
+    fn a_refined_run_is_estimated_on_its_refined_lattice() {
+        let refined = estimate("v=1&width=1000&height=800&roots=10,10,0,1&cells=300000&refine=2");
+        let fine = estimate("v=1&width=2000&height=1600&roots=20,20,0,1&cells=1200000");
+        assert_eq!(refined.bytes, fine.bytes);
+        assert_eq!(refined.lattice_cells, fine.lattice_cells);
+        assert_eq!(refined.budget, 300_000);
+        assert_eq!(refined.largest_budget, fine.largest_budget / 4);
     }
 
     /// The largest budget fits and one cell more does not, on several lattices.

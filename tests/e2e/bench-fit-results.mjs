@@ -21,7 +21,7 @@ try {
   await finishedDigest(page);
   const link = await page.evaluate((cells) => {
     const core = window.ramulusPage.state.session.core;
-    const preset = JSON.parse(core.presets_json()).find((entry) => entry.name === 'broad-leaf');
+    const preset = JSON.parse(core.presets_json()).find((entry) => entry.name === 'ovate-leaf');
     let text = preset.link;
     for (const [key, value] of [['cells', String(cells)], ['alpha', '0.6'], ['seed', '3']]) {
       text = JSON.parse(core.set_link_field(text, key, value)).link;

@@ -36,7 +36,7 @@ try {
   // The specimen: broad-leaf with the cell budget, alpha 0.6 and seed 3, grown on the page.
   const link = await page.evaluate((cells) => {
     const core = window.ramulusPage.state.session.core;
-    const preset = JSON.parse(core.presets_json()).find((entry) => entry.name === 'broad-leaf');
+    const preset = JSON.parse(core.presets_json()).find((entry) => entry.name === 'ovate-leaf');
     let text = preset.link;
     for (const [key, value] of [['cells', String(cells)], ['alpha', '0.6'], ['seed', '3']]) {
       text = JSON.parse(core.set_link_field(text, key, value)).link;

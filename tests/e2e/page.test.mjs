@@ -42,7 +42,7 @@ test('a preset played to its end shows the digest the native command line prints
   const page = await newPage(context);
   await page.goto(site.url);
   await finishedDigest(page);
-  for (const name of ['narrow-leaf', 'drainage-site']) {
+  for (const name of ['elliptic-leaf', 'drainage-site']) {
     await page.selectOption('#start-from', name);
     const digest = await finishedDigest(page);
     const fragment = await fragmentOf(page);
@@ -82,7 +82,7 @@ test('the SVG export parses as XML and holds one segment element per segment', a
 test('a copied link opened in a new page reproduces the digest', async () => {
   const page = await newPage(context);
   await page.goto(site.url);
-  await page.selectOption('#start-from', 'narrow-leaf');
+  await page.selectOption('#start-from', 'elliptic-leaf');
   await page.fill('#param-seed', '90210');
   await page.press('#param-seed', 'Tab');
   const digest = await finishedDigest(page);
@@ -102,7 +102,7 @@ test('a copied link opened in a new page reproduces the digest', async () => {
 test('a damaged fragment names the bad fields, falls back to defaults and still grows', async () => {
   const page = await newPage(context);
   await page.goto(site.url);
-  await page.selectOption('#start-from', 'narrow-leaf');
+  await page.selectOption('#start-from', 'elliptic-leaf');
   await finishedDigest(page);
   const damaged = (await fragmentOf(page))
     .replace('alpha=0.5', 'alpha=banana')

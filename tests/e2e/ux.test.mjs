@@ -219,17 +219,18 @@ test('Fit brings the zoomed-out network back to fill the canvas', async () => {
   await page.close();
 });
 
-test('a run that stops at its threshold before the budget shows a complete bar and why', async () => {
+test('a run that stops before the budget shows a complete bar and why', async () => {
   const page = await openAt(1400);
   const native = nativeRun(await fragmentOf(page));
   const budget = await page.evaluate(() => window.ramulusPage.state.simulation.budget());
-  // The first leaf is open growth: the native run stops at its threshold short of the budget.
-  assert.equal(native.stopped, 'threshold');
+  // The first leaf fills its blade outline: the native run stops when no allowed cell is left,
+  // short of the budget (the outline's length times its width).
+  assert.equal(native.stopped, 'full');
   assert.ok(native.cells < budget, `${native.cells} of ${budget}`);
   const bar = await page.evaluate(() => ({ value: document.getElementById('progress').value, max: document.getElementById('progress').max }));
   assert.equal(bar.value, bar.max, 'the bar is full');
   const text = await page.textContent('#progress-text');
-  assert.match(text, new RegExp(`^${native.cells.toLocaleString('en')} of ${budget.toLocaleString('en')} cells, complete before the budget: .*threshold`));
+  assert.match(text, new RegExp(`^${native.cells.toLocaleString('en')} of ${budget.toLocaleString('en')} cells, complete before the budget: no allowed cell left`));
   assert.deepEqual(page.errors, []);
   await page.close();
 });

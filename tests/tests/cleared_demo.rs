@@ -8,7 +8,7 @@
 use ramulus_core::cleared::decode::decode_image;
 use ramulus_core::cleared::{build_cleared_specimen, ClearedOptions};
 use ramulus_core::growth::Growth;
-use ramulus_core::params::Params;
+use ramulus_core::params::{Params, Root};
 use ramulus_core::presets::preset;
 use ramulus_core::run::RunView;
 use ramulus_core::specimen::SpecimenOptions;
@@ -26,7 +26,22 @@ fn demo_path() -> std::path::PathBuf {
 }
 
 fn grown() -> (RunView, Params) {
-    let mut params = preset("broad-leaf").expect("preset");
+    // The open-growth broad leaf of earlier releases (the demo image was drawn from it): the
+    // ovate preset's costs without its outline, petiole rule and outline-sized lattice.
+    let mut params = preset("ovate-leaf").expect("preset");
+    params.domain.width = 220;
+    params.domain.height = 300;
+    params.domain.roots = vec![Root {
+        x: 110,
+        y: 270,
+        outflow: [0.0, 1.0],
+    }];
+    params.domain.outline = None;
+    params.domain.front_only = false;
+    params.costs.elongation = 3.0;
+    params.costs.rear_cost = 3.0;
+    params.costs.branch_angle = Some(50.0);
+    params.run.threshold = Some(10.0);
     params.run.cells = 3000;
     params.run.seed = 21;
     let mut growth = Growth::new(&params).expect("valid");

@@ -207,7 +207,14 @@ fn unknown_fields_versions_and_escapes_are_reported_not_fatal() {
 /// does not fit, and the lattice size is reset too.
 #[test]
 fn fields_that_do_not_fit_together_are_reset_in_turn() {
-    let base = presets()[0].params.clone();
+    // A 220 x 300 lattice with its root at (110, 270), as the open-growth broad leaf of
+    // earlier releases had.
+    let mut base = presets()[0].params.clone();
+    base.domain.width = 220;
+    base.domain.height = 300;
+    base.domain.roots[0].x = 110;
+    base.domain.roots[0].y = 270;
+    base.domain.outline = None;
     assert_eq!((base.domain.roots[0].x, base.domain.height), (110, 300));
     let read = decode_link(&replace_field(&encode_link(&base), "width", "100"));
     assert_eq!(

@@ -9,7 +9,8 @@ impl Growth {
     pub(super) fn offer(&mut self, centre_cell: usize, node: u32) {
         let (column, row) = self.lattice.column_row(centre_cell);
         let node_anchor = self.node_anchor(node);
-        let segment = self.params.run.attach_to_segments && self.parent[node as usize] != NO_PARENT;
+        let segment =
+            self.refined.run.attach_to_segments && self.parent[node as usize] != NO_PARENT;
         for offset_index in 0..self.lattice.offsets.len() {
             let (dx, dy) = self.lattice.offsets[offset_index];
             let Some((cell, cell_column, cell_row)) =
@@ -93,7 +94,7 @@ impl Growth {
                     .model
                     .supply_length(to_parent_x, to_parent_y, axis_x, axis_y),
             transport: self.transport[parent]
-                + rest * marginal(self.flow[index], self.cell_weight, self.params.costs.alpha),
+                + rest * marginal(self.flow[index], self.cell_weight, self.refined.costs.alpha),
             axis_x,
             axis_y,
             is_tip: false,
@@ -180,7 +181,7 @@ impl Growth {
             if state < FRONTIER_TAG {
                 candidates[0] = state;
             }
-            if self.params.run.attach_to_segments {
+            if self.refined.run.attach_to_segments {
                 candidates[1] = self.junction_head[other];
             }
             for (kind, &first) in candidates.iter().enumerate() {
@@ -200,7 +201,7 @@ impl Growth {
                             along: 0.0,
                         },
                     );
-                    if self.params.run.attach_to_segments {
+                    if self.refined.run.attach_to_segments {
                         if let Some((cost, attachment)) = self.best_on_segment(cx, cy, ground, node)
                         {
                             visit(cost, attachment);

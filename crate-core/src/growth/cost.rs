@@ -1,5 +1,19 @@
-//! `CostModel`: the cost of joining a cell to an attachment point, term by term, in lattice
-//! units (lengths in cells, flows in cell weights).
+//! `CostModel`: the cost of joining a cell to an attachment point, term by term. Geometry comes
+//! in lattice units (lengths in cells, flows in cell weights); each term is turned into units of
+//! the given (unrefined) cell, so that a run with `refine` = r prices the same physical join as
+//! a run with `refine` = 1 (at r = 1 every factor is exactly 1 and the costs keep their bits):
+//! - length `w_len * L`: a length, times `1 / r`;
+//! - supply distance `w_path * (dist + supply)`: a length, times `1 / r`;
+//! - uphill `w_grade * 100 * rise`: a rise, a length, times `1 / r`;
+//! - transport `w_flow * D`, `D = sum L ((q + a)^alpha - q^alpha)` along the path to the root
+//!   with `a` one cell's flow: lengths scale by `1 / r` and flows by `1 / r^2`, and the sum is
+//!   taken per unit of the new cell's area (one cell of the given lattice is `a = 1`), so `D`
+//!   is multiplied by `r^-1 r^(-2 alpha) r^2 = r^(1 - 2 alpha)` (1 at `alpha` = 1/2); it
+//!   approaches the lattice-free `sum L alpha q^(alpha - 1)` as cells shrink;
+//! - junction angle `w_turn * turn`: an angle, dimensionless, the same at every cell size.
+//!   It is a price per join, not per length: a vein of given length is built from r times more
+//!   joins, but a straight run pays nothing and a branching point pays once, so the term does
+//!   not grow with refinement as long as veins do not zigzag.
 
 use crate::params::Params;
 
@@ -48,13 +62,20 @@ pub(crate) struct CostModel {
     /// With spot levels: `1 / cell_size`, turning a rise in the length unit into a rise in
     /// cells (the unit of `grade_x * vx`); none without levels (the tilted plane counts).
     pub levels_scale: Option<f64>,
+    /// Coarse-cell lengths per lattice length: `1 / refine` (exactly 1 without refinement).
+    pub length_unit: f64,
+    /// Factor of the transport term: `refine^(1 - 2 alpha)` (exactly 1 without refinement).
+    pub transport_unit: f64,
     /// Whether only the length term counts (every other weight is not positive), so the cost
     /// of an anchor needs nothing but its position (`length_cost`).
     pub length_only: bool,
 }
 
 impl CostModel {
-    pub fn new(params: &Params) -> CostModel {
+    /// The model of `params` (on the lattice growth runs on) refined by `refine` from the given
+    /// lattice (1 when not refined).
+    pub fn new(params: &Params, refine: u32) -> CostModel {
+        let r = f64::from(refine.max(1));
         let preferred = params.costs.branch_angle.map(|degrees| {
             let radians = degrees.to_radians();
             (libm::cos(radians), libm::sin(radians))
@@ -71,6 +92,8 @@ impl CostModel {
             grade_x: params.domain.grade_x,
             grade_y: params.domain.grade_y,
             levels_scale: (!params.domain.levels.is_empty()).then(|| 1.0 / params.domain.cell_size),
+            length_unit: 1.0 / r,
+            transport_unit: libm::pow(r, 1.0 - 2.0 * params.costs.alpha),
             // Validated weights are finite and not negative, so `<= 0` is "the term is off".
             length_only: params.costs.w_turn <= 0.0
                 && params.costs.w_flow <= 0.0
@@ -86,7 +109,7 @@ impl CostModel {
         let vx = anchor.x - x;
         let vy = anchor.y - y;
         let length = (vx * vx + vy * vy).sqrt();
-        let mut cost = self.w_len * length;
+        let mut cost = self.w_len * (length * self.length_unit);
         if self.length_only {
             return cost;
         }
@@ -94,7 +117,7 @@ impl CostModel {
             cost += self.w_turn * self.turn(vx / length, vy / length, anchor);
         }
         if self.w_flow > 0.0 {
-            cost += self.w_flow * anchor.transport;
+            cost += self.w_flow * (anchor.transport * self.transport_unit);
         }
         if self.w_path > 0.0 {
             // Without elongation or rear cost the supply length is `length` itself (the same
@@ -104,7 +127,7 @@ impl CostModel {
             } else {
                 self.supply_length(vx, vy, anchor.axis_x, anchor.axis_y)
             };
-            cost += self.w_path * (anchor.dist + supply);
+            cost += self.w_path * ((anchor.dist + supply) * self.length_unit);
         }
         if self.w_grade > 0.0 {
             // Rise of the anchor over the cell, in cells, counted in percent of one cell
@@ -115,7 +138,7 @@ impl CostModel {
                 None => self.grade_x * vx + self.grade_y * vy,
             };
             if rise > 0.0 {
-                cost += self.w_grade * 100.0 * rise;
+                cost += self.w_grade * 100.0 * (rise * self.length_unit);
             }
         }
         cost
@@ -128,7 +151,7 @@ impl CostModel {
         debug_assert!(self.length_only);
         let vx = anchor_x - x;
         let vy = anchor_y - y;
-        self.w_len * (vx * vx + vy * vy).sqrt()
+        self.w_len * ((vx * vx + vy * vy).sqrt() * self.length_unit)
     }
 
     /// Junction-angle penalty for flow leaving the cell along unit `(fx, fy)`:
@@ -244,7 +267,7 @@ mod tests {
             w_grade: 1.0,
             ..CostWeights::default()
         };
-        let model = CostModel::new(&params);
+        let model = CostModel::new(&params, 1);
         let mut higher = anchor(0.0, 1.0);
         higher.ground = 10.1;
         assert!((model.cost(1.0, 0.0, 10.0, &higher) - 20.0).abs() < 1e-9);
@@ -254,7 +277,7 @@ mod tests {
 
     #[test]
     fn turn_is_zero_straight_on_and_one_at_right_angles() {
-        let model = CostModel::new(&Params::default());
+        let model = CostModel::new(&Params::default(), 1);
         // Flow from the cell to the anchor goes +y, the anchor drains +y: straight on.
         assert_eq!(model.turn(0.0, 1.0, &anchor(0.0, 1.0)), 0.0);
         assert!((model.turn(1.0, 0.0, &anchor(0.0, 1.0)) - 1.0).abs() < 1e-15);
@@ -270,7 +293,7 @@ mod tests {
             },
             ..Params::default()
         };
-        let model = CostModel::new(&params);
+        let model = CostModel::new(&params, 1);
         let radians = 60f64.to_radians();
         let (fx, fy) = (radians.sin(), radians.cos());
         assert!(model.turn(fx, fy, &anchor(0.0, 1.0)).abs() < 1e-12);
@@ -311,7 +334,7 @@ mod tests {
             },
             ..Params::default()
         };
-        let model = CostModel::new(&params);
+        let model = CostModel::new(&params, 1);
         assert!((model.supply_length(0.0, 4.0, 0.0, 1.0) - 2.0).abs() < 1e-15);
         assert!((model.supply_length(4.0, 0.0, 0.0, 1.0) - 4.0).abs() < 1e-15);
     }
@@ -325,7 +348,7 @@ mod tests {
             },
             ..Params::default()
         };
-        let model = CostModel::new(&params);
+        let model = CostModel::new(&params, 1);
         assert!((model.supply_length(0.0, -2.0, 0.0, 1.0) - 6.0).abs() < 1e-15);
         assert!((model.supply_length(0.0, 2.0, 0.0, 1.0) - 2.0).abs() < 1e-15);
     }

@@ -6,19 +6,19 @@ use super::*;
 impl Growth {
     /// Joining weight of a cost under the current rule (0 when not eligible).
     pub(super) fn weight(&mut self, cost: f64) -> f64 {
-        if let Some(threshold) = self.params.run.threshold {
+        if let Some(threshold) = self.refined.run.threshold {
             if cost >= threshold {
                 return 0.0;
             }
         }
-        match self.params.run.joining {
+        match self.refined.run.joining {
             Joining::Cheapest => 0.0,
             Joining::Uniform => 1.0,
             Joining::Weighted => {
                 if self.weight_reference.is_nan() {
                     self.weight_reference = cost;
                 }
-                let exponent = (self.weight_reference - cost) / self.params.run.temperature;
+                let exponent = (self.weight_reference - cost) / self.refined.run.temperature;
                 libm::exp(exponent.min(WEIGHT_CEILING_EXPONENT))
             }
         }
@@ -31,9 +31,9 @@ impl Growth {
             None => return,
         };
         let reference = self.weight_reference;
-        let temperature = self.params.run.temperature;
-        let threshold = self.params.run.threshold;
-        let joining = self.params.run.joining;
+        let temperature = self.refined.run.temperature;
+        let threshold = self.refined.run.threshold;
+        let joining = self.refined.run.joining;
         self.frontier.reweigh(|slot| {
             if threshold.is_some_and(|threshold| slot.cost >= threshold) {
                 return 0.0;
@@ -55,19 +55,19 @@ impl Growth {
                 return Err(StopReason::Full);
             };
             if self
-                .params
+                .refined
                 .run
                 .threshold
                 .is_some_and(|threshold| cheapest_cost >= threshold)
             {
                 return Err(StopReason::Threshold);
             }
-            let slot_index = match self.params.run.joining {
+            let slot_index = match self.refined.run.joining {
                 Joining::Cheapest => cheapest_slot,
                 Joining::Uniform | Joining::Weighted => {
                     let mut total = self.frontier.total_weight();
-                    let drifted = self.params.run.joining == Joining::Weighted
-                        && (self.weight_reference - cheapest_cost) / self.params.run.temperature
+                    let drifted = self.refined.run.joining == Joining::Weighted
+                        && (self.weight_reference - cheapest_cost) / self.refined.run.temperature
                             > WEIGHT_CEILING_EXPONENT * 0.5;
                     if total <= WEIGHT_FLOOR || !total.is_finite() || drifted {
                         self.reweigh();
@@ -89,7 +89,7 @@ impl Growth {
             } else {
                 Some((slot.cost, slot.best))
             };
-            if self.params.run.planar {
+            if self.refined.run.planar {
                 let cell = slot.cell as usize;
                 let (cx, cy) = self.lattice.position(cell);
                 if found.is_some_and(|(_, best)| self.crosses_network(cx, cy, best)) {
@@ -97,7 +97,7 @@ impl Growth {
                 }
             }
             let Some((cost, attachment)) = found else {
-                if self.params.run.planar {
+                if self.refined.run.planar {
                     // Every attachment within reach would cross a segment: the cell leaves the
                     // frontier until a new node within reach offers it one again.
                     self.frontier.remove(slot_index);
@@ -109,7 +109,7 @@ impl Growth {
             let still_valid = cost <= slot.cost + 1e-12;
             if still_valid
                 && !self
-                    .params
+                    .refined
                     .run
                     .threshold
                     .is_some_and(|threshold| cost >= threshold)

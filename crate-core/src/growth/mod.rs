@@ -13,6 +13,7 @@ mod frontier;
 mod joining;
 mod lattice;
 mod planar;
+mod refine;
 mod refresh;
 
 use rand_chacha::ChaCha8Rng;
@@ -60,7 +61,10 @@ pub struct StepReport {
 
 /// An incremental grower holding the lattice, the network so far and the frontier.
 pub struct Growth {
-    params: Params,
+    /// The parameters as given (`params()`).
+    given: Params,
+    /// The parameters growth runs on: the given ones on the refined lattice (`refine`).
+    refined: Params,
     model: CostModel,
     lattice: Lattice,
     frontier: Frontier,
@@ -123,16 +127,22 @@ const WEIGHT_CEILING_EXPONENT: f64 = 500.0;
 
 impl Growth {
     /// Validates the parameters and plants the roots. Fails with an error naming the parameter.
-    pub fn new(params: &Params) -> Result<Growth, ParamError> {
-        params.validate()?;
+    pub fn new(given: &Params) -> Result<Growth, ParamError> {
+        given.validate()?;
+        if given.domain.refine > 1 {
+            // Errors name the given cells, not the refined ones.
+            check_start(given, &allowed_cells(given))?;
+        }
+        let params = &refine::refined(given);
         let allowed = allowed_cells(params);
         check_start(params, &allowed)?;
         let lattice = Lattice::new(params, &allowed);
         let mut random = ChaCha8Rng::seed_from_u64(params.run.seed);
         random.set_stream(1);
         let mut growth = Growth {
-            params: params.clone(),
-            model: CostModel::new(params),
+            given: given.clone(),
+            refined: params.clone(),
+            model: CostModel::new(params, given.domain.refine),
             lattice,
             frontier: Frontier::new(params.run.joining != Joining::Cheapest),
             random,
@@ -216,7 +226,7 @@ impl Growth {
                 Ok((slot, attachment)) => {
                     self.join(slot, attachment);
                     added += 1;
-                    if self.cell_count >= self.params.run.cells {
+                    if self.cell_count >= self.refined.run.cells {
                         self.stopped = Some(StopReason::Budget);
                     }
                 }
@@ -245,7 +255,7 @@ impl Growth {
 
     /// The parameters this run was built from.
     pub fn params(&self) -> &Params {
-        &self.params
+        &self.given
     }
 
     /// Cells occupied so far (roots included).
@@ -266,7 +276,7 @@ impl Growth {
     /// The network so far in physical units: node `i` of the grower is node `i` here, and the
     /// segments run from each non-root node to its parent, in node order.
     pub fn network(&self) -> Network {
-        let size = self.params.domain.cell_size;
+        let size = self.refined.domain.cell_size;
         let cell_area = size * size;
         let nodes = (0..self.x.len())
             .map(|index| Node {
@@ -288,11 +298,11 @@ impl Growth {
             nodes,
             segments: segments_from_parents(&self.parent),
             area: self.cell_count as f64 * cell_area,
-            units: self.params.domain.units.clone(),
+            units: self.refined.domain.units.clone(),
             cell_size: size,
             cells: CellSet {
-                width: self.params.domain.width,
-                height: self.params.domain.height,
+                width: self.refined.domain.width,
+                height: self.refined.domain.height,
                 occupied,
             },
         }
@@ -331,7 +341,7 @@ impl Growth {
         self.root_of.reserve_exact(count);
         self.child_count.reserve_exact(count);
         self.cell_of.reserve_exact(count);
-        if self.params.run.attach_to_segments {
+        if self.refined.run.attach_to_segments {
             self.junction_next.reserve_exact(count);
         }
     }
@@ -361,7 +371,7 @@ impl Growth {
         self.root_of.push(root);
         self.child_count.push(0);
         self.cell_of.push(cell);
-        if self.params.run.attach_to_segments {
+        if self.refined.run.attach_to_segments {
             self.junction_next.push(NONE);
         }
         if let Some(surface) = &self.surface {
@@ -412,7 +422,7 @@ impl Growth {
         let dist = self.dist[t] + self.model.supply_length(vx, vy, axis_x, axis_y);
         let own = self.own_weight(cell);
         let transport =
-            self.transport[t] + length * marginal(own, self.cell_weight, self.params.costs.alpha);
+            self.transport[t] + length * marginal(own, self.cell_weight, self.refined.costs.alpha);
         let node = self.push_node(
             cx,
             cy,
@@ -425,7 +435,7 @@ impl Growth {
             cell as u32,
         );
         self.flow[node as usize] = own;
-        if self.params.run.planar {
+        if self.refined.run.planar {
             self.note_segment_length(node, target);
         }
         self.occupy(cell, node);

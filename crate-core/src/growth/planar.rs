@@ -24,8 +24,8 @@ impl Growth {
     pub(super) fn crosses_network(&self, cx: f64, cy: f64, attachment: Attachment) -> bool {
         let (ax, ay) = self.attachment_point(attachment);
         let margin = self.longest_segment + 1.0;
-        let last_x = self.params.domain.width as f64 - 1.0;
-        let last_y = self.params.domain.height as f64 - 1.0;
+        let last_x = self.refined.domain.width as f64 - 1.0;
+        let last_y = self.refined.domain.height as f64 - 1.0;
         let first_column = (cx.min(ax) - margin).floor().clamp(0.0, last_x) as u32;
         let last_column = (cx.max(ax) + margin).floor().clamp(0.0, last_x) as u32;
         let first_row = (cy.min(ay) - margin).floor().clamp(0.0, last_y) as u32;
@@ -41,7 +41,7 @@ impl Growth {
                 if state < FRONTIER_TAG && self.segment_conflicts(state, &new, attachment) {
                     return true;
                 }
-                if self.params.run.attach_to_segments {
+                if self.refined.run.attach_to_segments {
                     let mut junction = self.junction_head[cell];
                     while junction != NONE {
                         if self.segment_conflicts(junction, &new, attachment) {

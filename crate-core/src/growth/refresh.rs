@@ -7,11 +7,11 @@ impl Growth {
     /// Recomputes flows and transport costs exactly when the network has grown by `refresh`
     /// since the last time, then re-prices every frontier cell's stored attachment.
     pub(super) fn maybe_refresh(&mut self) {
-        if self.params.costs.w_flow == 0.0 {
+        if self.refined.costs.w_flow == 0.0 {
             return;
         }
         let nodes = self.x.len();
-        let due = self.last_refresh_nodes as f64 * (1.0 + self.params.run.refresh);
+        let due = self.last_refresh_nodes as f64 * (1.0 + self.refined.run.refresh);
         if (nodes as f64) < due.max(self.last_refresh_nodes as f64 + 8.0) {
             return;
         }
@@ -85,7 +85,7 @@ impl Growth {
                 self.flow[parent as usize] += self.flow[node as usize];
             }
         }
-        let mut marginals = MarginalMemo::new(self.cell_weight, self.params.costs.alpha);
+        let mut marginals = MarginalMemo::new(self.cell_weight, self.refined.costs.alpha);
         for &node in &self.scratch_order {
             let node = node as usize;
             let parent = self.parent[node];
@@ -123,7 +123,7 @@ impl Growth {
                 self.flow[parent as usize] += self.flow[node];
             }
         }
-        let mut marginals = MarginalMemo::new(self.cell_weight, self.params.costs.alpha);
+        let mut marginals = MarginalMemo::new(self.cell_weight, self.refined.costs.alpha);
         for node in 0..count {
             let parent = self.parent[node];
             if parent == NO_PARENT {

@@ -24,6 +24,7 @@ mod densities;
 mod hack;
 mod loops;
 mod nesting;
+pub mod margin;
 mod outline;
 mod regression;
 mod strahler_horton;
@@ -31,6 +32,7 @@ mod table;
 mod tortuosity;
 mod transport;
 
+pub use outline::blade_length_width;
 pub use table::{
     metric_readme_table, metric_rows, metric_rows_explained, metric_rows_noted, metrics_csv,
     AppliesTo, Measured, MetricEntry, MetricUnit, Reading, METRIC_TABLE,
@@ -152,8 +154,8 @@ pub struct Metrics {
     /// Length of the outline traced by marching squares over the occupied cells, in units;
     /// `None` without cells or without a positive cell size.
     pub outline_perimeter: Option<f64>,
-    /// Circularity `4 pi A / P^2` of the outline (dimensionless, 1 for a circle); `None`
-    /// without cells.
+    /// Circularity `4 pi A / P^2` of the smooth margin (`margin::blade_margin`; dimensionless,
+    /// 1 for a circle); `None` without cells or for a lone cell.
     pub circularity: Option<f64>,
     /// Aspect ratio `sqrt(lambda_1 / lambda_2)` of the covariance of occupied cell centres,
     /// largest eigenvalue over smallest (dimensionless, >= 1); `None` with fewer than two cells

@@ -1,5 +1,6 @@
 //! Outline of the occupied lattice cells (`OutlineMeasures`): area, marching-squares perimeter,
-//! circularity and the aspect ratio of the cell centres' covariance.
+//! the circularity of the smooth margin (`margin`), the aspect ratio of the cell centres'
+//! covariance, and the blade's length to width ratio (`blade_length_width`).
 
 use crate::network::CellSet;
 
@@ -10,7 +11,7 @@ pub(crate) struct OutlineMeasures {
     pub(crate) area: Option<f64>,
     /// Marching-squares contour length, in length units.
     pub(crate) perimeter: Option<f64>,
-    /// `4 pi A / P^2`, from the cell count and the contour length in cell units.
+    /// `4 pi A / P^2` of the smooth margin (`margin`), in cell units.
     pub(crate) circularity: Option<f64>,
     /// `sqrt(lambda_1 / lambda_2)` of the covariance of occupied cell centres.
     pub(crate) aspect_ratio: Option<f64>,
@@ -22,7 +23,23 @@ pub(crate) struct OutlineMeasures {
 /// perimeter need a positive, finite `cell_size`; circularity and aspect ratio do not depend on
 /// it and are computed in cell units.
 pub(crate) fn measure_outline(cells: &CellSet, cell_size: f64) -> OutlineMeasures {
-    measure_outline_of(&OccupiedCells::new(cells, true), cell_size)
+    let measures = measure_outline_of(&OccupiedCells::new(cells, true), cell_size);
+    OutlineMeasures {
+        circularity: measures.circularity.and(margin_circularity(cells)),
+        ..measures
+    }
+}
+
+/// Circularity `4 pi A / P^2` of the smooth margin (`margin::blade_margin`), with `A` and `P`
+/// summed over its polygons; `None` when the margin has no length (a lone cell).
+fn margin_circularity(cells: &CellSet) -> Option<f64> {
+    let (area, perimeter) = super::margin::blade_margin(cells)
+        .iter()
+        .map(|polygon| super::margin::polygon_area_perimeter(polygon))
+        .fold((0.0, 0.0), |(a, p), (area, perimeter)| {
+            (a + area, p + perimeter)
+        });
+    (perimeter > 0.0).then(|| 4.0 * core::f64::consts::PI * area / (perimeter * perimeter))
 }
 
 /// `measure_outline` on cells already gathered.
@@ -48,6 +65,35 @@ fn measure_outline_of(grid: &OccupiedCells, cell_size: f64) -> OutlineMeasures {
         circularity,
         aspect_ratio: grid.aspect_ratio(),
     }
+}
+
+/// Length to width ratio of a blade (the laminar L:W ratio of leaf-architecture manuals):
+/// the extent of the occupied cells along `axis` (base to apex, the midrib's direction) over
+/// their largest extent across it, each cell counted as its unit square (extents of cell
+/// centres plus one cell). `None` when no cell lies inside the lattice or the axis has no
+/// direction. Independent of the cell size.
+pub fn blade_length_width(cells: &CellSet, axis: [f64; 2]) -> Option<f64> {
+    let norm = (axis[0] * axis[0] + axis[1] * axis[1]).sqrt();
+    if !(norm > 0.0 && norm.is_finite()) {
+        return None;
+    }
+    let (ux, uy) = (axis[0] / norm, axis[1] / norm);
+    let width = u64::from(cells.width);
+    let total = width * u64::from(cells.height);
+    let mut along = (f64::INFINITY, f64::NEG_INFINITY);
+    let mut across = (f64::INFINITY, f64::NEG_INFINITY);
+    for &index in &cells.occupied {
+        let index = u64::from(index);
+        if index >= total {
+            continue;
+        }
+        let (x, y) = ((index % width) as f64 + 0.5, (index / width) as f64 + 0.5);
+        let a = x * ux + y * uy;
+        let c = x * uy - y * ux;
+        along = (along.0.min(a), along.1.max(a));
+        across = (across.0.min(c), across.1.max(c));
+    }
+    (along.0 <= along.1).then(|| (along.1 - along.0 + 1.0) / (across.1 - across.0 + 1.0))
 }
 
 /// Occupied cells inside the lattice, distinct, in row-major order: a grid of flags over the

@@ -74,7 +74,22 @@ pub struct Domain {
     /// centre lies inside takes the coefficient of the last zone listed that holds it; cells
     /// in no zone take `runoff`. Default none (empty); at most `MAX_ZONES`.
     pub zones: Vec<Zone>,
+    /// Lattice refinement: every cell is split into `refine x refine` cells before growth while
+    /// every physical quantity keeps its value (growth applies it). Default 1; 1 ..= 4;
+    /// 1 for parameters saved before the key existed.
+    #[serde(default = "one")]
+    pub refine: u32,
+    /// Whether cells behind the line through a root across its outflow (behind the petiole)
+    /// are kept out of growth. Default false; false in parameters saved before the key existed.
+    #[serde(default)]
+    pub front_only: bool,
 }
+
+/// `refine` of parameters saved before the key existed.
+fn one() -> u32 {
+    1
+}
+
 
 /// A runoff zone: a polygon in cell coordinates and the runoff coefficient of its surface.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -383,6 +398,20 @@ impl Params {
                 spec.check(self)?;
             }
         }
+        // The refined lattice and budget must fit the same limits as a given one.
+        let factor = u64::from(self.domain.refine) * u64::from(self.domain.refine);
+        if factor > 1
+            && (total * factor > MAX_CELLS || self.run.cells.saturating_mul(factor) > MAX_CELLS)
+        {
+            return Err(ParamError {
+                key: "refine".into(),
+                value: self.domain.refine.to_string(),
+                allowed: format!(
+                    "a refinement whose lattice ({total} cells) and budget ({} cells) times {factor} stay within {MAX_CELLS} cells",
+                    self.run.cells
+                ),
+            });
+        }
         // The budget counts the roots, which are all planted at once: it must hold them.
         if self.run.cells < self.domain.roots.len() as u64 {
             return Err(ParamError {
@@ -427,6 +456,8 @@ fn blank() -> Params {
             runoff: 0.0,
             levels: Vec::new(),
             zones: Vec::new(),
+            refine: 0,
+            front_only: false,
         },
         costs: CostWeights {
             w_len: 0.0,

@@ -186,6 +186,8 @@ impl Site {
                 runoff: 1.0,
                 levels: level_cells,
                 zones,
+                refine: 1,
+                front_only: false,
             },
             costs: CostWeights {
                 w_len: 1.0,
