@@ -14,6 +14,7 @@ mod joining;
 mod lattice;
 mod planar;
 mod refresh;
+mod segment_grid;
 
 use rand_chacha::ChaCha8Rng;
 use rand_core::{RngCore, SeedableRng};
@@ -24,6 +25,7 @@ use crate::region::{allowed_cells, check_start};
 use cost::{marginal, Anchor, CostModel};
 use frontier::{Attachment, Frontier, Slot, NONE};
 use lattice::{Lattice, BLOCKED, FREE, FRONTIER_TAG};
+use segment_grid::SegmentGrid;
 
 /// Why growth stopped.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
@@ -99,8 +101,8 @@ pub struct Growth {
     scratch_children: crate::network::Children,
     /// Candidate attachments of one cell, reused by plane growth.
     scratch_candidates: Vec<(f64, Attachment)>,
-    /// Longest segment so far, in cells (plane growth's search square).
-    longest_segment: f64,
+    /// Every segment by the buckets its bounding box touches (plane growth only).
+    segment_grid: Option<SegmentGrid>,
     stopped: Option<StopReason>,
 }
 
@@ -150,7 +152,10 @@ impl Growth {
             scratch_order: Vec::new(),
             scratch_children: Default::default(),
             scratch_candidates: Vec::new(),
-            longest_segment: 0.0,
+            segment_grid: params
+                .run
+                .planar
+                .then(|| SegmentGrid::new(params.domain.width, params.domain.height)),
             stopped: None,
         };
         if params.run.attach_to_segments {
@@ -398,9 +403,7 @@ impl Growth {
             cell as u32,
         );
         self.flow[node as usize] = self.cell_weight;
-        if self.params.run.planar {
-            self.note_segment_length(node, target);
-        }
+        self.note_segment(node);
         self.occupy(cell, node);
         self.maybe_refresh();
     }
@@ -431,6 +434,8 @@ impl Growth {
         let cell = self.lattice.cell_at(anchor.x, anchor.y);
         self.junction_next[junction as usize] = self.junction_head[cell];
         self.junction_head[cell] = junction;
+        self.note_segment(junction);
+        self.note_segment(upstream);
         self.offer(cell, junction);
         junction
     }
