@@ -81,10 +81,7 @@ impl SegmentGrid {
     /// The first and last bucket column of the span `[low, high]` of x (clamped to the grid,
     /// which keeps containment: a point of the span lands in a column between the two).
     fn column_span(&self, low: f64, high: f64) -> (usize, usize) {
-        (
-            bucket_of(low, self.columns),
-            bucket_of(high, self.columns),
-        )
+        (bucket_of(low, self.columns), bucket_of(high, self.columns))
     }
 
     fn row_span(&self, low: f64, high: f64) -> (usize, usize) {
@@ -113,7 +110,10 @@ mod tests {
         for step in 0..40u32 {
             let x0 = f64::from(step % 9) * 1.25;
             let y0 = f64::from(step * 7 % 11) * 0.75;
-            let (x1, y1) = (x0 + f64::from(step % 3) * 0.5, y0 + f64::from(step % 4) * 0.5);
+            let (x1, y1) = (
+                x0 + f64::from(step % 3) * 0.5,
+                y0 + f64::from(step % 4) * 0.5,
+            );
             grid.insert(node, (x1, y0), (x0, y1));
             boxes.push((x0, x1, y0, y1));
             node += 1;
