@@ -106,7 +106,6 @@ mod tests {
     fn overlapping_boxes_share_a_bucket() {
         let mut grid = SegmentGrid::new(12, 12);
         let mut boxes = Vec::new();
-        let mut node = 0;
         for step in 0..40u32 {
             let x0 = f64::from(step % 9) * 1.25;
             let y0 = f64::from(step * 7 % 11) * 0.75;
@@ -114,9 +113,8 @@ mod tests {
                 x0 + f64::from(step % 3) * 0.5,
                 y0 + f64::from(step % 4) * 0.5,
             );
-            grid.insert(node, (x1, y0), (x0, y1));
+            grid.insert(step, (x1, y0), (x0, y1));
             boxes.push((x0, x1, y0, y1));
-            node += 1;
         }
         for query in 0..60u32 {
             let qx0 = f64::from(query % 13) * 0.9;
