@@ -137,6 +137,9 @@ pub fn run(options: BenchOptions) -> Result<(), CliError> {
     if options.image {
         return crate::image_bench::run(options.quick);
     }
+    if options.refill {
+        return crate::refill_bench::run(options.quick);
+    }
     if options.fit {
         return crate::fit_bench::run(options.quick);
     }

@@ -294,6 +294,10 @@ pub struct BenchOptions {
     /// independent metric directions and the confounded pairs
     #[arg(long, verbatim_doc_comment, conflicts_with_all = ["fit", "image"])]
     pub identifiability: bool,
+    /// Time the page's geometry refill while a 210,000-cell run
+    /// grows (60,000 with --quick), natively, step by step
+    #[arg(long, verbatim_doc_comment, conflicts_with_all = ["fit", "image"])]
+    pub refill: bool,
 }
 
 /// Accepts a `--set` value of the form KEY=VALUE (an empty VALUE is allowed).

@@ -410,7 +410,7 @@ const COMMAND_FLAGS: [(&str, &[&str]); 4] = [
         ],
     ),
     ("presets", &["--json"]),
-    ("bench", &["--quick", "--json", "--image"]),
+    ("bench", &["--quick", "--json", "--image", "--refill"]),
 ];
 
 /// `ramulus COMMAND --help` prints that command's usage and every flag on stdout and exits 0;

@@ -12,6 +12,7 @@
 //! (`SegmentTable`), metrics, and options.
 #![deny(missing_docs)]
 
+pub mod draw_order;
 pub mod format;
 pub mod legend;
 pub mod marks;

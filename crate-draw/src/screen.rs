@@ -8,9 +8,11 @@
 use ramulus_core::network::Network;
 use ramulus_core::segments::SegmentTable;
 
+pub use crate::draw_order::DrawLine;
+use crate::draw_order::{DrawCursor, DrawOrder};
 use crate::legend::LegendFacts;
 use crate::palette::{palette_rgb, Colouring, FLOW_RAMP_STEPS};
-use crate::raster::{draw_lines, fill, spatial_order, Line, RasterView};
+use crate::raster::{draw_lines, fill, Line, RasterView};
 use crate::tissue::{TissueView, FAINT_STRENGTH, TISSUE_FAINT_RGB};
 
 /// Flat buffers, one entry per drawable segment: entry `k` runs from the upstream to the
@@ -45,9 +47,10 @@ pub struct ScreenGeometry {
     pub palette: Vec<[u8; 3]>,
     /// RGBA pixels of the last raster.
     pub pixels: Vec<u8>,
-    /// What `raster` reads of every entry, in an order where neighbours lie close together:
-    /// one sequential read per line instead of three scattered ones.
-    pub draw_lines: Vec<DrawLine>,
+    /// What `raster` reads of every entry, in an order where neighbours lie close together
+    /// (one sequential read per line instead of three scattered ones), kept up to date as
+    /// entries are appended (`DrawOrder`).
+    pub draw_lines: DrawOrder,
     /// The raster being drawn a slice at a time (`begin_raster`), if any.
     raster_job: Option<RasterJob>,
     /// The view `pixels` were last begun with.
@@ -62,25 +65,11 @@ struct RasterJob {
     tissue: TissueView,
     min_px: f64,
     max_px: f64,
-    /// The next entry of `draw_lines` to draw.
-    next: usize,
+    /// Where the next line to draw is in `draw_lines`.
+    next: DrawCursor,
+    /// Lines drawn so far.
+    drawn: usize,
 }
-
-/// One entry as `ScreenGeometry::raster` reads it.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct DrawLine {
-    /// `x0, y0, x1, y1`, physical units.
-    pub ends: [f32; 4],
-    /// Drawn width, physical units.
-    pub width: f32,
-    /// The entry's index (for its colour).
-    pub index: u32,
-    /// Whether the entry conducts (tissue otherwise).
-    pub conducts: bool,
-}
-
-/// Cells per side of the grid that orders segments for drawing.
-const DRAW_ORDER_GRID: usize = 128;
 
 impl ScreenGeometry {
     /// Refills every buffer from `network` and its segment table (row `k` describes
@@ -129,7 +118,8 @@ impl ScreenGeometry {
             self.segment_count += 1;
         }
         self.flow_range = if high > 0.0 { (low, high) } else { (0.0, 0.0) };
-        self.rebuild_draw_lines();
+        self.raster_job = None;
+        self.draw_lines.rebuild(&self.ends, &self.widths);
     }
 
     /// Appends an entry with its ends and length; its values come with `set_values`. It
@@ -143,51 +133,29 @@ impl ScreenGeometry {
         self.lengths.push(length as f32);
     }
 
-    /// Sets an entry's flow, width and order.
+    /// Sets an entry's flow, width and order (in the raster's copy too, once it is there).
     pub(crate) fn set_values(&mut self, index: usize, flow: f64, width: f64, order: u32) {
         self.flows[index] = flow as f32;
         self.widths[index] = width as f32;
         self.orders[index] = order;
+        self.draw_lines.set_width(index, width as f32);
     }
 
     /// Ends a round of `push_entry` and `set_values`: the flow range and highest order over
-    /// every entry, and the raster's copy; colours are computed again when next asked for.
+    /// every entry, and the raster's copy of the new entries; colours are computed again when
+    /// next asked for.
     pub(crate) fn finish_entries(&mut self, flow_range: (f64, f64), max_order: u32) {
         self.flow_range = flow_range;
         self.max_order = max_order;
         self.segment_count = self.widths.len();
         self.colouring = None;
-        self.rebuild_draw_lines();
+        self.raster_job = None;
+        self.draw_lines.extend(&self.ends, &self.widths);
     }
 
     /// Empties every buffer, keeping their allocations.
     pub(crate) fn clear_entries(&mut self) {
         self.clear();
-    }
-
-    /// Rebuilds the raster's copy of the entries (`draw_lines`) in spatial order.
-    pub(crate) fn rebuild_draw_lines(&mut self) {
-        self.raster_job = None;
-        self.draw_lines.clear();
-        let ends = &self.ends;
-        let midpoints = (0..ends.len() / 4).map(|index| {
-            let at = 4 * index;
-            [
-                (ends[at] as f64 + ends[at + 2] as f64) * 0.5,
-                (ends[at + 1] as f64 + ends[at + 3] as f64) * 0.5,
-            ]
-        });
-        let order = spatial_order(midpoints, DRAW_ORDER_GRID);
-        let (ends, widths, conducts) = (&self.ends, &self.widths, &self.conducts);
-        self.draw_lines.extend(order.iter().filter_map(|&index| {
-            let at = index as usize;
-            Some(DrawLine {
-                ends: ends.get(4 * at..4 * at + 4)?.try_into().ok()?,
-                width: *widths.get(at)?,
-                index,
-                conducts: conducts.get(at).copied().unwrap_or(true),
-            })
-        }));
     }
 
     /// Palette index of every segment: order `k` takes colour `min(k, 7) - 1`; flow takes
@@ -268,7 +236,8 @@ impl ScreenGeometry {
             tissue,
             min_px,
             max_px,
-            next: 0,
+            next: DrawCursor::default(),
+            drawn: 0,
         });
     }
 
@@ -286,51 +255,61 @@ impl ScreenGeometry {
             min_px,
             max_px,
             next,
+            drawn,
         } = job;
         // The colours the raster began with (another colouring may have been asked for since).
         self.colour_indices(colouring);
-        let end = next.saturating_add(count).min(self.draw_lines.len());
-        let left = self.draw_lines.len() - end;
-        self.raster_job = (left > 0).then_some(RasterJob { next: end, ..job });
         let ScreenGeometry {
             colours,
             palette,
             pixels,
             draw_lines: entries,
+            conducts,
             ..
         } = self;
-        let lines = entries[next.min(end)..end].iter().filter_map(|entry| {
-            // Comparisons, not `max` and `min`: those are library calls on wasm32.
-            let scaled = entry.width as f64 * view.scale;
-            let px = if scaled > min_px { scaled } else { min_px };
-            if px > max_px {
-                return None;
-            }
-            if !entry.conducts {
-                match tissue {
-                    TissueView::Hidden => return None,
-                    TissueView::Faint => {
-                        return Some(Line {
-                            ends: entry.ends,
-                            rgb: TISSUE_FAINT_RGB,
-                            strength: FAINT_STRENGTH,
-                        })
-                    }
-                    TissueView::AsVeins => {}
-                }
-            }
-            let rgb = colours
-                .get(entry.index as usize)
-                .and_then(|&colour| palette.get(colour as usize))
-                .copied()
-                .unwrap_or([0, 0, 0]);
-            Some(Line {
-                ends: entry.ends,
-                rgb,
-                strength: if px < 1.0 { (px * 256.0) as u32 } else { 256 },
-            })
+        let (end, visited) = entries.advance(next, count);
+        let drawn = drawn + visited;
+        let left = entries.len().saturating_sub(drawn);
+        let job = (left > 0).then_some(RasterJob {
+            next: end,
+            drawn,
+            ..job
         });
-        draw_lines(pixels, &view, lines);
+        entries.runs_between(next, end, |run| {
+            let lines = run.iter().filter_map(|entry| {
+                // Comparisons, not `max` and `min`: those are library calls on wasm32.
+                let scaled = entry.width as f64 * view.scale;
+                let px = if scaled > min_px { scaled } else { min_px };
+                if px > max_px {
+                    return None;
+                }
+                if !conducts.get(entry.index as usize).copied().unwrap_or(true) {
+                    match tissue {
+                        TissueView::Hidden => return None,
+                        TissueView::Faint => {
+                            return Some(Line {
+                                ends: entry.ends,
+                                rgb: TISSUE_FAINT_RGB,
+                                strength: FAINT_STRENGTH,
+                            })
+                        }
+                        TissueView::AsVeins => {}
+                    }
+                }
+                let rgb = colours
+                    .get(entry.index as usize)
+                    .and_then(|&colour| palette.get(colour as usize))
+                    .copied()
+                    .unwrap_or([0, 0, 0]);
+                Some(Line {
+                    ends: entry.ends,
+                    rgb,
+                    strength: if px < 1.0 { (px * 256.0) as u32 } else { 256 },
+                })
+            });
+            draw_lines(pixels, &view, lines);
+        });
+        self.raster_job = job;
         left
     }
 
@@ -458,10 +437,10 @@ mod tests {
         assert_eq!(screen.len(), 2);
         assert_eq!(screen.segment_count, 2);
         // The raster's copy holds each entry once, with its own ends and width.
-        let mut copied: Vec<_> = screen.draw_lines.iter().map(|line| line.index).collect();
+        let mut copied: Vec<_> = screen.draw_lines.lines().map(|line| line.index).collect();
         copied.sort_unstable();
         assert_eq!(copied, [0, 1]);
-        for line in &screen.draw_lines {
+        for line in screen.draw_lines.lines() {
             let at = line.index as usize;
             assert_eq!(line.ends[..], screen.ends[4 * at..4 * at + 4]);
             assert_eq!(line.width, screen.widths[at]);

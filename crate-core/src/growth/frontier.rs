@@ -32,23 +32,24 @@ pub(crate) struct Slot {
     pub best: Attachment,
 }
 
-/// The cheapest leaf under a tree node: its cost and slot (cost and slot side by side, so a
-/// node and its sibling share a cache line).
+/// One node of the trees: the cheapest leaf under it (cost and slot) and the sum of the
+/// weights under it, side by side, so that recombining a node reads its two children from one
+/// or two cache lines.
 #[derive(Clone, Copy, Debug)]
-struct Cheapest {
+struct TreeNode {
     cost: f64,
+    weight: f64,
     slot: u32,
 }
 
 /// Frontier slots with a min tree (cheapest first) and a sum tree (random joining).
 pub(crate) struct Frontier {
     capacity: usize,
-    /// The min tree: node 1 is the root, node `capacity + i` the leaf of slot `i`.
-    min: Vec<Cheapest>,
-    /// The sum tree of weights, laid out as `min`; empty when weights are not kept (the
+    /// The min tree and the sum tree of weights in one: node 1 is the root, node
+    /// `capacity + i` the leaf of slot `i`. Weights stay 0 when they are not kept (the
     /// cheapest rule, whose weights are all 0).
-    weight_sum: Vec<f64>,
-    /// Whether `weight_sum` is kept.
+    tree: Vec<TreeNode>,
+    /// Whether weights are kept.
     keeps_weights: bool,
     /// Slots by index; a free slot has `cell == NONE`.
     pub slots: Vec<Slot>,
@@ -64,8 +65,7 @@ impl Frontier {
     pub fn new(keeps_weights: bool) -> Frontier {
         let mut frontier = Frontier {
             capacity: 0,
-            min: Vec::new(),
-            weight_sum: Vec::new(),
+            tree: Vec::new(),
             keeps_weights,
             slots: Vec::new(),
             free: Vec::new(),
@@ -121,13 +121,16 @@ impl Frontier {
             return None;
         }
         self.settle();
-        Some((self.min[1].slot, self.min[1].cost))
+        Some((self.tree[1].slot, self.tree[1].cost))
     }
 
     /// Sum of all weights (0 when weights are not kept).
     pub fn total_weight(&mut self) -> f64 {
+        if !self.keeps_weights {
+            return 0.0;
+        }
         self.settle();
-        self.weight_sum.get(1).copied().unwrap_or(0.0)
+        self.tree[1].weight
     }
 
     /// The slot where the cumulative weight passes `target` (0 <= target < total).
@@ -141,8 +144,8 @@ impl Frontier {
         while node < self.capacity {
             let left = 2 * node;
             let right = left + 1;
-            let left_sum = self.weight_sum[left];
-            if left_sum > 0.0 && (target < left_sum || self.weight_sum[right] <= 0.0) {
+            let left_sum = self.tree[left].weight;
+            if left_sum > 0.0 && (target < left_sum || self.tree[right].weight <= 0.0) {
                 node = left;
             } else {
                 target -= left_sum;
@@ -162,9 +165,9 @@ impl Frontier {
             } else {
                 (slot.cost, weight_of(&slot))
             };
-            self.min[leaf].cost = cost;
+            self.tree[leaf].cost = cost;
             if self.keeps_weights {
-                self.weight_sum[leaf] = weight;
+                self.tree[leaf].weight = weight;
             }
         }
         self.rebuild_internal();
@@ -173,9 +176,11 @@ impl Frontier {
     /// Sets one leaf; its ancestors are recombined by the next `settle`.
     fn set_leaf(&mut self, index: u32, cost: f64, weight: f64) {
         let node = self.capacity + index as usize;
-        self.min[node] = Cheapest { cost, slot: index };
+        let leaf = &mut self.tree[node];
+        leaf.cost = cost;
+        leaf.slot = index;
         if self.keeps_weights {
-            self.weight_sum[node] = weight;
+            leaf.weight = weight;
         }
         self.unsettled.push(index);
     }
@@ -218,65 +223,64 @@ impl Frontier {
     /// Recombines one inner node from its children; whether it changed.
     #[inline]
     fn recombine(&mut self, node: usize) -> bool {
-        let before = self.min[node];
-        self.combine(node);
-        let after = self.min[node];
-        let mut changed =
-            before.cost.to_bits() != after.cost.to_bits() || before.slot != after.slot;
-        if self.keeps_weights {
-            let before = self.weight_sum[node];
-            self.combine_weights(node);
-            changed |= before.to_bits() != self.weight_sum[node].to_bits();
-        }
-        changed
+        let before = self.tree[node];
+        let (left, right) = (self.tree[2 * node], self.tree[2 * node + 1]);
+        let cheapest = if right.cost < left.cost { right } else { left };
+        let weight = if self.keeps_weights {
+            left.weight + right.weight
+        } else {
+            before.weight
+        };
+        self.tree[node] = TreeNode {
+            cost: cheapest.cost,
+            weight,
+            slot: cheapest.slot,
+        };
+        before.cost.to_bits() != cheapest.cost.to_bits()
+            || before.slot != cheapest.slot
+            || before.weight.to_bits() != weight.to_bits()
     }
 
     /// The cheapest of a node's two children; the left one (lower slots) on equal costs.
     #[inline]
     fn combine(&mut self, node: usize) {
-        let left = self.min[2 * node];
-        let right = self.min[2 * node + 1];
-        self.min[node] = if right.cost < left.cost { right } else { left };
-    }
-
-    #[inline]
-    fn combine_weights(&mut self, node: usize) {
-        self.weight_sum[node] = self.weight_sum[2 * node] + self.weight_sum[2 * node + 1];
+        let (left, right) = (self.tree[2 * node], self.tree[2 * node + 1]);
+        let cheapest = if right.cost < left.cost { right } else { left };
+        let parent = &mut self.tree[node];
+        parent.cost = cheapest.cost;
+        parent.slot = cheapest.slot;
+        if self.keeps_weights {
+            parent.weight = left.weight + right.weight;
+        }
     }
 
     fn rebuild_internal(&mut self) {
         self.unsettled.clear();
         for node in (1..self.capacity).rev() {
             self.combine(node);
-            if self.keeps_weights {
-                self.combine_weights(node);
-            }
         }
     }
 
     fn resize(&mut self, capacity: usize) {
         let old_capacity = self.capacity;
-        let mut min = vec![
-            Cheapest {
+        let mut tree = vec![
+            TreeNode {
                 cost: f64::INFINITY,
+                weight: 0.0,
                 slot: NONE,
             };
             2 * capacity
         ];
         for index in 0..capacity {
-            min[capacity + index].slot = index as u32;
+            tree[capacity + index].slot = index as u32;
         }
         for index in 0..old_capacity {
-            min[capacity + index].cost = self.min[old_capacity + index].cost;
-        }
-        if self.keeps_weights {
-            let mut weight_sum = vec![0.0; 2 * capacity];
-            weight_sum[capacity..capacity + old_capacity]
-                .copy_from_slice(&self.weight_sum[old_capacity..2 * old_capacity]);
-            self.weight_sum = weight_sum;
+            let old = self.tree[old_capacity + index];
+            tree[capacity + index].cost = old.cost;
+            tree[capacity + index].weight = old.weight;
         }
         self.capacity = capacity;
-        self.min = min;
+        self.tree = tree;
         self.rebuild_internal();
     }
 }

@@ -15,6 +15,7 @@ mod lattice;
 mod planar;
 mod refine;
 mod refresh;
+mod segment_grid;
 
 use rand_chacha::ChaCha8Rng;
 use rand_core::{RngCore, SeedableRng};
@@ -26,6 +27,7 @@ use crate::terrain::SpotSurface;
 use cost::{marginal, Anchor, CostModel};
 use frontier::{Attachment, Frontier, Slot, NONE};
 use lattice::{Lattice, BLOCKED, FREE, FRONTIER_TAG};
+use segment_grid::SegmentGrid;
 
 /// Why growth stopped.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
@@ -115,8 +117,8 @@ pub struct Growth {
     scratch_children: crate::network::Children,
     /// Candidate attachments of one cell, reused by plane growth.
     scratch_candidates: Vec<(f64, Attachment)>,
-    /// Longest segment so far, in cells (plane growth's search square).
-    longest_segment: f64,
+    /// Every segment by the buckets its bounding box touches (plane growth only).
+    segment_grid: Option<SegmentGrid>,
     stopped: Option<StopReason>,
 }
 
@@ -177,7 +179,10 @@ impl Growth {
             scratch_order: Vec::new(),
             scratch_children: Default::default(),
             scratch_candidates: Vec::new(),
-            longest_segment: 0.0,
+            segment_grid: params
+                .run
+                .planar
+                .then(|| SegmentGrid::new(params.domain.width, params.domain.height)),
             stopped: None,
         };
         if params.run.attach_to_segments {
@@ -435,9 +440,7 @@ impl Growth {
             cell as u32,
         );
         self.flow[node as usize] = own;
-        if self.refined.run.planar {
-            self.note_segment_length(node, target);
-        }
+        self.note_segment(node);
         self.occupy(cell, node);
         self.maybe_refresh();
     }
@@ -468,6 +471,8 @@ impl Growth {
         let cell = self.lattice.cell_at(anchor.x, anchor.y);
         self.junction_next[junction as usize] = self.junction_head[cell];
         self.junction_head[cell] = junction;
+        self.note_segment(junction);
+        self.note_segment(upstream);
         self.offer(cell, junction);
         junction
     }

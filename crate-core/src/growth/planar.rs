@@ -18,41 +18,24 @@ impl Growth {
     /// Whether the segment from `(cx, cy)` to the attachment's point would cross, touch or run
     /// over a segment of the network other than at the attachment point itself.
     ///
-    /// Every segment is `node -> parent` and no longer than `longest_segment`; a segment that
-    /// meets the new one has its upstream node within `longest_segment` of the new segment, so
-    /// only the cells of the new segment's bounding box widened by that much are searched.
+    /// A segment that meets the new one shares a point with it, so it is listed in a bucket of
+    /// the segment grid that the new segment's bounding box touches (`SegmentGrid`); the box is
+    /// widened by `BOX_SLACK` so that an attachment point computed inside a segment, which
+    /// may lie a rounding error off that segment's box, is covered too.
     pub(super) fn crosses_network(&self, cx: f64, cy: f64, attachment: Attachment) -> bool {
+        let Some(grid) = &self.segment_grid else {
+            return false;
+        };
         let (ax, ay) = self.attachment_point(attachment);
-        let margin = self.longest_segment + 1.0;
-        let last_x = self.refined.domain.width as f64 - 1.0;
-        let last_y = self.refined.domain.height as f64 - 1.0;
-        let first_column = (cx.min(ax) - margin).floor().clamp(0.0, last_x) as u32;
-        let last_column = (cx.max(ax) + margin).floor().clamp(0.0, last_x) as u32;
-        let first_row = (cy.min(ay) - margin).floor().clamp(0.0, last_y) as u32;
-        let last_row = (cy.max(ay) + margin).floor().clamp(0.0, last_y) as u32;
         let new = Piece {
             from: (cx, cy),
             to: (ax, ay),
         };
-        for row in first_row..=last_row {
-            for column in first_column..=last_column {
-                let cell = self.lattice.cell_index(column, row);
-                let state = self.lattice.state[cell];
-                if state < FRONTIER_TAG && self.segment_conflicts(state, &new, attachment) {
-                    return true;
-                }
-                if self.refined.run.attach_to_segments {
-                    let mut junction = self.junction_head[cell];
-                    while junction != NONE {
-                        if self.segment_conflicts(junction, &new, attachment) {
-                            return true;
-                        }
-                        junction = self.junction_next[junction as usize];
-                    }
-                }
-            }
-        }
-        false
+        grid.any_near(
+            (cx.min(ax) - BOX_SLACK, cx.max(ax) + BOX_SLACK),
+            (cy.min(ay) - BOX_SLACK, cy.max(ay) + BOX_SLACK),
+            |node| self.segment_conflicts(node, &new, attachment),
+        )
     }
 
     /// Whether the segment `node -> parent` conflicts with the new segment joining
@@ -112,16 +95,23 @@ impl Growth {
         found
     }
 
-    /// Records a new segment's length (in cells) for the search square of `crosses_network`.
-    pub(super) fn note_segment_length(&mut self, from: u32, to: u32) {
-        let (f, t) = (from as usize, to as usize);
-        let (dx, dy) = (self.x[f] - self.x[t], self.y[f] - self.y[t]);
-        let length = (dx * dx + dy * dy).sqrt();
-        if length > self.longest_segment {
-            self.longest_segment = length;
+    /// Lists the segment `node -> parent` in the segment grid (plane growth only).
+    pub(super) fn note_segment(&mut self, node: u32) {
+        let parent = self.parent[node as usize];
+        let Some(grid) = &mut self.segment_grid else {
+            return;
+        };
+        if parent == NO_PARENT {
+            return;
         }
+        let (n, p) = (node as usize, parent as usize);
+        grid.insert(node, (self.x[n], self.y[n]), (self.x[p], self.y[p]));
     }
 }
+
+/// Cells by which the search box of `crosses_network` is widened on each side: far above the
+/// rounding error of a point interpolated on a segment, far below a bucket.
+const BOX_SLACK: f64 = 1e-6;
 
 /// A straight piece between two points, in cells.
 struct Piece {

@@ -90,7 +90,6 @@ fn one() -> u32 {
     1
 }
 
-
 /// A runoff zone: a polygon in cell coordinates and the runoff coefficient of its surface.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
