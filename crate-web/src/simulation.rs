@@ -450,6 +450,19 @@ impl Simulation {
         // once a run with junction relaxation has finished its junctions move: refill in full.
         // Junctions are relaxed once growth has stopped, not while it grows (a relaxation
         // per frame would cost more than the growth).
+        // A finished run that relaxes junctions or closes loops is shown as the whole pipeline
+        // gives it (the run view: moved junctions, loops after growth), as it is measured.
+        let whole_pipeline = self.finished()
+            && (self.params.run.relax_junctions > 0 || self.params.widths.reconnect.is_some());
+        if whole_pipeline {
+            self.growing.clear();
+            let filled = self.view().is_ok();
+            match self.view_cache.as_ref().filter(|_| filled) {
+                Some(view) => self.geometry.fill(&view.network, &view.table),
+                None => self.geometry = ScreenGeometry::default(),
+            }
+            return self.geometry.len() as u32;
+        }
         if !self.full_refill && self.params.widths.vein_area == 0.0 && !self.relaxes_now() {
             if self.growing.update(&network, rule, &mut self.geometry) {
                 return self.geometry.len() as u32;
