@@ -154,7 +154,8 @@ class SitePanel {
       return;
     }
     this.message('');
-    const { units, shapes } = shapesFromGeojson(JSON.parse(text));
+    const { units, shapes, groundRunoff } = shapesFromGeojson(JSON.parse(text));
+    if (Number.isFinite(groundRunoff)) byId('site-ground-c').value = String(groundRunoff);
     byId('site-units').value = units;
     this.setSiteUnits(units);
     this.sketch.load(shapes, units);
@@ -187,6 +188,12 @@ class SitePanel {
 
   /// The sketch as a run link; the page opens it (through the address bar) and grows it.
   grow() {
+    const ground = byId('site-ground-c').value.trim();
+    this.sketch.groundRunoff = ground === '' ? NaN : Number(ground);
+    if (ground !== '' && !Number.isFinite(this.sketch.groundRunoff)) {
+      this.message(`Runoff coefficient of ground in no zone: "${ground}" is not a number.`);
+      return;
+    }
     const text = JSON.stringify(this.sketch.geojson());
     const result = JSON.parse(this.core.site_link_json(text, byId('site-cell').value));
     if (result.error) {
@@ -251,7 +258,7 @@ class SitePanel {
       if (explicit) this.message('Enter the design rainfall from your local records first.');
       return;
     }
-    const result = JSON.parse(simulation.drainage_json(this.rulesText()));
+    const result = JSON.parse(simulation.drainage_json(this.rulesText(), this.siteTextFor()));
     if (result.error) {
       this.message(result.error);
       byId('site-results').hidden = true;

@@ -32,6 +32,8 @@ export class SiteSketch {
     this.features = [];
     this.tool = 'outline';
     this.units = 'm';
+    // Runoff coefficient of ground in no zone (the collection's `runoff_coefficient`).
+    this.groundRunoff = NaN;
     this.snap = 1;
     this.draft = [];
     this.pointProperties = () => ({});
@@ -95,7 +97,9 @@ export class SiteSketch {
         : { type: 'Point', coordinates: [round(points[0][0]), round(points[0][1])] };
       return { type: 'Feature', properties, geometry };
     });
-    return { type: 'FeatureCollection', properties: { units: this.units }, features };
+    const properties = { units: this.units };
+    if (Number.isFinite(this.groundRunoff)) properties.runoff_coefficient = this.groundRunoff;
+    return { type: 'FeatureCollection', properties, features };
   }
 
   // ---- the view --------------------------------------------------------------------------
@@ -366,6 +370,7 @@ export class SiteSketch {
 /// the file itself and names what is wrong).
 export function shapesFromGeojson(collection) {
   const units = collection?.properties?.units === 'ft' ? 'ft' : 'm';
+  const groundRunoff = Number(collection?.properties?.runoff_coefficient ?? NaN);
   const shapes = [];
   for (const feature of collection?.features ?? []) {
     const role = feature?.properties?.role;
@@ -380,7 +385,7 @@ export function shapesFromGeojson(collection) {
       shapes.push({ role, ...properties, points: [[Number(geometry.coordinates[0]), Number(geometry.coordinates[1])]] });
     }
   }
-  return { units, shapes };
+  return { units, shapes, groundRunoff };
 }
 
 function featureLabel(feature) {

@@ -242,7 +242,7 @@ pub fn drain(options: DrainOptions) -> Result<(), CliError> {
         );
         return Ok(());
     }
-    let tables = site_tables(site);
+    let tables = site_tables(site, site_file.as_ref());
     say!("CAUTION: {SITE_CAUTION}");
     say!("");
     say!("Outlets");

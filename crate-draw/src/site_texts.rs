@@ -155,8 +155,9 @@ fn shoelace(ring: &[[f64; 2]]) -> f64 {
         / 2.0
 }
 
-/// The schedule, outlets and flag summary of a sized site.
-pub fn site_tables(site: &SiteHydraulics) -> SiteTables {
+/// The schedule, outlets and flag summary of a sized site; `site_file`, when given, names the
+/// outlets (in order, as `Site::to_params` makes the roots).
+pub fn site_tables(site: &SiteHydraulics, site_file: Option<&Site>) -> SiteTables {
     let units = site.report_units;
     let length = units.length_unit();
     let columns = vec![
@@ -207,7 +208,7 @@ pub fn site_tables(site: &SiteHydraulics) -> SiteTables {
         .iter()
         .enumerate()
         .map(|(k, outlet)| OutletRow {
-            name: format!("outlet {}", k + 1),
+            name: outlet_name(site_file, k),
             area_text: area_text(outlet.contributing_area, units),
             peak_flow_text: flow_text(outlet.peak_flow, units),
             time_text: format!("{} min", fixed(outlet.time_of_concentration, 1)),

@@ -289,7 +289,8 @@ impl Simulation {
     /// A finished site's channels sized for the design form (JSON texts as typed): the page's
     /// tables as JSON `{columns, rows, outlets, flags_text, caution}`, or `{error}` naming the
     /// field or value at fault.
-    pub fn drainage_json(&mut self, form_json: &str) -> Result<String, JsError> {
+    /// `site_text`: the site file the run came from (its outlet names), or empty.
+    pub fn drainage_json(&mut self, form_json: &str, site_text: &str) -> Result<String, JsError> {
         self.view()?;
         let view = self
             .view_cache
@@ -299,6 +300,7 @@ impl Simulation {
             view,
             &self.params,
             form_json,
+            site_text,
         ))
     }
 

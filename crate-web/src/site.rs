@@ -137,10 +137,16 @@ pub(crate) fn sized(
 }
 
 /// The page's tables as JSON `{columns, rows, outlets, flags_text, caution}`, or `{error}`.
-pub(crate) fn drainage_tables_json(view: &RunView, params: &Params, form_json: &str) -> String {
+pub(crate) fn drainage_tables_json(
+    view: &RunView,
+    params: &Params,
+    form_json: &str,
+    site_text: &str,
+) -> String {
     match sized(view, params, form_json) {
         Ok((sized, _)) => {
-            let tables = site_tables(&sized.hydraulics);
+            let site = site_file(site_text);
+            let tables = site_tables(&sized.hydraulics, site.as_ref());
             let mut value = serde_json::to_value(&tables).unwrap_or_else(|_| json!({}));
             value["caution"] = json!(SITE_CAUTION);
             value.to_string()
