@@ -89,7 +89,7 @@ test('tissue drawn faint, hidden or like veins on the canvas and in the SVG', as
   const page = await newPage(context);
   await page.goto(site.url);
   await finishedDigest(page);
-  await page.selectOption('#start-from', 'narrow-leaf');
+  await page.selectOption('#start-from', 'elliptic-leaf');
   await finishedDigest(page);
   // Without a threshold every cell is a vein: no tissue control, and the readings that only
   // follow the cell size say so (the core's mark).
