@@ -23,7 +23,10 @@ fn hand_network(points: &[(f64, f64)], ends: &[(u32, u32)]) -> Network {
             .iter()
             .map(|&(x, y)| Node { x, y, weight: 1.0 })
             .collect(),
-        segments: ends.iter().map(|&(from, to)| Segment { from, to }).collect(),
+        segments: ends
+            .iter()
+            .map(|&(from, to)| Segment { from, to })
+            .collect(),
         area: 1.0,
         units: "m".into(),
         cell_size: 1.0,
@@ -287,7 +290,10 @@ fn grown_sites_lose_energy_and_stay_plane_forests() {
             }
             let after = energy_by_hand(&view.network);
             assert!((after - report.energy_after).abs() <= 1e-9 * before);
-            assert!(after < before, "{name} {seed}: E fell ({before} -> {after})");
+            assert!(
+                after < before,
+                "{name} {seed}: E fell ({before} -> {after})"
+            );
             assert!(report.moves() > 0);
             // Same nodes, segments from the same nodes, same outlets.
             assert_eq!(view.network.nodes, network.nodes);
@@ -296,20 +302,29 @@ fn grown_sites_lose_energy_and_stay_plane_forests() {
             assert_eq!(roots(&view.network), roots(&network));
             // A forest: no directed cycle, and one component per outlet.
             let mut graph = DiGraph::<(), ()>::new();
-            let ids: Vec<_> = (0..network.nodes.len()).map(|_| graph.add_node(())).collect();
+            let ids: Vec<_> = (0..network.nodes.len())
+                .map(|_| graph.add_node(()))
+                .collect();
             for s in &view.network.segments {
                 graph.add_edge(ids[s.from as usize], ids[s.to as usize], ());
             }
             assert!(!is_cyclic_directed(&graph), "{name} {seed}: a loop");
             assert_eq!(connected_components(&graph), roots(&network).len());
-            assert_eq!(conflicting_pairs(&view.network), 0, "{name} {seed}: crossings");
-            assert_ne!(view.digest, RunView::new(network.clone(), &{
-                let mut p = params.clone();
-                p.run.energy_sweeps = 0;
-                p
-            })
-            .expect("a forest")
-            .digest);
+            assert_eq!(
+                conflicting_pairs(&view.network),
+                0,
+                "{name} {seed}: crossings"
+            );
+            assert_ne!(
+                view.digest,
+                RunView::new(network.clone(), &{
+                    let mut p = params.clone();
+                    p.run.energy_sweeps = 0;
+                    p
+                })
+                .expect("a forest")
+                .digest
+            );
         }
     }
 }
@@ -372,11 +387,7 @@ fn energy_figures() {
         growth.run();
         let network = growth.network();
         let topology = network.topology().expect("a forest");
-        let cell = topology
-            .flow
-            .iter()
-            .copied()
-            .fold(f64::INFINITY, f64::min);
+        let cell = topology.flow.iter().copied().fold(f64::INFINITY, f64::min);
         let beta = exceedance_exponent(&topology.flow, cell);
         println!(
             "open lattice seed {seed}: {} nodes, E {:.6e}, exceedance exponent {beta:.3}",
@@ -395,7 +406,12 @@ fn energy_figures() {
             let per: Vec<String> = report
                 .sweeps
                 .iter()
-                .map(|s| format!("{:.4e} ({} moves, {} blocked)", s.energy, s.moves, s.blocked))
+                .map(|s| {
+                    format!(
+                        "{:.4e} ({} moves, {} blocked)",
+                        s.energy, s.moves, s.blocked
+                    )
+                })
                 .collect();
             println!(
                 "  reach {reach} cells, {sweeps:>2} sweeps (ran {}): E {:.6e} ({:+.2} %), exponent {:.3}, {:.2} s ({:.2} s per sweep)\n    per sweep: {}",
