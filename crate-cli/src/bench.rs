@@ -216,8 +216,8 @@ pub fn run(options: BenchOptions) -> Result<(), CliError> {
     } else {
         [100_000, 400_000]
     })?;
-    full_model_command_figures(if quick { 25_000 } else { 100_000 }, 5)?;
     energy_figures(if quick { 20_000 } else { 80_000 })?;
+    full_model_command_figures(if quick { 25_000 } else { 100_000 }, 5)?;
     spanning_tree_figures(side, 3)
 }
 

@@ -100,7 +100,7 @@ pub fn lower_energy(
         energy_after: energy_before,
         sweeps: Vec::new(),
     };
-    if count < 3 || sweeps == 0 || !(reach > 0.0) {
+    if count < 3 || sweeps == 0 || reach.is_nan() || reach <= 0.0 {
         return (parent, report);
     }
     let weight: Vec<f64> = network.nodes.iter().map(|node| node.weight).collect();

@@ -66,10 +66,18 @@ fn lattice() -> impl Strategy<Value = (u32, u32)> {
 /// Link text of one field, from its entry.
 fn field_text(spec: &ParamSpec, width: u32, height: u32) -> BoxedStrategy<String> {
     match spec.access {
-        Access::Count32(..) => {
+        Access::Count32(..) if spec.key == "width" || spec.key == "height" => {
             // Width and height come from `lattice`.
             let value = if spec.key == "width" { width } else { height };
             Just(value.to_string()).boxed()
+        }
+        Access::Count32(..) => {
+            // Other counts (sweeps) over their bounds, now and then exactly at one.
+            let bounds = spec.bounds.expect("whole numbers have bounds");
+            let (low, high) = (bounds.min as u32, bounds.max.min(u32::MAX as f64) as u32);
+            prop_oneof![Just(low), Just(high), low..=high]
+                .prop_map(|value| value.to_string())
+                .boxed()
         }
         Access::Count64(..) => {
             let bounds = spec.bounds.expect("whole numbers have bounds");
