@@ -211,12 +211,12 @@ pub fn run(options: BenchOptions) -> Result<(), CliError> {
         large.seconds / small.seconds
     );
     pipeline_figures()?;
+    energy_figures(if quick { 20_000 } else { 80_000 })?;
     loop_figures(if quick {
         [25_000, 100_000]
     } else {
         [100_000, 400_000]
     })?;
-    energy_figures(if quick { 20_000 } else { 80_000 })?;
     full_model_command_figures(if quick { 25_000 } else { 100_000 }, 5)?;
     spanning_tree_figures(side, 3)
 }
