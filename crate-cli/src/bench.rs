@@ -211,6 +211,7 @@ pub fn run(options: BenchOptions) -> Result<(), CliError> {
         large.seconds / small.seconds
     );
     pipeline_figures()?;
+    energy_figures(if quick { 20_000 } else { 80_000 })?;
     loop_figures(if quick {
         [25_000, 100_000]
     } else {
@@ -218,6 +219,57 @@ pub fn run(options: BenchOptions) -> Result<(), CliError> {
     })?;
     full_model_command_figures(if quick { 25_000 } else { 100_000 }, 5)?;
     spanning_tree_figures(side, 3)
+}
+
+/// The channel energy pass (`channel_energy::lower_energy`) on an open lattice of `cells`
+/// cells (the drainage site without its building, twice as wide as high, one outlet on the
+/// left side): `sum Q^0.5 L` before, then per sweep the energy, moves and time.
+fn energy_figures(cells: u64) -> Result<(), CliError> {
+    let mut params = ramulus_core::presets::preset("drainage-site")
+        .ok_or_else(|| CliError::Failed("preset drainage-site is missing".into()))?;
+    let height = ((cells as f64 / 2.0).sqrt().round() as u32).max(2);
+    params.domain.obstacles.clear();
+    params.domain.width = 2 * height;
+    params.domain.height = height;
+    params.domain.roots[0].y = height / 2;
+    params.run.cells = u64::from(2 * height * height);
+    let mut growth = Growth::new(&params).map_err(|error| CliError::Failed(error.to_string()))?;
+    growth.run();
+    let network = growth.network();
+    drop(growth);
+    let topology = network
+        .topology()
+        .map_err(|error| CliError::Failed(error.to_string()))?;
+    let reach = params.run.radius * network.cell_size;
+    say!(
+        "channel energy, open lattice {} x {height} ({} nodes), reach {} cells: E before {:.4e}",
+        2 * height,
+        network.nodes.len(),
+        params.run.radius,
+        ramulus_core::channel_energy::network_energy(&network, &topology)
+    );
+    // Sweep by sweep: each call runs one sweep on the previous sweep's result.
+    let mut current = network.clone();
+    let mut view = topology;
+    for sweep in 1..=5 {
+        let start = Instant::now();
+        let (parent, report) =
+            ramulus_core::channel_energy::lower_energy(&current, &view, reach, 1);
+        let seconds = start.elapsed().as_secs_f64();
+        ramulus_core::channel_energy::apply_parents(&mut current, &parent);
+        view = current
+            .topology()
+            .map_err(|error| CliError::Failed(error.to_string()))?;
+        say!(
+            "  sweep {sweep}: E {:.4e} ({:+.2} %), {} moves, {} blocked by crossings, {:.3} s",
+            report.energy_after,
+            100.0 * (report.energy_after - report.energy_before) / report.energy_before,
+            report.moves(),
+            report.sweeps.first().map_or(0, |s| s.blocked),
+            seconds
+        );
+    }
+    Ok(())
 }
 
 /// Where the whole work of `ramulus grow --json` goes on the full cost model, phase by phase,

@@ -179,7 +179,7 @@ pub fn grow_json(
     stopped: StopReason,
     page: &str,
 ) -> serde_json::Value {
-    json!({
+    let mut value = json!({
         "digest": view.digest,
         "cells": cell_count,
         "nodes": view.network.nodes.len(),
@@ -191,7 +191,22 @@ pub fn grow_json(
         "caution": params.is_site().then_some(SITE_CAUTION),
         "link": format!("{page}#{}", encode_link(params)),
         "fragment": format!("#{}", encode_link(params)),
-    })
+    });
+    // Only with `energy_sweeps` > 0, so the output of other runs stays as it was.
+    if let Some(energy) = &view.energy {
+        value["channel_energy"] = json!({
+            "exponent": ramulus_core::channel_energy::GAMMA_E,
+            "before": energy.energy_before,
+            "after": energy.energy_after,
+            "moves": energy.moves(),
+            "sweeps": energy.sweeps.iter().map(|sweep| json!({
+                "energy": sweep.energy,
+                "moves": sweep.moves,
+                "blocked": sweep.blocked,
+            })).collect::<Vec<_>>(),
+        });
+    }
+    value
 }
 
 pub(crate) fn print_table(metrics: &Metrics, units: &str) {

@@ -1810,3 +1810,38 @@ fn set_none_turns_an_optional_value_off() {
     assert_ne!(refused.code, Some(0));
     assert!(refused.stderr.contains("threshold"), "{}", refused.stderr);
 }
+
+/// With `energy_sweeps`, `grow --json` carries the channel energy report (energy before and
+/// after, per sweep, moves; exponent 0.5 as in Rinaldo et al. 1992, Water Resour. Res. 28): the
+/// energy never rises from sweep to sweep, the moves add up, and the network differs from the
+/// one grown without the pass, whose output has no such report.
+#[test]
+fn grow_json_reports_the_channel_energy() {
+    let base = ["grow", "--preset", "drainage-site", "--set", "cells=3000"];
+    let plain = grow_json(&[&base[..], &["--json"]].concat());
+    assert!(plain.get("channel_energy").is_none());
+    let value = grow_json(&[&base[..], &["--set", "energy_sweeps=3", "--json"]].concat());
+    let energy = value["channel_energy"].as_object().expect("a report");
+    assert_eq!(energy["exponent"].as_f64(), Some(0.5));
+    let before = energy["before"].as_f64().expect("before");
+    let after = energy["after"].as_f64().expect("after");
+    assert!(after < before, "{after} after {before}");
+    let sweeps = energy["sweeps"].as_array().expect("sweeps");
+    assert!(!sweeps.is_empty() && sweeps.len() <= 3);
+    let mut previous = before;
+    let mut moves = 0;
+    for sweep in sweeps {
+        let e = sweep["energy"].as_f64().expect("energy");
+        assert!(
+            e <= previous,
+            "a sweep raised the energy: {e} after {previous}"
+        );
+        previous = e;
+        moves += sweep["moves"].as_u64().expect("moves");
+    }
+    assert_eq!(previous, after);
+    assert_eq!(energy["moves"].as_u64(), Some(moves));
+    assert_ne!(value["digest"], plain["digest"]);
+    assert_eq!(value["nodes"], plain["nodes"]);
+    assert_eq!(value["segments"], plain["segments"]);
+}

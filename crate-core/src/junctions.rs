@@ -425,7 +425,7 @@ impl SegmentGrid {
         // other.
         for (first, &a) in incident.iter().enumerate() {
             for &b in &incident[first + 1..] {
-                if conflict(ends_now(a), ends_now(b), &position) {
+                if segments_conflict(ends_now(a), ends_now(b), &position) {
                     return false;
                 }
             }
@@ -442,7 +442,7 @@ impl SegmentGrid {
                     if incident.contains(&other) {
                         continue;
                     }
-                    if conflict((from, to_node), ends_now(other), &position) {
+                    if segments_conflict((from, to_node), ends_now(other), &position) {
                         clear = false;
                         return;
                     }
@@ -490,7 +490,11 @@ fn coord(p: (f64, f64)) -> Coord<f64> {
 /// by the orientation test (Cormen et al. 2009, Introduction to Algorithms, 3rd ed., section
 /// 33.1) on exact predicates. Segments sharing a node conflict only when they are collinear and
 /// overlap.
-fn conflict(first: (u32, u32), second: (u32, u32), position: &impl Fn(u32) -> (f64, f64)) -> bool {
+pub(crate) fn segments_conflict(
+    first: (u32, u32),
+    second: (u32, u32),
+    position: &impl Fn(u32) -> (f64, f64),
+) -> bool {
     let shared = [first.0, first.1]
         .into_iter()
         .find(|&node| node == second.0 || node == second.1);

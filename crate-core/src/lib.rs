@@ -4,6 +4,7 @@
 //! knows nothing of drawing: pictures, colours and the texts people read live in `ramulus-draw`.
 #![deny(missing_docs)]
 
+pub mod channel_energy;
 pub mod cleared;
 pub mod digest;
 pub mod drainage;

@@ -11,6 +11,11 @@
 //!    pass, the exports and the digest see the moved nodes; `Growth` stays on its lattice. It
 //!    runs here, not in growth, so every caller of `RunView::new` (command line, page, fitting)
 //!    gets the same network from the same parameters;
+//!    **channel energy** (`energy_pass`, only with `energy_sweeps` > 0 on a forest, before the
+//!    junctions): nodes drain to another node within the reach whenever that lowers
+//!    `sum Q^0.5 L` (`channel_energy::lower_energy`, optimal channel networks), the network
+//!    staying a plane forest with the same nodes and roots; the forest view and orders are
+//!    derived again;
 //! 2. **conducting network**: which segments carry flow (`conducting_network`): those draining
 //!    at least `vein_area` (every segment when it is 0); with a threshold, the vein network
 //!    (`veins::vein_network`) is what the metrics measure and its Strahler orders are the
@@ -28,6 +33,7 @@
 //! 6. **metrics**: every entry of the metric table (`measure_with`);
 //! 7. **digest**: the hash of the exact geometry and topology (new segments included).
 
+use crate::channel_energy::{apply_parents, lower_energy, ChannelEnergy};
 use crate::digest::digest_hex;
 use crate::junctions::{relax_junctions, Relaxation};
 use crate::metrics::{measure_weighted, measure_with, Measured, Metrics};
@@ -101,6 +107,9 @@ pub struct RunView {
     pub network: Network,
     /// Topology pass: the forest view, `None` when the network has loops.
     pub forest: Option<ForestView>,
+    /// Channel energy pass: energy before and after and moves per sweep, `None` when it did
+    /// not run.
+    pub energy: Option<ChannelEnergy>,
     /// Junction pass: what the relaxation did, `None` when it did not run.
     pub relaxation: Option<Relaxation>,
     /// Conducting-network pass (of the grown tree; the new segments of the loop pass conduct).
@@ -153,11 +162,36 @@ pub fn junction_pass(
     Some(relaxation)
 }
 
+/// Channel energy pass: with `energy_sweeps` > 0 and a forest, re-points where nodes of
+/// `network` drain to lower `sum Q^0.5 L` (`channel_energy::lower_energy`, candidates within
+/// `radius` cells) and derives the forest view and orders of the result again; `None`, touching
+/// nothing, otherwise. Specimens and records are measured as they are (`as_measured` turns it
+/// off).
+pub fn energy_pass(
+    network: &mut Network,
+    forest: &mut Option<ForestView>,
+    params: &Params,
+) -> Result<Option<ChannelEnergy>, TopologyError> {
+    let sweeps = params.run.energy_sweeps;
+    let Some(view) = forest.as_ref().filter(|_| sweeps > 0) else {
+        return Ok(None);
+    };
+    let reach = params.run.radius * network.cell_size;
+    let (parent, report) = lower_energy(network, &view.topology, reach, sweeps);
+    if report.moves() > 0 {
+        apply_parents(network, &parent);
+        *forest = topology_pass(network)?;
+    }
+    Ok(Some(report))
+}
+
 /// The parameters with which a network that is already final (a traced specimen, a run record
-/// read back) is measured: `params` without junction relaxation, so it is measured as it is.
+/// read back) is measured: `params` without junction relaxation or channel energy
+/// optimisation, so it is measured as it is.
 pub fn as_measured(params: &Params) -> Params {
     let mut params = params.clone();
     params.run.relax_junctions = 0;
+    params.run.energy_sweeps = 0;
     params
 }
 
@@ -384,6 +418,7 @@ impl RunView {
     /// Every pass in order.
     fn from_passes(mut network: Network, params: &Params) -> Result<RunView, TopologyError> {
         let mut forest = topology_pass(&network)?;
+        let energy = energy_pass(&mut network, &mut forest, params)?;
         let relaxation = junction_pass(&mut network, forest.as_mut(), params);
         let mut conducting = conducting_pass(&network, &mut forest, params);
         // A pass that closed no loop leaves the tree as it was.
@@ -431,6 +466,7 @@ impl RunView {
         Ok(RunView {
             network,
             forest,
+            energy,
             relaxation,
             conducting,
             loops,

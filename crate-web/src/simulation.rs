@@ -10,8 +10,8 @@ use ramulus_core::params::Domain;
 use ramulus_core::params::Params;
 use ramulus_core::record::{make_record, read_record, write_record};
 use ramulus_core::run::{
-    as_measured, conducting_pass, junction_pass, topology_pass, width_rule, widths_pass, RunView,
-    SITE_CAUTION,
+    as_measured, conducting_pass, energy_pass, junction_pass, topology_pass, width_rule,
+    widths_pass, RunView, SITE_CAUTION,
 };
 use ramulus_draw::legend::legend_items;
 use ramulus_draw::marks::network_marks;
@@ -481,6 +481,10 @@ impl Simulation {
         match topology_pass(&network) {
             Ok(mut forest) => {
                 if self.relaxes_now() {
+                    if energy_pass(&mut network, &mut forest, &self.params).is_err() {
+                        self.geometry = ScreenGeometry::default();
+                        return 0;
+                    }
                     junction_pass(&mut network, forest.as_mut(), &self.params);
                 }
                 let conducting = conducting_pass(&network, &mut forest, &self.params);
@@ -622,16 +626,22 @@ impl Simulation {
         }
     }
 
-    /// Whether the pipeline relaxes junctions now: with `relax_junctions` > 0, once growth has
-    /// stopped (while it grows, the network is shown and measured on its lattice).
+    /// Whether the run has passes that change a finished network (junction relaxation,
+    /// channel energy optimisation); they run once growth has stopped.
+    fn reshapes(&self) -> bool {
+        self.params.run.relax_junctions > 0 || self.params.run.energy_sweeps > 0
+    }
+
+    /// Whether the pipeline relaxes junctions and lowers channel energy now: with either on,
+    /// once growth has stopped (while it grows, the network is shown and measured as grown).
     fn relaxes_now(&self) -> bool {
-        self.params.run.relax_junctions > 0 && self.finished()
+        self.reshapes() && self.finished()
     }
 
     /// The derived view of the network as it stands, computed once per change of the network.
     fn view(&mut self) -> Result<&RunView, JsError> {
         if self.view_cache.is_none() {
-            let view = if self.params.run.relax_junctions > 0 && !self.relaxes_now() {
+            let view = if self.reshapes() && !self.relaxes_now() {
                 RunView::new(self.network(), &as_measured(&self.params))
             } else {
                 RunView::new(self.network(), &self.params)

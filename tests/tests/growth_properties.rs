@@ -128,6 +128,7 @@ fn valid_params() -> impl Strategy<Value = Params> {
                     planar: seed % 2 == 0,
                     refresh,
                     relax_junctions: 0,
+                    energy_sweeps: 0,
                 },
                 ..Params::default()
             }

@@ -161,6 +161,11 @@ pub struct RunControl {
     /// version-1 links and parameters saved before the key existed); 0 ..= 50.
     #[serde(default)]
     pub relax_junctions: u32,
+    /// Channel energy optimisation after growth (`channel_energy::lower_energy`): at most this
+    /// many sweeps re-pointing where nodes drain to lower `sum Q^0.5 L`. Default 0 (off, as
+    /// version-1 links and parameters saved before the key existed); 0 ..= 50.
+    #[serde(default)]
+    pub energy_sweeps: u32,
 }
 
 /// The width rule: how a segment's drawn width follows its flow.
@@ -480,6 +485,7 @@ fn blank() -> Params {
             planar: false,
             refresh: 0.0,
             relax_junctions: 0,
+            energy_sweeps: 0,
         },
         widths: Widths {
             gamma: 0.0,
