@@ -514,6 +514,9 @@ fn pipeline_figures() -> Result<(), CliError> {
 fn looped_leaf(cells: u64) -> Result<Params, CliError> {
     let mut params = ramulus_core::presets::preset("broad-leaf")
         .ok_or_else(|| CliError::Failed("preset broad-leaf is missing".into()))?;
+    // Open growth on a 220 x 300 lattice scaled to the budget (the preset's blade outline is
+    // drawn for its own lattice, so it is left out here).
+    params.domain.outline = None;
     let scale = (cells as f64 / (220.0 * 300.0 * 0.7)).sqrt().max(1.0);
     params.domain.width = (220.0 * scale) as u32;
     params.domain.height = (300.0 * scale) as u32;
