@@ -176,7 +176,7 @@ pub fn energy_pass(
     let Some(view) = forest.as_ref().filter(|_| sweeps > 0) else {
         return Ok(None);
     };
-    let reach = params.run.radius * network.cell_size;
+    let reach = params.run.energy_reach.unwrap_or(params.run.radius) * network.cell_size;
     let (parent, report) = lower_energy(network, &view.topology, reach, sweeps);
     if report.moves() > 0 {
         apply_parents(network, &parent);

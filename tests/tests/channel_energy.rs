@@ -443,3 +443,29 @@ fn energy_figures() {
         }
     }
 }
+
+/// `energy_reach` bounds every re-pointing: a segment whose downstream end changed is at most
+/// the reach long (the reach is a distance between nodes, in cells times the cell size).
+#[test]
+fn re_pointing_stays_within_the_energy_reach() {
+    let (mut params, network) = grown("drainage-site", 2, 5_000);
+    params.run.energy_sweeps = 3;
+    params.run.energy_reach = Some(1.5);
+    let view = RunView::new(network.clone(), &params).expect("a forest");
+    let report = view.energy.clone().expect("the pass ran");
+    assert!(report.moves() > 0, "some node re-pointed");
+    let reach = 1.5 * params.domain.cell_size;
+    let mut changed = 0;
+    for (old, new) in network.segments.iter().zip(&view.network.segments) {
+        assert_eq!(old.from, new.from, "segments keep their upstream ends");
+        if old.to != new.to {
+            changed += 1;
+            let length = view.network.segment_length(new.from, new.to);
+            assert!(
+                length <= reach * (1.0 + 1e-12),
+                "re-pointed over {length} > {reach}"
+            );
+        }
+    }
+    assert!(changed > 0);
+}

@@ -129,6 +129,7 @@ fn valid_params() -> impl Strategy<Value = Params> {
                     refresh,
                     relax_junctions: 0,
                     energy_sweeps: 0,
+                    energy_reach: None,
                 },
                 ..Params::default()
             }

@@ -166,6 +166,11 @@ pub struct RunControl {
     /// version-1 links and parameters saved before the key existed); 0 ..= 50.
     #[serde(default)]
     pub energy_sweeps: u32,
+    /// How far (in cells) the channel energy optimisation may re-point where a node drains.
+    /// Default none: the growth reach `radius`; 1 ..= 50. None in parameters saved before the
+    /// key existed.
+    #[serde(default)]
+    pub energy_reach: Option<f64>,
 }
 
 /// The width rule: how a segment's drawn width follows its flow.
@@ -486,6 +491,7 @@ fn blank() -> Params {
             refresh: 0.0,
             relax_junctions: 0,
             energy_sweeps: 0,
+            energy_reach: None,
         },
         widths: Widths {
             gamma: 0.0,
