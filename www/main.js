@@ -391,6 +391,8 @@ function showCaution(site) {
   const caution = byId('caution');
   caution.hidden = !site;
   caution.textContent = site ? `Caution: ${core.site_caution()}` : '';
+  // Specimens are traced or cleared leaves: their panel is for leaves, not for site work.
+  byId('specimens').hidden = site;
 }
 
 /// The core's colour key of what the canvas shows: strokes, markers and labels.

@@ -59,8 +59,11 @@ test('the demo garden grows, sizes by the Rational Method and exports with the c
   await finishedDigest(page);
   await page.waitForFunction(() => !document.querySelector('#site-results').hidden, null, { timeout: 60000 });
 
-  const words = await page.evaluate(() => document.querySelector('main').innerText);
+  // No leaf word on a site page (the list of starting points, which names every preset, aside).
+  const words = await page.evaluate(
+    () => document.querySelector('main').innerText.replace(document.querySelector('#start-from').innerText, ''));
   assert.doesNotMatch(words, /vein/i, 'drainage words only on a site');
+  assert.doesNotMatch(words, /\b(leaf|petiole|areole|blade|tissue|midrib|veinlet)s?\b/i, 'no leaf words on a site');
   assert.match(await page.textContent('#site-caution'), /licensed engineer/);
   const outlets = await page.$$eval('#site-outlets tbody tr', (rows) => rows.map((row) => row.innerText));
   assert.equal(outlets.length, 1, `one outlet: ${outlets}`);

@@ -521,7 +521,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         unit: MetricUnit::Dimensionless,
         description: "4 pi A / P^2 of the smooth margin (cells closed, filled, traced and smoothed)",
         site_label: "",
-        about: "4πA/P² of the shape's smooth margin, 1 for a disc: the ragged growth front is smoothed away first (gaps under about 4 cells closed), so it reads the blade's outline.",
+        about: "4πA/P² of the shape's smooth margin, 1 for a disc: the ragged growth front is smoothed away first (gaps under about 4 cells closed), so it reads the outline of the grown area.",
         applies_to: AppliesTo::AnyNetwork,
         follows_lattice: false,
         read: |m| Reading::Number(m.circularity),
