@@ -34,6 +34,12 @@ pub fn presets() -> Vec<Preset> {
             params: ovate_leaf(),
         },
         Preset {
+            name: "looped-leaf",
+            title: "Ovate leaf with loops and areoles",
+            description: "the ovate leaf with veins apart from tissue (draining at least 0.05 mm²) and nested loops closed after growth, so areoles form",
+            params: looped_leaf(),
+        },
+        Preset {
             name: "elliptic-leaf",
             title: "Elliptic leaf (oval blade)",
             description: "an oval blade, widest at the middle, about 2.4 times as long as wide, grown from the petiole with the midrib to the apex",
@@ -213,6 +219,16 @@ fn blade_outline(
         outline.push([centre_x - half(t), base_y - t * length]);
     }
     outline
+}
+
+/// The ovate leaf with a conducting threshold and loop closing: the settings at which the loop
+/// pass gives about 2 areoles per mm² (README, "Loops and areoles").
+fn looped_leaf() -> Params {
+    let mut params = ovate_leaf();
+    params.widths.vein_area = 0.05;
+    params.widths.reconnect = Some(6.0);
+    params.widths.loop_levels = 3;
+    params
 }
 
 fn ovate_leaf() -> Params {
