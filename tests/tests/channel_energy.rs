@@ -14,8 +14,7 @@ use ramulus_core::network::{CellSet, Network, Node, Segment, NO_PARENT};
 use ramulus_core::params::Params;
 use ramulus_core::presets::preset;
 use ramulus_core::run::RunView;
-use robust::{orient2d, Coord};
-use std::collections::HashMap;
+use ramulus_tests::plane_check::conflicting_pairs;
 
 fn hand_network(points: &[(f64, f64)], ends: &[(u32, u32)]) -> Network {
     Network {
@@ -190,78 +189,6 @@ fn a_move_that_would_cross_is_refused() {
         !(parent[5] == 3 && parent[6] == 7),
         "5 -> 3 would cross 6 -> 7"
     );
-}
-
-/// Every pair of segments that meet anywhere but a shared end node, or overlap along a shared
-/// one, by the orientation test (Cormen et al. 2009, Introduction to Algorithms, 3rd ed.,
-/// section 33.1) on Shewchuk's exact `orient2d`; segments in a grid of buckets as long as the
-/// longest segment, each compared with the segments starting in the 5 x 5 buckets around.
-fn conflicting_pairs(network: &Network) -> usize {
-    let ends: Vec<(u32, u32)> = network.segments.iter().map(|s| (s.from, s.to)).collect();
-    let longest = ends
-        .iter()
-        .map(|&(a, b)| network.segment_length(a, b))
-        .fold(0.0_f64, f64::max)
-        .max(1e-12);
-    let key = |node: u32| {
-        let n = &network.nodes[node as usize];
-        (
-            (n.x / longest).floor() as i64,
-            (n.y / longest).floor() as i64,
-        )
-    };
-    let mut buckets: HashMap<(i64, i64), Vec<usize>> = HashMap::new();
-    for (index, &(a, _)) in ends.iter().enumerate() {
-        buckets.entry(key(a)).or_default().push(index);
-    }
-    let mut count = 0;
-    for (index, &(a, b)) in ends.iter().enumerate() {
-        let (column, row) = key(a);
-        for dx in -2..=2 {
-            for dy in -2..=2 {
-                let Some(others) = buckets.get(&(column + dx, row + dy)) else {
-                    continue;
-                };
-                for &other in others {
-                    if other > index && meet(network, (a, b), ends[other]) {
-                        count += 1;
-                    }
-                }
-            }
-        }
-    }
-    count
-}
-
-fn meet(network: &Network, first: (u32, u32), second: (u32, u32)) -> bool {
-    let c = |node: u32| {
-        let n = &network.nodes[node as usize];
-        Coord { x: n.x, y: n.y }
-    };
-    let shared = [first.0, first.1]
-        .into_iter()
-        .find(|&node| node == second.0 || node == second.1);
-    if let Some(s) = shared {
-        let other = |seg: (u32, u32)| if seg.0 == s { seg.1 } else { seg.0 };
-        let (s, p, q) = (c(s), c(other(first)), c(other(second)));
-        return orient2d(s, p, q) == 0.0
-            && (p.x - s.x) * (q.x - s.x) + (p.y - s.y) * (q.y - s.y) > 0.0;
-    }
-    let (a, b, p, q) = (c(first.0), c(first.1), c(second.0), c(second.1));
-    let d1 = orient2d(p, q, a);
-    let d2 = orient2d(p, q, b);
-    let d3 = orient2d(a, b, p);
-    let d4 = orient2d(a, b, q);
-    if d1 * d2 < 0.0 && d3 * d4 < 0.0 {
-        return true;
-    }
-    let on = |u: Coord<f64>, v: Coord<f64>, w: Coord<f64>| {
-        w.x >= u.x.min(v.x) && w.x <= u.x.max(v.x) && w.y >= u.y.min(v.y) && w.y <= u.y.max(v.y)
-    };
-    (d1 == 0.0 && on(p, q, a))
-        || (d2 == 0.0 && on(p, q, b))
-        || (d3 == 0.0 && on(a, b, p))
-        || (d4 == 0.0 && on(a, b, q))
 }
 
 fn grown(name: &str, seed: u64, cells: u64) -> (Params, Network) {

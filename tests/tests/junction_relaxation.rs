@@ -9,7 +9,7 @@ use ramulus_core::network::{CellSet, Network, Node, Segment};
 use ramulus_core::params::Params;
 use ramulus_core::presets::preset;
 use ramulus_core::run::RunView;
-use robust::{orient2d, Coord};
+use ramulus_tests::plane_check::conflicting_pairs;
 
 /// A Y: root 0 at the origin, junction 1 started at (0, 10), upstream tips 2 at (-5, 40) and 3
 /// at (5, 40) carrying `q1` and `q2`. The triangle's angles (14 degrees at the root, 83 at each
@@ -166,86 +166,6 @@ fn a_junction_never_collapses_into_a_neighbour() {
 
 // ---------------------------------------------------------------------------------------------
 // Grown networks.
-
-fn coord(network: &Network, node: u32) -> Coord<f64> {
-    let node = &network.nodes[node as usize];
-    Coord {
-        x: node.x,
-        y: node.y,
-    }
-}
-
-fn on_segment(a: Coord<f64>, b: Coord<f64>, p: Coord<f64>) -> bool {
-    p.x >= a.x.min(b.x) && p.x <= a.x.max(b.x) && p.y >= a.y.min(b.y) && p.y <= a.y.max(b.y)
-}
-
-/// Whether segments `a b` and `c d` meet anywhere except at a shared end node (Cormen et al.
-/// 2009, Introduction to Algorithms, 3rd ed., section 33.1, on Shewchuk's exact predicates).
-fn segments_conflict(network: &Network, first: (u32, u32), second: (u32, u32)) -> bool {
-    let (a, b) = (coord(network, first.0), coord(network, first.1));
-    let (c, d) = (coord(network, second.0), coord(network, second.1));
-    let shared = [first.0, first.1]
-        .iter()
-        .find(|node| **node == second.0 || **node == second.1)
-        .copied();
-    if let Some(shared) = shared {
-        let s = coord(network, shared);
-        let p = if first.0 == shared { b } else { a };
-        let q = if second.0 == shared { d } else { c };
-        return orient2d(s, p, q) == 0.0
-            && (p.x - s.x) * (q.x - s.x) + (p.y - s.y) * (q.y - s.y) > 0.0;
-    }
-    let d1 = orient2d(c, d, a);
-    let d2 = orient2d(c, d, b);
-    let d3 = orient2d(a, b, c);
-    let d4 = orient2d(a, b, d);
-    if d1 * d2 < 0.0 && d3 * d4 < 0.0 {
-        return true;
-    }
-    (d1 == 0.0 && on_segment(c, d, a))
-        || (d2 == 0.0 && on_segment(c, d, b))
-        || (d3 == 0.0 && on_segment(a, b, c))
-        || (d4 == 0.0 && on_segment(a, b, d))
-}
-
-/// Pairs of segments that cross, touch or overlap, through a grid of buckets as wide as the
-/// longest segment.
-fn conflicting_pairs(network: &Network) -> usize {
-    let ends: Vec<(u32, u32)> = network.segments.iter().map(|s| (s.from, s.to)).collect();
-    let longest = ends
-        .iter()
-        .map(|&(a, b)| network.segment_length(a, b))
-        .fold(0.0_f64, f64::max)
-        .max(1e-12);
-    let key = |node: u32| {
-        let n = &network.nodes[node as usize];
-        (
-            (n.x / longest).floor() as i64,
-            (n.y / longest).floor() as i64,
-        )
-    };
-    let mut buckets: std::collections::HashMap<(i64, i64), Vec<usize>> = Default::default();
-    for (index, &(a, _)) in ends.iter().enumerate() {
-        buckets.entry(key(a)).or_default().push(index);
-    }
-    let mut count = 0;
-    for (index, &(a, b)) in ends.iter().enumerate() {
-        let (column, row) = key(a);
-        for dx in -2..=2 {
-            for dy in -2..=2 {
-                let Some(others) = buckets.get(&(column + dx, row + dy)) else {
-                    continue;
-                };
-                for &other in others {
-                    if other > index && segments_conflict(network, (a, b), ends[other]) {
-                        count += 1;
-                    }
-                }
-            }
-        }
-    }
-    count
-}
 
 fn grown(name: &str, seed: u64, cells: u64) -> (Params, Network) {
     let mut params = preset(name).expect("a preset");
