@@ -202,8 +202,15 @@ impl Simulation {
     }
 
     /// Digest of the network so far (16 hex digits).
-    pub fn digest(&self) -> String {
-        ramulus_core::digest::digest_hex(&self.network())
+    pub fn digest(&mut self) -> Result<String, JsError> {
+        // A finished run's network is the one the whole pipeline gives (junctions relaxed,
+        // drainage re-pointed, loops closed after growth), as the command line digests it;
+        // while it grows, and for a network read from a record, it is the network as it is.
+        let after_growth = self.reshapes() || self.params.widths.reconnect.is_some();
+        if after_growth && self.finished() && matches!(self.source, Source::Growing(_)) {
+            return Ok(self.view()?.digest.clone());
+        }
+        Ok(ramulus_core::digest::digest_hex(&self.network()))
     }
 
     /// The digest saved in the record this run was restored from, if any.
@@ -641,7 +648,9 @@ impl Simulation {
     /// The derived view of the network as it stands, computed once per change of the network.
     fn view(&mut self) -> Result<&RunView, JsError> {
         if self.view_cache.is_none() {
-            let view = if self.reshapes() && !self.relaxes_now() {
+            // A network read from a record is measured as it is, never reshaped again.
+            let fixed = matches!(self.source, Source::Fixed(_));
+            let view = if fixed || (self.reshapes() && !self.relaxes_now()) {
                 RunView::new(self.network(), &as_measured(&self.params))
             } else {
                 RunView::new(self.network(), &self.params)

@@ -55,6 +55,12 @@ const variants = [
   { joining: 'uniform', seed: 14, radius: 1 },
   { joining: 'weighted', seed: 2 ** 40 + 17, radius: 6.5, gamma: 2 },
   { joining: 'weighted', seed: 16, temperature: 5, cells: 3000 },
+  // Passes after growth that reshape the network: the finished digest is the pipeline's.
+  { joining: 'weighted', seed: 17, relax_junctions: 3 },
+  { joining: 'weighted', seed: 18, units: 'm', cell_size: 0.5, energy_sweeps: 2, energy_reach: 1.5 },
+  { joining: 'weighted', seed: 19, vein_area: 0.5, reconnect: 6, loop_levels: 2 },
+  { joining: 'weighted', seed: 20, units: 'm', cell_size: 0.5, levels: [[0, 0, 10], [59, 0, 11], [30, 49, 9]], w_grade: 1,
+    zones: [{ runoff: 0.9, polygon: [[10, 10], [30, 10], [30, 30]] }] },
 ];
 variants.forEach((variant, index) => cases.push({ name: `variant ${index}`, params: { ...base, ...variant } }));
 // Fresh random seeds on every run, one per joining rule, named in the test title to reproduce.
