@@ -30,6 +30,7 @@ use std::cmp::Reverse;
 use std::collections::BinaryHeap;
 
 use crate::network::{Network, Segment, Topology, NO_PARENT};
+use crate::metrics::areoles::segments_conflict;
 
 /// How loops close.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -239,10 +240,10 @@ pub fn close_loops(
                 let new = (point(u), point(v));
                 let crosses = segment_grid.in_box(new.0, new.1).iter().any(|&index| {
                     let (a, b) = segments[index as usize];
-                    conflicts(
+                    segments_conflict(
                         new,
-                        (u as u32, v as u32),
                         (point(a as usize), point(b as usize)),
+                        (u as u32, v as u32),
                         (a, b),
                     )
                 });
@@ -475,68 +476,6 @@ impl Ord for Ordered {
     fn cmp(&self, other: &Self) -> std::cmp::Ordering {
         self.0.total_cmp(&other.0)
     }
-}
-
-/// Twice the signed area of the triangle a, b, c.
-fn orientation(a: (f64, f64), b: (f64, f64), c: (f64, f64)) -> f64 {
-    (b.0 - a.0) * (c.1 - a.1) - (b.1 - a.1) * (c.0 - a.0)
-}
-
-fn within(a: (f64, f64), b: (f64, f64), c: (f64, f64)) -> bool {
-    c.0 >= a.0.min(b.0) && c.0 <= a.0.max(b.0) && c.1 >= a.1.min(b.1) && c.1 <= a.1.max(b.1)
-}
-
-/// Whether the new segment `new` (ends `ids`) meets the segment `old` (ends `old_ids`)
-/// anywhere but at a shared end node, by the orientation test (Cormen et al. 2009,
-/// Introduction to Algorithms, 3rd ed., section 33.1); a shared end conflicts only when the
-/// two run along each other.
-fn conflicts(
-    new: ((f64, f64), (f64, f64)),
-    ids: (u32, u32),
-    old: ((f64, f64), (f64, f64)),
-    old_ids: (u32, u32),
-) -> bool {
-    let (a, b) = new;
-    let (c, d) = old;
-    let shared = [ids.0, ids.1]
-        .iter()
-        .filter(|&&n| n == old_ids.0 || n == old_ids.1)
-        .count();
-    if shared == 2 {
-        return true;
-    }
-    if shared == 1 {
-        let (common, far_new, far_old) = if ids.0 == old_ids.0 {
-            (a, b, d)
-        } else if ids.0 == old_ids.1 {
-            (a, b, c)
-        } else if ids.1 == old_ids.0 {
-            (b, a, d)
-        } else {
-            (b, a, c)
-        };
-        let collinear = orientation(common, far_new, far_old) == 0.0;
-        let same_way = (far_new.0 - common.0) * (far_old.0 - common.0)
-            + (far_new.1 - common.1) * (far_old.1 - common.1)
-            > 0.0;
-        return collinear && same_way;
-    }
-    if a == c || a == d || b == c || b == d {
-        return true;
-    }
-    let d1 = orientation(c, d, a);
-    let d2 = orientation(c, d, b);
-    let d3 = orientation(a, b, c);
-    let d4 = orientation(a, b, d);
-    if ((d1 > 0.0 && d2 < 0.0) || (d1 < 0.0 && d2 > 0.0))
-        && ((d3 > 0.0 && d4 < 0.0) || (d3 < 0.0 && d4 > 0.0))
-    {
-        return true;
-    }
-    (d1 == 0.0 && within(c, d, a))
-        || (d2 == 0.0 && within(c, d, b))
-        || (d3 == 0.0 && within(a, b, c))
-        || (d4 == 0.0 && within(a, b, d))
 }
 
 #[cfg(test)]

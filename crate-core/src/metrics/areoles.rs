@@ -263,7 +263,7 @@ fn within(a: (f64, f64), b: (f64, f64), c: (f64, f64)) -> bool {
 /// Whether two segments meet anywhere but at one shared end node: the classic orientation
 /// test for segment intersection (Cormen et al. 2009, Introduction to Algorithms, 3rd ed.,
 /// section 33.1), with shared ends allowed unless the two segments run along each other.
-fn segments_conflict(
+pub(crate) fn segments_conflict(
     (a, b): ((f64, f64), (f64, f64)),
     (c, d): ((f64, f64), (f64, f64)),
     (ea, eb): (u32, u32),

@@ -19,7 +19,7 @@ use crate::network::{Network, NetworkKind, Topology, TopologyError};
 use crate::segments::strahler_orders;
 
 mod angles;
-mod areoles;
+pub(crate) mod areoles;
 mod densities;
 mod hack;
 mod loops;
