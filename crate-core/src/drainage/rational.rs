@@ -261,8 +261,8 @@ mod tests {
 
     #[test]
     fn default_table_holds_hec22_ranges_and_refuses_bad_edits() {
-        // Ranges of the ASCE / HEC-22 table as reproduced on abe-research.illinois.edu
-        // (TSM352 lecture "runoff coefficients"): lawns on sandy flat soil 0.05-0.10, heavy
+        // Ranges of the ASCE table reproduced in US FHWA HEC-22, 3rd ed. (2009), Table 3-1
+        // (table number from memory): lawns on sandy flat soil 0.05-0.10, heavy
         // steep 0.25-0.35, asphalt streets 0.70-0.95, concrete 0.80-0.95, roofs 0.75-0.95.
         let table = RunoffTable::default();
         let range = |key: &str| {

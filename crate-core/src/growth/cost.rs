@@ -253,7 +253,8 @@ mod tests {
 
     /// With spot levels the uphill term reads the ground: joining a cell to an anchor 0.1 m
     /// higher on 0.5 m cells rises 0.2 cells, costing `w_grade * 100 * 0.2 = 20`; downhill
-    /// costs nothing (the term of DOMAIN.md section 1, `w_grade * uphill(c, p)`).
+    /// costs nothing (the uphill term of `CostModel::cost`, `w_grade * 100 * rise`, only for a
+    /// positive rise).
     #[test]
     fn uphill_on_spot_levels_costs_and_downhill_does_not() {
         let mut params = Params::default();

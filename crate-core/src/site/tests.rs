@@ -466,8 +466,8 @@ fn uphill_share(network: &Network, params: &Params) -> f64 {
 }
 
 /// The uphill term on spot levels: over four seeds of the demo garden, the share of channel
-/// length running uphill is lower with `w_grade` = 1 than with 0 (the term of DOMAIN.md
-/// section 1 penalises `uphill(c, p)`; no outside figure exists for this model, so the check is
+/// length running uphill is lower with `w_grade` = 1 than with 0 (the uphill term of
+/// `CostModel::cost` charges every rise; no outside figure exists for this model, so the check is
 /// the direction of the effect). Run with `--nocapture` to see the figures.
 #[test]
 fn the_uphill_term_lowers_the_uphill_share_on_spot_levels() {
