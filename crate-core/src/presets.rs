@@ -342,15 +342,7 @@ fn drainage_site() -> Params {
             obstacles: vec![vec![[60.0, 30.0], [95.0, 30.0], [95.0, 55.0], [60.0, 55.0]]],
             ..Domain::default()
         },
-        costs: CostWeights {
-            w_len: 1.0,
-            w_turn: 0.5,
-            w_flow: 0.5,
-            alpha: 0.6,
-            w_path: 0.0,
-            w_grade: 1.0,
-            ..CostWeights::default()
-        },
+        costs: CostWeights::drainage(),
         run: RunControl {
             seed: 5,
             cells: 15_000,

@@ -29,8 +29,8 @@
 use std::cmp::Reverse;
 use std::collections::BinaryHeap;
 
-use crate::network::{Network, Segment, Topology, NO_PARENT};
 use crate::metrics::areoles::segments_conflict;
+use crate::network::{Network, Segment, Topology, NO_PARENT};
 
 /// How loops close.
 #[derive(Clone, Copy, Debug, PartialEq)]

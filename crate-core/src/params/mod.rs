@@ -277,6 +277,23 @@ impl Default for Domain {
     }
 }
 
+impl CostWeights {
+    /// The costs of a drainage layout: length, junction angle and transport alike, the
+    /// transport exponent of channels (0.6), no supply-distance term, and the uphill term on.
+    /// The `drainage-site` preset and every site read from a file share them.
+    pub fn drainage() -> CostWeights {
+        CostWeights {
+            w_len: 1.0,
+            w_turn: 0.5,
+            w_flow: 0.5,
+            alpha: 0.6,
+            w_path: 0.0,
+            w_grade: 1.0,
+            ..CostWeights::default()
+        }
+    }
+}
+
 impl Default for CostWeights {
     fn default() -> Self {
         Params::default().costs

@@ -189,15 +189,7 @@ impl Site {
                 refine: 1,
                 front_only: false,
             },
-            costs: CostWeights {
-                w_len: 1.0,
-                w_turn: 0.5,
-                w_flow: 0.5,
-                alpha: 0.6,
-                w_path: 0.0,
-                w_grade: 1.0,
-                ..CostWeights::default()
-            },
+            costs: CostWeights::drainage(),
             run: RunControl {
                 seed: 1,
                 radius: 4.0,
