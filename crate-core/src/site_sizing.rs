@@ -204,6 +204,13 @@ impl SizingForm {
             rules.conveyance = Conveyance::Pipes { diameters };
         }
         rules.validate()?;
+        // The relation must give a finite, positive intensity at every duration a site's time
+        // of concentration takes, from the inlet time (5 min at most) to 120 min: a / (t + b)^c
+        // is monotonic in t, so its two ends bound it (a negative `b` or a large `c` fail here,
+        // before any growth, rather than when a channel is sized).
+        for minutes in [rules.inlet_time_minutes.min(5.0), 120.0] {
+            storm.intensity_mm_per_hour(minutes)?;
+        }
         Ok(SiteDesign {
             storm,
             rules,
@@ -398,6 +405,19 @@ mod tests {
         };
         assert!((diameters[0] - 0.3048).abs() < 1e-12);
         assert!((diameters[1] - 0.381).abs() < 1e-12);
+    }
+
+    /// Fuzz regression (tests/tests/fuzz_sizing.rs): `b = -10` makes `t + b` negative at
+    /// 5 min, where `(t + b)^c` has no real value; the form was accepted and sizing failed only
+    /// after growth. Now the form is refused, naming the duration.
+    #[test]
+    fn idf_coefficients_giving_no_intensity_at_five_minutes_are_refused() {
+        let error = form(r#"{"rain":{"kind":"idf","a":"1500","b":"-10","c":"0.8"}}"#).unwrap_err();
+        let text = error.to_string();
+        assert!(text.contains("at a duration of 5 min"), "{text}");
+        // c = 400: 125^400 overflows, so the intensity at 120 min is 0, not positive.
+        let error = form(r#"{"rain":{"kind":"idf","a":"1500","b":"5","c":"400"}}"#).unwrap_err();
+        assert!(error.to_string().contains("120 min"), "{error}");
     }
 
     #[test]

@@ -82,13 +82,15 @@ impl DesignStorm {
                 (value, unit)
             }
         };
-        if !(intensity.is_finite() && intensity > 0.0) {
+        // Checked after conversion too: 1e307 in/h is finite but not in mm/h.
+        let si = unit.intensity_to_si(intensity);
+        if !(intensity.is_finite() && intensity > 0.0 && si.is_finite() && si > 0.0) {
             return Err(DrainageError::IntensityAtDuration {
                 duration_minutes,
                 value: intensity,
             });
         }
-        Ok(unit.intensity_to_si(intensity))
+        Ok(si)
     }
 }
 
