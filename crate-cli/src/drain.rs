@@ -122,6 +122,17 @@ check any design against local stormwater codes before anything is built.";
 /// `ramulus drain`.
 pub fn drain(options: DrainOptions) -> Result<(), CliError> {
     let mut plan = OutputPlan::default();
+    // The inputs first, so that an output naming one of them is refused before anything is
+    // read or written (an `--svg` onto the `--site` file replaced the site).
+    for (flag, path) in [
+        ("--site", &options.site),
+        ("--levels", &options.levels),
+        ("--terrain", &options.terrain),
+    ] {
+        if let Some(path) = path {
+            plan.input(flag, path);
+        }
+    }
     for (flag, path) in [
         ("--svg", &options.svg_file),
         ("--geojson", &options.geojson_file),
@@ -135,7 +146,7 @@ pub fn drain(options: DrainOptions) -> Result<(), CliError> {
     let design = form
         .design()
         .map_err(|error| CliError::Failed(format!("design storm and sizing: {error}")))?;
-    let site_file = read_site_file(&options, &mut plan)?;
+    let site_file = read_site_file(&options)?;
     let params = match &site_file {
         Some(site) => site_params(site, &options)?,
         None => drain_params(&options)?,
@@ -318,22 +329,57 @@ fn drain_params(options: &DrainOptions) -> Result<Params, CliError> {
     assemble_params(link, preset, None, &options.sets, None)
 }
 
+/// Largest site file read: 256 MiB (far above 20,000 features of rings of 10,000 positions
+/// written compactly).
+const MAX_SITE_FILE_BYTES: u64 = 256 << 20;
+/// Largest spot-level file read: 64 MiB (a run takes 4,096 levels).
+const MAX_LEVELS_FILE_BYTES: u64 = 64 << 20;
+/// Largest GeoTIFF read: 1 GiB (64 million 64-bit elevations, `MAX_RASTER_PIXELS`, and tags).
+const MAX_RASTER_FILE_BYTES: u64 = 1 << 30;
+
+/// The bytes of an input file of at most `limit` bytes, read through that limit, so that a
+/// huge file, a device such as `/dev/zero` or a pipe cannot fill the memory.
+fn read_input(path: &str, what: &str, limit: u64) -> Result<Vec<u8>, CliError> {
+    use std::io::Read as _;
+    let cannot = |error: std::io::Error| CliError::Failed(format!("{path}: cannot read: {error}"));
+    let too_large = || {
+        CliError::Failed(format!(
+            "{path}: larger than {} MiB, the most a {what} may hold",
+            limit >> 20
+        ))
+    };
+    let file = std::fs::File::open(path).map_err(cannot)?;
+    if file.metadata().map_err(cannot)?.len() > limit {
+        return Err(too_large());
+    }
+    let mut bytes = Vec::new();
+    file.take(limit + 1)
+        .read_to_end(&mut bytes)
+        .map_err(cannot)?;
+    if bytes.len() as u64 > limit {
+        return Err(too_large());
+    }
+    Ok(bytes)
+}
+
 /// The site file of `--site` with the spot levels of `--levels`, if given.
-fn read_site_file(options: &DrainOptions, plan: &mut OutputPlan) -> Result<Option<Site>, CliError> {
+fn read_site_file(options: &DrainOptions) -> Result<Option<Site>, CliError> {
     let Some(path) = &options.site else {
         return Ok(None);
     };
-    plan.input("--site", path);
-    let bytes = std::fs::read(path)
-        .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))?;
+    let bytes = read_input(path, "site file", MAX_SITE_FILE_BYTES)?;
     let mut site =
         read_site(&bytes).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
     if let Some(levels_path) = &options.levels {
-        plan.input("--levels", levels_path);
-        let bytes = std::fs::read(levels_path)
-            .map_err(|error| CliError::Failed(format!("{levels_path}: cannot read: {error}")))?;
+        let bytes = read_input(levels_path, "spot-level file", MAX_LEVELS_FILE_BYTES)?;
         let levels = read_spot_levels_csv(&bytes)
             .map_err(|error| CliError::Failed(format!("{levels_path}: {error}")))?;
+        // An empty file would silently replace the site's own levels with flat ground.
+        if levels.is_empty() {
+            return Err(CliError::Failed(format!(
+                "{levels_path}: no spot levels in the file; give at least 3 lines x,y,z"
+            )));
+        }
         site.set_levels(levels)
             .map_err(|error| CliError::Failed(format!("{levels_path}: {error}")))?;
     }
@@ -347,8 +393,7 @@ fn site_params(site: &Site, options: &DrainOptions) -> Result<Params, CliError> 
         .cell_size
         .unwrap_or(if site.units == "ft" { 1.5 } else { 0.5 });
     let terrain = if let Some(path) = &options.terrain {
-        let bytes = std::fs::read(path)
-            .map_err(|error| CliError::Failed(format!("{path}: cannot read: {error}")))?;
+        let bytes = read_input(path, "GeoTIFF", MAX_RASTER_FILE_BYTES)?;
         let raster =
             read_geotiff(&bytes).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
         Terrain::Raster {

@@ -58,6 +58,15 @@ impl OutputPlan {
     /// output (the same file reached by any spelling of its path).
     pub fn output(&mut self, flag: &'static str, path: &str) -> Result<(), CliError> {
         let target = resolved(path);
+        // Renaming a finished file into place would replace a device (`/dev/full`), a pipe or
+        // a socket with a plain file, and cannot replace a folder: refuse them up front.
+        if std::fs::metadata(&target).is_ok_and(|metadata| !metadata.is_file()) {
+            return Err(CliError::Usage(format!(
+                "`{flag} {path}` is not a plain file (a folder, device, pipe or socket); an \
+                 output is written whole to a temporary file and renamed into place, which \
+                 would replace it: give the path of a file"
+            )));
+        }
         for (other_flag, other_path, other) in self.inputs.iter().chain(&self.outputs) {
             if *other == target {
                 return Err(CliError::Usage(format!(

@@ -415,8 +415,8 @@ mod tests {
         let error = form(r#"{"rain":{"kind":"idf","a":"1500","b":"-10","c":"0.8"}}"#).unwrap_err();
         let text = error.to_string();
         assert!(text.contains("at a duration of 5 min"), "{text}");
-        // c = 400: 125^400 overflows, so the intensity at 120 min is 0, not positive.
-        let error = form(r#"{"rain":{"kind":"idf","a":"1500","b":"5","c":"400"}}"#).unwrap_err();
+        // c = 200: 10^200 at 5 min is finite, 125^200 at 120 min overflows, giving 0.
+        let error = form(r#"{"rain":{"kind":"idf","a":"1500","b":"5","c":"200"}}"#).unwrap_err();
         assert!(error.to_string().contains("120 min"), "{error}");
     }
 
