@@ -63,7 +63,13 @@ impl Folder {
     fn names(&self) -> Vec<String> {
         let mut names: Vec<String> = std::fs::read_dir(&self.0)
             .expect("the folder")
-            .map(|entry| entry.expect("an entry").file_name().to_string_lossy().into_owned())
+            .map(|entry| {
+                entry
+                    .expect("an entry")
+                    .file_name()
+                    .to_string_lossy()
+                    .into_owned()
+            })
             .collect();
         names.sort();
         names
@@ -119,7 +125,11 @@ fn assert_failed(outcome: &Outcome, code: i32, needles: &[&str]) {
 #[test]
 fn a_self_intersecting_outline_names_its_feature_and_edges() {
     let folder = Folder::new("bow-tie");
-    let outcome = drain_site(&folder, &yard("[[0,0],[20,20],[20,0],[0,20],[0,0]]", ""), &[]);
+    let outcome = drain_site(
+        &folder,
+        &yard("[[0,0],[20,20],[20,0],[0,20],[0,0]]", ""),
+        &[],
+    );
     // Edges 0 ((0,0)-(20,20)) and 2 ((20,0)-(0,20)) of the bow tie cross at (10, 10).
     assert_failed(
         &outcome,
@@ -158,7 +168,12 @@ fn an_outlet_outside_the_site_is_named_with_its_place() {
     assert_failed(
         &outcome,
         1,
-        &["site.geojson", "feature 2 (\"ditch\")", "(30, 5)", "outside"],
+        &[
+            "site.geojson",
+            "feature 2 (\"ditch\")",
+            "(30, 5)",
+            "outside",
+        ],
     );
 }
 
@@ -180,7 +195,10 @@ fn a_site_cut_in_two_reports_the_part_that_cannot_drain() {
             "around (10.00, 17.00)",
         ],
     );
-    assert!(!Path::new(&svg).exists(), "a plan was written for a failed run");
+    assert!(
+        !Path::new(&svg).exists(),
+        "a plan was written for a failed run"
+    );
 }
 
 #[test]
@@ -210,7 +228,9 @@ fn idf_coefficients_without_a_positive_intensity_are_refused() {
         let outcome = ramulus(&["drain", "--site", &site, "--cell-size", "1", &flag]);
         assert_failed(&outcome, 1, needles);
         assert!(
-            !outcome.stderr.contains("warning: the site has no spot levels"),
+            !outcome
+                .stderr
+                .contains("warning: the site has no spot levels"),
             "the site was read before the storm was checked: {}",
             outcome.stderr
         );
@@ -224,7 +244,11 @@ fn spot_levels_outside_the_site_or_too_few_are_named() {
     let folder = Folder::new("levels");
     let outside = folder.file("outside.csv", b"x,y,z\n1,1,10\n19,1,9\n30,30,8\n");
     let outcome = drain_site(&folder, &yard(SQUARE, ""), &["--levels", &outside]);
-    assert_failed(&outcome, 1, &["outside.csv", "line 4", "(30, 30)", "outside"]);
+    assert_failed(
+        &outcome,
+        1,
+        &["outside.csv", "line 4", "(30, 30)", "outside"],
+    );
     let two = folder.file("two.csv", b"1,1,10\n19,1,9\n");
     let outcome = drain_site(&folder, &yard(SQUARE, ""), &["--levels", &two]);
     assert_failed(&outcome, 1, &["two.csv", "2 spot level(s)", "at least 3"]);
@@ -294,21 +318,33 @@ fn mixed_units_are_named() {
     );
     let site = yard(SQUARE, "").replace(r#""units":"m""#, r#""units":"yd""#);
     let outcome = drain_site(&folder, &site, &[]);
-    assert_failed(&outcome, 1, &["site.geojson", "the site", "\"yd\"", "\"m\" or \"ft\""]);
+    assert_failed(
+        &outcome,
+        1,
+        &["site.geojson", "the site", "\"yd\"", "\"m\" or \"ft\""],
+    );
 }
 
 #[test]
 fn empty_and_huge_inputs_are_refused_by_name() {
     let folder = Folder::new("sizes");
     let outcome = drain_site(&folder, "", &[]);
-    assert_failed(&outcome, 1, &["site.geojson", "line 1 column 0", "not readable JSON"]);
+    assert_failed(
+        &outcome,
+        1,
+        &["site.geojson", "line 1 column 0", "not readable JSON"],
+    );
     // A sparse file of 300 MiB: refused from its size, before it is read.
     let huge = folder.path("huge.geojson");
     std::fs::File::create(&huge)
         .and_then(|file| file.set_len(300 << 20))
         .expect("a sparse file");
     let outcome = ramulus(&["drain", "--site", &huge, "--intensity", "50"]);
-    assert_failed(&outcome, 1, &["huge.geojson", "larger than 256 MiB", "site file"]);
+    assert_failed(
+        &outcome,
+        1,
+        &["huge.geojson", "larger than 256 MiB", "site file"],
+    );
     // A device that never ends is read only up to the limit.
     if Path::new("/dev/zero").exists() {
         let site = folder.file("site.geojson", yard(SQUARE, "").as_bytes());
@@ -324,10 +360,7 @@ fn empty_and_huge_inputs_are_refused_by_name() {
         assert_failed(&outcome, 1, &["/dev/zero", "larger than 64 MiB"]);
     }
     // A site far larger than the lattice at the default 0.5 m cells.
-    let wide = yard(
-        "[[0,0],[100000,0],[100000,20],[0,20],[0,0]]",
-        "",
-    );
+    let wide = yard("[[0,0],[100000,0],[100000,20],[0,20],[0,0]]", "");
     let outcome = drain_site(&folder, &wide, &[]);
     assert_failed(&outcome, 1, &["100000 x 20 cells", "choose larger cells"]);
     let site = folder.path("site.geojson");
@@ -341,7 +374,10 @@ fn an_output_onto_an_input_is_refused_and_the_input_kept() {
     let site_text = yard(SQUARE, "");
     let site = folder.file("site.geojson", site_text.as_bytes());
     let levels = folder.file("levels.csv", b"x,y,z\n1,1,10\n19,1,9.5\n10,19,9\n");
-    let terrain = folder.file("ground.tif", &std::fs::read(corpus_tiff("float32.tif")).expect("seed"));
+    let terrain = folder.file(
+        "ground.tif",
+        &std::fs::read(corpus_tiff("float32.tif")).expect("seed"),
+    );
     for (flag, target, input_flag) in [
         ("--svg", &site, "--site"),
         ("--csv", &levels, "--levels"),
@@ -381,13 +417,27 @@ fn dev_full_is_refused_as_an_output_and_fails_as_standard_output() {
     };
     let folder = Folder::new("dev-full");
     let site = folder.file("site.geojson", yard(SQUARE, "").as_bytes());
-    let common = ["drain", "--site", &site, "--cell-size", "1", "--intensity", "50"];
+    let common = [
+        "drain",
+        "--site",
+        &site,
+        "--cell-size",
+        "1",
+        "--intensity",
+        "50",
+    ];
     for flag in ["--csv", "--svg", "--geojson"] {
         let mut arguments = common.to_vec();
         arguments.extend([flag, "/dev/full"]);
         let outcome = ramulus(&arguments);
-        assert_failed(&outcome, 2, &[&format!("`{flag} /dev/full`"), "not a plain file"]);
-        let kind = std::fs::metadata("/dev/full").expect("/dev/full").file_type();
+        assert_failed(
+            &outcome,
+            2,
+            &[&format!("`{flag} /dev/full`"), "not a plain file"],
+        );
+        let kind = std::fs::metadata("/dev/full")
+            .expect("/dev/full")
+            .file_type();
         assert!(kind.is_char_device(), "/dev/full was replaced");
     }
     let mut arguments = common.to_vec();
@@ -470,10 +520,16 @@ fn ctrl_c_leaves_each_output_old_or_whole() {
             } else if path.ends_with(".svg") {
                 assert!(text.trim_end().ends_with("</svg>"), "{path} cut short");
             } else {
-                assert!(text.ends_with('\n') && text.lines().count() > 1, "{path} cut short");
+                assert!(
+                    text.ends_with('\n') && text.lines().count() > 1,
+                    "{path} cut short"
+                );
             }
         }
-        assert_eq!(folder.names(), ["channels.geojson", "plan.svg", "schedule.csv"]);
+        assert_eq!(
+            folder.names(),
+            ["channels.geojson", "plan.svg", "schedule.csv"]
+        );
     }
     assert!(interrupted >= 1, "no run was interrupted");
 }
@@ -488,7 +544,10 @@ fn cell_sizes_that_are_not_positive_lengths_are_named() {
         assert_failed(
             &outcome,
             1,
-            &[&format!("cell size {value} m"), "a positive length is needed"],
+            &[
+                &format!("cell size {value} m"),
+                "a positive length is needed",
+            ],
         );
     }
 }

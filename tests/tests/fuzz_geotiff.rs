@@ -60,7 +60,10 @@ fn check(input: &FuzzInput) -> Result<Verdict, TestCaseError> {
         raster.first_centre
     );
     prop_assert!(
-        raster.pixel.iter().all(|value| value.is_finite() && *value > 0.0),
+        raster
+            .pixel
+            .iter()
+            .all(|value| value.is_finite() && *value > 0.0),
         "pixel size {:?}",
         raster.pixel
     );
@@ -82,8 +85,7 @@ fn check(input: &FuzzInput) -> Result<Verdict, TestCaseError> {
         // `at` reads nothing next to a pixel without data (its documented rule).
         let next_to_no_data = (column.saturating_sub(1)..(column + 2).min(raster.width))
             .flat_map(|c| {
-                (row.saturating_sub(1)..(row + 2).min(raster.height))
-                    .map(move |r| (c, r))
+                (row.saturating_sub(1)..(row + 2).min(raster.height)).map(move |r| (c, r))
             })
             .any(|(c, r)| raster.values[r * raster.width + c].is_nan());
         if value.is_nan() {

@@ -54,7 +54,11 @@ fn check(input: &FuzzInput) -> Result<Verdict, TestCaseError> {
         text.push_str(&format!("{},{},{}\n", level.x, level.y, level.z));
     }
     let again = read_spot_levels_csv(text.as_bytes());
-    prop_assert!(again.is_ok(), "written levels do not read back: {:?}", again.err());
+    prop_assert!(
+        again.is_ok(),
+        "written levels do not read back: {:?}",
+        again.err()
+    );
     let again = again.unwrap_or_default();
     prop_assert_eq!(again.len(), levels.len());
     for (first, second) in levels.iter().zip(&again) {

@@ -85,8 +85,16 @@ fn check(input: &FuzzInput) -> Result<Verdict, TestCaseError> {
 }
 
 fn check_site(site: &Site, choice: u8) -> Result<(), TestCaseError> {
-    prop_assert!(site.units == "m" || site.units == "ft", "units {:?}", site.units);
-    prop_assert!(site.outline.len() >= 3, "an outline of {} positions", site.outline.len());
+    prop_assert!(
+        site.units == "m" || site.units == "ft",
+        "units {:?}",
+        site.units
+    );
+    prop_assert!(
+        site.outline.len() >= 3,
+        "an outline of {} positions",
+        site.outline.len()
+    );
     let all_finite = site
         .outline
         .iter()
@@ -94,7 +102,11 @@ fn check_site(site: &Site, choice: u8) -> Result<(), TestCaseError> {
         .chain(site.zones.iter().flat_map(|zone| &zone.ring))
         .chain(site.outlets.iter().map(|outlet| &outlet.point))
         .flatten()
-        .chain(site.levels.iter().flat_map(|level| [&level.x, &level.y, &level.z]))
+        .chain(
+            site.levels
+                .iter()
+                .flat_map(|level| [&level.x, &level.y, &level.z]),
+        )
         .all(|value| value.is_finite());
     prop_assert!(all_finite, "a position or elevation is not finite");
     let area = twice_area(&site.outline).abs();
@@ -154,7 +166,11 @@ fn check_site(site: &Site, choice: u8) -> Result<(), TestCaseError> {
                 "a huge site refused in other words: {}",
                 problem
             ),
-            other => prop_assert!(false, "a huge site is not refused for its size: {:?}", other.err()),
+            other => prop_assert!(
+                false,
+                "a huge site is not refused for its size: {:?}",
+                other.err()
+            ),
         }
     }
     Ok(())

@@ -141,14 +141,29 @@ pub fn read_geotiff(bytes: &[u8]) -> Result<ElevationRaster, SiteError> {
         }
     }
     let centre = if pixel_is_point { 0.0 } else { 0.5 };
+    let first_centre = [
+        tie_x + (centre - tie_i) * scale_x,
+        tie_y - (centre - tie_j) * scale_y,
+    ];
+    // Finite tags can still place the pixels beyond the range of numbers (a scale of 1e308).
+    let last_centre = [
+        first_centre[0] + (width - 1) as f64 * scale_x,
+        first_centre[1] - (height - 1) as f64 * scale_y,
+    ];
+    if !first_centre
+        .iter()
+        .chain(&last_centre)
+        .all(|value| value.is_finite())
+    {
+        return Err(fail(format!(
+            "pixel scale ({scale_x}, {scale_y}) and tiepoint ({tie_i}, {tie_j}) to ({tie_x}, {tie_y}) place the pixels beyond the range of numbers"
+        )));
+    }
     Ok(ElevationRaster {
         width,
         height,
         values,
-        first_centre: [
-            tie_x + (centre - tie_i) * scale_x,
-            tie_y - (centre - tie_j) * scale_y,
-        ],
+        first_centre,
         pixel: [scale_x, scale_y],
     })
 }
@@ -215,6 +230,12 @@ mod tests {
     /// A GeoTIFF of `z = a + b x + c y` sampled at its pixel centres, with the two placement
     /// tags written by the `tiff` crate's encoder.
     fn plane_geotiff(with_tags: bool) -> Vec<u8> {
+        placed_geotiff(with_tags, [2.5, 2.0], [0.0, 0.0])
+    }
+
+    /// The plane's raster with pixel scale `scale` and raster point `tie` tied to the model
+    /// point (1000, 2060).
+    fn placed_geotiff(with_tags: bool, scale: [f64; 2], tie: [f64; 2]) -> Vec<u8> {
         let (width, height) = (20u32, 12u32);
         // Pixel (0, 0)'s corner at (1000, 2060), pixels 2.5 m east by 2 m south.
         let (x0, y0, sx, sy) = (1000.0, 2060.0, 2.5, 2.0);
@@ -235,11 +256,14 @@ mod tests {
             if with_tags {
                 image
                     .encoder()
-                    .write_tag(Tag::ModelPixelScaleTag, &[sx, sy, 0.0][..])
+                    .write_tag(Tag::ModelPixelScaleTag, &[scale[0], scale[1], 0.0][..])
                     .expect("scale tag");
                 image
                     .encoder()
-                    .write_tag(Tag::ModelTiepointTag, &[0.0, 0.0, 0.0, x0, y0, 0.0][..])
+                    .write_tag(
+                        Tag::ModelTiepointTag,
+                        &[tie[0], tie[1], 0.0, x0, y0, 0.0][..],
+                    )
                     .expect("tiepoint tag");
             }
             image.write_data(&data).expect("pixels");
@@ -280,6 +304,21 @@ mod tests {
         let error = read_geotiff(&plane_geotiff(false)).unwrap_err();
         let text = error.to_string();
         assert!(text.contains("33550") && text.contains("33922"), "{text}");
+    }
+
+    /// Fuzz regression (tests/tests/fuzz_geotiff.rs): finite tags whose product overflows
+    /// (a pixel 1e308 wide, tied at raster point 1e10) placed pixel (0, 0) at minus infinity;
+    /// such a raster is refused, naming the scale and tiepoint.
+    #[test]
+    fn a_placement_beyond_the_range_of_numbers_is_refused() {
+        for (scale, tie) in [([1e308, 2.0], [1e10, 0.0]), ([2.0, 1e308], [0.0, -1e10])] {
+            let error = read_geotiff(&placed_geotiff(true, scale, tie)).unwrap_err();
+            let text = error.to_string();
+            assert!(text.contains("beyond the range of numbers"), "{text}");
+        }
+        // 1e307 wide pixels from x = 1000: the 20th centre, 1000 + 19.5e307, overflows.
+        let error = read_geotiff(&placed_geotiff(true, [1e307, 2.0], [0.0, 0.0])).unwrap_err();
+        assert!(error.to_string().contains("beyond the range"), "{error}");
     }
 
     #[test]
