@@ -36,6 +36,11 @@ pub use to_params::{cut_off_parts, CutOffPart, Terrain};
 /// Most positions in one ring: the self-crossing check compares every pair of edges.
 pub const MAX_RING_POSITIONS: usize = 10_000;
 
+/// Most pairs of edges the self-crossing checks of one site file compare, over all its rings
+/// (a ring of n positions takes about n² / 2): those of one ring of `MAX_RING_POSITIONS`, so
+/// that a small file of many long rings cannot keep the reader busy for minutes.
+pub const MAX_SITE_EDGE_PAIRS: u64 = (MAX_RING_POSITIONS as u64 * MAX_RING_POSITIONS as u64) / 2;
+
 /// Most features in a site file.
 pub const MAX_SITE_FEATURES: usize = 20_000;
 

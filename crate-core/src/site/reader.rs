@@ -7,7 +7,7 @@ use serde_json::Value as Json;
 use super::geometry::{first_self_contact, inside_or_on};
 use super::{
     check_levels, feature_place, Outlet, RunoffZone, Site, SiteError, SitePolygon, SpotLevel,
-    MAX_RING_POSITIONS, MAX_SITE_FEATURES,
+    MAX_RING_POSITIONS, MAX_SITE_EDGE_PAIRS, MAX_SITE_FEATURES,
 };
 use crate::region::point_in_polygon;
 
@@ -58,6 +58,8 @@ pub fn read_site(bytes: &[u8]) -> Result<Site, SiteError> {
             None | Some(Json::Null) => None,
             Some(value) => Some(coefficient(value, "the site")?),
         };
+    // Pairs of edges the self-crossing checks have left to compare (`MAX_SITE_EDGE_PAIRS`).
+    let mut pairs = MAX_SITE_EDGE_PAIRS;
     let mut outline: Option<(usize, Vec<[f64; 2]>)> = None;
     let mut obstacles = Vec::new();
     let mut zones = Vec::new();
@@ -103,7 +105,7 @@ pub fn read_site(bytes: &[u8]) -> Result<Site, SiteError> {
         };
         match role {
             "outline" => {
-                let ring = polygon(&feature, &place, "outline")?;
+                let ring = polygon(&feature, &place, "outline", &mut pairs)?;
                 if let Some((first, _)) = &outline {
                     return Err(SiteError::TwoOutlines {
                         first: feature_place(*first, None),
@@ -114,11 +116,11 @@ pub fn read_site(bytes: &[u8]) -> Result<Site, SiteError> {
             }
             "obstacle" => obstacles.push(SitePolygon {
                 feature: index,
-                ring: polygon(&feature, &place, "obstacle")?,
+                ring: polygon(&feature, &place, "obstacle", &mut pairs)?,
                 name,
             }),
             "zone" => {
-                let ring = polygon(&feature, &place, "zone")?;
+                let ring = polygon(&feature, &place, "zone", &mut pairs)?;
                 let runoff = match feature.property("runoff_coefficient") {
                     None | Some(Json::Null) => {
                         return Err(SiteError::RunoffCoefficient {
@@ -248,7 +250,12 @@ fn geometry<'a>(
 }
 
 /// A Polygon feature's single ring, checked closed and simple, without its closing position.
-fn polygon(feature: &Feature, place: &str, role: &'static str) -> Result<Vec<[f64; 2]>, SiteError> {
+fn polygon(
+    feature: &Feature,
+    place: &str,
+    role: &'static str,
+    pairs: &mut u64,
+) -> Result<Vec<[f64; 2]>, SiteError> {
     let geometry = geometry(feature, place, role, "a Polygon")?;
     let Value::Polygon(rings) = &geometry.value else {
         return Err(SiteError::Geometry {
@@ -306,6 +313,16 @@ fn polygon(feature: &Feature, place: &str, role: &'static str) -> Result<Vec<[f6
         });
     }
     ring.pop();
+    let ring_pairs = (ring.len() as u64 * ring.len() as u64) / 2;
+    if ring_pairs > *pairs {
+        return Err(SiteError::Position {
+            feature: place.to_string(),
+            problem: format!(
+                "the site's rings up to this one hold too many positions together: checking that no ring crosses itself compares every pair of a ring's edges, at most {MAX_SITE_EDGE_PAIRS} pairs in one site (one ring of {MAX_RING_POSITIONS} positions); simplify the rings"
+            ),
+        });
+    }
+    *pairs -= ring_pairs;
     if let Some((edges, near)) = first_self_contact(&ring) {
         return Err(SiteError::SelfIntersecting {
             feature: place.to_string(),
