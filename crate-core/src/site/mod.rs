@@ -24,13 +24,21 @@ mod geometry;
 mod geotiff;
 mod levels_csv;
 mod reader;
+mod ground_flow;
 mod runoff;
+mod svg_site;
 mod to_params;
+mod writer;
 
 pub use geotiff::{read_geotiff, ElevationRaster};
 pub use levels_csv::read_spot_levels_csv;
 pub use reader::read_site;
+pub use ground_flow::{
+    accumulate, d8_directions, ground_flow, CellKind, GroundFlow, LowSpot, Route, NEIGHBOURS,
+    NO_DOWNHILL,
+};
 pub use runoff::{node_area_runoff, NodeRunoff};
+pub use svg_site::{parse_svg_scale, read_site_svg, SvgScale};
 pub use to_params::{cut_off_parts, CutOffPart, Terrain};
 
 /// Most positions in one ring: the self-crossing check compares every pair of edges.
@@ -263,6 +271,18 @@ pub enum SiteError {
         /// What is wrong, in the site's words.
         problem: String,
     },
+    /// An SVG site plan's element cannot be read or has no usable site role.
+    Svg {
+        /// The element and its line, e.g. `<path id="shed"> (line 9)`.
+        element: String,
+        /// What is wrong.
+        problem: String,
+    },
+    /// The scale of an SVG site plan is missing, unreadable or unusable with the drawing.
+    SvgScale {
+        /// What is wrong.
+        problem: String,
+    },
     /// Parts of the site cannot reach any outlet: an obstacle or the outline cuts them off.
     CutOff {
         /// Each cut-off part, in site coordinates.
@@ -363,6 +383,8 @@ impl std::fmt::Display for SiteError {
             }
             SiteError::Raster { problem } => write!(f, "elevation raster: {problem}"),
             SiteError::Params { problem } => write!(f, "site parameters: {problem}"),
+            SiteError::Svg { element, problem } => write!(f, "site plan (SVG) {element}: {problem}"),
+            SiteError::SvgScale { problem } => write!(f, "site plan (SVG) scale: {problem}"),
             SiteError::CutOff { parts, units } => {
                 let cells: usize = parts.iter().map(|part| part.cells).sum();
                 write!(
