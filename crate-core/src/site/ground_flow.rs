@@ -132,7 +132,9 @@ pub fn d8_directions(
                 match kinds[next] {
                     CellKind::Blocked => continue,
                     CellKind::Outside => (elevation[next], Route::OffSite),
-                    CellKind::Ground | CellKind::Outlet => (elevation[next], Route::To(next as u32)),
+                    CellKind::Ground | CellKind::Outlet => {
+                        (elevation[next], Route::To(next as u32))
+                    }
                 }
             } else {
                 (beyond(x, y), Route::OffSite)

@@ -22,21 +22,21 @@
 
 mod geometry;
 mod geotiff;
+mod ground_flow;
 mod levels_csv;
 mod reader;
-mod ground_flow;
 mod runoff;
 mod svg_site;
 mod to_params;
 mod writer;
 
 pub use geotiff::{read_geotiff, ElevationRaster};
-pub use levels_csv::read_spot_levels_csv;
-pub use reader::read_site;
 pub use ground_flow::{
     accumulate, d8_directions, ground_flow, CellKind, GroundFlow, LowSpot, Route, NEIGHBOURS,
     NO_DOWNHILL,
 };
+pub use levels_csv::read_spot_levels_csv;
+pub use reader::read_site;
 pub use runoff::{node_area_runoff, NodeRunoff};
 pub use svg_site::{parse_svg_scale, read_site_svg, SvgScale};
 pub use to_params::{cut_off_parts, CutOffPart, Terrain};
@@ -461,3 +461,9 @@ pub(crate) fn check_levels(outline: &[[f64; 2]], levels: &[SpotLevel]) -> Result
 
 #[cfg(test)]
 mod tests;
+
+#[cfg(test)]
+mod svg_site_tests;
+
+#[cfg(test)]
+mod ground_flow_tests;

@@ -166,7 +166,9 @@ pub fn read_site_svg(bytes: &[u8], scale: &SvgScale) -> Result<Site, SiteError> 
     };
     if !(factor.is_finite() && factor > 0.0) {
         return Err(SiteError::SvgScale {
-            problem: format!("the scale gives {factor} {units} per drawing unit; it must be a positive number"),
+            problem: format!(
+                "the scale gives {factor} {units} per drawing unit; it must be a positive number"
+            ),
         });
     }
     let runoff_coefficient = match root.attribute("data-runoff-coefficient") {
@@ -232,7 +234,11 @@ fn physical_size_stated(root: Node) -> bool {
             .is_some_and(|length| {
                 matches!(
                     length.unit,
-                    LengthUnit::Mm | LengthUnit::Cm | LengthUnit::In | LengthUnit::Pt | LengthUnit::Pc
+                    LengthUnit::Mm
+                        | LengthUnit::Cm
+                        | LengthUnit::In
+                        | LengthUnit::Pt
+                        | LengthUnit::Pc
                 )
             })
     })
@@ -363,7 +369,9 @@ impl SiteSvgReader<'_, '_> {
         if self.places.len() >= MAX_SITE_FEATURES {
             return Err(self.error(
                 node,
-                format!("more than {MAX_SITE_FEATURES} site shapes; a site holds at most that many"),
+                format!(
+                    "more than {MAX_SITE_FEATURES} site shapes; a site holds at most that many"
+                ),
             ));
         }
         let feature = self.places.len();
@@ -452,23 +460,24 @@ impl SiteSvgReader<'_, '_> {
                         point,
                     });
                 } else {
-                    let z = match node.attribute("data-elevation") {
-                        Some(text) => text
-                            .trim()
-                            .parse::<f64>()
-                            .ok()
-                            .filter(|z| z.is_finite())
-                            .ok_or_else(|| SiteError::Elevation {
-                                feature: place.clone(),
-                                problem: format!("data-elevation {text:?} is not a number"),
-                            })?,
-                        None => {
-                            return Err(SiteError::Elevation {
+                    let z =
+                        match node.attribute("data-elevation") {
+                            Some(text) => text
+                                .trim()
+                                .parse::<f64>()
+                                .ok()
+                                .filter(|z| z.is_finite())
+                                .ok_or_else(|| SiteError::Elevation {
+                                    feature: place.clone(),
+                                    problem: format!("data-elevation {text:?} is not a number"),
+                                })?,
+                            None => return Err(SiteError::Elevation {
                                 feature: place,
-                                problem: "no data-elevation (the ground's height, in the site's unit)".to_string(),
-                            })
-                        }
-                    };
+                                problem:
+                                    "no data-elevation (the ground's height, in the site's unit)"
+                                        .to_string(),
+                            }),
+                        };
                     self.levels.push(SpotLevel {
                         place,
                         x: point[0],
@@ -537,7 +546,10 @@ impl SiteSvgReader<'_, '_> {
         if ring.len() < 3 {
             return Err(self.error(
                 node,
-                format!("{what} has {} corners; a ring needs at least three", ring.len()),
+                format!(
+                    "{what} has {} corners; a ring needs at least three",
+                    ring.len()
+                ),
             ));
         }
         if !ring.iter().flatten().all(|value| value.is_finite()) {
