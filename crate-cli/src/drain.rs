@@ -14,7 +14,7 @@ use ramulus_core::site::{
 };
 use ramulus_core::site_sizing::{size_run, RainForm, SizingForm};
 use ramulus_draw::site_plan::plan_svg;
-use ramulus_draw::site_texts::{flags_summary, site_plan_input, site_tables};
+use ramulus_draw::site_texts::{area_text, flags_summary, site_plan_input, site_tables};
 use serde_json::json;
 
 use crate::commands::link_parameters;
@@ -363,40 +363,41 @@ fn natural_flow(
         "off_site_area": area(flow.off_site_area),
         "low_spot_area": area(pond_area),
     });
-    let (length_unit, area_unit) = (units.length_unit(), units.area_unit());
+    let length_unit = units.length_unit();
+    let said = |value: f64| area_text(value * metres * metres, units);
     let mut lines = vec![format!(
         "Ground flow before any channel (D8, steepest of 8 neighbours; O'Callaghan & Mark 1984), \
-         of {:.4} {area_unit}:",
-        area(flow.allowed_area)
+         of {}:",
+        said(flow.allowed_area)
     )];
     for (index, &value) in flow.outlet_areas.iter().enumerate() {
         lines.push(format!(
-            "  {:.4} {area_unit} reaches {} over the ground",
-            area(value),
+            "  {} reaches {} over the ground",
+            said(value),
             outlet_name(index)
         ));
     }
     lines.push(format!(
-        "  {:.4} {area_unit} runs off over the site's edge",
-        area(flow.off_site_area)
+        "  {} runs off over the site's edge",
+        said(flow.off_site_area)
     ));
     if flow.low_spots.is_empty() {
         lines.push("  no low spots: all water runs to an outlet or off the site".to_string());
     } else {
         lines.push(format!(
-            "  {:.4} {area_unit} ends in {} low spot(s), where water ponds unless the ground is \
-             graded; the largest:",
-            area(pond_area),
+            "  {} ends in {} low spot(s), where water ponds unless the ground is graded; the \
+             largest:",
+            said(pond_area),
             flow.low_spots.len()
         ));
         for spot in flow.low_spots.iter().take(LOW_SPOTS_LISTED) {
             let [x, y] = place(spot.centre);
             lines.push(format!(
-                "    at ({:.2}, {:.2}) {length_unit}, ground {:.3} {length_unit}: {:.4} {area_unit} drains there",
+                "    at ({:.2}, {:.2}) {length_unit}, ground {:.3} {length_unit}: {} drains there",
                 length(x),
                 length(y),
                 length(spot.elevation),
-                area(spot.area)
+                said(spot.area)
             ));
         }
     }
