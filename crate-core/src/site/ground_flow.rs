@@ -106,11 +106,7 @@ pub fn d8_directions(
     width: usize,
     beyond: &dyn Fn(i64, i64) -> f64,
 ) -> Vec<Route> {
-    let height = if width == 0 {
-        0
-    } else {
-        elevation.len() / width
-    };
+    let height = elevation.len().checked_div(width).unwrap_or(0);
     let mut routes = vec![Route::Stays; elevation.len()];
     for (cell, route) in routes.iter_mut().enumerate() {
         if kinds[cell] != CellKind::Ground {
