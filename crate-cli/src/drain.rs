@@ -9,9 +9,9 @@ use ramulus_core::growth::Growth;
 use ramulus_core::params::Params;
 use ramulus_core::run::{RunView, SITE_CAUTION};
 use ramulus_core::site::{
-    ground_flow, parse_svg_scale, read_geotiff, read_site, read_site_svg, read_spot_levels_csv,
-    GroundFlow, Site, Terrain,
+    ground_flow, read_geotiff, read_site, read_spot_levels_csv, GroundFlow, Site, Terrain,
 };
+use ramulus_core::site_plan_svg::{parse_svg_scale, read_site_svg};
 use ramulus_core::site_sizing::{size_run, RainForm, SizingForm};
 use ramulus_draw::site_plan::plan_svg;
 use ramulus_draw::site_texts::{area_text, flags_summary, site_plan_input, site_tables};

@@ -78,8 +78,8 @@ pub fn site_summary_json(text: &str) -> String {
 /// the element, its line and what is wrong.
 #[wasm_bindgen]
 pub fn site_svg_json(text: &str, scale_text: &str) -> String {
-    let read = ramulus_core::site::parse_svg_scale(scale_text)
-        .and_then(|scale| ramulus_core::site::read_site_svg(text.as_bytes(), &scale));
+    let read = ramulus_core::site_plan_svg::parse_svg_scale(scale_text)
+        .and_then(|scale| ramulus_core::site_plan_svg::read_site_svg(text.as_bytes(), &scale));
     match read {
         Ok(site) => json!({ "geojson": site.to_geojson() }).to_string(),
         Err(error) => json!({ "error": error.to_string() }).to_string(),

@@ -1,4 +1,4 @@
-//! Fuzzing the SVG site-plan reader (`site::read_site_svg`, as `ramulus drain --site plan.svg
+//! Fuzzing the SVG site-plan reader (`site_plan_svg::read_site_svg`, as `ramulus drain --site plan.svg
 //! --svg-scale ...` reads a file) on the corpus in `tests/fuzz-corpus/svg-site/` (see
 //! `ramulus_tests::fuzz`; the long run and its figures are in DEVELOPERS.md).
 //!
@@ -8,7 +8,8 @@
 //! outline, outlets and zones; every coordinate finite.
 
 use proptest::prelude::*;
-use ramulus_core::site::{read_site, read_site_svg, SvgScale};
+use ramulus_core::site::read_site;
+use ramulus_core::site_plan_svg::{read_site_svg, SvgScale};
 use ramulus_tests::fuzz::{fuzz, FuzzInput, Verdict};
 
 /// Pieces of SVG syntax the edits insert.

@@ -20,13 +20,12 @@
 //! (draw an obstacle or a zone over the place instead). Every error names the feature (index
 //! and name) and what is wrong; nothing is repaired silently. Nothing here reads files.
 
-mod geometry;
+pub(crate) mod geometry;
 mod geotiff;
 mod ground_flow;
 mod levels_csv;
 mod reader;
 mod runoff;
-mod svg_site;
 mod to_params;
 mod writer;
 
@@ -38,7 +37,6 @@ pub use ground_flow::{
 pub use levels_csv::read_spot_levels_csv;
 pub use reader::read_site;
 pub use runoff::{node_area_runoff, NodeRunoff};
-pub use svg_site::{parse_svg_scale, read_site_svg, SvgScale};
 pub use to_params::{cut_off_parts, CutOffPart, Terrain};
 
 /// Most positions in one ring: the self-crossing check compares every pair of edges.
@@ -461,9 +459,6 @@ pub(crate) fn check_levels(outline: &[[f64; 2]], levels: &[SpotLevel]) -> Result
 
 #[cfg(test)]
 mod tests;
-
-#[cfg(test)]
-mod svg_site_tests;
 
 #[cfg(test)]
 mod ground_flow_tests;

@@ -1,8 +1,9 @@
 //! Checks of the SVG site-plan reader: areas by the shoelace formula and outlet places worked
 //! out by hand from the drawing and its scale, transforms, curves, and one check per bad input.
 
-use super::geometry::signed_area;
 use super::*;
+use crate::site::geometry::signed_area;
+use crate::site::read_site;
 
 /// Area of a ring by the shoelace formula, unsigned.
 fn area(ring: &[[f64; 2]]) -> f64 {

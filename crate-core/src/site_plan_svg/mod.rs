@@ -25,13 +25,13 @@
 use roxmltree::{Document, Node, ParsingOptions};
 use svgtypes::LengthUnit;
 
-use super::geometry::{first_self_contact, inside_or_on};
-use super::{
+use crate::drainage::RunoffTable;
+use crate::region::point_in_polygon;
+use crate::site::geometry::{first_self_contact, inside_or_on};
+use crate::site::{
     check_levels, Outlet, RunoffZone, Site, SiteError, SitePolygon, SpotLevel, MAX_RING_POSITIONS,
     MAX_SITE_FEATURES,
 };
-use crate::drainage::RunoffTable;
-use crate::region::point_in_polygon;
 use crate::specimen::flatten::Affine;
 use crate::specimen::svg_trace::{
     attribute_any_namespace, describe, physical_scale, ShapeReader, SKIPPED,
@@ -586,3 +586,6 @@ impl SiteSvgReader<'_, '_> {
             .filter(|text| !text.is_empty())
     }
 }
+
+#[cfg(test)]
+mod tests;
