@@ -259,8 +259,8 @@ fn role_of(node: Node) -> Option<Role> {
     }
 }
 
-/// The shape reading of this module lent to other readers of SVG drawings (the site reader,
-/// `crate::site_plan_svg`), so that both read transforms, shapes and path data alike.
+/// The shape reading of this module lent to other readers of SVG drawings (the site-plan
+/// reader), so that both read transforms, shapes and path data alike.
 pub(crate) struct ShapeReader<'a, 'input>(SvgReader<'a, 'input>);
 
 impl<'a, 'input> ShapeReader<'a, 'input> {
