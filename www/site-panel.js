@@ -101,6 +101,11 @@ class SitePanel {
       if (file) this.openText(await file.text(), file.name);
       event.target.value = '';
     });
+    byId('site-svg-file').addEventListener('change', async (event) => {
+      const file = event.target.files?.[0];
+      if (file) this.openSvg(await file.text(), file.name);
+      event.target.value = '';
+    });
     byId('site-grow').addEventListener('click', () => this.grow());
     byId('site-size').addEventListener('click', () => this.resize(true));
     window.addEventListener('ramulus:finished', () => this.runEnded());
@@ -160,6 +165,22 @@ class SitePanel {
     this.setSiteUnits(units);
     this.sketch.load(shapes, units);
     byId('site-status').textContent = `${name}: ${checked.summary}`;
+  }
+
+  /// A site plan drawn as SVG: the core reads it at the scale given and hands back the same
+  /// site as a site file, or names the element and line that is wrong.
+  openSvg(text, name) {
+    const scale = byId('site-svg-scale').value;
+    if (scale.trim() === '') {
+      this.message(`${name}: give the plan's scale first (1:200 with the drawing's width in mm, or "0.05 m per unit").`);
+      return;
+    }
+    const read = JSON.parse(this.core.site_svg_json(text, scale));
+    if (read.error) {
+      this.message(`${name}: ${read.error}`);
+      return;
+    }
+    this.openText(read.geojson, `${name} at ${scale.trim()}`);
   }
 
   showFeatures() {

@@ -3,14 +3,18 @@
 //! schedule, the channels as GeoJSON and the plan, each with the concept-design caution.
 
 use clap::Args;
+use ramulus_core::drainage::units::{metres_per_network_unit, UnitSystem};
 use ramulus_core::drainage::{schedule_csv, site_geojson};
 use ramulus_core::growth::Growth;
 use ramulus_core::params::Params;
 use ramulus_core::run::{RunView, SITE_CAUTION};
-use ramulus_core::site::{read_geotiff, read_site, read_spot_levels_csv, Site, Terrain};
+use ramulus_core::site::{
+    ground_flow, read_geotiff, read_site, read_spot_levels_csv, GroundFlow, Site, Terrain,
+};
+use ramulus_core::site_plan_svg::{parse_svg_scale, read_site_svg};
 use ramulus_core::site_sizing::{size_run, RainForm, SizingForm};
 use ramulus_draw::site_plan::plan_svg;
-use ramulus_draw::site_texts::{flags_summary, site_plan_input, site_tables};
+use ramulus_draw::site_texts::{area_text, flags_summary, site_plan_input, site_tables};
 use serde_json::json;
 
 use crate::commands::link_parameters;
@@ -24,9 +28,21 @@ pub struct DrainOptions {
     /// The site: a GeoJSON FeatureCollection whose features carry
     /// properties.role (outline, obstacle, zone with
     /// runoff_coefficient, outlet, level with elevation);
-    /// properties.units of the collection is m (default) or ft
-    #[arg(long, value_name = "SITE.geojson", conflicts_with_all = ["preset", "link"], verbatim_doc_comment)]
+    /// properties.units of the collection is m (default) or ft.
+    /// Or a site plan drawn as SVG (with --svg-scale), each shape
+    /// with data-role or in a group whose id names the role
+    #[arg(long, value_name = "SITE.geojson|PLAN.svg", conflicts_with_all = ["preset", "link"], verbatim_doc_comment)]
     pub site: Option<String>,
+    /// Scale of an SVG site plan: 1:N (with the drawing's width in
+    /// mm, cm or in) or a ground length per drawing unit, such as
+    /// "0.05 m per unit" or "0.2 ft per unit"; with --site
+    #[arg(
+        long = "svg-scale",
+        value_name = "SCALE",
+        requires = "site",
+        verbatim_doc_comment
+    )]
+    pub svg_scale: Option<String>,
     /// Grid cell of the layout, in the site's unit (default 0.5 m
     /// or 1.5 ft); with --site
     #[arg(
@@ -165,6 +181,7 @@ pub fn drain(options: DrainOptions) -> Result<(), CliError> {
     let sized =
         size_run(&view, &params, &design).map_err(|error| CliError::Failed(error.to_string()))?;
     let site = &sized.hydraulics;
+    let natural = natural_flow(&params, site_file.as_ref(), design.system)?;
 
     if let Some(path) = &options.csv_file {
         plan.stage(path, &schedule_csv(site))?;
@@ -249,6 +266,8 @@ pub fn drain(options: DrainOptions) -> Result<(), CliError> {
                 "digest": view.digest,
                 "outlets": outlets,
                 "segments": segments,
+                "ground_flow": natural.json,
+                "low_spots": natural.low_spots,
             })
         );
         return Ok(());
@@ -272,8 +291,132 @@ pub fn drain(options: DrainOptions) -> Result<(), CliError> {
         site.segments.len(),
         flags_summary(site)
     );
+    say!("");
+    for line in &natural.lines {
+        say!("{line}");
+    }
     say!("Channel schedule: --csv FILE writes every row; --svg FILE the plan.");
     Ok(())
+}
+
+/// The ground's own flow (D8, before any channel) in the units of the results.
+struct NaturalFlow {
+    /// The `ground_flow` object of `--json`.
+    json: serde_json::Value,
+    /// The `low_spots` array of `--json`.
+    low_spots: Vec<serde_json::Value>,
+    /// The summary lines.
+    lines: Vec<String>,
+}
+
+/// Low spots listed in the summary (all are in `--json`).
+const LOW_SPOTS_LISTED: usize = 5;
+
+fn natural_flow(
+    params: &Params,
+    site_file: Option<&Site>,
+    units: UnitSystem,
+) -> Result<NaturalFlow, CliError> {
+    let flat = params.domain.levels.is_empty()
+        && params.domain.grade_x == 0.0
+        && params.domain.grade_y == 0.0;
+    if flat {
+        return Ok(NaturalFlow {
+            json: json!({ "method": "D8", "flat": true }),
+            low_spots: Vec::new(),
+            lines: vec![
+                "Ground flow: the ground is flat, so it shows no natural flow and no low spots."
+                    .to_string(),
+            ],
+        });
+    }
+    let flow: GroundFlow = ground_flow(params);
+    let metres = metres_per_network_unit(&params.domain.units)
+        .map_err(|error| CliError::Failed(format!("internal: {error}")))?;
+    let length = |value: f64| units.length_from_si(value * metres);
+    let area = |value: f64| units.area_from_si(value * metres * metres);
+    // Site coordinates (y north) when the site came from a file; else the plan's frame.
+    let place = |centre: [f64; 2]| match site_file {
+        Some(site) => site.network_to_site(centre),
+        None => centre,
+    };
+    let frame = if site_file.is_some() {
+        "site (x east, y north)"
+    } else {
+        "plan (x right, y down from the top-left corner)"
+    };
+    let outlet_name = |index: usize| {
+        site_file
+            .and_then(|site| site.outlets.get(index))
+            .and_then(|outlet| outlet.name.clone())
+            .unwrap_or_else(|| format!("outlet {}", index + 1))
+    };
+    let low_spots: Vec<_> = flow
+        .low_spots
+        .iter()
+        .map(|spot| {
+            let [x, y] = place(spot.centre);
+            json!({
+                "x": length(x),
+                "y": length(y),
+                "elevation": length(spot.elevation),
+                "area": area(spot.area),
+            })
+        })
+        .collect();
+    let pond_area: f64 = flow.low_spots.iter().map(|spot| spot.area).sum();
+    let json = json!({
+        "method": "D8",
+        "flat": false,
+        "frame": frame,
+        "site_area": area(flow.allowed_area),
+        "outlet_areas": flow.outlet_areas.iter().map(|&value| area(value)).collect::<Vec<_>>(),
+        "off_site_area": area(flow.off_site_area),
+        "low_spot_area": area(pond_area),
+    });
+    let length_unit = units.length_unit();
+    let said = |value: f64| area_text(value * metres * metres, units);
+    let mut lines = vec![format!(
+        "Ground flow before any channel (D8, steepest of 8 neighbours; O'Callaghan & Mark 1984), \
+         of {}:",
+        said(flow.allowed_area)
+    )];
+    for (index, &value) in flow.outlet_areas.iter().enumerate() {
+        lines.push(format!(
+            "  {} reaches {} over the ground",
+            said(value),
+            outlet_name(index)
+        ));
+    }
+    lines.push(format!(
+        "  {} runs off over the site's edge",
+        said(flow.off_site_area)
+    ));
+    if flow.low_spots.is_empty() {
+        lines.push("  no low spots: all water runs to an outlet or off the site".to_string());
+    } else {
+        lines.push(format!(
+            "  {} ends in {} low spot(s), where water ponds unless the ground is graded; the \
+             largest:",
+            said(pond_area),
+            flow.low_spots.len()
+        ));
+        for spot in flow.low_spots.iter().take(LOW_SPOTS_LISTED) {
+            let [x, y] = place(spot.centre);
+            lines.push(format!(
+                "    at ({:.2}, {:.2}) {length_unit}, ground {:.3} {length_unit}: {} drains there",
+                length(x),
+                length(y),
+                length(spot.elevation),
+                said(spot.area)
+            ));
+        }
+    }
+    Ok(NaturalFlow {
+        json,
+        low_spots,
+        lines,
+    })
 }
 
 fn design_form(options: &DrainOptions) -> Result<SizingForm, CliError> {
@@ -368,8 +511,28 @@ fn read_site_file(options: &DrainOptions) -> Result<Option<Site>, CliError> {
         return Ok(None);
     };
     let bytes = read_input(path, "site file", MAX_SITE_FILE_BYTES)?;
-    let mut site =
-        read_site(&bytes).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+    let is_svg = bytes.iter().find(|byte| {
+        !byte.is_ascii_whitespace() && **byte != 0xEF && **byte != 0xBB && **byte != 0xBF
+    }) == Some(&b'<');
+    let mut site = if is_svg {
+        let Some(scale) = &options.svg_scale else {
+            return Err(CliError::Failed(format!(
+                "{path}: an SVG site plan needs its scale: give --svg-scale 1:N (with the \
+                 drawing's width in mm) or --svg-scale \"0.05 m per unit\""
+            )));
+        };
+        let scale = parse_svg_scale(scale)
+            .map_err(|error| CliError::Failed(format!("--svg-scale: {error}")))?;
+        read_site_svg(&bytes, &scale)
+    } else {
+        if options.svg_scale.is_some() {
+            return Err(CliError::Usage(format!(
+                "--svg-scale is for a site plan drawn as SVG; {path} is not SVG"
+            )));
+        }
+        read_site(&bytes)
+    }
+    .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
     if let Some(levels_path) = &options.levels {
         let bytes = read_input(levels_path, "spot-level file", MAX_LEVELS_FILE_BYTES)?;
         let levels = read_spot_levels_csv(&bytes)

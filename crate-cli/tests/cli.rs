@@ -371,7 +371,7 @@ fn a_damaged_link_warns_and_a_link_with_a_preset_is_refused() {
 }
 
 /// The flags each command takes; `COMMAND --help` must name every one of them.
-const COMMAND_FLAGS: [(&str, &[&str]); 4] = [
+const COMMAND_FLAGS: [(&str, &[&str]); 5] = [
     (
         "grow",
         &[
@@ -410,6 +410,23 @@ const COMMAND_FLAGS: [(&str, &[&str]); 4] = [
         ],
     ),
     ("presets", &["--json"]),
+    (
+        "drain",
+        &[
+            "--site",
+            "--svg-scale",
+            "--cell-size",
+            "--levels",
+            "--terrain",
+            "--intensity",
+            "--idf",
+            "--units",
+            "--svg",
+            "--csv",
+            "--geojson",
+            "--json",
+        ],
+    ),
     ("bench", &["--quick", "--json", "--image", "--refill"]),
 ];
 
@@ -1844,4 +1861,80 @@ fn grow_json_reports_the_channel_energy() {
     assert_ne!(value["digest"], plain["digest"]);
     assert_eq!(value["nodes"], plain["nodes"]);
     assert_eq!(value["segments"], plain["segments"]);
+}
+
+/// A 20 m x 10 m site plan drawn as SVG at 0.2 m per drawing unit (100 x 50 units), with four
+/// corner spot levels at 10 m and a hollow at 9 m, drawn at cell centres of 0.5 m cells.
+const HOLLOW_PLAN: &str = r#"<svg xmlns="http://www.w3.org/2000/svg" data-runoff-coefficient="0.3">
+  <g id="outline"><rect width="100" height="50"/></g>
+  <g id="levels">
+    <circle cx="1.25" cy="1.25" r="0.5" data-elevation="10"/>
+    <circle cx="98.75" cy="1.25" r="0.5" data-elevation="10"/>
+    <circle cx="98.75" cy="48.75" r="0.5" data-elevation="10"/>
+    <circle cx="1.25" cy="48.75" r="0.5" data-elevation="10"/>
+    <circle data-name="hollow" cx="76.25" cy="26.25" r="0.5" data-elevation="9"/>
+  </g>
+  <circle data-role="outlet" cx="2" cy="48" r="1"/>
+  <text x="0" y="0">plan, north up</text>
+</svg>"#;
+
+/// `drain --site plan.svg --svg-scale` reads the plan at its scale and reports the ground's
+/// low spots; without a scale it is refused, naming the flag.
+#[test]
+fn drain_reads_an_svg_site_plan_and_reports_its_low_spots() {
+    let plan = TempFile::new("plan", "svg");
+    std::fs::write(&plan.0, HOLLOW_PLAN).expect("writes the plan");
+    let outcome = ramulus(&["drain", "--site", plan.path(), "--intensity", "60"]);
+    check_failure(&outcome, &["--svg-scale"]);
+    let outcome = ramulus(&[
+        "drain",
+        "--site",
+        plan.path(),
+        "--svg-scale",
+        "0.2 m per unit",
+        "--intensity",
+        "60",
+        "--json",
+    ]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    let json = single_json(&outcome.stdout);
+    let ground = &json["ground_flow"];
+    // 100 x 50 units at 0.2 m is 20 m x 10 m = 200 m² = 0.02 ha.
+    let site_area = ground["site_area"].as_f64().expect("site_area");
+    assert!((site_area - 0.02).abs() < 1e-12, "{ground}");
+    // The outlets', the edge's and the low spots' areas add up to the site.
+    let outlets: f64 = ground["outlet_areas"]
+        .as_array()
+        .expect("outlet_areas")
+        .iter()
+        .filter_map(Value::as_f64)
+        .sum();
+    let total = outlets
+        + ground["off_site_area"].as_f64().unwrap_or(f64::NAN)
+        + ground["low_spot_area"].as_f64().unwrap_or(f64::NAN);
+    assert!((total - site_area).abs() < 1e-12, "{ground}");
+    // The hollow: drawing (76.25, 26.25) is site (15.25 m, -5.25 m) with north up the sheet;
+    // inverse distance weighting is exact at a level (Shepard 1968), so its ground is 9 m and
+    // everything around it, a weighted mean of 9 and 10, is higher: a low spot.
+    let spots = json["low_spots"].as_array().expect("low_spots");
+    let hollow = spots
+        .iter()
+        .find(|spot| {
+            (spot["x"].as_f64().unwrap_or(f64::NAN) - 15.25).abs() < 1e-9
+                && (spot["y"].as_f64().unwrap_or(f64::NAN) + 5.25).abs() < 1e-9
+        })
+        .unwrap_or_else(|| panic!("no low spot at the hollow: {spots:?}"));
+    assert_eq!(hollow["elevation"].as_f64(), Some(9.0));
+    assert!(hollow["area"].as_f64().unwrap_or(0.0) > 0.0);
+    // A bad scale is named.
+    let outcome = ramulus(&[
+        "drain",
+        "--site",
+        plan.path(),
+        "--svg-scale",
+        "1:200",
+        "--intensity",
+        "60",
+    ]);
+    check_failure(&outcome, &["no width or height in mm"]);
 }

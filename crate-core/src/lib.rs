@@ -28,6 +28,7 @@ pub mod run;
 pub mod schema;
 pub mod segments;
 pub mod site;
+pub mod site_plan_svg;
 pub mod site_sizing;
 pub mod specimen;
 pub mod terrain;

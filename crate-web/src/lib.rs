@@ -30,7 +30,9 @@ pub use specimen_image::{
 
 // ---- drainage sites (issue 12, page side): see site.rs ----
 mod site;
-pub use site::{drainage_defaults_json, runoff_surfaces_json, site_link_json, site_summary_json};
+pub use site::{
+    drainage_defaults_json, runoff_surfaces_json, site_link_json, site_summary_json, site_svg_json,
+};
 // ---- end of drainage sites ----
 
 pub use memory::RunMemory;

@@ -73,6 +73,19 @@ pub fn site_summary_json(text: &str) -> String {
     }
 }
 
+/// A site plan drawn as SVG, read at the scale `scale_text` (`1:200`, `0.05 m per unit`):
+/// `{geojson}` (the same site as a site file, for the site panel to open) or `{error}` naming
+/// the element, its line and what is wrong.
+#[wasm_bindgen]
+pub fn site_svg_json(text: &str, scale_text: &str) -> String {
+    let read = ramulus_core::site_plan_svg::parse_svg_scale(scale_text)
+        .and_then(|scale| ramulus_core::site_plan_svg::read_site_svg(text.as_bytes(), &scale));
+    match read {
+        Ok(site) => json!({ "geojson": site.to_geojson() }).to_string(),
+        Err(error) => json!({ "error": error.to_string() }).to_string(),
+    }
+}
+
 /// A site file as a run link on cells of `cell_text` (the site's unit): `{link, summary}`, or
 /// `{error}` naming what is wrong (the file, the cell size, or parts no outlet can reach). The
 /// ground comes from the file's spot levels, or is taken as flat when it has none.

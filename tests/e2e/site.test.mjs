@@ -142,3 +142,37 @@ test('a sketched site without an outlet is refused by name; with one it grows', 
   assert.deepEqual(page.errors, []);
   await page.close();
 });
+
+test('a site plan drawn as SVG opens at its scale, and a bad plan is named by element and line', async () => {
+  const page = await openPage();
+  const plan = path.join(root, 'tests', 'fuzz-corpus', 'svg-site', 'garden-plan.svg');
+  await page.locator('#site-svg-file').scrollIntoViewIfNeeded();
+  // No scale: refused before reading, with the two forms a scale takes.
+  await page.fill('#site-svg-scale', '');
+  await page.setInputFiles('#site-svg-file', plan);
+  await page.waitForFunction(() => document.querySelector('#site-message').textContent !== '');
+  assert.match(await page.textContent('#site-message'), /give the plan's scale first/);
+  await page.fill('#site-svg-scale', '1:200');
+  await page.setInputFiles('#site-svg-file', plan);
+  await page.waitForFunction(() => document.querySelectorAll('#site-features li').length > 5);
+  const features = await page.textContent('#site-features');
+  for (const role of ['site outline', 'area to keep clear', 'surface zone', 'outlet', 'spot level']) {
+    assert.match(features, new RegExp(role), `the plan lists a ${role}`);
+  }
+  // 200 mm x 120 mm sheet at 1:200, outline from 10 to 190 by 10 to 110 mm: 36 m x 20 m.
+  assert.match(await page.textContent('#site-status'), /garden-plan\.svg at 1:200/);
+  await screenshot(page, 'site-svg-plan');
+  const words = await page.textContent('#site-panel');
+  assert.doesNotMatch(words, /vein/i, 'drainage words only on a site');
+  assert.doesNotMatch(words, /\b(leaf|petiole|areole|blade|tissue|midrib|veinlet)s?\b/i, 'no leaf words on a site');
+  // An open path is named with its line.
+  await page.setInputFiles('#site-svg-file', {
+    name: 'open.svg',
+    mimeType: 'image/svg+xml',
+    buffer: Buffer.from('<svg xmlns="http://www.w3.org/2000/svg" width="10mm" height="10mm" viewBox="0 0 10 10">\n<path data-role="outline" d="M 0 0 L 10 0 L 10 10"/>\n</svg>'),
+  });
+  await page.waitForFunction(() => document.querySelector('#site-message').textContent.includes('open.svg'));
+  const message = await page.textContent('#site-message');
+  assert.match(message, /open\.svg: .*<path> \(line 2\).*open/);
+  await page.close();
+});

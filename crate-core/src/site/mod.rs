@@ -20,14 +20,20 @@
 //! (draw an obstacle or a zone over the place instead). Every error names the feature (index
 //! and name) and what is wrong; nothing is repaired silently. Nothing here reads files.
 
-mod geometry;
+pub(crate) mod geometry;
 mod geotiff;
+mod ground_flow;
 mod levels_csv;
 mod reader;
 mod runoff;
 mod to_params;
+mod writer;
 
 pub use geotiff::{read_geotiff, ElevationRaster};
+pub use ground_flow::{
+    accumulate, d8_directions, ground_flow, CellKind, GroundFlow, LowSpot, Route, NEIGHBOURS,
+    NO_DOWNHILL,
+};
 pub use levels_csv::read_spot_levels_csv;
 pub use reader::read_site;
 pub use runoff::{node_area_runoff, NodeRunoff};
@@ -268,6 +274,18 @@ pub enum SiteError {
         /// What is wrong, in the site's words.
         problem: String,
     },
+    /// An SVG site plan's element cannot be read or has no usable site role.
+    Svg {
+        /// The element and its line, e.g. `<path id="shed"> (line 9)`.
+        element: String,
+        /// What is wrong.
+        problem: String,
+    },
+    /// The scale of an SVG site plan is missing, unreadable or unusable with the drawing.
+    SvgScale {
+        /// What is wrong.
+        problem: String,
+    },
     /// Parts of the site cannot reach any outlet: an obstacle or the outline cuts them off.
     CutOff {
         /// Each cut-off part, in site coordinates.
@@ -368,6 +386,8 @@ impl std::fmt::Display for SiteError {
             }
             SiteError::Raster { problem } => write!(f, "elevation raster: {problem}"),
             SiteError::Params { problem } => write!(f, "site parameters: {problem}"),
+            SiteError::Svg { element, problem } => write!(f, "site plan (SVG) {element}: {problem}"),
+            SiteError::SvgScale { problem } => write!(f, "site plan (SVG) scale: {problem}"),
             SiteError::CutOff { parts, units } => {
                 let cells: usize = parts.iter().map(|part| part.cells).sum();
                 write!(
@@ -444,3 +464,6 @@ pub(crate) fn check_levels(outline: &[[f64; 2]], levels: &[SpotLevel]) -> Result
 
 #[cfg(test)]
 mod tests;
+
+#[cfg(test)]
+mod ground_flow_tests;

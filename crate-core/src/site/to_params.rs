@@ -61,6 +61,13 @@ pub const CHANNEL_HEAD_AREA_M2: f64 = 25.0;
 const OUTLET_REACH_CELLS: f64 = 2.0;
 
 impl Site {
+    /// A point of the network's frame of `to_params` (physical units from the outline's
+    /// bounding box's top-left corner, y down the page) in the site's coordinates (y north).
+    pub fn network_to_site(&self, point: [f64; 2]) -> [f64; 2] {
+        let (low, high) = bounds(&self.outline);
+        [low[0] + point[0], high[1] - point[1]]
+    }
+
     /// Run parameters for this site on cells of `cell_size` (the site's unit): a lattice over
     /// the outline's bounding box, the outline, obstacles and runoff zones in cells, a root on
     /// the allowed cell nearest each outlet with its outflow out through the nearest edge of

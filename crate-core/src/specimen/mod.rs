@@ -16,10 +16,10 @@
 
 mod calibrate;
 mod csv_trace;
-mod flatten;
+pub(crate) mod flatten;
 mod geojson_trace;
 mod repair;
-mod svg_trace;
+pub(crate) mod svg_trace;
 mod table;
 
 pub use calibrate::{

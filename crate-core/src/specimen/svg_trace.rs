@@ -21,7 +21,7 @@ use super::{Point, SpecimenError, Trace, TracedLine, MAX_SVG_NODES, MAX_TRACE_PO
 const MM_PER_PX: f64 = 25.4 / 96.0;
 
 /// Elements whose content is never drawn as part of the trace.
-const SKIPPED: [&str; 14] = [
+pub(crate) const SKIPPED: [&str; 14] = [
     "defs",
     "symbol",
     "clipPath",
@@ -100,7 +100,7 @@ pub(crate) fn read_svg(
 /// Millimetres per user unit of the root element. Coordinates themselves stay in user units
 /// (what an editor shows, the view box's origin kept), so `--root` and `--scale-bar` points
 /// are read off the drawing as they are written.
-fn physical_scale(
+pub(crate) fn physical_scale(
     document: &Document,
     root: Node,
     notes: &mut Vec<String>,
@@ -193,7 +193,7 @@ fn physical_scale(
 }
 
 /// `<path id="midrib"> (line 12)`: an element as people find it in the file.
-fn describe(document: &Document, node: Node) -> String {
+pub(crate) fn describe(document: &Document, node: Node) -> String {
     describe_at(node, document.text_pos_at(node.range().start).row)
 }
 
@@ -216,7 +216,7 @@ fn describe_at(node: Node, line: u32) -> String {
 
 /// An attribute by its local name whatever its namespace (`inkscape:label` is `label` in the
 /// Inkscape namespace).
-fn attribute_any_namespace<'a>(node: Node<'a, 'a>, name: &str) -> Option<&'a str> {
+pub(crate) fn attribute_any_namespace<'a>(node: Node<'a, 'a>, name: &str) -> Option<&'a str> {
     let local = name.rsplit(':').next().unwrap_or(name);
     node.attributes()
         .find(|attribute| {
@@ -256,6 +256,45 @@ fn role_of(node: Node) -> Option<Role> {
         Some(Role::Skipped)
     } else {
         None
+    }
+}
+
+/// The shape reading of this module lent to other readers of SVG drawings (the site-plan
+/// reader), so that both read transforms, shapes and path data alike.
+pub(crate) struct ShapeReader<'a, 'input>(SvgReader<'a, 'input>);
+
+impl<'a, 'input> ShapeReader<'a, 'input> {
+    /// A reader of `document` (parsed from `text`) flattening curves to within `tolerance`
+    /// root user units.
+    pub(crate) fn new(document: &'a Document<'input>, text: &'a str, tolerance: f64) -> Self {
+        ShapeReader(SvgReader {
+            document,
+            tolerance,
+            trace: Trace::default(),
+            points: 0,
+            text,
+            line_cursor: (0, 1),
+        })
+    }
+
+    /// An element's own `transform`.
+    pub(crate) fn transform_of(&self, node: Node) -> Result<Affine, SpecimenError> {
+        self.0.transform_of(node)
+    }
+
+    /// The polylines an element draws (`path`, `polygon`, `polyline`, `rect`, `circle`,
+    /// `ellipse`, `line`), curves flattened, in root user units under `transform`.
+    pub(crate) fn lines(
+        &self,
+        node: Node,
+        transform: &Affine,
+    ) -> Result<Vec<Vec<Point>>, SpecimenError> {
+        self.0.shape(node, transform)
+    }
+
+    /// A plain-number attribute (0 when absent).
+    pub(crate) fn number(&self, node: Node, name: &str) -> Result<f64, SpecimenError> {
+        self.0.number(node, name)
     }
 }
 
