@@ -10,7 +10,8 @@
 //! segments, and while widths follow flow alone (not `WidthRule::by_order`); otherwise
 //! `update` says so and the caller refills in full.
 
-use ramulus_core::network::{Network, NO_PARENT};
+use ramulus_core::growth::Growth;
+use ramulus_core::network::{Network, Node, NO_PARENT};
 use ramulus_core::segments::WidthRule;
 
 use crate::screen::ScreenGeometry;
@@ -73,11 +74,75 @@ impl GrowingScreen {
         if !self.grows_from_last(network, rule, geometry) {
             return false;
         }
+        let old_entries = geometry.len();
+        let new_segments = network.segments[old_entries..]
+            .iter()
+            .map(|segment| (segment.from as usize, segment.to));
+        self.apply(
+            network.nodes.len(),
+            new_segments,
+            |index| network.nodes[index],
+            rule,
+            geometry,
+        );
+        true
+    }
+
+    /// `update` reading the nodes added since the last update straight from the grower,
+    /// without the copy of the whole network `Growth::network` makes: the geometry comes out
+    /// the same, bit for bit, as `update(&growth.network(), ...)` gives. The caller keeps
+    /// `growth` the grower of the last update (`clear` this when it starts a new run). Returns
+    /// false, touching nothing, when the grower no longer only appends nodes (a segment was
+    /// split) or the forest cannot be brought up to it: refill in full then, and `clear` this.
+    pub fn update_from_growth(
+        &mut self,
+        growth: &Growth,
+        rule: WidthRule,
+        geometry: &mut ScreenGeometry,
+    ) -> bool {
         let old_nodes = self.parent.len();
-        let nodes = network.nodes.len();
+        let nodes = growth.node_count();
+        let fits = !rule.by_order()
+            && growth.only_appends()
+            && nodes >= old_nodes
+            && geometry.len() == self.node_of_entry.len()
+            && (old_nodes == 0 || self.rule == Some(rule))
+            // The last node drawn still drains where it did (a cheap check that this is the
+            // grower last drawn).
+            && (old_nodes == 0 || growth.parent_of(old_nodes - 1) == self.parent[old_nodes - 1]);
+        if !fits {
+            return false;
+        }
+        // Segments of `Growth::network`: one per non-root node, in node order; without split
+        // segments each new node drains into an older one.
+        let new_segments = (old_nodes..nodes)
+            .map(|node| (node, growth.parent_of(node)))
+            .filter(|&(_, parent)| parent != NO_PARENT);
+        self.apply(
+            nodes,
+            new_segments,
+            |index| growth.node(index),
+            rule,
+            geometry,
+        );
+        true
+    }
+
+    /// Appends the new segments `(from, to)` (in the network's order, each `from` a new node
+    /// after its parent `to`) and recomputes every node downstream of a new one, reading nodes
+    /// from `node`.
+    fn apply(
+        &mut self,
+        nodes: usize,
+        new_segments: impl Iterator<Item = (usize, u32)>,
+        node_at: impl Fn(usize) -> Node,
+        rule: WidthRule,
+        geometry: &mut ScreenGeometry,
+    ) {
+        let old_nodes = self.parent.len();
         if nodes == old_nodes && old_nodes > 0 {
             // Nothing grew: the geometry stands as it is.
-            return true;
+            return;
         }
         if old_nodes == 0 {
             geometry.clear_entries();
@@ -91,19 +156,18 @@ impl GrowingScreen {
         self.marked.resize(nodes, false);
         self.rule = Some(rule);
         // New segments, in the network's order (one per new non-root node, in node order).
-        let old_entries = geometry.len();
-        for segment in &network.segments[old_entries..] {
-            let (from, to) = (segment.from as usize, segment.to);
+        for (from, to) in new_segments {
             let entry = geometry.len() as u32;
             self.parent[from] = to;
             self.entry_of[from] = entry;
             self.node_of_entry.push(from as u32);
             self.next_sibling[from] = self.first_child[to as usize];
             self.first_child[to as usize] = from as u32;
-            let (a, b) = (&network.nodes[from], &network.nodes[to as usize]);
+            let (a, b) = (node_at(from), node_at(to as usize));
             geometry.push_entry(
                 [a.x as f32, a.y as f32, b.x as f32, b.y as f32],
-                network.segment_length(from as u32, to),
+                // `Network::segment_length`.
+                ramulus_core::fast_libm::hypot(a.x - b.x, a.y - b.y),
             );
         }
         // Every new node and everything downstream of one needs its values again.
@@ -124,7 +188,7 @@ impl GrowingScreen {
         for index in 0..self.dirty.len() {
             let node = self.dirty[index] as usize;
             self.marked[node] = false;
-            let mut flow = network.nodes[node].weight;
+            let mut flow = node_at(node).weight;
             // What the children pass on: highest order and how many have it (the count stops
             // at 2), as in `segments::strahler_orders`.
             let (mut highest, mut count) = (0u32, 0u32);
@@ -166,7 +230,6 @@ impl GrowingScreen {
         }
         let flow_range = if high > 0.0 { (low, high) } else { (0.0, 0.0) };
         geometry.finish_entries(flow_range, max_order);
-        true
     }
 
     /// Whether `network` is the forest last drawn plus appended nodes, each after its parent.
@@ -358,5 +421,74 @@ mod tests {
         assert!(!growing.update(&growth.network(), other_rule, &mut geometry));
         // The geometry was left as the first update made it.
         assert_eq!(geometry.len(), 300);
+    }
+
+    /// Refilled straight from the grower (`update_from_growth`, no copy of the network), the
+    /// geometry equals the core's full pipeline on `Growth::network` after every slice, every
+    /// buffer bit for bit, for cheapest-first and weighted runs alike.
+    #[test]
+    fn refills_from_the_grower_equal_the_full_pipeline() {
+        for link in [
+            "v=1&width=40&height=36&roots=20,34,0,1&cells=1200&joining=cheapest&w_turn=0\
+             &w_flow=0&w_path=0&seed=4",
+            "v=1&width=30&height=30&roots=3,3,0,1;26,26,0,-1&cells=700&joining=weighted\
+             &temperature=0.5&w_turn=1&w_flow=0.5&alpha=0.5&w_path=0.05&seed=9&gamma=2.5\
+             &jitter=0.3",
+        ] {
+            let params = decode_link(link).params;
+            let rule = width_rule(&params);
+            let mut growth = Growth::new(&params).unwrap();
+            let mut growing = GrowingScreen::default();
+            let mut geometry = ScreenGeometry::default();
+            for slice in [0u64, 1, 1, 3, 10, 0, 40, 7, 150, 300, 2000] {
+                growth.step(slice);
+                assert!(
+                    growing.update_from_growth(&growth, rule, &mut geometry),
+                    "{link}"
+                );
+                let network = growth.network();
+                let expected = full(&network, rule);
+                assert_eq!(geometry.ends, expected.ends, "{link}");
+                assert_eq!(geometry.widths, expected.widths, "{link}");
+                assert_eq!(geometry.orders, expected.orders, "{link}");
+                assert_eq!(geometry.flows, expected.flows, "{link}");
+                assert_eq!(geometry.lengths, expected.lengths, "{link}");
+                assert_eq!(geometry.flow_range, expected.flow_range, "{link}");
+                assert_eq!(geometry.max_order, expected.max_order, "{link}");
+                assert_eq!(geometry.segment_count, expected.segment_count, "{link}");
+                assert!(geometry.draw_lines.lines().eq(expected.draw_lines.lines()));
+            }
+            assert!(geometry.len() > 500, "{link}: {} entries", geometry.len());
+        }
+    }
+
+    /// A grower that has split a segment (segment attachment gives an older node a new
+    /// parent), or a new run with fewer nodes, is refused, touching nothing.
+    #[test]
+    fn a_grower_that_rewired_or_started_over_is_refused() {
+        let params =
+            decode_link("v=1&width=30&height=30&roots=15,28,0,1&cells=400&joining=cheapest&seed=2")
+                .params;
+        let rule = width_rule(&params);
+        let mut growth = Growth::new(&params).unwrap();
+        growth.step(300);
+        let mut growing = GrowingScreen::default();
+        let mut geometry = ScreenGeometry::default();
+        assert!(growing.update_from_growth(&growth, rule, &mut geometry));
+        let mut smaller = Growth::new(&params).unwrap();
+        smaller.step(100);
+        assert!(!growing.update_from_growth(&smaller, rule, &mut geometry));
+        assert_eq!(geometry.len(), 300);
+        let mut joined = params.clone();
+        joined.run.attach_to_segments = true;
+        let mut splitting = Growth::new(&joined).unwrap();
+        while splitting.only_appends() && splitting.stopped().is_none() {
+            splitting.step(1);
+        }
+        assert!(!splitting.only_appends(), "no segment was split");
+        let mut fresh = GrowingScreen::default();
+        let mut other = ScreenGeometry::default();
+        assert!(!fresh.update_from_growth(&splitting, rule, &mut other));
+        assert_eq!(other.len(), 0);
     }
 }

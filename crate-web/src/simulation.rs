@@ -125,6 +125,8 @@ impl Simulation {
         if let Source::Growing(growth) = &mut self.source {
             **growth =
                 Growth::new(&self.params).map_err(|error| JsError::new(&error.to_string()))?;
+            // The forest drawn was the old grower's (the growing refill reads the grower).
+            self.growing.clear();
         }
         Ok(())
     }
@@ -452,7 +454,6 @@ impl Simulation {
     /// them are refilled (`GrowingScreen`, equal to a full refill bit for bit); otherwise the
     /// core's topology, junction, conducting-network and widths passes refill everything.
     pub fn update_geometry(&mut self) -> u32 {
-        let network = self.network();
         let rule = width_rule(&self.params);
         // The growing refill follows the passes with every segment conducting and every node
         // on its cell; with a conducting threshold a segment's state changes as flows grow, and
@@ -473,18 +474,18 @@ impl Simulation {
             return self.geometry.len() as u32;
         }
         if !self.full_refill && self.params.widths.vein_area == 0.0 && !self.relaxes_now() {
-            if self.growing.update(&network, rule, &mut self.geometry) {
+            if self.growing_refill() {
                 return self.geometry.len() as u32;
             }
             // Not the last network grown further: start the forest afresh, or refill in full.
             self.growing.clear();
             self.geometry = ScreenGeometry::default();
-            if self.growing.update(&network, rule, &mut self.geometry) {
+            if self.growing_refill() {
                 return self.geometry.len() as u32;
             }
         }
         self.growing.clear();
-        let mut network = network;
+        let mut network = self.network();
         match topology_pass(&network) {
             Ok(mut forest) => {
                 if self.relaxes_now() {
@@ -626,6 +627,19 @@ impl Simulation {
 }
 
 impl Simulation {
+    /// `GrowingScreen` brought up to the network so far: a grower's new nodes are read from it
+    /// directly, without copying the whole network each refill. Whether it could.
+    fn growing_refill(&mut self) -> bool {
+        let rule = width_rule(&self.params);
+        match &self.source {
+            Source::Growing(growth) => {
+                self.growing
+                    .update_from_growth(growth, rule, &mut self.geometry)
+            }
+            Source::Fixed(network) => self.growing.update(network, rule, &mut self.geometry),
+        }
+    }
+
     fn network(&self) -> Network {
         match &self.source {
             Source::Growing(growth) => growth.network(),

@@ -11,6 +11,11 @@ impl Growth {
         let node_anchor = self.node_anchor(node);
         let segment =
             self.refined.run.attach_to_segments && self.parent[node as usize] != NO_PARENT;
+        // A frontier cell keeps its attachment unless the node is strictly cheaper, so when a
+        // floor of the node's cost is already no cheaper its cost need not be computed.
+        let floor = (!segment && self.model.has_floor()).then(|| self.model.floor(&node_anchor));
+        // A copy the loop's writes cannot touch, so its fields stay in registers.
+        let model = self.model;
         for offset_index in 0..self.lattice.offsets.len() {
             let (dx, dy) = self.lattice.offsets[offset_index];
             let Some((cell, cell_column, cell_row)) =
@@ -22,9 +27,15 @@ impl Growth {
             if state == BLOCKED || state < FRONTIER_TAG {
                 continue;
             }
+            if let Some(floor) = floor.filter(|_| state != FREE) {
+                let kept = self.frontier.slots[(state & !FRONTIER_TAG) as usize].cost;
+                if floor.at(self.lattice.length_floors[offset_index]) >= kept {
+                    continue;
+                }
+            }
             let (cx, cy) = self.lattice.position_at(cell, cell_column, cell_row);
             let ground = self.cell_ground_remembered(cell, cx, cy);
-            let mut best_cost = self.model.cost(cx, cy, ground, &node_anchor);
+            let mut best_cost = model.cost(cx, cy, ground, &node_anchor);
             let mut best = Attachment {
                 target: node,
                 segment_parent: NONE,

@@ -144,6 +144,39 @@ impl CostModel {
         cost
     }
 
+    /// Whether `floor` bounds `cost` from below: every term left out of it is never
+    /// negative. A preferred branching angle's turn, `1 - cos(phi - theta0)`, may round to a
+    /// hair below 0, so it has no floor.
+    pub fn has_floor(&self) -> bool {
+        self.preferred.is_none()
+    }
+
+    /// The parts of `cost` that do not depend on the cell, for `CostFloor::at`.
+    pub fn floor(&self, anchor: &Anchor) -> CostFloor {
+        debug_assert!(self.has_floor());
+        // A weight that is off is exactly 0 (validated weights are finite and not negative),
+        // so its term adds exactly 0 and the sum keeps the bits of the sum without it.
+        let flow = if self.length_only || self.w_flow <= 0.0 {
+            0.0
+        } else {
+            self.w_flow * (anchor.transport * self.transport_unit)
+        };
+        let path = !self.length_only && self.w_path > 0.0;
+        CostFloor {
+            w_len: self.w_len,
+            w_path: if path { self.w_path } else { 0.0 },
+            length_unit: self.length_unit,
+            flow,
+            dist: anchor.dist,
+            // With elongation or rear cost the supply length may be shorter than the length.
+            supply: if self.along_scale == 1.0 && self.rear_scale == 1.0 {
+                1.0
+            } else {
+                0.0
+            },
+        }
+    }
+
     /// The cost of joining the cell at `(x, y)` to an anchor at `(anchor_x, anchor_y)` when
     /// `length_only`: the very bits `cost` gives then, without gathering the whole anchor.
     #[inline]
@@ -182,6 +215,35 @@ impl CostModel {
         };
         let across = vx * axis_y - vy * axis_x;
         (along * along + across * across).sqrt()
+    }
+}
+
+/// A floor of the cost of joining one anchor, from every cell at least a given length away
+/// (`CostModel::floor`, when `has_floor`).
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct CostFloor {
+    w_len: f64,
+    w_path: f64,
+    length_unit: f64,
+    /// The transport term (0 when off).
+    flow: f64,
+    /// The anchor's supply distance.
+    dist: f64,
+    /// 1 when the supply length is the length, else 0.
+    supply: f64,
+}
+
+impl CostFloor {
+    /// A cost no greater than `CostModel::cost` for a cell whose computed length to the
+    /// anchor is at least `length` (cells): the same terms summed in the same order, with the
+    /// turn and uphill terms (never negative) left out, `length` for the length and the supply
+    /// length, and terms that are off adding exactly 0. Rounding to nearest is monotone, so
+    /// every sum and product of smaller non-negative operands is no greater, and so is the
+    /// total.
+    #[inline]
+    pub fn at(&self, length: f64) -> f64 {
+        let cost = self.w_len * (length * self.length_unit) + self.flow;
+        cost + self.w_path * ((self.dist + length * self.supply) * self.length_unit)
     }
 }
 

@@ -200,15 +200,17 @@ impl Frontier {
         }
         level.sort_unstable();
         // Every leaf is at the same depth (the capacity is a power of two), so each pass moves
-        // the whole list one level up and keeps it sorted.
+        // the whole list one level up and keeps it sorted: a parent listed twice (both of its
+        // children changed) comes twice in a row and is recombined once.
         while level.first().is_some_and(|&node| node > 1) {
-            for node in level.iter_mut() {
-                *node /= 2;
-            }
-            level.dedup();
             let mut kept = 0;
+            let mut previous = 0;
             for position in 0..level.len() {
-                let node = level[position];
+                let node = level[position] / 2;
+                if node == previous {
+                    continue;
+                }
+                previous = node;
                 if self.recombine(node as usize) {
                     level[kept] = node;
                     kept += 1;

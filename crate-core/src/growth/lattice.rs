@@ -25,6 +25,9 @@ pub(crate) struct Lattice {
     jitter: Vec<[f32; 2]>,
     /// Offsets `(dx, dy)` with `dx^2 + dy^2 <= radius^2`, nearest first, excluding `(0, 0)`.
     pub offsets: Vec<(i32, i32)>,
+    /// For each offset, a length (in cells) no greater than the computed distance between a
+    /// cell's position and any node in the cell at that offset from it (`length_floor`).
+    pub length_floors: Vec<f64>,
 }
 
 impl Lattice {
@@ -67,12 +70,25 @@ impl Lattice {
             }
         }
         offsets.sort_by_key(|&(dx, dy)| (dx * dx + dy * dy, dy, dx));
+        // A cell's position is off its centre by at most the jitter in x and in y; a junction
+        // (segment attachment) lies anywhere in its cell, at most half a cell off.
+        let node_slack = if params.run.attach_to_segments {
+            params.domain.jitter.max(0.5)
+        } else {
+            params.domain.jitter
+        };
+        let slack = params.domain.jitter + node_slack;
+        let length_floors = offsets
+            .iter()
+            .map(|&(dx, dy)| length_floor(dx, dy, slack))
+            .collect();
         Lattice {
             width,
             height,
             state,
             jitter,
             offsets,
+            length_floors,
         }
     }
 
@@ -135,4 +151,16 @@ impl Lattice {
             None => (column, row),
         }
     }
+}
+
+/// A length no greater than the computed distance `sqrt(vx^2 + vy^2)` between two points whose
+/// cells are `(dx, dy)` apart and which lie at most `slack` (in x and in y together) off their
+/// cells' centres. Each component is at least `|d| - slack`; the result is further lowered by
+/// a millionth of a cell and a millionth of itself, far more than the rounding of positions
+/// (single-precision jitter) and of the distance can take off the computed length.
+fn length_floor(dx: i32, dy: i32, slack: f64) -> f64 {
+    let slack = slack * (1.0 + 1e-6) + 1e-6;
+    let x = (f64::from(dx.abs()) - slack).max(0.0);
+    let y = (f64::from(dy.abs()) - slack).max(0.0);
+    ((x * x + y * y).sqrt() * (1.0 - 1e-6) - 1e-6).max(0.0)
 }

@@ -283,16 +283,7 @@ impl Growth {
     pub fn network(&self) -> Network {
         let size = self.refined.domain.cell_size;
         let cell_area = size * size;
-        let nodes = (0..self.x.len())
-            .map(|index| Node {
-                x: self.x[index] * size,
-                y: self.y[index] * size,
-                weight: match self.cell_of[index] {
-                    NONE => 0.0,
-                    cell => self.own_weight(cell as usize) * cell_area,
-                },
-            })
-            .collect();
+        let nodes = (0..self.x.len()).map(|index| self.node(index)).collect();
         let occupied = self
             .cell_of
             .iter()
@@ -311,6 +302,37 @@ impl Growth {
                 occupied,
             },
         }
+    }
+}
+
+// Reading the network node by node, without copying it (`network()` copies it whole).
+impl Growth {
+    /// Node `index` in physical units, as `network()` gives it. Panics when `index` is not
+    /// below `node_count()`.
+    pub fn node(&self, index: usize) -> Node {
+        let size = self.refined.domain.cell_size;
+        Node {
+            x: self.x[index] * size,
+            y: self.y[index] * size,
+            weight: match self.cell_of[index] {
+                NONE => 0.0,
+                cell => self.own_weight(cell as usize) * (size * size),
+            },
+        }
+    }
+
+    /// The node `index` drains into (`NO_PARENT` for a root): the segment from `index` to
+    /// it is a segment of `network()`. Panics when `index` is not below `node_count()`.
+    pub fn parent_of(&self, index: usize) -> u32 {
+        self.parent[index]
+    }
+
+    /// Whether every node so far was appended after its parent and has kept its parent: false
+    /// once a segment has been split (segment attachment), which gives an older node a new
+    /// parent. While true, the network grown so far is the network of any earlier moment plus
+    /// the nodes added since, each with the segment to its parent.
+    pub fn only_appends(&self) -> bool {
+        !self.has_junctions
     }
 }
 
