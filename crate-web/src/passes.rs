@@ -34,6 +34,8 @@ pub struct StepwisePasses {
     pub finish_ms: f64,
     /// Whether the user stopped the sweeps.
     pub stopped: bool,
+    /// Whether the first slice has run.
+    pub started: bool,
 }
 
 impl StepwisePasses {
@@ -99,6 +101,7 @@ impl StepwisePasses {
                 progress.now,
                 progress.moved,
             ),
+            (None, None) if self.started => ("finishing", "done", 0, 0, 0.0, 0.0, 0),
             (None, None) => ("start", "done", 0, 0, 0.0, 0.0, 0),
         };
         let log: Vec<Value> = self

@@ -187,14 +187,23 @@ impl Simulation {
     pub fn reshape_step(&mut self, budget_ms: f64) -> Result<String, JsError> {
         if self.passes_waiting() {
             let start = js_sys::Date::now();
-            match self.passes.reshaping.as_mut() {
-                None => {
+            let sweeping = self
+                .passes
+                .reshaping
+                .as_ref()
+                .is_some_and(|reshaping| !reshaping.done());
+            if !self.passes.started {
+                // Only runs with sweeps need the set-up (a run closing loops alone goes
+                // straight to the last slice).
+                self.passes.started = true;
+                if self.reshapes() {
                     let reshaping = Reshaping::new(self.network(), &self.params)
                         .map_err(|error| JsError::new(&error.to_string()))?;
                     self.passes.reshaping = Some(reshaping);
-                    self.passes.setup_ms = js_sys::Date::now() - start;
                 }
-                Some(reshaping) if !reshaping.done() => loop {
+                self.passes.setup_ms = js_sys::Date::now() - start;
+            } else if let Some(reshaping) = self.passes.reshaping.as_mut().filter(|_| sweeping) {
+                loop {
                     let sweep_start = js_sys::Date::now();
                     let progress = reshaping
                         .sweep()
@@ -211,14 +220,10 @@ impl Simulation {
                     if reshaping.done() || ended - start >= budget_ms {
                         break;
                     }
-                },
-                Some(_) => {
-                    self.view()?;
-                    // The view holds what the passes did; a run without reshaping passes (loops
-                    // only) leaves its unused set-up here.
-                    self.passes.reshaping = None;
-                    self.passes.finish_ms = js_sys::Date::now() - start;
                 }
+            } else {
+                self.view()?;
+                self.passes.finish_ms = js_sys::Date::now() - start;
             }
         }
         Ok(self.passes_progress())
