@@ -27,6 +27,7 @@ export class AfterGrowth {
     this.startedAt = performance.now();
     this.site = site;
     byId('passes-row').hidden = false;
+    byId('passes-stop').hidden = false;
     byId('passes-stop').disabled = false;
     byId('passes-stop').textContent = site ? 'Stop the sweeps' : 'Stop';
     this.showFigures(null);
@@ -42,7 +43,8 @@ export class AfterGrowth {
       }
       this.show(progress);
       if (progress.done) {
-        byId('passes-stop').disabled = true;
+        // The line stays with the passes' outcome; nothing is left to stop.
+        byId('passes-stop').hidden = true;
         this.simulation = null;
         done();
         return;

@@ -102,6 +102,7 @@ test('a site run sweeps channel energy with progress, stops on Stop and stays us
   assert.notEqual(next, digest, 'a new run grew');
   const done = await page.textContent('#passes-text');
   assert.match(done, /Channel energy .* over [12] sweeps?\./, done);
+  assert.equal(await page.isHidden('#passes-stop'), true, 'nothing left to stop');
   assert.deepEqual(page.errors, [], 'no console errors');
   await screenshot(page, 'passes-after');
   await page.close();
