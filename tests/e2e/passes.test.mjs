@@ -8,8 +8,10 @@
 // Screenshots go to artifacts/e2e/passes-*.png.
 import { after, before, test } from 'node:test';
 import assert from 'node:assert/strict';
+import { mkdirSync } from 'node:fs';
+import path from 'node:path';
 import {
-  finishedDigest, launchBrowser, nativeRun, newPage, screenshot, serveSite,
+  artifacts, finishedDigest, launchBrowser, nativeRun, newPage, screenshot, serveSite,
 } from './support.mjs';
 
 let site;
@@ -51,18 +53,21 @@ test('a site run sweeps channel energy with progress, stops on Stop and stays us
 
   // Progress: the status names the sweep and changes from one sweep to the next.
   await page.waitForFunction(() => /sweep 1 of 40/.test(document.querySelector('#passes-text').textContent),
-    null, { timeout: 120000 });
+    null, { timeout: 300000 });
   const first = await page.textContent('#passes-text');
   assert.match(first, /Channel energy/);
   assert.match(first, /outlets/);
   assert.equal(await page.isVisible('#passes-stop'), true, 'a Stop control while sweeping');
   await page.waitForFunction((shown) => document.querySelector('#passes-text').textContent !== shown
-    && /sweep [2-9]\d* of 40/.test(document.querySelector('#passes-text').textContent), first, { timeout: 60000 });
+    && /sweep [2-9]\d* of 40/.test(document.querySelector('#passes-text').textContent), first, { timeout: 300000 });
   assert.notEqual(await page.textContent('#passes-text'), first, 'the progress text changes');
-  await screenshot(page, 'passes-sweeping');
+  // The visible part only: the page paints between sweeps of a few seconds each, and a
+  // full-page picture needs several paints.
+  mkdirSync(artifacts, { recursive: true });
+  await page.screenshot({ path: path.join(artifacts, 'passes-sweeping.png'), timeout: 300000 });
 
-  await page.click('#passes-stop');
-  const digest = await finishedDigest(page, 120000);
+  await page.click('#passes-stop', { timeout: 300000 });
+  const digest = await finishedDigest(page, 300000);
   const status = await page.textContent('#passes-text');
   assert.match(status, /stopped after sweep \d+/, status);
   const progress = await page.evaluate(() => JSON.parse(window.ramulusPage.state.simulation.reshape_progress()));
