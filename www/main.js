@@ -340,6 +340,12 @@ function onFinished() {
     byId('digest').textContent = 'running the passes after growth…';
     afterGrowth.run(simulation, state.frame?.site === true, () => {
       if (state.simulation !== simulation) return;
+      // Stopped: the run now asks for the sweeps that ran; the form, the address and the link
+      // to share say so (without growing the run again), so the link grows this network.
+      if (JSON.parse(simulation.reshape_progress()).stopped) {
+        const read = JSON.parse(core.read_link(simulation.link()));
+        applyLink(read.link, read.fields);
+      }
       runner.guarded(() => {
         redraw();
         onFinished();

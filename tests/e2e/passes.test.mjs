@@ -93,8 +93,9 @@ test('a site run sweeps channel energy with progress, stops on Stop and stays us
   assert.doesNotMatch(words, /\b(leaf|petiole|areole|blade|tissue|midrib|veinlet)s?\b/i, 'no leaf words on a site');
 
   // The stopped run's link asks for the sweeps run; the command line grows it to the same digest.
-  const stoppedLink = await page.evaluate(() => window.ramulusPage.state.simulation.link());
-  assert.match(stoppedLink, new RegExp(`energy_sweeps=${progress.sweep}(&|$)`));
+  const stoppedLink = await page.evaluate(() => location.hash.slice(1));
+  assert.match(stoppedLink, new RegExp(`energy_sweeps=${progress.sweep}(&|$)`), 'the address asks for the sweeps run');
+  assert.equal(await page.inputValue('#link-text'), await page.evaluate(() => location.href));
   assert.equal(nativeRun(stoppedLink).digest, digest, 'the command line grows the same network');
 
   // The page stays usable: readings are shown, zoom works, and a new run grows to its end.
