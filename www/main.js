@@ -3,6 +3,7 @@
 // drawing rule: every parameter check, link, measurement, colour key, number and sentence about
 // the run comes from Rust through the session (session.js).
 import { NetworkView } from './draw.js';
+import { AfterGrowth } from './passes.js';
 import { ParameterForm } from './form.js';
 import { showGuide } from './guide.js';
 import { download, forgetRecord, keepRecord, keptRecord, renderPng } from './keep.js';
@@ -38,6 +39,7 @@ let core;
 let view;
 let form;
 let runner;
+let afterGrowth;
 
 async function start() {
   state.session = await Session.open();
@@ -52,7 +54,8 @@ async function start() {
   runner = new Runner({
     redraw, refill, draw, drawPart, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying, failed: onFailure,
   });
-  window.ramulusPage = { runner, view, state };
+  afterGrowth = new AfterGrowth();
+  window.ramulusPage = { runner, view, state, afterGrowth };
 
   // ---- specimens (issue 10, page side): its own modules (specimen*.js), sharing the session;
   // a failure there leaves the rest of the page working ----
@@ -165,6 +168,7 @@ function commitField(key, text) {
 
 function startRun(simulation = null) {
   runner.clear();
+  afterGrowth.forget();
   state.session.setSimulation(null);
   if (!simulation) {
     // The core's estimate of the run's memory: a run past the ceiling would trap on its way.
@@ -207,6 +211,7 @@ function startRun(simulation = null) {
 function showNoRun(message) {
   state.networkBounds = null;
   runner.clear();
+  afterGrowth.forget();
   state.session.setSimulation(null);
   notice(message);
   byId('digest').textContent = 'no run (see the message above)';
@@ -328,6 +333,26 @@ function onPaused() {
 function onFinished() {
   const simulation = state.simulation;
   if (!simulation) return;
+  if (simulation.passes_pending()) {
+    // The passes after growth run a slice at a time (passes.js); the network is shown as grown
+    // meanwhile, then redrawn as they leave it, and the run ends on screen after them.
+    showProgress();
+    byId('digest').textContent = 'running the passes after growth…';
+    afterGrowth.run(simulation, state.frame?.site === true, () => {
+      if (state.simulation !== simulation) return;
+      // Stopped: the run now asks for the sweeps that ran; the form, the address and the link
+      // to share say so (without growing the run again), so the link grows this network.
+      if (JSON.parse(simulation.reshape_progress()).stopped) {
+        const read = JSON.parse(core.read_link(simulation.link()));
+        applyLink(read.link, read.fields);
+      }
+      runner.guarded(() => {
+        redraw();
+        onFinished();
+      });
+    });
+    return;
+  }
   // The runner has already redrawn the final network.
   showProgress();
   showMarks(true);

@@ -35,6 +35,8 @@ export class Session {
     if (trapAt) simulation.debug_trap_at_cells(trapAt);
     // Benchmark switch (tests/e2e/bench-page.mjs): refill the geometry in full every time.
     if (globalThis.ramulusTestHooks?.fullRefill) simulation.set_full_refill(true);
+    // The passes after growth run a slice at a time (passes.js), not inside a refill.
+    simulation.set_stepwise_passes(globalThis.ramulusTestHooks?.passesInOneGo !== true);
     return simulation;
   }
 
@@ -60,7 +62,9 @@ export class Session {
 
   /// A run restored from a run record's text.
   restore(text) {
-    return core.Simulation.from_record(text);
+    const simulation = core.Simulation.from_record(text);
+    simulation.set_stepwise_passes(true);
+    return simulation;
   }
 
   /// Refills the geometry from the network as it stands; returns the entry count.

@@ -143,6 +143,14 @@ pub fn run(options: BenchOptions) -> Result<(), CliError> {
     if options.fit {
         return crate::fit_bench::run(options.quick);
     }
+    if options.passes {
+        sloping_field_figures(10)?;
+        return looped_preset_figures(if options.quick {
+            [25_000, 100_000]
+        } else {
+            [100_000, 400_000]
+        });
+    }
     if options.identifiability {
         return crate::identifiability_bench::run(options.quick, options.json);
     }
@@ -217,8 +225,110 @@ pub fn run(options: BenchOptions) -> Result<(), CliError> {
     } else {
         [100_000, 400_000]
     })?;
+    looped_preset_figures(if quick {
+        [25_000, 100_000]
+    } else {
+        [100_000, 400_000]
+    })?;
     full_model_command_figures(if quick { 25_000 } else { 100_000 }, 5)?;
     spanning_tree_figures(side, 3)
+}
+
+/// The `looped-leaf` preset scaled to `cells` cells: its lattice, blade outline and petiole
+/// scaled about the lattice corner so the blade holds 2 % more than `cells` cells (the leaf
+/// grows until its blade is full, so the budget ends the run), the cell size, growth reach and
+/// vein threshold kept (so the blade is larger, not finer). The page benchmark
+/// (tests/e2e/bench-page.mjs, `leafFigures`) scales the preset the same way.
+pub fn scaled_looped_leaf(cells: u64) -> Result<Params, CliError> {
+    let mut params = ramulus_core::presets::preset("looped-leaf")
+        .ok_or_else(|| CliError::Failed("preset looped-leaf is missing".into()))?;
+    // The blade's area in cells (shoelace formula), summed as the page benchmark sums it.
+    let outline = params.domain.outline.clone().unwrap_or_default();
+    let mut twice = 0.0;
+    for (index, point) in outline.iter().enumerate() {
+        let next = outline[(index + 1) % outline.len()];
+        twice += point[0] * next[1] - next[0] * point[1];
+    }
+    let area = (twice / 2.0).abs().max(1.0);
+    let scale = (cells as f64 / area).sqrt() * 1.02;
+    params.domain.width = (f64::from(params.domain.width) * scale).ceil() as u32;
+    params.domain.height = (f64::from(params.domain.height) * scale).ceil() as u32;
+    for root in &mut params.domain.roots {
+        root.x = ((f64::from(root.x) + 0.5) * scale).floor() as u32;
+        root.y = ((f64::from(root.y) + 0.5) * scale).floor() as u32;
+    }
+    if let Some(outline) = params.domain.outline.as_mut() {
+        for point in outline.iter_mut() {
+            point[0] *= scale;
+            point[1] *= scale;
+        }
+    }
+    params.run.cells = cells;
+    Ok(params)
+}
+
+/// The `looped-leaf` preset scaled to each size (`scaled_looped_leaf`): growth, then the
+/// pipeline after growth with its loop pass, best of 3, and the loop pass's share of the whole.
+fn looped_preset_figures(sizes: [u64; 2]) -> Result<(), CliError> {
+    let mut wholes = Vec::new();
+    for cells in sizes {
+        let params = scaled_looped_leaf(cells)?;
+        let mut tree_params = params.clone();
+        tree_params.widths.reconnect = None;
+        let mut best = (f64::INFINITY, f64::INFINITY, f64::INFINITY);
+        let mut grown_cells = 0;
+        let mut links = 0;
+        for _ in 0..3 {
+            let start = Instant::now();
+            let mut growth =
+                Growth::new(&params).map_err(|error| CliError::Failed(error.to_string()))?;
+            growth.run();
+            let network = growth.network();
+            grown_cells = growth.cell_count();
+            drop(growth);
+            let grown = start.elapsed().as_secs_f64();
+            let start = Instant::now();
+            let tree = ramulus_core::run::RunView::new(network.clone(), &tree_params)
+                .map_err(|error| CliError::Failed(error.to_string()))?;
+            let tree_seconds = start.elapsed().as_secs_f64();
+            std::hint::black_box(&tree);
+            let start = Instant::now();
+            let view = ramulus_core::run::RunView::new(network, &params)
+                .map_err(|error| CliError::Failed(error.to_string()))?;
+            let looped_seconds = start.elapsed().as_secs_f64();
+            links = view
+                .loops
+                .as_ref()
+                .map_or(0, |loops| loops.reconnection.links.len());
+            best = (
+                best.0.min(grown),
+                best.1.min(tree_seconds),
+                best.2.min(looped_seconds),
+            );
+        }
+        let whole = best.0 + best.2;
+        let loops = (best.2 - best.1).max(0.0);
+        say!(
+            "looped-leaf preset scaled to {cells} cells ({grown_cells} grown), best of 3: \
+             growth {:.2} s, pipeline with loops {:.2} s (without {:.2} s), whole {:.2} s; \
+             loop pass {:.2} s = {:.0} % of the whole ({links} loop segments)",
+            best.0,
+            best.2,
+            best.1,
+            whole,
+            loops,
+            100.0 * loops / whole
+        );
+        wholes.push((cells, whole));
+    }
+    if let [(small, a), (large, b)] = wholes[..] {
+        say!(
+            "looped-leaf: {:.1} x the cells took {:.2} x the time (growth and loop pass)",
+            large as f64 / small as f64,
+            b / a
+        );
+    }
+    Ok(())
 }
 
 /// The channel energy pass (`channel_energy::lower_energy`) on an open lattice of `cells`
@@ -599,5 +709,65 @@ fn loop_figures(sizes: [u64; 2]) -> Result<(), CliError> {
             figures.3
         );
     }
+    Ok(())
+}
+
+/// The 2-hectare sloping field (`examples/sites/sloping-field.geojson`, compiled in) at 0.5 m
+/// cells: growth, then `sweeps` channel energy sweeps a sweep at a time as the page runs them
+/// (`reshaping::Reshaping`), with each sweep's time and energy drop.
+fn sloping_field_figures(sweeps: u32) -> Result<(), CliError> {
+    let text = include_str!("../../examples/sites/sloping-field.geojson");
+    let site = ramulus_core::site::read_site(text.as_bytes())
+        .map_err(|error| CliError::Failed(format!("sloping-field.geojson: {error}")))?;
+    let mut params = site
+        .to_params(0.5, &ramulus_core::site::Terrain::SpotLevels)
+        .map_err(|error| CliError::Failed(format!("sloping-field.geojson: {error}")))?;
+    params.run.energy_sweeps = sweeps;
+    let start = Instant::now();
+    let mut growth = Growth::new(&params).map_err(|error| CliError::Failed(error.to_string()))?;
+    growth.run();
+    let network = growth.network();
+    let cells = growth.cell_count();
+    drop(growth);
+    let grown = start.elapsed().as_secs_f64();
+    let start = Instant::now();
+    let mut reshaping = ramulus_core::reshaping::Reshaping::new(network, &params)
+        .map_err(|error| CliError::Failed(error.to_string()))?;
+    say!(
+        "sloping field, 2 ha at 0.5 m cells ({cells} cells): growth {grown:.2} s, sweep set-up \
+         {:.2} s, E before {:.5e}",
+        start.elapsed().as_secs_f64(),
+        reshaping.progress().before
+    );
+    let mut previous = reshaping.progress().before;
+    while !reshaping.done() {
+        let start = Instant::now();
+        let progress = reshaping
+            .sweep()
+            .map_err(|error| CliError::Failed(error.to_string()))?;
+        say!(
+            "  sweep {}: {:.3} s, E {:.5e} ({:+.2} %), {} paths re-pointed",
+            progress.sweep,
+            start.elapsed().as_secs_f64(),
+            progress.now,
+            100.0 * (progress.now - previous) / previous,
+            progress.moved
+        );
+        previous = progress.now;
+    }
+    let start = Instant::now();
+    let (view, _) = reshaping
+        .finish()
+        .map_err(|error| CliError::Failed(error.to_string()))?;
+    say!(
+        "  measuring after the sweeps {:.2} s; E {:.5e} -> {:.5e}",
+        start.elapsed().as_secs_f64(),
+        view.energy
+            .as_ref()
+            .map_or(0.0, |energy| energy.energy_before),
+        view.energy
+            .as_ref()
+            .map_or(0.0, |energy| energy.energy_after)
+    );
     Ok(())
 }

@@ -427,7 +427,10 @@ const COMMAND_FLAGS: [(&str, &[&str]); 5] = [
             "--json",
         ],
     ),
-    ("bench", &["--quick", "--json", "--image", "--refill"]),
+    (
+        "bench",
+        &["--quick", "--json", "--image", "--refill", "--passes"],
+    ),
 ];
 
 /// `ramulus COMMAND --help` prints that command's usage and every flag on stdout and exits 0;

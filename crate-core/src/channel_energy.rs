@@ -84,70 +84,145 @@ pub fn network_energy(network: &Network, topology: &Topology) -> f64 {
 /// Re-points the downstream segments of `network` (a forest with forest view `topology`) to
 /// lower `E`, at most `sweeps` sweeps, candidates within `reach` (length units) of each node.
 /// Returns the new downstream node of every node (`NO_PARENT` for roots, as before) and the
-/// report; `network` itself is not changed (`apply_parents` writes the result).
+/// report; `network` itself is not changed (`apply_parents` writes the result). The same as
+/// `EnergyDescent::sweep` called until it reports the descent done.
 pub fn lower_energy(
     network: &Network,
     topology: &Topology,
     reach: f64,
     sweeps: u32,
 ) -> (Vec<u32>, ChannelEnergy) {
-    let count = network.nodes.len();
-    let mut parent = topology.parent.clone();
-    let mut flow = topology.flow.clone();
-    let energy_before = energy_of(network, &parent, &flow);
-    let mut report = ChannelEnergy {
-        energy_before,
-        energy_after: energy_before,
-        sweeps: Vec::new(),
-    };
-    if count < 3 || sweeps == 0 || reach.is_nan() || reach <= 0.0 {
-        return (parent, report);
+    let mut descent = EnergyDescent::new(network, topology, reach, sweeps);
+    while !descent.done() {
+        descent.sweep(network);
     }
-    let weight: Vec<f64> = network.nodes.iter().map(|node| node.weight).collect();
-    let nodes = NodeGrid::new(network, reach);
-    let mut grid = SegmentGrid::new(network, &parent, network_side(network, reach));
-    // Tips first: the reverse of the root-first order.
-    let visit: Vec<u32> = topology.order.iter().rev().copied().collect();
-    let mut walk = Walk::new(count);
-    let mut candidates = Vec::new();
-    for _ in 0..sweeps {
+    descent.into_result()
+}
+
+/// The optimisation a sweep at a time (`lower_energy` runs it in one go): the state one sweep
+/// leaves for the next, so a caller can show progress between sweeps or stop after any whole
+/// sweep; stopped after `k` sweeps, the result is that of `lower_energy` with `k` sweeps.
+pub struct EnergyDescent {
+    parent: Vec<u32>,
+    flow: Vec<f64>,
+    weight: Vec<f64>,
+    nodes: Option<NodeGrid>,
+    grid: Option<SegmentGrid>,
+    visit: Vec<u32>,
+    walk: Walk,
+    candidates: Vec<(f64, u32)>,
+    reach: f64,
+    sweeps: u32,
+    done: bool,
+    report: ChannelEnergy,
+}
+
+impl EnergyDescent {
+    /// Starts the descent on `network` (a forest with forest view `topology`); pass the same
+    /// network to every `sweep`.
+    pub fn new(network: &Network, topology: &Topology, reach: f64, sweeps: u32) -> EnergyDescent {
+        let count = network.nodes.len();
+        let parent = topology.parent.clone();
+        let flow = topology.flow.clone();
+        let energy_before = energy_of(network, &parent, &flow);
+        let report = ChannelEnergy {
+            energy_before,
+            energy_after: energy_before,
+            sweeps: Vec::new(),
+        };
+        let idle = count < 3 || sweeps == 0 || reach.is_nan() || reach <= 0.0;
+        let (nodes, grid) = if idle {
+            (None, None)
+        } else {
+            (
+                Some(NodeGrid::new(network, reach)),
+                Some(SegmentGrid::new(
+                    network,
+                    &parent,
+                    network_side(network, reach),
+                )),
+            )
+        };
+        EnergyDescent {
+            weight: network.nodes.iter().map(|node| node.weight).collect(),
+            // Tips first: the reverse of the root-first order.
+            visit: topology.order.iter().rev().copied().collect(),
+            walk: Walk::new(count),
+            candidates: Vec::new(),
+            parent,
+            flow,
+            nodes,
+            grid,
+            reach,
+            sweeps,
+            done: idle,
+            report,
+        }
+    }
+
+    /// Whether no sweep is left: `sweeps` have run, or the last one moved nothing.
+    pub fn done(&self) -> bool {
+        self.done
+    }
+
+    /// The sweeps asked for.
+    pub fn sweeps_asked(&self) -> u32 {
+        self.sweeps
+    }
+
+    /// The report so far (energy before, after the last whole sweep, one entry per sweep).
+    pub fn report(&self) -> &ChannelEnergy {
+        &self.report
+    }
+
+    /// Runs one sweep (nothing once `done`); returns its outcome, `None` when none ran.
+    pub fn sweep(&mut self, network: &Network) -> Option<EnergySweep> {
+        if self.done {
+            return None;
+        }
+        let (Some(nodes), Some(grid)) = (&self.nodes, &mut self.grid) else {
+            self.done = true;
+            return None;
+        };
         let mut sweep = EnergySweep::default();
-        for &n in &visit {
-            if parent[n as usize] == NO_PARENT {
+        for &n in &self.visit {
+            if self.parent[n as usize] == NO_PARENT {
                 continue;
             }
-            let energy = report.energy_after.max(f64::MIN_POSITIVE);
+            let energy = self.report.energy_after.max(f64::MIN_POSITIVE);
             match move_one(
                 network,
-                &nodes,
-                &mut grid,
-                &mut parent,
-                &mut flow,
-                &mut walk,
-                &mut candidates,
+                nodes,
+                grid,
+                &mut self.parent,
+                &mut self.flow,
+                &mut self.walk,
+                &mut self.candidates,
                 n,
-                reach,
+                self.reach,
                 MIN_DROP * energy,
             ) {
                 Outcome::Moved(drop) => {
                     sweep.moves += 1;
-                    report.energy_after -= drop;
+                    self.report.energy_after -= drop;
                 }
                 Outcome::Blocked => sweep.blocked += 1,
                 Outcome::Stays => {}
             }
         }
         // Incremental flows drift by rounding: recompute them, and `E`, from scratch.
-        flow = flows(&parent, &weight);
-        sweep.energy = energy_of(network, &parent, &flow);
-        report.energy_after = sweep.energy;
-        let done = sweep.moves == 0;
-        report.sweeps.push(sweep);
-        if done {
-            break;
-        }
+        self.flow = flows(&self.parent, &self.weight);
+        sweep.energy = energy_of(network, &self.parent, &self.flow);
+        self.report.energy_after = sweep.energy;
+        self.report.sweeps.push(sweep);
+        self.done = sweep.moves == 0 || self.report.sweeps.len() >= self.sweeps as usize;
+        Some(sweep)
     }
-    (parent, report)
+
+    /// The new downstream node of every node and the report, as `lower_energy` returns them.
+    pub fn into_result(self) -> (Vec<u32>, ChannelEnergy) {
+        (self.parent, self.report)
+    }
 }
 
 /// Writes `parent` into `network`'s segments: every segment keeps its upstream node and gets

@@ -80,59 +80,112 @@ pub fn relax_junctions(
     alpha: f64,
     sweeps: u32,
 ) -> Relaxation {
-    let count = network.nodes.len();
-    let weight: Vec<f64> = (0..count)
-        .map(|node| match topology.parent.get(node) {
-            Some(&parent) if parent != NO_PARENT => segment_weight(topology.flow[node], alpha),
-            _ => 0.0,
-        })
-        .collect();
-    let junctions: Vec<u32> = topology
-        .order
-        .iter()
-        .copied()
-        .filter(|&node| {
-            !topology.is_root(node as usize) && topology.children.of(node as usize).len() >= 2
-        })
-        .collect();
-    let cost_before = total_cost(network, topology, &weight);
-    let mut report = Relaxation {
-        junctions: junctions.len(),
-        cost_before,
-        cost_after: cost_before,
-        ..Relaxation::default()
-    };
-    if junctions.is_empty() || sweeps == 0 {
-        return report;
+    let mut relaxing = JunctionRelaxing::new(network, topology, alpha, sweeps);
+    while !relaxing.done() {
+        relaxing.sweep(network, topology);
     }
-    let mut index = SegmentGrid::new(network, topology);
-    let mut cost = cost_before;
-    let mut neighbours = Vec::new();
-    for _ in 0..sweeps {
-        report.sweeps += 1;
-        for &junction in &junctions {
+    relaxing.report()
+}
+
+/// The relaxation a sweep at a time (`relax_junctions` runs it in one go): the state one sweep
+/// leaves for the next, so a caller can show progress between sweeps or stop after any whole
+/// sweep; stopped after `k` sweeps, the network is the one `relax_junctions` gives with `k`.
+pub struct JunctionRelaxing {
+    weight: Vec<f64>,
+    junctions: Vec<u32>,
+    index: Option<SegmentGrid>,
+    neighbours: Vec<Neighbour>,
+    cost: f64,
+    sweeps: u32,
+    done: bool,
+    report: Relaxation,
+}
+
+impl JunctionRelaxing {
+    /// Starts the relaxation of `network` (a forest with forest view `topology`); pass the same
+    /// network and view to every `sweep`.
+    pub fn new(
+        network: &Network,
+        topology: &Topology,
+        alpha: f64,
+        sweeps: u32,
+    ) -> JunctionRelaxing {
+        let count = network.nodes.len();
+        let weight: Vec<f64> = (0..count)
+            .map(|node| match topology.parent.get(node) {
+                Some(&parent) if parent != NO_PARENT => segment_weight(topology.flow[node], alpha),
+                _ => 0.0,
+            })
+            .collect();
+        let junctions: Vec<u32> = topology
+            .order
+            .iter()
+            .copied()
+            .filter(|&node| {
+                !topology.is_root(node as usize) && topology.children.of(node as usize).len() >= 2
+            })
+            .collect();
+        let cost_before = total_cost(network, topology, &weight);
+        let report = Relaxation {
+            junctions: junctions.len(),
+            cost_before,
+            cost_after: cost_before,
+            ..Relaxation::default()
+        };
+        let idle = junctions.is_empty() || sweeps == 0;
+        JunctionRelaxing {
+            index: (!idle).then(|| SegmentGrid::new(network, topology)),
+            weight,
+            junctions,
+            neighbours: Vec::new(),
+            cost: cost_before,
+            sweeps,
+            done: idle,
+            report,
+        }
+    }
+
+    /// Whether no sweep is left: `sweeps` have run, or the last one settled the cost.
+    pub fn done(&self) -> bool {
+        self.done
+    }
+
+    /// The report so far (cost after the last whole sweep).
+    pub fn report(&self) -> Relaxation {
+        self.report
+    }
+
+    /// Runs one sweep (nothing once `done`); returns the cost after it, `None` when none ran.
+    pub fn sweep(&mut self, network: &mut Network, topology: &Topology) -> Option<f64> {
+        if self.done {
+            return None;
+        }
+        let Some(index) = &mut self.index else {
+            self.done = true;
+            return None;
+        };
+        self.report.sweeps += 1;
+        for &junction in &self.junctions {
             match relax_one(
                 network,
                 topology,
-                &weight,
-                &mut index,
+                &self.weight,
+                index,
                 junction,
-                &mut neighbours,
+                &mut self.neighbours,
             ) {
-                Move::Kept => report.moves += 1,
-                Move::Refused => report.refused += 1,
+                Move::Kept => self.report.moves += 1,
+                Move::Refused => self.report.refused += 1,
                 Move::None => {}
             }
         }
-        let after = total_cost(network, topology, &weight);
-        let settled = cost - after <= SETTLED * cost;
-        cost = after;
-        if settled {
-            break;
-        }
+        let after = total_cost(network, topology, &self.weight);
+        let settled = self.cost - after <= SETTLED * self.cost;
+        self.cost = after;
+        self.report.cost_after = after;
+        self.done = settled || self.report.sweeps >= self.sweeps;
+        Some(after)
     }
-    report.cost_after = cost;
-    report
 }
 
 /// `q^alpha` of a segment carrying `flow`; a segment carrying nothing costs nothing (as in

@@ -24,6 +24,7 @@ pub mod presets;
 pub mod reconnection;
 pub mod record;
 pub mod region;
+pub mod reshaping;
 pub mod run;
 pub mod schema;
 pub mod segments;

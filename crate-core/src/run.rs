@@ -100,6 +100,20 @@ pub struct LoopView {
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Sizing {}
 
+/// A network after the passes that reshape it (topology, channel energy, junctions), as
+/// `RunView::after_reshaping` takes it.
+#[derive(Clone, Debug)]
+pub struct Reshaped {
+    /// The reshaped network.
+    pub network: Network,
+    /// Its forest view, `None` when it has loops.
+    pub forest: Option<ForestView>,
+    /// What the channel energy pass did, `None` when it did not run.
+    pub energy: Option<ChannelEnergy>,
+    /// What the junction pass did, `None` when it did not run.
+    pub relaxation: Option<Relaxation>,
+}
+
 /// A network together with every pass's output.
 #[derive(Clone, Debug)]
 pub struct RunView {
@@ -420,6 +434,27 @@ impl RunView {
         let mut forest = topology_pass(&network)?;
         let energy = energy_pass(&mut network, &mut forest, params)?;
         let relaxation = junction_pass(&mut network, forest.as_mut(), params);
+        Ok(RunView::after_reshaping(
+            Reshaped {
+                network,
+                forest,
+                energy,
+                relaxation,
+            },
+            params,
+        ))
+    }
+
+    /// The passes after the reshaping ones (channel energy, junctions), on their result: from
+    /// the conducting network on. `RunView::new` on a grown tree is `after_reshaping` of what
+    /// `reshaping::Reshaping` gives when run to the end.
+    pub fn after_reshaping(reshaped: Reshaped, params: &Params) -> RunView {
+        let Reshaped {
+            mut network,
+            mut forest,
+            energy,
+            relaxation,
+        } = reshaped;
         let mut conducting = conducting_pass(&network, &mut forest, params);
         // A pass that closed no loop leaves the tree as it was.
         let reconnection = loop_pass(&network, forest.as_ref(), &conducting, params)
@@ -463,7 +498,7 @@ impl RunView {
             ),
         };
         let digest = digest_hex(&network);
-        Ok(RunView {
+        RunView {
             network,
             forest,
             energy,
@@ -474,7 +509,7 @@ impl RunView {
             sizing,
             metrics,
             digest,
-        })
+        }
     }
 
     /// The forest view's topology, when the network is a forest.

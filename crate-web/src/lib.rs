@@ -14,6 +14,7 @@ use serde_json::json;
 use wasm_bindgen::prelude::*;
 
 pub mod memory;
+mod passes;
 mod simulation;
 
 // ---- specimens (issue 10, page side): traced files measured for the page; see specimen.rs ----

@@ -9,9 +9,9 @@ use ramulus_core::network::Network;
 use ramulus_core::params::Domain;
 use ramulus_core::params::Params;
 use ramulus_core::record::{make_record, read_record, write_record};
+use ramulus_core::reshaping::Reshaping;
 use ramulus_core::run::{
-    as_measured, conducting_pass, energy_pass, junction_pass, topology_pass, width_rule,
-    widths_pass, RunView, SITE_CAUTION,
+    as_measured, conducting_pass, topology_pass, width_rule, widths_pass, RunView, SITE_CAUTION,
 };
 use ramulus_draw::legend::legend_items;
 use ramulus_draw::marks::network_marks;
@@ -55,6 +55,9 @@ pub struct Simulation {
     /// Test hook: once the run holds this many cells, `step` fails as a failed allocation
     /// does (see `debug_trap_at_cells`).
     trap_at_cells: Option<u64>,
+    /// The passes after growth, a slice at a time (`reshape_step`); the page's switch
+    /// `set_stepwise_passes` and what they have done so far.
+    passes: crate::passes::StepwisePasses,
 }
 
 #[wasm_bindgen]
@@ -76,6 +79,7 @@ impl Simulation {
             view_cache: None,
             trap_at_cells: None,
             full_refill: false,
+            passes: Default::default(),
         })
     }
 
@@ -116,12 +120,14 @@ impl Simulation {
             view_cache: None,
             trap_at_cells: None,
             full_refill: false,
+            passes: Default::default(),
         })
     }
 
     /// Starts the run again from its first cell.
     pub fn reset(&mut self) -> Result<(), JsError> {
         self.view_cache = None;
+        self.passes.forget();
         if let Source::Growing(growth) = &mut self.source {
             **growth =
                 Growth::new(&self.params).map_err(|error| JsError::new(&error.to_string()))?;
@@ -159,6 +165,91 @@ impl Simulation {
         self.full_refill = on;
         self.growing.clear();
         self.geometry = ScreenGeometry::default();
+    }
+
+    /// With `on`, the passes after growth (channel energy sweeps, junction relaxation, loops)
+    /// wait for `reshape_step` once growth stops: the page runs them a slice at a time and
+    /// shows progress in between; the refill shows the network as grown until they end.
+    /// Without it (the default), the first reading of a finished run runs them in one go.
+    pub fn set_stepwise_passes(&mut self, on: bool) {
+        self.passes.stepwise = on;
+    }
+
+    /// Whether the passes after growth are still to run (stepwise passes only).
+    pub fn passes_pending(&self) -> bool {
+        self.passes_waiting()
+    }
+
+    /// Runs a bounded slice of the passes after growth: the first call sets them up; the next
+    /// run whole sweeps (at least one) until `budget_ms` milliseconds have passed or the
+    /// sweeps are over; the call after the last sweep runs the rest of the pipeline (loops,
+    /// widths, readings) and caches the run view, so refills and readings never run the passes
+    /// again. Returns the progress as JSON (`passes::StepwisePasses::progress_json`); the
+    /// result equals the passes run in one go, digest for digest.
+    pub fn reshape_step(&mut self, budget_ms: f64) -> Result<String, JsError> {
+        if self.passes_waiting() {
+            let start = js_sys::Date::now();
+            let sweeping = self
+                .passes
+                .reshaping
+                .as_ref()
+                .is_some_and(|reshaping| !reshaping.done());
+            if !self.passes.started {
+                // Only runs with sweeps need the set-up (a run closing loops alone goes
+                // straight to the last slice).
+                self.passes.started = true;
+                if self.reshapes() {
+                    let reshaping = Reshaping::new(self.network(), &self.params)
+                        .map_err(|error| JsError::new(&error.to_string()))?;
+                    self.passes.reshaping = Some(reshaping);
+                }
+                self.passes.setup_ms = js_sys::Date::now() - start;
+            } else if let Some(reshaping) = self.passes.reshaping.as_mut().filter(|_| sweeping) {
+                loop {
+                    let sweep_start = js_sys::Date::now();
+                    let progress = reshaping
+                        .sweep()
+                        .map_err(|error| JsError::new(&error.to_string()))?;
+                    let ended = js_sys::Date::now();
+                    if progress.sweep > 0 {
+                        self.passes.log.push(crate::passes::SweepFigure {
+                            pass: progress.pass.name(),
+                            sum: progress.now,
+                            moved: progress.moved,
+                            ms: ended - sweep_start,
+                        });
+                    }
+                    if reshaping.done() || ended - start >= budget_ms {
+                        break;
+                    }
+                }
+            } else {
+                self.view()?;
+                self.passes.finish_ms = js_sys::Date::now() - start;
+            }
+        }
+        Ok(self.passes_progress())
+    }
+
+    /// Stops the sweeps after the last whole one: the network stays as that sweep left it (the
+    /// pass's sweep count in the run's link and record becomes the sweeps run; later sweeping
+    /// passes do not run); the next `reshape_step` runs the rest of the pipeline. Returns the
+    /// progress as `reshape_step` does.
+    pub fn reshape_stop(&mut self) -> Result<String, JsError> {
+        if let Some(reshaping) = self.passes.reshaping.as_mut() {
+            if !reshaping.done() {
+                reshaping
+                    .stop()
+                    .map_err(|error| JsError::new(&error.to_string()))?;
+                self.passes.stopped = true;
+            }
+        }
+        Ok(self.passes_progress())
+    }
+
+    /// The progress of the passes after growth as JSON (as `reshape_step` returns it).
+    pub fn reshape_progress(&self) -> String {
+        self.passes_progress()
     }
 
     /// Test hook for the page's recovery from a dead instance: once the run holds `cells`
@@ -462,9 +553,11 @@ impl Simulation {
         // per frame would cost more than the growth).
         // A finished run that relaxes junctions or closes loops is shown as the whole pipeline
         // gives it (the run view: moved junctions, loops after growth), as it is measured.
-        let whole_pipeline = self.finished()
-            && (self.params.run.relax_junctions > 0 || self.params.widths.reconnect.is_some());
-        if whole_pipeline {
+        // With stepwise passes (the page), the network is shown as grown until `reshape_step`
+        // has run them; the refill never runs them itself.
+        let whole_pipeline = self.finished() && self.after_growth();
+        let waiting = whole_pipeline && self.passes_waiting();
+        if whole_pipeline && !waiting {
             self.growing.clear();
             let filled = self.view().is_ok();
             match self.view_cache.as_ref().filter(|_| filled) {
@@ -473,7 +566,10 @@ impl Simulation {
             }
             return self.geometry.len() as u32;
         }
-        if !self.full_refill && self.params.widths.vein_area == 0.0 && !self.relaxes_now() {
+        if !self.full_refill
+            && self.params.widths.vein_area == 0.0
+            && (!self.relaxes_now() || waiting)
+        {
             if self.growing_refill() {
                 return self.geometry.len() as u32;
             }
@@ -485,16 +581,11 @@ impl Simulation {
             }
         }
         self.growing.clear();
-        let mut network = self.network();
+        // A finished run that reshapes was filled from its run view above; here the network is
+        // shown as it stands (growing, or waiting for its stepwise passes).
+        let network = self.network();
         match topology_pass(&network) {
             Ok(mut forest) => {
-                if self.relaxes_now() {
-                    if energy_pass(&mut network, &mut forest, &self.params).is_err() {
-                        self.geometry = ScreenGeometry::default();
-                        return 0;
-                    }
-                    junction_pass(&mut network, forest.as_mut(), &self.params);
-                }
                 let conducting = conducting_pass(&network, &mut forest, &self.params);
                 let table = widths_pass(&network, forest.as_ref(), &conducting, rule);
                 self.geometry.fill(&network, &table);
@@ -653,6 +744,32 @@ impl Simulation {
         self.params.run.relax_junctions > 0 || self.params.run.energy_sweeps > 0
     }
 
+    fn passes_progress(&self) -> String {
+        let loops = self.params.widths.reconnect.is_some();
+        let view = self
+            .view_cache
+            .as_ref()
+            .filter(|_| self.finished() && !self.passes_waiting());
+        self.passes
+            .progress_json(view, loops, self.params.is_site())
+    }
+
+    /// Whether a finished run is shown through the whole pipeline (reshaping passes, or loops
+    /// closed after growth) rather than as grown.
+    fn after_growth(&self) -> bool {
+        self.reshapes() || self.params.widths.reconnect.is_some()
+    }
+
+    /// Whether the page runs the passes after growth itself (`set_stepwise_passes`) and they
+    /// have not ended yet: the run is finished and its view not built.
+    fn passes_waiting(&self) -> bool {
+        self.passes.stepwise
+            && self.finished()
+            && self.after_growth()
+            && matches!(self.source, Source::Growing(_))
+            && self.view_cache.is_none()
+    }
+
     /// Whether the pipeline relaxes junctions and lowers channel energy now: with either on,
     /// once growth has stopped (while it grows, the network is shown and measured as grown).
     fn relaxes_now(&self) -> bool {
@@ -666,6 +783,19 @@ impl Simulation {
             let fixed = matches!(self.source, Source::Fixed(_));
             let view = if fixed || (self.reshapes() && !self.relaxes_now()) {
                 RunView::new(self.network(), &as_measured(&self.params))
+            } else if self.reshapes() {
+                // Through the stepwise passes, so a view asked for while they run ends them (the
+                // sweeps left run now) rather than starting them again.
+                let reshaping = match self.passes.take() {
+                    Some(reshaping) => reshaping,
+                    None => Reshaping::new(self.network(), &self.params)
+                        .map_err(|error| JsError::new(&error.to_string()))?,
+                };
+                let (view, params) = reshaping
+                    .finish()
+                    .map_err(|error| JsError::new(&error.to_string()))?;
+                self.params = params;
+                Ok(view)
             } else {
                 RunView::new(self.network(), &self.params)
             }

@@ -10,7 +10,14 @@
 //  3. Growth while animating: cells per second on the page at the fastest pace, and how long
 //     the growth step took per frame (target: at least 20,000 cells a second, with each
 //     frame's growth inside its 8 ms budget so frames are not dropped on its account).
-// Prints figures; never fails on slowness. Usage: node tests/e2e/bench-page.mjs
+//  4. The passes after growth (run a slice at a time, www/passes.js): the 2-hectare sloping
+//     field (examples/sites/sloping-field.geojson at 0.5 m cells, 80,000 cells) grown and sized
+//     in the page (target under 5 s), then grown with 10 channel energy sweeps: time and energy
+//     drop per sweep; and the looped-leaf preset scaled to 100,000 cells (its lattice and blade
+//     outline scaled so the blade holds the budget, as `ramulus bench` scales it), growth plus the loop pass (target under
+//     5 s), with the loop pass's share.
+// Prints figures; never fails on slowness. Usage: node tests/e2e/bench-page.mjs [--passes
+// [--leaf-only]] (`--passes`: section 4 only; `--leaf-only`: its leaf only).
 import { finishedDigest, launchBrowser, newPage, serveSite } from './support.mjs';
 
 const DRAW_ROUNDS = 15;
@@ -25,7 +32,16 @@ const ANIMATED = 'v=1&width=400&height=400&cell_size=0.15&roots=200,200,0,1&cell
 
 const site = await serveSite();
 const context = await launchBrowser({ width: 1500, height: 1000 });
+const passesOnly = process.argv.includes('--passes');
 try {
+  if (!passesOnly) await drawingAndAnimation();
+  await passesFigures();
+} finally {
+  await context.close();
+  site.close();
+}
+
+async function drawingAndAnimation() {
   const page = await newPage(context);
   await page.addInitScript(() => localStorage.setItem('ramulus.animate', 'no'));
   await page.goto(`${site.url}#${BIG}`);
@@ -94,9 +110,102 @@ try {
   console.log(`  ${Math.round(stats.cells / seconds)} cells/s over ${seconds.toFixed(2)} s, ${stats.frames} frames, ${stats.draws} redraws`);
   console.log(`  growth step per frame: mean ${(stats.stepMs / stats.frames).toFixed(2)} ms, max ${stats.maxStepMs.toFixed(2)} ms, frames whose step exceeded 16.7 ms: ${stats.overBudget}`);
   await animated.close();
-} finally {
-  await context.close();
-  site.close();
+}
+
+/// A page without animation, its first run finished.
+async function quietPage() {
+  const page = await newPage(context);
+  await page.addInitScript(() => localStorage.setItem('ramulus.animate', 'no'));
+  await page.goto(site.url);
+  await finishedDigest(page, 300000);
+  return page;
+}
+
+/// Opens `link` on `page` and waits for the run and its passes after growth to end: `{ms, grownMs,
+/// passesMs, progress}` (milliseconds from opening to the end, to the passes' start, of passes).
+async function timedRun(page, link) {
+  await page.evaluate((fragment) => {
+    window.benchRun = { start: performance.now(), end: 0 };
+    window.addEventListener('ramulus:finished', () => { window.benchRun.end = performance.now(); }, { once: true });
+    location.hash = fragment;
+  }, link);
+  await page.waitForFunction(() => window.benchRun.end > 0, null, { timeout: 600000, polling: 50 });
+  return page.evaluate(() => {
+    const { afterGrowth, state } = window.ramulusPage;
+    const { start, end } = window.benchRun;
+    const grownAt = afterGrowth.startedAt > start ? afterGrowth.startedAt : end;
+    return {
+      ms: end - start,
+      grownMs: grownAt - start,
+      passesMs: end - grownAt,
+      progress: JSON.parse(state.simulation.reshape_progress()),
+    };
+  });
+}
+
+async function passesFigures() {
+  const page = await quietPage();
+  if (!process.argv.includes('--leaf-only')) await siteFigures(page);
+  await leafFigures(page);
+  await page.close();
+}
+
+async function siteFigures(page) {
+  const siteLink = (sweeps) => page.evaluate(async (count) => {
+    const text = await (await fetch('sites/sloping-field.geojson')).text();
+    const { core } = window.ramulusPage.state.session;
+    const made = JSON.parse(core.site_link_json(text, '0.5'));
+    return JSON.parse(core.set_link_field(made.link, 'energy_sweeps', String(count))).link;
+  }, sweeps);
+  const plain = await timedRun(page, await siteLink(0));
+  const sizing = await page.evaluate(() => {
+    document.querySelector('#site-intensity').value = '60';
+    const started = performance.now();
+    const tables = JSON.parse(window.ramulusPage.state.simulation.drainage_json(window.ramulusSite.rulesText(), ''));
+    return { ms: performance.now() - started, rows: tables.rows?.length ?? 0, error: tables.error };
+  });
+  console.log('sloping field, 2 ha at 0.5 m cells (target: grown and sized under 5 s):');
+  console.log(`  grown ${(plain.ms / 1000).toFixed(2)} s, sized ${(sizing.ms / 1000).toFixed(2)} s (${sizing.rows} channels${sizing.error ? `, ${sizing.error}` : ''}), together ${((plain.ms + sizing.ms) / 1000).toFixed(2)} s`);
+  const swept = await timedRun(page, await siteLink(10));
+  const { progress } = swept;
+  console.log(`  with 10 channel energy sweeps: whole run ${(swept.ms / 1000).toFixed(2)} s, growth ${(swept.grownMs / 1000).toFixed(2)} s, passes ${(swept.passesMs / 1000).toFixed(2)} s (set-up ${progress.setup_ms.toFixed(0)} ms, measuring after ${progress.finish_ms.toFixed(0)} ms)`);
+  let previous = progress.energy.before;
+  console.log(`  E before ${previous.toPrecision(5)}`);
+  for (const [index, figure] of progress.log.entries()) {
+    console.log(`  sweep ${index + 1}: ${figure.ms.toFixed(0)} ms, E ${figure.sum.toPrecision(5)} (${((100 * (figure.sum - previous)) / previous).toFixed(2)} %), ${figure.moved} paths re-pointed`);
+    previous = figure.sum;
+  }
+  console.log(`  E after ${progress.energy.after.toPrecision(5)} (${((100 * (progress.energy.after - progress.energy.before)) / progress.energy.before).toFixed(2)} % in all)`);
+}
+
+async function leafFigures(page) {
+  const leafLink = await page.evaluate(() => {
+    const { core } = window.ramulusPage.state.session;
+    const preset = JSON.parse(core.presets_json()).find((p) => p.name === 'looped-leaf');
+    const { params } = preset;
+    // As `scaled_looped_leaf` in crate-cli/src/bench.rs.
+    let twice = 0;
+    params.outline.forEach(([x, y], index) => {
+      const [nx, ny] = params.outline[(index + 1) % params.outline.length];
+      twice += x * ny - nx * y;
+    });
+    const scale = Math.sqrt(100000 / (Math.abs(twice) / 2)) * 1.02;
+    params.width = Math.ceil(params.width * scale);
+    params.height = Math.ceil(params.height * scale);
+    for (const root of params.roots) {
+      root.x = Math.floor((root.x + 0.5) * scale);
+      root.y = Math.floor((root.y + 0.5) * scale);
+    }
+    params.outline = params.outline.map(([x, y]) => [x * scale, y * scale]);
+    params.cells = 100000;
+    const made = JSON.parse(core.link_from_params(JSON.stringify(params)));
+    if (made.error) throw new Error(JSON.stringify(made.error));
+    return made.link;
+  });
+  const leaf = await timedRun(page, leafLink);
+  const cells = await page.evaluate(() => window.ramulusPage.state.simulation.cells());
+  console.log(`looped-leaf preset scaled to 100,000 cells (${cells} grown; target under 5 s):`);
+  console.log(`  whole run ${(leaf.ms / 1000).toFixed(2)} s: growth ${(leaf.grownMs / 1000).toFixed(2)} s, passes after growth (loops, widths, readings) ${(leaf.passesMs / 1000).toFixed(2)} s = ${((100 * leaf.passesMs) / leaf.ms).toFixed(0)} %, of it the last slice ${leaf.progress.finish_ms.toFixed(0)} ms`);
 }
 
 /// Median, 95th percentile and maximum (nearest rank), and how many.

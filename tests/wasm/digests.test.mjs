@@ -93,3 +93,54 @@ test('link text reads the same through URLSearchParams as through the core', () 
   assert.equal(damaged.problems[0].key, 'units');
   assert.equal(damaged.problems[0].value, 'm&m x');
 });
+
+// The page's passes after growth a slice at a time (`reshape_step`, as www/passes.js runs them)
+// give the native command line's digest (which runs them in one go); a stop after whole sweeps
+// gives the native digest of the link asking for the sweeps that ran.
+const stepwiseCases = [
+  { name: 'channel energy', params: { ...base, joining: 'weighted', seed: 21, units: 'm', cell_size: 0.5, energy_sweeps: 4 } },
+  { name: 'energy and junctions', params: { ...base, joining: 'weighted', seed: 22, energy_sweeps: 2, relax_junctions: 3 } },
+  { name: 'junctions and loops', params: { ...base, joining: 'weighted', seed: 23, relax_junctions: 2, vein_area: 0.5, reconnect: 6, loop_levels: 2 } },
+];
+for (const { name, params } of stepwiseCases) {
+  test(`stepwise passes after growth equal the native digest: ${name}`, () => {
+    const expected = nativeRun(params, `stepwise ${name}`);
+    const simulation = new glue.Simulation(expected.link);
+    simulation.set_stepwise_passes(true);
+    while (!simulation.finished()) simulation.step(997);
+    assert.equal(simulation.passes_pending(), true, 'the passes wait for the page');
+    let progress;
+    let slices = 0;
+    do {
+      progress = JSON.parse(simulation.reshape_step(0));
+      slices += 1;
+      assert.ok(slices < 100, 'the passes end');
+    } while (!progress.done);
+    assert.ok(slices >= 2, `set-up, sweeps and the end are separate slices (${slices})`);
+    assert.equal(simulation.passes_pending(), false);
+    assert.equal(simulation.digest(), expected.digest);
+    simulation.free();
+  });
+}
+
+test('a stop after whole channel energy sweeps equals the native run of those sweeps', () => {
+  const params = { ...base, joining: 'weighted', seed: 24, units: 'm', cell_size: 0.5, energy_sweeps: 30 };
+  const link = nativeRun(params, 'stop whole').link;
+  const simulation = new glue.Simulation(link);
+  simulation.set_stepwise_passes(true);
+  while (!simulation.finished()) simulation.step(997);
+  simulation.reshape_step(0); // set-up
+  const first = JSON.parse(simulation.reshape_step(0));
+  assert.equal(first.sweep, 1);
+  const stopped = JSON.parse(simulation.reshape_stop());
+  assert.equal(stopped.stopped, true);
+  let progress;
+  do progress = JSON.parse(simulation.reshape_step(0)); while (!progress.done);
+  // Only changes that lower E are accepted (Rinaldo et al. 1992, Water Resour. Res. 28(9)).
+  assert.ok(progress.energy.after <= progress.energy.before);
+  assert.equal(progress.log.length, 1);
+  const expected = nativeRun({ ...params, energy_sweeps: 1 }, 'stop whole, one sweep');
+  assert.equal(simulation.digest(), expected.digest);
+  assert.match(simulation.link(), /energy_sweeps=1(&|$)/);
+  simulation.free();
+});

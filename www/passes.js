@@ -1,0 +1,124 @@
+// The passes after growth (channel energy sweeps on a site, junction relaxation and loops on a
+// leaf), run a slice at a time once growth stops, so the page keeps painting between slices;
+// a Stop control keeps the network as the last whole sweep left it. The status line and the
+// figures come from Rust (`Simulation::reshape_step`); this module only schedules the slices
+// and lists the per-sweep figures.
+
+// Milliseconds of sweeping per slice: a slice always runs at least one whole sweep, so on a
+// large run a slice is one sweep (common practice for keeping a page responsive, no source).
+const SLICE_BUDGET_MS = 40;
+
+const byId = (id) => document.getElementById(id);
+
+export class AfterGrowth {
+  constructor() {
+    this.simulation = null;
+    this.generation = 0;
+    byId('passes-stop').addEventListener('click', () => this.stop());
+  }
+
+  /// Runs the pending passes of `simulation` a slice at a time; calls `done()` once they have
+  /// ended (not when the run has been replaced meanwhile).
+  run(simulation, site, done) {
+    this.generation += 1;
+    const generation = this.generation;
+    this.simulation = simulation;
+    // For the page benchmark (tests/e2e/bench-page.mjs): when the passes began.
+    this.startedAt = performance.now();
+    this.site = site;
+    byId('passes-row').hidden = false;
+    byId('passes-stop').hidden = false;
+    byId('passes-stop').disabled = false;
+    byId('passes-stop').textContent = site ? 'Stop the sweeps' : 'Stop';
+    this.showFigures(null);
+    const slice = () => {
+      if (generation !== this.generation || this.simulation !== simulation) return;
+      let progress;
+      try {
+        progress = JSON.parse(simulation.reshape_step(SLICE_BUDGET_MS));
+      } catch (error) {
+        this.forget();
+        byId('passes-text').textContent = `The passes after growth failed: ${error?.message ?? error}`;
+        return;
+      }
+      this.show(progress);
+      if (progress.done) {
+        // The line stays with the passes' outcome; nothing is left to stop.
+        byId('passes-stop').hidden = true;
+        this.simulation = null;
+        done();
+        return;
+      }
+      // Let the browser paint the new status before the next slice.
+      requestAnimationFrame(() => setTimeout(slice, 0));
+    };
+    requestAnimationFrame(() => setTimeout(slice, 0));
+  }
+
+  /// Stops after the last whole sweep; the next slice ends the passes.
+  stop() {
+    if (!this.simulation) return;
+    this.show(JSON.parse(this.simulation.reshape_stop()));
+    byId('passes-stop').disabled = true;
+  }
+
+  /// Drops the passes of a run that is being replaced (a new run, a reset).
+  forget() {
+    this.generation += 1;
+    this.simulation = null;
+    byId('passes-row').hidden = true;
+    byId('site-energy').hidden = true;
+  }
+
+  show(progress) {
+    byId('passes-text').textContent = progress.text;
+    this.showFigures(progress);
+  }
+
+  /// The per-sweep figures of a site's channel energy pass, in the site panel.
+  showFigures(progress) {
+    const box = byId('site-energy');
+    const log = (progress?.log ?? []).filter((figure) => figure.pass === 'energy');
+    if (!this.site || !progress || (log.length === 0 && !progress.energy)) {
+      box.hidden = true;
+      return;
+    }
+    box.hidden = false;
+    const energy = progress.energy;
+    byId('site-energy-summary').textContent = energy
+      ? `Channel energy before \u2192 after: ${fmt(energy.before)} \u2192 ${fmt(energy.after)}`
+        + ` (${percent(energy.before, energy.after)})${progress.stopped ? ', stopped by you' : ''}.`
+      : '';
+    const body = byId('site-energy-sweeps').querySelector('tbody');
+    body.replaceChildren();
+    let previous = energy?.before ?? 0;
+    log.forEach((figure, index) => {
+      const row = document.createElement('tr');
+      const cells = [
+        String(index + 1),
+        fmt(figure.sum),
+        percent(previous, figure.sum),
+        figure.moved.toLocaleString('en'),
+        `${Math.round(figure.ms).toLocaleString('en')} ms`,
+      ];
+      for (const text of cells) {
+        const cell = document.createElement('td');
+        cell.textContent = text;
+        row.append(cell);
+      }
+      body.append(row);
+      previous = figure.sum;
+    });
+  }
+}
+
+function fmt(value) {
+  return String(Number(Number(value).toPrecision(6)));
+}
+
+/// The change from `before` to `after` in per cent, signed.
+function percent(before, after) {
+  if (!(before > 0)) return '';
+  const change = (100 * (after - before)) / before;
+  return `${change <= 0 ? '\u2212' : '+'}${Math.abs(change).toFixed(2)} %`;
+}
