@@ -125,8 +125,9 @@ fn leaf_base() -> Params {
 
 /// A leaf blade of one shape class grown from its petiole: the blade's outline is given
 /// (`blade_outline`), growth starts at the petiole at the outline's base, keeps off everything
-/// behind it (`front_only`) and fills the outline; elongation along the petiole's axis draws the
-/// midrib toward the apex.
+/// behind it (`front_only`) and fills the outline from a midrib laid first from the petiole
+/// toward the apex (`midrib`); elongation along the petiole's axis stretches the veins toward
+/// the apex.
 struct LeafShape {
     /// Blade length, base to apex, in cells.
     length: f64,
@@ -142,6 +143,11 @@ struct LeafShape {
 
 /// Cells left free around the blade on every side of the lattice.
 const LEAF_MARGIN: u32 = 6;
+
+/// Share of the way from the petiole to the apex laid as the midrib before growth: pinnate
+/// blades grow their secondaries from a primary vein reaching toward the apex (`midrib`); the
+/// last tenth is left to growth, so the apex's fine veins are grown, not laid.
+const LEAF_MIDRIB: f64 = 0.9;
 
 fn shaped_leaf(shape: LeafShape) -> Params {
     let width = shape.width.ceil() as u32 + 2 * LEAF_MARGIN;
@@ -171,6 +177,7 @@ fn shaped_leaf(shape: LeafShape) -> Params {
             }],
             outline: Some(outline),
             front_only: true,
+            midrib: LEAF_MIDRIB,
             ..leaf_base().domain
         },
         costs: CostWeights {

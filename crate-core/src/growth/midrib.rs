@@ -64,8 +64,7 @@ impl Growth {
         run
     }
 
-    /// Occupies `cell` with a node draining into `target`, as a join does (supply distance,
-    /// transport cost, the segment index of plane growth, the offer to cells within reach and
+    /// Occupies `cell` with a node draining into `target`, as a join does (transport cost, the segment index of plane growth, the offer to cells within reach and
     /// the flow refresh); returns the new node.
     fn lay_cell(&mut self, cell: usize, target: u32) -> u32 {
         let (cx, cy) = self.lattice.position(cell);
@@ -78,8 +77,10 @@ impl Growth {
             (self.down_x[t], self.down_y[t])
         };
         let root = self.root_of[t];
-        let (axis_x, axis_y) = self.axes[root as usize];
-        let dist = self.dist[t] + self.model.supply_length(vx, vy, axis_x, axis_y);
+        // The supply distance along the midrib counts nothing: the blade is supplied from
+        // every point of the primary vein alike, so secondaries start along its whole length
+        // at once instead of from the petiole upward.
+        let dist = self.dist[t];
         let own = self.own_weight(cell);
         let transport =
             self.transport[t] + length * marginal(own, self.cell_weight, self.refined.costs.alpha);

@@ -712,14 +712,14 @@ static PARAMETERS: &[ParamSpec] = &[
     ParamSpec {
         key: "midrib",
         group: "Shape",
-        label: "Midrib laid first",
+        label: "Main branch laid first",
         unit: "fraction",
         bounds: closed(0.0, 1.0),
-        bounds_why: "A share of the run of allowed cells from the root toward the apex: 0 lays none (as version-1 links grew), 1 lays it to the outline.",
+        bounds_why: "A share of the straight run of allowed cells from the root: 0 lays none (as version-1 links grew), 1 lays it to the edge of the allowed region.",
         default: "0",
         link_v1_default: "0",
         fit: None,
-        help: "Before growth, lays a primary vein from each root straight into the blade, against the root's outflow, over this share of the way to the outline, so the rest grows from it and side veins leave it on both sides, as the midvein forms first in a developing leaf (midrib).",
+        help: "Before growth, lays a main branch from each root straight against its outflow over this share of the way to the edge of the allowed region (a leaf's midrib, from the petiole toward the apex; a main channel on a site), with no supply distance along it, so the rest grows from its whole length and side branches leave it on both sides, as the midvein forms first in a developing leaf (laid midrib).",
         access: field!(Real, domain.midrib),
     },
     ParamSpec {
