@@ -133,7 +133,7 @@ fn every_numeric_key_is_accepted_at_its_bounds_and_rejected_beyond() {
         .collect();
     assert_eq!(checked, numeric);
     assert!(checked.contains(&"cells"));
-    assert_eq!(checked.len(), 33);
+    assert_eq!(checked.len(), 34);
 }
 
 /// The cell budget shares the lattice's limit of 25,000,000 cells: the form, validation and

@@ -12,6 +12,7 @@ mod cost;
 mod frontier;
 mod joining;
 mod lattice;
+mod midrib;
 mod planar;
 mod refine;
 mod refresh;
@@ -216,6 +217,9 @@ impl Growth {
             }
             growth.axes.push(unit_outflow(root.outflow));
             growth.add_root(cell, index as u32);
+        }
+        if params.domain.midrib > 0.0 {
+            growth.lay_midribs(params.domain.midrib);
         }
         if growth.cell_count >= params.run.cells {
             growth.stopped = Some(StopReason::Budget);

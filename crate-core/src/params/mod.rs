@@ -83,6 +83,12 @@ pub struct Domain {
     /// are kept out of growth. Default false; false in parameters saved before the key existed.
     #[serde(default)]
     pub front_only: bool,
+    /// Midrib laid before growth: the fraction of the straight run of allowed cells from each
+    /// root against its outflow (from the petiole toward the apex) occupied first as a chain of
+    /// cells, so the blade grows from a primary vein (`growth::midrib`). Default 0 (none);
+    /// 0 ..= 1; 0 in parameters saved before the key existed.
+    #[serde(default)]
+    pub midrib: f64,
 }
 
 /// `refine` of parameters saved before the key existed.
@@ -484,6 +490,7 @@ fn blank() -> Params {
             zones: Vec::new(),
             refine: 0,
             front_only: false,
+            midrib: 0.0,
         },
         costs: CostWeights {
             w_len: 0.0,

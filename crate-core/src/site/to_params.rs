@@ -195,6 +195,7 @@ impl Site {
                 zones,
                 refine: 1,
                 front_only: false,
+                midrib: 0.0,
             },
             costs: CostWeights::drainage(),
             run: RunControl {
