@@ -38,6 +38,8 @@ fn grown() -> (RunView, Params) {
     }];
     params.domain.outline = None;
     params.domain.front_only = false;
+    // No outline: a midrib would run to the lattice edge; the open-growth leaf had none.
+    params.domain.midrib = 0.0;
     params.costs.elongation = 3.0;
     params.costs.rear_cost = 3.0;
     params.costs.branch_angle = Some(50.0);
