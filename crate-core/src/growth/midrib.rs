@@ -64,41 +64,11 @@ impl Growth {
         run
     }
 
-    /// Occupies `cell` with a node draining into `target`, as a join does (transport cost, the segment index of plane growth, the offer to cells within reach and
-    /// the flow refresh); returns the new node.
+    /// Occupies `cell` with a node draining into `target`, as a join does, except that the
+    /// supply distance along the midrib counts nothing: the blade is supplied from every point
+    /// of the primary vein alike, so secondaries start along its whole length at once instead
+    /// of from the petiole upward. Returns the new node.
     fn lay_cell(&mut self, cell: usize, target: u32) -> u32 {
-        let (cx, cy) = self.lattice.position(cell);
-        let t = target as usize;
-        let (vx, vy) = (self.x[t] - cx, self.y[t] - cy);
-        let length = (vx * vx + vy * vy).sqrt();
-        let (down_x, down_y) = if length > 0.0 {
-            (vx / length, vy / length)
-        } else {
-            (self.down_x[t], self.down_y[t])
-        };
-        let root = self.root_of[t];
-        // The supply distance along the midrib counts nothing: the blade is supplied from
-        // every point of the primary vein alike, so secondaries start along its whole length
-        // at once instead of from the petiole upward.
-        let dist = self.dist[t];
-        let own = self.own_weight(cell);
-        let transport =
-            self.transport[t] + length * marginal(own, self.cell_weight, self.refined.costs.alpha);
-        let node = self.push_node(
-            cx,
-            cy,
-            target,
-            down_x,
-            down_y,
-            dist,
-            transport,
-            root,
-            cell as u32,
-        );
-        self.flow[node as usize] = own;
-        self.note_segment(node);
-        self.occupy(cell, node);
-        self.maybe_refresh();
-        node
+        self.attach_cell(cell, target, Supply::Free)
     }
 }

@@ -434,12 +434,19 @@ impl Growth {
     /// Adds the picked cell's node, splitting a segment when it attaches to one.
     fn join(&mut self, slot_index: u32, attachment: Attachment) {
         let cell = self.frontier.slots[slot_index as usize].cell as usize;
-        let (cx, cy) = self.lattice.position(cell);
         let target = if attachment.segment_parent == NONE {
             attachment.target
         } else {
             self.split(attachment)
         };
+        self.attach_cell(cell, target, Supply::AlongAxis);
+    }
+
+    /// Occupies `cell` with a node draining into `target`: its segment's direction, supply
+    /// distance and transport cost, the segment index of plane growth, the offer to cells
+    /// within reach and the flow refresh; returns the new node.
+    fn attach_cell(&mut self, cell: usize, target: u32, supply: Supply) -> u32 {
+        let (cx, cy) = self.lattice.position(cell);
         let t = target as usize;
         let (vx, vy) = (self.x[t] - cx, self.y[t] - cy);
         let length = (vx * vx + vy * vy).sqrt();
@@ -449,8 +456,13 @@ impl Growth {
             (self.down_x[t], self.down_y[t])
         };
         let root = self.root_of[t];
-        let (axis_x, axis_y) = self.axes[root as usize];
-        let dist = self.dist[t] + self.model.supply_length(vx, vy, axis_x, axis_y);
+        let dist = match supply {
+            Supply::AlongAxis => {
+                let (axis_x, axis_y) = self.axes[root as usize];
+                self.dist[t] + self.model.supply_length(vx, vy, axis_x, axis_y)
+            }
+            Supply::Free => self.dist[t],
+        };
         let own = self.own_weight(cell);
         let transport =
             self.transport[t] + length * marginal(own, self.cell_weight, self.refined.costs.alpha);
@@ -469,6 +481,7 @@ impl Growth {
         self.note_segment(node);
         self.occupy(cell, node);
         self.maybe_refresh();
+        node
     }
 
     /// Splits the segment `target -> parent` at `along`, returning the new junction node.
@@ -519,4 +532,13 @@ fn unit_outflow([dx, dy]: [f64; 2]) -> (f64, f64) {
     let (dx, dy) = (dx / larger, dy / larger);
     let norm = (dx * dx + dy * dy).sqrt();
     (dx / norm, dy / norm)
+}
+
+/// How a new node's supply distance (the path from the root the supply term prices) grows.
+#[derive(Clone, Copy)]
+enum Supply {
+    /// By the segment's length along the root's axis, as every joined cell's.
+    AlongAxis,
+    /// Not at all: a laid midrib cell supplies the blade as the petiole does.
+    Free,
 }
