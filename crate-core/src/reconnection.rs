@@ -22,6 +22,16 @@
 //! (hierarchical space-dividing patterns: Bohn, Douady & Couder 2005, PRL 94). Walls follow the
 //! grown veins and only the short new segments are added, so the network stays a plane graph.
 //!
+//! With `nest` (`nest_loops`) a level closes its loops in rounds: at the start of a round the
+//! faces of the looped network so far are traced; a tip hanging in the outside joins at once
+//! as above, but a tip hanging in a closed face only offers its join, and each closed face
+//! takes one offer per round, the one whose way round (up to half the face's boundary) is
+//! longest, so that the new wall divides the face most evenly; the other tips of that face
+//! try again in the next round, inside one of the two halves. Rounds repeat until no face
+//! takes an offer. Each face is thus halved, and its halves halved again by smaller veins,
+//! as each new vein divides an areole in the sequential reticulation of developing leaves
+//! (Couder et al. 2002, Eur. Phys. J. B 28; Bohn, Douady & Couder 2005).
+//!
 //! Flows: tree segments keep the tree's flows; a loop wall is drawn at least as wide as the
 //! flow of the tip that closed it (`Reconnection::wall_flow`), and each new segment carries that
 //! tip's flow. No Kirchhoff solve: the walls' widths record the scale of the loop they close.
@@ -29,7 +39,7 @@
 use std::cmp::Reverse;
 use std::collections::BinaryHeap;
 
-use crate::metrics::areoles::segments_conflict;
+use crate::metrics::areoles::{segments_conflict, trace_faces_with_sides};
 use crate::network::{Network, Segment, Topology, NO_PARENT};
 
 /// How loops close.
@@ -45,6 +55,9 @@ pub struct LoopRule {
     pub runoff: f64,
     /// Lattice cell size, in units.
     pub cell_size: f64,
+    /// Loops split faces one at a time (`nest_loops`): within a level, each bounded face takes
+    /// at most one new wall per round, and rounds repeat while walls are added.
+    pub nest: bool,
 }
 
 /// The new segments and the loop walls, in the whole network's node indices.
@@ -60,6 +73,12 @@ pub struct Reconnection {
     /// not a wall).
     pub wall_flow: Vec<f64>,
 }
+
+/// With `nest`, a wall dividing a closed face is drawn with at most this share of the flow of
+/// the face's thinnest wall, so a finer wall is always thinner than the walls of the face it
+/// divides (veins formed later in a leaf are the finer ones). Any share below 1 orders the
+/// walls; 0.9 keeps each wall's width near its own flow's (common practice, no source).
+const FINER_WALL_SHARE: f64 = 0.9;
 
 /// Most candidate joins tried per tip (shortest first).
 const TRIES_PER_TIP: usize = 8;
@@ -130,6 +149,14 @@ pub fn close_loops(
         .filter(|&n| conducts_below(n))
         .map(|n| (n as u32, topology.parent[n]))
         .collect();
+    let tree_count = segments.len();
+    // Per node: the index of its downstream segment in `segments` (for `nest`).
+    let mut tree_segment_of = vec![u32::MAX; if rule.nest { count } else { 0 }];
+    if rule.nest {
+        for (index, &(from, _)) in segments.iter().enumerate() {
+            tree_segment_of[from as usize] = index as u32;
+        }
+    }
     // Each segment sits in every cell its bounding box covers; a segment that meets the new
     // one shares a cell with the new one's bounding box.
     let mut segment_grid = Grid::of_points(std::iter::empty(), gap);
@@ -142,11 +169,82 @@ pub fn close_loops(
     let mut candidates: Vec<Candidate> = Vec::new();
     let mut stack: Vec<(u32, f64)> = Vec::new();
 
+    // Makes tip `t`'s join: the walls t .. u and v .. anchor, and the new segment u v.
+    macro_rules! join_tip {
+        ($t:expr, $join:expr, $level:expr, $flow:expr) => {{
+            let (t, join, level, flow): (usize, Candidate, u32, f64) = ($t, $join, $level, $flow);
+            let (u, v, anchor) = (join.u as usize, join.v as usize, join.anchor as usize);
+            for (start, end) in [(u, t), (v, anchor)] {
+                let mut node = start;
+                while node != end {
+                    level_of[node] = level_of[node].min(level);
+                    in_loop[node] = true;
+                    out.wall_flow[node] = out.wall_flow[node].max(flow);
+                    node = topology.parent[node] as usize;
+                }
+            }
+            in_loop[t] = true;
+            linked[u].push(v as u32);
+            linked[v].push(u as u32);
+            segment_grid.insert_box(segments.len() as u32, point(u), point(v));
+            segments.push((u as u32, v as u32));
+            out.links.push(Segment {
+                from: u as u32,
+                to: v as u32,
+            });
+            out.link_flow.push(flow);
+            out.link_level.push(level);
+        }};
+    }
+
     for level in 0..=levels {
         let reach = 2.0 * threshold(level).sqrt();
         // Tips of this level's network: active, not a root, no active vein child, not on a
         // loop wall.
         let active = |level_of: &[u32], node: usize| level_of[node] <= level;
+        // Whether a new segment u v would cross, touch or run over a vein or a new segment.
+        macro_rules! crosses {
+            ($u:expr, $v:expr) => {{
+                let (u, v): (usize, usize) = ($u, $v);
+                let new = (point(u), point(v));
+                segment_grid.in_box(new.0, new.1).iter().any(|&index| {
+                    let (a, b) = segments[index as usize];
+                    segments_conflict(
+                        new,
+                        (point(a as usize), point(b as usize)),
+                        (u as u32, v as u32),
+                        (a, b),
+                    )
+                })
+            }};
+        }
+        // The way round from `from` to `to` through this level's network and the new
+        // segments, when shorter than `bound`.
+        macro_rules! way_round {
+            ($from:expr, $to:expr, $bound:expr) => {
+                search.shortest(
+                    $from,
+                    $to,
+                    $bound,
+                    |node, visit| {
+                        let parent = topology.parent[node];
+                        if parent != NO_PARENT && conducts_below(node) {
+                            visit(parent as usize);
+                        }
+                        for &child in topology.children.of(node) {
+                            let c = child as usize;
+                            if conducts_below(c) && active(&level_of, c) {
+                                visit(c);
+                            }
+                        }
+                        for &other in &linked[node] {
+                            visit(other as usize);
+                        }
+                    },
+                    distance,
+                )
+            };
+        }
         let mut has_child = vec![false; count];
         for node in 0..count {
             let parent = topology.parent[node];
@@ -170,142 +268,229 @@ pub fn close_loops(
                 .total_cmp(&topology.flow[a as usize])
                 .then(a.cmp(&b))
         });
-        for &tip in &tips {
-            let t = tip as usize;
-            if in_loop[t] || !linked[t].is_empty() {
-                continue;
-            }
-            // Candidates: veins u upstream of t within reach, and vein nodes v across a gap.
-            candidates.clear();
-            stack.clear();
-            stack.push((tip, 0.0));
-            while let Some((u, along)) = stack.pop() {
-                let u_index = u as usize;
-                for v in nodes_grid.near(point(u_index)) {
-                    let v_index = v as usize;
-                    if v == u
-                        || topology.parent[u_index] == v
-                        || topology.parent[v_index] == u
-                        || linked[u_index].contains(&v)
-                    {
-                        continue;
-                    }
-                    let across = distance(u_index, v_index);
-                    if across > gap {
-                        continue;
-                    }
-                    // Down from v to this level's network; reaching t means v lies upstream
-                    // of t (the same branch).
-                    let (mut anchor, mut down) = (v_index, 0.0);
-                    let mut ok = true;
-                    while !active(&level_of, anchor) {
-                        let parent = topology.parent[anchor];
-                        if parent == NO_PARENT || down > reach {
-                            ok = false;
-                            break;
-                        }
-                        down += distance(anchor, parent as usize);
-                        anchor = parent as usize;
-                    }
-                    if !ok || anchor == t {
-                        continue;
-                    }
-                    candidates.push(Candidate {
-                        wall: along + across + down,
-                        u,
-                        v,
-                        anchor: anchor as u32,
-                    });
-                }
-                for &child in topology.children.of(u_index) {
-                    let c = child as usize;
-                    if !conducts_below(c) {
-                        continue;
-                    }
-                    let further = along + distance(u_index, c);
-                    if further <= reach {
-                        stack.push((child, further));
-                    }
-                }
-            }
-            candidates.sort_by(|a, b| {
-                a.wall
-                    .total_cmp(&b.wall)
-                    .then(a.u.cmp(&b.u))
-                    .then(a.v.cmp(&b.v))
+        let mut pending = tips;
+        loop {
+            // With `nest`, the faces of the looped network so far: each tip hangs in one
+            // (the face on both sides of its downstream segment).
+            let faces = rule.nest.then(|| {
+                // The flow each segment is drawn with: tree segments their tree flow raised to
+                // their wall flow, new segments their own.
+                let flows: Vec<f64> = segments
+                    .iter()
+                    .enumerate()
+                    .map(|(index, &(from, _))| match index.checked_sub(tree_count) {
+                        None => topology.flow[from as usize].max(out.wall_flow[from as usize]),
+                        Some(link) => out.link_flow[link],
+                    })
+                    .collect();
+                FacesOfTips::trace(network, &segments, &tree_segment_of, &flows)
             });
-            let mut chosen = None;
-            for candidate in candidates.iter().take(TRIES_PER_TIP) {
-                let (u, v) = (candidate.u as usize, candidate.v as usize);
-                let new = (point(u), point(v));
-                let crosses = segment_grid.in_box(new.0, new.1).iter().any(|&index| {
-                    let (a, b) = segments[index as usize];
-                    segments_conflict(
-                        new,
-                        (point(a as usize), point(b as usize)),
-                        (u as u32, v as u32),
-                        (a, b),
-                    )
-                });
-                if crosses {
+            let mut offers: Vec<Offer> = Vec::new();
+            for &tip in &pending {
+                let t = tip as usize;
+                if in_loop[t] || !linked[t].is_empty() {
                     continue;
                 }
-                let bound = rule.ratio * candidate.wall;
-                let way_round = search.shortest(
-                    t,
-                    candidate.anchor as usize,
-                    bound,
-                    |node, visit| {
-                        let parent = topology.parent[node];
-                        if parent != NO_PARENT && conducts_below(node) {
-                            visit(parent as usize);
+                let face = faces.as_ref().and_then(|faces| faces.bounded_face_of(t));
+                // Candidates: veins u upstream of t within reach, and vein nodes v across a gap.
+                candidates.clear();
+                stack.clear();
+                stack.push((tip, 0.0));
+                while let Some((u, along)) = stack.pop() {
+                    let u_index = u as usize;
+                    for v in nodes_grid.near(point(u_index)) {
+                        let v_index = v as usize;
+                        if v == u
+                            || topology.parent[u_index] == v
+                            || topology.parent[v_index] == u
+                            || linked[u_index].contains(&v)
+                        {
+                            continue;
                         }
-                        for &child in topology.children.of(node) {
-                            let c = child as usize;
-                            if conducts_below(c) && active(&level_of, c) {
-                                visit(c);
+                        let across = distance(u_index, v_index);
+                        if across > gap {
+                            continue;
+                        }
+                        // Down from v to this level's network; reaching t means v lies upstream
+                        // of t (the same branch).
+                        let (mut anchor, mut down) = (v_index, 0.0);
+                        let mut ok = true;
+                        while !active(&level_of, anchor) {
+                            let parent = topology.parent[anchor];
+                            if parent == NO_PARENT || down > reach {
+                                ok = false;
+                                break;
                             }
+                            down += distance(anchor, parent as usize);
+                            anchor = parent as usize;
                         }
-                        for &other in &linked[node] {
-                            visit(other as usize);
+                        if !ok || anchor == t {
+                            continue;
                         }
-                    },
-                    distance,
-                );
-                if way_round.is_none() {
-                    chosen = Some(*candidate);
-                    break;
+                        candidates.push(Candidate {
+                            wall: along + across + down,
+                            u,
+                            v,
+                            anchor: anchor as u32,
+                        });
+                    }
+                    for &child in topology.children.of(u_index) {
+                        let c = child as usize;
+                        if !conducts_below(c) {
+                            continue;
+                        }
+                        let further = along + distance(u_index, c);
+                        if further <= reach {
+                            stack.push((child, further));
+                        }
+                    }
+                }
+                candidates.sort_by(|a, b| {
+                    a.wall
+                        .total_cmp(&b.wall)
+                        .then(a.u.cmp(&b.u))
+                        .then(a.v.cmp(&b.v))
+                });
+                let mut chosen = None;
+                for candidate in candidates.iter().take(TRIES_PER_TIP) {
+                    let (u, v) = (candidate.u as usize, candidate.v as usize);
+                    if crosses!(u, v) {
+                        continue;
+                    }
+                    let bound = rule.ratio * candidate.wall;
+                    if way_round!(t, candidate.anchor as usize, bound).is_none() {
+                        chosen = Some(*candidate);
+                        break;
+                    }
+                }
+                let Some(join) = chosen else {
+                    continue;
+                };
+                if let (Some(face), Some(faces)) = (face, faces.as_ref()) {
+                    // Inside a closed face: the way round (up to half the face's boundary)
+                    // says how evenly this wall would halve it; the face takes its best offer
+                    // after every tip of the round has made one.
+                    let half = faces.perimeter[face] / 2.0;
+                    let way_round = way_round!(t, join.anchor as usize, half).unwrap_or(half);
+                    offers.push(Offer {
+                        face,
+                        tip,
+                        join,
+                        score: way_round,
+                        flow: topology.flow[t].min(FINER_WALL_SHARE * faces.thinnest[face]),
+                    });
+                    continue;
+                }
+                join_tip!(t, join, level, topology.flow[t]);
+            }
+            if offers.is_empty() {
+                break;
+            }
+            // Each closed face takes its offer of the longest way round (ties: the larger
+            // vein, as ordered); the other tips of those faces try again next round.
+            let mut best: std::collections::BTreeMap<usize, usize> = Default::default();
+            for (index, offer) in offers.iter().enumerate() {
+                let entry = best.entry(offer.face).or_insert(index);
+                if offer.score > offers[*entry].score {
+                    *entry = index;
                 }
             }
-            let Some(join) = chosen else {
-                continue;
-            };
-            let (u, v, anchor) = (join.u as usize, join.v as usize, join.anchor as usize);
-            let flow = topology.flow[t];
-            // The walls: t .. u and v .. anchor.
-            for (start, end) in [(u, t), (v, anchor)] {
-                let mut node = start;
-                while node != end {
-                    level_of[node] = level_of[node].min(level);
-                    in_loop[node] = true;
-                    out.wall_flow[node] = out.wall_flow[node].max(flow);
-                    node = topology.parent[node] as usize;
+            let mut taken = vec![false; offers.len()];
+            for &index in best.values() {
+                taken[index] = true;
+            }
+            let mut deferred = Vec::new();
+            for (index, offer) in offers.iter().enumerate() {
+                let join = offer.join;
+                // Joins made since the offer (in other faces) may block it: checked again.
+                if taken[index]
+                    && !crosses!(join.u as usize, join.v as usize)
+                    && way_round!(
+                        offer.tip as usize,
+                        join.anchor as usize,
+                        rule.ratio * join.wall
+                    )
+                    .is_none()
+                {
+                    join_tip!(offer.tip as usize, join, level, offer.flow);
+                } else {
+                    deferred.push(offer.tip);
                 }
             }
-            in_loop[t] = true;
-            linked[u].push(v as u32);
-            linked[v].push(u as u32);
-            segment_grid.insert_box(segments.len() as u32, point(u), point(v));
-            segments.push((u as u32, v as u32));
-            out.links.push(Segment {
-                from: u as u32,
-                to: v as u32,
-            });
-            out.link_flow.push(flow);
-            out.link_level.push(level);
+            if deferred.is_empty() {
+                break;
+            }
+            pending = deferred;
         }
     }
     out
+}
+
+/// The faces of the looped vein network traced for one round of `nest` (every conducting
+/// segment and every new segment so far): per tip, the bounded face it hangs in.
+struct FacesOfTips {
+    /// Per face: whether it is bounded (positive traced area).
+    bounded: Vec<bool>,
+    /// Per face: the least flow a wall of it is drawn with (tree flow, raised by its wall
+    /// flow; a new segment's own flow).
+    thinnest: Vec<f64>,
+    /// Per face: the length of its boundary walk (an edge with the face on both sides counts
+    /// twice).
+    perimeter: Vec<f64>,
+    /// Per edge of the traced drawing: the face on the walk along `a -> b`.
+    left: Vec<u32>,
+    /// Per node: its downstream segment's index in the traced edges (`u32::MAX` for none).
+    edge_of: Vec<u32>,
+}
+
+impl FacesOfTips {
+    fn trace(
+        network: &Network,
+        segments: &[(u32, u32)],
+        tree_segment_of: &[u32],
+        flows: &[f64],
+    ) -> FacesOfTips {
+        let points: Vec<(f64, f64)> = network.nodes.iter().map(|node| (node.x, node.y)).collect();
+        let (faces, sides) = trace_faces_with_sides(&points, segments);
+        let mut perimeter = vec![0.0; faces.len()];
+        let mut thinnest = vec![f64::INFINITY; faces.len()];
+        for (index, (&(a, b), &(left, right))) in segments.iter().zip(&sides).enumerate() {
+            let (p, q) = (points[a as usize], points[b as usize]);
+            let length = crate::fast_libm::hypot(p.0 - q.0, p.1 - q.1);
+            let flow = flows.get(index).copied().unwrap_or(0.0);
+            if left != right {
+                for face in [left as usize, right as usize] {
+                    if let Some(least) = thinnest.get_mut(face) {
+                        *least = least.min(flow);
+                    }
+                }
+            }
+            for face in [left, right] {
+                if let Some(total) = perimeter.get_mut(face as usize) {
+                    *total += length;
+                }
+            }
+        }
+        FacesOfTips {
+            perimeter,
+            thinnest,
+            bounded: faces.iter().map(|face| face.signed_area > 0.0).collect(),
+            left: sides.iter().map(|side| side.0).collect(),
+            edge_of: tree_segment_of.to_vec(),
+        }
+    }
+
+    /// The bounded face node `t`'s downstream segment lies in; `None` for the outside, where
+    /// any number of walls may close in a round.
+    fn bounded_face_of(&self, t: usize) -> Option<usize> {
+        let edge = *self.edge_of.get(t)?;
+        let face = *self.left.get(edge as usize)? as usize;
+        self.bounded
+            .get(face)
+            .copied()
+            .unwrap_or(false)
+            .then_some(face)
+    }
 }
 
 /// One possible join of a tip.
@@ -316,6 +501,20 @@ struct Candidate {
     u: u32,
     v: u32,
     anchor: u32,
+}
+
+/// A tip's join offered to the closed face it hangs in (`nest`).
+#[derive(Clone, Copy, Debug)]
+struct Offer {
+    /// The face (index into the traced faces).
+    face: usize,
+    tip: u32,
+    join: Candidate,
+    /// The way round from the tip to the join's anchor, up to half the face's boundary.
+    score: f64,
+    /// The flow the new wall is drawn with: the tip's, at most `FINER_WALL_SHARE` of the
+    /// thinnest wall of the face.
+    flow: f64,
 }
 
 /// A uniform grid of items keyed by one point each; `near` gives the items of the 3 x 3 cells
@@ -526,6 +725,7 @@ mod tests {
             finest_area: 1.0,
             runoff: 1.0,
             cell_size: 2.0 / 1.5,
+            nest: false,
         }
     }
 

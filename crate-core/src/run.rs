@@ -306,6 +306,7 @@ pub fn loop_pass(
         finest_area: params.widths.vein_area.max(cell_size * cell_size),
         runoff: params.domain.runoff,
         cell_size,
+        nest: params.widths.nest_loops,
     };
     Some(close_loops(
         network,

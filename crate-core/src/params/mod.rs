@@ -200,6 +200,13 @@ pub struct Widths {
     /// `k` being the finest one times 4^(`loop_levels` - k). Default 3; 0 ..= 8.
     #[serde(default = "default_loop_levels")]
     pub loop_levels: u32,
+    /// Loops split faces one at a time (`reconnection.rs`): within each level, each bounded
+    /// face of the looped network takes at most one new loop wall per round, from its largest
+    /// free-ending vein, and rounds repeat until no wall is added, so each wall divides a face
+    /// that a thicker wall closed. Default false (every tip of a level joins in one pass, as
+    /// before the key existed).
+    #[serde(default)]
+    pub nest_loops: bool,
     /// Width exponent of the major veins (`segments::WidthRule`): the exponent at each junction
     /// moves from `gamma` at Strahler order 1 to this at order `major_order` and above. Default
     /// none (one exponent `gamma` for every order, as before the key existed); 1 ..= 10.
@@ -523,6 +530,7 @@ fn blank() -> Params {
             vein_area: 0.0,
             reconnect: None,
             loop_levels: 0,
+            nest_loops: false,
             gamma_major: None,
             major_order: 0,
         },

@@ -1,0 +1,111 @@
+//! Loops that split faces one at a time (`nest_loops`, `reconnection.rs`) against loops closed
+//! in one pass per level, on the same grown leaves.
+//!
+//! - Euler's formula for plane graphs (Euler 1758; Bondy & Murty 2008, Graph Theory, theorem
+//!   10.2 generalised to C components: bounded faces = E - V + C): the areoles the core traces
+//!   equal edges - vertices + components, the components counted by petgraph's union-find.
+//! - No two segments cross or overlap, decided by Shewchuk's exact orientation predicate
+//!   (`robust::orient2d`; Shewchuk 1997, Discrete Comput. Geom. 18).
+//! - Nesting: the hierarchical loop decomposition (Katifori & Magnasco 2012, PLoS ONE 7,
+//!   e37994) of a network whose walls each divide a face closed by a thicker wall is less of a
+//!   ladder than that of walls closed all at once: its nesting number is higher on every seed.
+//!   The comparison is against the old rule on the same seeds, so it fails when the new rule
+//!   nests no better.
+
+use petgraph::unionfind::UnionFind;
+use ramulus_core::growth::Growth;
+use ramulus_core::network::{Network, NetworkKind};
+use ramulus_core::params::Params;
+use ramulus_core::presets::preset;
+use ramulus_core::run::RunView;
+use ramulus_tests::plane_check::conflicting_pairs;
+
+/// The looped-leaf preset with `nest_loops` as given, grown to `cells` cells.
+fn looped_leaf(seed: u64, cells: Option<u64>, nest: bool) -> Params {
+    let mut params = preset("looped-leaf").expect("the looped-leaf preset");
+    params.run.seed = seed;
+    if let Some(cells) = cells {
+        params.run.cells = cells;
+    }
+    params.widths.nest_loops = nest;
+    params
+}
+
+fn grow(params: &Params) -> RunView {
+    let mut growth = Growth::new(params).expect("valid parameters");
+    growth.run();
+    RunView::new(growth.network(), params).expect("a valid network")
+}
+
+/// Edges - vertices + components, the components by petgraph's union-find.
+fn euler_faces(network: &Network) -> u64 {
+    let mut sets = UnionFind::new(network.nodes.len());
+    for segment in &network.segments {
+        sets.union(segment.from as usize, segment.to as usize);
+    }
+    let mut labels = sets.into_labeling();
+    labels.sort_unstable();
+    labels.dedup();
+    network.segments.len() as u64 + labels.len() as u64 - network.nodes.len() as u64
+}
+
+/// Walls that split faces one at a time: a plane graph obeying Euler's formula, and loops that
+/// nest more than those closed in one pass per level, seed by seed.
+#[test]
+fn loops_split_one_at_a_time_are_plane_and_nest_more() {
+    for seed in [1, 2, 3] {
+        let before = grow(&looped_leaf(seed, Some(20_000), false));
+        let after = grow(&looped_leaf(seed, Some(20_000), true));
+        let loops = after.loops.as_ref().expect("loops closed");
+        let measured = &loops.network;
+        assert_eq!(after.metrics.kind, NetworkKind::Looped, "seed {seed}");
+        assert_eq!(conflicting_pairs(measured), 0, "seed {seed}: crossings");
+        let faces = euler_faces(measured);
+        assert!(faces > 50, "seed {seed}: {faces} loops");
+        assert_eq!(after.metrics.areoles, Some(faces), "seed {seed}: Euler");
+        // The same tree grew under both: only the loop pass differs.
+        let grown = after.network.segments.len() - loops.reconnection.links.len();
+        let grown_before = before.network.segments.len()
+            - before
+                .loops
+                .as_ref()
+                .map_or(0, |l| l.reconnection.links.len());
+        assert_eq!(
+            after.network.segments[..grown],
+            before.network.segments[..grown_before],
+            "seed {seed}: the grown tree"
+        );
+        let old = before.metrics.nesting_number.expect("nesting before");
+        let new = after.metrics.nesting_number.expect("nesting after");
+        println!("seed {seed}: nesting {old:.3} -> {new:.3}");
+        assert!(new > old, "seed {seed}: nesting {new} not above {old}");
+    }
+}
+
+/// Figures for README (not a check): the looped-leaf preset, seeds 1-5, with and without
+/// `nest_loops`. `cargo test --release -p ramulus-tests --test nest_loops -- --ignored
+/// --nocapture`.
+#[test]
+#[ignore]
+fn print_nesting_figures() {
+    for nest in [false, true] {
+        for seed in 1..=5 {
+            let view = grow(&looped_leaf(seed, None, nest));
+            let m = &view.metrics;
+            let links = view
+                .loops
+                .as_ref()
+                .map_or(0, |loops| loops.reconnection.links.len());
+            println!(
+                "nest {nest} seed {seed}: nesting {:.3}, areoles {:?}, density {:.2} /mm^2, \
+                 mean {:.4} mm^2, decades {:.2}, vein density {:.2} mm/mm^2, new segments {links}",
+                m.nesting_number.unwrap_or(f64::NAN),
+                m.areoles,
+                m.areole_density.unwrap_or(f64::NAN),
+                m.mean_areole_area.unwrap_or(f64::NAN),
+                m.areole_area_decades.unwrap_or(f64::NAN),
+                m.vein_density.unwrap_or(f64::NAN),
+            );
+        }
+    }
+}
