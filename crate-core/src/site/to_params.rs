@@ -203,6 +203,8 @@ impl Site {
                 radius: 4.0,
                 joining: Joining::Weighted,
                 temperature: 0.5,
+                // Channels go round buildings and areas kept clear, never across them.
+                keep_clear: true,
                 ..RunControl::default()
             },
             widths: Widths {
