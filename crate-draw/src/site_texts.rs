@@ -356,7 +356,9 @@ pub fn site_plan_input(
     let mut notes = vec![storm_words(design), rules_words(design)];
     notes.push(flags_summary(site));
     let unreached = unreached_plan(&sized.unreached, &params.domain.units, units);
-    if let Some(summary) = unreached_summary(&sized.unreached, &params.domain.units, units, None) {
+    if let Some(summary) =
+        unreached_summary(&sized.unreached, &params.domain.units, units, site_file)
+    {
         notes.push(summary);
     }
     PlanInput {

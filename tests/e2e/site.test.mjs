@@ -233,6 +233,7 @@ test('a corner cut off by a wall is drawn, labelled and exported; the ground flo
   assert.match(svg, /class="unreached"/);
   assert.match(svg, /no outlet reaches: 39 m²/);
   await screenshot(page, 'site-unreached');
+  await page.locator('#site-panel').screenshot({ path: path.join(root, 'artifacts', 'e2e', 'site-unreached-panel.png') });
 
   // Natural flow on the bare ground, faint, on request.
   await page.check('#site-ground-flow');

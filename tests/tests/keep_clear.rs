@@ -113,7 +113,8 @@ fn sites_from_files_and_the_drainage_presets_keep_clear_and_old_links_do_not() {
     for name in ["drainage-site", "garden-site"] {
         assert!(preset(name).expect("a preset").run.keep_clear, "{name}");
     }
-    let file = br#"{"type": "FeatureCollection", "properties": {"runoff_coefficient": 0.5}, "features": [
+    let file =
+        br#"{"type": "FeatureCollection", "properties": {"runoff_coefficient": 0.5}, "features": [
         {"type": "Feature", "properties": {"role": "outline"}, "geometry": {"type": "Polygon",
          "coordinates": [[[0, 0], [20, 0], [20, 10], [0, 10], [0, 0]]]}},
         {"type": "Feature", "properties": {"role": "outlet"}, "geometry": {"type": "Point",
