@@ -58,6 +58,20 @@ export class NetworkView {
     this.painting = null;
     this.msPerLine = 1e-4; // thin-line raster, measured
     this.finishMs = 0; // putting the picture on the canvas and stroking the wide lines, measured
+    // Drawings laid over the network by other panels (the site panel's parts no outlet
+    // reaches and natural flow): name -> function(ctx, {scale, offsetX, offsetY, ratio}).
+    this.overlays = new Map();
+  }
+
+  /// Draws every overlay, in the order they were set, over the network.
+  drawOverlays(ctx) {
+    if (this.overlays.size === 0) return;
+    const place = { scale: this.scale, offsetX: this.offsetX, offsetY: this.offsetY, ratio: this.ratio() };
+    for (const overlay of this.overlays.values()) {
+      ctx.save();
+      overlay(ctx, place);
+      ctx.restore();
+    }
   }
 
   ratio() {
@@ -137,6 +151,7 @@ export class NetworkView {
       ctx.fillStyle = '#fffdf8';
       ctx.fillRect(0, 0, this.canvas.width, this.canvas.height);
     }
+    this.drawOverlays(ctx);
     this.drawFrame(ctx);
     this.drawRoots(ctx);
     this.drawScaleBar(ctx);
@@ -212,6 +227,7 @@ export class NetworkView {
     ctx.setTransform(1, 0, 0, 1, 0, 0);
     session.putThinLines(ctx);
     this.strokeWideLines(ctx);
+    this.drawOverlays(ctx);
     this.drawFrame(ctx);
     this.drawRoots(ctx);
     this.drawScaleBar(ctx);

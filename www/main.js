@@ -65,7 +65,7 @@ async function start() {
   // ---- end of specimens ----
   // ---- drainage sites (issue 12, page side): site-panel.js and site-sketch.js ----
   import('./site-panel.js')
-    .then(({ startSitePanel }) => startSitePanel({ session: state.session, state }))
+    .then(({ startSitePanel }) => startSitePanel({ session: state.session, state, view }))
     .catch((error) => notice(`The site panel could not start: ${messageOf(error)}`));
   // ---- end of drainage sites ----
 

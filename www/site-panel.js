@@ -13,16 +13,29 @@ const byId = (id) => document.getElementById(id);
 
 /// Starts the panel. `state`: the page's state (its simulation and frame); `session`: the wasm
 /// session.
-export function startSitePanel({ session, state }) {
-  const panel = new SitePanel(session, state);
+export function startSitePanel({ session, state, view }) {
+  const panel = new SitePanel(session, state, view);
   window.ramulusSite = panel;
   return panel;
 }
 
+// Colours of what the panel lays over the layout's picture: the parts no outlet reaches
+// (the plan's warning orange) and the natural flow on the bare ground (a faint blue-grey).
+const UNREACHED_FILL = 'rgba(251, 227, 200, 0.75)';
+const UNREACHED_INK = '#b35900';
+const GROUND_FLOW_INK = 'rgba(70, 110, 140, 0.55)';
+// Line widths in CSS pixels of the four classes of ground flow (by the area draining through).
+const GROUND_FLOW_WIDTHS = [0.6, 1.0, 1.6, 2.4];
+
 class SitePanel {
-  constructor(session, state) {
+  constructor(session, state, view) {
     this.session = session;
     this.state = state;
+    this.view = view;
+    // What was laid over the picture, and for which run: {simulation, parts} and
+    // {simulation, lines}.
+    this.unreached = null;
+    this.groundFlow = null;
     this.core = session.core;
     this.sized = null;
     this.siteText = null;
@@ -80,7 +93,7 @@ class SitePanel {
     });
     byId('site-undo').addEventListener('click', () => this.sketch.undo());
     byId('site-units').addEventListener('change', (event) => this.setSiteUnits(event.target.value));
-    byId('site-system').addEventListener('change', (event) => { this.setSystem(event.target.value); this.resize(); });
+    byId('site-system').addEventListener('change', (event) => { this.setSystem(event.target.value); this.resize(); this.showUnreached(); });
     byId('site-rain-kind').addEventListener('change', (event) => {
       byId('site-intensity-row').hidden = event.target.value !== 'constant';
       byId('site-idf-row').hidden = event.target.value !== 'idf';
@@ -108,6 +121,7 @@ class SitePanel {
     });
     byId('site-grow').addEventListener('click', () => this.grow());
     byId('site-size').addEventListener('click', () => this.resize(true));
+    byId('site-ground-flow').addEventListener('change', () => this.showGroundFlow());
     window.addEventListener('ramulus:finished', () => this.runEnded());
     byId('site-save-plan').addEventListener('click', () => this.save('svg', 'plan drawing to a stated map scale',
       () => this.state.simulation.drainage_plan_svg(this.rulesText(), this.siteTextFor()), 'image/svg+xml'));
@@ -226,6 +240,7 @@ class SitePanel {
     this.grownLink = result.link;
     byId('site-status').textContent = result.summary;
     byId('site-results').hidden = true;
+    byId('site-unreached').hidden = true;
     this.sized = null;
     location.hash = result.link;
     document.querySelector('.field')?.scrollIntoView({ block: 'start' });
@@ -239,7 +254,111 @@ class SitePanel {
   runEnded() {
     const site = Boolean(this.state.frame?.site);
     byId('site-size').disabled = !site;
+    this.showUnreached();
+    this.showGroundFlow();
     if (site && this.rainGiven()) this.resize();
+  }
+
+  // ---- over the layout's picture ---------------------------------------------------------
+
+  /// The parts of the finished site no outlet reaches: tinted, hatched and labelled with
+  /// their area on the picture, and the core's sentence listing them in the panel.
+  showUnreached() {
+    const simulation = this.state.simulation;
+    const box = byId('site-unreached');
+    this.unreached = null;
+    this.view.overlays.delete('unreached');
+    box.hidden = true;
+    box.textContent = '';
+    if (!simulation || !this.state.frame?.site || !simulation.finished()) {
+      this.view.draw();
+      return;
+    }
+    const found = JSON.parse(simulation.unreached_json(this.siteTextFor(), byId('site-system').value));
+    if (found.parts.length > 0) {
+      this.unreached = { simulation, parts: found.parts };
+      this.view.overlays.set('unreached', (ctx, place) => this.drawUnreached(ctx, place));
+    }
+    if (found.text) {
+      box.textContent = found.text;
+      box.hidden = false;
+    }
+    this.view.draw();
+  }
+
+  drawUnreached(ctx, { scale, offsetX, offsetY, ratio }) {
+    if (!this.unreached || this.unreached.simulation !== this.state.simulation) return;
+    if (!this.hatch) this.hatch = hatchPattern(ctx, ratio);
+    for (const part of this.unreached.parts) {
+      ctx.beginPath();
+      for (const ring of part.rings) {
+        for (let k = 0; k < ring.length; k += 2) {
+          const x = ring[k] * scale + offsetX;
+          const y = ring[k + 1] * scale + offsetY;
+          if (k === 0) ctx.moveTo(x, y); else ctx.lineTo(x, y);
+        }
+        ctx.closePath();
+      }
+      ctx.fillStyle = UNREACHED_FILL;
+      ctx.fill('evenodd');
+      if (this.hatch) {
+        ctx.fillStyle = this.hatch;
+        ctx.fill('evenodd');
+      }
+      ctx.strokeStyle = UNREACHED_INK;
+      ctx.lineWidth = 1.5 * ratio;
+      ctx.stroke();
+    }
+    ctx.font = `bold ${12 * ratio}px system-ui, sans-serif`;
+    ctx.textAlign = 'center';
+    ctx.lineWidth = 3 * ratio;
+    ctx.strokeStyle = 'rgba(255, 253, 248, 0.9)';
+    ctx.fillStyle = UNREACHED_INK;
+    for (const part of this.unreached.parts) {
+      const x = part.label_at[0] * scale + offsetX;
+      const y = part.label_at[1] * scale + offsetY;
+      ctx.strokeText(part.label, x, y);
+      ctx.fillText(part.label, x, y);
+    }
+  }
+
+  /// The natural flow on the bare ground (D8), faint, while the box is ticked.
+  showGroundFlow() {
+    const simulation = this.state.simulation;
+    const note = byId('site-ground-flow-note');
+    const wanted = byId('site-ground-flow').checked && simulation && this.state.frame?.site;
+    this.view.overlays.delete('ground-flow');
+    note.hidden = !wanted;
+    if (!wanted) {
+      this.groundFlow = null;
+      note.textContent = '';
+      this.view.draw();
+      return;
+    }
+    if (this.groundFlow?.simulation !== simulation) {
+      this.groundFlow = { simulation, lines: simulation.ground_flow_lines() };
+    }
+    note.textContent = simulation.ground_flow_text();
+    this.view.overlays.set('ground-flow', (ctx, place) => this.drawGroundFlow(ctx, place));
+    this.view.draw();
+  }
+
+  drawGroundFlow(ctx, { scale, offsetX, offsetY, ratio }) {
+    if (!this.groundFlow || this.groundFlow.simulation !== this.state.simulation) return;
+    const { lines } = this.groundFlow;
+    ctx.strokeStyle = GROUND_FLOW_INK;
+    ctx.lineCap = 'round';
+    // One path per class, thinnest first.
+    GROUND_FLOW_WIDTHS.forEach((width, level) => {
+      ctx.lineWidth = width * ratio;
+      ctx.beginPath();
+      for (let k = 0; k < lines.length; k += 5) {
+        if (lines[k + 4] !== level) continue;
+        ctx.moveTo(lines[k] * scale + offsetX, lines[k + 1] * scale + offsetY);
+        ctx.lineTo(lines[k + 2] * scale + offsetX, lines[k + 3] * scale + offsetY);
+      }
+      ctx.stroke();
+    });
   }
 
   rainGiven() {
@@ -320,6 +439,26 @@ class SitePanel {
     box.hidden = !text;
     box.textContent = text;
   }
+}
+
+/// Diagonal hatching for the parts no outlet reaches, as a canvas pattern.
+function hatchPattern(ctx, ratio) {
+  const size = Math.max(4, Math.round(8 * ratio));
+  const tile = document.createElement('canvas');
+  tile.width = size;
+  tile.height = size;
+  const pen = tile.getContext('2d');
+  pen.strokeStyle = UNREACHED_INK;
+  pen.lineWidth = Math.max(1, ratio);
+  pen.beginPath();
+  pen.moveTo(0, size);
+  pen.lineTo(size, 0);
+  pen.moveTo(-size / 2, size / 2);
+  pen.lineTo(size / 2, -size / 2);
+  pen.moveTo(size / 2, size * 1.5);
+  pen.lineTo(size * 1.5, size / 2);
+  pen.stroke();
+  return ctx.createPattern(tile, 'repeat');
 }
 
 function describe(feature, units) {

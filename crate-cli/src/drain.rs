@@ -10,11 +10,14 @@ use ramulus_core::params::Params;
 use ramulus_core::run::{RunView, SITE_CAUTION};
 use ramulus_core::site::{
     ground_flow, read_geotiff, read_site, read_spot_levels_csv, GroundFlow, Site, Terrain,
+    UnreachedPart,
 };
 use ramulus_core::site_plan_svg::{parse_svg_scale, read_site_svg};
 use ramulus_core::site_sizing::{size_run, RainForm, SizingForm};
 use ramulus_draw::site_plan::plan_svg;
-use ramulus_draw::site_texts::{area_text, flags_summary, site_plan_input, site_tables};
+use ramulus_draw::site_texts::{
+    area_text, flags_summary, site_plan_input, site_tables, unreached_summary,
+};
 use serde_json::json;
 
 use crate::commands::link_parameters;
@@ -182,12 +185,19 @@ pub fn drain(options: DrainOptions) -> Result<(), CliError> {
         size_run(&view, &params, &design).map_err(|error| CliError::Failed(error.to_string()))?;
     let site = &sized.hydraulics;
     let natural = natural_flow(&params, site_file.as_ref(), design.system)?;
+    let unreached = unreached_json(&sized.unreached, &params, site_file.as_ref(), design.system)?;
+    let unreached_text = unreached_summary(
+        &sized.unreached,
+        &params.domain.units,
+        design.system,
+        site_file.as_ref(),
+    );
 
     if let Some(path) = &options.csv_file {
         plan.stage(path, &schedule_csv(site))?;
     }
     if let Some(path) = &options.geojson_file {
-        plan.stage(path, &site_geojson(&sized.network, site))?;
+        plan.stage(path, &site_geojson(&sized.network, site, &sized.unreached))?;
     }
     if let Some(path) = &options.svg_file {
         let metadata = json!({ "params": params, "digest": view.digest }).to_string();
@@ -268,6 +278,7 @@ pub fn drain(options: DrainOptions) -> Result<(), CliError> {
                 "segments": segments,
                 "ground_flow": natural.json,
                 "low_spots": natural.low_spots,
+                "unreached": unreached,
             })
         );
         return Ok(());
@@ -292,11 +303,43 @@ pub fn drain(options: DrainOptions) -> Result<(), CliError> {
         flags_summary(site)
     );
     say!("");
+    if let Some(text) = &unreached_text {
+        say!("{text}");
+        say!("");
+    }
     for line in &natural.lines {
         say!("{line}");
     }
     say!("Channel schedule: --csv FILE writes every row; --svg FILE the plan.");
     Ok(())
+}
+
+/// The parts of the site no outlet reaches, for `--json`: each part's cells, area and the
+/// centre of its bounding box (site coordinates when the site came from a file, else the
+/// plan's), in the units of the results.
+fn unreached_json(
+    parts: &[UnreachedPart],
+    params: &Params,
+    site_file: Option<&Site>,
+    units: UnitSystem,
+) -> Result<Vec<serde_json::Value>, CliError> {
+    let metres = metres_per_network_unit(&params.domain.units)
+        .map_err(|error| CliError::Failed(format!("internal: {error}")))?;
+    Ok(parts
+        .iter()
+        .map(|part| {
+            let [x, y] = match site_file {
+                Some(site) => site.network_to_site(part.centre),
+                None => part.centre,
+            };
+            json!({
+                "cells": part.cells,
+                "area": units.area_from_si(part.area * metres * metres),
+                "x": units.length_from_si(x * metres),
+                "y": units.length_from_si(y * metres),
+            })
+        })
+        .collect())
 }
 
 /// The ground's own flow (D8, before any channel) in the units of the results.

@@ -9,9 +9,10 @@ use std::path::{Path, PathBuf};
 use std::process::Command;
 use std::sync::atomic::{AtomicUsize, Ordering};
 
-/// Exit code and stderr of one run of the binary.
+/// Exit code, stdout and stderr of one run of the binary.
 struct Outcome {
     code: Option<i32>,
+    stdout: String,
     stderr: String,
 }
 
@@ -23,6 +24,7 @@ fn ramulus(arguments: &[&str]) -> Outcome {
         .expect("the ramulus binary runs");
     let outcome = Outcome {
         code: output.status.code(),
+        stdout: String::from_utf8_lossy(&output.stdout).into_owned(),
         stderr: String::from_utf8_lossy(&output.stderr).into_owned(),
     };
     assert!(
@@ -177,27 +179,46 @@ fn an_outlet_outside_the_site_is_named_with_its_place() {
     );
 }
 
-/// An obstacle 6 m wide across the whole yard, wider than the joining distance (4 cells of
-/// 1 m): the 20 m x 6 m strip north of it (y 14 to 20) cannot reach the outlet. By hand: 20 x 6
-/// = 120 cells of 1 m², their box centred at (10, 17). The part is reported, never dropped.
+/// An obstacle 6 m wide across the whole yard: the 20 m x 6 m strip north of it (y 14 to 20)
+/// cannot reach the outlet. By hand: 20 x 6 = 120 cells of 1 m², their box centred at
+/// (10, 17). The layout grows on the rest and the part is drawn and listed, never dropped: in
+/// the summary, in `--json` (120 m² = 0.012 ha) and hatched on the plan.
 #[test]
-fn a_site_cut_in_two_reports_the_part_that_cannot_drain() {
+fn a_site_cut_in_two_draws_and_lists_the_part_no_outlet_reaches() {
     let folder = Folder::new("cut");
     let extra = r#",{"type":"Feature","properties":{"role":"obstacle","name":"wall"},"geometry":{"type":"Polygon","coordinates":[[[-1,8],[21,8],[21,14],[-1,14],[-1,8]]]}}"#;
     let svg = folder.path("plan.svg");
     let outcome = drain_site(&folder, &yard(SQUARE, extra), &["--svg", &svg]);
-    assert_failed(
-        &outcome,
-        1,
-        &[
-            "120 cell(s) of the site cannot drain to any outlet",
-            "120 m²",
-            "around (10.00, 17.00)",
-        ],
+    assert_eq!(outcome.code, Some(0), "{}", outcome.stderr);
+    for needle in [
+        "No outlet reaches 120 m² of the site, in 1 part",
+        "around (10, 17) m",
+    ] {
+        assert!(
+            outcome.stdout.contains(needle),
+            "{needle}: {}",
+            outcome.stdout
+        );
+    }
+    let plan = std::fs::read_to_string(&svg).expect("the plan is written");
+    assert!(
+        plan.contains("class=\"unreached\""),
+        "the plan hatches the part"
     );
     assert!(
-        !Path::new(&svg).exists(),
-        "a plan was written for a failed run"
+        plan.contains("no outlet reaches: 120 m²"),
+        "the plan labels its area"
+    );
+    let outcome = drain_site(&folder, &yard(SQUARE, extra), &["--json"]);
+    assert_eq!(outcome.code, Some(0), "{}", outcome.stderr);
+    let json: serde_json::Value = serde_json::from_str(&outcome.stdout).expect("one JSON object");
+    let parts = json["unreached"].as_array().expect("unreached parts");
+    assert_eq!(parts.len(), 1);
+    assert_eq!(parts[0]["cells"], 120);
+    assert!((parts[0]["area"].as_f64().unwrap_or(0.0) - 0.012).abs() < 1e-12);
+    assert_eq!(
+        (parts[0]["x"].as_f64(), parts[0]["y"].as_f64()),
+        (Some(10.0), Some(17.0))
     );
 }
 

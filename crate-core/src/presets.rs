@@ -357,6 +357,7 @@ fn drainage_site() -> Params {
             radius: 4.0,
             joining: Joining::Weighted,
             temperature: 0.5,
+            keep_clear: true,
             ..RunControl::default()
         },
         widths: Widths {

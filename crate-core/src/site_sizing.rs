@@ -18,7 +18,7 @@ use crate::drainage::{
 use crate::network::{Network, Topology, NO_PARENT};
 use crate::params::Params;
 use crate::run::RunView;
-use crate::site::node_area_runoff;
+use crate::site::{node_area_runoff, unreached_parts, UnreachedPart};
 use crate::terrain::{node_ground, Elevation};
 
 /// The design form as typed: every value a text, so a wrong one is named as the user wrote it.
@@ -271,6 +271,8 @@ pub struct SizedSite {
     pub topology: Topology,
     /// Flows, sizes and flags.
     pub hydraulics: SiteHydraulics,
+    /// The parts of the site that no outlet reaches (`site::unreached_parts`), largest first.
+    pub unreached: Vec<UnreachedPart>,
 }
 
 /// Sizes a run's channels for `design`.
@@ -346,6 +348,7 @@ pub fn size_run(
         network,
         topology,
         hydraulics,
+        unreached: unreached_parts(params, &view.network),
     })
 }
 

@@ -4,7 +4,7 @@
 //! (`palette`), number formats (`format`), the colour key shared by SVG and page (`legend`), the extent and roots the page frames and
 //! marks (`marks`),
 //! the descriptions of the readings plots (`plots`), the scale bar (`scale_bar`), the drainage
-//! plan (`site_plan`) and the
+//! plan (`site_plan`), what the page lays over a site (`site_overlay`) and the
 //! sentences the page and the command line show (`texts`).
 //!
 //! The core computes; this crate only turns its values into pictures and words. Its inputs are
@@ -23,6 +23,7 @@ pub mod raster;
 pub mod scale_bar;
 pub mod screen;
 pub mod screen_growth;
+pub mod site_overlay;
 pub mod site_plan;
 pub mod site_texts;
 pub mod svg;

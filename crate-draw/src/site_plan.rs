@@ -1,5 +1,6 @@
 //! The drainage plan (`plan_svg`): a site drawn to a stated map scale on paper, with its outline,
-//! the areas kept clear and the surface zones named, every channel drawn with its flow arrow and
+//! the areas kept clear and the surface zones named, the parts no outlet reaches tinted,
+//! hatched and labelled with their area, every channel drawn with its flow arrow and
 //! labelled with its size and peak flow where the size changes, outlets with their contributing
 //! area and peak flow, a scale bar, a north arrow, the design notes and the concept-design
 //! caution. Inputs are plain shapes and texts (`PlanInput`); the numbers come from the core.
@@ -72,6 +73,17 @@ pub struct PlanChannel {
     pub flagged: bool,
 }
 
+/// A part of the site no outlet reaches: tinted and hatched, labelled with its area.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PlanUnreached {
+    /// Its rings (outer rings and holes; filled even-odd), in the network's coordinates.
+    pub rings: Vec<Vec<[f64; 2]>>,
+    /// Its text, e.g. "no outlet reaches: 39 m²".
+    pub label: String,
+    /// Where the label goes (inside the part).
+    pub label_at: [f64; 2],
+}
+
 /// One outlet with its label (e.g. "street drain: 0.24 ha, 0.061 m³/s").
 #[derive(Clone, Debug, PartialEq)]
 pub struct PlanOutlet {
@@ -94,6 +106,8 @@ pub struct PlanInput {
     pub channels: Vec<PlanChannel>,
     /// Outlets.
     pub outlets: Vec<PlanOutlet>,
+    /// Parts of the site no outlet reaches.
+    pub unreached: Vec<PlanUnreached>,
     /// Lines under the drawing (design storm, sizing rules, flags).
     pub notes: Vec<String>,
     /// The caution, drawn in bold under the notes.
@@ -136,6 +150,7 @@ pub fn plan_svg(input: &PlanInput) -> String {
 
     let mut body = String::new();
     draw_areas(&mut body, input, &to_paper);
+    draw_unreached(&mut body, input, &to_paper);
     draw_channels(&mut body, input, &to_paper);
     draw_outlets(&mut body, input, &to_paper);
 
@@ -209,6 +224,12 @@ pub fn plan_svg(input: &PlanInput) -> String {
         "<metadata>{}</metadata>",
         escape_text(&input.metadata_json)
     );
+    if !input.unreached.is_empty() {
+        let _ = writeln!(
+            svg,
+            "<defs><pattern id=\"unreached-hatch\" patternUnits=\"userSpaceOnUse\" width=\"{UNREACHED_HATCH_MM}\" height=\"{UNREACHED_HATCH_MM}\" patternTransform=\"rotate(45)\"><line x1=\"0\" y1=\"0\" x2=\"0\" y2=\"{UNREACHED_HATCH_MM}\" stroke=\"{UNREACHED_INK}\" stroke-width=\"0.3\"/></pattern></defs>"
+        );
+    }
     let _ = writeln!(
         svg,
         "<rect x=\"0\" y=\"0\" width=\"{}\" height=\"{}\" fill=\"#ffffff\"/>",
@@ -244,6 +265,9 @@ fn plan_bounds(input: &PlanInput) -> [f64; 4] {
     }
     for outlet in &input.outlets {
         take(outlet.at);
+    }
+    for part in &input.unreached {
+        part.rings.iter().flatten().copied().for_each(&mut take);
     }
     if !bounds[0].is_finite() {
         return [0.0, 0.0, 1.0, 1.0];
@@ -300,6 +324,62 @@ fn draw_areas(svg: &mut String, input: &PlanInput, to_paper: &dyn Fn([f64; 2]) -
         }
     }
     svg.push_str(&labels);
+}
+
+/// Spacing of the hatching over parts no outlet reaches, paper mm.
+const UNREACHED_HATCH_MM: f64 = 1.6;
+/// Ink of those parts' outline, hatching and label (a warning orange, apart from the channels'
+/// blue and the flagged channels' red).
+const UNREACHED_INK: &str = "#b35900";
+
+/// Parts no outlet reaches: a tint, hatching over it and the outline, each part one path
+/// filled even-odd (its holes left open); labels on top.
+fn draw_unreached(svg: &mut String, input: &PlanInput, to_paper: &dyn Fn([f64; 2]) -> [f64; 2]) {
+    for part in &input.unreached {
+        let mut path = String::new();
+        for ring in &part.rings {
+            let points: Vec<[f64; 2]> = ring
+                .iter()
+                .copied()
+                .filter(|p| p[0].is_finite() && p[1].is_finite())
+                .map(to_paper)
+                .collect();
+            if points.len() < 3 {
+                continue;
+            }
+            for (k, p) in points.iter().enumerate() {
+                let _ = write!(
+                    path,
+                    "{}{} {} ",
+                    if k == 0 { "M" } else { "L" },
+                    fixed(p[0], 2),
+                    fixed(p[1], 2)
+                );
+            }
+            path.push_str("Z ");
+        }
+        if path.is_empty() {
+            continue;
+        }
+        let path = path.trim_end();
+        let _ = writeln!(
+            svg,
+            "<g class=\"unreached\"><path d=\"{path}\" fill=\"#fbe3c8\" fill-rule=\"evenodd\" stroke=\"none\"/><path d=\"{path}\" fill=\"url(#unreached-hatch)\" fill-rule=\"evenodd\" stroke=\"{UNREACHED_INK}\" stroke-width=\"0.35\"/></g>"
+        );
+    }
+    for part in &input.unreached {
+        if !(part.label_at[0].is_finite() && part.label_at[1].is_finite()) {
+            continue;
+        }
+        let p = to_paper(part.label_at);
+        let _ = writeln!(
+            svg,
+            "<text class=\"unreached-label\" x=\"{}\" y=\"{}\" font-size=\"{PLAN_TEXT_MM}\" text-anchor=\"middle\" fill=\"{UNREACHED_INK}\" font-weight=\"bold\" stroke=\"#ffffff\" stroke-width=\"0.6\" paint-order=\"stroke\">{}</text>",
+            fixed(p[0], 2),
+            fixed(p[1], 2),
+            escape_text(&part.label)
+        );
+    }
 }
 
 /// Channels, then one arrow and one label per run of equal size between confluences.

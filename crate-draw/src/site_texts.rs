@@ -2,14 +2,15 @@
 //! (`site_tables`), the flag words, and the drainage plan's input (`site_plan_input`) with its
 //! size and flow labels. Units follow the report unit system of the hydraulics.
 
+use ramulus_core::drainage::units::metres_per_network_unit;
 use ramulus_core::drainage::{ChannelSize, HydraulicFlag, SiteHydraulics, UnitSystem};
 use ramulus_core::params::Params;
-use ramulus_core::site::Site;
+use ramulus_core::site::{Site, UnreachedPart};
 use ramulus_core::site_sizing::{SiteDesign, SizedSite};
 use serde::Serialize;
 
 use crate::format::{fixed, four_digits, grouped};
-use crate::site_plan::{PlanArea, PlanAreaKind, PlanChannel, PlanInput, PlanOutlet};
+use crate::site_plan::{PlanArea, PlanAreaKind, PlanChannel, PlanInput, PlanOutlet, PlanUnreached};
 
 /// The page's tables of a sized site.
 #[derive(Clone, Debug, PartialEq, Serialize)]
@@ -354,16 +355,108 @@ pub fn site_plan_input(
         .collect();
     let mut notes = vec![storm_words(design), rules_words(design)];
     notes.push(flags_summary(site));
+    let unreached = unreached_plan(&sized.unreached, &params.domain.units, units);
+    if let Some(summary) =
+        unreached_summary(&sized.unreached, &params.domain.units, units, site_file)
+    {
+        notes.push(summary);
+    }
     PlanInput {
         title: "Ramulus drainage concept plan".into(),
         units: params.domain.units.clone(),
         areas,
         channels,
         outlets,
+        unreached,
         notes,
         caution: caution.to_string(),
         metadata_json,
     }
+}
+
+/// The label of a part no outlet reaches, e.g. "no outlet reaches: 39 m²".
+pub fn unreached_label(part: &UnreachedPart, length_unit: &str, units: UnitSystem) -> String {
+    let metres = metres_per_network_unit(length_unit).unwrap_or(1.0);
+    format!(
+        "no outlet reaches: {}",
+        area_text(part.area * metres * metres, units)
+    )
+}
+
+/// The parts no outlet reaches as the plan draws them: rings and labels.
+pub fn unreached_plan(
+    parts: &[UnreachedPart],
+    length_unit: &str,
+    units: UnitSystem,
+) -> Vec<PlanUnreached> {
+    parts
+        .iter()
+        .map(|part| PlanUnreached {
+            rings: part
+                .polygons
+                .iter()
+                .flat_map(|polygon| {
+                    std::iter::once(polygon.outer.clone()).chain(polygon.holes.iter().cloned())
+                })
+                .collect(),
+            label: unreached_label(part, length_unit, units),
+            label_at: part.label_at,
+        })
+        .collect()
+}
+
+/// Parts listed one by one in the summary; the rest are counted.
+const UNREACHED_LISTED: usize = 5;
+
+/// One sentence on the parts of the site no outlet reaches, or `None` when there are none:
+/// their number and area, then the largest with their places. `site_file`, when given, places
+/// them in the site's coordinates (x east, y north); else in the plan's (x right, y down from
+/// the top-left corner).
+pub fn unreached_summary(
+    parts: &[UnreachedPart],
+    length_unit: &str,
+    units: UnitSystem,
+    site_file: Option<&Site>,
+) -> Option<String> {
+    if parts.is_empty() {
+        return None;
+    }
+    let metres = metres_per_network_unit(length_unit).unwrap_or(1.0);
+    let total: f64 = parts.iter().map(|part| part.area).sum();
+    let places: Vec<String> = parts
+        .iter()
+        .take(UNREACHED_LISTED)
+        .map(|part| {
+            let [x, y] = match site_file {
+                Some(site) => site.network_to_site(part.centre),
+                None => part.centre,
+            };
+            format!(
+                "{} around ({}, {}) {}",
+                area_text(part.area * metres * metres, units),
+                fixed(units.length_from_si(x * metres), 1),
+                fixed(units.length_from_si(y * metres), 1),
+                units.length_unit()
+            )
+        })
+        .collect();
+    let more = if parts.len() > UNREACHED_LISTED {
+        format!(
+            " and {} smaller",
+            grouped((parts.len() - UNREACHED_LISTED) as u64)
+        )
+    } else {
+        String::new()
+    };
+    Some(format!(
+        "No outlet reaches {} of the site, in {} part{} ({}{more}): obstacles or the outline cut {} off. Add an outlet there or open a way past the obstacle; the plan hatches {}.",
+        area_text(total * metres * metres, units),
+        grouped(parts.len() as u64),
+        if parts.len() == 1 { "" } else { "s" },
+        places.join("; "),
+        if parts.len() == 1 { "it" } else { "them" },
+        if parts.len() == 1 { "it" } else { "them" },
+    ))
 }
 
 /// An outlet's name from the site file, else "outlet k".

@@ -440,6 +440,35 @@ impl Simulation {
             .map_err(|e| JsError::new(&e))
     }
 
+    /// The parts of a finished site no outlet reaches (`site::unreached_json`): rings,
+    /// labels and a sentence in the units of `system` (`si` or `us`); `site_text` is the site
+    /// file the run came from, or empty.
+    pub fn unreached_json(&mut self, site_text: &str, system: &str) -> Result<String, JsError> {
+        self.view()?;
+        let view = self
+            .view_cache
+            .as_ref()
+            .ok_or_else(|| JsError::new("derived view missing"))?;
+        Ok(crate::site::unreached_json(
+            view,
+            &self.params,
+            site_text,
+            system,
+        ))
+    }
+
+    /// Natural flow on the site's bare ground: `x0, y0, x1, y1, class` per cell that passes
+    /// its water on, in the network's frame (empty on flat ground or off a site).
+    pub fn ground_flow_lines(&self) -> js_sys::Float32Array {
+        let (lines, _) = crate::site::ground_flow_overlay(&self.params);
+        js_sys::Float32Array::from(lines.as_slice())
+    }
+
+    /// The sentence under the natural-flow toggle.
+    pub fn ground_flow_text(&self) -> String {
+        crate::site::ground_flow_overlay(&self.params).1
+    }
+
     /// The progress line: `1,234 of 5,000 cells`, with why growth stopped once it has.
     pub fn progress_text(&self) -> String {
         let stopped = match &self.source {

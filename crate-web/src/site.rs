@@ -3,16 +3,20 @@
 //! CSV, GeoJSON, plan) that `Simulation`'s drainage methods return. Computing is the core's,
 //! words and drawing `ramulus-draw`'s.
 
+use ramulus_core::drainage::units::metres_per_network_unit;
 use ramulus_core::drainage::{
     schedule_csv, site_geojson, Conveyance, RunoffTable, SizingRules, UnitSystem,
 };
 use ramulus_core::link::encode_link;
 use ramulus_core::params::Params;
 use ramulus_core::run::{RunView, SITE_CAUTION};
-use ramulus_core::site::{read_site, Site, Terrain};
+use ramulus_core::site::{ground_flow, read_site, unreached_parts, Site, Terrain};
 use ramulus_core::site_sizing::{read_sizing_form, size_run, SiteDesign, SizedSite};
+use ramulus_draw::site_overlay::ground_flow_lines;
 use ramulus_draw::site_plan::plan_svg;
-use ramulus_draw::site_texts::{site_plan_input, site_summary, site_tables};
+use ramulus_draw::site_texts::{
+    site_plan_input, site_summary, site_tables, unreached_plan, unreached_summary,
+};
 use serde_json::json;
 use wasm_bindgen::prelude::*;
 
@@ -87,8 +91,9 @@ pub fn site_svg_json(text: &str, scale_text: &str) -> String {
 }
 
 /// A site file as a run link on cells of `cell_text` (the site's unit): `{link, summary}`, or
-/// `{error}` naming what is wrong (the file, the cell size, or parts no outlet can reach). The
-/// ground comes from the file's spot levels, or is taken as flat when it has none.
+/// `{error}` naming what is wrong (the file or the cell size). Parts no outlet can reach are
+/// no error: the finished run shows them (`unreached_json`). The ground comes from the file's
+/// spot levels, or is taken as flat when it has none.
 #[wasm_bindgen]
 pub fn site_link_json(text: &str, cell_text: &str) -> String {
     let error = |message: String| json!({ "error": message }).to_string();
@@ -183,7 +188,8 @@ pub(crate) fn drainage_geojson(
     params: &Params,
     form_json: &str,
 ) -> Result<String, String> {
-    sized(view, params, form_json).map(|(sized, _)| site_geojson(&sized.network, &sized.hydraulics))
+    sized(view, params, form_json)
+        .map(|(sized, _)| site_geojson(&sized.network, &sized.hydraulics, &sized.unreached))
 }
 
 /// The drainage plan as SVG.
@@ -205,4 +211,64 @@ pub(crate) fn drainage_plan_svg(
         SITE_CAUTION,
         metadata,
     )))
+}
+
+/// The parts of a finished site no outlet reaches, for the page's canvas and panel: JSON
+/// `{parts: [{rings: [[x, y, x, y, ...], ...], label, label_at: [x, y]}], text}` in the
+/// network's frame (physical units, y down the page); `text` is null when every part is
+/// reached. `site_text`: the site file the run came from (places in its coordinates), or
+/// empty; `system`: `si` or `us` (the units of the words).
+pub(crate) fn unreached_json(
+    view: &RunView,
+    params: &Params,
+    site_text: &str,
+    system: &str,
+) -> String {
+    let system = if system == "us" {
+        UnitSystem::Us
+    } else {
+        UnitSystem::Si
+    };
+    let parts = unreached_parts(params, &view.network);
+    let site = site_file(site_text);
+    let units = &params.domain.units;
+    let shown: Vec<_> = unreached_plan(&parts, units, system)
+        .into_iter()
+        .map(|part| {
+            let rings: Vec<Vec<f64>> = part
+                .rings
+                .iter()
+                .map(|ring| ring.iter().flat_map(|&[x, y]| [x, y]).collect())
+                .collect();
+            json!({ "rings": rings, "label": part.label, "label_at": part.label_at })
+        })
+        .collect();
+    json!({
+        "parts": shown,
+        "text": unreached_summary(&parts, units, system, site.as_ref()),
+    })
+    .to_string()
+}
+
+/// Natural flow on a site's bare ground for the page's canvas: `{lines, flat, text}`, `lines`
+/// being `x0, y0, x1, y1, class` per cell that passes its water on (`site_overlay`), in the
+/// network's frame; none on flat ground, which `text` then says.
+pub(crate) fn ground_flow_overlay(params: &Params) -> (Vec<f32>, String) {
+    let flat = params.domain.levels.is_empty()
+        && params.domain.grade_x == 0.0
+        && params.domain.grade_y == 0.0;
+    if !params.is_site() || flat || metres_per_network_unit(&params.domain.units).is_err() {
+        return (
+            Vec::new(),
+            "The ground is flat: water shows no way of its own before any channel.".into(),
+        );
+    }
+    let flow = ground_flow(params);
+    let lines = ground_flow_lines(&flow, params.domain.cell_size);
+    let text = format!(
+        "Where water runs on the bare ground, cell by cell to the steepest of its eight neighbours (D8, O'Callaghan & Mark 1984); {} low spot{} where it ponds.",
+        flow.low_spots.len(),
+        if flow.low_spots.len() == 1 { "" } else { "s" }
+    );
+    (lines, text)
 }

@@ -176,3 +176,78 @@ test('a site plan drawn as SVG opens at its scale, and a bad plan is named by el
   assert.match(message, /open\.svg: .*<path> \(line 2\).*open/);
   await page.close();
 });
+
+// A wall bending round the north-east corner of a 20 m x 12 m site cuts the corner off from
+// the only outlet (the site of tests/tests/unreached_parts.rs, with three spot levels): 6 x 5
+// + 3 x 3 = 39 m² by the shoelace formula over the corner's six corners, counted by hand.
+const WALLED_SITE = {
+  type: 'FeatureCollection',
+  properties: { units: 'm', runoff_coefficient: 0.3 },
+  features: [
+    { type: 'Feature', properties: { role: 'outline' }, geometry: { type: 'Polygon', coordinates: [[[0, 0], [20, 0], [20, 12], [0, 12], [0, 0]]] } },
+    {
+      type: 'Feature',
+      properties: { role: 'obstacle', name: 'wall' },
+      geometry: { type: 'Polygon', coordinates: [[[13, 12], [14, 12], [14, 7], [17, 7], [17, 4], [20, 4], [20, 3], [16, 3], [16, 6], [13, 6], [13, 12]]] },
+    },
+    { type: 'Feature', properties: { role: 'outlet', name: 'drain' }, geometry: { type: 'Point', coordinates: [1, 1] } },
+    { type: 'Feature', properties: { role: 'level', elevation: 10 }, geometry: { type: 'Point', coordinates: [0.5, 0.5] } },
+    { type: 'Feature', properties: { role: 'level', elevation: 10.4 }, geometry: { type: 'Point', coordinates: [19.5, 0.5] } },
+    { type: 'Feature', properties: { role: 'level', elevation: 10.6 }, geometry: { type: 'Point', coordinates: [0.5, 11.5] } },
+  ],
+};
+
+test('a corner cut off by a wall is drawn, labelled and exported; the ground flow shows on request', async () => {
+  const page = await openPage();
+  await page.evaluate((text) => window.ramulusSite.openText(text, 'walled.geojson'), JSON.stringify(WALLED_SITE));
+  await page.fill('#site-cell', '1');
+  await page.fill('#site-intensity', '60');
+  await page.click('#site-grow');
+  await page.waitForFunction(() => window.ramulusPage.state.frame?.site === true);
+  await finishedDigest(page);
+  await page.waitForFunction(() => !document.querySelector('#site-unreached').hidden, null, { timeout: 60000 });
+  const said = await page.textContent('#site-unreached');
+  assert.match(said, /No outlet reaches 39 m² of the site, in 1 part/, said);
+  assert.match(said, /\(17, 8\) m/, 'the part is placed in the site coordinates');
+
+  // On the picture: at the centre of the corner cell (19.5, 11.5) m of the site, i.e.
+  // (19.5, 0.5) m down from the lattice's top-left corner, the pixel is the warning orange of
+  // the part's tint and hatching, not the background.
+  const pixel = await page.evaluate(() => {
+    const { view } = window.ramulusPage;
+    const px = Math.round(19.5 * view.scale + view.offsetX);
+    const py = Math.round(0.5 * view.scale + view.offsetY);
+    return [...view.canvas.getContext('2d').getImageData(px, py, 1, 1).data];
+  });
+  const [r, g, b] = pixel;
+  assert.ok(r > g && g > b && r - b > 30, `an orange pixel inside the part: ${pixel}`);
+
+  // The channels GeoJSON carries it with its own role; the plan hatches and labels it.
+  const form = await page.evaluate(() => window.ramulusSite.rulesText());
+  const geojson = JSON.parse(await page.evaluate((rules) => window.ramulusPage.state.simulation.drainage_geojson(rules), form));
+  const parts = geojson.features.filter((feature) => feature.properties.role === 'unreached');
+  assert.equal(parts.length, 1);
+  assert.ok(Math.abs(parts[0].properties.area - 0.0039) < 1e-9, `39 m² = 0.0039 ha: ${parts[0].properties.area}`);
+  const svg = await page.evaluate(
+    (rules) => window.ramulusPage.state.simulation.drainage_plan_svg(rules, window.ramulusSite.siteTextFor()), form);
+  assert.match(svg, /class="unreached"/);
+  assert.match(svg, /no outlet reaches: 39 m²/);
+  await screenshot(page, 'site-unreached');
+  await page.locator('#site-panel').screenshot({ path: path.join(root, 'artifacts', 'e2e', 'site-unreached-panel.png') });
+
+  // Natural flow on the bare ground, faint, on request.
+  await page.check('#site-ground-flow');
+  assert.ok(await page.evaluate(() => window.ramulusPage.view.overlays.has('ground-flow')));
+  assert.match(await page.textContent('#site-ground-flow-note'), /D8/);
+  const lines = await page.evaluate(() => window.ramulusPage.state.simulation.ground_flow_lines().length);
+  assert.ok(lines > 0 && lines % 5 === 0, `ground flow lines: ${lines / 5}`);
+  await page.locator('#canvas').screenshot({ path: path.join(root, 'artifacts', 'e2e', 'site-ground-flow.png') });
+  await page.uncheck('#site-ground-flow');
+  assert.ok(!(await page.evaluate(() => window.ramulusPage.view.overlays.has('ground-flow'))));
+
+  const words = await page.textContent('#site-panel');
+  assert.doesNotMatch(words, /vein/i, 'drainage words only on a site');
+  assert.doesNotMatch(words, /\b(leaf|petiole|areole|blade|tissue|midrib|veinlet)s?\b/i, 'no leaf words on a site');
+  assert.deepEqual(page.errors, []);
+  await page.close();
+});

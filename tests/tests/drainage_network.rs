@@ -338,7 +338,7 @@ fn reports_carry_the_caution_and_the_units() {
     assert!(outlets.starts_with(&format!("# {DRAINAGE_CAUTION}")));
 
     let si = size(&site, &rules);
-    let json: serde_json::Value = serde_json::from_str(&site_geojson(&site.0, &si)).unwrap();
+    let json: serde_json::Value = serde_json::from_str(&site_geojson(&site.0, &si, &[])).unwrap();
     assert_eq!(json["caution"], DRAINAGE_CAUTION);
     let features = json["features"].as_array().unwrap();
     assert_eq!(features.len(), 4);

@@ -126,6 +126,8 @@ fn valid_params() -> impl Strategy<Value = Params> {
                     attach_to_segments: attach,
                     // Plane and crossing growth, half of the cases each (by the drawn seed).
                     planar: seed % 2 == 0,
+                    // Segments kept off blocked cells in a third of the cases.
+                    keep_clear: seed % 3 == 0,
                     refresh,
                     relax_junctions: 0,
                     energy_sweeps: 0,

@@ -1,14 +1,17 @@
 //! Reports of a site's hydraulics as text: the segment schedule and the outlet list as CSV
 //! (`schedule_csv`, `outlet_csv`, the caution on the first line, units in the header) and the
 //! segments as a GeoJSON `FeatureCollection` (`site_geojson`, the caution on the collection and
-//! on every feature). Numbers are converted to the chosen unit system here and only here.
+//! on every feature, each channel with `role` `channel` and each part of the site no outlet
+//! reaches with `role` `unreached`). Numbers are converted to the chosen unit system here and
+//! only here.
 
 use serde_json::{json, Map, Value};
 
 use super::site_flows::{ChannelSize, SegmentHydraulics, SiteHydraulics};
-use super::units::UnitSystem;
+use super::units::{metres_per_network_unit, UnitSystem};
 use super::DRAINAGE_CAUTION;
 use crate::network::Network;
+use crate::site::UnreachedPart;
 
 /// `value` rounded to `decimals` places, without trailing zeros (`-0` written `0`).
 fn fixed(value: f64, decimals: usize) -> String {
@@ -143,9 +146,13 @@ pub fn outlet_csv(site: &SiteHydraulics) -> String {
 /// schedule's values in the report units (full precision) plus `flags` (array of keys) and
 /// `caution`; the collection carries `caution` and `units` (each quantity's unit) as foreign
 /// members (RFC 7946 section 6.1).
-pub fn site_geojson(network: &Network, site: &SiteHydraulics) -> String {
+pub fn site_geojson(
+    network: &Network,
+    site: &SiteHydraulics,
+    unreached: &[UnreachedPart],
+) -> String {
     let units = site.report_units;
-    let features: Vec<Value> = site
+    let mut features: Vec<Value> = site
         .segments
         .iter()
         .map(|segment| {
@@ -159,6 +166,7 @@ pub fn site_geojson(network: &Network, site: &SiteHydraulics) -> String {
             let mut put = |key: &str, value: Value| {
                 properties.insert(key.to_string(), value);
             };
+            put("role", json!("channel"));
             put("segment", json!(segment.segment));
             put("from", json!(segment.from));
             put("to", json!(segment.to));
@@ -209,11 +217,19 @@ pub fn site_geojson(network: &Network, site: &SiteHydraulics) -> String {
             })
         })
         .collect();
+    // A site's unit is m or ft; any other unit is reported as it stands.
+    let metres = metres_per_network_unit(&network.units).unwrap_or(1.0);
+    features.extend(
+        unreached
+            .iter()
+            .map(|part| unreached_feature(part, metres, units)),
+    );
     let collection = json!({
         "type": "FeatureCollection",
         "caution": DRAINAGE_CAUTION,
         "units": {
             "coordinates": network.units,
+            "area": units.area_unit(),
             "length": units.length_unit(),
             "grade": format!("{0}/{0}", units.length_unit()),
             "drained_area": units.area_unit(),
@@ -229,4 +245,47 @@ pub fn site_geojson(network: &Network, site: &SiteHydraulics) -> String {
         "features": features,
     });
     collection.to_string()
+}
+
+/// A part of the site no outlet reaches as a GeoJSON feature: a `Polygon` (or `MultiPolygon`
+/// when it has several outer rings) in the channels' coordinates (y north), rings closed,
+/// outer rings counter-clockwise and holes clockwise (RFC 7946, section 3.1.6).
+fn unreached_feature(part: &UnreachedPart, metres: f64, units: UnitSystem) -> Value {
+    // The network's frame runs y down the page: flipping y turns each ring round, so it is
+    // walked backwards to keep its orientation.
+    let ring = |corners: &[[f64; 2]]| -> Value {
+        let mut points: Vec<Value> = corners
+            .iter()
+            .rev()
+            .map(|corner| json!([corner[0], -corner[1]]))
+            .collect();
+        if let Some(first) = points.first().cloned() {
+            points.push(first);
+        }
+        Value::Array(points)
+    };
+    let polygons: Vec<Value> = part
+        .polygons
+        .iter()
+        .map(|polygon| {
+            let mut rings = vec![ring(polygon.outer.as_slice())];
+            rings.extend(polygon.holes.iter().map(|hole| ring(hole.as_slice())));
+            Value::Array(rings)
+        })
+        .collect();
+    let geometry = match polygons.as_slice() {
+        [one] => json!({ "type": "Polygon", "coordinates": one }),
+        _ => json!({ "type": "MultiPolygon", "coordinates": polygons }),
+    };
+    json!({
+        "type": "Feature",
+        "geometry": geometry,
+        "properties": {
+            "role": "unreached",
+            "note": "no outlet reaches this part of the site: add an outlet there or open a way past the obstacle",
+            "cells": part.cells,
+            "area": units.area_from_si(part.area * metres * metres),
+            "caution": DRAINAGE_CAUTION,
+        },
+    })
 }

@@ -16,6 +16,9 @@ impl Growth {
         let floor = (!segment && self.model.has_floor()).then(|| self.model.floor(&node_anchor));
         // A copy the loop's writes cannot touch, so its fields stay in registers.
         let model = self.model;
+        // With `keep_clear`, segments near blocked cells are walked (`meets_blocked`).
+        let check_clear = self.clear_checks(centre_cell);
+        let (node_x, node_y) = (node_anchor.x, node_anchor.y);
         for offset_index in 0..self.lattice.offsets.len() {
             let (dx, dy) = self.lattice.offsets[offset_index];
             let Some((cell, cell_column, cell_row)) =
@@ -35,20 +38,28 @@ impl Growth {
             }
             let (cx, cy) = self.lattice.position_at(cell, cell_column, cell_row);
             let ground = self.cell_ground_remembered(cell, cx, cy);
-            let mut best_cost = model.cost(cx, cy, ground, &node_anchor);
-            let mut best = Attachment {
-                target: node,
-                segment_parent: NONE,
-                along: 0.0,
-            };
+            let node_clear = !check_clear || !self.meets_blocked((cx, cy), (node_x, node_y));
+            let mut found = node_clear.then(|| {
+                let attachment = Attachment {
+                    target: node,
+                    segment_parent: NONE,
+                    along: 0.0,
+                };
+                (model.cost(cx, cy, ground, &node_anchor), attachment)
+            });
             if segment {
-                if let Some((cost, attachment)) = self.best_on_segment(cx, cy, ground, node) {
-                    if cost < best_cost {
-                        best_cost = cost;
-                        best = attachment;
+                if let Some((cost, attachment)) =
+                    self.best_on_segment(cx, cy, ground, node, check_clear)
+                {
+                    if found.is_none_or(|(best_cost, _)| cost < best_cost) {
+                        found = Some((cost, attachment));
                     }
                 }
             }
+            // Every way to the node passes over blocked ground: nothing is offered.
+            let Some((best_cost, best)) = found else {
+                continue;
+            };
             if state == FREE {
                 let slot = Slot {
                     cell: cell as u32,
@@ -118,12 +129,15 @@ impl Growth {
 
     /// Cheapest interior point of the segment `node -> parent` for a cell at `(cx, cy)`: the
     /// foot of the perpendicular, and the point that makes a 45 degree junction downstream.
+    /// With `check_clear`, points whose segment from the cell passes over a blocked cell are
+    /// passed over (`keep_clear`).
     pub(super) fn best_on_segment(
         &self,
         cx: f64,
         cy: f64,
         ground: f64,
         node: u32,
+        check_clear: bool,
     ) -> Option<(f64, Attachment)> {
         let index = node as usize;
         let parent = self.parent[index];
@@ -146,6 +160,9 @@ impl Growth {
                 continue;
             }
             let anchor = self.segment_anchor(node, along);
+            if check_clear && self.meets_blocked((cx, cy), (anchor.x, anchor.y)) {
+                continue;
+            }
             let cost = self.model.cost(cx, cy, ground, &anchor);
             if best.is_none_or(|(best_cost, _)| cost < best_cost) {
                 best = Some((
@@ -188,6 +205,8 @@ impl Growth {
                 continue;
             };
             let state = self.lattice.state[other];
+            // Nodes in `other` and their segments end within reach of it (as in `offer`).
+            let check_clear = self.clear_checks(other);
             let mut candidates = [NONE; 2];
             if state < FRONTIER_TAG {
                 candidates[0] = state;
@@ -198,22 +217,26 @@ impl Growth {
             for (kind, &first) in candidates.iter().enumerate() {
                 let mut node = first;
                 while node != NONE {
-                    let cost = if self.model.length_only {
-                        let index = node as usize;
-                        self.model.length_cost(cx, cy, self.x[index], self.y[index])
-                    } else {
-                        self.model.cost(cx, cy, ground, &self.node_anchor(node))
-                    };
-                    visit(
-                        cost,
-                        Attachment {
-                            target: node,
-                            segment_parent: NONE,
-                            along: 0.0,
-                        },
-                    );
+                    let index = node as usize;
+                    if !check_clear || !self.meets_blocked((cx, cy), (self.x[index], self.y[index]))
+                    {
+                        let cost = if self.model.length_only {
+                            self.model.length_cost(cx, cy, self.x[index], self.y[index])
+                        } else {
+                            self.model.cost(cx, cy, ground, &self.node_anchor(node))
+                        };
+                        visit(
+                            cost,
+                            Attachment {
+                                target: node,
+                                segment_parent: NONE,
+                                along: 0.0,
+                            },
+                        );
+                    }
                     if self.refined.run.attach_to_segments {
-                        if let Some((cost, attachment)) = self.best_on_segment(cx, cy, ground, node)
+                        if let Some((cost, attachment)) =
+                            self.best_on_segment(cx, cy, ground, node, check_clear)
                         {
                             visit(cost, attachment);
                         }
@@ -226,6 +249,30 @@ impl Growth {
                 }
             }
         }
+    }
+}
+
+// Keeping segments off blocked cells (`keep_clear`).
+impl Growth {
+    /// Whether segments from cells within reach of `cell` to a node in it (or to a point of
+    /// that node's segment) may pass over a blocked cell, and so must be walked.
+    #[inline]
+    pub(super) fn clear_checks(&self, cell: usize) -> bool {
+        self.blocked_cells
+            .as_ref()
+            .is_some_and(|cells| cells.near(cell))
+    }
+
+    /// Whether the straight segment from `from` to `to` (in cells) passes over a cell outside
+    /// the allowed region (`clearance::BlockedCells::segment_meets`); false without `keep_clear`.
+    pub(super) fn meets_blocked(&self, from: (f64, f64), to: (f64, f64)) -> bool {
+        let Some(cells) = &self.blocked_cells else {
+            return false;
+        };
+        let width = self.lattice.width();
+        cells.segment_meets(from, to, |x, y| {
+            self.lattice.state[y * width + x] == BLOCKED
+        })
     }
 }
 

@@ -92,6 +92,11 @@ impl Lattice {
         }
     }
 
+    /// Lattice columns.
+    pub fn width(&self) -> usize {
+        self.width
+    }
+
     pub fn cell_total(&self) -> usize {
         self.width * self.height
     }

@@ -8,6 +8,7 @@
 //! costs when the network has grown by `refresh`.
 
 mod attach;
+mod clearance;
 mod cost;
 mod frontier;
 mod joining;
@@ -25,6 +26,7 @@ use crate::network::{segments_from_parents, CellSet, Network, Node, NO_PARENT};
 use crate::params::{Joining, ParamError, Params};
 use crate::region::{allowed_cells, check_start, zone_cells};
 use crate::terrain::SpotSurface;
+use clearance::BlockedCells;
 use cost::{marginal, Anchor, CostModel};
 use frontier::{Attachment, Frontier, Slot, NONE};
 use lattice::{Lattice, BLOCKED, FREE, FRONTIER_TAG};
@@ -120,6 +122,8 @@ pub struct Growth {
     scratch_candidates: Vec<(f64, Attachment)>,
     /// Every segment by the buckets its bounding box touches (plane growth only).
     segment_grid: Option<SegmentGrid>,
+    /// The cells near blocked ones (`keep_clear` only, and only when some cell is blocked).
+    blocked_cells: Option<BlockedCells>,
     stopped: Option<StopReason>,
 }
 
@@ -184,6 +188,17 @@ impl Growth {
                 .run
                 .planar
                 .then(|| SegmentGrid::new(params.domain.width, params.domain.height)),
+            blocked_cells: (params.run.keep_clear && allowed.iter().any(|&ok| !ok)).then(|| {
+                // A segment offered from a node's cell ends within the search radius of it
+                // (a junction's segment, a cell further out at most): one more for rounding.
+                let margin = params.run.radius.floor() as usize + 1;
+                BlockedCells::new(
+                    params.domain.width as usize,
+                    params.domain.height as usize,
+                    margin,
+                    |cell| !allowed[cell],
+                )
+            }),
             stopped: None,
         };
         if params.run.attach_to_segments {

@@ -159,6 +159,13 @@ pub struct RunControl {
     /// parameters saved before the key existed (records and files read by serde).
     #[serde(default)]
     pub planar: bool,
+    /// Whether a new segment must stay off the cells outside the allowed region (obstacles,
+    /// outside the outline or mask): an attachment whose straight segment passes over such a
+    /// cell is not offered, so a channel goes round a narrow building instead of across it.
+    /// Default false; true for sites read from files and the drainage presets; false in
+    /// version-1 links and in parameters saved before the key existed.
+    #[serde(default)]
+    pub keep_clear: bool,
     /// Flows and transport costs are recomputed exactly whenever the network has grown by this
     /// fraction since the last refresh. Default 0.05; 0.001 ..= 1.
     pub refresh: f64,
@@ -519,6 +526,7 @@ fn blank() -> Params {
             radius: 0.0,
             attach_to_segments: false,
             planar: false,
+            keep_clear: false,
             refresh: 0.0,
             relax_junctions: 0,
             energy_sweeps: 0,

@@ -1,8 +1,9 @@
 //! Drainage sites brought in from a file: `read_site` reads a GeoJSON site (RFC 7946) into a
 //! `Site` (outline, obstacles, runoff zones, outlets, spot levels), `read_spot_levels_csv`
 //! reads spot levels from `x,y,z` lines, `Site::to_params` turns a site into run parameters,
-//! `cut_off_parts` finds the cells that cannot reach any outlet, and `node_area_runoff` gives
-//! each node of a grown network its drained area and runoff coefficient.
+//! `unreached_parts` finds the parts of a grown layout that no outlet reaches, and
+//! `node_area_runoff` gives each node of a grown network its drained area and runoff
+//! coefficient.
 //!
 //! The site file is a `FeatureCollection` whose features carry `properties.role`:
 //! - `outline` (Polygon, exactly one): the site boundary;
@@ -27,6 +28,7 @@ mod levels_csv;
 mod reader;
 mod runoff;
 mod to_params;
+mod unreached;
 mod writer;
 
 pub use geotiff::{read_geotiff, ElevationRaster};
@@ -37,7 +39,8 @@ pub use ground_flow::{
 pub use levels_csv::read_spot_levels_csv;
 pub use reader::read_site;
 pub use runoff::{node_area_runoff, NodeRunoff};
-pub use to_params::{cut_off_parts, CutOffPart, Terrain};
+pub use to_params::Terrain;
+pub use unreached::{unreached_parts, UnreachedPart, UnreachedPolygon};
 
 /// Most positions in one ring: the self-crossing check compares every pair of edges.
 pub const MAX_RING_POSITIONS: usize = 10_000;
@@ -286,13 +289,6 @@ pub enum SiteError {
         /// What is wrong.
         problem: String,
     },
-    /// Parts of the site cannot reach any outlet: an obstacle or the outline cuts them off.
-    CutOff {
-        /// Each cut-off part, in site coordinates.
-        parts: Vec<CutOffPart>,
-        /// The site's length unit.
-        units: String,
-    },
 }
 
 impl std::fmt::Display for SiteError {
@@ -388,22 +384,6 @@ impl std::fmt::Display for SiteError {
             SiteError::Params { problem } => write!(f, "site parameters: {problem}"),
             SiteError::Svg { element, problem } => write!(f, "site plan (SVG) {element}: {problem}"),
             SiteError::SvgScale { problem } => write!(f, "site plan (SVG) scale: {problem}"),
-            SiteError::CutOff { parts, units } => {
-                let cells: usize = parts.iter().map(|part| part.cells).sum();
-                write!(
-                    f,
-                    "{cells} cell(s) of the site cannot drain to any outlet, in {} part(s):",
-                    parts.len()
-                )?;
-                for part in parts {
-                    write!(
-                        f,
-                        " {} cell(s) ({} {units}²) around ({:.2}, {:.2});",
-                        part.cells, part.area, part.centre[0], part.centre[1]
-                    )?;
-                }
-                write!(f, " add an outlet there or open a way past the obstacle")
-            }
         }
     }
 }

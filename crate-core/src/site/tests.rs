@@ -296,56 +296,44 @@ fn ground_in_no_zone_needs_the_sites_coefficient() {
     );
 }
 
-/// An obstacle wall across the site cuts its east part off from the only outlet: `to_params`
-/// refuses it naming the part. The wall runs x 7..13 m over the full height of a 20 m x 10 m
-/// site on 1 m cells, wider than the joining distance (4 cells), so no cell can join across
-/// it; the cut-off part is columns 13..19, 7 x 10 = 70 cells (counted by hand), centred at
-/// (16.5, 5) m in site coordinates. A 2 m wall would not cut anything off: growth joins cells
-/// up to 4 cells apart.
+/// An obstacle wall across the site cuts its east part off from the only outlet: the site
+/// still converts and grows, and the east part is listed as unreached. The wall runs over the
+/// full height of a 20 m x 10 m site on 1 m cells; the cut-off part is counted by hand: a wall
+/// x 7..13 m leaves columns 13..19, 7 x 10 = 70 cells, centred at (16.5, 5) m in site
+/// coordinates. A 2 m wall (x 9..11) cuts off columns 11..19, 9 x 10 = 90 cells: growth joins
+/// cells up to 4 cells apart, but no segment may pass over the wall (`keep_clear`).
 #[test]
-fn cells_cut_off_from_every_outlet_are_reported() {
-    let bytes = collection(vec![
-        polygon_feature("outline", &rectangle(0.0, 0.0, 20.0, 10.0), json!({})),
-        polygon_feature(
-            "obstacle",
-            &rectangle(7.0, -1.0, 13.0, 11.0),
-            json!({ "name": "wall" }),
-        ),
-        point_feature("outlet", [2.0, 0.0], json!({})),
-    ]);
-    let site = read_site(&bytes).expect("reads");
-    let error = site
-        .to_params(
-            1.0,
-            &Terrain::Grade {
-                east: 0.0,
-                north: 0.0,
-            },
-        )
-        .unwrap_err();
-    let SiteError::CutOff { parts, .. } = &error else {
-        panic!("not a cut-off: {error}");
-    };
-    assert_eq!(parts.len(), 1);
-    assert_eq!(parts[0].cells, 70);
-    assert_eq!(parts[0].centre, [16.5, 5.0]);
-    assert!(error.to_string().contains("70 cell(s)"), "{error}");
-    let narrow = collection(vec![
-        polygon_feature("outline", &rectangle(0.0, 0.0, 20.0, 10.0), json!({})),
-        polygon_feature("obstacle", &rectangle(9.0, -1.0, 11.0, 11.0), json!({})),
-        point_feature("outlet", [2.0, 0.0], json!({})),
-    ]);
-    let site = read_site(&narrow).expect("reads");
-    let params = site
-        .to_params(
-            1.0,
-            &Terrain::Grade {
-                east: 0.0,
-                north: 0.0,
-            },
-        )
-        .expect("a 2 m wall cuts nothing off");
-    assert!(cut_off_parts(&params).is_empty());
+fn cells_cut_off_from_every_outlet_are_left_unreached_and_listed() {
+    for (wall, cells, centre) in [
+        ((7.0, 13.0), 70, [16.5, 5.0]),
+        ((9.0, 11.0), 90, [15.5, 5.0]),
+    ] {
+        let bytes = collection(vec![
+            polygon_feature("outline", &rectangle(0.0, 0.0, 20.0, 10.0), json!({})),
+            polygon_feature(
+                "obstacle",
+                &rectangle(wall.0, -1.0, wall.1, 11.0),
+                json!({ "name": "wall" }),
+            ),
+            point_feature("outlet", [2.0, 0.0], json!({})),
+        ]);
+        let site = read_site(&bytes).expect("reads");
+        let params = site
+            .to_params(
+                1.0,
+                &Terrain::Grade {
+                    east: 0.0,
+                    north: 0.0,
+                },
+            )
+            .expect("a site with a part cut off still converts");
+        let network = grow_full(&params);
+        let parts = unreached_parts(&params, &network);
+        assert_eq!(parts.len(), 1, "wall {wall:?}");
+        assert_eq!(parts[0].cells, cells, "wall {wall:?}");
+        assert_eq!(parts[0].area, cells as f64);
+        assert_eq!(site.network_to_site(parts[0].centre), centre);
+    }
 }
 
 /// The drained area at each outlet: every node's own area added down its tree (the forest

@@ -1,8 +1,5 @@
 //! `Site::to_params`: a site as run parameters (lattice from the outline's bounding box,
-//! outline, obstacles and zones in cells, roots from outlets, spot levels), and
-//! `cut_off_parts`: the allowed cells that no outlet can reach.
-
-use std::collections::VecDeque;
+//! outline, obstacles and zones in cells, roots from outlets, spot levels).
 
 use super::geometry::{bounds, nearest_edge, signed_area};
 use super::{feature_place, ElevationRaster, Site, SiteError, SpotLevel};
@@ -35,23 +32,6 @@ pub enum Terrain {
     },
 }
 
-/// A part of a site that cannot drain to any outlet: allowed cells that no chain of cells
-/// within the joining distance (`radius`) links to an outlet's cell.
-#[derive(Clone, Debug, PartialEq)]
-pub struct CutOffPart {
-    /// How many cells.
-    pub cells: usize,
-    /// Their area, in the run's length unit squared.
-    pub area: f64,
-    /// The centre of their bounding box: in the network's frame from `cut_off_parts`
-    /// (physical units, y down the page), in the site's coordinates in `SiteError::CutOff`.
-    pub centre: [f64; 2],
-    /// Lowest and highest column of the part.
-    pub columns: [u32; 2],
-    /// Lowest and highest row of the part.
-    pub rows: [u32; 2],
-}
-
 /// Drained area at which a site's channels begin, m² (about one yard inlet's catchment;
 /// common practice, no source): the `vein_area` of a site's parameters.
 pub const CHANNEL_HEAD_AREA_M2: f64 = 25.0;
@@ -72,9 +52,10 @@ impl Site {
     /// the outline's bounding box, the outline, obstacles and runoff zones in cells, a root on
     /// the allowed cell nearest each outlet with its outflow out through the nearest edge of
     /// the outline (an outlet within two cells of it) or else downhill, the ground from
-    /// `terrain`, and drainage costs (those of the `drainage-site` preset). The budget is every
-    /// allowed cell. Fails when the parameters would not validate or when parts of the site
-    /// cannot reach any outlet (`SiteError::CutOff`, with each part's place).
+    /// `terrain`, and drainage costs (those of the `drainage-site` preset), with segments kept
+    /// off the obstacles (`keep_clear`). The budget is every allowed cell. Fails when the
+    /// parameters would not validate. Parts of the site that no outlet can reach are not
+    /// refused: the grown layout leaves them unreached, and `unreached_parts` lists them.
     pub fn to_params(&self, cell_size: f64, terrain: &Terrain) -> Result<Params, SiteError> {
         let problem = |problem: String| SiteError::Params { problem };
         if !(cell_size.is_finite() && cell_size > 0.0) {
@@ -203,6 +184,8 @@ impl Site {
                 radius: 4.0,
                 joining: Joining::Weighted,
                 temperature: 0.5,
+                // Channels go round buildings and areas kept clear, never across them.
+                keep_clear: true,
                 ..RunControl::default()
             },
             widths: Widths {
@@ -231,19 +214,6 @@ impl Site {
         params
             .validate()
             .map_err(|error| problem(error.to_string()))?;
-        let parts = cut_off_parts(&params);
-        if !parts.is_empty() {
-            return Err(SiteError::CutOff {
-                parts: parts
-                    .into_iter()
-                    .map(|part| CutOffPart {
-                        centre: [low[0] + part.centre[0], high[1] - part.centre[1]],
-                        ..part
-                    })
-                    .collect(),
-                units: self.units.clone(),
-            });
-        }
         Ok(params)
     }
 
@@ -383,87 +353,4 @@ impl Site {
         }
         Ok(roots)
     }
-}
-
-/// The allowed cells of validated `params` that no root can reach: a cell reaches a root when
-/// a chain of allowed cells, each within the joining distance (`radius`) of the next, links it
-/// to the root's cell (growth adds a cell only within that distance of the network). Each
-/// connected part is listed with its size and place, largest first. Empty when every allowed
-/// cell can drain to some root.
-pub fn cut_off_parts(params: &Params) -> Vec<CutOffPart> {
-    let width = params.domain.width as usize;
-    let height = params.domain.height as usize;
-    let allowed = allowed_cells(params);
-    let reach = params.run.radius.floor() as i64;
-    let squared = params.run.radius * params.run.radius;
-    let mut offsets = Vec::new();
-    for dy in -reach..=reach {
-        for dx in -reach..=reach {
-            if (dx, dy) != (0, 0) && ((dx * dx + dy * dy) as f64) <= squared {
-                offsets.push((dx, dy));
-            }
-        }
-    }
-    let mut seen = vec![false; width * height];
-    let spread = |starts: &[usize], seen: &mut Vec<bool>| -> Vec<usize> {
-        let mut queue: VecDeque<usize> = VecDeque::new();
-        let mut found = Vec::new();
-        for &start in starts {
-            if allowed[start] && !seen[start] {
-                seen[start] = true;
-                queue.push_back(start);
-            }
-        }
-        while let Some(cell) = queue.pop_front() {
-            found.push(cell);
-            let (column, row) = ((cell % width) as i64, (cell / width) as i64);
-            for &(dx, dy) in &offsets {
-                let (x, y) = (column + dx, row + dy);
-                if x < 0 || y < 0 || x >= width as i64 || y >= height as i64 {
-                    continue;
-                }
-                let next = y as usize * width + x as usize;
-                if allowed[next] && !seen[next] {
-                    seen[next] = true;
-                    queue.push_back(next);
-                }
-            }
-        }
-        found
-    };
-    let roots: Vec<usize> = params
-        .domain
-        .roots
-        .iter()
-        .map(|root| root.y as usize * width + root.x as usize)
-        .filter(|&cell| cell < width * height)
-        .collect();
-    spread(&roots, &mut seen);
-    let size = params.domain.cell_size;
-    let mut parts = Vec::new();
-    for cell in 0..width * height {
-        if !allowed[cell] || seen[cell] {
-            continue;
-        }
-        let found = spread(&[cell], &mut seen);
-        let mut columns = [u32::MAX, 0];
-        let mut rows = [u32::MAX, 0];
-        for &cell in &found {
-            let (column, row) = ((cell % width) as u32, (cell / width) as u32);
-            columns = [columns[0].min(column), columns[1].max(column)];
-            rows = [rows[0].min(row), rows[1].max(row)];
-        }
-        parts.push(CutOffPart {
-            cells: found.len(),
-            area: found.len() as f64 * size * size,
-            centre: [
-                (columns[0] + columns[1] + 1) as f64 / 2.0 * size,
-                (rows[0] + rows[1] + 1) as f64 / 2.0 * size,
-            ],
-            columns,
-            rows,
-        });
-    }
-    parts.sort_by_key(|part| std::cmp::Reverse(part.cells));
-    parts
 }
