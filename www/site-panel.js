@@ -19,8 +19,11 @@ export function startSitePanel({ session, state, view }) {
   return panel;
 }
 
-// Colours of what the panel lays over the layout's picture: the parts no outlet reaches
-// (the plan's warning orange) and the natural flow on the bare ground (a faint blue-grey).
+// Colours of what the panel lays over the layout's picture: the areas kept clear (grey, as
+// on the sketch), the parts no outlet reaches (the plan's warning orange) and the natural flow
+// on the bare ground (a faint blue-grey).
+const KEPT_CLEAR_FILL = 'rgba(150, 150, 145, 0.55)';
+const KEPT_CLEAR_INK = '#55554f';
 const UNREACHED_FILL = 'rgba(251, 227, 200, 0.75)';
 const UNREACHED_INK = '#b35900';
 const GROUND_FLOW_INK = 'rgba(70, 110, 140, 0.55)';
@@ -36,6 +39,10 @@ class SitePanel {
     // {simulation, lines}.
     this.unreached = null;
     this.groundFlow = null;
+    // The run's areas kept clear, drawn under the others whenever a site is shown:
+    // {simulation, text, list}.
+    this.keptClear = null;
+    this.view.overlays.set('kept-clear', (ctx, place) => this.drawKeptClear(ctx, place));
     this.core = session.core;
     this.sized = null;
     this.siteText = null;
@@ -260,6 +267,45 @@ class SitePanel {
   }
 
   // ---- over the layout's picture ---------------------------------------------------------
+
+  /// The site's areas kept clear (buildings, trees, paths), grey and named, so the layout is
+  /// read against them while it grows and after.
+  drawKeptClear(ctx, { scale, offsetX, offsetY, ratio }) {
+    const simulation = this.state.simulation;
+    if (!simulation || !this.state.frame?.site) return;
+    const text = this.siteTextFor();
+    if (this.keptClear?.simulation !== simulation || this.keptClear.text !== text) {
+      this.keptClear = { simulation, text, list: JSON.parse(simulation.obstacles_json(text)) };
+    }
+    ctx.fillStyle = KEPT_CLEAR_FILL;
+    ctx.strokeStyle = KEPT_CLEAR_INK;
+    ctx.lineWidth = 1 * ratio;
+    for (const { ring } of this.keptClear.list) {
+      ctx.beginPath();
+      for (let k = 0; k < ring.length; k += 2) {
+        const x = ring[k] * scale + offsetX;
+        const y = ring[k + 1] * scale + offsetY;
+        if (k === 0) ctx.moveTo(x, y); else ctx.lineTo(x, y);
+      }
+      ctx.closePath();
+      ctx.fill();
+      ctx.stroke();
+    }
+    ctx.font = `${11 * ratio}px system-ui, sans-serif`;
+    ctx.textAlign = 'center';
+    ctx.textBaseline = 'middle';
+    ctx.fillStyle = '#222';
+    for (const { ring, name } of this.keptClear.list) {
+      if (!name || ring.length < 6) continue;
+      let [sx, sy] = [0, 0];
+      for (let k = 0; k < ring.length; k += 2) {
+        sx += ring[k];
+        sy += ring[k + 1];
+      }
+      const n = ring.length / 2;
+      ctx.fillText(name, (sx / n) * scale + offsetX, (sy / n) * scale + offsetY);
+    }
+  }
 
   /// The parts of the finished site no outlet reaches: tinted, hatched and labelled with
   /// their area on the picture, and the core's sentence listing them in the panel.

@@ -457,6 +457,13 @@ impl Simulation {
         ))
     }
 
+    /// The site's areas kept clear, to draw under the layout (`site::obstacles_json`):
+    /// rings in the network's frame and names from `site_text` (the run's site file, or
+    /// empty).
+    pub fn obstacles_json(&self, site_text: &str) -> String {
+        crate::site::obstacles_json(&self.params, site_text)
+    }
+
     /// Natural flow on the site's bare ground: `x0, y0, x1, y1, class` per cell that passes
     /// its water on, in the network's frame (empty on flat ground or off a site).
     pub fn ground_flow_lines(&self) -> js_sys::Float32Array {

@@ -250,6 +250,42 @@ pub(crate) fn unreached_json(
     .to_string()
 }
 
+/// The site's areas kept clear (buildings, trees, paths) for the page's canvas, JSON: a list
+/// of `{ring, name}`, `ring` being `x, y` pairs in the network's frame (the run's obstacles,
+/// given in cells, times the cell size) and `name` the site file's name for it, or empty.
+/// Empty off a site. The names come from `site_text` (the file the run came from, or empty)
+/// when it lists as many obstacles as the run has, which it does in file order.
+pub(crate) fn obstacles_json(params: &Params, site_text: &str) -> String {
+    if !params.is_site() {
+        return "[]".to_string();
+    }
+    let size = params.domain.cell_size;
+    let names: Vec<String> = site_file(site_text)
+        .filter(|site| site.obstacles.len() == params.domain.obstacles.len())
+        .map(|site| {
+            site.obstacles
+                .iter()
+                .map(|obstacle| obstacle.name.clone().unwrap_or_default())
+                .collect()
+        })
+        .unwrap_or_default();
+    let shown: Vec<_> = params
+        .domain
+        .obstacles
+        .iter()
+        .enumerate()
+        .map(|(index, ring)| {
+            let ring: Vec<f64> = ring
+                .iter()
+                .flat_map(|&[x, y]| [x * size, y * size])
+                .collect();
+            let name = names.get(index).cloned().unwrap_or_default();
+            json!({ "ring": ring, "name": name })
+        })
+        .collect();
+    serde_json::Value::from(shown).to_string()
+}
+
 /// Natural flow on a site's bare ground for the page's canvas: `{lines, flat, text}`, `lines`
 /// being `x0, y0, x1, y1, class` per cell that passes its water on (`site_overlay`), in the
 /// network's frame; none on flat ground, which `text` then says.

@@ -222,6 +222,20 @@ test('a corner cut off by a wall is drawn, labelled and exported; the ground flo
   const [r, g, b] = pixel;
   assert.ok(r > g && g > b && r - b > 30, `an orange pixel inside the part: ${pixel}`);
 
+  // The wall itself is drawn grey under the layout, named from the site file: at (13.5, 9.5) m
+  // of the site, inside the wall's northern leg, i.e. (13.5, 2.5) m down from the top-left.
+  const wallPixel = await page.evaluate(() => {
+    const { view } = window.ramulusPage;
+    const px = Math.round(13.5 * view.scale + view.offsetX);
+    const py = Math.round(2.5 * view.scale + view.offsetY);
+    return [...view.canvas.getContext('2d').getImageData(px, py, 1, 1).data];
+  });
+  const [wr, wg, wb] = wallPixel;
+  assert.ok(Math.abs(wr - wg) < 16 && Math.abs(wg - wb) < 24 && wr < 230, `a grey pixel inside the wall: ${wallPixel}`);
+  const keptClear = JSON.parse(await page.evaluate(
+    () => window.ramulusPage.state.simulation.obstacles_json(window.ramulusSite.siteTextFor())));
+  assert.deepEqual(keptClear.map((area) => area.name), ['wall']);
+
   // The channels GeoJSON carries it with its own role; the plan hatches and labels it.
   const form = await page.evaluate(() => window.ramulusSite.rulesText());
   const geojson = JSON.parse(await page.evaluate((rules) => window.ramulusPage.state.simulation.drainage_geojson(rules), form));
