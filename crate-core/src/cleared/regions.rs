@@ -1,50 +1,64 @@
-//! Binary regions of an image: the largest 4-connected component (`largest_component`), its
+//! Binary regions of an image: 4-connected parts (`four_connected_part`), the largest of them
+//! (`largest_component`), its
 //! holes filled (`fill_holes`), and its outline as a ring along pixel edges
 //! (`outline_ring`), whose shoelace area is exactly its pixel count.
 
 /// Keeps only the largest 4-connected component of `on` (the first found, in row-major
 /// order, among equal sizes). Returns the mask and its pixel count (0 when nothing is on).
 pub fn largest_component(on: &[bool], width: usize, height: usize) -> (Vec<bool>, usize) {
-    let mut label = vec![0u32; on.len()];
-    let mut stack = Vec::new();
-    let mut best = (0u32, 0usize);
-    let mut next = 0u32;
+    let mut seen = vec![false; on.len()];
+    let mut best: Vec<usize> = Vec::new();
     for start in 0..on.len() {
-        if !on[start] || label[start] != 0 {
+        if !on[start] || seen[start] {
             continue;
         }
-        next += 1;
-        label[start] = next;
-        stack.push(start);
-        let mut size = 0;
-        while let Some(index) = stack.pop() {
-            size += 1;
-            let (x, y) = (index % width, index / width);
-            let mut visit = |neighbour: usize| {
-                if on[neighbour] && label[neighbour] == 0 {
-                    label[neighbour] = next;
-                    stack.push(neighbour);
-                }
-            };
-            if x > 0 {
-                visit(index - 1);
-            }
-            if x + 1 < width {
-                visit(index + 1);
-            }
-            if y > 0 {
-                visit(index - width);
-            }
-            if y + 1 < height {
-                visit(index + width);
-            }
-        }
-        if size > best.1 {
-            best = (next, size);
+        let part = four_connected_part(start, on, &mut seen, width, height);
+        if part.len() > best.len() {
+            best = part;
         }
     }
-    let mask = label.iter().map(|&l| l != 0 && l == best.0).collect();
-    (mask, best.1)
+    let mut mask = vec![false; on.len()];
+    for &index in &best {
+        mask[index] = true;
+    }
+    (mask, best.len())
+}
+
+/// The 4-connected part of `on` cells holding `start` (which must be on and not yet in
+/// `seen`), in breadth-first order from `start`, marking its cells in `seen`.
+pub fn four_connected_part(
+    start: usize,
+    on: &[bool],
+    seen: &mut [bool],
+    width: usize,
+    height: usize,
+) -> Vec<usize> {
+    let mut members = Vec::new();
+    let mut queue = std::collections::VecDeque::from([start]);
+    seen[start] = true;
+    while let Some(cell) = queue.pop_front() {
+        members.push(cell);
+        let (column, row) = (cell % width, cell / width);
+        let mut visit = |next: usize| {
+            if on[next] && !seen[next] {
+                seen[next] = true;
+                queue.push_back(next);
+            }
+        };
+        if column > 0 {
+            visit(cell - 1);
+        }
+        if column + 1 < width {
+            visit(cell + 1);
+        }
+        if row > 0 {
+            visit(cell - width);
+        }
+        if row + 1 < height {
+            visit(cell + width);
+        }
+    }
+    members
 }
 
 /// Fills the holes of `on`: every pixel that is off and cannot reach the image's border

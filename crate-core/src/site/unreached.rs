@@ -14,7 +14,9 @@
 //! outer ring runs counter-clockwise (positive area) and a hole clockwise (negative), so the
 //! sum of the signed areas is the part's cell count times the cell's area.
 
-use std::collections::{HashMap, VecDeque};
+use std::collections::HashMap;
+
+use crate::cleared::regions::four_connected_part;
 
 use crate::network::Network;
 use crate::params::Params;
@@ -89,48 +91,12 @@ pub fn unreached_parts(params: &Params, network: &Network) -> Vec<UnreachedPart>
         if !open[start] || seen[start] {
             continue;
         }
-        let members = flood(start, &open, &mut seen, width, height);
+        let members = four_connected_part(start, &open, &mut seen, width, height);
         parts.push(describe(&members, width, size));
     }
     // A stable sort: equal parts keep the order of their first cells.
     parts.sort_by_key(|part| std::cmp::Reverse(part.cells));
     parts
-}
-
-/// The 4-connected part of `open` cells holding `start`, marking them in `seen`.
-fn flood(
-    start: usize,
-    open: &[bool],
-    seen: &mut [bool],
-    width: usize,
-    height: usize,
-) -> Vec<usize> {
-    let mut members = Vec::new();
-    let mut queue = VecDeque::from([start]);
-    seen[start] = true;
-    while let Some(cell) = queue.pop_front() {
-        members.push(cell);
-        let (column, row) = (cell % width, cell / width);
-        let mut visit = |next: usize| {
-            if open[next] && !seen[next] {
-                seen[next] = true;
-                queue.push_back(next);
-            }
-        };
-        if column > 0 {
-            visit(cell - 1);
-        }
-        if column + 1 < width {
-            visit(cell + 1);
-        }
-        if row > 0 {
-            visit(cell - width);
-        }
-        if row + 1 < height {
-            visit(cell + width);
-        }
-    }
-    members
 }
 
 fn describe(members: &[usize], width: usize, size: f64) -> UnreachedPart {
