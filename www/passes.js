@@ -1,11 +1,13 @@
 // The passes after growth (channel energy sweeps on a site, junction relaxation and loops on a
 // leaf), run a slice at a time once growth stops, so the page keeps painting between slices;
-// a Stop control keeps the network as the last whole sweep left it. The status line and the
-// figures come from Rust (`Simulation::reshape_step`); this module only schedules the slices
-// and lists the per-sweep figures.
+// sweeps run in parts, so a Stop control answers within a slice and keeps the network as the
+// last whole sweep left it. The status line and the figures come from Rust
+// (`Simulation::reshape_step`); this module only schedules the slices and lists the per-sweep
+// figures.
 
-// Milliseconds of sweeping per slice: a slice always runs at least one whole sweep, so on a
-// large run a slice is one sweep (common practice for keeping a page responsive, no source).
+// Milliseconds of sweeping per slice: a slice runs parts of sweeps (a few hundred nodes or
+// junctions each, at least one part) until this has passed, so a slice ends within about one
+// part after it (common practice for keeping a page responsive, no source).
 const SLICE_BUDGET_MS = 40;
 
 const byId = (id) => document.getElementById(id);
@@ -55,7 +57,7 @@ export class AfterGrowth {
     requestAnimationFrame(() => setTimeout(slice, 0));
   }
 
-  /// Stops after the last whole sweep; the next slice ends the passes.
+  /// Stops the sweeps (a sweep stopped midway is taken back); the next slice ends the passes.
   stop() {
     if (!this.simulation) return;
     this.show(JSON.parse(this.simulation.reshape_stop()));

@@ -101,9 +101,17 @@ pub fn lower_energy(
 
 /// The optimisation a sweep at a time (`lower_energy` runs it in one go): the state one sweep
 /// leaves for the next, so a caller can show progress between sweeps or stop after any whole
-/// sweep; stopped after `k` sweeps, the result is that of `lower_energy` with `k` sweeps.
+/// sweep; stopped after `k` sweeps, the result is that of `lower_energy` with `k` sweeps. A
+/// sweep may also run in parts (`advance`), and a part-run sweep can be taken back
+/// (`take_back_part`), so a caller can stop within a sweep and keep the last whole one.
 pub struct EnergyDescent {
     parent: Vec<u32>,
+    /// The next node of `visit` the sweep in progress takes (0 between sweeps).
+    cursor: usize,
+    /// The sweep in progress so far.
+    part: EnergySweep,
+    /// Every move of the sweep in progress, as (node, its downstream node before the move).
+    undo: Vec<(u32, u32)>,
     flow: Vec<f64>,
     weight: Vec<f64>,
     nodes: Option<NodeGrid>,
@@ -149,6 +157,9 @@ impl EnergyDescent {
             visit: topology.order.iter().rev().copied().collect(),
             walk: Walk::new(count),
             candidates: Vec::new(),
+            cursor: 0,
+            part: EnergySweep::default(),
+            undo: Vec::new(),
             parent,
             flow,
             nodes,
@@ -175,24 +186,34 @@ impl EnergyDescent {
         &self.report
     }
 
-    /// Runs one sweep (nothing once `done`); returns its outcome, `None` when none ran.
+    /// Runs one sweep, or the rest of a part-run one (nothing once `done`); returns its
+    /// outcome, `None` when none ran.
     pub fn sweep(&mut self, network: &Network) -> Option<EnergySweep> {
+        self.advance(network, usize::MAX)
+    }
+
+    /// Takes up to `nodes` more nodes of the sweep in progress (starting one when none is);
+    /// returns the sweep's outcome when it ended in this call, else `None`. The nodes are taken
+    /// in the same order and with the same state as a whole `sweep` takes them, so any split
+    /// of a sweep into parts gives the same result, bit for bit.
+    pub fn advance(&mut self, network: &Network, nodes: usize) -> Option<EnergySweep> {
         if self.done {
             return None;
         }
-        let (Some(nodes), Some(grid)) = (&self.nodes, &mut self.grid) else {
+        let (Some(grid_nodes), Some(grid)) = (&self.nodes, &mut self.grid) else {
             self.done = true;
             return None;
         };
-        let mut sweep = EnergySweep::default();
-        for &n in &self.visit {
-            if self.parent[n as usize] == NO_PARENT {
+        let end = self.cursor.saturating_add(nodes).min(self.visit.len());
+        for &n in &self.visit[self.cursor..end] {
+            let before = self.parent[n as usize];
+            if before == NO_PARENT {
                 continue;
             }
             let energy = self.report.energy_after.max(f64::MIN_POSITIVE);
             match move_one(
                 network,
-                nodes,
+                grid_nodes,
                 grid,
                 &mut self.parent,
                 &mut self.flow,
@@ -203,13 +224,21 @@ impl EnergyDescent {
                 MIN_DROP * energy,
             ) {
                 Outcome::Moved(drop) => {
-                    sweep.moves += 1;
+                    self.part.moves += 1;
                     self.report.energy_after -= drop;
+                    self.undo.push((n, before));
                 }
-                Outcome::Blocked => sweep.blocked += 1,
+                Outcome::Blocked => self.part.blocked += 1,
                 Outcome::Stays => {}
             }
         }
+        self.cursor = end;
+        if self.cursor < self.visit.len() {
+            return None;
+        }
+        let mut sweep = std::mem::take(&mut self.part);
+        self.cursor = 0;
+        self.undo.clear();
         // Incremental flows drift by rounding: recompute them, and `E`, from scratch.
         self.flow = flows(&self.parent, &self.weight);
         sweep.energy = energy_of(network, &self.parent, &self.flow);
@@ -217,6 +246,34 @@ impl EnergyDescent {
         self.report.sweeps.push(sweep);
         self.done = sweep.moves == 0 || self.report.sweeps.len() >= self.sweeps as usize;
         Some(sweep)
+    }
+
+    /// How far the sweep in progress has gone: (nodes taken, nodes a sweep takes, nodes
+    /// re-pointed so far); (0, n, 0) between sweeps.
+    pub fn part_done(&self) -> (usize, usize, usize) {
+        (self.cursor, self.visit.len(), self.part.moves)
+    }
+
+    /// Takes back the part-run sweep (nothing when none is part-run): every node it re-pointed
+    /// drains where it did after the last whole sweep, and the report is that sweep's. The
+    /// descent ends here (its search grid still holds the taken-back moves), so `into_result`
+    /// gives the result of `lower_energy` with the whole sweeps run.
+    pub fn take_back_part(&mut self) {
+        if self.cursor == 0 {
+            return;
+        }
+        for &(node, before) in self.undo.iter().rev() {
+            self.parent[node as usize] = before;
+        }
+        self.undo.clear();
+        self.cursor = 0;
+        self.part = EnergySweep::default();
+        self.report.energy_after = self
+            .report
+            .sweeps
+            .last()
+            .map_or(self.report.energy_before, |sweep| sweep.energy);
+        self.done = true;
     }
 
     /// The new downstream node of every node and the report, as `lower_energy` returns them.

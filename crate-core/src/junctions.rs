@@ -89,10 +89,18 @@ pub fn relax_junctions(
 
 /// The relaxation a sweep at a time (`relax_junctions` runs it in one go): the state one sweep
 /// leaves for the next, so a caller can show progress between sweeps or stop after any whole
-/// sweep; stopped after `k` sweeps, the network is the one `relax_junctions` gives with `k`.
+/// sweep; stopped after `k` sweeps, the network is the one `relax_junctions` gives with `k`. A
+/// sweep may also run in parts (`advance`), and a part-run sweep can be taken back
+/// (`take_back_part`), so a caller can stop within a sweep and keep the last whole one.
 pub struct JunctionRelaxing {
     weight: Vec<f64>,
     junctions: Vec<u32>,
+    /// The next junction the sweep in progress takes (0 between sweeps).
+    cursor: usize,
+    /// Moves kept and refused so far in the sweep in progress.
+    part: (usize, usize),
+    /// Every move of the sweep in progress, as (junction, its position before the move).
+    undo: Vec<(u32, (f64, f64))>,
     index: Option<SegmentGrid>,
     neighbours: Vec<Neighbour>,
     cost: f64,
@@ -137,6 +145,9 @@ impl JunctionRelaxing {
             index: (!idle).then(|| SegmentGrid::new(network, topology)),
             weight,
             junctions,
+            cursor: 0,
+            part: (0, 0),
+            undo: Vec::new(),
             neighbours: Vec::new(),
             cost: cost_before,
             sweeps,
@@ -155,8 +166,22 @@ impl JunctionRelaxing {
         self.report
     }
 
-    /// Runs one sweep (nothing once `done`); returns the cost after it, `None` when none ran.
+    /// Runs one sweep, or the rest of a part-run one (nothing once `done`); returns the cost
+    /// after it, `None` when none ran.
     pub fn sweep(&mut self, network: &mut Network, topology: &Topology) -> Option<f64> {
+        self.advance(network, topology, usize::MAX)
+    }
+
+    /// Takes up to `junctions` more junctions of the sweep in progress (starting one when none
+    /// is); returns the cost after the sweep when it ended in this call, else `None`. The
+    /// junctions are taken in the same order and state as a whole `sweep` takes them, so any
+    /// split of a sweep into parts moves them the same, bit for bit.
+    pub fn advance(
+        &mut self,
+        network: &mut Network,
+        topology: &Topology,
+        junctions: usize,
+    ) -> Option<f64> {
         if self.done {
             return None;
         }
@@ -164,8 +189,13 @@ impl JunctionRelaxing {
             self.done = true;
             return None;
         };
-        self.report.sweeps += 1;
-        for &junction in &self.junctions {
+        let end = self
+            .cursor
+            .saturating_add(junctions)
+            .min(self.junctions.len());
+        for &junction in &self.junctions[self.cursor..end] {
+            let node = &network.nodes[junction as usize];
+            let before = (node.x, node.y);
             match relax_one(
                 network,
                 topology,
@@ -174,17 +204,54 @@ impl JunctionRelaxing {
                 junction,
                 &mut self.neighbours,
             ) {
-                Move::Kept => self.report.moves += 1,
-                Move::Refused => self.report.refused += 1,
+                Move::Kept => {
+                    self.part.0 += 1;
+                    self.undo.push((junction, before));
+                }
+                Move::Refused => self.part.1 += 1,
                 Move::None => {}
             }
         }
+        self.cursor = end;
+        if self.cursor < self.junctions.len() {
+            return None;
+        }
+        self.report.sweeps += 1;
+        self.report.moves += self.part.0;
+        self.report.refused += self.part.1;
+        self.part = (0, 0);
+        self.cursor = 0;
+        self.undo.clear();
         let after = total_cost(network, topology, &self.weight);
         let settled = self.cost - after <= SETTLED * self.cost;
         self.cost = after;
         self.report.cost_after = after;
         self.done = settled || self.report.sweeps >= self.sweeps;
         Some(after)
+    }
+
+    /// How far the sweep in progress has gone: (junctions taken, junctions a sweep takes,
+    /// junctions moved so far); (0, n, 0) between sweeps.
+    pub fn part_done(&self) -> (usize, usize, usize) {
+        (self.cursor, self.junctions.len(), self.part.0)
+    }
+
+    /// Takes back the part-run sweep (nothing when none is part-run): every junction it moved
+    /// goes back to where the last whole sweep left it. The relaxation ends here (its search
+    /// grid still holds the taken-back moves), so the network and `report` are those of
+    /// `relax_junctions` with the whole sweeps run.
+    pub fn take_back_part(&mut self, network: &mut Network) {
+        if self.cursor == 0 {
+            return;
+        }
+        for &(junction, (x, y)) in self.undo.iter().rev() {
+            let node = &mut network.nodes[junction as usize];
+            (node.x, node.y) = (x, y);
+        }
+        self.undo.clear();
+        self.part = (0, 0);
+        self.cursor = 0;
+        self.done = true;
     }
 }
 

@@ -1,8 +1,9 @@
 //! The passes that reshape a finished network (channel energy, then junctions; `run.rs`), a
-//! sweep at a time: a caller (the page) runs one sweep per call, shows progress between calls
-//! and may stop after any whole sweep. Run to the end, `finish` gives the very `RunView` that
-//! `RunView::new` gives; stopped after `k` sweeps of a pass, it gives the view of the
-//! parameters `finish` returns (that pass asked for `k` sweeps, later reshaping passes off).
+//! sweep or part of a sweep at a time: a caller (the page) runs a bounded part per call, shows
+//! progress between calls and may stop at any call. Run to the end, `finish` gives the very
+//! `RunView` that `RunView::new` gives; stopped after `k` whole sweeps of a pass (a sweep
+//! stopped midway is taken back), it gives the view of the parameters `finish` returns (that
+//! pass asked for `k` sweeps, later reshaping passes off).
 
 use crate::channel_energy::{apply_parents, EnergyDescent};
 use crate::junctions::JunctionRelaxing;
@@ -45,8 +46,16 @@ pub struct ReshapeProgress {
     pub before: f64,
     /// The sum after the last whole sweep.
     pub now: f64,
-    /// Nodes re-pointed (energy) or junctions moved in the last sweep.
+    /// Nodes re-pointed (energy) or junctions moved in the last whole sweep.
     pub moved: usize,
+    /// Whether the call that gave this progress ended a sweep (`moved` is that sweep's).
+    pub swept: bool,
+    /// Nodes (energy) or junctions taken so far by the sweep in progress, 0 between sweeps.
+    pub part: usize,
+    /// Nodes or junctions a whole sweep of that pass takes.
+    pub part_of: usize,
+    /// Nodes re-pointed or junctions moved so far by the sweep in progress.
+    pub part_moved: usize,
     /// Whether every reshaping sweep has run (or the run was stopped).
     pub done: bool,
 }
@@ -87,6 +96,10 @@ impl Reshaping {
                 before: 0.0,
                 now: 0.0,
                 moved: 0,
+                swept: false,
+                part: 0,
+                part_of: 0,
+                part_moved: 0,
                 done: true,
             },
         };
@@ -94,7 +107,7 @@ impl Reshaping {
         if matches!(reshaping.stage, Stage::Done) {
             reshaping.stage = reshaping.junction_stage();
         }
-        reshaping.last = reshaping.progress_now(0);
+        reshaping.last = reshaping.progress_now(None);
         Ok(reshaping)
     }
 
@@ -144,44 +157,56 @@ impl Reshaping {
         matches!(self.stage, Stage::Done)
     }
 
-    /// Runs one sweep of the pass in progress (ending it when that was its last, and starting
-    /// the next pass's first sweep only on the next call); fails only when the re-pointed
-    /// network's forest view cannot be derived, which `energy_pass` would fail on too.
+    /// Runs one sweep of the pass in progress, or the rest of a part-run one (ending the pass
+    /// when that was its last sweep, and starting the next pass's first sweep only on the next
+    /// call); fails only when the re-pointed network's forest view cannot be derived, which
+    /// `energy_pass` would fail on too.
     pub fn sweep(&mut self) -> Result<ReshapeProgress, TopologyError> {
-        let moved = match &mut self.stage {
+        self.advance(usize::MAX)
+    }
+
+    /// Takes up to `items` more nodes (energy) or junctions of the sweep in progress, as
+    /// `sweep` does for a whole one: any split of the sweeps into parts gives the same network,
+    /// bit for bit.
+    pub fn advance(&mut self, items: usize) -> Result<ReshapeProgress, TopologyError> {
+        let ended = match &mut self.stage {
             Stage::Energy(descent) => {
-                let moved = descent
-                    .sweep(&self.reshaped.network)
-                    .map_or(0, |sweep| sweep.moves);
+                let ended = descent
+                    .advance(&self.reshaped.network, items)
+                    .map(|sweep| sweep.moves);
                 if descent.done() {
                     self.end_energy()?;
                     self.stage = self.junction_stage();
                 }
-                moved
+                ended
             }
             Stage::Junctions(relaxing) => {
                 let before = relaxing.report().moves;
                 let forest = self.reshaped.forest.as_ref();
-                if let Some(view) = forest {
-                    relaxing.sweep(&mut self.reshaped.network, &view.topology);
-                }
-                let moved = relaxing.report().moves - before;
+                let ended = match forest {
+                    Some(view) => relaxing
+                        .advance(&mut self.reshaped.network, &view.topology, items)
+                        .map(|_| relaxing.report().moves - before),
+                    None => Some(0),
+                };
                 if relaxing.done() || forest.is_none() {
                     self.end_junctions();
                 }
-                moved
+                ended
             }
-            Stage::Done => 0,
+            Stage::Done => Some(0),
         };
-        self.last = self.progress_now(moved);
+        self.last = self.progress_now(ended);
         Ok(self.last)
     }
 
-    /// Stops after the last whole sweep: the pass in progress keeps the sweeps it has run (its
-    /// sweep count in the returned parameters becomes that), later passes do not run.
+    /// Stops: a sweep stopped midway is taken back, so the pass in progress keeps its whole
+    /// sweeps (its sweep count in the returned parameters becomes that); later passes do not
+    /// run.
     pub fn stop(&mut self) -> Result<ReshapeProgress, TopologyError> {
-        match &self.stage {
+        match &mut self.stage {
             Stage::Energy(descent) => {
+                descent.take_back_part();
                 let ran = descent.report().sweeps.len() as u32;
                 self.params.run.energy_sweeps = ran;
                 self.params.run.relax_junctions = 0;
@@ -192,6 +217,7 @@ impl Reshaping {
                 }
             }
             Stage::Junctions(relaxing) => {
+                relaxing.take_back_part(&mut self.reshaped.network);
                 let ran = relaxing.report().sweeps;
                 self.params.run.relax_junctions = ran;
                 if ran > 0 {
@@ -203,6 +229,7 @@ impl Reshaping {
             Stage::Done => {}
         }
         self.stage = Stage::Done;
+        self.last = self.progress_now(None);
         self.last.done = true;
         Ok(self.last)
     }
@@ -239,8 +266,14 @@ impl Reshaping {
         self.reshaped.relaxation = Some(relaxing.report());
     }
 
-    /// The progress figures as things stand.
-    fn progress_now(&self, moved: usize) -> ReshapeProgress {
+    /// The progress figures as things stand; `ended` holds the moves of a sweep that ended in
+    /// the last call.
+    fn progress_now(&self, ended: Option<usize>) -> ReshapeProgress {
+        let (part, part_of, part_moved) = match &self.stage {
+            Stage::Energy(descent) => descent.part_done(),
+            Stage::Junctions(relaxing) => relaxing.part_done(),
+            Stage::Done => (0, 0, 0),
+        };
         let (pass, sweep, sweeps, before, now) = match &self.stage {
             Stage::Energy(descent) => {
                 let report = descent.report();
@@ -286,7 +319,11 @@ impl Reshaping {
             sweeps,
             before,
             now,
-            moved,
+            moved: ended.unwrap_or(self.last.moved),
+            swept: ended.is_some(),
+            part,
+            part_of,
+            part_moved,
             done: self.done(),
         }
     }

@@ -6,6 +6,11 @@ use ramulus_core::run::RunView;
 use ramulus_draw::format::significant_digits;
 use serde_json::{json, Value};
 
+/// Nodes (channel energy) or junctions a slice takes between looks at the clock: the sweep
+/// that costs most per node (the first channel energy sweep, about 45 us a node on the 2 ha
+/// demo field) takes about 12 ms for these, so Stop answers within a slice.
+pub const ITEMS_PER_PART: usize = 256;
+
 /// One whole sweep as the page lists it.
 #[derive(Clone, Debug)]
 pub struct SweepFigure {
@@ -15,7 +20,7 @@ pub struct SweepFigure {
     pub sum: f64,
     /// Nodes re-pointed or junctions moved in the sweep.
     pub moved: usize,
-    /// Milliseconds the sweep took.
+    /// Milliseconds the sweep took (its parts added up).
     pub ms: f64,
 }
 
@@ -34,6 +39,10 @@ pub struct StepwisePasses {
     pub finish_ms: f64,
     /// Whether the user stopped the sweeps.
     pub stopped: bool,
+    /// The sweep the user stopped midway, which was taken back.
+    pub taken_back: Option<u32>,
+    /// Milliseconds of the sweep in progress so far.
+    pub sweep_ms: f64,
     /// Whether the first slice has run.
     pub started: bool,
 }
@@ -63,6 +72,12 @@ impl StepwisePasses {
             .reshaping
             .as_ref()
             .map(|reshaping| reshaping.progress());
+        let (part, part_of, part_moved) = match (view, progress) {
+            (None, Some(progress)) if !progress.done => {
+                (progress.part, progress.part_of, progress.part_moved)
+            }
+            _ => (0, 0, 0),
+        };
         let (stage, pass, sweep, sweeps, before, now, moved) = match (view, progress) {
             (Some(view), _) => {
                 let last = self.log.last().map_or(0, |figure| figure.moved);
@@ -129,7 +144,11 @@ impl StepwisePasses {
             before,
             now,
             moved,
+            part,
+            part_of,
+            part_moved,
             stopped: self.stopped,
+            taken_back: self.taken_back,
             loops,
             site,
         });
@@ -142,8 +161,12 @@ impl StepwisePasses {
             "before": before,
             "now": now,
             "moved": moved,
+            "part": part,
+            "part_of": part_of,
+            "part_moved": part_moved,
             "done": stage == "done",
             "stopped": self.stopped,
+            "taken_back": self.taken_back,
             "loops": loops,
             "setup_ms": self.setup_ms,
             "finish_ms": self.finish_ms,
@@ -163,7 +186,11 @@ struct Status<'a> {
     before: f64,
     now: f64,
     moved: usize,
+    part: usize,
+    part_of: usize,
+    part_moved: usize,
     stopped: bool,
+    taken_back: Option<u32>,
     loops: bool,
     site: bool,
 }
@@ -199,10 +226,14 @@ fn status_text(s: &Status) -> String {
         ("junctions", true) => "channel junctions moved",
         _ => "vein junctions moved",
     };
-    let stopped = if s.stopped {
-        format!(" (stopped after sweep {})", s.sweep)
-    } else {
-        String::new()
+    let stopped = match (s.stopped, s.taken_back) {
+        (false, _) => String::new(),
+        (true, Some(part_run)) => format!(
+            " (stopped during sweep {part_run}, which was taken back: {} whole sweep{} kept)",
+            s.sweep,
+            if s.sweep == 1 { "" } else { "s" }
+        ),
+        (true, None) => format!(" (stopped after sweep {})", s.sweep),
     };
     match s.stage {
         "start" => {
@@ -211,6 +242,22 @@ fn status_text(s: &Status) -> String {
             } else {
                 "Setting up the passes after growth\u{2026}".to_string()
             }
+        }
+        "sweeping" if s.part > 0 => {
+            let last = if s.sweep > 0 {
+                format!(" ({} in sweep {})", s.moved, s.sweep)
+            } else {
+                String::new()
+            };
+            format!(
+                "{what}, sweep {} of {} ({} % through): {}; {} {moved} so far in this \
+                 sweep{last}.",
+                s.sweep + 1,
+                s.sweeps,
+                (100 * s.part) / s.part_of.max(1),
+                sums(s.before, s.now),
+                s.part_moved,
+            )
         }
         "sweeping" => format!(
             "{what}, sweep {} of {}: {}; {} {moved} in the last sweep.",
@@ -240,6 +287,20 @@ fn status_text(s: &Status) -> String {
                 s.sweep,
                 if s.sweep == 1 { "" } else { "s" }
             ),
+            _ if s.stopped => {
+                let kept = if s.site {
+                    "the channels stay as grown"
+                } else {
+                    "the vein junctions stay where they grew"
+                };
+                let sweep = s.taken_back.unwrap_or(1);
+                let loops = if s.loops && !s.site {
+                    " Vein loops closed."
+                } else {
+                    ""
+                };
+                format!("Stopped during sweep {sweep}, which was taken back: {kept}.{loops}")
+            }
             _ if s.loops && !s.site => "Vein loops closed.".to_string(),
             _ => String::new(),
         },

@@ -181,8 +181,8 @@ impl Simulation {
     }
 
     /// Runs a bounded slice of the passes after growth: the first call sets them up; the next
-    /// run whole sweeps (at least one) until `budget_ms` milliseconds have passed or the
-    /// sweeps are over; the call after the last sweep runs the rest of the pipeline (loops,
+    /// run parts of sweeps (`passes::ITEMS_PER_PART` nodes or junctions each, at least one
+    /// part) until `budget_ms` milliseconds have passed or the sweeps are over; the call after the last sweep runs the rest of the pipeline (loops,
     /// widths, readings) and caches the run view, so refills and readings never run the passes
     /// again. Returns the progress as JSON (`passes::StepwisePasses::progress_json`); the
     /// result equals the passes run in one go, digest for digest.
@@ -206,18 +206,20 @@ impl Simulation {
                 self.passes.setup_ms = js_sys::Date::now() - start;
             } else if let Some(reshaping) = self.passes.reshaping.as_mut().filter(|_| sweeping) {
                 loop {
-                    let sweep_start = js_sys::Date::now();
+                    let part_start = js_sys::Date::now();
                     let progress = reshaping
-                        .sweep()
+                        .advance(crate::passes::ITEMS_PER_PART)
                         .map_err(|error| JsError::new(&error.to_string()))?;
                     let ended = js_sys::Date::now();
-                    if progress.sweep > 0 {
+                    self.passes.sweep_ms += ended - part_start;
+                    if progress.swept && progress.sweep > 0 {
                         self.passes.log.push(crate::passes::SweepFigure {
                             pass: progress.pass.name(),
                             sum: progress.now,
                             moved: progress.moved,
-                            ms: ended - sweep_start,
+                            ms: self.passes.sweep_ms,
                         });
+                        self.passes.sweep_ms = 0.0;
                     }
                     if reshaping.done() || ended - start >= budget_ms {
                         break;
@@ -231,13 +233,18 @@ impl Simulation {
         Ok(self.passes_progress())
     }
 
-    /// Stops the sweeps after the last whole one: the network stays as that sweep left it (the
+    /// Stops the sweeps: a sweep stopped midway is taken back, and the network stays as the last
+    /// whole sweep left it (the
     /// pass's sweep count in the run's link and record becomes the sweeps run; later sweeping
     /// passes do not run); the next `reshape_step` runs the rest of the pipeline. Returns the
     /// progress as `reshape_step` does.
     pub fn reshape_stop(&mut self) -> Result<String, JsError> {
         if let Some(reshaping) = self.passes.reshaping.as_mut() {
             if !reshaping.done() {
+                let progress = reshaping.progress();
+                if progress.part > 0 {
+                    self.passes.taken_back = Some(progress.sweep + 1);
+                }
                 reshaping
                     .stop()
                     .map_err(|error| JsError::new(&error.to_string()))?;

@@ -176,6 +176,28 @@ async function siteFigures(page) {
     previous = figure.sum;
   }
   console.log(`  E after ${progress.energy.after.toPrecision(5)} (${((100 * (progress.energy.after - progress.energy.before)) / progress.energy.before).toFixed(2)} % in all)`);
+  // Stop within a sweep: how long the click waits for the slice in progress (the event's
+  // queueing), and how long until the run has ended with the sweep taken back.
+  for (const sweep of [1, 2]) {
+    await page.evaluate((fragment) => {
+      window.stopBench = { finished: 0 };
+      window.addEventListener('ramulus:finished', () => { window.stopBench.finished = performance.now(); }, { once: true });
+      document.querySelector('#passes-stop').addEventListener('click', (event) => {
+        window.stopBench.clicked = event.timeStamp;
+        window.stopBench.handled = performance.now();
+      }, { once: true, capture: true });
+      location.hash = fragment;
+    }, await siteLink(10));
+    await page.waitForFunction((n) => new RegExp(`sweep ${n} of 10 \\([1-5]\\d % through`).test(document.querySelector('#passes-text').textContent),
+      sweep, { timeout: 600000, polling: 20 });
+    await page.click('#passes-stop', { timeout: 600000 });
+    await page.waitForFunction(() => window.stopBench.finished > 0, null, { timeout: 600000, polling: 20 });
+    const stop = await page.evaluate(() => ({
+      ...window.stopBench,
+      progress: JSON.parse(window.ramulusPage.state.simulation.reshape_progress()),
+    }));
+    console.log(`  Stop pressed during sweep ${sweep}: handled ${(stop.handled - stop.clicked).toFixed(0)} ms after the click, run ended ${(stop.finished - stop.clicked).toFixed(0)} ms after it (sweep taken back: ${stop.progress.taken_back ?? 'none'}, whole sweeps kept ${stop.progress.sweep})`);
+  }
 }
 
 async function leafFigures(page) {

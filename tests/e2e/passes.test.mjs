@@ -1,6 +1,7 @@
 // The passes after growth on the page, a slice at a time: a 2-hectare site (the sloping field
 // at 0.5 m cells, 80,000 cells) grown with channel energy sweeps shows its progress sweep by
-// sweep, stops on Stop after a whole sweep, and the page stays usable. Outside references: the
+// sweep, stops on Stop (a sweep stopped midway is taken back, so the run keeps its whole
+// sweeps), and the page stays usable. Outside references: the
 // optimal-channel-network search accepts only changes that lower the energy E = sum Q^0.5 L
 // (Rinaldo et al. 1992, Water Resour. Res. 28(9)), so the energy shown after is never above
 // the energy before; and the native command line (`ramulus grow --json`, a separate path from
@@ -69,11 +70,12 @@ test('a site run sweeps channel energy with progress, stops on Stop and stays us
   await page.click('#passes-stop', { timeout: 300000 });
   const digest = await finishedDigest(page, 300000);
   const status = await page.textContent('#passes-text');
-  assert.match(status, /stopped after sweep \d+/, status);
+  assert.match(status, /stopped (after|during) sweep \d+/, status);
   const progress = await page.evaluate(() => JSON.parse(window.ramulusPage.state.simulation.reshape_progress()));
   assert.equal(progress.done, true);
   assert.ok(progress.stopped, 'the run says it was stopped');
-  assert.ok(progress.sweep >= 2 && progress.sweep < 40, `stopped after ${progress.sweep} of 40 sweeps`);
+  // Stop was pressed once sweep 2 had begun: at least sweep 1 is whole.
+  assert.ok(progress.sweep >= 1 && progress.sweep < 40, `stopped after ${progress.sweep} of 40 sweeps`);
   // Rinaldo et al. (1992): only changes that lower E are accepted.
   assert.ok(progress.energy.after <= progress.energy.before,
     `E after ${progress.energy.after} above E before ${progress.energy.before}`);
@@ -111,6 +113,38 @@ test('a site run sweeps channel energy with progress, stops on Stop and stays us
   assert.equal(await page.isHidden('#passes-stop'), true, 'nothing left to stop');
   assert.deepEqual(page.errors, [], 'no console errors');
   await screenshot(page, 'passes-after');
+  await page.close();
+});
+
+test('Stop within the first sweep takes it back at once: the layout stays as grown', async () => {
+  const page = await newPage(context);
+  await page.addInitScript(() => localStorage.setItem('ramulus.animate', 'no'));
+  await page.goto(site.url);
+  await finishedDigest(page);
+  const grownLink = await slopingFieldLink(page, 0, 3);
+  const link = await slopingFieldLink(page, 40, 3);
+  await page.evaluate((fragment) => { location.hash = fragment; }, link);
+  // The first sweep is the long one (seconds on this field); stop it early in its course.
+  await page.waitForFunction(
+    () => /sweep 1 of 40 \([0-3]?\d % through\)/.test(document.querySelector('#passes-text').textContent),
+    null, { timeout: 300000, polling: 20 });
+  const during = await page.textContent('#passes-text');
+  await page.click('#passes-stop', { timeout: 300000 });
+  const digest = await finishedDigest(page, 300000);
+  const progress = await page.evaluate(() => JSON.parse(window.ramulusPage.state.simulation.reshape_progress()));
+  assert.equal(progress.taken_back, 1, `sweep 1 was stopped midway (seen: ${during})`);
+  assert.equal(progress.sweep, 0, 'no whole sweep kept');
+  assert.deepEqual(progress.log, [], 'no sweep ended before Stop');
+  const status = await page.textContent('#passes-text');
+  assert.match(status, /Stopped during sweep 1, which was taken back/, status);
+  // The run is the grown layout with no sweeps: the same digest as a run asking for none,
+  // grown by the command line.
+  assert.equal(nativeRun(grownLink).digest, digest, 'the layout as grown');
+  const stoppedLink = await page.evaluate(() => location.hash.slice(1));
+  assert.equal(nativeRun(stoppedLink).digest, digest, 'the address grows what is shown');
+  assert.doesNotMatch(await page.evaluate(() => document.querySelector('main').innerText), /\bvein/i);
+  assert.deepEqual(page.errors, [], 'no console errors');
+  await screenshot(page, 'passes-stopped-early');
   await page.close();
 });
 

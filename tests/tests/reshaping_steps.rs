@@ -125,3 +125,95 @@ fn a_stop_before_any_sweep_changes_nothing() {
     let grown_digest = ramulus_core::digest::digest_hex(&network);
     assert_eq!(view.digest, grown_digest, "the network as grown");
 }
+
+/// Sweeps split into parts of any size take the nodes and junctions in the same order and
+/// state as whole sweeps: the network is the one the passes give in one go, digest for digest.
+#[test]
+fn sweeps_in_parts_equal_the_pass_in_one_go() {
+    for (name, energy, relax) in [("drainage-site", 3, 2), ("looped-leaf", 0, 3)] {
+        let (params, network) = grown(name, 3_000, energy, relax);
+        let whole = RunView::new(network.clone(), &params).expect("a valid network");
+        for items in [1, 7, 256, 1_000] {
+            let mut reshaping = Reshaping::new(network.clone(), &params).expect("a network");
+            let mut calls = 0u32;
+            let mut parts_seen = false;
+            while !reshaping.done() {
+                let progress = reshaping.advance(items).expect("a forest");
+                parts_seen |= progress.part > 0 && progress.part < progress.part_of;
+                calls += 1;
+            }
+            let (stepped, _) = reshaping.finish().expect("a view");
+            assert_eq!(stepped.digest, whole.digest, "{name}, parts of {items}");
+            assert_eq!(stepped.energy, whole.energy, "{name}, parts of {items}");
+            assert_eq!(
+                stepped.relaxation, whole.relaxation,
+                "{name}, parts of {items}"
+            );
+            if items < 256 {
+                assert!(parts_seen, "{name}: parts of {items} stop inside sweeps");
+                assert!(calls > energy + relax, "{name}: more calls than sweeps");
+            }
+        }
+    }
+}
+
+/// A stop inside sweep `k + 1` takes that sweep back: the network and its link are those of a
+/// run asking for `k` sweeps, and `E` (by hand, Rinaldo et al. 1992) is the one after sweep `k`.
+#[test]
+fn a_stop_midway_takes_the_sweep_back() {
+    let (params, network) = grown("drainage-site", 4_000, 6, 3);
+    for k in [0u32, 1, 2] {
+        let mut reshaping = Reshaping::new(network.clone(), &params).expect("a valid network");
+        for _ in 0..k {
+            reshaping.sweep().expect("a forest");
+        }
+        let progress = reshaping.advance(500).expect("a forest");
+        assert_eq!(progress.pass, ReshapePass::Energy);
+        assert_eq!(progress.sweep, k, "still in sweep {}", k + 1);
+        assert_eq!(progress.part, 500, "500 nodes taken of sweep {}", k + 1);
+        assert!(!progress.swept);
+        reshaping.stop().expect("a forest");
+        let (view, kept) = reshaping.finish().expect("a view");
+        assert_eq!(kept.run.energy_sweeps, k, "{k} whole sweeps kept");
+        assert_eq!(kept.run.relax_junctions, 0, "later passes do not run");
+        let mut asked = params.clone();
+        asked.run.energy_sweeps = k;
+        asked.run.relax_junctions = 0;
+        let again = RunView::new(network.clone(), &asked).expect("a valid network");
+        assert_eq!(view.digest, again.digest, "stopped in sweep {}", k + 1);
+        if let Some(energy) = &view.energy {
+            let by_hand = energy_by_hand(&view.network);
+            assert!(
+                (energy.energy_after - by_hand).abs() <= 1e-9 * by_hand,
+                "reported E {} is the network's {by_hand}",
+                energy.energy_after
+            );
+            assert_eq!(energy.sweeps.len() as u32, k);
+        } else {
+            assert_eq!(k, 0, "no energy report only when no sweep was kept");
+        }
+    }
+}
+
+/// The same for junction relaxation: a stop inside a sweep puts every junction it moved back
+/// where the last whole sweep left it.
+#[test]
+fn a_stop_midway_puts_the_junctions_back() {
+    let (params, network) = grown("looped-leaf", 3_000, 0, 4);
+    for k in [0u32, 1] {
+        let mut reshaping = Reshaping::new(network.clone(), &params).expect("a valid network");
+        for _ in 0..k {
+            reshaping.sweep().expect("a forest");
+        }
+        let progress = reshaping.advance(40).expect("a forest");
+        assert_eq!(progress.pass, ReshapePass::Junctions);
+        assert_eq!((progress.sweep, progress.part), (k, 40));
+        reshaping.stop().expect("a forest");
+        let (view, kept) = reshaping.finish().expect("a view");
+        assert_eq!(kept.run.relax_junctions, k);
+        let mut asked = params.clone();
+        asked.run.relax_junctions = k;
+        let again = RunView::new(network.clone(), &asked).expect("a valid network");
+        assert_eq!(view.digest, again.digest, "stopped in sweep {}", k + 1);
+    }
+}
