@@ -52,7 +52,7 @@ async function start() {
   view.tissue = readTissuePreference();
   form = new ParameterForm(byId('form'), byId('param-seed'), schema, commitField);
   runner = new Runner({
-    redraw, refill, draw, drawPart, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying, failed: onFailure,
+    redraw, refill, draw, drawPart, segments: () => state.session.count, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying, failed: onFailure,
   });
   afterGrowth = new AfterGrowth();
   window.ramulusPage = { runner, view, state, afterGrowth };
@@ -245,10 +245,11 @@ function redraw() {
   return refill() + draw();
 }
 
-/// Refills the geometry from the run (only what growth changed); returns its milliseconds.
-function refill() {
+/// Refills the geometry from the run (only what growth changed; while a run grows, at most
+/// `mostNodes` of the nodes grown since the last refill); returns its milliseconds.
+function refill(mostNodes = Infinity) {
   const started = performance.now();
-  const count = state.session.refill();
+  const count = state.session.refill(mostNodes);
   view.dropPart();
   const refillMs = performance.now() - started;
   runner.record('refills', { refillMs, segments: count });
@@ -275,6 +276,7 @@ function drawPart(budgetMs) {
   const ms = performance.now() - started;
   state.drawing.ms += ms;
   state.drawing.parts += 1;
+  if (view.lastPart) runner.lastDrawPart = view.lastPart;
   if (done) {
     runner.record('drawTimes', { drawMs: state.drawing.ms, parts: state.drawing.parts, segments: state.session.count });
     state.drawing = { ms: 0, parts: 0 };

@@ -10,12 +10,19 @@ const STEP_BUDGET_MS = 8;
 const DRAW_BUDGET_MS = 6;
 // Figures kept per list for the page benchmark (enough for any benchmark run).
 const STATS_KEPT = 100000;
+// Milliseconds a geometry refill aims at while a run grows (a refill takes the nodes grown
+// since the last one, oldest first, up to as many as this allows at the measured cost per
+// node; the picture shows the run's first nodes until a later refill takes the rest), and the
+// fewest nodes one takes (common practice for keeping frames short, no source).
+const REFILL_BUDGET_MS = 5;
+const MIN_REFILL_NODES = 500;
 // Milliseconds of growth between yields when growing without animation.
 const QUIET_CHUNK_MS = 40;
 
 export class Runner {
-  /// `hooks`: `redraw()` (refill and draw; returns ms), `refill()` and `draw()` (each
-  /// returns its ms), `drawPart(budgetMs)` (works about that long on drawing; returns
+  /// `hooks`: `redraw()` (refill and draw; returns ms), `refill(mostNodes)` (at most that
+  /// many nodes grown since the last refill; returns its ms), `segments()` (entries as last
+  /// refilled), `draw()` (returns its ms), `drawPart(budgetMs)` (works about that long on drawing; returns
   /// `{ms, done}`), `progress()`, `paused()`, `finished()`,
   /// `playing(bool)`, `failed(error)` (growing or drawing threw; the loop has stopped).
   constructor(hooks) {
@@ -32,6 +39,8 @@ export class Runner {
     this.drawPending = false; // the geometry is refilled and waits for the coming frames' drawing
     this.drawingMs = 0; // drawing time so far of the pending picture
     this.refilledFinished = false; // the pending picture shows the run's last cell
+    this.msPerRefillNode = 0; // a growing refill's cost per node taken, measured
+    this.catchingUp = false; // growth has ended and the geometry still lags: refill only
     this.generation = 0;
     this.quiet = false; // growing to the end without drawing (see growQuietly)
     this.stats = freshStats();
@@ -61,6 +70,7 @@ export class Runner {
     this.drawPending = false;
     this.drawingMs = 0;
     this.refillMs = 0;
+    this.catchingUp = false;
     this.playingNow = true;
     this.hooks.playing(true);
     this.lastTick = performance.now();
@@ -126,10 +136,14 @@ export class Runner {
     const simulation = this.simulation;
     const frameStart = performance.now();
     let growthBudget = STEP_BUDGET_MS;
+    // Where this frame's time goes, for the page benchmark's slowest frames.
+    const parts = { drawMs: 0, stepMs: 0, refillMs: 0 };
     if (this.drawPending) {
       // Test hook (tests/e2e/frames.test.mjs): a smaller budget, so pictures take many parts.
       const budget = globalThis.ramulusTestHooks?.drawBudgetMs ?? DRAW_BUDGET_MS;
       const { ms, done } = this.hooks.drawPart(budget);
+      parts.drawMs = ms;
+      parts.drawDetail = this.lastDrawPart;
       this.drawingMs += ms;
       growthBudget -= ms;
       if (done) {
@@ -141,7 +155,7 @@ export class Runner {
         // Growth goes on while a picture is drawn: the run has ended on screen only when the
         // geometry drawn was refilled after the last cell.
         if (this.refilledFinished) {
-          this.endFrame(frameStart, simulation);
+          this.endFrame(frameStart, simulation, parts);
           this.stop();
           this.hooks.finished();
           return;
@@ -151,7 +165,8 @@ export class Runner {
     // Redraw when drawing has had its share (at most a third of the time goes to it): this
     // frame grows what the last refill's time leaves of the budget, then refills.
     const refillNow = !this.drawPending
-      && (simulation.finished() || now - this.lastDraw >= Math.min(3 * this.drawCostMs, 1000));
+      && (simulation.finished() || this.catchingUp
+        || now - this.lastDraw >= Math.min(3 * this.drawCostMs, 1000));
     if (refillNow) growthBudget -= this.refillMs;
     let allowance = Infinity;
     if (this.pace > 0) {
@@ -177,6 +192,7 @@ export class Runner {
       }
     }
     const stepMs = performance.now() - growthStart;
+    parts.stepMs = stepMs;
     this.stats.frames += 1;
     this.stats.cells += added;
     this.stats.stepMs += stepMs;
@@ -185,14 +201,32 @@ export class Runner {
     if (this.stats.firstTick === 0) this.stats.firstTick = frameStart;
     this.stats.lastTick = performance.now();
     if (refillNow) {
-      this.refilledFinished = simulation.finished();
-      this.refillMs = this.hooks.refill();
-      this.drawPending = true;
+      const before = this.hooks.segments();
+      const limit = this.msPerRefillNode > 0
+        ? Math.max(MIN_REFILL_NODES, Math.floor(REFILL_BUDGET_MS / this.msPerRefillNode))
+        : Infinity;
+      // Growth over, nothing competes with the refill: twice the share.
+      const most = simulation.finished() ? 2 * limit : limit;
+      const refillMs = this.hooks.refill(most);
+      const taken = this.hooks.segments() - before;
+      if (taken > 0 && before > 0) {
+        const perNode = refillMs / taken;
+        this.msPerRefillNode = this.msPerRefillNode > 0 ? 0.7 * this.msPerRefillNode + 0.3 * perNode : perNode;
+      }
+      parts.refillMs = refillMs;
+      const behind = simulation.geometry_behind();
+      this.refilledFinished = simulation.finished() && !behind;
+      // Growth has ended but the geometry lags: refill again next frame before drawing.
+      this.catchingUp = simulation.finished() && behind;
+      if (!this.catchingUp) {
+        this.refillMs = refillMs;
+        this.drawPending = true;
+      }
     } else if (simulation.finished()) {
       // Growth has just stopped: the coming frames refill and draw the final network.
       this.lastDraw = -Infinity;
     }
-    this.endFrame(frameStart, simulation);
+    this.endFrame(frameStart, simulation, parts);
     requestAnimationFrame((time) => this.guarded(() => this.tick(time, generation)));
   }
 
@@ -202,9 +236,13 @@ export class Runner {
     if (list.length < STATS_KEPT) list.push(figure);
   }
 
-  endFrame(frameStart, simulation) {
+  endFrame(frameStart, simulation, parts) {
+    const progressStart = performance.now();
     this.hooks.progress();
-    this.record('frameTimes', { ms: performance.now() - frameStart, cells: simulation.cells() });
+    const end = performance.now();
+    this.record('frameTimes', {
+      ms: end - frameStart, cells: simulation.cells(), progressMs: end - progressStart, ...parts,
+    });
   }
 
   growQuietly(generation) {

@@ -67,9 +67,10 @@ export class Session {
     return simulation;
   }
 
-  /// Refills the geometry from the network as it stands; returns the entry count.
-  refill() {
-    this.count = this.simulation ? this.simulation.update_geometry() : 0;
+  /// Refills the geometry from the network as it stands (a growing run: at most `mostNodes`
+  /// of the nodes grown since the last refill); returns the entry count.
+  refill(mostNodes = Infinity) {
+    this.count = this.simulation ? this.simulation.update_geometry_part(mostNodes) : 0;
     return this.count;
   }
 

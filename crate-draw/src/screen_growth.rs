@@ -30,6 +30,16 @@ pub struct GrowingScreen {
     next_sibling: Vec<u32>,
     /// Flow through the node's downstream segment (the node's weight plus its children's).
     flow: Vec<f64>,
+    /// The node's own weight (read once, when the node is appended).
+    weight: Vec<f64>,
+    /// Smallest positive flow over the entries, and how many entries carry exactly it
+    /// (flows only rise as a forest grows, so the smallest is looked for again over every
+    /// entry only when the last entry at it has risen).
+    low: f64,
+    at_low: usize,
+    /// Largest flow and highest order over the entries (both only rise as a forest grows).
+    high: f64,
+    max_order: u32,
     /// Strahler order of the node's downstream segment.
     order: Vec<u32>,
     /// Geometry entry of the node's downstream segment, `NONE` for a root.
@@ -50,6 +60,7 @@ impl GrowingScreen {
         self.first_child.clear();
         self.next_sibling.clear();
         self.flow.clear();
+        self.weight.clear();
         self.order.clear();
         self.entry_of.clear();
         self.node_of_entry.clear();
@@ -59,6 +70,21 @@ impl GrowingScreen {
     /// Nodes of the forest as last drawn.
     pub fn node_count(&self) -> usize {
         self.parent.len()
+    }
+
+    /// `update_from_growth` taking at most `most` of the nodes added since the last update
+    /// (the oldest first; at least one), so that one refill's work stays bounded while a run
+    /// grows fast: the geometry is then that of the forest of the grower's first nodes, which
+    /// every grower that only appends has grown through, and the next update takes more. A
+    /// forest drawn from scratch takes every node.
+    pub fn update_from_growth_upto(
+        &mut self,
+        growth: &Growth,
+        rule: WidthRule,
+        geometry: &mut ScreenGeometry,
+        most: usize,
+    ) -> bool {
+        self.update_growth(growth, rule, geometry, most.max(1))
     }
 
     /// Brings `geometry` (as left by the previous `update` on this forest, or empty) up to
@@ -100,11 +126,26 @@ impl GrowingScreen {
         rule: WidthRule,
         geometry: &mut ScreenGeometry,
     ) -> bool {
+        self.update_growth(growth, rule, geometry, usize::MAX)
+    }
+
+    fn update_growth(
+        &mut self,
+        growth: &Growth,
+        rule: WidthRule,
+        geometry: &mut ScreenGeometry,
+        most: usize,
+    ) -> bool {
         let old_nodes = self.parent.len();
-        let nodes = growth.node_count();
+        let all = growth.node_count();
+        let nodes = if old_nodes == 0 {
+            all
+        } else {
+            all.min(old_nodes.saturating_add(most))
+        };
         let fits = !rule.by_order()
             && growth.only_appends()
-            && nodes >= old_nodes
+            && all >= old_nodes
             && geometry.len() == self.node_of_entry.len()
             && (old_nodes == 0 || self.rule == Some(rule))
             // The last node drawn still drains where it did (a cheap check that this is the
@@ -146,15 +187,20 @@ impl GrowingScreen {
         }
         if old_nodes == 0 {
             geometry.clear_entries();
+            (self.low, self.at_low, self.high, self.max_order) = (f64::INFINITY, 0, 0.0, 0);
         }
         self.parent.resize(nodes, NO_PARENT);
         self.first_child.resize(nodes, NONE);
         self.next_sibling.resize(nodes, NONE);
         self.flow.resize(nodes, 0.0);
+        self.weight.resize(nodes, 0.0);
         self.order.resize(nodes, 1);
         self.entry_of.resize(nodes, NONE);
         self.marked.resize(nodes, false);
         self.rule = Some(rule);
+        for (index, weight) in self.weight[old_nodes..nodes].iter_mut().enumerate() {
+            *weight = node_at(old_nodes + index).weight;
+        }
         // New segments, in the network's order (one per new non-root node, in node order).
         for (from, to) in new_segments {
             let entry = geometry.len() as u32;
@@ -188,7 +234,7 @@ impl GrowingScreen {
         for index in 0..self.dirty.len() {
             let node = self.dirty[index] as usize;
             self.marked[node] = false;
-            let mut flow = node_at(node).weight;
+            let mut flow = self.weight[node];
             // What the children pass on: highest order and how many have it (the count stops
             // at 2), as in `segments::strahler_orders`.
             let (mut highest, mut count) = (0u32, 0u32);
@@ -208,28 +254,51 @@ impl GrowingScreen {
                 (highest, 1) => highest,
                 (highest, _) => highest + 1,
             };
-            self.flow[node] = flow;
-            self.order[node] = order;
             let entry = self.entry_of[node];
             if entry != NONE {
+                // The range over the entries: this entry leaves its old flow (new entries
+                // start at 0, never counted) and takes the new one.
+                let old = self.flow[node];
+                if old > 0.0 && old == self.low {
+                    self.at_low -= 1;
+                }
+                if flow > 0.0 && flow < self.low {
+                    (self.low, self.at_low) = (flow, 1);
+                } else if flow > 0.0 && flow == self.low {
+                    self.at_low += 1;
+                }
+                if flow > self.high {
+                    self.high = flow;
+                }
+                self.max_order = self.max_order.max(order);
                 geometry.set_values(entry as usize, flow, width_of.width(flow), order);
             }
+            self.flow[node] = flow;
+            self.order[node] = order;
         }
-        // The flow range and highest order over every entry, as `ScreenGeometry::fill` finds
-        // them (flows can rise anywhere downstream, so the smallest is looked for again).
-        let (mut low, mut high, mut max_order) = (f64::INFINITY, 0.0f64, 0u32);
+        if self.at_low == 0 {
+            self.find_low();
+        }
+        // As `ScreenGeometry::fill` finds them over every entry.
+        let flow_range = if self.high > 0.0 {
+            (self.low, self.high)
+        } else {
+            (0.0, 0.0)
+        };
+        geometry.finish_entries(flow_range, self.max_order);
+    }
+
+    /// The smallest positive flow over every entry and how many entries carry it.
+    fn find_low(&mut self) {
+        (self.low, self.at_low) = (f64::INFINITY, 0);
         for &node in &self.node_of_entry {
             let flow = self.flow[node as usize];
-            if flow > 0.0 && flow < low {
-                low = flow;
+            if flow > 0.0 && flow < self.low {
+                (self.low, self.at_low) = (flow, 1);
+            } else if flow > 0.0 && flow == self.low {
+                self.at_low += 1;
             }
-            if flow > high {
-                high = flow;
-            }
-            max_order = max_order.max(self.order[node as usize]);
         }
-        let flow_range = if high > 0.0 { (low, high) } else { (0.0, 0.0) };
-        geometry.finish_entries(flow_range, max_order);
     }
 
     /// Whether `network` is the forest last drawn plus appended nodes, each after its parent.
@@ -460,6 +529,50 @@ mod tests {
             }
             assert!(geometry.len() > 500, "{link}: {} entries", geometry.len());
         }
+    }
+
+    /// Refills that take at most a few new nodes each lag behind the grower but always show
+    /// the forest of its first nodes as the whole pipeline draws it, and catch up once growth
+    /// stops.
+    #[test]
+    fn bounded_refills_show_the_grower_s_first_nodes() {
+        let link = "v=1&width=30&height=30&roots=3,3,0,1;26,26,0,-1&cells=700&joining=weighted\
+                    &temperature=0.5&w_turn=1&w_flow=0.5&alpha=0.5&w_path=0.05&seed=9&gamma=2.5\
+                    &jitter=0.3";
+        let params = decode_link(link).params;
+        let rule = width_rule(&params);
+        let mut growth = Growth::new(&params).unwrap();
+        let mut growing = GrowingScreen::default();
+        let mut geometry = ScreenGeometry::default();
+        let mut lagged = false;
+        let mut refills = 0;
+        loop {
+            growth.step(25);
+            assert!(growing.update_from_growth_upto(&growth, rule, &mut geometry, 17));
+            refills += 1;
+            let shown = growing.node_count();
+            lagged |= shown < growth.node_count();
+            // The forest of the grower's first `shown` nodes: a grower that only appends
+            // grew through it.
+            let mut prefix = growth.network();
+            prefix.nodes.truncate(shown);
+            prefix
+                .segments
+                .retain(|segment| (segment.from as usize) < shown);
+            let expected = full(&prefix, rule);
+            assert_eq!(geometry.ends, expected.ends, "refill {refills}");
+            assert_eq!(geometry.widths, expected.widths, "refill {refills}");
+            assert_eq!(geometry.orders, expected.orders, "refill {refills}");
+            assert_eq!(geometry.flow_range, expected.flow_range, "refill {refills}");
+            assert_eq!(geometry.max_order, expected.max_order, "refill {refills}");
+            assert!(geometry.draw_lines.lines().eq(expected.draw_lines.lines()));
+            if growth.stopped().is_some() && shown == growth.node_count() {
+                break;
+            }
+            assert!(refills < 1_000, "the refills catch up");
+        }
+        assert!(lagged, "17 nodes a refill fall behind 25 cells a step");
+        assert_eq!(geometry.len(), growth.network().segments.len());
     }
 
     /// A grower that has split a segment (segment attachment gives an older node a new

@@ -52,6 +52,8 @@ pub struct Simulation {
     view_cache: Option<RunView>,
     /// Benchmark switch: refill the geometry in full every time (see `set_full_refill`).
     full_refill: bool,
+    /// The most new nodes a growing refill takes (`update_geometry_part`).
+    refill_most: usize,
     /// Test hook: once the run holds this many cells, `step` fails as a failed allocation
     /// does (see `debug_trap_at_cells`).
     trap_at_cells: Option<u64>,
@@ -79,6 +81,7 @@ impl Simulation {
             view_cache: None,
             trap_at_cells: None,
             full_refill: false,
+            refill_most: usize::MAX,
             passes: Default::default(),
         })
     }
@@ -120,6 +123,7 @@ impl Simulation {
             view_cache: None,
             trap_at_cells: None,
             full_refill: false,
+            refill_most: usize::MAX,
             passes: Default::default(),
         })
     }
@@ -588,6 +592,19 @@ impl Simulation {
     /// them are refilled (`GrowingScreen`, equal to a full refill bit for bit); otherwise the
     /// core's topology, junction, conducting-network and widths passes refill everything.
     pub fn update_geometry(&mut self) -> u32 {
+        self.update_geometry_part(f64::INFINITY)
+    }
+
+    /// `update_geometry`, but a growing refill takes at most `most_nodes` of the nodes grown
+    /// since the last refill (the oldest first): the page bounds one frame's refill while a
+    /// run grows fast, and the geometry shows the run's first nodes until a later refill takes
+    /// the rest (`geometry_behind`).
+    pub fn update_geometry_part(&mut self, most_nodes: f64) -> u32 {
+        self.refill_most = if most_nodes >= 1.0 {
+            most_nodes.min(usize::MAX as f64) as usize
+        } else {
+            1
+        };
         let rule = width_rule(&self.params);
         // The growing refill follows the passes with every segment conducting and every node
         // on its cell; with a conducting threshold a segment's state changes as flows grow, and
@@ -636,6 +653,17 @@ impl Simulation {
             Err(_) => self.geometry = ScreenGeometry::default(),
         }
         self.geometry.len() as u32
+    }
+
+    /// Whether the geometry shows fewer nodes than the run holds (a bounded growing refill
+    /// left some for the next).
+    pub fn geometry_behind(&self) -> bool {
+        match &self.source {
+            Source::Growing(growth) => {
+                self.growing.node_count() > 0 && self.growing.node_count() < growth.node_count()
+            }
+            Source::Fixed(_) => false,
+        }
     }
 
     /// `x0, y0, x1, y1` per entry (4 floats each), a view into wasm memory. Like every view
@@ -766,10 +794,12 @@ impl Simulation {
     fn growing_refill(&mut self) -> bool {
         let rule = width_rule(&self.params);
         match &self.source {
-            Source::Growing(growth) => {
-                self.growing
-                    .update_from_growth(growth, rule, &mut self.geometry)
-            }
+            Source::Growing(growth) => self.growing.update_from_growth_upto(
+                growth,
+                rule,
+                &mut self.geometry,
+                self.refill_most,
+            ),
             Source::Fixed(network) => self.growing.update(network, rule, &mut self.geometry),
         }
     }

@@ -16,8 +16,9 @@
 //     drop per sweep; and the looped-leaf preset scaled to 100,000 cells (its lattice and blade
 //     outline scaled so the blade holds the budget, as `ramulus bench` scales it), growth plus the loop pass (target under
 //     5 s), with the loop pass's share.
-// Prints figures; never fails on slowness. Usage: node tests/e2e/bench-page.mjs [--passes
-// [--leaf-only]] (`--passes`: section 4 only; `--leaf-only`: its leaf only).
+// Prints figures; never fails on slowness. Usage: node tests/e2e/bench-page.mjs [--frames |
+// --passes [--leaf-only]] (`--frames`: sections 1-3 only; `--passes`: section 4 only;
+// `--leaf-only`: its leaf only).
 import { finishedDigest, launchBrowser, newPage, serveSite } from './support.mjs';
 
 const DRAW_ROUNDS = 15;
@@ -33,9 +34,10 @@ const ANIMATED = 'v=1&width=400&height=400&cell_size=0.15&roots=200,200,0,1&cell
 const site = await serveSite();
 const context = await launchBrowser({ width: 1500, height: 1000 });
 const passesOnly = process.argv.includes('--passes');
+const framesOnly = process.argv.includes('--frames');
 try {
   if (!passesOnly) await drawingAndAnimation();
-  await passesFigures();
+  if (!framesOnly) await passesFigures();
 } finally {
   await context.close();
   site.close();
@@ -97,6 +99,10 @@ async function drawingAndAnimation() {
     console.log(`  refill ms, past 100,000 cells ${spread(lateRefills.map((refill) => refill.refillMs))}`);
     console.log(`  draw ms, past 100,000 cells   ${spread(lateDraws.map((drawn) => drawn.drawMs))}  (over all parts of a picture)`);
     console.log(`  frames a picture takes        ${spread(lateDraws.map((drawn) => drawn.parts ?? 1))}`);
+    const slowest = [...late].sort((a, b) => b.ms - a.ms).slice(0, 5);
+    console.log(`  slowest frames past 100,000 cells (ms: whole = growth + refill + drawing + progress + rest): ${slowest
+      .map((f) => `${f.ms.toFixed(1)} = ${f.stepMs.toFixed(1)} + ${f.refillMs.toFixed(1)} + ${f.drawMs.toFixed(1)}${f.drawMs > 0 && f.drawDetail ? ` (begin ${f.drawDetail.beginMs.toFixed(1)}, lines ${f.drawDetail.linesMs.toFixed(1)}, finish ${f.drawDetail.finishMs.toFixed(1)}: put ${f.drawDetail.putMs?.toFixed(1)}, sort ${f.drawDetail.sortMs?.toFixed(1)}, wide ${f.drawDetail.wideMs?.toFixed(1)}, show ${f.drawDetail.showMs?.toFixed(1)})` : ''} + ${f.progressMs.toFixed(1)} + ${(f.ms - f.stepMs - f.refillMs - f.drawMs - f.progressMs).toFixed(1)}`)
+      .join('; ')}`);
     await steady.close();
   }
 
@@ -151,12 +157,13 @@ async function passesFigures() {
 }
 
 async function siteFigures(page) {
-  const siteLink = (sweeps) => page.evaluate(async (count) => {
+  const siteLink = (sweeps, seed = 1) => page.evaluate(async ([count, seedText]) => {
     const text = await (await fetch('sites/sloping-field.geojson')).text();
     const { core } = window.ramulusPage.state.session;
     const made = JSON.parse(core.site_link_json(text, '0.5'));
-    return JSON.parse(core.set_link_field(made.link, 'energy_sweeps', String(count))).link;
-  }, sweeps);
+    const set = JSON.parse(core.set_link_field(made.link, 'energy_sweeps', String(count))).link;
+    return JSON.parse(core.set_link_field(set, 'seed', seedText)).link;
+  }, [sweeps, String(seed)]);
   const plain = await timedRun(page, await siteLink(0));
   const sizing = await page.evaluate(() => {
     document.querySelector('#site-intensity').value = '60';
@@ -187,7 +194,7 @@ async function siteFigures(page) {
         window.stopBench.handled = performance.now();
       }, { once: true, capture: true });
       location.hash = fragment;
-    }, await siteLink(10));
+    }, await siteLink(10, 1 + sweep));
     await page.waitForFunction((n) => new RegExp(`sweep ${n} of 10 \\([1-5]\\d % through`).test(document.querySelector('#passes-text').textContent),
       sweep, { timeout: 600000, polling: 20 });
     await page.click('#passes-stop', { timeout: 600000 });
