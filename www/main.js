@@ -245,8 +245,9 @@ function redraw() {
   return refill() + draw();
 }
 
-/// Refills the geometry from the run (only what growth changed; while a run grows, at most
-/// `mostNodes` of the nodes grown since the last refill); returns its milliseconds.
+/// Refills the geometry from the run (only what growth changed; while a run grows, the nodes
+/// grown since the last refill until `mostNodes` are to be recomputed); returns its
+/// milliseconds.
 function refill(mostNodes = Infinity) {
   const started = performance.now();
   const count = state.session.refill(mostNodes);

@@ -11,17 +11,18 @@ const DRAW_BUDGET_MS = 6;
 // Figures kept per list for the page benchmark (enough for any benchmark run).
 const STATS_KEPT = 100000;
 // Milliseconds a geometry refill aims at while a run grows (a refill takes the nodes grown
-// since the last one, oldest first, up to as many as this allows at the measured cost per
-// node; the picture shows the run's first nodes until a later refill takes the rest), and the
-// fewest nodes one takes (common practice for keeping frames short, no source).
+// since the last one, oldest first, until it has as many nodes to recompute, the new ones
+// and those downstream, as this allows at the measured cost per node; the picture shows the
+// run's first nodes until a later refill takes the rest), and the fewest nodes one may
+// recompute (common practice for keeping frames short, no source).
 const REFILL_BUDGET_MS = 5;
-const MIN_REFILL_NODES = 500;
+const MIN_REFILL_WORK = 1000;
 // Milliseconds of growth between yields when growing without animation.
 const QUIET_CHUNK_MS = 40;
 
 export class Runner {
-  /// `hooks`: `redraw()` (refill and draw; returns ms), `refill(mostNodes)` (at most that
-  /// many nodes grown since the last refill; returns its ms), `segments()` (entries as last
+  /// `hooks`: `redraw()` (refill and draw; returns ms), `refill(mostNodes)` (new nodes until
+  /// that many are to be recomputed; returns its ms), `segments()` (entries as last
   /// refilled), `draw()` (returns its ms), `drawPart(budgetMs)` (works about that long on drawing; returns
   /// `{ms, done}`), `progress()`, `paused()`, `finished()`,
   /// `playing(bool)`, `failed(error)` (growing or drawing threw; the loop has stopped).
@@ -39,7 +40,7 @@ export class Runner {
     this.drawPending = false; // the geometry is refilled and waits for the coming frames' drawing
     this.drawingMs = 0; // drawing time so far of the pending picture
     this.refilledFinished = false; // the pending picture shows the run's last cell
-    this.msPerRefillNode = 0; // a growing refill's cost per node taken, measured
+    this.msPerRefillNode = 0; // a growing refill's cost per node recomputed, measured
     this.catchingUp = false; // growth has ended and the geometry still lags: refill only
     this.generation = 0;
     this.quiet = false; // growing to the end without drawing (see growQuietly)
@@ -203,14 +204,14 @@ export class Runner {
     if (refillNow) {
       const before = this.hooks.segments();
       const limit = this.msPerRefillNode > 0
-        ? Math.max(MIN_REFILL_NODES, Math.floor(REFILL_BUDGET_MS / this.msPerRefillNode))
+        ? Math.max(MIN_REFILL_WORK, Math.floor(REFILL_BUDGET_MS / this.msPerRefillNode))
         : Infinity;
       // Growth over, nothing competes with the refill: twice the share.
       const most = simulation.finished() ? 2 * limit : limit;
       const refillMs = this.hooks.refill(most);
-      const taken = this.hooks.segments() - before;
-      if (taken > 0 && before > 0) {
-        const perNode = refillMs / taken;
+      const work = simulation.refill_work();
+      if (work > 0 && before > 0 && this.hooks.segments() > before) {
+        const perNode = refillMs / work;
         this.msPerRefillNode = this.msPerRefillNode > 0 ? 0.7 * this.msPerRefillNode + 0.3 * perNode : perNode;
       }
       parts.refillMs = refillMs;

@@ -67,8 +67,9 @@ export class Session {
     return simulation;
   }
 
-  /// Refills the geometry from the network as it stands (a growing run: at most `mostNodes`
-  /// of the nodes grown since the last refill); returns the entry count.
+  /// Refills the geometry from the network as it stands (a growing run: the nodes grown since
+  /// the last refill, oldest first, until `mostNodes` nodes are to be recomputed); returns the
+  /// entry count.
   refill(mostNodes = Infinity) {
     this.count = this.simulation ? this.simulation.update_geometry_part(mostNodes) : 0;
     return this.count;

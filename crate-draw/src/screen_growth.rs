@@ -40,6 +40,8 @@ pub struct GrowingScreen {
     /// Largest flow and highest order over the entries (both only rise as a forest grows).
     high: f64,
     max_order: u32,
+    /// Nodes the last update recomputed.
+    last_dirty: usize,
     /// Strahler order of the node's downstream segment.
     order: Vec<u32>,
     /// Geometry entry of the node's downstream segment, `NONE` for a root.
@@ -72,19 +74,20 @@ impl GrowingScreen {
         self.parent.len()
     }
 
-    /// `update_from_growth` taking at most `most` of the nodes added since the last update
-    /// (the oldest first; at least one), so that one refill's work stays bounded while a run
-    /// grows fast: the geometry is then that of the forest of the grower's first nodes, which
-    /// every grower that only appends has grown through, and the next update takes more. A
-    /// forest drawn from scratch takes every node.
+    /// `update_from_growth` taking the nodes added since the last update oldest first, and no
+    /// more once `most_dirty` nodes need their values again (the new ones and everything
+    /// downstream of them; at least one new node is taken), so that one refill's work stays
+    /// bounded while a run grows fast: the geometry is then that of the forest of the
+    /// grower's first nodes, which every grower that only appends has grown through, and the
+    /// next update takes more. A forest drawn from scratch takes every node.
     pub fn update_from_growth_upto(
         &mut self,
         growth: &Growth,
         rule: WidthRule,
         geometry: &mut ScreenGeometry,
-        most: usize,
+        most_dirty: usize,
     ) -> bool {
-        self.update_growth(growth, rule, geometry, most.max(1))
+        self.update_growth(growth, rule, geometry, most_dirty)
     }
 
     /// Brings `geometry` (as left by the previous `update` on this forest, or empty) up to
@@ -110,6 +113,7 @@ impl GrowingScreen {
             |index| network.nodes[index],
             rule,
             geometry,
+            usize::MAX,
         );
         true
     }
@@ -134,14 +138,15 @@ impl GrowingScreen {
         growth: &Growth,
         rule: WidthRule,
         geometry: &mut ScreenGeometry,
-        most: usize,
+        most_dirty: usize,
     ) -> bool {
         let old_nodes = self.parent.len();
-        let all = growth.node_count();
-        let nodes = if old_nodes == 0 {
-            all
+        let nodes = growth.node_count();
+        let all = nodes;
+        let most_dirty = if old_nodes == 0 {
+            usize::MAX
         } else {
-            all.min(old_nodes.saturating_add(most))
+            most_dirty
         };
         let fits = !rule.by_order()
             && growth.only_appends()
@@ -165,6 +170,7 @@ impl GrowingScreen {
             |index| growth.node(index),
             rule,
             geometry,
+            most_dirty,
         );
         true
     }
@@ -172,6 +178,7 @@ impl GrowingScreen {
     /// Appends the new segments `(from, to)` (in the network's order, each `from` a new node
     /// after its parent `to`) and recomputes every node downstream of a new one, reading nodes
     /// from `node`.
+    #[allow(clippy::too_many_arguments)]
     fn apply(
         &mut self,
         nodes: usize,
@@ -179,6 +186,7 @@ impl GrowingScreen {
         node_at: impl Fn(usize) -> Node,
         rule: WidthRule,
         geometry: &mut ScreenGeometry,
+        most_dirty: usize,
     ) {
         let old_nodes = self.parent.len();
         if nodes == old_nodes && old_nodes > 0 {
@@ -201,8 +209,18 @@ impl GrowingScreen {
         for (index, weight) in self.weight[old_nodes..nodes].iter_mut().enumerate() {
             *weight = node_at(old_nodes + index).weight;
         }
-        // New segments, in the network's order (one per new non-root node, in node order).
+        // New segments, in the network's order (one per new non-root node, in node order),
+        // each followed by marking its node and everything downstream of it, whose values are
+        // needed again; with `most_dirty` met, the nodes after the last one taken wait for the
+        // next update.
+        self.dirty.clear();
+        let mut end = nodes;
+        let mut marked_to = old_nodes;
         for (from, to) in new_segments {
+            if self.dirty.len() >= most_dirty && marked_to > old_nodes {
+                end = from;
+                break;
+            }
             let entry = geometry.len() as u32;
             self.parent[from] = to;
             self.entry_of[from] = entry;
@@ -215,17 +233,26 @@ impl GrowingScreen {
                 // `Network::segment_length`.
                 ramulus_core::fast_libm::hypot(a.x - b.x, a.y - b.y),
             );
-        }
-        // Every new node and everything downstream of one needs its values again.
-        self.dirty.clear();
-        for node in old_nodes..nodes {
-            let mut at = node as u32;
-            while at != NO_PARENT && !self.marked[at as usize] {
-                self.marked[at as usize] = true;
-                self.dirty.push(at);
-                at = self.parent[at as usize];
+            // New roots before `from` have no segment; they are marked as they come.
+            for node in marked_to..=from {
+                self.mark_downstream(node as u32);
             }
+            marked_to = from + 1;
         }
+        for node in marked_to..end {
+            self.mark_downstream(node as u32);
+        }
+        if end < nodes {
+            self.parent.truncate(end);
+            self.first_child.truncate(end);
+            self.next_sibling.truncate(end);
+            self.flow.truncate(end);
+            self.weight.truncate(end);
+            self.order.truncate(end);
+            self.entry_of.truncate(end);
+            self.marked.truncate(end);
+        }
+        self.last_dirty = self.dirty.len();
         // Children have higher indices than their parents, so decreasing index order settles
         // every child before its parent. Each node sums its children newest first, the order
         // in which `Network::topology` adds them (reverse breadth-first order).
@@ -299,6 +326,21 @@ impl GrowingScreen {
                 self.at_low += 1;
             }
         }
+    }
+
+    /// Marks `node` and every unmarked node downstream of it as needing its values again.
+    fn mark_downstream(&mut self, node: u32) {
+        let mut at = node;
+        while at != NO_PARENT && !self.marked[at as usize] {
+            self.marked[at as usize] = true;
+            self.dirty.push(at);
+            at = self.parent[at as usize];
+        }
+    }
+
+    /// Nodes whose values the last update recomputed (the new ones and those downstream).
+    pub fn last_dirty(&self) -> usize {
+        self.last_dirty
     }
 
     /// Whether `network` is the forest last drawn plus appended nodes, each after its parent.
@@ -531,7 +573,7 @@ mod tests {
         }
     }
 
-    /// Refills that take at most a few new nodes each lag behind the grower but always show
+    /// Refills that recompute at most 60 nodes each lag behind the grower but always show
     /// the forest of its first nodes as the whole pipeline draws it, and catch up once growth
     /// stops.
     #[test]
@@ -548,7 +590,8 @@ mod tests {
         let mut refills = 0;
         loop {
             growth.step(25);
-            assert!(growing.update_from_growth_upto(&growth, rule, &mut geometry, 17));
+            assert!(growing.update_from_growth_upto(&growth, rule, &mut geometry, 60));
+            assert!(growing.last_dirty() < 60 + 40, "a bounded refill");
             refills += 1;
             let shown = growing.node_count();
             lagged |= shown < growth.node_count();
@@ -571,7 +614,10 @@ mod tests {
             }
             assert!(refills < 1_000, "the refills catch up");
         }
-        assert!(lagged, "17 nodes a refill fall behind 25 cells a step");
+        assert!(
+            lagged,
+            "60 nodes recomputed a refill fall behind 25 cells a step"
+        );
         assert_eq!(geometry.len(), growth.network().segments.len());
     }
 

@@ -52,7 +52,7 @@ pub struct Simulation {
     view_cache: Option<RunView>,
     /// Benchmark switch: refill the geometry in full every time (see `set_full_refill`).
     full_refill: bool,
-    /// The most new nodes a growing refill takes (`update_geometry_part`).
+    /// The most nodes a growing refill recomputes (`update_geometry_part`).
     refill_most: usize,
     /// Test hook: once the run holds this many cells, `step` fails as a failed allocation
     /// does (see `debug_trap_at_cells`).
@@ -595,10 +595,11 @@ impl Simulation {
         self.update_geometry_part(f64::INFINITY)
     }
 
-    /// `update_geometry`, but a growing refill takes at most `most_nodes` of the nodes grown
-    /// since the last refill (the oldest first): the page bounds one frame's refill while a
-    /// run grows fast, and the geometry shows the run's first nodes until a later refill takes
-    /// the rest (`geometry_behind`).
+    /// `update_geometry`, but a growing refill takes the nodes grown since the last refill
+    /// oldest first and stops once `most_nodes` nodes need their values again (the new ones
+    /// and those downstream; at least one new node is taken): the page bounds one frame's
+    /// refill while a run grows fast, and the geometry shows the run's first nodes until a
+    /// later refill takes the rest (`geometry_behind`).
     pub fn update_geometry_part(&mut self, most_nodes: f64) -> u32 {
         self.refill_most = if most_nodes >= 1.0 {
             most_nodes.min(usize::MAX as f64) as usize
@@ -653,6 +654,12 @@ impl Simulation {
             Err(_) => self.geometry = ScreenGeometry::default(),
         }
         self.geometry.len() as u32
+    }
+
+    /// Nodes the last growing refill recomputed (the new ones and those downstream), the
+    /// measure of its work.
+    pub fn refill_work(&self) -> u32 {
+        self.growing.last_dirty().min(u32::MAX as usize) as u32
     }
 
     /// Whether the geometry shows fewer nodes than the run holds (a bounded growing refill

@@ -101,7 +101,7 @@ async function drawingAndAnimation() {
     console.log(`  frames a picture takes        ${spread(lateDraws.map((drawn) => drawn.parts ?? 1))}`);
     const slowest = [...late].sort((a, b) => b.ms - a.ms).slice(0, 5);
     console.log(`  slowest frames past 100,000 cells (ms: whole = growth + refill + drawing + progress + rest): ${slowest
-      .map((f) => `${f.ms.toFixed(1)} = ${f.stepMs.toFixed(1)} + ${f.refillMs.toFixed(1)} + ${f.drawMs.toFixed(1)}${f.drawMs > 0 && f.drawDetail ? ` (begin ${f.drawDetail.beginMs.toFixed(1)}, lines ${f.drawDetail.linesMs.toFixed(1)}, finish ${f.drawDetail.finishMs.toFixed(1)}: put ${f.drawDetail.putMs?.toFixed(1)}, sort ${f.drawDetail.sortMs?.toFixed(1)}, wide ${f.drawDetail.wideMs?.toFixed(1)}, show ${f.drawDetail.showMs?.toFixed(1)})` : ''} + ${f.progressMs.toFixed(1)} + ${(f.ms - f.stepMs - f.refillMs - f.drawMs - f.progressMs).toFixed(1)}`)
+      .map((f) => `${f.ms.toFixed(1)} = ${f.stepMs.toFixed(1)} + ${f.refillMs.toFixed(1)} + ${f.drawMs.toFixed(1)}${f.drawMs > 0 && f.drawDetail ? ` (begin ${f.drawDetail.beginMs.toFixed(1)}, lines ${f.drawDetail.linesMs.toFixed(1)}, finish ${f.drawDetail.finishMs.toFixed(1)})` : ''} + ${f.progressMs.toFixed(1)} + ${(f.ms - f.stepMs - f.refillMs - f.drawMs - f.progressMs).toFixed(1)}`)
       .join('; ')}`);
     await steady.close();
   }
