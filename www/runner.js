@@ -59,6 +59,8 @@ export class Runner {
     this.generation += 1;
     this.simulation = simulation;
     this.msPerCell = 0.01;
+    this.msPerRefillNode = 0;
+    this.catchingUp = false;
     this.stats = freshStats();
     this.hooks.redraw();
     this.hooks.progress();

@@ -63,6 +63,7 @@ impl GrowingScreen {
         self.next_sibling.clear();
         self.flow.clear();
         self.weight.clear();
+        self.last_dirty = 0;
         self.order.clear();
         self.entry_of.clear();
         self.node_of_entry.clear();
