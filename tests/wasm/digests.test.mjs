@@ -123,6 +123,28 @@ for (const { name, params } of stepwiseCases) {
   });
 }
 
+test('a stop inside a channel energy sweep takes it back: the native run of the whole sweeps', () => {
+  const params = { ...base, joining: 'weighted', seed: 25, units: 'm', cell_size: 0.5, energy_sweeps: 30 };
+  const link = nativeRun(params, 'stop midway').link;
+  const simulation = new glue.Simulation(link);
+  simulation.set_stepwise_passes(true);
+  while (!simulation.finished()) simulation.step(997);
+  simulation.reshape_step(0); // set-up
+  let progress;
+  do progress = JSON.parse(simulation.reshape_step(0)); while (progress.sweep < 1);
+  progress = JSON.parse(simulation.reshape_step(0));
+  assert.equal(progress.sweep, 1);
+  assert.ok(progress.part > 0 && progress.part < progress.part_of, `inside sweep 2: ${progress.part} of ${progress.part_of}`);
+  const stopped = JSON.parse(simulation.reshape_stop());
+  assert.equal(stopped.taken_back, 2);
+  do progress = JSON.parse(simulation.reshape_step(0)); while (!progress.done);
+  assert.equal(progress.log.length, 1, 'one whole sweep');
+  const expected = nativeRun({ ...params, energy_sweeps: 1 }, 'stop midway, one sweep');
+  assert.equal(simulation.digest(), expected.digest);
+  assert.match(simulation.link(), /energy_sweeps=1(&|$)/);
+  simulation.free();
+});
+
 test('a stop after whole channel energy sweeps equals the native run of those sweeps', () => {
   const params = { ...base, joining: 'weighted', seed: 24, units: 'm', cell_size: 0.5, energy_sweeps: 30 };
   const link = nativeRun(params, 'stop whole').link;
@@ -130,8 +152,11 @@ test('a stop after whole channel energy sweeps equals the native run of those sw
   simulation.set_stepwise_passes(true);
   while (!simulation.finished()) simulation.step(997);
   simulation.reshape_step(0); // set-up
-  const first = JSON.parse(simulation.reshape_step(0));
+  // A slice of budget 0 runs one part of a sweep (passes::ITEMS_PER_PART nodes).
+  let first;
+  do first = JSON.parse(simulation.reshape_step(0)); while (first.sweep < 1);
   assert.equal(first.sweep, 1);
+  assert.equal(first.part, 0, 'between sweeps');
   const stopped = JSON.parse(simulation.reshape_stop());
   assert.equal(stopped.stopped, true);
   let progress;
