@@ -36,11 +36,14 @@
 //! flow of the tip that closed it (`Reconnection::wall_flow`), and each new segment carries that
 //! tip's flow. No Kirchhoff solve: the walls' widths record the scale of the loop they close.
 
+mod rotation;
+
 use std::cmp::Reverse;
 use std::collections::BinaryHeap;
 
-use crate::metrics::areoles::{segments_conflict, trace_faces_with_sides};
+use crate::metrics::areoles::segments_conflict;
 use crate::network::{Network, Segment, Topology, NO_PARENT};
+use rotation::RotationSystem;
 
 /// How loops close.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -150,6 +153,16 @@ pub fn close_loops(
         .map(|n| (n as u32, topology.parent[n]))
         .collect();
     let tree_count = segments.len();
+    // With `nest`: every node's position, and the neighbours of each in angular order, kept
+    // as joins are made, for walking the faces each round.
+    let positions: Vec<(f64, f64)> = if rule.nest {
+        network.nodes.iter().map(|node| (node.x, node.y)).collect()
+    } else {
+        Vec::new()
+    };
+    let mut rotation = rule
+        .nest
+        .then(|| RotationSystem::new(&positions, &segments));
     // Per node: the index of its downstream segment in `segments` (for `nest`).
     let mut tree_segment_of = vec![u32::MAX; if rule.nest { count } else { 0 }];
     if rule.nest {
@@ -184,6 +197,9 @@ pub fn close_loops(
                 }
             }
             in_loop[t] = true;
+            if let Some(rotation) = rotation.as_mut() {
+                rotation.add(&positions, u as u32, v as u32);
+            }
             linked[u].push(v as u32);
             linked[v].push(u as u32);
             segment_grid.insert_box(segments.len() as u32, point(u), point(v));
@@ -272,7 +288,7 @@ pub fn close_loops(
         loop {
             // With `nest`, the faces of the looped network so far: each tip hangs in one
             // (the face on both sides of its downstream segment).
-            let faces = rule.nest.then(|| {
+            let faces = rotation.as_mut().map(|rotation| {
                 // The flow each segment is drawn with: tree segments their tree flow raised to
                 // their wall flow, new segments their own.
                 let flows: Vec<f64> = segments
@@ -283,7 +299,7 @@ pub fn close_loops(
                         Some(link) => out.link_flow[link],
                     })
                     .collect();
-                FacesOfTips::trace(network, &segments, &tree_segment_of, &flows)
+                FacesOfTips::trace(&positions, rotation, &segments, &flows)
             });
             let mut offers: Vec<Offer> = Vec::new();
             for &tip in &pending {
@@ -291,7 +307,9 @@ pub fn close_loops(
                 if in_loop[t] || !linked[t].is_empty() {
                     continue;
                 }
-                let face = faces.as_ref().and_then(|faces| faces.bounded_face_of(t));
+                let face = faces
+                    .as_ref()
+                    .and_then(|faces| faces.bounded_face_of(t, &tree_segment_of));
                 // Candidates: veins u upstream of t within reach, and vein nodes v across a gap.
                 candidates.clear();
                 stack.clear();
@@ -370,8 +388,15 @@ pub fn close_loops(
                     // Inside a closed face: the way round (up to half the face's boundary)
                     // says how evenly this wall would halve it; the face takes its best offer
                     // after every tip of the round has made one.
+                    // The join was chosen because no way round is shorter than `ratio` times
+                    // its wall: when half the boundary is no longer than that, none is shorter
+                    // than half either, and the search is not run again.
                     let half = faces.perimeter[face] / 2.0;
-                    let way_round = way_round!(t, join.anchor as usize, half).unwrap_or(half);
+                    let way_round = if half <= rule.ratio * join.wall {
+                        half
+                    } else {
+                        way_round!(t, join.anchor as usize, half).unwrap_or(half)
+                    };
                     offers.push(Offer {
                         face,
                         tip,
@@ -426,7 +451,7 @@ pub fn close_loops(
     out
 }
 
-/// The faces of the looped vein network traced for one round of `nest` (every conducting
+/// The faces of the looped vein network walked for one round of `nest` (every conducting
 /// segment and every new segment so far): per tip, the bounded face it hangs in.
 struct FacesOfTips {
     /// Per face: whether it is bounded (positive traced area).
@@ -439,19 +464,18 @@ struct FacesOfTips {
     perimeter: Vec<f64>,
     /// Per edge of the traced drawing: the face on the walk along `a -> b`.
     left: Vec<u32>,
-    /// Per node: its downstream segment's index in the traced edges (`u32::MAX` for none).
-    edge_of: Vec<u32>,
 }
 
 impl FacesOfTips {
+    /// Walks the faces of `segments` (whose rotation system is `rotation`); `flows` per
+    /// segment.
     fn trace(
-        network: &Network,
+        points: &[(f64, f64)],
+        rotation: &mut RotationSystem,
         segments: &[(u32, u32)],
-        tree_segment_of: &[u32],
         flows: &[f64],
     ) -> FacesOfTips {
-        let points: Vec<(f64, f64)> = network.nodes.iter().map(|node| (node.x, node.y)).collect();
-        let (faces, sides) = trace_faces_with_sides(&points, segments);
+        let (faces, sides) = rotation.faces(points, segments);
         let mut perimeter = vec![0.0; faces.len()];
         let mut thinnest = vec![f64::INFINITY; faces.len()];
         for (index, (&(a, b), &(left, right))) in segments.iter().zip(&sides).enumerate() {
@@ -476,14 +500,14 @@ impl FacesOfTips {
             thinnest,
             bounded: faces.iter().map(|face| face.signed_area > 0.0).collect(),
             left: sides.iter().map(|side| side.0).collect(),
-            edge_of: tree_segment_of.to_vec(),
         }
     }
 
-    /// The bounded face node `t`'s downstream segment lies in; `None` for the outside, where
-    /// any number of walls may close in a round.
-    fn bounded_face_of(&self, t: usize) -> Option<usize> {
-        let edge = *self.edge_of.get(t)?;
+    /// The bounded face node `t`'s downstream segment lies in (`edge_of`: per node, its
+    /// downstream segment's index in the traced edges, `u32::MAX` for none); `None` for the
+    /// outside, where any number of walls may close in a round.
+    fn bounded_face_of(&self, t: usize, edge_of: &[u32]) -> Option<usize> {
+        let edge = *edge_of.get(t)?;
         let face = *self.left.get(edge as usize)? as usize;
         self.bounded
             .get(face)
