@@ -180,6 +180,12 @@ pub fn close_loops(
     let mut in_loop = vec![false; count];
     let mut search = PathSearch::new(count);
     let mut candidates: Vec<Candidate> = Vec::new();
+    // With `nest`, per tip: the candidates that failed when it last offered a join within
+    // this level. Within a level segments and ways round are only ever added, so a join that
+    // crossed a segment still crosses it, and a way round shorter than the bound stays so;
+    // such candidates fail again without being checked.
+    let mut failed: Vec<Vec<CandidateKey>> = vec![Vec::new(); if rule.nest { count } else { 0 }];
+    let mut failed_before: Vec<CandidateKey> = Vec::new();
     let mut stack: Vec<(u32, f64)> = Vec::new();
 
     // Makes tip `t`'s join: the walls t .. u and v .. anchor, and the new segment u v.
@@ -284,6 +290,9 @@ pub fn close_loops(
                 .total_cmp(&topology.flow[a as usize])
                 .then(a.cmp(&b))
         });
+        for list in &mut failed {
+            list.clear();
+        }
         let mut pending = tips;
         loop {
             // With `nest`, the faces of the looped network so far: each tip hangs in one
@@ -302,6 +311,10 @@ pub fn close_loops(
                 FacesOfTips::trace(&positions, rotation, &segments, &flows)
             });
             let mut offers: Vec<Offer> = Vec::new();
+            // Per face: whether an offer of this round already scores half its boundary,
+            // the most any can; a later offer cannot beat it, so its score is not searched.
+            let mut scored_full =
+                vec![false; faces.as_ref().map_or(0, |faces| faces.bounded.len())];
             for &tip in &pending {
                 let t = tip as usize;
                 if in_loop[t] || !linked[t].is_empty() {
@@ -370,15 +383,25 @@ pub fn close_loops(
                         .then(a.v.cmp(&b.v))
                 });
                 let mut chosen = None;
+                if rule.nest {
+                    failed_before.clear();
+                    failed_before.append(&mut failed[t]);
+                }
                 for candidate in candidates.iter().take(TRIES_PER_TIP) {
                     let (u, v) = (candidate.u as usize, candidate.v as usize);
-                    if crosses!(u, v) {
+                    let key = candidate.key();
+                    if failed_before.contains(&key) {
+                        failed[t].push(key);
                         continue;
                     }
                     let bound = rule.ratio * candidate.wall;
-                    if way_round!(t, candidate.anchor as usize, bound).is_none() {
+                    if !crosses!(u, v) && way_round!(t, candidate.anchor as usize, bound).is_none()
+                    {
                         chosen = Some(*candidate);
                         break;
+                    }
+                    if rule.nest {
+                        failed[t].push(key);
                     }
                 }
                 let Some(join) = chosen else {
@@ -392,16 +415,18 @@ pub fn close_loops(
                     // its wall: when half the boundary is no longer than that, none is shorter
                     // than half either, and the search is not run again.
                     let half = faces.perimeter[face] / 2.0;
-                    let way_round = if half <= rule.ratio * join.wall {
+                    let way_round = if scored_full[face] || half <= rule.ratio * join.wall {
                         half
                     } else {
                         way_round!(t, join.anchor as usize, half).unwrap_or(half)
                     };
+                    scored_full[face] = way_round == half;
                     offers.push(Offer {
                         face,
                         tip,
                         join,
                         score: way_round,
+                        links_before: out.links.len(),
                         flow: topology.flow[t].min(FINER_WALL_SHARE * faces.thinnest[face]),
                     });
                     continue;
@@ -427,15 +452,17 @@ pub fn close_loops(
             let mut deferred = Vec::new();
             for (index, offer) in offers.iter().enumerate() {
                 let join = offer.join;
-                // Joins made since the offer (in other faces) may block it: checked again.
+                // Joins made since the offer (in other faces) may block it: checked again
+                // when any was made.
                 if taken[index]
-                    && !crosses!(join.u as usize, join.v as usize)
-                    && way_round!(
-                        offer.tip as usize,
-                        join.anchor as usize,
-                        rule.ratio * join.wall
-                    )
-                    .is_none()
+                    && (out.links.len() == offer.links_before
+                        || !crosses!(join.u as usize, join.v as usize)
+                            && way_round!(
+                                offer.tip as usize,
+                                join.anchor as usize,
+                                rule.ratio * join.wall
+                            )
+                            .is_none())
                 {
                     join_tip!(offer.tip as usize, join, level, offer.flow);
                 } else {
@@ -527,6 +554,15 @@ struct Candidate {
     anchor: u32,
 }
 
+/// A candidate join by its ends, anchor and wall length (bits): equal keys, equal checks.
+type CandidateKey = (u32, u32, u32, u64);
+
+impl Candidate {
+    fn key(&self) -> CandidateKey {
+        (self.u, self.v, self.anchor, self.wall.to_bits())
+    }
+}
+
 /// A tip's join offered to the closed face it hangs in (`nest`).
 #[derive(Clone, Copy, Debug)]
 struct Offer {
@@ -534,8 +570,11 @@ struct Offer {
     face: usize,
     tip: u32,
     join: Candidate,
-    /// The way round from the tip to the join's anchor, up to half the face's boundary.
+    /// The way round from the tip to the join's anchor, up to half the face's boundary (half
+    /// when an earlier offer of the round in the face already scored half).
     score: f64,
+    /// How many new segments there were when the offer was made.
+    links_before: usize,
     /// The flow the new wall is drawn with: the tip's, at most `FINER_WALL_SHARE` of the
     /// thinnest wall of the face.
     flow: f64,
