@@ -311,10 +311,6 @@ pub fn close_loops(
                 FacesOfTips::trace(&positions, rotation, &segments, &flows)
             });
             let mut offers: Vec<Offer> = Vec::new();
-            // Per face: whether an offer of this round already scores half its boundary,
-            // the most any can; a later offer cannot beat it, so its score is not searched.
-            let mut scored_full =
-                vec![false; faces.as_ref().map_or(0, |faces| faces.bounded.len())];
             for &tip in &pending {
                 let t = tip as usize;
                 if in_loop[t] || !linked[t].is_empty() {
@@ -323,6 +319,11 @@ pub fn close_loops(
                 let face = faces
                     .as_ref()
                     .and_then(|faces| faces.bounded_face_of(t, &tree_segment_of));
+                // Half the boundary of the closed face the tip hangs in (`nest`).
+                let half = match (face, faces.as_ref()) {
+                    (Some(face), Some(faces)) => faces.perimeter[face] / 2.0,
+                    _ => 0.0,
+                };
                 // Candidates: veins u upstream of t within reach, and vein nodes v across a gap.
                 candidates.clear();
                 stack.clear();
@@ -387,6 +388,8 @@ pub fn close_loops(
                     failed_before.clear();
                     failed_before.append(&mut failed[t]);
                 }
+                // The way round from t to the chosen join's anchor when shorter than `half`.
+                let mut way_round_found = None;
                 for candidate in candidates.iter().take(TRIES_PER_TIP) {
                     let (u, v) = (candidate.u as usize, candidate.v as usize);
                     let key = candidate.key();
@@ -394,11 +397,19 @@ pub fn close_loops(
                         failed[t].push(key);
                         continue;
                     }
-                    let bound = rule.ratio * candidate.wall;
-                    if !crosses!(u, v) && way_round!(t, candidate.anchor as usize, bound).is_none()
-                    {
-                        chosen = Some(*candidate);
-                        break;
+                    if !crosses!(u, v) {
+                        // One search up to the larger of the bound and half the face's
+                        // boundary: A* pops every node estimated below the smaller bound in
+                        // the same order and with the same distances as a search up to it,
+                        // so a way round below the bound is found as that search finds it,
+                        // and past it the search goes on to the score's bound.
+                        let bound = rule.ratio * candidate.wall;
+                        let found = way_round!(t, candidate.anchor as usize, bound.max(half));
+                        if found.is_none_or(|length| length >= bound) {
+                            chosen = Some(*candidate);
+                            way_round_found = found.filter(|&length| length < half);
+                            break;
+                        }
                     }
                     if rule.nest {
                         failed[t].push(key);
@@ -411,16 +422,7 @@ pub fn close_loops(
                     // Inside a closed face: the way round (up to half the face's boundary)
                     // says how evenly this wall would halve it; the face takes its best offer
                     // after every tip of the round has made one.
-                    // The join was chosen because no way round is shorter than `ratio` times
-                    // its wall: when half the boundary is no longer than that, none is shorter
-                    // than half either, and the search is not run again.
-                    let half = faces.perimeter[face] / 2.0;
-                    let way_round = if scored_full[face] || half <= rule.ratio * join.wall {
-                        half
-                    } else {
-                        way_round!(t, join.anchor as usize, half).unwrap_or(half)
-                    };
-                    scored_full[face] = way_round == half;
+                    let way_round = way_round_found.unwrap_or(half);
                     offers.push(Offer {
                         face,
                         tip,
@@ -570,8 +572,7 @@ struct Offer {
     face: usize,
     tip: u32,
     join: Candidate,
-    /// The way round from the tip to the join's anchor, up to half the face's boundary (half
-    /// when an earlier offer of the round in the face already scored half).
+    /// The way round from the tip to the join's anchor, up to half the face's boundary.
     score: f64,
     /// How many new segments there were when the offer was made.
     links_before: usize,
