@@ -204,7 +204,7 @@ pub fn close_loops(
             }
             in_loop[t] = true;
             if let Some(rotation) = rotation.as_mut() {
-                rotation.add(&positions, u as u32, v as u32);
+                rotation.add(&positions, u as u32, v as u32, segments.len() as u32);
             }
             linked[u].push(v as u32);
             linked[v].push(u as u32);
@@ -295,33 +295,43 @@ pub fn close_loops(
         }
         let mut pending = tips;
         loop {
-            // With `nest`, the faces of the looped network so far: each tip hangs in one
-            // (the face on both sides of its downstream segment).
+            // With `nest`, the faces of the looped network so far that the pending tips hang in
+            // (the face on both sides of a tip's downstream segment), and per pending tip its
+            // face among them.
             let faces = rotation.as_mut().map(|rotation| {
                 // The flow each segment is drawn with: tree segments their tree flow raised to
                 // their wall flow, new segments their own.
-                let flows: Vec<f64> = segments
-                    .iter()
-                    .enumerate()
-                    .map(|(index, &(from, _))| match index.checked_sub(tree_count) {
-                        None => topology.flow[from as usize].max(out.wall_flow[from as usize]),
-                        Some(link) => out.link_flow[link],
-                    })
-                    .collect();
-                FacesOfTips::trace(&positions, rotation, &segments, &flows)
+                let flow = |index: usize| match index.checked_sub(tree_count) {
+                    None => {
+                        let from = segments[index].0 as usize;
+                        topology.flow[from].max(out.wall_flow[from])
+                    }
+                    Some(link) => out.link_flow[link],
+                };
+                let downstream = pending.iter().map(|&tip| {
+                    let t = tip as usize;
+                    match tree_segment_of[t] {
+                        u32::MAX => (tip, tip),
+                        _ => (tip, topology.parent[t]),
+                    }
+                });
+                rotation.faces_along(&positions, &segments, flow, downstream)
             });
             let mut offers: Vec<Offer> = Vec::new();
-            for &tip in &pending {
+            for (pending_index, &tip) in pending.iter().enumerate() {
                 let t = tip as usize;
                 if in_loop[t] || !linked[t].is_empty() {
                     continue;
                 }
-                let face = faces
-                    .as_ref()
-                    .and_then(|faces| faces.bounded_face_of(t, &tree_segment_of));
+                // The bounded face the tip hangs in; `None` for the outside, where any number
+                // of walls may close in a round.
+                let face = faces.as_ref().and_then(|(figures, face_of)| {
+                    let face = face_of[pending_index]? as usize;
+                    (figures[face].signed_area > 0.0).then_some(face)
+                });
                 // Half the boundary of the closed face the tip hangs in (`nest`).
                 let half = match (face, faces.as_ref()) {
-                    (Some(face), Some(faces)) => faces.perimeter[face] / 2.0,
+                    (Some(face), Some((figures, _))) => figures[face].perimeter / 2.0,
                     _ => 0.0,
                 };
                 // Candidates: veins u upstream of t within reach, and vein nodes v across a gap.
@@ -418,7 +428,7 @@ pub fn close_loops(
                 let Some(join) = chosen else {
                     continue;
                 };
-                if let (Some(face), Some(faces)) = (face, faces.as_ref()) {
+                if let (Some(face), Some((figures, _))) = (face, faces.as_ref()) {
                     // Inside a closed face: the way round (up to half the face's boundary)
                     // says how evenly this wall would halve it; the face takes its best offer
                     // after every tip of the round has made one.
@@ -429,7 +439,7 @@ pub fn close_loops(
                         join,
                         score: way_round,
                         links_before: out.links.len(),
-                        flow: topology.flow[t].min(FINER_WALL_SHARE * faces.thinnest[face]),
+                        flow: topology.flow[t].min(FINER_WALL_SHARE * figures[face].thinnest),
                     });
                     continue;
                 }
@@ -478,72 +488,6 @@ pub fn close_loops(
         }
     }
     out
-}
-
-/// The faces of the looped vein network walked for one round of `nest` (every conducting
-/// segment and every new segment so far): per tip, the bounded face it hangs in.
-struct FacesOfTips {
-    /// Per face: whether it is bounded (positive traced area).
-    bounded: Vec<bool>,
-    /// Per face: the least flow a wall of it is drawn with (tree flow, raised by its wall
-    /// flow; a new segment's own flow).
-    thinnest: Vec<f64>,
-    /// Per face: the length of its boundary walk (an edge with the face on both sides counts
-    /// twice).
-    perimeter: Vec<f64>,
-    /// Per edge of the traced drawing: the face on the walk along `a -> b`.
-    left: Vec<u32>,
-}
-
-impl FacesOfTips {
-    /// Walks the faces of `segments` (whose rotation system is `rotation`); `flows` per
-    /// segment.
-    fn trace(
-        points: &[(f64, f64)],
-        rotation: &mut RotationSystem,
-        segments: &[(u32, u32)],
-        flows: &[f64],
-    ) -> FacesOfTips {
-        let (faces, sides) = rotation.faces(points, segments);
-        let mut perimeter = vec![0.0; faces.len()];
-        let mut thinnest = vec![f64::INFINITY; faces.len()];
-        for (index, (&(a, b), &(left, right))) in segments.iter().zip(&sides).enumerate() {
-            let (p, q) = (points[a as usize], points[b as usize]);
-            let length = crate::fast_libm::hypot(p.0 - q.0, p.1 - q.1);
-            let flow = flows.get(index).copied().unwrap_or(0.0);
-            if left != right {
-                for face in [left as usize, right as usize] {
-                    if let Some(least) = thinnest.get_mut(face) {
-                        *least = least.min(flow);
-                    }
-                }
-            }
-            for face in [left, right] {
-                if let Some(total) = perimeter.get_mut(face as usize) {
-                    *total += length;
-                }
-            }
-        }
-        FacesOfTips {
-            perimeter,
-            thinnest,
-            bounded: faces.iter().map(|face| face.signed_area > 0.0).collect(),
-            left: sides.iter().map(|side| side.0).collect(),
-        }
-    }
-
-    /// The bounded face node `t`'s downstream segment lies in (`edge_of`: per node, its
-    /// downstream segment's index in the traced edges, `u32::MAX` for none); `None` for the
-    /// outside, where any number of walls may close in a round.
-    fn bounded_face_of(&self, t: usize, edge_of: &[u32]) -> Option<usize> {
-        let edge = *edge_of.get(t)?;
-        let face = *self.left.get(edge as usize)? as usize;
-        self.bounded
-            .get(face)
-            .copied()
-            .unwrap_or(false)
-            .then_some(face)
-    }
 }
 
 /// One possible join of a tip.

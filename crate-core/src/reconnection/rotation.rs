@@ -1,34 +1,53 @@
 //! `RotationSystem`: the neighbours of every node of a plane drawing in angular order, kept
-//! up to date as edges are added, so that the faces can be walked again after each round of
-//! `nest_loops` without sorting every node's neighbours again.
+//! up to date as edges are added, so that faces can be walked again after each round of
+//! `nest_loops` without sorting every node's neighbours again, and only the faces asked for.
 //!
 //! The order is the one `metrics::areoles::trace_faces_with_sides` sorts into (direction by
 //! `atan2`, compared with `total_cmp`, edges of equal direction in the order they were added, as
-//! a stable sort of the edge list leaves them), and the faces come from the same walk
-//! (`metrics::areoles::walk_faces`), so the faces, their numbering and their traced areas are
-//! those of tracing the whole edge list from scratch, bit for bit.
+//! a stable sort of the edge list leaves them). `faces_along` walks a face as that walk does and
+//! sums its shoelace area from the face's first half-edge in node order, where that walk starts
+//! it, and its boundary length in edge order, as `reconnection` sums it over the whole tracing:
+//! the figures are those of tracing the whole edge list from scratch, bit for bit.
 
 use std::cmp::Ordering;
 
+#[cfg(test)]
 use crate::metrics::areoles::{walk_faces, Face};
 
 /// Per node, its neighbours by direction; scratch rows for the walk.
 pub(crate) struct RotationSystem {
-    /// Per node: `(direction, neighbour)` pairs by direction.
-    around: Vec<Vec<(f64, u32)>>,
-    /// Compressed rows of `around` for the walk: row starts.
+    /// Per node: `(direction, neighbour, edge index)` by direction.
+    around: Vec<Vec<(f64, u32, u32)>>,
+    /// Where each node's half-edges start in node order (half-edge `start[n] + i` is node
+    /// `n`'s `i`-th neighbour), as of the last walk.
     start: Vec<usize>,
-    /// Compressed rows of `around` for the walk: neighbours.
-    flat: Vec<u32>,
+    /// Per half-edge: the face walked along it (`u32::MAX` for none yet).
+    face_of: Vec<u32>,
+    /// The walk of one face: `(node, half-edge)` pairs.
+    walk: Vec<(u32, usize)>,
+    /// The edges along one face, by index.
+    edges_along: Vec<u32>,
+}
+
+/// One face walked by `RotationSystem::faces_along`.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) struct FaceFigures {
+    /// Shoelace area of the walk (positive for a bounded face), summed from the face's first
+    /// half-edge in node order.
+    pub(crate) signed_area: f64,
+    /// Length of the walk, summed in edge order (an edge with the face on both sides twice).
+    pub(crate) perimeter: f64,
+    /// The least `flow` of an edge with the face on one side only (infinite for none).
+    pub(crate) thinnest: f64,
 }
 
 impl RotationSystem {
     /// The rotation system of `edges` between `points`, in that edge order.
     pub(crate) fn new(points: &[(f64, f64)], edges: &[(u32, u32)]) -> RotationSystem {
-        let mut around: Vec<Vec<(f64, u32)>> = vec![Vec::new(); points.len()];
-        for &(a, b) in edges {
-            around[a as usize].push((direction(points, a, b), b));
-            around[b as usize].push((direction(points, b, a), a));
+        let mut around: Vec<Vec<(f64, u32, u32)>> = vec![Vec::new(); points.len()];
+        for (index, &(a, b)) in edges.iter().enumerate() {
+            around[a as usize].push((direction(points, a, b), b, index as u32));
+            around[b as usize].push((direction(points, b, a), a, index as u32));
         }
         // Stable: equal directions keep the edge order.
         for row in &mut around {
@@ -37,35 +56,134 @@ impl RotationSystem {
         RotationSystem {
             around,
             start: Vec::new(),
-            flat: Vec::new(),
+            face_of: Vec::new(),
+            walk: Vec::new(),
+            edges_along: Vec::new(),
         }
     }
 
-    /// Adds the edge `a b` after every edge already in: among equal directions it comes last.
-    pub(crate) fn add(&mut self, points: &[(f64, f64)], a: u32, b: u32) {
+    /// Adds edge number `index`, `a b`, after every edge already in: among equal directions it
+    /// comes last.
+    pub(crate) fn add(&mut self, points: &[(f64, f64)], a: u32, b: u32, index: u32) {
         for (from, to) in [(a, b), (b, a)] {
             let key = direction(points, from, to);
             let row = &mut self.around[from as usize];
             let at = row.partition_point(|entry| entry.0.total_cmp(&key) != Ordering::Greater);
-            row.insert(at, (key, to));
+            row.insert(at, (key, to, index));
+        }
+    }
+
+    /// Walks the face along each half-edge `(node, neighbour)` of `along`, each face once:
+    /// the faces walked, and per half-edge the index of its face among them (`None` when the
+    /// edge is not in). `edges` are the edges added, in order; `flow` gives an edge's flow by
+    /// its index.
+    pub(crate) fn faces_along(
+        &mut self,
+        points: &[(f64, f64)],
+        edges: &[(u32, u32)],
+        flow: impl Fn(usize) -> f64,
+        along: impl Iterator<Item = (u32, u32)>,
+    ) -> (Vec<FaceFigures>, Vec<Option<u32>>) {
+        self.start.clear();
+        self.start.push(0);
+        let mut total = 0;
+        for row in &self.around {
+            total += row.len();
+            self.start.push(total);
+        }
+        self.face_of.clear();
+        self.face_of.resize(total, u32::MAX);
+        let mut faces = Vec::new();
+        let mut face_of_each = Vec::new();
+        for (node, neighbour) in along {
+            let position = self
+                .around
+                .get(node as usize)
+                .and_then(|row| row.iter().position(|entry| entry.1 == neighbour));
+            let Some(position) = position else {
+                face_of_each.push(None);
+                continue;
+            };
+            let first = self.start[node as usize] + position;
+            if self.face_of[first] == u32::MAX {
+                let index = faces.len() as u32;
+                faces.push(self.walk_face(points, edges, &flow, node, first, index));
+            }
+            face_of_each.push(Some(self.face_of[first]));
+        }
+        (faces, face_of_each)
+    }
+
+    /// Walks the face along half-edge `first` (of node `node`), marking its half-edges as face
+    /// `index`, and sums its figures as the whole tracing does.
+    fn walk_face(
+        &mut self,
+        points: &[(f64, f64)],
+        edges: &[(u32, u32)],
+        flow: &impl Fn(usize) -> f64,
+        node: u32,
+        first: usize,
+        index: u32,
+    ) -> FaceFigures {
+        self.walk.clear();
+        self.edges_along.clear();
+        let (mut u, mut k) = (node, first);
+        while self.face_of[k] == u32::MAX {
+            self.face_of[k] = index;
+            self.walk.push((u, k));
+            let (_, v, edge) = self.around[u as usize][k - self.start[u as usize]];
+            self.edges_along.push(edge);
+            // The neighbour of v just before u in angular order.
+            let row = &self.around[v as usize];
+            let back = row.iter().position(|entry| entry.1 == u).unwrap_or(0);
+            let next = if back == 0 { row.len() - 1 } else { back - 1 };
+            (u, k) = (v, self.start[v as usize] + next);
+        }
+        // The whole tracing starts each walk at the face's first half-edge in node order.
+        let start = self
+            .walk
+            .iter()
+            .enumerate()
+            .min_by_key(|(_, &(_, k))| k)
+            .map_or(0, |(at, _)| at);
+        let mut twice_area = 0.0;
+        for &(u, k) in self.walk[start..].iter().chain(&self.walk[..start]) {
+            let v = self.around[u as usize][k - self.start[u as usize]].1;
+            let (a, b) = (points[u as usize], points[v as usize]);
+            twice_area += a.0 * b.1 - b.0 * a.1;
+        }
+        // Boundary length in edge order; the least flow of an edge seen once.
+        self.edges_along.sort_unstable();
+        let mut perimeter = 0.0;
+        let mut thinnest = f64::INFINITY;
+        for (at, &edge) in self.edges_along.iter().enumerate() {
+            let (a, b) = edges[edge as usize];
+            let (p, q) = (points[a as usize], points[b as usize]);
+            perimeter += crate::fast_libm::hypot(p.0 - q.0, p.1 - q.1);
+            let twice = (at > 0 && self.edges_along[at - 1] == edge)
+                || self.edges_along.get(at + 1) == Some(&edge);
+            if !twice {
+                thinnest = thinnest.min(flow(edge as usize));
+            }
+        }
+        FaceFigures {
+            signed_area: twice_area / 2.0,
+            perimeter,
+            thinnest,
         }
     }
 
     /// Walks every face; per edge of `edges` (the edges added, in the order added), the face on
     /// each side (as `metrics::areoles::trace_faces_with_sides`).
-    pub(crate) fn faces(
-        &mut self,
-        points: &[(f64, f64)],
-        edges: &[(u32, u32)],
-    ) -> (Vec<Face>, Vec<(u32, u32)>) {
-        self.start.clear();
-        self.flat.clear();
-        self.start.push(0);
+    #[cfg(test)]
+    fn faces(&self, points: &[(f64, f64)], edges: &[(u32, u32)]) -> (Vec<Face>, Vec<(u32, u32)>) {
+        let mut start = vec![0];
+        let mut flat = Vec::new();
         for row in &self.around {
-            self.flat.extend(row.iter().map(|entry| entry.1));
-            self.start.push(self.flat.len());
+            flat.extend(row.iter().map(|entry| entry.1));
+            start.push(flat.len());
         }
-        walk_faces(points, &self.start, &self.flat, edges)
+        walk_faces(points, &start, &flat, edges)
     }
 }
 
@@ -108,20 +226,49 @@ mod tests {
             trace_faces_with_sides(&points, &edges)
         );
         for &(a, b) in &closing {
-            rotation.add(&points, a, b);
+            rotation.add(&points, a, b, edges.len() as u32);
             edges.push((a, b));
             assert_eq!(
                 rotation.faces(&points, &edges),
                 trace_faces_with_sides(&points, &edges)
             );
+            // Each face walked alone has the area of the whole tracing, bit for bit.
+            let (traced, sides) = trace_faces_with_sides(&points, &edges);
+            let (walked, face_of) = rotation.faces_along(
+                &points,
+                &edges,
+                |_| 1.0,
+                edges
+                    .iter()
+                    .copied()
+                    .chain(edges.iter().map(|&(a, b)| (b, a))),
+            );
+            for (index, side) in sides.iter().enumerate() {
+                for (along, face) in [(index, side.0), (index + edges.len(), side.1)] {
+                    let walked_face = walked[face_of[along].expect("an edge that is in") as usize];
+                    assert_eq!(
+                        walked_face.signed_area.to_bits(),
+                        traced[face as usize].signed_area.to_bits()
+                    );
+                }
+            }
         }
         let (faces, _) = rotation.faces(&points, &edges);
         let bounded = faces.iter().filter(|face| face.signed_area > 0.0).count();
         assert_eq!((faces.len(), bounded), (5, 4));
-        // Each bounded face is a unit square (shoelace area 1).
+        // Each bounded face is a unit square (shoelace area 1, boundary 4); the outside's
+        // boundary is the 3 x 3 square's, 8.
         assert!(faces
             .iter()
             .filter(|face| face.signed_area > 0.0)
             .all(|face| face.signed_area == 1.0));
+        let (walked, _) =
+            rotation.faces_along(&points, &edges, |_| 1.0, [(0, 1), (1, 0)].into_iter());
+        let mut figures: Vec<(f64, f64)> = walked
+            .iter()
+            .map(|face| (face.signed_area, face.perimeter))
+            .collect();
+        figures.sort_by(|a, b| a.0.total_cmp(&b.0));
+        assert_eq!(figures, vec![(-4.0, 8.0), (1.0, 4.0)]);
     }
 }
