@@ -315,7 +315,15 @@ pub fn close_loops(
                         _ => (tip, topology.parent[t]),
                     }
                 });
-                rotation.faces_along(&positions, &segments, flow, downstream)
+                let (figures, face_of) =
+                    rotation.faces_along(&positions, &segments, flow, downstream);
+                // Pending tips per face: a face with one alone takes its offer, whatever its
+                // score.
+                let mut tips_in = vec![0u32; figures.len()];
+                for &face in face_of.iter().flatten() {
+                    tips_in[face as usize] += 1;
+                }
+                (figures, face_of, tips_in)
             });
             let mut offers: Vec<Offer> = Vec::new();
             for (pending_index, &tip) in pending.iter().enumerate() {
@@ -325,13 +333,17 @@ pub fn close_loops(
                 }
                 // The bounded face the tip hangs in; `None` for the outside, where any number
                 // of walls may close in a round.
-                let face = faces.as_ref().and_then(|(figures, face_of)| {
+                let face = faces.as_ref().and_then(|(figures, face_of, _)| {
                     let face = face_of[pending_index]? as usize;
                     (figures[face].signed_area > 0.0).then_some(face)
                 });
-                // Half the boundary of the closed face the tip hangs in (`nest`).
+                // Half the boundary of the closed face the tip hangs in (`nest`), the most a
+                // way round scores; 0 when the tip is the face's only one, whose offer is
+                // taken whatever it scores, so that no search goes beyond the join's bound.
                 let half = match (face, faces.as_ref()) {
-                    (Some(face), Some((figures, _))) => figures[face].perimeter / 2.0,
+                    (Some(face), Some((figures, _, tips_in))) if tips_in[face] > 1 => {
+                        figures[face].perimeter / 2.0
+                    }
                     _ => 0.0,
                 };
                 // Candidates: veins u upstream of t within reach, and vein nodes v across a gap.
@@ -428,7 +440,7 @@ pub fn close_loops(
                 let Some(join) = chosen else {
                     continue;
                 };
-                if let (Some(face), Some((figures, _))) = (face, faces.as_ref()) {
+                if let (Some(face), Some((figures, _, _))) = (face, faces.as_ref()) {
                     // Inside a closed face: the way round (up to half the face's boundary)
                     // says how evenly this wall would halve it; the face takes its best offer
                     // after every tip of the round has made one.
