@@ -196,6 +196,10 @@ pub fn close_loops(
             for (start, end) in [(u, t), (v, anchor)] {
                 let mut node = start;
                 while node != end {
+                    // The wall's flow may change: the faces beside it are walked again.
+                    if let Some(rotation) = rotation.as_mut() {
+                        rotation.forget_faces_beside(node as u32, topology.parent[node]);
+                    }
                     level_of[node] = level_of[node].min(level);
                     in_loop[node] = true;
                     out.wall_flow[node] = out.wall_flow[node].max(flow);

@@ -1,6 +1,9 @@
 //! `RotationSystem`: the neighbours of every node of a plane drawing in angular order, kept
 //! up to date as edges are added, so that faces can be walked again after each round of
-//! `nest_loops` without sorting every node's neighbours again, and only the faces asked for.
+//! `nest_loops` without sorting every node's neighbours again, and only the faces asked for
+//! that changed: an edge added between `a` and `b` changes only the walks through the corners
+//! of `a` and `b` (the faces it splits or joins), so a face walked before keeps its figures
+//! until an edge is added at one of its nodes or an edge of it changes its flow.
 //!
 //! The order is the one `metrics::areoles::trace_faces_with_sides` sorts into (direction by
 //! `atan2`, compared with `total_cmp`, edges of equal direction in the order they were added, as
@@ -14,16 +17,15 @@ use std::cmp::Ordering;
 #[cfg(test)]
 use crate::metrics::areoles::{walk_faces, Face};
 
-/// Per node, its neighbours by direction; scratch rows for the walk.
+/// Per node, its neighbours by direction, each half-edge with the face last walked along it;
+/// the faces walked; scratch rows for the walk.
 pub(crate) struct RotationSystem {
-    /// Per node: `(direction, neighbour, edge index)` by direction.
-    around: Vec<Vec<(f64, u32, u32)>>,
-    /// Where each node's half-edges start in node order (half-edge `start[n] + i` is node
-    /// `n`'s `i`-th neighbour), as of the last walk.
-    start: Vec<usize>,
-    /// Per half-edge: the face walked along it (`u32::MAX` for none yet).
-    face_of: Vec<u32>,
-    /// The walk of one face: `(node, half-edge)` pairs.
+    /// Per node: `(direction, neighbour, edge index, face walked)` by direction; the face is
+    /// an index into `walked` (`u32::MAX` for none yet).
+    around: Vec<Vec<(f64, u32, u32, u32)>>,
+    /// Every face walked, with whether its figures still hold.
+    walked: Vec<(FaceFigures, bool)>,
+    /// The walk of one face: `(node, position in its row)` pairs.
     walk: Vec<(u32, usize)>,
     /// The edges along one face, by index.
     edges_along: Vec<u32>,
@@ -44,10 +46,10 @@ pub(crate) struct FaceFigures {
 impl RotationSystem {
     /// The rotation system of `edges` between `points`, in that edge order.
     pub(crate) fn new(points: &[(f64, f64)], edges: &[(u32, u32)]) -> RotationSystem {
-        let mut around: Vec<Vec<(f64, u32, u32)>> = vec![Vec::new(); points.len()];
+        let mut around: Vec<Vec<(f64, u32, u32, u32)>> = vec![Vec::new(); points.len()];
         for (index, &(a, b)) in edges.iter().enumerate() {
-            around[a as usize].push((direction(points, a, b), b, index as u32));
-            around[b as usize].push((direction(points, b, a), a, index as u32));
+            around[a as usize].push((direction(points, a, b), b, index as u32, u32::MAX));
+            around[b as usize].push((direction(points, b, a), a, index as u32, u32::MAX));
         }
         // Stable: equal directions keep the edge order.
         for row in &mut around {
@@ -55,28 +57,51 @@ impl RotationSystem {
         }
         RotationSystem {
             around,
-            start: Vec::new(),
-            face_of: Vec::new(),
+            walked: Vec::new(),
             walk: Vec::new(),
             edges_along: Vec::new(),
+        }
+    }
+
+    /// Marks the faces at every corner of `node` as changed.
+    fn forget_faces_at(&mut self, node: u32) {
+        for entry in &self.around[node as usize] {
+            if let Some(face) = self.walked.get_mut(entry.3 as usize) {
+                face.1 = false;
+            }
+        }
+    }
+
+    /// Marks the faces on both sides of the edge `a b` as changed (its flow changes).
+    pub(crate) fn forget_faces_beside(&mut self, a: u32, b: u32) {
+        for (from, to) in [(a, b), (b, a)] {
+            let face = self.around[from as usize]
+                .iter()
+                .find(|entry| entry.1 == to)
+                .map(|entry| entry.3);
+            if let Some(face) = face.and_then(|face| self.walked.get_mut(face as usize)) {
+                face.1 = false;
+            }
         }
     }
 
     /// Adds edge number `index`, `a b`, after every edge already in: among equal directions it
     /// comes last.
     pub(crate) fn add(&mut self, points: &[(f64, f64)], a: u32, b: u32, index: u32) {
+        self.forget_faces_at(a);
+        self.forget_faces_at(b);
         for (from, to) in [(a, b), (b, a)] {
             let key = direction(points, from, to);
             let row = &mut self.around[from as usize];
             let at = row.partition_point(|entry| entry.0.total_cmp(&key) != Ordering::Greater);
-            row.insert(at, (key, to, index));
+            row.insert(at, (key, to, index, u32::MAX));
         }
     }
 
-    /// Walks the face along each half-edge `(node, neighbour)` of `along`, each face once:
-    /// the faces walked, and per half-edge the index of its face among them (`None` when the
-    /// edge is not in). `edges` are the edges added, in order; `flow` gives an edge's flow by
-    /// its index.
+    /// The face along each half-edge `(node, neighbour)` of `along`, walked again only when
+    /// it changed since it was last walked: the faces, and per half-edge the index of its face
+    /// among them (`None` when the edge is not in). `edges` are the edges added, in order;
+    /// `flow` gives an edge's flow by its index.
     pub(crate) fn faces_along(
         &mut self,
         points: &[(f64, f64)],
@@ -84,16 +109,8 @@ impl RotationSystem {
         flow: impl Fn(usize) -> f64,
         along: impl Iterator<Item = (u32, u32)>,
     ) -> (Vec<FaceFigures>, Vec<Option<u32>>) {
-        self.start.clear();
-        self.start.push(0);
-        let mut total = 0;
-        for row in &self.around {
-            total += row.len();
-            self.start.push(total);
-        }
-        self.face_of.clear();
-        self.face_of.resize(total, u32::MAX);
         let mut faces = Vec::new();
+        let mut index_of: std::collections::HashMap<u32, u32> = Default::default();
         let mut face_of_each = Vec::new();
         for (node, neighbour) in along {
             let position = self
@@ -104,51 +121,61 @@ impl RotationSystem {
                 face_of_each.push(None);
                 continue;
             };
-            let first = self.start[node as usize] + position;
-            if self.face_of[first] == u32::MAX {
-                let index = faces.len() as u32;
-                faces.push(self.walk_face(points, edges, &flow, node, first, index));
+            let mut face = self.around[node as usize][position].3;
+            if !self
+                .walked
+                .get(face as usize)
+                .is_some_and(|walked| walked.1)
+            {
+                face = self.walked.len() as u32;
+                let figures = self.walk_face(points, edges, &flow, node, position, face);
+                self.walked.push((figures, true));
             }
-            face_of_each.push(Some(self.face_of[first]));
+            let local = *index_of.entry(face).or_insert_with(|| {
+                faces.push(self.walked[face as usize].0);
+                faces.len() as u32 - 1
+            });
+            face_of_each.push(Some(local));
         }
         (faces, face_of_each)
     }
 
-    /// Walks the face along half-edge `first` (of node `node`), marking its half-edges as face
-    /// `index`, and sums its figures as the whole tracing does.
+    /// Walks the face along the half-edge at `position` in `node`'s row, marking its
+    /// half-edges as face `index`, and sums its figures as the whole tracing does.
     fn walk_face(
         &mut self,
         points: &[(f64, f64)],
         edges: &[(u32, u32)],
         flow: &impl Fn(usize) -> f64,
         node: u32,
-        first: usize,
+        position: usize,
         index: u32,
     ) -> FaceFigures {
         self.walk.clear();
         self.edges_along.clear();
-        let (mut u, mut k) = (node, first);
-        while self.face_of[k] == u32::MAX {
-            self.face_of[k] = index;
-            self.walk.push((u, k));
-            let (_, v, edge) = self.around[u as usize][k - self.start[u as usize]];
+        let (mut u, mut at) = (node, position);
+        while self.around[u as usize][at].3 != index {
+            let entry = &mut self.around[u as usize][at];
+            entry.3 = index;
+            let (v, edge) = (entry.1, entry.2);
+            self.walk.push((u, at));
             self.edges_along.push(edge);
             // The neighbour of v just before u in angular order.
             let row = &self.around[v as usize];
             let back = row.iter().position(|entry| entry.1 == u).unwrap_or(0);
             let next = if back == 0 { row.len() - 1 } else { back - 1 };
-            (u, k) = (v, self.start[v as usize] + next);
+            (u, at) = (v, next);
         }
         // The whole tracing starts each walk at the face's first half-edge in node order.
         let start = self
             .walk
             .iter()
             .enumerate()
-            .min_by_key(|(_, &(_, k))| k)
+            .min_by_key(|(_, &corner)| corner)
             .map_or(0, |(at, _)| at);
         let mut twice_area = 0.0;
-        for &(u, k) in self.walk[start..].iter().chain(&self.walk[..start]) {
-            let v = self.around[u as usize][k - self.start[u as usize]].1;
+        for &(u, at) in self.walk[start..].iter().chain(&self.walk[..start]) {
+            let v = self.around[u as usize][at].1;
             let (a, b) = (points[u as usize], points[v as usize]);
             twice_area += a.0 * b.1 - b.0 * a.1;
         }
