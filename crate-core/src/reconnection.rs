@@ -23,11 +23,12 @@
 //! grown veins and only the short new segments are added, so the network stays a plane graph.
 //!
 //! With `nest` (`nest_loops`) a level closes its loops in rounds: at the start of a round the
-//! faces of the looped network so far are traced; a tip hanging in the outside joins at once
-//! as above, but a tip hanging in a closed face only offers its join, and each closed face
-//! takes one offer per round, the one whose way round (up to half the face's boundary) is
-//! longest, so that the new wall divides the face most evenly; the other tips of that face
-//! try again in the next round, inside one of the two halves. Rounds repeat until no face
+//! faces of the looped network so far are traced (only those joins changed are walked again:
+//! `rotation`); a tip hanging in the outside joins at once as above, but a tip hanging in a
+//! closed face only offers its join, and each closed face takes one offer per round, the one
+//! whose way round (up to half the face's boundary) is longest, so that the new wall divides
+//! the face most evenly; the other tips of that face try again in the next round, inside one
+//! of the two halves. Rounds repeat until no face
 //! takes an offer. Each face is thus halved, and its halves halved again by smaller veins,
 //! as each new vein divides an areole in the sequential reticulation of developing leaves
 //! (Couder et al. 2002, Eur. Phys. J. B 28; Bohn, Douady & Couder 2005).
