@@ -23,11 +23,12 @@
 //! grown veins and only the short new segments are added, so the network stays a plane graph.
 //!
 //! With `nest` (`nest_loops`) a level closes its loops in rounds: at the start of a round the
-//! faces of the looped network so far are traced; a tip hanging in the outside joins at once
-//! as above, but a tip hanging in a closed face only offers its join, and each closed face
-//! takes one offer per round, the one whose way round (up to half the face's boundary) is
-//! longest, so that the new wall divides the face most evenly; the other tips of that face
-//! try again in the next round, inside one of the two halves. Rounds repeat until no face
+//! faces of the looped network so far are traced (only those joins changed are walked again:
+//! `rotation`); a tip hanging in the outside joins at once as above, but a tip hanging in a
+//! closed face only offers its join, and each closed face takes one offer per round, the one
+//! whose way round (up to half the face's boundary) is longest, so that the new wall divides
+//! the face most evenly; the other tips of that face try again in the next round, inside one
+//! of the two halves. Rounds repeat until no face
 //! takes an offer. Each face is thus halved, and its halves halved again by smaller veins,
 //! as each new vein divides an areole in the sequential reticulation of developing leaves
 //! (Couder et al. 2002, Eur. Phys. J. B 28; Bohn, Douady & Couder 2005).
@@ -36,11 +37,14 @@
 //! flow of the tip that closed it (`Reconnection::wall_flow`), and each new segment carries that
 //! tip's flow. No Kirchhoff solve: the walls' widths record the scale of the loop they close.
 
+mod rotation;
+
 use std::cmp::Reverse;
 use std::collections::BinaryHeap;
 
-use crate::metrics::areoles::{segments_conflict, trace_faces_with_sides};
+use crate::metrics::areoles::segments_conflict;
 use crate::network::{Network, Segment, Topology, NO_PARENT};
+use rotation::RotationSystem;
 
 /// How loops close.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -150,6 +154,16 @@ pub fn close_loops(
         .map(|n| (n as u32, topology.parent[n]))
         .collect();
     let tree_count = segments.len();
+    // With `nest`: every node's position, and the neighbours of each in angular order, kept
+    // as joins are made, for walking the faces each round.
+    let positions: Vec<(f64, f64)> = if rule.nest {
+        network.nodes.iter().map(|node| (node.x, node.y)).collect()
+    } else {
+        Vec::new()
+    };
+    let mut rotation = rule
+        .nest
+        .then(|| RotationSystem::new(&positions, &segments));
     // Per node: the index of its downstream segment in `segments` (for `nest`).
     let mut tree_segment_of = vec![u32::MAX; if rule.nest { count } else { 0 }];
     if rule.nest {
@@ -167,6 +181,12 @@ pub fn close_loops(
     let mut in_loop = vec![false; count];
     let mut search = PathSearch::new(count);
     let mut candidates: Vec<Candidate> = Vec::new();
+    // With `nest`, per tip: the candidates that failed when it last offered a join within
+    // this level. Within a level segments and ways round are only ever added, so a join that
+    // crossed a segment still crosses it, and a way round shorter than the bound stays so;
+    // such candidates fail again without being checked.
+    let mut failed: Vec<Vec<CandidateKey>> = vec![Vec::new(); if rule.nest { count } else { 0 }];
+    let mut failed_before: Vec<CandidateKey> = Vec::new();
     let mut stack: Vec<(u32, f64)> = Vec::new();
 
     // Makes tip `t`'s join: the walls t .. u and v .. anchor, and the new segment u v.
@@ -177,6 +197,10 @@ pub fn close_loops(
             for (start, end) in [(u, t), (v, anchor)] {
                 let mut node = start;
                 while node != end {
+                    // The wall's flow may change: the faces beside it are walked again.
+                    if let Some(rotation) = rotation.as_mut() {
+                        rotation.forget_faces_beside(node as u32, topology.parent[node]);
+                    }
                     level_of[node] = level_of[node].min(level);
                     in_loop[node] = true;
                     out.wall_flow[node] = out.wall_flow[node].max(flow);
@@ -184,6 +208,9 @@ pub fn close_loops(
                 }
             }
             in_loop[t] = true;
+            if let Some(rotation) = rotation.as_mut() {
+                rotation.add(&positions, u as u32, v as u32, segments.len() as u32);
+            }
             linked[u].push(v as u32);
             linked[v].push(u as u32);
             segment_grid.insert_box(segments.len() as u32, point(u), point(v));
@@ -268,30 +295,62 @@ pub fn close_loops(
                 .total_cmp(&topology.flow[a as usize])
                 .then(a.cmp(&b))
         });
+        for list in &mut failed {
+            list.clear();
+        }
         let mut pending = tips;
         loop {
-            // With `nest`, the faces of the looped network so far: each tip hangs in one
-            // (the face on both sides of its downstream segment).
-            let faces = rule.nest.then(|| {
+            // With `nest`, the faces of the looped network so far that the pending tips hang in
+            // (the face on both sides of a tip's downstream segment), and per pending tip its
+            // face among them.
+            let faces = rotation.as_mut().map(|rotation| {
                 // The flow each segment is drawn with: tree segments their tree flow raised to
                 // their wall flow, new segments their own.
-                let flows: Vec<f64> = segments
-                    .iter()
-                    .enumerate()
-                    .map(|(index, &(from, _))| match index.checked_sub(tree_count) {
-                        None => topology.flow[from as usize].max(out.wall_flow[from as usize]),
-                        Some(link) => out.link_flow[link],
-                    })
-                    .collect();
-                FacesOfTips::trace(network, &segments, &tree_segment_of, &flows)
+                let flow = |index: usize| match index.checked_sub(tree_count) {
+                    None => {
+                        let from = segments[index].0 as usize;
+                        topology.flow[from].max(out.wall_flow[from])
+                    }
+                    Some(link) => out.link_flow[link],
+                };
+                let downstream = pending.iter().map(|&tip| {
+                    let t = tip as usize;
+                    match tree_segment_of[t] {
+                        u32::MAX => (tip, tip),
+                        _ => (tip, topology.parent[t]),
+                    }
+                });
+                let (figures, face_of) =
+                    rotation.faces_along(&positions, &segments, flow, downstream);
+                // Pending tips per face: a face with one alone takes its offer, whatever its
+                // score.
+                let mut tips_in = vec![0u32; figures.len()];
+                for &face in face_of.iter().flatten() {
+                    tips_in[face as usize] += 1;
+                }
+                (figures, face_of, tips_in)
             });
             let mut offers: Vec<Offer> = Vec::new();
-            for &tip in &pending {
+            for (pending_index, &tip) in pending.iter().enumerate() {
                 let t = tip as usize;
                 if in_loop[t] || !linked[t].is_empty() {
                     continue;
                 }
-                let face = faces.as_ref().and_then(|faces| faces.bounded_face_of(t));
+                // The bounded face the tip hangs in; `None` for the outside, where any number
+                // of walls may close in a round.
+                let face = faces.as_ref().and_then(|(figures, face_of, _)| {
+                    let face = face_of[pending_index]? as usize;
+                    (figures[face].signed_area > 0.0).then_some(face)
+                });
+                // Half the boundary of the closed face the tip hangs in (`nest`), the most a
+                // way round scores; 0 when the tip is the face's only one, whose offer is
+                // taken whatever it scores, so that no search goes beyond the join's bound.
+                let half = match (face, faces.as_ref()) {
+                    (Some(face), Some((figures, _, tips_in))) if tips_in[face] > 1 => {
+                        figures[face].perimeter / 2.0
+                    }
+                    _ => 0.0,
+                };
                 // Candidates: veins u upstream of t within reach, and vein nodes v across a gap.
                 candidates.clear();
                 stack.clear();
@@ -352,32 +411,52 @@ pub fn close_loops(
                         .then(a.v.cmp(&b.v))
                 });
                 let mut chosen = None;
+                if rule.nest {
+                    failed_before.clear();
+                    failed_before.append(&mut failed[t]);
+                }
+                // The way round from t to the chosen join's anchor when shorter than `half`.
+                let mut way_round_found = None;
                 for candidate in candidates.iter().take(TRIES_PER_TIP) {
                     let (u, v) = (candidate.u as usize, candidate.v as usize);
-                    if crosses!(u, v) {
+                    let key = candidate.key();
+                    if failed_before.contains(&key) {
+                        failed[t].push(key);
                         continue;
                     }
-                    let bound = rule.ratio * candidate.wall;
-                    if way_round!(t, candidate.anchor as usize, bound).is_none() {
-                        chosen = Some(*candidate);
-                        break;
+                    if !crosses!(u, v) {
+                        // One search up to the larger of the bound and half the face's
+                        // boundary: A* pops every node estimated below the smaller bound in
+                        // the same order and with the same distances as a search up to it,
+                        // so a way round below the bound is found as that search finds it,
+                        // and past it the search goes on to the score's bound.
+                        let bound = rule.ratio * candidate.wall;
+                        let found = way_round!(t, candidate.anchor as usize, bound.max(half));
+                        if found.is_none_or(|length| length >= bound) {
+                            chosen = Some(*candidate);
+                            way_round_found = found.filter(|&length| length < half);
+                            break;
+                        }
+                    }
+                    if rule.nest {
+                        failed[t].push(key);
                     }
                 }
                 let Some(join) = chosen else {
                     continue;
                 };
-                if let (Some(face), Some(faces)) = (face, faces.as_ref()) {
+                if let (Some(face), Some((figures, _, _))) = (face, faces.as_ref()) {
                     // Inside a closed face: the way round (up to half the face's boundary)
                     // says how evenly this wall would halve it; the face takes its best offer
                     // after every tip of the round has made one.
-                    let half = faces.perimeter[face] / 2.0;
-                    let way_round = way_round!(t, join.anchor as usize, half).unwrap_or(half);
+                    let way_round = way_round_found.unwrap_or(half);
                     offers.push(Offer {
                         face,
                         tip,
                         join,
                         score: way_round,
-                        flow: topology.flow[t].min(FINER_WALL_SHARE * faces.thinnest[face]),
+                        links_before: out.links.len(),
+                        flow: topology.flow[t].min(FINER_WALL_SHARE * figures[face].thinnest),
                     });
                     continue;
                 }
@@ -402,15 +481,17 @@ pub fn close_loops(
             let mut deferred = Vec::new();
             for (index, offer) in offers.iter().enumerate() {
                 let join = offer.join;
-                // Joins made since the offer (in other faces) may block it: checked again.
+                // Joins made since the offer (in other faces) may block it: checked again
+                // when any was made.
                 if taken[index]
-                    && !crosses!(join.u as usize, join.v as usize)
-                    && way_round!(
-                        offer.tip as usize,
-                        join.anchor as usize,
-                        rule.ratio * join.wall
-                    )
-                    .is_none()
+                    && (out.links.len() == offer.links_before
+                        || !crosses!(join.u as usize, join.v as usize)
+                            && way_round!(
+                                offer.tip as usize,
+                                join.anchor as usize,
+                                rule.ratio * join.wall
+                            )
+                            .is_none())
                 {
                     join_tip!(offer.tip as usize, join, level, offer.flow);
                 } else {
@@ -426,73 +507,6 @@ pub fn close_loops(
     out
 }
 
-/// The faces of the looped vein network traced for one round of `nest` (every conducting
-/// segment and every new segment so far): per tip, the bounded face it hangs in.
-struct FacesOfTips {
-    /// Per face: whether it is bounded (positive traced area).
-    bounded: Vec<bool>,
-    /// Per face: the least flow a wall of it is drawn with (tree flow, raised by its wall
-    /// flow; a new segment's own flow).
-    thinnest: Vec<f64>,
-    /// Per face: the length of its boundary walk (an edge with the face on both sides counts
-    /// twice).
-    perimeter: Vec<f64>,
-    /// Per edge of the traced drawing: the face on the walk along `a -> b`.
-    left: Vec<u32>,
-    /// Per node: its downstream segment's index in the traced edges (`u32::MAX` for none).
-    edge_of: Vec<u32>,
-}
-
-impl FacesOfTips {
-    fn trace(
-        network: &Network,
-        segments: &[(u32, u32)],
-        tree_segment_of: &[u32],
-        flows: &[f64],
-    ) -> FacesOfTips {
-        let points: Vec<(f64, f64)> = network.nodes.iter().map(|node| (node.x, node.y)).collect();
-        let (faces, sides) = trace_faces_with_sides(&points, segments);
-        let mut perimeter = vec![0.0; faces.len()];
-        let mut thinnest = vec![f64::INFINITY; faces.len()];
-        for (index, (&(a, b), &(left, right))) in segments.iter().zip(&sides).enumerate() {
-            let (p, q) = (points[a as usize], points[b as usize]);
-            let length = crate::fast_libm::hypot(p.0 - q.0, p.1 - q.1);
-            let flow = flows.get(index).copied().unwrap_or(0.0);
-            if left != right {
-                for face in [left as usize, right as usize] {
-                    if let Some(least) = thinnest.get_mut(face) {
-                        *least = least.min(flow);
-                    }
-                }
-            }
-            for face in [left, right] {
-                if let Some(total) = perimeter.get_mut(face as usize) {
-                    *total += length;
-                }
-            }
-        }
-        FacesOfTips {
-            perimeter,
-            thinnest,
-            bounded: faces.iter().map(|face| face.signed_area > 0.0).collect(),
-            left: sides.iter().map(|side| side.0).collect(),
-            edge_of: tree_segment_of.to_vec(),
-        }
-    }
-
-    /// The bounded face node `t`'s downstream segment lies in; `None` for the outside, where
-    /// any number of walls may close in a round.
-    fn bounded_face_of(&self, t: usize) -> Option<usize> {
-        let edge = *self.edge_of.get(t)?;
-        let face = *self.left.get(edge as usize)? as usize;
-        self.bounded
-            .get(face)
-            .copied()
-            .unwrap_or(false)
-            .then_some(face)
-    }
-}
-
 /// One possible join of a tip.
 #[derive(Clone, Copy, Debug)]
 struct Candidate {
@@ -501,6 +515,15 @@ struct Candidate {
     u: u32,
     v: u32,
     anchor: u32,
+}
+
+/// A candidate join by its ends, anchor and wall length (bits): equal keys, equal checks.
+type CandidateKey = (u32, u32, u32, u64);
+
+impl Candidate {
+    fn key(&self) -> CandidateKey {
+        (self.u, self.v, self.anchor, self.wall.to_bits())
+    }
 }
 
 /// A tip's join offered to the closed face it hangs in (`nest`).
@@ -512,6 +535,8 @@ struct Offer {
     join: Candidate,
     /// The way round from the tip to the join's anchor, up to half the face's boundary.
     score: f64,
+    /// How many new segments there were when the offer was made.
+    links_before: usize,
     /// The flow the new wall is drawn with: the tip's, at most `FINER_WALL_SHARE` of the
     /// thinnest wall of the face.
     flow: f64,

@@ -131,6 +131,20 @@ pub(crate) fn trace_faces_with_sides(
         around[start[node]..start[node + 1]]
             .sort_by(|&p, &q| direction(node as u32, p).total_cmp(&direction(node as u32, q)));
     }
+    walk_faces(points, &start, &around, edges)
+}
+
+/// Walks every face of a plane drawing given its rotation system: the neighbours of node `n`
+/// are `around[start[n]..start[n + 1]]`, in angular order. Faces are numbered in the order
+/// their first half-edge comes (node by node, each node's neighbours in order); per edge
+/// `(a, b)` of `edges`, the face along `a -> b` and the face along `b -> a`.
+pub(crate) fn walk_faces(
+    points: &[(f64, f64)],
+    start: &[usize],
+    around: &[u32],
+    edges: &[(u32, u32)],
+) -> (Vec<Face>, Vec<(u32, u32)>) {
+    let count = start.len().saturating_sub(1);
     // Half-edge k is (node, around[k]); visited per half-edge.
     let mut visited = vec![false; around.len()];
     let position_of = |node: u32, neighbour: u32| -> usize {
