@@ -421,6 +421,22 @@ mod tests {
 
     /// The geometry as the core's pipeline gives it from scratch (topology, conducting
     /// network and widths passes, then `ScreenGeometry::fill`).
+    /// Every buffer a refill fills, and the draw order, equal to the full pipeline's.
+    fn assert_same_geometry(geometry: &ScreenGeometry, expected: &ScreenGeometry, what: &str) {
+        assert_eq!(geometry.ends, expected.ends, "{what}");
+        assert_eq!(geometry.widths, expected.widths, "{what}");
+        assert_eq!(geometry.orders, expected.orders, "{what}");
+        assert_eq!(geometry.flows, expected.flows, "{what}");
+        assert_eq!(geometry.lengths, expected.lengths, "{what}");
+        assert_eq!(geometry.flow_range, expected.flow_range, "{what}");
+        assert_eq!(geometry.max_order, expected.max_order, "{what}");
+        assert_eq!(geometry.segment_count, expected.segment_count, "{what}");
+        assert!(
+            geometry.draw_lines.lines().eq(expected.draw_lines.lines()),
+            "{what}: draw order"
+        );
+    }
+
     fn full(network: &Network, rule: WidthRule) -> ScreenGeometry {
         let forest = topology_pass(network).unwrap();
         let table = widths_pass(
@@ -482,15 +498,7 @@ mod tests {
                 let network = growth.network();
                 assert!(growing.update(&network, rule, &mut geometry), "{link}");
                 let mut expected = full(&network, rule);
-                assert_eq!(geometry.ends, expected.ends);
-                assert_eq!(geometry.widths, expected.widths);
-                assert_eq!(geometry.orders, expected.orders);
-                assert_eq!(geometry.flows, expected.flows);
-                assert_eq!(geometry.lengths, expected.lengths);
-                assert_eq!(geometry.flow_range, expected.flow_range);
-                assert_eq!(geometry.max_order, expected.max_order);
-                assert_eq!(geometry.segment_count, expected.segment_count);
-                assert!(geometry.draw_lines.lines().eq(expected.draw_lines.lines()));
+                assert_same_geometry(&geometry, &expected, link);
                 for colouring in [Colouring::ByOrder, Colouring::ByFlow, Colouring::Plain] {
                     assert_eq!(
                         geometry.colour_indices(colouring),
@@ -560,15 +568,7 @@ mod tests {
                 );
                 let network = growth.network();
                 let expected = full(&network, rule);
-                assert_eq!(geometry.ends, expected.ends, "{link}");
-                assert_eq!(geometry.widths, expected.widths, "{link}");
-                assert_eq!(geometry.orders, expected.orders, "{link}");
-                assert_eq!(geometry.flows, expected.flows, "{link}");
-                assert_eq!(geometry.lengths, expected.lengths, "{link}");
-                assert_eq!(geometry.flow_range, expected.flow_range, "{link}");
-                assert_eq!(geometry.max_order, expected.max_order, "{link}");
-                assert_eq!(geometry.segment_count, expected.segment_count, "{link}");
-                assert!(geometry.draw_lines.lines().eq(expected.draw_lines.lines()));
+                assert_same_geometry(&geometry, &expected, link);
             }
             assert!(geometry.len() > 500, "{link}: {} entries", geometry.len());
         }
@@ -604,12 +604,7 @@ mod tests {
                 .segments
                 .retain(|segment| (segment.from as usize) < shown);
             let expected = full(&prefix, rule);
-            assert_eq!(geometry.ends, expected.ends, "refill {refills}");
-            assert_eq!(geometry.widths, expected.widths, "refill {refills}");
-            assert_eq!(geometry.orders, expected.orders, "refill {refills}");
-            assert_eq!(geometry.flow_range, expected.flow_range, "refill {refills}");
-            assert_eq!(geometry.max_order, expected.max_order, "refill {refills}");
-            assert!(geometry.draw_lines.lines().eq(expected.draw_lines.lines()));
+            assert_same_geometry(&geometry, &expected, &format!("refill {refills}"));
             if growth.stopped().is_some() && shown == growth.node_count() {
                 break;
             }
