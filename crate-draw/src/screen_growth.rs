@@ -75,22 +75,6 @@ impl GrowingScreen {
         self.parent.len()
     }
 
-    /// `update_from_growth` taking the nodes added since the last update oldest first, and no
-    /// more once `most_dirty` nodes need their values again (the new ones and everything
-    /// downstream of them; at least one new node is taken), so that one refill's work stays
-    /// bounded while a run grows fast: the geometry is then that of the forest of the
-    /// grower's first nodes, which every grower that only appends has grown through, and the
-    /// next update takes more. A forest drawn from scratch takes every node.
-    pub fn update_from_growth_upto(
-        &mut self,
-        growth: &Growth,
-        rule: WidthRule,
-        geometry: &mut ScreenGeometry,
-        most_dirty: usize,
-    ) -> bool {
-        self.update_growth(growth, rule, geometry, most_dirty)
-    }
-
     /// Brings `geometry` (as left by the previous `update` on this forest, or empty) up to
     /// `network` with widths by `rule`. Returns false, touching nothing, when the network is
     /// not the previous one plus appended nodes (see the module comment): refill in full then,
@@ -131,10 +115,16 @@ impl GrowingScreen {
         rule: WidthRule,
         geometry: &mut ScreenGeometry,
     ) -> bool {
-        self.update_growth(growth, rule, geometry, usize::MAX)
+        self.update_from_growth_upto(growth, rule, geometry, usize::MAX)
     }
 
-    fn update_growth(
+    /// `update_from_growth` taking the nodes added since the last update oldest first, and no
+    /// more once `most_dirty` nodes need their values again (the new ones and everything
+    /// downstream of them; at least one new node is taken), so that one refill's work stays
+    /// bounded while a run grows fast: the geometry is then that of the forest of the
+    /// grower's first nodes, which every grower that only appends has grown through, and the
+    /// next update takes more. A forest drawn from scratch takes every node.
+    pub fn update_from_growth_upto(
         &mut self,
         growth: &Growth,
         rule: WidthRule,
@@ -143,7 +133,6 @@ impl GrowingScreen {
     ) -> bool {
         let old_nodes = self.parent.len();
         let nodes = growth.node_count();
-        let all = nodes;
         let most_dirty = if old_nodes == 0 {
             usize::MAX
         } else {
@@ -151,7 +140,7 @@ impl GrowingScreen {
         };
         let fits = !rule.by_order()
             && growth.only_appends()
-            && all >= old_nodes
+            && nodes >= old_nodes
             && geometry.len() == self.node_of_entry.len()
             && (old_nodes == 0 || self.rule == Some(rule))
             // The last node drawn still drains where it did (a cheap check that this is the
