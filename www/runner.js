@@ -23,8 +23,8 @@ const QUIET_CHUNK_MS = 40;
 export class Runner {
   /// `hooks`: `redraw()` (refill and draw; returns ms), `refill(mostNodes)` (new nodes until
   /// that many are to be recomputed; returns its ms), `segments()` (entries as last
-  /// refilled), `draw()` (returns its ms), `drawPart(budgetMs)` (works about that long on drawing; returns
-  /// `{ms, done}`), `progress()`, `paused()`, `finished()`,
+  /// refilled), `draw()` (returns its ms), `drawPart(budgetMs)` (works about that long on
+  /// drawing; returns `{ms, done, detail}`), `progress()`, `paused()`, `finished()`,
   /// `playing(bool)`, `failed(error)` (growing or drawing threw; the loop has stopped).
   constructor(hooks) {
     this.hooks = hooks;
@@ -144,9 +144,9 @@ export class Runner {
     if (this.drawPending) {
       // Test hook (tests/e2e/frames.test.mjs): a smaller budget, so pictures take many parts.
       const budget = globalThis.ramulusTestHooks?.drawBudgetMs ?? DRAW_BUDGET_MS;
-      const { ms, done } = this.hooks.drawPart(budget);
+      const { ms, done, detail } = this.hooks.drawPart(budget);
       parts.drawMs = ms;
-      parts.drawDetail = this.lastDrawPart;
+      parts.drawDetail = detail;
       this.drawingMs += ms;
       growthBudget -= ms;
       if (done) {

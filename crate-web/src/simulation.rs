@@ -52,8 +52,6 @@ pub struct Simulation {
     view_cache: Option<RunView>,
     /// Benchmark switch: refill the geometry in full every time (see `set_full_refill`).
     full_refill: bool,
-    /// The most nodes a growing refill recomputes (`update_geometry_part`).
-    refill_most: usize,
     /// Test hook: once the run holds this many cells, `step` fails as a failed allocation
     /// does (see `debug_trap_at_cells`).
     trap_at_cells: Option<u64>,
@@ -81,7 +79,6 @@ impl Simulation {
             view_cache: None,
             trap_at_cells: None,
             full_refill: false,
-            refill_most: usize::MAX,
             passes: Default::default(),
         })
     }
@@ -123,7 +120,6 @@ impl Simulation {
             view_cache: None,
             trap_at_cells: None,
             full_refill: false,
-            refill_most: usize::MAX,
             passes: Default::default(),
         })
     }
@@ -186,9 +182,9 @@ impl Simulation {
 
     /// Runs a bounded slice of the passes after growth: the first call sets them up; the next
     /// run parts of sweeps (`passes::ITEMS_PER_PART` nodes or junctions each, at least one
-    /// part) until `budget_ms` milliseconds have passed or the sweeps are over; the call after the last sweep runs the rest of the pipeline (loops,
-    /// widths, readings) and caches the run view, so refills and readings never run the passes
-    /// again. Returns the progress as JSON (`passes::StepwisePasses::progress_json`); the
+    /// part) until `budget_ms` milliseconds have passed or the sweeps are over; the call after
+    /// the last sweep runs the rest of the pipeline (loops, widths, readings) and caches the
+    /// run view, so refills and readings never run the passes again. Returns the progress as JSON (`passes::StepwisePasses::progress_json`); the
     /// result equals the passes run in one go, digest for digest.
     pub fn reshape_step(&mut self, budget_ms: f64) -> Result<String, JsError> {
         if self.passes_waiting() {
@@ -237,10 +233,9 @@ impl Simulation {
         Ok(self.passes_progress())
     }
 
-    /// Stops the sweeps: a sweep stopped midway is taken back, and the network stays as the last
-    /// whole sweep left it (the
-    /// pass's sweep count in the run's link and record becomes the sweeps run; later sweeping
-    /// passes do not run); the next `reshape_step` runs the rest of the pipeline. Returns the
+    /// Stops the sweeps: a sweep stopped midway is taken back, and the network stays as the
+    /// last whole sweep left it (the pass's sweep count in the run's link and record becomes
+    /// the whole sweeps run; later sweeping passes do not run); the next `reshape_step` runs the rest of the pipeline. Returns the
     /// progress as `reshape_step` does.
     pub fn reshape_stop(&mut self) -> Result<String, JsError> {
         if let Some(reshaping) = self.passes.reshaping.as_mut() {
@@ -601,7 +596,7 @@ impl Simulation {
     /// refill while a run grows fast, and the geometry shows the run's first nodes until a
     /// later refill takes the rest (`geometry_behind`).
     pub fn update_geometry_part(&mut self, most_nodes: f64) -> u32 {
-        self.refill_most = if most_nodes >= 1.0 {
+        let most = if most_nodes >= 1.0 {
             most_nodes.min(usize::MAX as f64) as usize
         } else {
             1
@@ -631,13 +626,13 @@ impl Simulation {
             && self.params.widths.vein_area == 0.0
             && (!self.relaxes_now() || waiting)
         {
-            if self.growing_refill() {
+            if self.growing_refill(most) {
                 return self.geometry.len() as u32;
             }
             // Not the last network grown further: start the forest afresh, or refill in full.
             self.growing.clear();
             self.geometry = ScreenGeometry::default();
-            if self.growing_refill() {
+            if self.growing_refill(most) {
                 return self.geometry.len() as u32;
             }
         }
@@ -798,15 +793,14 @@ impl Simulation {
 impl Simulation {
     /// `GrowingScreen` brought up to the network so far: a grower's new nodes are read from it
     /// directly, without copying the whole network each refill. Whether it could.
-    fn growing_refill(&mut self) -> bool {
+    /// The growing refill, recomputing at most `most` nodes (`update_geometry_part`).
+    fn growing_refill(&mut self, most: usize) -> bool {
         let rule = width_rule(&self.params);
         match &self.source {
-            Source::Growing(growth) => self.growing.update_from_growth_upto(
-                growth,
-                rule,
-                &mut self.geometry,
-                self.refill_most,
-            ),
+            Source::Growing(growth) => {
+                self.growing
+                    .update_from_growth_upto(growth, rule, &mut self.geometry, most)
+            }
             Source::Fixed(network) => self.growing.update(network, rule, &mut self.geometry),
         }
     }
