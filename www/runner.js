@@ -133,7 +133,8 @@ export class Runner {
 
   /// One animation frame. A redraw is spread over several frames, the geometry refill in one
   /// and the drawing in the next ones (DRAW_BUDGET_MS each), and growth gets what the drawing
-  /// leaves of its budget, so that no frame carries growth, refill and drawing together.
+  /// or the refill leaves of its budget, so that no frame carries a refill and drawing
+  /// together.
   tick(now, generation) {
     if (!this.playingNow || generation !== this.generation) return;
     const simulation = this.simulation;
@@ -141,6 +142,7 @@ export class Runner {
     let growthBudget = STEP_BUDGET_MS;
     // Where this frame's time goes, for the page benchmark's slowest frames.
     const parts = { drawMs: 0, stepMs: 0, refillMs: 0 };
+    const drewThisFrame = this.drawPending;
     if (this.drawPending) {
       // Test hook (tests/e2e/frames.test.mjs): a smaller budget, so pictures take many parts.
       const budget = globalThis.ramulusTestHooks?.drawBudgetMs ?? DRAW_BUDGET_MS;
@@ -166,8 +168,10 @@ export class Runner {
       }
     }
     // Redraw when drawing has had its share (at most a third of the time goes to it): this
-    // frame grows what the last refill's time leaves of the budget, then refills.
-    const refillNow = !this.drawPending
+    // frame grows what the last refill's time leaves of the budget, then refills. A frame
+    // that finished a picture leaves the refill to the next one, so no frame carries drawing
+    // and a refill together.
+    const refillNow = !this.drawPending && !drewThisFrame
       && (simulation.finished() || this.catchingUp
         || now - this.lastDraw >= Math.min(3 * this.drawCostMs, 1000));
     if (refillNow) growthBudget -= this.refillMs;

@@ -99,10 +99,12 @@ async function drawingAndAnimation() {
     console.log(`  refill ms, past 100,000 cells ${spread(lateRefills.map((refill) => refill.refillMs))}`);
     console.log(`  draw ms, past 100,000 cells   ${spread(lateDraws.map((drawn) => drawn.drawMs))}  (over all parts of a picture)`);
     console.log(`  frames a picture takes        ${spread(lateDraws.map((drawn) => drawn.parts ?? 1))}`);
-    const slowest = [...late].sort((a, b) => b.ms - a.ms).slice(0, 5);
-    console.log(`  slowest frames past 100,000 cells (ms: whole = growth + refill + drawing + progress + rest): ${slowest
-      .map((f) => `${f.ms.toFixed(1)} = ${f.stepMs.toFixed(1)} + ${f.refillMs.toFixed(1)} + ${f.drawMs.toFixed(1)}${f.drawMs > 0 && f.drawDetail ? ` (begin ${f.drawDetail.beginMs.toFixed(1)}, lines ${f.drawDetail.linesMs.toFixed(1)}, finish ${f.drawDetail.finishMs.toFixed(1)})` : ''} + ${f.progressMs.toFixed(1)} + ${(f.ms - f.stepMs - f.refillMs - f.drawMs - f.progressMs).toFixed(1)}`)
-      .join('; ')}`);
+    const breakdown = (list) => [...list].sort((a, b) => b.ms - a.ms).slice(0, 5)
+      .map((f) => `${f.ms.toFixed(1)} = ${f.stepMs.toFixed(1)} + ${f.refillMs.toFixed(1)} + ${f.drawMs.toFixed(1)}${f.drawMs > 0 && f.drawDetail ? ` (begin ${f.drawDetail.beginMs.toFixed(1)}, lines ${f.drawDetail.linesMs.toFixed(1)}, finish ${f.drawDetail.finishMs.toFixed(1)})` : ''} + ${f.progressMs.toFixed(1)} + ${(f.ms - f.stepMs - f.refillMs - f.drawMs - f.progressMs).toFixed(1)} (at ${f.cells} cells)`)
+      .join('; ');
+    console.log('  slowest frames (ms: whole = growth + refill + drawing + progress + rest):');
+    console.log(`    past 100,000 cells: ${breakdown(late)}`);
+    console.log(`    all frames: ${breakdown(frames.frameTimes)}`);
     await steady.close();
   }
 
