@@ -36,7 +36,7 @@ pub fn presets() -> Vec<Preset> {
         Preset {
             name: "looped-leaf",
             title: "Ovate leaf with loops and areoles",
-            description: "the ovate leaf with veins apart from tissue (draining at least 0.02 mm²) and nested loops closed after growth, so areoles form",
+            description: "the ovate leaf with veins apart from tissue (draining at least 0.02 mm²) and nested loops closed after growth, so areoles form and secondary veins close arches",
             params: looped_leaf(),
         },
         Preset {
@@ -230,12 +230,14 @@ fn blade_outline(
 
 /// The ovate leaf with a conducting threshold and loop closing: at 0.02 mm² the veins measure
 /// about 8.6 mm/mm², near the mean of angiosperm leaves (about 8 mm/mm², Boyce et al. 2009,
-/// Proc. R. Soc. B 276, from memory), with about 10 areoles per mm².
+/// Proc. R. Soc. B 276, from memory), with about 10 areoles per mm². Five coarser scales of
+/// loops with `arches`, so that ends of secondary veins close loops with the next secondary.
 fn looped_leaf() -> Params {
     let mut params = ovate_leaf();
     params.widths.vein_area = 0.02;
     params.widths.reconnect = Some(6.0);
-    params.widths.loop_levels = 3;
+    params.widths.loop_levels = 5;
+    params.widths.arches = true;
     params
 }
 

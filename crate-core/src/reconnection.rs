@@ -33,6 +33,14 @@
 //! as each new vein divides an areole in the sequential reticulation of developing leaves
 //! (Couder et al. 2002, Eur. Phys. J. B 28; Bohn, Douady & Couder 2005).
 //!
+//! A tip tries at most `TRIES_PER_TIP` joins, shortest wall first. With `arches` a join whose
+//! anchor lies, along the tree, less than `reconnect` times the new wall from the tip is passed
+//! over without counting as a try: the way round can only be shorter than that tree path, so
+//! the join would fail. The shortest joins of a major vein's end mostly land on its own side
+//! veins; passed over, they leave the tries to joins reaching the next major vein, which close
+//! the large loops between secondary veins of brochidodromous leaves (arches; Ellis et al.
+//! 2009, Manual of Leaf Architecture).
+//!
 //! Flows: tree segments keep the tree's flows; a loop wall is drawn at least as wide as the
 //! flow of the tip that closed it (`Reconnection::wall_flow`), and each new segment carries that
 //! tip's flow. No Kirchhoff solve: the walls' widths record the scale of the loop they close.
@@ -62,6 +70,12 @@ pub struct LoopRule {
     /// Loops split faces one at a time (`nest_loops`): within a level, each bounded face takes
     /// at most one new wall per round, and rounds repeat while walls are added.
     pub nest: bool,
+    /// A tip's tries go only to joins whose loop could be long enough (`arches`): a join is
+    /// passed over, without counting as a try, when the path along the tree from the tip to
+    /// the join's anchor is already shorter than `ratio` times the new wall (the way round
+    /// is never longer than that path, so the join would fail). Major veins then reach the
+    /// next major vein instead of spending their tries on their own side veins.
+    pub arches: bool,
 }
 
 /// The new segments and the loop walls, in the whole network's node indices.
@@ -177,6 +191,10 @@ pub fn close_loops(
     for (index, &(a, b)) in segments.iter().enumerate() {
         segment_grid.insert_box(index as u32, point(a as usize), point(b as usize));
     }
+    // With `arches`: paths along the tree, to pass over joins whose loop would be too short.
+    let tree_paths = rule
+        .arches
+        .then(|| TreePaths::new(topology, distance));
     let mut linked: Vec<Vec<u32>> = vec![Vec::new(); count];
     let mut in_loop = vec![false; count];
     let mut search = PathSearch::new(count);
@@ -417,7 +435,15 @@ pub fn close_loops(
                 }
                 // The way round from t to the chosen join's anchor when shorter than `half`.
                 let mut way_round_found = None;
-                for candidate in candidates.iter().take(TRIES_PER_TIP) {
+                // With `arches`, joins that cannot close a loop long enough are passed over
+                // without counting as tries (the margin keeps rounding on the safe side).
+                let could_pass = |candidate: &&Candidate| {
+                    tree_paths.as_ref().is_none_or(|paths| {
+                        paths.between(topology, t, candidate.anchor as usize)
+                            >= rule.ratio * candidate.wall * (1.0 - 1e-9)
+                    })
+                };
+                for candidate in candidates.iter().filter(could_pass).take(TRIES_PER_TIP) {
                     let (u, v) = (candidate.u as usize, candidate.v as usize);
                     let key = candidate.key();
                     if failed_before.contains(&key) {
@@ -523,6 +549,55 @@ type CandidateKey = (u32, u32, u32, u64);
 impl Candidate {
     fn key(&self) -> CandidateKey {
         (self.u, self.v, self.anchor, self.wall.to_bits())
+    }
+}
+
+/// Path lengths along a forest (`arches`): per node its depth and its path length from its
+/// root, so that the path between two nodes is found by walking both up to where they meet.
+struct TreePaths {
+    depth: Vec<u32>,
+    from_root: Vec<f64>,
+}
+
+impl TreePaths {
+    /// `length(child, parent)` is the length of a segment.
+    fn new(topology: &Topology, length: impl Fn(usize, usize) -> f64) -> TreePaths {
+        let count = topology.parent.len();
+        let mut paths = TreePaths {
+            depth: vec![0; count],
+            from_root: vec![0.0; count],
+        };
+        for &node in &topology.order {
+            let n = node as usize;
+            let parent = topology.parent[n];
+            if parent != NO_PARENT {
+                let p = parent as usize;
+                paths.depth[n] = paths.depth[p] + 1;
+                paths.from_root[n] = paths.from_root[p] + length(n, p);
+            }
+        }
+        paths
+    }
+
+    /// The length of the path along the forest between `a` and `b`; infinite when they lie in
+    /// different trees.
+    fn between(&self, topology: &Topology, a: usize, b: usize) -> f64 {
+        let (mut x, mut y) = (a, b);
+        while self.depth[x] > self.depth[y] {
+            x = topology.parent[x] as usize;
+        }
+        while self.depth[y] > self.depth[x] {
+            y = topology.parent[y] as usize;
+        }
+        while x != y {
+            let (px, py) = (topology.parent[x], topology.parent[y]);
+            if px == NO_PARENT || py == NO_PARENT {
+                return f64::INFINITY;
+            }
+            x = px as usize;
+            y = py as usize;
+        }
+        self.from_root[a] + self.from_root[b] - 2.0 * self.from_root[x]
     }
 }
 
@@ -751,6 +826,7 @@ mod tests {
             runoff: 1.0,
             cell_size: 2.0 / 1.5,
             nest: false,
+            arches: false,
         }
     }
 
@@ -774,5 +850,137 @@ mod tests {
         // A ratio of 7 asks for a way round of 14: none.
         let closed = close_loops(&network, &topology, &conducts, &rule(7.0));
         assert!(closed.links.is_empty());
+    }
+
+    /// Two veins 1.9 apart, nodes every 0.2 from y = 0 to y = 6, joined below at a root at
+    /// (0.95, -1). Within 1.9 of the left tip (0, 6) lie eight of its own vein's nodes below
+    /// its parent (y = 5.6 .. 4.2), nearer than any node of the right vein: the eight
+    /// shortest joins all end on its own vein, each with a way round (at most 1.8) shorter
+    /// than 6 times its length.
+    fn two_dense_veins() -> Network {
+        let mut nodes = vec![Node {
+            x: 0.95,
+            y: -1.0,
+            weight: 1.0,
+        }];
+        let mut segments = Vec::new();
+        for column in [0.0, 1.9] {
+            let mut below = 0u32;
+            for row in 0..=30 {
+                nodes.push(Node {
+                    x: column,
+                    y: f64::from(row) * 0.2,
+                    weight: 1.0,
+                });
+                let index = nodes.len() as u32 - 1;
+                segments.push(Segment {
+                    from: index,
+                    to: below,
+                });
+                below = index;
+            }
+        }
+        Network {
+            nodes,
+            segments,
+            area: 63.0,
+            units: "mm".into(),
+            cell_size: 1.0,
+            cells: CellSet::default(),
+        }
+    }
+
+    /// Without `arches` the left tip spends its eight tries on its own vein and no loop
+    /// closes; with it those joins are passed over and the tip joins the right vein's tip
+    /// (1.9 across; way round 6 + 2 x sqrt(0.95^2 + 1) + 6, about 14.76, at least 6 x 1.9).
+    #[test]
+    fn arches_let_a_tip_reach_past_its_own_vein() {
+        let network = two_dense_veins();
+        let topology = network.topology().expect("a tree");
+        let conducts = vec![true; network.segments.len()];
+        let mut rule = rule(6.0);
+        rule.cell_size = 2.0 / 1.5; // joins up to 2 long
+        let closed = close_loops(&network, &topology, &conducts, &rule);
+        assert!(closed.links.is_empty(), "{:?}", closed.links);
+        rule.arches = true;
+        let closed = close_loops(&network, &topology, &conducts, &rule);
+        assert_eq!(closed.links.len(), 1);
+        let link = closed.links[0];
+        let (a, b) = (
+            network.nodes[link.from as usize],
+            network.nodes[link.to as usize],
+        );
+        assert_eq!((a.x, a.y, b.x, b.y), (0.0, 6.0, 1.9, 6.0));
+        // At a ratio the way round cannot meet (14.76 < 8 x 1.9), no loop closes either way.
+        rule.ratio = 8.0;
+        assert!(close_loops(&network, &topology, &conducts, &rule)
+            .links
+            .is_empty());
+    }
+
+    /// Paths along a forest against petgraph's Dijkstra on the same segments (an undirected
+    /// graph; in a tree the shortest path is the only one): random trees of 300 nodes in two
+    /// components, every pair from 40 nodes.
+    #[test]
+    fn tree_paths_match_dijkstra_on_the_same_forest() {
+        use petgraph::graph::UnGraph;
+        use rand_chacha::ChaCha8Rng;
+        use rand_core::{RngCore, SeedableRng};
+        let mut rng = ChaCha8Rng::seed_from_u64(11);
+        for _ in 0..5 {
+            let count = 300;
+            let mut nodes = Vec::new();
+            let mut segments = Vec::new();
+            for index in 0..count {
+                let coordinate = |rng: &mut ChaCha8Rng| (rng.next_u32() % 10_000) as f64 / 100.0;
+                nodes.push(Node {
+                    x: coordinate(&mut rng),
+                    y: coordinate(&mut rng),
+                    weight: 1.0,
+                });
+                // Nodes 0 and 150 are roots; every other joins an earlier node of its half.
+                if index != 0 && index != 150 {
+                    let first = if index < 150 { 0 } else { 150 };
+                    let to = first + rng.next_u32() % (index - first);
+                    segments.push(Segment { from: index, to });
+                }
+            }
+            let network = Network {
+                nodes,
+                segments,
+                area: 1.0,
+                units: "mm".into(),
+                cell_size: 1.0,
+                cells: CellSet::default(),
+            };
+            let topology = network.topology().expect("a forest");
+            let length = |a: usize, b: usize| {
+                let (p, q) = (network.nodes[a], network.nodes[b]);
+                (p.x - q.x).hypot(p.y - q.y)
+            };
+            let paths = TreePaths::new(&topology, length);
+            let mut graph = UnGraph::<(), f64>::new_undirected();
+            let ids: Vec<_> = (0..count).map(|_| graph.add_node(())).collect();
+            for segment in &network.segments {
+                let (a, b) = (segment.from as usize, segment.to as usize);
+                graph.add_edge(ids[a], ids[b], length(a, b));
+            }
+            for a in (0..count as usize).step_by(8) {
+                let reference =
+                    petgraph::algo::dijkstra(&graph, ids[a], None, |edge| *edge.weight());
+                for b in (0..count as usize).step_by(8) {
+                    let ours = paths.between(&topology, a, b);
+                    match reference.get(&ids[b]) {
+                        Some(&expected) => {
+                            assert!(
+                                (ours - expected).abs() <= 1e-9 * expected.max(1.0),
+                                "{a} {b}: {ours} {expected}"
+                            )
+                        }
+                        None => assert!(ours.is_infinite(), "{a} {b}: {ours}"),
+                    }
+                }
+            }
+        }
     }
 }

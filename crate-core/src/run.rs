@@ -307,6 +307,7 @@ pub fn loop_pass(
         runoff: params.domain.runoff,
         cell_size,
         nest: params.widths.nest_loops,
+        arches: params.widths.arches,
     };
     Some(close_loops(
         network,

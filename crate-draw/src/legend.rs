@@ -95,10 +95,16 @@ pub fn legend_items(facts: &LegendFacts) -> Vec<LegendItem> {
             }
         }
         Colouring::Plain if facts.segment_count > 0 => {
+            // Leaf words for leaves, drainage words for sites.
+            let what = if ramulus_core::params::is_site_unit(facts.units) {
+                "channel (width to scale)"
+            } else {
+                "vein (width to scale)"
+            };
             items.push(LegendItem {
                 pieces: vec![
                     Piece::Line(PLAIN.to_string()),
-                    Piece::Text("segment (width to scale)".to_string()),
+                    Piece::Text(what.to_string()),
                 ],
             });
         }
@@ -184,10 +190,18 @@ mod tests {
         assert_eq!(legend_items(&with_roots)[1].pieces[0], Piece::Circle,);
         // Leaf words for leaves (millimetres), drainage words for sites (metres).
         assert_eq!(
+            legend_items(&with_roots)[0].pieces[1],
+            Piece::Text("vein (width to scale)".to_string())
+        );
+        assert_eq!(
             legend_items(&with_roots)[1].pieces[1],
             Piece::Text("petiole (root)".to_string())
         );
         with_roots.units = "m";
+        assert_eq!(
+            legend_items(&with_roots)[0].pieces[1],
+            Piece::Text("channel (width to scale)".to_string())
+        );
         assert_eq!(
             legend_items(&with_roots)[1].pieces[1],
             Piece::Text("outlet (root)".to_string())

@@ -214,6 +214,12 @@ pub struct Widths {
     /// before the key existed).
     #[serde(default)]
     pub nest_loops: bool,
+    /// Major veins close arches (`reconnection.rs`): a free-ending vein's tries go only to
+    /// joins whose loop could be long enough, so the end of a major vein reaches the next major
+    /// vein instead of spending its tries on its own side veins. Default false (the shortest
+    /// joins are tried whatever their loop, as before the key existed).
+    #[serde(default)]
+    pub arches: bool,
     /// Width exponent of the major veins (`segments::WidthRule`): the exponent at each junction
     /// moves from `gamma` at Strahler order 1 to this at order `major_order` and above. Default
     /// none (one exponent `gamma` for every order, as before the key existed); 1 ..= 10.
@@ -539,6 +545,7 @@ fn blank() -> Params {
             reconnect: None,
             loop_levels: 0,
             nest_loops: false,
+            arches: false,
             gamma_major: None,
             major_order: 0,
         },
