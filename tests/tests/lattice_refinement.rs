@@ -25,12 +25,17 @@ fn traits(name: &str, refine: u32, seed: u64) -> [f64; 5] {
     growth.run();
     let network = growth.network();
     let ratio = blade_length_width(&network.cells, params.domain.roots[0].outflow).unwrap_or(0.0);
-    let view = RunView::new(network, &params).expect("a forest");
+    // Branching angles are measured on trees: for a preset that closes loops, on the grown
+    // tree before its loops close.
+    let mut tree_params = params.clone();
+    tree_params.widths.reconnect = None;
+    let tree = RunView::new(network.clone(), &tree_params).expect("a forest");
+    let view = RunView::new(network, &params).expect("a valid network");
     let m = &view.metrics;
     [
         m.vein_density.unwrap_or(0.0),
         m.areole_density.unwrap_or(0.0),
-        m.branching_angle_mean.unwrap_or(0.0),
+        tree.metrics.branching_angle_mean.unwrap_or(0.0),
         m.tip_density.unwrap_or(0.0),
         ratio,
     ]
@@ -64,7 +69,7 @@ fn change(a: f64, b: f64) -> f64 {
 fn refinement_table() {
     let seeds = [1, 2, 3, 4, 5];
     let presets = std::env::var("PRESETS")
-        .unwrap_or_else(|_| "ovate-leaf,elliptic-leaf,lanceolate-leaf,filled-outline".into());
+        .unwrap_or_else(|_| "ovate-leaf,elliptic-leaf,lanceolate-leaf,filled-outline,looped-leaf".into());
     let refines: Vec<u32> = std::env::var("REFINES")
         .unwrap_or_else(|_| "1,2".into())
         .split(',')

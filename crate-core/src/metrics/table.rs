@@ -213,7 +213,7 @@ pub const METRIC_TABLE: &[MetricEntry] = &[
         unit: MetricUnit::Count,
         description: "independent loops: cyclomatic number segments - nodes + components (0 for a forest)",
         site_label: "",
-        about: "Closed circuits; 0 for a tree-like network, which growth always gives.",
+        about: "Closed circuits; 0 for a tree-like network, as growth alone gives (loops close after growth when the loop ratio is set).",
         applies_to: AppliesTo::AnyNetwork,
         follows_lattice: false,
         read: |m| Reading::Count(m.loop_count),
