@@ -61,6 +61,8 @@ const variants = [
   { joining: 'weighted', seed: 19, vein_area: 0.5, reconnect: 6, loop_levels: 2 },
   { joining: 'weighted', seed: 20, units: 'm', cell_size: 0.5, levels: [[0, 0, 10], [59, 0, 11], [30, 49, 9]], w_grade: 1,
     zones: [{ runoff: 0.9, polygon: [[10, 10], [30, 10], [30, 30]] }] },
+  // Loops with arches and nesting (the tree paths and the rounds in wasm as natively).
+  { joining: 'weighted', seed: 21, vein_area: 0.05, reconnect: 4, loop_levels: 4, arches: true, nest_loops: true },
 ];
 variants.forEach((variant, index) => cases.push({ name: `variant ${index}`, params: { ...base, ...variant } }));
 // Fresh random seeds on every run, one per joining rule, named in the test title to reproduce.
