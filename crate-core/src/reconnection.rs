@@ -192,9 +192,7 @@ pub fn close_loops(
         segment_grid.insert_box(index as u32, point(a as usize), point(b as usize));
     }
     // With `arches`: paths along the tree, to pass over joins whose loop would be too short.
-    let tree_paths = rule
-        .arches
-        .then(|| TreePaths::new(topology, distance));
+    let tree_paths = rule.arches.then(|| TreePaths::new(topology, distance));
     let mut linked: Vec<Vec<u32>> = vec![Vec::new(); count];
     let mut in_loop = vec![false; count];
     let mut search = PathSearch::new(count);
@@ -786,18 +784,25 @@ mod tests {
     /// two units apart side by side, joined at the root by a base segment: the tips face each
     /// other across a gap of 2 with a way round of 2 + 2 x 6 = 14 through the root.
     fn two_veins() -> Network {
+        let rows: Vec<f64> = (1..=6).rev().map(f64::from).collect();
+        columns_from_root((1.0, 7.0), [0.0, 2.0], &rows, 13.0)
+    }
+
+    /// A root at `root` and one vein per column, its nodes at the heights `rows`, the first
+    /// joined to the root and each next to the one before.
+    fn columns_from_root(root: (f64, f64), columns: [f64; 2], rows: &[f64], area: f64) -> Network {
         let mut nodes = vec![Node {
-            x: 1.0,
-            y: 7.0,
+            x: root.0,
+            y: root.1,
             weight: 1.0,
         }];
         let mut segments = Vec::new();
-        for column in [0.0, 2.0] {
+        for column in columns {
             let mut below = 0u32;
-            for row in (1..=6).rev() {
+            for &row in rows {
                 nodes.push(Node {
                     x: column,
-                    y: row as f64,
+                    y: row,
                     weight: 1.0,
                 });
                 let index = nodes.len() as u32 - 1;
@@ -811,7 +816,7 @@ mod tests {
         Network {
             nodes,
             segments,
-            area: 13.0,
+            area,
             units: "mm".into(),
             cell_size: 1.0,
             cells: CellSet::default(),
@@ -858,36 +863,8 @@ mod tests {
     /// shortest joins all end on its own vein, each with a way round (at most 1.8) shorter
     /// than 6 times its length.
     fn two_dense_veins() -> Network {
-        let mut nodes = vec![Node {
-            x: 0.95,
-            y: -1.0,
-            weight: 1.0,
-        }];
-        let mut segments = Vec::new();
-        for column in [0.0, 1.9] {
-            let mut below = 0u32;
-            for row in 0..=30 {
-                nodes.push(Node {
-                    x: column,
-                    y: f64::from(row) * 0.2,
-                    weight: 1.0,
-                });
-                let index = nodes.len() as u32 - 1;
-                segments.push(Segment {
-                    from: index,
-                    to: below,
-                });
-                below = index;
-            }
-        }
-        Network {
-            nodes,
-            segments,
-            area: 63.0,
-            units: "mm".into(),
-            cell_size: 1.0,
-            cells: CellSet::default(),
-        }
+        let rows: Vec<f64> = (0..=30).map(|row| f64::from(row) * 0.2).collect();
+        columns_from_root((0.95, -1.0), [0.0, 1.9], &rows, 63.0)
     }
 
     /// Without `arches` the left tip spends its eight tries on its own vein and no loop

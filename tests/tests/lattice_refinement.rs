@@ -68,8 +68,9 @@ fn change(a: f64, b: f64) -> f64 {
 #[ignore]
 fn refinement_table() {
     let seeds = [1, 2, 3, 4, 5];
-    let presets = std::env::var("PRESETS")
-        .unwrap_or_else(|_| "ovate-leaf,elliptic-leaf,lanceolate-leaf,filled-outline,looped-leaf".into());
+    let presets = std::env::var("PRESETS").unwrap_or_else(|_| {
+        "ovate-leaf,elliptic-leaf,lanceolate-leaf,filled-outline,looped-leaf".into()
+    });
     let refines: Vec<u32> = std::env::var("REFINES")
         .unwrap_or_else(|_| "1,2".into())
         .split(',')
