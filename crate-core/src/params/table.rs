@@ -608,14 +608,14 @@ static PARAMETERS: &[ParamSpec] = &[
     ParamSpec {
         key: "arches",
         group: "Widths",
-        label: "Major veins close arches",
+        label: "Major branches loop with the next",
         unit: "",
         bounds: None,
         bounds_why: "",
         default: "false",
         link_v1_default: "false",
         fit: None,
-        help: "With loops closing: a free end tries only joins whose loop could pass the path-to-gap ratio, so the end of a major branch reaches past its own side branches to the next major branch and closes a large loop (arches between secondary veins); off, its few tries go to the shortest joins, which mostly end on its own side branches.",
+        help: "With loops closing: a free end tries only joins whose loop could pass the path-to-gap ratio, so the end of a major branch reaches past its own side branches to the next major branch and closes a large loop; off, its few tries go to the shortest joins, which mostly end on its own side branches.",
         access: field!(Flag, widths.arches),
     },
     ParamSpec {
