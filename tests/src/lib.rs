@@ -6,3 +6,4 @@ pub mod fuzz;
 pub mod hand_built;
 pub mod param_strategy;
 pub mod plane_check;
+pub mod wide_veins;

@@ -23,6 +23,7 @@ use ramulus_core::params::Params;
 use ramulus_core::presets::preset;
 use ramulus_core::run::RunView;
 use ramulus_tests::plane_check::conflicting_pairs;
+use ramulus_tests::wide_veins::at_least_as_wide;
 
 /// The looped-leaf preset with `nest_loops` as given, grown to `cells` cells.
 fn looped_leaf(seed: u64, cells: Option<u64>, nest: bool) -> Params {
@@ -122,16 +123,7 @@ fn loops_among_widest(view: &RunView, share: f64) -> u64 {
     let mut sorted = loops.widths.clone();
     sorted.sort_by(|a, b| b.total_cmp(a));
     let cut = sorted[((sorted.len() as f64 * share) as usize).min(sorted.len() - 1)];
-    let mut major = loops.network.clone();
-    major.segments = loops
-        .network
-        .segments
-        .iter()
-        .zip(&loops.widths)
-        .filter(|(_, &width)| width >= cut)
-        .map(|(segment, _)| *segment)
-        .collect();
-    euler_faces(&major)
+    euler_faces(&at_least_as_wide(&loops.network, &loops.widths, cut))
 }
 
 /// Arches (`arches`): a tip's tries go only to joins whose loop could pass the ratio, so ends

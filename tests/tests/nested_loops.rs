@@ -22,6 +22,7 @@ use ramulus_core::params::Params;
 use ramulus_core::presets::preset;
 use ramulus_core::run::RunView;
 use ramulus_tests::plane_check::conflicting_pairs;
+use ramulus_tests::wide_veins::at_least_as_wide;
 
 /// The suggested loop settings on a leaf preset, at `cells` cells.
 fn looped_params(name: &str, seed: u64, cells: u64, ratio: Option<f64>) -> Params {
@@ -137,15 +138,7 @@ fn loops_nest_inside_loops() {
             .map(|(offset, _)| view.table.width[grown + offset])
             .fold(f64::INFINITY, f64::min);
         assert!(coarse.is_finite(), "{name}: no loop closed at levels 0-1");
-        let mut thick = loops.network.clone();
-        thick.segments = loops
-            .network
-            .segments
-            .iter()
-            .zip(&loops.widths)
-            .filter(|(_, &width)| width >= coarse)
-            .map(|(segment, _)| *segment)
-            .collect();
+        let thick = at_least_as_wide(&loops.network, &loops.widths, coarse);
         let big = measure(&thick, 0.5).expect("valid");
         let big_count = big.areoles.expect("plane");
         let big_mean = big.mean_areole_area.expect("some large loops");
