@@ -22,6 +22,16 @@ fn grown(name: &str, cells: u64, energy_sweeps: u32, relax: u32) -> (Params, Net
     (params, growth.network())
 }
 
+/// The same network (digest), channel energy report and junction report as the pass in one go.
+fn assert_same_outcome(stepped: &RunView, whole: &RunView, label: &str) {
+    assert_eq!(stepped.digest, whole.digest, "{label}: digest");
+    assert_eq!(stepped.energy, whole.energy, "{label}: energy report");
+    assert_eq!(
+        stepped.relaxation, whole.relaxation,
+        "{label}: junction report"
+    );
+}
+
 /// `E` from first principles: each node's drained flow by walking it down to its outlet,
 /// then `sum sqrt(Q) L` (Rinaldo et al. 1992).
 fn energy_by_hand(network: &Network) -> f64 {
@@ -65,12 +75,7 @@ fn sweep_by_sweep_equals_the_pass_in_one_go() {
             "{name}: at least one sweep ran (energy {energy}, junctions {relax})"
         );
         let (stepped, kept) = reshaping.finish().expect("a view");
-        assert_eq!(stepped.digest, whole.digest, "{name} {energy} {relax}");
-        assert_eq!(stepped.energy, whole.energy, "{name}: energy report");
-        assert_eq!(
-            stepped.relaxation, whole.relaxation,
-            "{name}: junction report"
-        );
+        assert_same_outcome(&stepped, &whole, &format!("{name} {energy} {relax}"));
         assert_eq!(
             kept, params,
             "{name}: parameters unchanged when run to the end"
@@ -143,12 +148,7 @@ fn sweeps_in_parts_equal_the_pass_in_one_go() {
                 calls += 1;
             }
             let (stepped, _) = reshaping.finish().expect("a view");
-            assert_eq!(stepped.digest, whole.digest, "{name}, parts of {items}");
-            assert_eq!(stepped.energy, whole.energy, "{name}, parts of {items}");
-            assert_eq!(
-                stepped.relaxation, whole.relaxation,
-                "{name}, parts of {items}"
-            );
+            assert_same_outcome(&stepped, &whole, &format!("{name}, parts of {items}"));
             if items < 256 {
                 assert!(parts_seen, "{name}: parts of {items} stop inside sweeps");
                 assert!(calls > energy + relax, "{name}: more calls than sweeps");
