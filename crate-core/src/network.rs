@@ -42,6 +42,12 @@ pub enum NetworkKind {
     /// At least one loop (two paths between the same nodes) or a node with two downstream
     /// segments: no forest view; only the metrics that need no flow direction apply.
     Looped,
+    /// A grown network whose loops closed after growth (`reconnect`): the loop metrics are the
+    /// looped network's, and the metrics that need a forest (branching angles, Strahler orders
+    /// and streams, Hack exponent, tortuosity, transport cost) are those of the grown vein
+    /// tree before its loops closed.
+    #[serde(rename = "looped_on_tree")]
+    LoopedOnTree,
 }
 
 /// A network: nodes, the segments between them, and the drained area; the one input of every

@@ -30,13 +30,16 @@
 //!    least as wide as that flow gives;
 //! 5. **sizing**: room for sizing pipes or channels from flows (`Sizing`, empty for now, so
 //!    nothing is sized yet);
-//! 6. **metrics**: every entry of the metric table (`measure_with`);
+//! 6. **metrics**: every entry of the metric table (`measure_with`); with loops, the looped
+//!    vein network's metrics plus the forest-only readings (branching angles, Strahler orders,
+//!    Hack exponent, tortuosity, transport cost) of the grown vein tree before its loops closed
+//!    (`metrics::with_tree_readings`, kind `looped_on_tree`);
 //! 7. **digest**: the hash of the exact geometry and topology (new segments included).
 
 use crate::channel_energy::{apply_parents, lower_energy, ChannelEnergy};
 use crate::digest::digest_hex;
 use crate::junctions::{relax_junctions, Relaxation};
-use crate::metrics::{measure_weighted, measure_with, Measured, Metrics};
+use crate::metrics::{measure_weighted, measure_with, with_tree_readings, Measured, Metrics};
 use crate::network::{Network, Segment, Topology, TopologyError, NO_PARENT};
 use crate::params::Params;
 use crate::reconnection::{close_loops, LoopRule, Reconnection};
@@ -480,12 +483,36 @@ impl RunView {
             }
         });
         let metrics = match (&loops, &conducting.veins) {
-            (Some(loops), _) => measure_weighted(
-                &loops.network,
-                None,
-                params.costs.alpha,
-                Some(&loops.widths),
-            ),
+            (Some(loops), veins) => {
+                let looped = measure_weighted(
+                    &loops.network,
+                    None,
+                    params.costs.alpha,
+                    Some(&loops.widths),
+                );
+                // The forest-only readings come from the grown vein tree, before the loops.
+                let alpha = params.costs.alpha;
+                match (veins, &forest) {
+                    (Some(veins), _) => with_tree_readings(
+                        looped,
+                        &veins.network,
+                        (&veins.forest.topology, veins.forest.orders.as_slice()),
+                        alpha,
+                    ),
+                    (None, Some(view)) => {
+                        let mut tree = network.clone();
+                        tree.segments
+                            .truncate(tree.segments.len() - loops.reconnection.links.len());
+                        with_tree_readings(
+                            looped,
+                            &tree,
+                            (&view.topology, view.orders.as_slice()),
+                            alpha,
+                        )
+                    }
+                    (None, None) => looped,
+                }
+            }
             (None, Some(veins)) => measure_with(
                 &veins.network,
                 Some((&veins.forest.topology, veins.forest.orders.as_slice())),

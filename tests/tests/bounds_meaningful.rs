@@ -7,7 +7,6 @@
 //! leave angles and the dimensionless vein density x cell size unchanged.
 
 use ramulus_core::growth::Growth;
-use ramulus_core::metrics::{AppliesTo, METRIC_TABLE};
 use ramulus_core::network::NetworkKind;
 use ramulus_core::params::table::{parameters, Access};
 use ramulus_core::params::{Params, Root};
@@ -156,9 +155,8 @@ fn every_real_parameter_at_each_bound_gives_a_finite_meaningful_run() {
             // nothing to measure, and must be absent rather than made up.
             let no_veins = spec.key == "vein_area" && run.table.conducts.iter().all(|&c| !c);
             // With `reconnect` set the network may close loops (at the top ratio none
-            // qualifies on this small run, which stays a tree): the metric table says which
-            // metrics only a forest has (they must be the absent ones), and the areole metrics
-            // now have areoles to measure.
+            // qualifies on this small run, which stays a tree): the forest-only metrics are
+            // read on the grown tree, and the areole metrics now have areoles to measure.
             let looped = spec.key == "reconnect" && run.loops.is_some();
             let missing = if spec.key == "threshold" || no_veins || looped {
                 missing_metrics(&run)
@@ -166,14 +164,16 @@ fn every_real_parameter_at_each_bound_gives_a_finite_meaningful_run() {
                 missing_at_defaults.clone()
             };
             if looped {
-                if run.metrics.kind != NetworkKind::Looped {
-                    problems.push(format!("{label}: loops closed, yet measured as a forest"));
+                if run.metrics.kind != NetworkKind::LoopedOnTree {
+                    problems.push(format!(
+                        "{label}: loops closed, yet measured as {:?}",
+                        run.metrics.kind
+                    ));
                 }
+                // The forest-only readings come from the grown tree, so nothing the tree
+                // run measures goes missing once loops close.
                 for key in &missing {
-                    let forest_only = METRIC_TABLE
-                        .iter()
-                        .any(|entry| entry.key == key && entry.applies_to == AppliesTo::ForestOnly);
-                    if !forest_only {
+                    if !missing_at_defaults.contains(key) {
                         problems.push(format!("{label}: {key} missing on a looped network"));
                     }
                 }

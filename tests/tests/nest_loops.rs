@@ -63,7 +63,7 @@ fn loops_split_one_at_a_time_are_plane_and_nest_more() {
         let after = grow(&looped_leaf(seed, Some(20_000), true));
         let loops = after.loops.as_ref().expect("loops closed");
         let measured = &loops.network;
-        assert_eq!(after.metrics.kind, NetworkKind::Looped, "seed {seed}");
+        assert_eq!(after.metrics.kind, NetworkKind::LoopedOnTree, "seed {seed}");
         assert_eq!(conflicting_pairs(measured), 0, "seed {seed}: crossings");
         let faces = euler_faces(measured);
         assert!(faces > 50, "seed {seed}: {faces} loops");

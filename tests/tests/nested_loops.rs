@@ -62,7 +62,7 @@ fn looped_leaves_are_plane_graphs_obeying_euler() {
             let view = grow(&looped_params(name, seed, 20_000, Some(6.0)));
             let loops = view.loops.as_ref().expect("loops closed");
             let measured = &loops.network;
-            assert_eq!(view.metrics.kind, NetworkKind::Looped, "{name} seed {seed}");
+            assert_eq!(view.metrics.kind, NetworkKind::LoopedOnTree, "{name} seed {seed}");
             assert_eq!(conflicting_pairs(measured), 0, "{name} seed {seed}");
             let faces = euler_faces(measured);
             assert!(faces > 50, "{name} seed {seed}: {faces} loops");
@@ -220,4 +220,46 @@ fn a_looped_network_read_back_measures_the_same() {
     assert_eq!(again.digest, view.digest);
     assert_eq!(again.metrics, view.metrics);
     assert!(again.loops.is_some());
+}
+
+/// A leaf whose loops closed after growth keeps the readings only a tree has (branching
+/// angles, Strahler orders and streams, Hack exponent, tortuosity, transport cost), read on its
+/// grown vein tree: they equal those of the same run without loops, with a conducting
+/// threshold and with every cell a vein, and the loop readings are there beside them.
+#[test]
+fn looped_leaves_keep_the_readings_of_their_grown_tree() {
+    for (vein_area, seed) in [(0.1, 1), (0.1, 2), (0.0, 1)] {
+        let mut params = looped_params("broad-leaf", seed, 12_000, Some(6.0));
+        params.widths.vein_area = vein_area;
+        let looped = grow(&params);
+        params.widths.reconnect = None;
+        let tree = grow(&params);
+        let label = format!("vein_area {vein_area}, seed {seed}");
+        assert!(looped.loops.is_some(), "{label}: no loop closed");
+        assert_eq!(looped.metrics.kind, NetworkKind::LoopedOnTree, "{label}");
+        assert_eq!(tree.metrics.kind, NetworkKind::Forest, "{label}");
+        let (a, b) = (&looped.metrics, &tree.metrics);
+        assert!(a.branching_angle_count > 100, "{label}: {a:?}");
+        assert_eq!(a.branching_angle_count, b.branching_angle_count, "{label}");
+        assert_eq!(a.branching_angle_mean, b.branching_angle_mean, "{label}");
+        assert_eq!(a.branching_angle_sd, b.branching_angle_sd, "{label}");
+        assert_eq!(a.branching_angle_histogram, b.branching_angle_histogram, "{label}");
+        assert_eq!(a.max_strahler_order, b.max_strahler_order, "{label}");
+        assert_eq!(a.streams, b.streams, "{label}");
+        assert_eq!(a.bifurcation_ratio, b.bifurcation_ratio, "{label}");
+        assert_eq!(a.hack_exponent, b.hack_exponent, "{label}");
+        assert_eq!(a.tortuosity, b.tortuosity, "{label}");
+        assert_eq!(a.transport_cost, b.transport_cost, "{label}");
+        // The loop readings are the looped network's: areoles by Euler's formula.
+        let loops = looped.loops.as_ref().expect("loops closed");
+        assert_eq!(a.areoles, Some(euler_faces(&loops.network)), "{label}");
+        assert!(a.areoles.unwrap_or(0) > 10, "{label}: {:?} areoles", a.areoles);
+        // And the tree's own figures are not those of the looped network: it has more
+        // segments than the tree by the number of new ones.
+        assert_eq!(
+            a.segment_count,
+            b.segment_count + loops.reconnection.links.len() as u64,
+            "{label}"
+        );
+    }
 }

@@ -55,7 +55,8 @@ pub const ANGLE_BIN_WIDTH_DEGREES: f64 = 10.0;
 #[derive(Clone, Debug, PartialEq, Default, Serialize, Deserialize)]
 #[serde(default)]
 pub struct Metrics {
-    /// Shape of the network's graph: `forest` or `looped`.
+    /// Shape of the network's graph: `forest`, `looped`, or `looped_on_tree` (loops closed after
+    /// growth; the forest-only values are the grown vein tree's).
     pub kind: NetworkKind,
     /// Area of the leaf or site the network drains (`Network::area`), in units^2.
     pub area: f64,
@@ -225,14 +226,7 @@ pub fn measure_weighted(
     widths: Option<&[f64]>,
 ) -> Metrics {
     let node_count = network.nodes.len();
-    let forest = forest.filter(|(topology, orders)| {
-        topology.children.len() == node_count
-            && topology.parent.len() == node_count
-            && topology.flow.len() == node_count
-            && topology.length.len() == node_count
-            && topology.order.len() == node_count
-            && orders.len() == node_count
-    });
+    let forest = forest.filter(|&forest| fits(network, forest));
     let area = network.area;
     let per_area = |amount: f64| {
         if area > 0.0 && area.is_finite() {
@@ -291,25 +285,65 @@ pub fn measure_weighted(
         aspect_ratio: outline.aspect_ratio,
         ..Metrics::default()
     };
-    if let Some((topology, orders)) = forest {
-        let angles = angles::branching_angles(network, topology);
-        let angle_summary = angles::summarise_angles(&angles);
-        let streams = strahler_horton::streams_by_order(network, topology, orders);
-        let horton = strahler_horton::horton_ratios(&streams);
+    if let Some(forest) = forest {
+        add_forest_readings(&mut metrics, network, forest, alpha);
         metrics.kind = NetworkKind::Forest;
-        metrics.branching_angle_count = angle_summary.count;
-        metrics.branching_angle_mean = angle_summary.mean;
-        metrics.branching_angle_sd = angle_summary.standard_deviation;
-        metrics.branching_angle_histogram = angle_summary.histogram;
-        metrics.max_strahler_order = Some(streams.last().map_or(0, |stream| stream.order));
-        metrics.streams = streams;
-        metrics.bifurcation_ratio = horton.bifurcation_ratio;
-        metrics.length_ratio = horton.length_ratio;
-        metrics.hack_exponent = hack::hack_exponent(network, topology);
-        metrics.tortuosity = tortuosity::mean_tortuosity(network, topology);
-        metrics.transport_cost = transport::transport_cost(network, topology, alpha);
     }
     metrics
+}
+
+/// The metrics of a looped network grown as a tree whose loops closed after growth: `looped`
+/// (measured with `measure_weighted`, no forest view) gains the forest-only readings of `tree`,
+/// the grown vein tree before its loops closed, with its forest view and Strahler orders; the
+/// kind becomes `NetworkKind::LoopedOnTree`. A forest view that does not fit the tree leaves
+/// `looped` as it was.
+pub fn with_tree_readings(
+    mut looped: Metrics,
+    tree: &Network,
+    forest: (&Topology, &[u32]),
+    alpha: f64,
+) -> Metrics {
+    if fits(tree, forest) {
+        add_forest_readings(&mut looped, tree, forest, alpha);
+        looped.kind = NetworkKind::LoopedOnTree;
+    }
+    looped
+}
+
+/// Whether a forest view and its orders have one entry per node of `network`.
+fn fits(network: &Network, (topology, orders): (&Topology, &[u32])) -> bool {
+    let count = network.nodes.len();
+    topology.children.len() == count
+        && topology.parent.len() == count
+        && topology.flow.len() == count
+        && topology.length.len() == count
+        && topology.order.len() == count
+        && orders.len() == count
+}
+
+/// Sets the forest-only readings of `metrics` from a forest and its view.
+fn add_forest_readings(
+    metrics: &mut Metrics,
+    network: &Network,
+    forest: (&Topology, &[u32]),
+    alpha: f64,
+) {
+    let (topology, orders) = forest;
+    let angles = angles::branching_angles(network, topology);
+    let angle_summary = angles::summarise_angles(&angles);
+    let streams = strahler_horton::streams_by_order(network, topology, orders);
+    let horton = strahler_horton::horton_ratios(&streams);
+    metrics.branching_angle_count = angle_summary.count;
+    metrics.branching_angle_mean = angle_summary.mean;
+    metrics.branching_angle_sd = angle_summary.standard_deviation;
+    metrics.branching_angle_histogram = angle_summary.histogram;
+    metrics.max_strahler_order = Some(streams.last().map_or(0, |stream| stream.order));
+    metrics.streams = streams;
+    metrics.bifurcation_ratio = horton.bifurcation_ratio;
+    metrics.length_ratio = horton.length_ratio;
+    metrics.hack_exponent = hack::hack_exponent(network, topology);
+    metrics.tortuosity = tortuosity::mean_tortuosity(network, topology);
+    metrics.transport_cost = transport::transport_cost(network, topology, alpha);
 }
 
 /// Mean and sample standard deviation (divisor n - 1) of areole areas.

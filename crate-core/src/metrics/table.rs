@@ -95,7 +95,7 @@ pub enum AppliesTo {
 impl AppliesTo {
     /// Whether the metric applies to a network of `kind`.
     pub fn includes(self, kind: NetworkKind) -> bool {
-        self == AppliesTo::AnyNetwork || kind == NetworkKind::Forest
+        self == AppliesTo::AnyNetwork || kind != NetworkKind::Looped
     }
 
     /// README text.
@@ -645,6 +645,12 @@ pub enum Measured {
 /// and in drainage words.
 pub const FOLLOWS_LATTICE_NOTE: &str = "Says little here: every cell is a vein, so this follows the cell size, not the model. Set \"Smallest drained area that conducts\" above 0 to measure veins.";
 
+/// Added to the text of a forest-only reading of a network whose loops closed after growth.
+pub const TREE_NOTE: &str = "Measured on the grown vein tree, before its loops closed.";
+
+/// `TREE_NOTE` in drainage words.
+pub const TREE_NOTE_SITE: &str = "Measured on the grown channel tree, before its loops closed.";
+
 /// `FOLLOWS_LATTICE_NOTE` in drainage words.
 pub const FOLLOWS_LATTICE_NOTE_SITE: &str = "Says little here: every cell is a channel, so this follows the cell size, not the layout. Set \"Smallest drained area that conducts\" above 0 to measure channels.";
 
@@ -701,6 +707,14 @@ fn explained_rows(
             (false, _) => entry.about.to_string(),
             (true, false) => FOLLOWS_LATTICE_NOTE.to_string(),
             (true, true) => FOLLOWS_LATTICE_NOTE_SITE.to_string(),
+        };
+        let about = if metrics.kind == NetworkKind::LoopedOnTree
+            && entry.applies_to == AppliesTo::ForestOnly
+        {
+            let tree = if site { TREE_NOTE_SITE } else { TREE_NOTE };
+            format!("{about} {tree}")
+        } else {
+            about
         };
         if !entry.applies_to.includes(metrics.kind) {
             if !matches!((entry.read)(metrics), Reading::Streams(_)) {
