@@ -62,7 +62,11 @@ fn looped_leaves_are_plane_graphs_obeying_euler() {
             let view = grow(&looped_params(name, seed, 20_000, Some(6.0)));
             let loops = view.loops.as_ref().expect("loops closed");
             let measured = &loops.network;
-            assert_eq!(view.metrics.kind, NetworkKind::LoopedOnTree, "{name} seed {seed}");
+            assert_eq!(
+                view.metrics.kind,
+                NetworkKind::LoopedOnTree,
+                "{name} seed {seed}"
+            );
             assert_eq!(conflicting_pairs(measured), 0, "{name} seed {seed}");
             let faces = euler_faces(measured);
             assert!(faces > 50, "{name} seed {seed}: {faces} loops");
@@ -243,7 +247,10 @@ fn looped_leaves_keep_the_readings_of_their_grown_tree() {
         assert_eq!(a.branching_angle_count, b.branching_angle_count, "{label}");
         assert_eq!(a.branching_angle_mean, b.branching_angle_mean, "{label}");
         assert_eq!(a.branching_angle_sd, b.branching_angle_sd, "{label}");
-        assert_eq!(a.branching_angle_histogram, b.branching_angle_histogram, "{label}");
+        assert_eq!(
+            a.branching_angle_histogram, b.branching_angle_histogram,
+            "{label}"
+        );
         assert_eq!(a.max_strahler_order, b.max_strahler_order, "{label}");
         assert_eq!(a.streams, b.streams, "{label}");
         assert_eq!(a.bifurcation_ratio, b.bifurcation_ratio, "{label}");
@@ -253,7 +260,11 @@ fn looped_leaves_keep_the_readings_of_their_grown_tree() {
         // The loop readings are the looped network's: areoles by Euler's formula.
         let loops = looped.loops.as_ref().expect("loops closed");
         assert_eq!(a.areoles, Some(euler_faces(&loops.network)), "{label}");
-        assert!(a.areoles.unwrap_or(0) > 10, "{label}: {:?} areoles", a.areoles);
+        assert!(
+            a.areoles.unwrap_or(0) > 10,
+            "{label}: {:?} areoles",
+            a.areoles
+        );
         // And the tree's own figures are not those of the looped network: it has more
         // segments than the tree by the number of new ones.
         assert_eq!(
