@@ -356,6 +356,65 @@ mod tests {
         }
     }
 
+    /// Pairwise summation (Higham 1993, "The accuracy of floating point summation", SIAM J.
+    /// Sci. Comput. 14(4)): the sum of `values` (a power of two long) as the sum of its two
+    /// halves' sums.
+    fn pairwise_sum(values: &[f64]) -> f64 {
+        match values.len() {
+            1 => values[0],
+            length => pairwise_sum(&values[..length / 2]) + pairwise_sum(&values[length / 2..]),
+        }
+    }
+
+    /// With weights whose sums round (not whole numbers), the total after any mix of inserts,
+    /// updates and removals has the very bits of pairwise summation over the slots in order,
+    /// emptied slots and unused ones counting 0: the order of the additions is the tree's,
+    /// whichever leaves changed between reads.
+    #[test]
+    fn weight_sums_are_pairwise_sums_to_the_bit() {
+        let mut frontier = Frontier::new(true);
+        let mut weights: Vec<f64> = Vec::new();
+        let mut live: Vec<u32> = Vec::new();
+        let mut state = 0x2545_f491_4f6c_dd1du64;
+        let mut next = |bound: u64| {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            state % bound
+        };
+        for step in 0..3_000u32 {
+            let weight = 0.1 * (1 + next(1_000)) as f64 / 7.0;
+            match next(4) {
+                0 | 1 => {
+                    let index = frontier.insert(slot(step, 1.0), weight);
+                    weights.resize(weights.len().max(index as usize + 1), 0.0);
+                    weights[index as usize] = weight;
+                    live.push(index);
+                }
+                2 if !live.is_empty() => {
+                    let index = live[next(live.len() as u64) as usize];
+                    frontier.update(index, 1.0, slot(0, 0.0).best, weight);
+                    weights[index as usize] = weight;
+                }
+                _ if !live.is_empty() => {
+                    let index = live.swap_remove(next(live.len() as u64) as usize);
+                    frontier.remove(index);
+                    weights[index as usize] = 0.0;
+                }
+                _ => {}
+            }
+            if next(4) != 0 {
+                continue;
+            }
+            let mut padded = weights.clone();
+            padded.resize(frontier.capacity, 0.0);
+            assert_eq!(
+                frontier.total_weight().to_bits(),
+                pairwise_sum(&padded).to_bits()
+            );
+        }
+    }
+
     #[test]
     fn weighted_pick_skips_zero_weights() {
         let mut frontier = Frontier::new(true);
