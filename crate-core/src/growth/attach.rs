@@ -19,12 +19,18 @@ impl Growth {
         // With `keep_clear`, segments near blocked cells are walked (`meets_blocked`).
         let check_clear = self.clear_checks(centre_cell);
         let (node_x, node_y) = (node_anchor.x, node_anchor.y);
+        // Away from the lattice's edges (nearly every offer) no neighbour needs a bounds test.
+        let inside = self.lattice.reaches_inside(column, row);
         for offset_index in 0..self.lattice.offsets.len() {
-            let (dx, dy) = self.lattice.offsets[offset_index];
-            let Some((cell, cell_column, cell_row)) =
-                self.lattice.neighbour_at(column, row, dx, dy)
-            else {
-                continue;
+            let (cell, cell_column, cell_row) = if inside {
+                self.lattice
+                    .step_from(centre_cell, column, row, offset_index)
+            } else {
+                let (dx, dy) = self.lattice.offsets[offset_index];
+                match self.lattice.neighbour_at(column, row, dx, dy) {
+                    Some(found) => found,
+                    None => continue,
+                }
             };
             let state = self.lattice.state[cell];
             if state == BLOCKED || state < FRONTIER_TAG {

@@ -4,8 +4,7 @@
 //!
 //! Leaf changes are applied to the tree's inner nodes lazily, just before the tree is next
 //! read (`settle`): the inner nodes are a function of the leaves alone, so the answers are the
-//! same as with every change applied at once, and a slot emptied and filled again within one
-//! step (the picked cell's slot is reused by the next cell offered) often costs no walk at all.
+//! same as with every change applied at once.
 
 /// No attachment yet / not a node.
 pub(crate) const NONE: u32 = u32::MAX;
@@ -32,23 +31,23 @@ pub(crate) struct Slot {
     pub best: Attachment,
 }
 
-/// One node of the trees: the cheapest leaf under it (cost and slot) and the sum of the
-/// weights under it, side by side, so that recombining a node reads its two children from one
-/// or two cache lines.
+/// One node of the min tree: the cheapest leaf under it, its cost and its slot.
 #[derive(Clone, Copy, Debug)]
-struct TreeNode {
+struct Cheapest {
     cost: f64,
-    weight: f64,
     slot: u32,
 }
 
 /// Frontier slots with a min tree (cheapest first) and a sum tree (random joining).
 pub(crate) struct Frontier {
     capacity: usize,
-    /// The min tree and the sum tree of weights in one: node 1 is the root, node
-    /// `capacity + i` the leaf of slot `i`. Weights stay 0 when they are not kept (the
-    /// cheapest rule, whose weights are all 0).
-    tree: Vec<TreeNode>,
+    /// The min tree: node 1 is the root, node `capacity + i` the leaf of slot `i`.
+    cheapest: Vec<Cheapest>,
+    /// The sum tree of weights, numbered as the min tree; empty when weights are not kept
+    /// (the cheapest rule, whose weights are all 0). Kept apart from the min tree: every
+    /// changed weight changes the sums up to the root, while a changed cost seldom changes the
+    /// cheapest leaf more than a few levels up, so a min-tree walk mostly stops early.
+    weights: Vec<f64>,
     /// Whether weights are kept.
     keeps_weights: bool,
     /// Slots by index; a free slot has `cell == NONE`.
@@ -65,7 +64,8 @@ impl Frontier {
     pub fn new(keeps_weights: bool) -> Frontier {
         let mut frontier = Frontier {
             capacity: 0,
-            tree: Vec::new(),
+            cheapest: Vec::new(),
+            weights: Vec::new(),
             keeps_weights,
             slots: Vec::new(),
             free: Vec::new(),
@@ -121,7 +121,7 @@ impl Frontier {
             return None;
         }
         self.settle();
-        Some((self.tree[1].slot, self.tree[1].cost))
+        Some((self.cheapest[1].slot, self.cheapest[1].cost))
     }
 
     /// Sum of all weights (0 when weights are not kept).
@@ -130,7 +130,7 @@ impl Frontier {
             return 0.0;
         }
         self.settle();
-        self.tree[1].weight
+        self.weights[1]
     }
 
     /// The slot where the cumulative weight passes `target` (0 <= target < total).
@@ -144,8 +144,8 @@ impl Frontier {
         while node < self.capacity {
             let left = 2 * node;
             let right = left + 1;
-            let left_sum = self.tree[left].weight;
-            if left_sum > 0.0 && (target < left_sum || self.tree[right].weight <= 0.0) {
+            let left_sum = self.weights[left];
+            if left_sum > 0.0 && (target < left_sum || self.weights[right] <= 0.0) {
                 node = left;
             } else {
                 target -= left_sum;
@@ -165,9 +165,9 @@ impl Frontier {
             } else {
                 (slot.cost, weight_of(&slot))
             };
-            self.tree[leaf].cost = cost;
+            self.cheapest[leaf].cost = cost;
             if self.keeps_weights {
-                self.tree[leaf].weight = weight;
+                self.weights[leaf] = weight;
             }
         }
         self.rebuild_internal();
@@ -176,83 +176,62 @@ impl Frontier {
     /// Sets one leaf; its ancestors are recombined by the next `settle`.
     fn set_leaf(&mut self, index: u32, cost: f64, weight: f64) {
         let node = self.capacity + index as usize;
-        let leaf = &mut self.tree[node];
-        leaf.cost = cost;
-        leaf.slot = index;
+        self.cheapest[node] = Cheapest { cost, slot: index };
         if self.keeps_weights {
-            leaf.weight = weight;
+            self.weights[node] = weight;
         }
         self.unsettled.push(index);
     }
 
-    /// Recombines the ancestors of the changed leaves level by level, each inner node once,
-    /// and only those with a child that changed: a node whose cheapest cost, cheapest slot and
-    /// weight sum come out as they were changes nothing above it. The trees are exactly what
-    /// recombining every ancestor would give.
+    /// Brings the inner nodes up to date: walks from each changed leaf to the root,
+    /// recombining every node on the way. A node's last recombination comes after both of its
+    /// children are final (the last walk through it passes through one child, whose walks are
+    /// all among its own, and every walk through the other child came earlier), so the trees
+    /// are exactly what recombining every inner node would give. A min-tree walk stops at the
+    /// first node whose cheapest cost and slot come out as they were: every walk that changes a
+    /// node (or sets a leaf) goes on to recombine its parent, so the last change to a node's
+    /// children is still followed by its recombination from final children. Sums change
+    /// nearly always, so their walks go to the root without testing.
     fn settle(&mut self) {
         if self.unsettled.is_empty() {
             return;
         }
-        let mut level = std::mem::take(&mut self.unsettled);
-        let capacity = self.capacity as u32;
-        for node in level.iter_mut() {
-            *node += capacity;
-        }
-        level.sort_unstable();
-        // Every leaf is at the same depth (the capacity is a power of two), so each pass moves
-        // the whole list one level up and keeps it sorted: a parent listed twice (both of its
-        // children changed) comes twice in a row and is recombined once.
-        while level.first().is_some_and(|&node| node > 1) {
-            let mut kept = 0;
-            let mut previous = 0;
-            for position in 0..level.len() {
-                let node = level[position] / 2;
-                if node == previous {
-                    continue;
-                }
-                previous = node;
-                if self.recombine(node as usize) {
-                    level[kept] = node;
-                    kept += 1;
+        let capacity = self.capacity;
+        if self.keeps_weights {
+            let weights = &mut self.weights;
+            for &index in &self.unsettled {
+                let mut node = (capacity + index as usize) / 2;
+                while node > 0 {
+                    weights[node] = weights[2 * node] + weights[2 * node + 1];
+                    node /= 2;
                 }
             }
-            level.truncate(kept);
         }
-        level.clear();
-        self.unsettled = level;
+        let cheapest = &mut self.cheapest;
+        for &index in &self.unsettled {
+            let mut node = (capacity + index as usize) / 2;
+            while node > 0 {
+                let (left, right) = (cheapest[2 * node], cheapest[2 * node + 1]);
+                let best = if right.cost < left.cost { right } else { left };
+                let before = cheapest[node];
+                if before.cost.to_bits() == best.cost.to_bits() && before.slot == best.slot {
+                    break;
+                }
+                cheapest[node] = best;
+                node /= 2;
+            }
+        }
+        self.unsettled.clear();
     }
 
-    /// Recombines one inner node from its children; whether it changed.
-    #[inline]
-    fn recombine(&mut self, node: usize) -> bool {
-        let before = self.tree[node];
-        let (left, right) = (self.tree[2 * node], self.tree[2 * node + 1]);
-        let cheapest = if right.cost < left.cost { right } else { left };
-        let weight = if self.keeps_weights {
-            left.weight + right.weight
-        } else {
-            before.weight
-        };
-        self.tree[node] = TreeNode {
-            cost: cheapest.cost,
-            weight,
-            slot: cheapest.slot,
-        };
-        before.cost.to_bits() != cheapest.cost.to_bits()
-            || before.slot != cheapest.slot
-            || before.weight.to_bits() != weight.to_bits()
-    }
-
-    /// The cheapest of a node's two children; the left one (lower slots) on equal costs.
+    /// The cheapest of a node's two children (the left one, lower slots, on equal costs) and
+    /// the sum of their weights.
     #[inline]
     fn combine(&mut self, node: usize) {
-        let (left, right) = (self.tree[2 * node], self.tree[2 * node + 1]);
-        let cheapest = if right.cost < left.cost { right } else { left };
-        let parent = &mut self.tree[node];
-        parent.cost = cheapest.cost;
-        parent.slot = cheapest.slot;
+        let (left, right) = (self.cheapest[2 * node], self.cheapest[2 * node + 1]);
+        self.cheapest[node] = if right.cost < left.cost { right } else { left };
         if self.keeps_weights {
-            parent.weight = left.weight + right.weight;
+            self.weights[node] = self.weights[2 * node] + self.weights[2 * node + 1];
         }
     }
 
@@ -265,24 +244,27 @@ impl Frontier {
 
     fn resize(&mut self, capacity: usize) {
         let old_capacity = self.capacity;
-        let mut tree = vec![
-            TreeNode {
+        let mut cheapest = vec![
+            Cheapest {
                 cost: f64::INFINITY,
-                weight: 0.0,
                 slot: NONE,
             };
             2 * capacity
         ];
         for index in 0..capacity {
-            tree[capacity + index].slot = index as u32;
+            cheapest[capacity + index].slot = index as u32;
         }
         for index in 0..old_capacity {
-            let old = self.tree[old_capacity + index];
-            tree[capacity + index].cost = old.cost;
-            tree[capacity + index].weight = old.weight;
+            cheapest[capacity + index].cost = self.cheapest[old_capacity + index].cost;
+        }
+        if self.keeps_weights {
+            let mut weights = vec![0.0; 2 * capacity];
+            weights[capacity..capacity + old_capacity]
+                .copy_from_slice(&self.weights[old_capacity..2 * old_capacity]);
+            self.weights = weights;
         }
         self.capacity = capacity;
-        self.tree = tree;
+        self.cheapest = cheapest;
         self.rebuild_internal();
     }
 }
@@ -371,6 +353,65 @@ mod tests {
                 let expected_total = if keeps_weights { total } else { 0.0 };
                 assert_eq!(frontier.total_weight(), expected_total);
             }
+        }
+    }
+
+    /// Pairwise summation (Higham 1993, "The accuracy of floating point summation", SIAM J.
+    /// Sci. Comput. 14(4)): the sum of `values` (a power of two long) as the sum of its two
+    /// halves' sums.
+    fn pairwise_sum(values: &[f64]) -> f64 {
+        match values.len() {
+            1 => values[0],
+            length => pairwise_sum(&values[..length / 2]) + pairwise_sum(&values[length / 2..]),
+        }
+    }
+
+    /// With weights whose sums round (not whole numbers), the total after any mix of inserts,
+    /// updates and removals has the very bits of pairwise summation over the slots in order,
+    /// emptied slots and unused ones counting 0: the order of the additions is the tree's,
+    /// whichever leaves changed between reads.
+    #[test]
+    fn weight_sums_are_pairwise_sums_to_the_bit() {
+        let mut frontier = Frontier::new(true);
+        let mut weights: Vec<f64> = Vec::new();
+        let mut live: Vec<u32> = Vec::new();
+        let mut state = 0x2545_f491_4f6c_dd1du64;
+        let mut next = |bound: u64| {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            state % bound
+        };
+        for step in 0..3_000u32 {
+            let weight = 0.1 * (1 + next(1_000)) as f64 / 7.0;
+            match next(4) {
+                0 | 1 => {
+                    let index = frontier.insert(slot(step, 1.0), weight);
+                    weights.resize(weights.len().max(index as usize + 1), 0.0);
+                    weights[index as usize] = weight;
+                    live.push(index);
+                }
+                2 if !live.is_empty() => {
+                    let index = live[next(live.len() as u64) as usize];
+                    frontier.update(index, 1.0, slot(0, 0.0).best, weight);
+                    weights[index as usize] = weight;
+                }
+                _ if !live.is_empty() => {
+                    let index = live.swap_remove(next(live.len() as u64) as usize);
+                    frontier.remove(index);
+                    weights[index as usize] = 0.0;
+                }
+                _ => {}
+            }
+            if next(4) != 0 {
+                continue;
+            }
+            let mut padded = weights.clone();
+            padded.resize(frontier.capacity, 0.0);
+            assert_eq!(
+                frontier.total_weight().to_bits(),
+                pairwise_sum(&padded).to_bits()
+            );
         }
     }
 

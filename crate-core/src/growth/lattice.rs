@@ -25,6 +25,10 @@ pub(crate) struct Lattice {
     jitter: Vec<[f32; 2]>,
     /// Offsets `(dx, dy)` with `dx^2 + dy^2 <= radius^2`, nearest first, excluding `(0, 0)`.
     pub offsets: Vec<(i32, i32)>,
+    /// For each offset, the step `dy * width + dx` between the two cells' row-major indices.
+    steps: Vec<isize>,
+    /// The largest `|dx|` and `|dy|` of the offsets.
+    reach: i32,
     /// For each offset, a length (in cells) no greater than the computed distance between a
     /// cell's position and any node in the cell at that offset from it (`length_floor`).
     pub length_floors: Vec<f64>,
@@ -82,12 +86,18 @@ impl Lattice {
             .iter()
             .map(|&(dx, dy)| length_floor(dx, dy, slack))
             .collect();
+        let steps = offsets
+            .iter()
+            .map(|&(dx, dy)| dy as isize * width as isize + dx as isize)
+            .collect();
         Lattice {
             width,
             height,
             state,
             jitter,
             offsets,
+            steps,
+            reach,
             length_floors,
         }
     }
@@ -137,6 +147,35 @@ impl Lattice {
             return None;
         }
         Some((y as usize * self.width + x as usize, x as usize, y as usize))
+    }
+
+    /// Whether every offset from the cell at `(column, row)` stays inside the lattice, so that
+    /// `step_from` may be used instead of `neighbour_at`.
+    #[inline]
+    pub fn reaches_inside(&self, column: i32, row: i32) -> bool {
+        column >= self.reach
+            && row >= self.reach
+            && ((column + self.reach) as usize) < self.width
+            && ((row + self.reach) as usize) < self.height
+    }
+
+    /// `neighbour_at(column, row, dx, dy)` for offset `offsets[offset_index]` from `cell`, at
+    /// `(column, row)`, when `reaches_inside(column, row)`: no bounds to test.
+    #[inline]
+    pub fn step_from(
+        &self,
+        cell: usize,
+        column: i32,
+        row: i32,
+        offset_index: usize,
+    ) -> (usize, usize, usize) {
+        let (dx, dy) = self.offsets[offset_index];
+        debug_assert!(self.reaches_inside(column, row));
+        (
+            cell.wrapping_add_signed(self.steps[offset_index]),
+            (column + dx) as usize,
+            (row + dy) as usize,
+        )
     }
 
     /// Jittered position of a cell's node, in cells.

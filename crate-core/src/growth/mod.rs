@@ -86,6 +86,9 @@ pub struct Growth {
     flow: Vec<f64>,
     root_of: Vec<u32>,
     child_count: Vec<u32>,
+    /// Length of each node's segment to its parent as computed when the node was added (0 for
+    /// a root), read by the flow refresh while `only_appends` (no split has moved a parent).
+    segment_length: Vec<f64>,
     cell_of: Vec<u32>,
     /// Junctions (nodes off the cell centres) in each cell, as linked lists (segments only).
     junction_head: Vec<u32>,
@@ -163,6 +166,7 @@ impl Growth {
             flow: Vec::new(),
             root_of: Vec::new(),
             child_count: Vec::new(),
+            segment_length: Vec::new(),
             cell_of: Vec::new(),
             junction_head: Vec::new(),
             junction_next: Vec::new(),
@@ -386,6 +390,7 @@ impl Growth {
         self.flow.reserve_exact(count);
         self.root_of.reserve_exact(count);
         self.child_count.reserve_exact(count);
+        self.segment_length.reserve_exact(count);
         self.cell_of.reserve_exact(count);
         if self.refined.run.attach_to_segments {
             self.junction_next.reserve_exact(count);
@@ -428,9 +433,15 @@ impl Growth {
             };
             self.node_ground.push(ground);
         }
-        if parent != NO_PARENT {
+        let length = if parent == NO_PARENT {
+            0.0
+        } else {
             self.child_count[parent as usize] += 1;
-        }
+            // The expression of `refresh_flows`, so the same bits.
+            let (vx, vy) = (self.x[parent as usize] - x, self.y[parent as usize] - y);
+            (vx * vx + vy * vy).sqrt()
+        };
+        self.segment_length.push(length);
         node
     }
 

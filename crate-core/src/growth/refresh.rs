@@ -107,15 +107,24 @@ impl Growth {
     /// read (its children have higher indices) and adds into its parent, so every parent
     /// receives its children's flows in decreasing index order, as the reversed breadth-first
     /// order adds them (a parent's children are listed there together, by increasing index).
-    /// Transport costs: each node needs only its parent's, which comes first either way.
+    /// Transport costs: each node needs only its parent's, which comes first either way; the
+    /// segment lengths are those computed when the nodes were added, by the same expression
+    /// from the same positions (no parent has changed since).
     fn refresh_flows_in_index_order(&mut self) {
         let count = self.x.len();
-        for node in 0..count {
-            debug_assert!(self.parent[node] == NO_PARENT || (self.parent[node] as usize) < node);
-            self.flow[node] = match self.cell_of[node] {
-                NONE => 0.0,
-                cell => self.own_weight(cell as usize),
-            };
+        if self.zone_of.is_empty() {
+            // Every cell weighs `cell_weight` (`own_weight`): a plain fill.
+            let weight = self.cell_weight;
+            for (flow, &cell) in self.flow.iter_mut().zip(&self.cell_of) {
+                *flow = if cell == NONE { 0.0 } else { weight };
+            }
+        } else {
+            for node in 0..count {
+                self.flow[node] = match self.cell_of[node] {
+                    NONE => 0.0,
+                    cell => self.own_weight(cell as usize),
+                };
+            }
         }
         for node in (0..count).rev() {
             let parent = self.parent[node];
@@ -126,15 +135,14 @@ impl Growth {
         let mut marginals = MarginalMemo::new(self.cell_weight, self.refined.costs.alpha);
         for node in 0..count {
             let parent = self.parent[node];
+            debug_assert!(parent == NO_PARENT || (parent as usize) < node);
             if parent == NO_PARENT {
                 self.transport[node] = 0.0;
                 continue;
             }
-            let parent = parent as usize;
-            let (vx, vy) = (self.x[parent] - self.x[node], self.y[parent] - self.y[node]);
-            let length = (vx * vx + vy * vy).sqrt();
+            let length = self.segment_length[node];
             self.transport[node] =
-                self.transport[parent] + length * marginals.marginal(self.flow[node]);
+                self.transport[parent as usize] + length * marginals.marginal(self.flow[node]);
         }
     }
 }
