@@ -386,6 +386,11 @@ impl Conducted {
         self.closing.as_ref().map(LoopClosing::progress)
     }
 
+    /// The reshaped network and what the reshaping passes did.
+    pub fn reshaped(&self) -> &Reshaped {
+        &self.reshaped
+    }
+
     /// Whether the loop pass has ended (or does not run).
     pub fn loops_done(&self) -> bool {
         self.closing.as_ref().is_none_or(LoopClosing::done)

@@ -237,8 +237,10 @@ impl LoopClosing {
         let gap = 1.5 * rule.cell_size.max(rule.finest_area.sqrt());
         closing.gap = gap;
         let vein_nodes: Vec<u32> = (0..count).filter(|&n| vein[n]).map(|n| n as u32).collect();
-        closing.nodes_grid =
-            Grid::of_points(vein_nodes.iter().map(|&n| (n, veins.point(n as usize))), gap);
+        closing.nodes_grid = Grid::of_points(
+            vein_nodes.iter().map(|&n| (n, veins.point(n as usize))),
+            gap,
+        );
         closing.segments = (0..count)
             .filter(|&n| veins.conducts_below(n))
             .map(|n| (n as u32, topology.parent[n]))
@@ -256,7 +258,11 @@ impl LoopClosing {
         // new one shares a cell with the new one's bounding box.
         let mut segment_grid = Grid::of_points(std::iter::empty(), gap);
         for (index, &(a, b)) in closing.segments.iter().enumerate() {
-            segment_grid.insert_box(index as u32, veins.point(a as usize), veins.point(b as usize));
+            segment_grid.insert_box(
+                index as u32,
+                veins.point(a as usize),
+                veins.point(b as usize),
+            );
         }
         closing.segment_grid = segment_grid;
         closing.tree_paths = rule
@@ -309,11 +315,13 @@ impl LoopClosing {
             Stage::Level | Stage::Done => 0,
             Stage::Round => self.pending.len(),
             Stage::Tips(index) => self.pending.len().saturating_sub(index) + self.offers.len(),
-            Stage::Offers(index) => {
-                self.offers.len().saturating_sub(index) + self.deferred.len()
-            }
+            Stage::Offers(index) => self.offers.len().saturating_sub(index) + self.deferred.len(),
         };
-        let ends = if self.stage == Stage::Level { 0 } else { self.ends };
+        let ends = if self.stage == Stage::Level {
+            0
+        } else {
+            self.ends
+        };
         LoopProgress {
             level: self.level,
             levels: self.rule.levels + 1,
@@ -346,9 +354,9 @@ impl LoopClosing {
         self.reach = 2.0 * self.threshold(level).sqrt();
         let level_of = &self.level_of;
         let mut has_child = vec![false; count];
-        for node in 0..count {
+        for (node, &first_level) in level_of.iter().enumerate() {
             let parent = topology.parent[node];
-            if parent != NO_PARENT && veins.conducts_below(node) && level_of[node] <= level {
+            if parent != NO_PARENT && veins.conducts_below(node) && first_level <= level {
                 has_child[parent as usize] = true;
             }
         }
@@ -644,18 +652,15 @@ impl LoopClosing {
     /// Whether a new segment u v would cross, touch or run over a vein or a new segment.
     fn crosses(&self, veins: GrownVeins, u: usize, v: usize) -> bool {
         let new = (veins.point(u), veins.point(v));
-        self.segment_grid
-            .in_box(new.0, new.1)
-            .iter()
-            .any(|&index| {
-                let (a, b) = self.segments[index as usize];
-                segments_conflict(
-                    new,
-                    (veins.point(a as usize), veins.point(b as usize)),
-                    (u as u32, v as u32),
-                    (a, b),
-                )
-            })
+        self.segment_grid.in_box(new.0, new.1).iter().any(|&index| {
+            let (a, b) = self.segments[index as usize];
+            segments_conflict(
+                new,
+                (veins.point(a as usize), veins.point(b as usize)),
+                (u as u32, v as u32),
+                (a, b),
+            )
+        })
     }
 
     /// The way round from `from` to `to` through this level's network and the new segments,
@@ -706,7 +711,12 @@ impl LoopClosing {
         }
         self.in_loop[t] = true;
         if let Some(rotation) = self.rotation.as_mut() {
-            rotation.add(&self.positions, u as u32, v as u32, self.segments.len() as u32);
+            rotation.add(
+                &self.positions,
+                u as u32,
+                v as u32,
+                self.segments.len() as u32,
+            );
         }
         self.linked[u].push(v as u32);
         self.linked[v].push(u as u32);

@@ -213,4 +213,3 @@ impl Ord for Ordered {
         self.0.total_cmp(&other.0)
     }
 }
-
