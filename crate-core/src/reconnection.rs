@@ -50,7 +50,7 @@ mod rotation;
 mod search;
 
 use crate::network::{Network, Segment, Topology};
-pub use closing::{GrownVeins, LoopClosing, LoopProgress};
+pub use closing::{next_part_size, GrownVeins, LoopClosing, LoopProgress};
 
 /// How loops close.
 #[derive(Clone, Copy, Debug, PartialEq)]

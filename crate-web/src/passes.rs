@@ -12,11 +12,9 @@ use serde_json::{json, Value};
 /// demo field) takes about 12 ms for these, so Stop answers within a slice.
 pub const ITEMS_PER_PART: usize = 256;
 
-/// Loop-pass pieces (free ends examined, offers checked) a slice takes between looks at the
-/// clock: on `looped-leaf` scaled to 100,000 cells a piece takes about 0.1 ms on average in
-/// the browser, so a part takes a few milliseconds and a slice ends within about one part
-/// after its budget.
-pub const LOOP_STEPS_PER_PART: usize = 32;
+/// Work (`LoopClosing::advance` units: nodes walked and searched) of the loop pass's first
+/// part; later parts follow the clock (`reconnection::next_part_size`).
+pub const FIRST_LOOP_PART: usize = 4096;
 
 /// What the loop pass took, slice by slice (for the page benchmark).
 #[derive(Clone, Copy, Debug, Default)]
@@ -70,6 +68,8 @@ pub struct StepwisePasses {
     pub loops: Option<Conducted>,
     /// What the loop pass took.
     pub loop_figures: LoopFigures,
+    /// Work of the loop pass's next part (`FIRST_LOOP_PART` at first).
+    pub loop_part: usize,
 }
 
 impl StepwisePasses {
@@ -351,6 +351,7 @@ fn status_text(s: &Status) -> String {
                 ends_done: 0,
                 ends: 0,
                 loops: 0,
+                work: 0,
                 done: false,
             });
             let (what, ends) = if s.site {

@@ -8,6 +8,7 @@ use ramulus_core::metrics::metrics_csv;
 use ramulus_core::network::Network;
 use ramulus_core::params::Domain;
 use ramulus_core::params::Params;
+use ramulus_core::reconnection::next_part_size;
 use ramulus_core::record::{make_record, read_record, write_record};
 use ramulus_core::reshaping::Reshaping;
 use ramulus_core::run::{
@@ -185,8 +186,8 @@ impl Simulation {
     /// run parts of sweeps (`passes::ITEMS_PER_PART` nodes or junctions each, at least one
     /// part) until `budget_ms` milliseconds have passed or the sweeps are over; with loops
     /// (`reconnect`), the call after the last sweep runs the conducting pass and sets the loop
-    /// pass up, and the next ones close loops in parts (`passes::LOOP_STEPS_PER_PART` free ends
-    /// each, at least one part) until `budget_ms` have passed or the loops are closed; the call
+    /// pass up, and the next ones close loops in parts (parts of work whose size follows the
+    /// clock, `reconnection::next_part_size`, at least one part) until `budget_ms` have passed or the loops are closed; the call
     /// after that runs the rest of the pipeline (widths, readings) and caches the run view, so
     /// refills and readings never run the passes again. Returns the progress as JSON
     /// (`passes::StepwisePasses::progress_json`); the result equals the passes run in one go,
@@ -249,6 +250,7 @@ impl Simulation {
                 .map_err(|error| JsError::new(&error.to_string()))?;
                 self.params = params;
                 self.passes.loops = Some(Conducted::new(reshaped, &self.params));
+                self.passes.loop_part = crate::passes::FIRST_LOOP_PART;
                 self.passes.loop_figures.setup_ms = js_sys::Date::now() - start;
             } else if let Some(conducted) = self
                 .passes
@@ -256,12 +258,17 @@ impl Simulation {
                 .as_mut()
                 .filter(|loops| !loops.loops_done())
             {
+                let mut pieces = self.passes.loop_part;
                 loop {
-                    conducted.advance(crate::passes::LOOP_STEPS_PER_PART);
-                    if conducted.loops_done() || js_sys::Date::now() - start >= budget_ms {
+                    let part_start = js_sys::Date::now();
+                    conducted.advance(pieces);
+                    let ended = js_sys::Date::now();
+                    pieces = next_part_size(pieces, ended - part_start, budget_ms);
+                    if conducted.loops_done() || ended - start >= budget_ms {
                         break;
                     }
                 }
+                self.passes.loop_part = pieces;
                 let figures = &mut self.passes.loop_figures;
                 let ms = js_sys::Date::now() - start;
                 figures.slices += 1;

@@ -1,5 +1,5 @@
-//! The loop pass a piece at a time (`reconnection::LoopClosing`, as the page runs it): advanced
-//! in slices of 1, 7 and 1000 pieces it closes the very loops `close_loops` closes in one go,
+//! The loop pass a slice at a time (`reconnection::LoopClosing`, as the page runs it): advanced
+//! in slices of 1 (one free end, offer or set-up each), 7 and 1000 units of work it closes the very loops `close_loops` closes in one go,
 //! bit for bit, on grown looped leaves with one pass per level, with `nest_loops` and with
 //! `arches`; the pipeline split at the loop pass (`run::Conducted`) gives the digest of
 //! `RunView::new`; and the loops the progress counts are the independent cycles of the network
@@ -73,6 +73,7 @@ fn the_loop_pass_in_slices_closes_the_loops_of_the_pass_in_one_go() {
                 assert!(progress.level < progress.levels, "{label}: {progress:?}");
                 assert!(progress.ends_done <= progress.ends, "{label}: {progress:?}");
                 assert!(progress.loops >= last.loops, "{label}: loops never undone");
+                assert!(progress.work > last.work, "{label}: every call works");
                 if progress.level == last.level && !progress.done {
                     assert!(
                         progress.ends_done >= last.ends_done,

@@ -52,8 +52,26 @@ pub struct LoopProgress {
     pub ends: usize,
     /// Loops closed so far (new segments), all levels.
     pub loops: usize,
+    /// Work so far, in the units `LoopClosing::advance` counts.
+    pub work: u64,
     /// Whether the pass has ended.
     pub done: bool,
+}
+
+/// The work for a caller's next `advance`, from the last call's `work` and the milliseconds it
+/// took: halved when the call took more than an eighth of `budget_ms`, doubled when it took
+/// less than a thirty-second, between 64 and 2^22 units, so a caller looking at its clock
+/// between calls ends within about an eighth of its budget past it (plus at most one piece)
+/// and looks at its clock a few dozen times a budget (common practice for bounded work
+/// slices, no source).
+pub fn next_part_size(work: usize, took_ms: f64, budget_ms: f64) -> usize {
+    if took_ms > budget_ms / 8.0 {
+        (work / 2).max(64)
+    } else if took_ms < budget_ms / 32.0 {
+        (work * 2).min(1 << 22)
+    } else {
+        work.max(64)
+    }
 }
 
 /// One possible join of a tip.
@@ -159,6 +177,9 @@ pub struct LoopClosing {
     taken: Vec<bool>,
     /// The free ends whose offers were not taken: the next round's.
     deferred: Vec<u32>,
+    /// Work so far other than the searches' (`PathSearch::visits`): one per piece, one per
+    /// node a candidate walk takes or looks at, one per eight nodes a level's set-up scans.
+    work: u64,
 }
 
 impl LoopClosing {
@@ -198,6 +219,7 @@ impl LoopClosing {
             offers: Vec::new(),
             taken: Vec::new(),
             deferred: Vec::new(),
+            work: 0,
         };
         if count == 0
             || rule.ratio.partial_cmp(&1.0) == Some(std::cmp::Ordering::Less)
@@ -287,11 +309,17 @@ impl LoopClosing {
         self.stage == Stage::Done
     }
 
-    /// Does up to `steps` pieces of work on `veins` (the same as given to `new`): a piece is one
-    /// free end examined, one offer checked, or the set-up of a level or a round. Returns where
-    /// the pass stands.
-    pub fn advance(&mut self, veins: GrownVeins, steps: usize) -> LoopProgress {
-        for _ in 0..steps {
+    /// Works on `veins` (the same as given to `new`) piece by piece until at least `work`
+    /// units of work are done or the pass ends: a piece is one free end examined, one offer
+    /// checked, or the set-up of a level or a round, and it counts one unit plus one per node
+    /// its walks and searches visit (a level's set-up: one per eight nodes scanned), so that
+    /// units take about the same time whatever the level (a free end of a coarse level walks
+    /// and searches a thousand times farther than one of the finest). A piece is never split:
+    /// a call ends at most one piece past `work`. Returns where the pass stands.
+    pub fn advance(&mut self, veins: GrownVeins, work: usize) -> LoopProgress {
+        let until = self.work_done().saturating_add(work.max(1) as u64);
+        while self.work_done() < until {
+            self.work += 1;
             match self.stage {
                 Stage::Done => break,
                 Stage::Level => self.start_level(veins),
@@ -307,6 +335,11 @@ impl LoopClosing {
             }
         }
         self.progress()
+    }
+
+    /// Work so far, in the units `advance` counts.
+    fn work_done(&self) -> u64 {
+        self.work + self.search.visits
     }
 
     /// Where the pass stands.
@@ -328,6 +361,7 @@ impl LoopClosing {
             ends_done: ends - open.min(ends),
             ends,
             loops: self.out.links.len(),
+            work: self.work_done(),
             done: self.done(),
         }
     }
@@ -352,6 +386,7 @@ impl LoopClosing {
             return;
         }
         self.reach = 2.0 * self.threshold(level).sqrt();
+        self.work += count as u64 / 8;
         let level_of = &self.level_of;
         let mut has_child = vec![false; count];
         for (node, &first_level) in level_of.iter().enumerate() {
@@ -425,6 +460,7 @@ impl LoopClosing {
             }
             (figures, face_of, tips_in)
         });
+        self.work += self.pending.len() as u64;
         self.offers.clear();
         self.stage = Stage::Tips(0);
     }
@@ -532,7 +568,9 @@ impl LoopClosing {
         self.stack.push((tip, 0.0));
         while let Some((u, along)) = self.stack.pop() {
             let u_index = u as usize;
+            self.work += 1;
             for v in self.nodes_grid.near(veins.point(u_index)) {
+                self.work += 1;
                 let v_index = v as usize;
                 if v == u
                     || topology.parent[u_index] == v
@@ -556,6 +594,7 @@ impl LoopClosing {
                         break;
                     }
                     down += veins.distance(anchor, parent as usize);
+                    self.work += 1;
                     anchor = parent as usize;
                 }
                 if !ok || anchor == t {

@@ -141,6 +141,8 @@ pub(super) struct PathSearch {
     distance: Vec<f64>,
     touched: Vec<u32>,
     heap: BinaryHeap<Reverse<(Ordered, u32)>>,
+    /// Nodes popped and neighbours looked at, over every search so far (a measure of work).
+    pub(super) visits: u64,
 }
 
 impl PathSearch {
@@ -149,6 +151,7 @@ impl PathSearch {
             distance: vec![f64::INFINITY; count],
             touched: Vec::new(),
             heap: BinaryHeap::new(),
+            visits: 0,
         }
     }
 
@@ -168,10 +171,12 @@ impl PathSearch {
         self.touched.clear();
         self.heap.clear();
         let (distance, touched, heap) = (&mut self.distance, &mut self.touched, &mut self.heap);
+        let visits = &mut self.visits;
         distance[from] = 0.0;
         touched.push(from as u32);
         heap.push(Reverse((Ordered(length(from, to)), from as u32)));
         while let Some(Reverse((Ordered(estimate), node))) = heap.pop() {
+            *visits += 1;
             let node = node as usize;
             let reached = distance[node];
             if node == to {
@@ -181,6 +186,7 @@ impl PathSearch {
                 continue;
             }
             neighbours(node, &mut |other| {
+                *visits += 1;
                 let through = reached + length(node, other);
                 let estimate = through + length(other, to);
                 if estimate < bound && through < distance[other] {
