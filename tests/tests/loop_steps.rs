@@ -1,7 +1,7 @@
 //! The loop pass a slice at a time (`reconnection::LoopClosing`, as the page runs it): advanced
-//! in slices of 1 (one free end, offer or set-up each), 7 and 1000 units of work it closes the very loops `close_loops` closes in one go,
-//! bit for bit, on grown looped leaves with one pass per level, with `nest_loops` and with
-//! `arches`; the pipeline split at the loop pass (`run::Conducted`) gives the digest of
+//! in slices of 1 (one free end, offer or set-up each), 7 and 1000 units of work it closes the
+//! very loops `close_loops` closes in one go, bit for bit, on grown looped leaves with one pass
+//! per level, with `nest_loops` and with `arches`; the pipeline split at the loop pass (`run::Conducted`) gives the digest of
 //! `RunView::new`; and the loops the progress counts are the independent cycles of the network
 //! with the new segments, counted by Euler's formula for graphs (cyclomatic number
 //! E - V + C; Bondy & Murty 2008, Graph Theory, section 4.3) with petgraph's union-find for C.
