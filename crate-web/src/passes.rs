@@ -209,6 +209,9 @@ impl StepwisePasses {
             loops,
             site,
             loop_progress,
+            loops_closed: view
+                .and_then(|view| view.loops.as_ref())
+                .map_or(0, |loops| loops.reconnection.links.len()),
         });
         let loop_json = loop_progress.map(|progress| {
             json!({
@@ -271,6 +274,8 @@ struct Status<'a> {
     site: bool,
     /// Where the loop pass stands while it runs.
     loop_progress: Option<LoopProgress>,
+    /// Loops closed, once the passes are done.
+    loops_closed: usize,
 }
 
 /// `before -> now (-x.xx %)`, five significant digits.
@@ -406,14 +411,23 @@ fn status_text(s: &Status) -> String {
                 };
                 let sweep = s.taken_back.unwrap_or(1);
                 let loops = if s.loops && !s.site {
-                    " Vein loops closed."
+                    format!(" {}", vein_loops_closed(s.loops_closed))
                 } else {
-                    ""
+                    String::new()
                 };
                 format!("Stopped during sweep {sweep}, which was taken back: {kept}.{loops}")
             }
-            _ if s.loops && !s.site => "Vein loops closed.".to_string(),
+            _ if s.loops && !s.site => vein_loops_closed(s.loops_closed),
             _ => String::new(),
         },
+    }
+}
+
+/// `23,112 vein loops closed.`, or that none closed.
+fn vein_loops_closed(count: usize) -> String {
+    match count {
+        0 => "No vein loop closed.".to_string(),
+        1 => "1 vein loop closed.".to_string(),
+        _ => format!("{} vein loops closed.", grouped(count as u64)),
     }
 }
