@@ -202,3 +202,26 @@ test('a looped leaf stepped in tiny slices equals the native digest', () => {
   assert.equal(JSON.parse(simulation.metrics_json()).loop_count, expected.metrics.loop_count);
   simulation.free();
 });
+
+// A site closing loops shows the loop stage in drainage words: channel loops and channel dead
+// ends, never the word "vein" (site pages use drainage words only).
+test('a site closing loops a slice at a time says so in drainage words', () => {
+  const params = { ...base, joining: 'weighted', seed: 24, units: 'm', cell_size: 0.5, vein_area: 0.5, reconnect: 6, loop_levels: 2 };
+  const expected = nativeRun(params, 'stepwise site loops');
+  const simulation = new glue.Simulation(expected.link);
+  simulation.set_stepwise_passes(true);
+  while (!simulation.finished()) simulation.step(997);
+  const texts = [];
+  let progress;
+  do {
+    progress = JSON.parse(simulation.reshape_step(0));
+    texts.push(progress.text);
+    assert.ok(texts.length < 100000, 'the passes end');
+  } while (!progress.done);
+  const during = texts.filter((text) => /^Closing channel loops: level \d of 3, [\d,]+ of [\d,]+ channel dead ends/.test(text));
+  assert.ok(during.length >= 1, texts.join('\n'));
+  for (const text of texts) assert.doesNotMatch(text, /vein|leaf|areole/i, text);
+  assert.ok(expected.metrics.loop_count > 0, 'the native run closed loops');
+  assert.equal(simulation.digest(), expected.digest);
+  simulation.free();
+});
