@@ -338,7 +338,8 @@ fn looped_preset_figures(sizes: [u64; 2]) -> Result<(), CliError> {
             say!(
                 "  loop pass in one go {:.3} s; in slices of {SLICE_BUDGET_MS} ms (as the page \
                  runs it) {:.3} s ({:+.1} %), {} slices, longest slice {:.1} ms; longest \
-                 single piece {:.1} ms (level {} of {})",
+                 single piece {:.1} ms (level {} of {}); before it, the conducting pass \
+                 {:.1} ms and the loop pass's set-up {:.1} ms",
                 figures.whole,
                 figures.stepped,
                 100.0 * (figures.stepped - figures.whole) / figures.whole,
@@ -346,7 +347,9 @@ fn looped_preset_figures(sizes: [u64; 2]) -> Result<(), CliError> {
                 1000.0 * figures.longest_slice,
                 1000.0 * figures.longest_piece,
                 figures.longest_piece_level + 1,
-                figures.levels
+                figures.levels,
+                1000.0 * figures.conducting,
+                1000.0 * figures.set_up
             );
         }
     }
@@ -378,6 +381,9 @@ struct LoopSliceFigures {
     longest_piece: f64,
     longest_piece_level: u32,
     levels: u32,
+    /// Seconds of the conducting pass and of `LoopClosing::new`.
+    conducting: f64,
+    set_up: f64,
 }
 
 /// The loop pass of `params` on the grown `network`: in one go, in slices of
@@ -387,7 +393,9 @@ fn loop_slice_figures(network: &Network, params: &Params) -> Result<LoopSliceFig
     use ramulus_core::reconnection::{close_loops, next_part_size, GrownVeins, LoopClosing};
     let mut forest = ramulus_core::run::topology_pass(network)
         .map_err(|error| CliError::Failed(error.to_string()))?;
+    let start = Instant::now();
     let conducting = ramulus_core::run::conducting_pass(network, &mut forest, params);
+    let conducting_seconds = start.elapsed().as_secs_f64();
     let (Some(forest), Some(rule)) = (forest, ramulus_core::run::loop_rule(params)) else {
         return Err(CliError::Failed("the leaf closes no loops".into()));
     };
@@ -396,6 +404,9 @@ fn loop_slice_figures(network: &Network, params: &Params) -> Result<LoopSliceFig
         topology: &forest.topology,
         conducts: &conducting.conducts,
     };
+    let start = Instant::now();
+    std::hint::black_box(LoopClosing::new(veins, &rule));
+    let set_up_seconds = start.elapsed().as_secs_f64();
     let start = Instant::now();
     let whole = close_loops(network, &forest.topology, &conducting.conducts, &rule);
     let whole_seconds = start.elapsed().as_secs_f64();
@@ -440,6 +451,8 @@ fn loop_slice_figures(network: &Network, params: &Params) -> Result<LoopSliceFig
         longest_piece,
         longest_piece_level,
         levels: rule.levels + 1,
+        conducting: conducting_seconds,
+        set_up: set_up_seconds,
     })
 }
 

@@ -44,6 +44,11 @@
 //! Flows: tree segments keep the tree's flows; a loop wall is drawn at least as wide as the
 //! flow of the tip that closed it (`Reconnection::wall_flow`), and each new segment carries that
 //! tip's flow. No Kirchhoff solve: the walls' widths record the scale of the loop they close.
+//!
+//! The pass is held between calls by `LoopClosing` (`closing.rs`), so a caller can run it a
+//! bounded amount of work at a time; `close_loops` runs it in one go. Its search structures
+//! (grids, bounded A*, paths along the tree) are in `search.rs`, the faces walked for `nest`
+//! in `rotation.rs`.
 
 mod closing;
 mod rotation;

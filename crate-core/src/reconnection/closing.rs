@@ -1,5 +1,5 @@
 //! `LoopClosing`: the loop pass held between calls, so that a caller (the page) closes loops a
-//! bounded number of free ends at a time (`advance`) and shows where it stands
+//! bounded amount of work at a time (`advance`) and shows where it stands
 //! (`LoopProgress`) in between. Any split into calls gives the same `Reconnection`, bit for
 //! bit, as `close_loops`, which is `new`, `advance` to the end and `finish`.
 
