@@ -74,6 +74,10 @@ pub fn next_part_size(work: usize, took_ms: f64, budget_ms: f64) -> usize {
     }
 }
 
+/// Grid items (vein nodes or segments) one piece of the set-up puts in: about a
+/// millisecond's work in the browser.
+const GRID_ITEMS_PER_PIECE: usize = 4096;
+
 /// One possible join of a tip.
 #[derive(Clone, Copy, Debug)]
 struct Candidate {
@@ -116,6 +120,8 @@ type RoundFaces = (Vec<FaceFigures>, Vec<Option<u32>>, Vec<u32>);
 /// The next piece of work.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 enum Stage {
+    /// Put the vein nodes and segments into the grids, from this item on.
+    Grids(usize),
     /// Find the free ends of `level`.
     Level,
     /// Trace the faces the pending free ends hang in (with `nest`) and start a round.
@@ -144,6 +150,8 @@ pub struct LoopClosing {
     gap: f64,
     /// Vein nodes, by position.
     nodes_grid: Grid,
+    /// The vein nodes in node order, until they are in `nodes_grid`.
+    vein_nodes: Vec<u32>,
     /// The conducting tree segments, then the new ones.
     segments: Vec<(u32, u32)>,
     tree_count: usize,
@@ -183,7 +191,8 @@ pub struct LoopClosing {
 }
 
 impl LoopClosing {
-    /// Sets up the pass on `veins` (grids, rotation system, tree paths); nothing is closed yet.
+    /// Sets up the pass on `veins` (levels, rotation system, tree paths; the grids are filled
+    /// by the first calls of `advance`); nothing is closed yet.
     pub fn new(veins: GrownVeins, rule: &LoopRule) -> LoopClosing {
         let (network, topology) = (veins.network, veins.topology);
         let count = network.nodes.len();
@@ -199,6 +208,7 @@ impl LoopClosing {
             level_of: Vec::new(),
             gap: 0.0,
             nodes_grid: Grid::of_points(std::iter::empty(), 1.0),
+            vein_nodes: Vec::new(),
             segments: Vec::new(),
             tree_count: 0,
             segment_grid: Grid::of_points(std::iter::empty(), 1.0),
@@ -258,11 +268,10 @@ impl LoopClosing {
             .collect();
         let gap = 1.5 * rule.cell_size.max(rule.finest_area.sqrt());
         closing.gap = gap;
-        let vein_nodes: Vec<u32> = (0..count).filter(|&n| vein[n]).map(|n| n as u32).collect();
-        closing.nodes_grid = Grid::of_points(
-            vein_nodes.iter().map(|&n| (n, veins.point(n as usize))),
-            gap,
-        );
+        // The grids are filled by the first pieces of work (`Stage::Grids`).
+        closing.vein_nodes = (0..count).filter(|&n| vein[n]).map(|n| n as u32).collect();
+        closing.nodes_grid = Grid::of_points(std::iter::empty(), gap);
+        closing.segment_grid = Grid::of_points(std::iter::empty(), gap);
         closing.segments = (0..count)
             .filter(|&n| veins.conducts_below(n))
             .map(|n| (n as u32, topology.parent[n]))
@@ -276,17 +285,6 @@ impl LoopClosing {
                 closing.tree_segment_of[from as usize] = index as u32;
             }
         }
-        // Each segment sits in every cell its bounding box covers; a segment that meets the
-        // new one shares a cell with the new one's bounding box.
-        let mut segment_grid = Grid::of_points(std::iter::empty(), gap);
-        for (index, &(a, b)) in closing.segments.iter().enumerate() {
-            segment_grid.insert_box(
-                index as u32,
-                veins.point(a as usize),
-                veins.point(b as usize),
-            );
-        }
-        closing.segment_grid = segment_grid;
         closing.tree_paths = rule
             .arches
             .then(|| TreePaths::new(topology, |a, b| veins.distance(a, b)));
@@ -295,8 +293,40 @@ impl LoopClosing {
         closing.search = PathSearch::new(count);
         closing.failed = vec![Vec::new(); if rule.nest { count } else { 0 }];
         closing.level = 0;
-        closing.stage = Stage::Level;
+        closing.stage = Stage::Grids(0);
         closing
+    }
+
+    /// Puts up to `GRID_ITEMS_PER_PIECE` items into the grids, from item `next` on: the vein
+    /// nodes in node order, then the segments in order, each segment in every cell its
+    /// bounding box covers (a segment that meets a new one shares a cell with the new one's
+    /// bounding box); then the first level starts.
+    fn fill_grids(&mut self, veins: GrownVeins, next: usize) {
+        let nodes = self.vein_nodes.len();
+        let end = (next + GRID_ITEMS_PER_PIECE).min(nodes + self.segments.len());
+        for item in next..end {
+            match item.checked_sub(nodes) {
+                None => {
+                    let node = self.vein_nodes[item];
+                    self.nodes_grid.insert(node, veins.point(node as usize));
+                }
+                Some(index) => {
+                    let (a, b) = self.segments[index];
+                    self.segment_grid.insert_box(
+                        index as u32,
+                        veins.point(a as usize),
+                        veins.point(b as usize),
+                    );
+                }
+            }
+        }
+        self.work += (end - next) as u64;
+        self.stage = if end == nodes + self.segments.len() {
+            self.vein_nodes = Vec::new();
+            Stage::Level
+        } else {
+            Stage::Grids(end)
+        };
     }
 
     /// The conducting threshold of `level`: `finest_area * 4^(levels - level)`.
@@ -322,6 +352,7 @@ impl LoopClosing {
             self.work += 1;
             match self.stage {
                 Stage::Done => break,
+                Stage::Grids(next) => self.fill_grids(veins, next),
                 Stage::Level => self.start_level(veins),
                 Stage::Round => self.start_round(veins),
                 Stage::Tips(index) => match self.pending.get(index) {
@@ -345,12 +376,12 @@ impl LoopClosing {
     /// Where the pass stands.
     pub fn progress(&self) -> LoopProgress {
         let open = match self.stage {
-            Stage::Level | Stage::Done => 0,
+            Stage::Grids(_) | Stage::Level | Stage::Done => 0,
             Stage::Round => self.pending.len(),
             Stage::Tips(index) => self.pending.len().saturating_sub(index) + self.offers.len(),
             Stage::Offers(index) => self.offers.len().saturating_sub(index) + self.deferred.len(),
         };
-        let ends = if self.stage == Stage::Level {
+        let ends = if matches!(self.stage, Stage::Level | Stage::Grids(_)) {
             0
         } else {
             self.ends
