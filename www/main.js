@@ -341,6 +341,7 @@ function onFinished() {
     // meanwhile, then redrawn as they leave it, and the run ends on screen after them.
     showProgress();
     byId('digest').textContent = 'running the passes after growth…';
+    clearReadings('Readings appear once the passes after growth end.');
     afterGrowth.run(simulation, state.frame?.site === true, () => {
       if (state.simulation !== simulation) return;
       // Stopped: the run now asks for the sweeps that ran; the form, the address and the link

@@ -1,13 +1,14 @@
 // The passes after growth (channel energy sweeps on a site, junction relaxation and loops on a
 // leaf), run a slice at a time once growth stops, so the page keeps painting between slices;
-// sweeps run in parts, so a Stop control answers within a slice and keeps the network as the
-// last whole sweep left it. The status line and the figures come from Rust
-// (`Simulation::reshape_step`); this module only schedules the slices and lists the per-sweep
-// figures.
+// sweeps and the loop pass run in parts, so the page answers within a slice, and a Stop control
+// keeps the network as the last whole sweep left it (loops, once started, run to the end). The
+// status line and the figures come from Rust (`Simulation::reshape_step`); this module only
+// schedules the slices and lists the per-sweep figures.
 
-// Milliseconds of sweeping per slice: a slice runs parts of sweeps (a few hundred nodes or
-// junctions each, at least one part) until this has passed, so a slice ends within about one
-// part after it (common practice for keeping a page responsive, no source).
+// Milliseconds of work per slice: a slice runs parts of sweeps (a few hundred nodes or
+// junctions each) or of the loop pass (a few dozen free ends), at least one part, until this
+// has passed, so a slice ends within about one part after it (common practice for keeping a
+// page responsive, no source).
 const SLICE_BUDGET_MS = 40;
 
 const byId = (id) => document.getElementById(id);
@@ -74,6 +75,9 @@ export class AfterGrowth {
 
   show(progress) {
     byId('passes-text').textContent = progress.text;
+    // Loops run to the end once started (a pass stopped halfway would close loops no link
+    // asks for): Stop leaves once they begin, and the status line says so.
+    if (progress.stage === 'loops') byId('passes-stop').hidden = true;
     this.showFigures(progress);
   }
 

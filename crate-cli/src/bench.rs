@@ -11,6 +11,7 @@ use std::sync::atomic::{AtomicUsize, Ordering};
 use std::time::Instant;
 
 use ramulus_core::growth::Growth;
+use ramulus_core::network::Network;
 use ramulus_core::params::{Joining, Params, Root};
 
 use crate::options::{BenchOptions, CliError};
@@ -282,6 +283,7 @@ fn looped_preset_figures(sizes: [u64; 2]) -> Result<(), CliError> {
         let mut best_nest = f64::INFINITY;
         let mut grown_cells = 0;
         let mut links = 0;
+        let mut loop_slices = Vec::new();
         for _ in 0..3 {
             let start = Instant::now();
             let mut growth =
@@ -301,6 +303,7 @@ fn looped_preset_figures(sizes: [u64; 2]) -> Result<(), CliError> {
                 .map_err(|error| CliError::Failed(error.to_string()))?;
             best_nest = best_nest.min(start.elapsed().as_secs_f64());
             std::hint::black_box(&nested);
+            loop_slices.push(loop_slice_figures(&network, &params)?);
             let start = Instant::now();
             let view = ramulus_core::run::RunView::new(network, &params)
                 .map_err(|error| CliError::Failed(error.to_string()))?;
@@ -331,6 +334,24 @@ fn looped_preset_figures(sizes: [u64; 2]) -> Result<(), CliError> {
             100.0 * loops / whole
         );
         wholes.push((cells, whole));
+        for figures in &loop_slices {
+            say!(
+                "  loop pass in one go {:.3} s; in slices of {SLICE_BUDGET_MS} ms (as the page \
+                 runs it) {:.3} s ({:+.1} %), {} slices, longest slice {:.1} ms; longest \
+                 single piece {:.1} ms (level {} of {}); before it, the conducting pass \
+                 {:.1} ms and the loop pass's set-up {:.1} ms",
+                figures.whole,
+                figures.stepped,
+                100.0 * (figures.stepped - figures.whole) / figures.whole,
+                figures.slices,
+                1000.0 * figures.longest_slice,
+                1000.0 * figures.longest_piece,
+                figures.longest_piece_level + 1,
+                figures.levels,
+                1000.0 * figures.conducting,
+                1000.0 * figures.set_up
+            );
+        }
     }
     if let [(small, a), (large, b)] = wholes[..] {
         say!(
@@ -340,6 +361,99 @@ fn looped_preset_figures(sizes: [u64; 2]) -> Result<(), CliError> {
         );
     }
     Ok(())
+}
+
+/// The page's slice budget (`SLICE_BUDGET_MS` in www/passes.js) and first part
+/// (`FIRST_LOOP_PART` in crate-web/src/passes.rs).
+const SLICE_BUDGET_MS: f64 = 40.0;
+const FIRST_LOOP_PART: usize = 4096;
+
+/// The loop pass in one go against the same pass in slices as the page runs it.
+struct LoopSliceFigures {
+    /// Seconds of `close_loops` (set-up included).
+    whole: f64,
+    /// Seconds of `LoopClosing::new` and every slice.
+    stepped: f64,
+    slices: usize,
+    /// Seconds of the longest slice (set-up excluded).
+    longest_slice: f64,
+    /// Seconds of the longest single piece, in a separate run a piece at a time, and its level.
+    longest_piece: f64,
+    longest_piece_level: u32,
+    levels: u32,
+    /// Seconds of the conducting pass and of `LoopClosing::new`.
+    conducting: f64,
+    set_up: f64,
+}
+
+/// The loop pass of `params` on the grown `network`: in one go, in slices of
+/// `SLICE_BUDGET_MS` with parts sized by `next_part_size` (as `Simulation::reshape_step`), and
+/// a piece at a time (the longest piece).
+fn loop_slice_figures(network: &Network, params: &Params) -> Result<LoopSliceFigures, CliError> {
+    use ramulus_core::reconnection::{close_loops, next_part_size, GrownVeins, LoopClosing};
+    let mut forest = ramulus_core::run::topology_pass(network)
+        .map_err(|error| CliError::Failed(error.to_string()))?;
+    let start = Instant::now();
+    let conducting = ramulus_core::run::conducting_pass(network, &mut forest, params);
+    let conducting_seconds = start.elapsed().as_secs_f64();
+    let (Some(forest), Some(rule)) = (forest, ramulus_core::run::loop_rule(params)) else {
+        return Err(CliError::Failed("the leaf closes no loops".into()));
+    };
+    let veins = GrownVeins {
+        network,
+        topology: &forest.topology,
+        conducts: &conducting.conducts,
+    };
+    let start = Instant::now();
+    std::hint::black_box(LoopClosing::new(veins, &rule));
+    let set_up_seconds = start.elapsed().as_secs_f64();
+    let start = Instant::now();
+    let whole = close_loops(network, &forest.topology, &conducting.conducts, &rule);
+    let whole_seconds = start.elapsed().as_secs_f64();
+    let ms = |since: Instant| since.elapsed().as_secs_f64() * 1000.0;
+    let start = Instant::now();
+    let mut closing = LoopClosing::new(veins, &rule);
+    let (mut slices, mut longest_slice, mut pieces) = (0, 0.0f64, FIRST_LOOP_PART);
+    while !closing.done() {
+        let slice = Instant::now();
+        loop {
+            let part = Instant::now();
+            closing.advance(veins, pieces);
+            pieces = next_part_size(pieces, ms(part), SLICE_BUDGET_MS);
+            if closing.done() || ms(slice) >= SLICE_BUDGET_MS {
+                break;
+            }
+        }
+        longest_slice = longest_slice.max(ms(slice) / 1000.0);
+        slices += 1;
+    }
+    let stepped = closing.finish(veins);
+    let stepped_seconds = start.elapsed().as_secs_f64();
+    if stepped != whole {
+        return Err(CliError::Failed("the stepped loop pass differs".into()));
+    }
+    let mut closing = LoopClosing::new(veins, &rule);
+    let (mut longest_piece, mut longest_piece_level) = (0.0f64, 0);
+    while !closing.done() {
+        let level = closing.progress().level;
+        let piece = Instant::now();
+        closing.advance(veins, 1);
+        let seconds = piece.elapsed().as_secs_f64();
+        if seconds > longest_piece {
+            (longest_piece, longest_piece_level) = (seconds, level);
+        }
+    }
+    Ok(LoopSliceFigures {
+        whole: whole_seconds,
+        stepped: stepped_seconds,
+        slices,
+        longest_slice,
+        longest_piece,
+        longest_piece_level,
+        levels: rule.levels + 1,
+        conducting: conducting_seconds,
+        set_up: set_up_seconds,
+    })
 }
 
 /// The channel energy pass (`channel_energy::lower_energy`) on an open lattice of `cells`

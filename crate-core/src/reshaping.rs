@@ -339,13 +339,18 @@ impl Reshaping {
 
     /// Runs the passes after reshaping on the network as it stands (every sweep left is run
     /// first unless stopped) and returns the view with the parameters it stands for.
-    pub fn finish(mut self) -> Result<(RunView, Params), TopologyError> {
+    pub fn finish(self) -> Result<(RunView, Params), TopologyError> {
+        let (reshaped, params) = self.into_reshaped()?;
+        Ok((RunView::after_reshaping(reshaped, &params), params))
+    }
+
+    /// The reshaped network (every sweep left is run first unless stopped) with the parameters
+    /// it stands for, for a caller that runs the passes after reshaping itself
+    /// (`run::Conducted`, a piece of the loop pass at a time).
+    pub fn into_reshaped(mut self) -> Result<(Reshaped, Params), TopologyError> {
         while !self.done() {
             self.sweep()?;
         }
-        Ok((
-            RunView::after_reshaping(self.reshaped, &self.params),
-            self.params,
-        ))
+        Ok((self.reshaped, self.params))
     }
 }

@@ -42,7 +42,9 @@ use crate::junctions::{relax_junctions, Relaxation};
 use crate::metrics::{measure_weighted, measure_with, with_tree_readings, Measured, Metrics};
 use crate::network::{Network, Segment, Topology, TopologyError, NO_PARENT};
 use crate::params::Params;
-use crate::reconnection::{close_loops, LoopRule, Reconnection};
+use crate::reconnection::{
+    close_loops, GrownVeins, LoopClosing, LoopProgress, LoopRule, Reconnection,
+};
 use crate::segments::{strahler_orders, SegmentTable, WidthRule};
 use crate::site::node_area_runoff;
 use crate::veins::{conducting_segments, conducting_segments_by_area, vein_network};
@@ -291,19 +293,12 @@ fn conducting_orders(forest: &ForestView, conducting: &ConductingNetwork) -> Vec
         .collect()
 }
 
-/// Loop pass: closes nested loops on a grown forest when `reconnect` is set
-/// (`reconnection::close_loops`, levels from `loop_levels`, the finest at `vein_area` or one
-/// cell's area when every segment conducts); `None` otherwise.
-pub fn loop_pass(
-    network: &Network,
-    forest: Option<&ForestView>,
-    conducting: &ConductingNetwork,
-    params: &Params,
-) -> Option<Reconnection> {
+/// The loop rule of a run (levels from `loop_levels`, the finest at `vein_area` or one cell's
+/// area when every segment conducts); `None` when `reconnect` is off.
+pub fn loop_rule(params: &Params) -> Option<LoopRule> {
     let ratio = params.widths.reconnect?;
-    let forest = forest?;
     let cell_size = params.domain.cell_size;
-    let rule = LoopRule {
+    Some(LoopRule {
         ratio,
         levels: params.widths.loop_levels,
         finest_area: params.widths.vein_area.max(cell_size * cell_size),
@@ -311,13 +306,111 @@ pub fn loop_pass(
         cell_size,
         nest: params.widths.nest_loops,
         arches: params.widths.arches,
-    };
+    })
+}
+
+/// Loop pass: closes nested loops on a grown forest when `reconnect` is set
+/// (`reconnection::close_loops` with `loop_rule`); `None` otherwise.
+pub fn loop_pass(
+    network: &Network,
+    forest: Option<&ForestView>,
+    conducting: &ConductingNetwork,
+    params: &Params,
+) -> Option<Reconnection> {
+    let rule = loop_rule(params)?;
+    let forest = forest?;
     Some(close_loops(
         network,
         &forest.topology,
         &conducting.conducts,
         &rule,
     ))
+}
+
+/// A reshaped network after the conducting pass, with its loop pass set up to run a piece at
+/// a time: the first part of the pipeline after reshaping (`Conducted::new`). A caller (the
+/// page) steps the loop pass with `advance` and ends the pipeline with `finish`, which runs
+/// what is left of the loops, then widths, metrics and digest (`RunView::after_loops`).
+/// `RunView::after_reshaping` is `new` then `finish`, so any split gives the same view.
+pub struct Conducted {
+    reshaped: Reshaped,
+    conducting: ConductingNetwork,
+    /// The loop pass in progress; `None` when it does not run (`reconnect` off, no forest).
+    closing: Option<LoopClosing>,
+}
+
+impl Conducted {
+    /// Runs the conducting pass on `reshaped` and sets the loop pass up (grids and searches;
+    /// no loop is closed yet).
+    pub fn new(reshaped: Reshaped, params: &Params) -> Conducted {
+        let mut reshaped = reshaped;
+        let conducting = conducting_pass(&reshaped.network, &mut reshaped.forest, params);
+        let closing = match (loop_rule(params), reshaped.forest.as_ref()) {
+            (Some(rule), Some(view)) => Some(LoopClosing::new(
+                GrownVeins {
+                    network: &reshaped.network,
+                    topology: &view.topology,
+                    conducts: &conducting.conducts,
+                },
+                &rule,
+            )),
+            _ => None,
+        };
+        Conducted {
+            reshaped,
+            conducting,
+            closing,
+        }
+    }
+
+    /// The grown forest the loop pass works on, with the pass.
+    fn closing_parts(&mut self) -> Option<(GrownVeins<'_>, &mut LoopClosing)> {
+        let view = self.reshaped.forest.as_ref()?;
+        let closing = self.closing.as_mut()?;
+        Some((
+            GrownVeins {
+                network: &self.reshaped.network,
+                topology: &view.topology,
+                conducts: &self.conducting.conducts,
+            },
+            closing,
+        ))
+    }
+
+    /// Runs up to `steps` pieces of the loop pass (`LoopClosing::advance`: a free end
+    /// examined, an offer checked, a level or round set up); `None` when there is no loop pass.
+    pub fn advance(&mut self, steps: usize) -> Option<LoopProgress> {
+        let (veins, closing) = self.closing_parts()?;
+        Some(closing.advance(veins, steps))
+    }
+
+    /// Where the loop pass stands; `None` when there is none.
+    pub fn loop_progress(&self) -> Option<LoopProgress> {
+        self.closing.as_ref().map(LoopClosing::progress)
+    }
+
+    /// The reshaped network and what the reshaping passes did.
+    pub fn reshaped(&self) -> &Reshaped {
+        &self.reshaped
+    }
+
+    /// Whether the loop pass has ended (or does not run).
+    pub fn loops_done(&self) -> bool {
+        self.closing.as_ref().is_none_or(LoopClosing::done)
+    }
+
+    /// Runs what is left of the loop pass, then widths, metrics and digest.
+    pub fn finish(mut self, params: &Params) -> RunView {
+        let reconnection = match (self.closing.take(), self.reshaped.forest.as_ref()) {
+            (Some(closing), Some(view)) => Some(closing.finish(GrownVeins {
+                network: &self.reshaped.network,
+                topology: &view.topology,
+                conducts: &self.conducting.conducts,
+            })),
+            _ => None,
+        };
+        RunView::after_loops(self.reshaped, self.conducting, reconnection, params)
+    }
 }
 
 /// The widths of a loop pass in the table: each new segment (the last rows) carries the flow of
@@ -452,18 +545,30 @@ impl RunView {
 
     /// The passes after the reshaping ones (channel energy, junctions), on their result: from
     /// the conducting network on. `RunView::new` on a grown tree is `after_reshaping` of what
-    /// `reshaping::Reshaping` gives when run to the end.
+    /// `reshaping::Reshaping` gives when run to the end. It is `Conducted::new` (conducting
+    /// pass, loop pass set up), then `Conducted::finish` (the loop pass run, then
+    /// `after_loops`).
     pub fn after_reshaping(reshaped: Reshaped, params: &Params) -> RunView {
+        Conducted::new(reshaped, params).finish(params)
+    }
+
+    /// The passes after the loop pass (widths, sizing, metrics, digest) on the reshaped network,
+    /// its conducting pass and the loops it closed (`None` when no loop pass ran).
+    pub fn after_loops(
+        reshaped: Reshaped,
+        conducting: ConductingNetwork,
+        reconnection: Option<Reconnection>,
+        params: &Params,
+    ) -> RunView {
         let Reshaped {
             mut network,
-            mut forest,
+            forest,
             energy,
             relaxation,
         } = reshaped;
-        let mut conducting = conducting_pass(&network, &mut forest, params);
+        let mut conducting = conducting;
         // A pass that closed no loop leaves the tree as it was.
-        let reconnection = loop_pass(&network, forest.as_ref(), &conducting, params)
-            .filter(|reconnection| !reconnection.links.is_empty());
+        let reconnection = reconnection.filter(|reconnection| !reconnection.links.is_empty());
         if let Some(reconnection) = &reconnection {
             network.segments.extend_from_slice(&reconnection.links);
             conducting

@@ -1,15 +1,33 @@
 //! The passes after growth run a slice at a time for the page (`Simulation::reshape_step`):
 //! what they have done so far, per sweep, and the progress the page shows between slices.
 
+use ramulus_core::reconnection::LoopProgress;
 use ramulus_core::reshaping::{ReshapeProgress, Reshaping};
-use ramulus_core::run::RunView;
-use ramulus_draw::format::significant_digits;
+use ramulus_core::run::{Conducted, RunView};
+use ramulus_draw::format::{grouped, significant_digits};
 use serde_json::{json, Value};
 
 /// Nodes (channel energy) or junctions a slice takes between looks at the clock: the sweep
 /// that costs most per node (the first channel energy sweep, about 45 us a node on the 2 ha
 /// demo field) takes about 12 ms for these, so Stop answers within a slice.
 pub const ITEMS_PER_PART: usize = 256;
+
+/// Work (`LoopClosing::advance` units: nodes walked and searched) of the loop pass's first
+/// part; later parts follow the clock (`reconnection::next_part_size`).
+pub const FIRST_LOOP_PART: usize = 4096;
+
+/// What the loop pass took, slice by slice (for the page benchmark).
+#[derive(Clone, Copy, Debug, Default)]
+pub struct LoopFigures {
+    /// Milliseconds of the slice that ran the conducting pass and set the loop pass up.
+    pub setup_ms: f64,
+    /// Slices that closed loops.
+    pub slices: u32,
+    /// Milliseconds of those slices, added up.
+    pub ms: f64,
+    /// Milliseconds of the longest of them.
+    pub longest_slice_ms: f64,
+}
 
 /// One whole sweep as the page lists it.
 #[derive(Clone, Debug)]
@@ -45,6 +63,13 @@ pub struct StepwisePasses {
     pub sweep_ms: f64,
     /// Whether the first slice has run.
     pub started: bool,
+    /// The pipeline after the sweeps, its loop pass in progress (`reconnect` set), once a
+    /// slice has set it up; the view takes it.
+    pub loops: Option<Conducted>,
+    /// What the loop pass took.
+    pub loop_figures: LoopFigures,
+    /// Work of the loop pass's next part (`FIRST_LOOP_PART` at first).
+    pub loop_part: usize,
 }
 
 impl StepwisePasses {
@@ -63,9 +88,11 @@ impl StepwisePasses {
     }
 
     /// The progress as JSON for the page: `{text, stage, pass, sweep, sweeps, before, now, moved,
-    /// done, stopped, loops, setup_ms, finish_ms, log: [{pass, sum, moved, ms}]}`; `stage` is
-    /// `start` (nothing run yet), `sweeping`, `finishing` (the sweeps are over, the passes
-    /// after them are next) or `done`. With `view`, the figures are the finished view's.
+    /// done, stopped, stoppable, loops, setup_ms, finish_ms, log: [{pass, sum, moved, ms}],
+    /// loop: {level, levels, ends_done, ends, loops} or null, loop_figures}`; `stage` is
+    /// `start` (nothing run yet), `sweeping`, `loops` (closing loops: `loop` says where, the
+    /// level counted from 1), `finishing` (the passes after them are next) or `done`;
+    /// `stoppable` is true while a Stop stops something (the sweeps; loops run to the end). With `view`, the figures are the finished view's.
     /// `text` is the status line to show (drainage words on a `site`, leaf words otherwise).
     pub fn progress_json(&self, view: Option<&RunView>, loops: bool, site: bool) -> String {
         let progress: Option<ReshapeProgress> = self
@@ -78,6 +105,12 @@ impl StepwisePasses {
             }
             _ => (0, 0, 0),
         };
+        let loop_progress = self
+            .loops
+            .as_ref()
+            .filter(|_| view.is_none())
+            .and_then(Conducted::loop_progress)
+            .filter(|progress| !progress.done);
         let (stage, pass, sweep, sweeps, before, now, moved) = match (view, progress) {
             (Some(view), _) => {
                 let last = self.log.last().map_or(0, |figure| figure.moved);
@@ -116,8 +149,27 @@ impl StepwisePasses {
                 progress.now,
                 progress.moved,
             ),
-            (None, None) if self.started => ("finishing", "done", 0, 0, 0.0, 0.0, 0),
-            (None, None) => ("start", "done", 0, 0, 0.0, 0.0, 0),
+            (None, None) => {
+                let stage = match (&loop_progress, self.started) {
+                    (Some(_), _) => "loops",
+                    (None, true) => "finishing",
+                    (None, false) => "start",
+                };
+                // The sweeps' figures, once the loops follow them.
+                let last = self.log.last();
+                (
+                    stage,
+                    last.map_or("done", |figure| figure.pass),
+                    self.log
+                        .iter()
+                        .filter(|figure| Some(figure.pass) == last.map(|l| l.pass))
+                        .count() as u32,
+                    0,
+                    0.0,
+                    last.map_or(0.0, |figure| figure.sum),
+                    last.map_or(0, |figure| figure.moved),
+                )
+            }
         };
         let log: Vec<Value> = self
             .log
@@ -135,6 +187,11 @@ impl StepwisePasses {
         let energy = view
             .and_then(|view| view.energy.as_ref())
             .or_else(|| self.reshaping.as_ref().and_then(|r| r.energy()))
+            .or_else(|| {
+                self.loops
+                    .as_ref()
+                    .and_then(|loops| loops.reshaped().energy.as_ref())
+            })
             .map(|energy| json!({"before": energy.energy_before, "after": energy.energy_after}));
         let text = status_text(&Status {
             stage,
@@ -151,7 +208,21 @@ impl StepwisePasses {
             taken_back: self.taken_back,
             loops,
             site,
+            loop_progress,
+            loops_closed: view
+                .and_then(|view| view.loops.as_ref())
+                .map_or(0, |loops| loops.reconnection.links.len()),
         });
+        let loop_json = loop_progress.map(|progress| {
+            json!({
+                "level": progress.level + 1,
+                "levels": progress.levels,
+                "ends_done": progress.ends_done,
+                "ends": progress.ends,
+                "loops": progress.loops,
+            })
+        });
+        let figures = self.loop_figures;
         json!({
             "text": text,
             "stage": stage,
@@ -172,6 +243,14 @@ impl StepwisePasses {
             "finish_ms": self.finish_ms,
             "energy": energy,
             "log": log,
+            "loop": loop_json,
+            "stoppable": stage == "sweeping",
+            "loop_figures": (figures.slices > 0).then(|| json!({
+                "setup_ms": figures.setup_ms,
+                "slices": figures.slices,
+                "ms": figures.ms,
+                "longest_slice_ms": figures.longest_slice_ms,
+            })),
         })
         .to_string()
     }
@@ -193,6 +272,10 @@ struct Status<'a> {
     taken_back: Option<u32>,
     loops: bool,
     site: bool,
+    /// Where the loop pass stands while it runs.
+    loop_progress: Option<LoopProgress>,
+    /// Loops closed, once the passes are done.
+    loops_closed: usize,
 }
 
 /// `before -> now (-x.xx %)`, five significant digits.
@@ -266,6 +349,39 @@ fn status_text(s: &Status) -> String {
             sums(s.before, s.now),
             s.moved
         ),
+        "loops" => {
+            let progress = s.loop_progress.unwrap_or(LoopProgress {
+                level: 0,
+                levels: 1,
+                ends_done: 0,
+                ends: 0,
+                loops: 0,
+                work: 0,
+                done: false,
+            });
+            let (what, ends) = if s.site {
+                ("closing channel loops", "channel dead ends")
+            } else {
+                ("closing vein loops", "free vein ends")
+            };
+            let figures = format!(
+                "{what}: level {} of {}, {} of {} {ends}, {} loop{} closed so far \
+                 (loops run to the end once started)\u{2026}",
+                progress.level + 1,
+                progress.levels,
+                grouped(progress.ends_done as u64),
+                grouped(progress.ends as u64),
+                grouped(progress.loops as u64),
+                if progress.loops == 1 { "" } else { "s" },
+            );
+            if s.sweep == 0 && !s.stopped {
+                let mut figures = figures;
+                figures[..1].make_ascii_uppercase();
+                figures
+            } else {
+                format!("Sweeps over{stopped}; {figures}")
+            }
+        }
         "finishing" => {
             let next = match (s.site, s.loops) {
                 (true, _) => "measuring the channels",
@@ -295,14 +411,23 @@ fn status_text(s: &Status) -> String {
                 };
                 let sweep = s.taken_back.unwrap_or(1);
                 let loops = if s.loops && !s.site {
-                    " Vein loops closed."
+                    format!(" {}", vein_loops_closed(s.loops_closed))
                 } else {
-                    ""
+                    String::new()
                 };
                 format!("Stopped during sweep {sweep}, which was taken back: {kept}.{loops}")
             }
-            _ if s.loops && !s.site => "Vein loops closed.".to_string(),
+            _ if s.loops && !s.site => vein_loops_closed(s.loops_closed),
             _ => String::new(),
         },
+    }
+}
+
+/// `23,112 vein loops closed.`, or that none closed.
+fn vein_loops_closed(count: usize) -> String {
+    match count {
+        0 => "No vein loop closed.".to_string(),
+        1 => "1 vein loop closed.".to_string(),
+        _ => format!("{} vein loops closed.", grouped(count as u64)),
     }
 }

@@ -8,10 +8,12 @@ use ramulus_core::metrics::metrics_csv;
 use ramulus_core::network::Network;
 use ramulus_core::params::Domain;
 use ramulus_core::params::Params;
+use ramulus_core::reconnection::next_part_size;
 use ramulus_core::record::{make_record, read_record, write_record};
 use ramulus_core::reshaping::Reshaping;
 use ramulus_core::run::{
-    as_measured, conducting_pass, topology_pass, width_rule, widths_pass, RunView, SITE_CAUTION,
+    as_measured, conducting_pass, topology_pass, width_rule, widths_pass, Conducted, Reshaped,
+    RunView, SITE_CAUTION,
 };
 use ramulus_draw::legend::legend_items;
 use ramulus_draw::marks::network_marks;
@@ -182,10 +184,14 @@ impl Simulation {
 
     /// Runs a bounded slice of the passes after growth: the first call sets them up; the next
     /// run parts of sweeps (`passes::ITEMS_PER_PART` nodes or junctions each, at least one
-    /// part) until `budget_ms` milliseconds have passed or the sweeps are over; the call after
-    /// the last sweep runs the rest of the pipeline (loops, widths, readings) and caches the
-    /// run view, so refills and readings never run the passes again. Returns the progress as JSON (`passes::StepwisePasses::progress_json`); the
-    /// result equals the passes run in one go, digest for digest.
+    /// part) until `budget_ms` milliseconds have passed or the sweeps are over; with loops
+    /// (`reconnect`), the call after the last sweep runs the conducting pass and sets the loop
+    /// pass up, and the next ones close loops in parts (parts of work whose size follows the
+    /// clock, `reconnection::next_part_size`, at least one part) until `budget_ms` have passed or the loops are closed; the call
+    /// after that runs the rest of the pipeline (widths, readings) and caches the run view, so
+    /// refills and readings never run the passes again. Returns the progress as JSON
+    /// (`passes::StepwisePasses::progress_json`); the result equals the passes run in one go,
+    /// digest for digest.
     pub fn reshape_step(&mut self, budget_ms: f64) -> Result<String, JsError> {
         if self.passes_waiting() {
             let start = js_sys::Date::now();
@@ -196,7 +202,7 @@ impl Simulation {
                 .is_some_and(|reshaping| !reshaping.done());
             if !self.passes.started {
                 // Only runs with sweeps need the set-up (a run closing loops alone goes
-                // straight to the last slice).
+                // straight to setting the loop pass up).
                 self.passes.started = true;
                 if self.reshapes() {
                     let reshaping = Reshaping::new(self.network(), &self.params)
@@ -225,6 +231,49 @@ impl Simulation {
                         break;
                     }
                 }
+            } else if self.params.widths.reconnect.is_some() && self.passes.loops.is_none() {
+                let (reshaped, params) = match self.passes.take() {
+                    Some(reshaping) => reshaping.into_reshaped(),
+                    None => {
+                        let network = self.network();
+                        topology_pass(&network).map(|forest| {
+                            let reshaped = Reshaped {
+                                network,
+                                forest,
+                                energy: None,
+                                relaxation: None,
+                            };
+                            (reshaped, self.params.clone())
+                        })
+                    }
+                }
+                .map_err(|error| JsError::new(&error.to_string()))?;
+                self.params = params;
+                self.passes.loops = Some(Conducted::new(reshaped, &self.params));
+                self.passes.loop_part = crate::passes::FIRST_LOOP_PART;
+                self.passes.loop_figures.setup_ms = js_sys::Date::now() - start;
+            } else if let Some(conducted) = self
+                .passes
+                .loops
+                .as_mut()
+                .filter(|loops| !loops.loops_done())
+            {
+                let mut pieces = self.passes.loop_part;
+                loop {
+                    let part_start = js_sys::Date::now();
+                    conducted.advance(pieces);
+                    let ended = js_sys::Date::now();
+                    pieces = next_part_size(pieces, ended - part_start, budget_ms);
+                    if conducted.loops_done() || ended - start >= budget_ms {
+                        break;
+                    }
+                }
+                self.passes.loop_part = pieces;
+                let figures = &mut self.passes.loop_figures;
+                let ms = js_sys::Date::now() - start;
+                figures.slices += 1;
+                figures.ms += ms;
+                figures.longest_slice_ms = figures.longest_slice_ms.max(ms);
             } else {
                 self.view()?;
                 self.passes.finish_ms = js_sys::Date::now() - start;
@@ -235,8 +284,11 @@ impl Simulation {
 
     /// Stops the sweeps: a sweep stopped midway is taken back, and the network stays as the
     /// last whole sweep left it (the pass's sweep count in the run's link and record becomes
-    /// the whole sweeps run; later sweeping passes do not run); the next `reshape_step` runs the rest of the pipeline. Returns the
-    /// progress as `reshape_step` does.
+    /// the whole sweeps run; later sweeping passes do not run); the next `reshape_step` runs
+    /// the rest of the pipeline. Loops are not stopped: a loop pass stopped halfway closes
+    /// loops no link asks for, so the page's digest would differ from the command line's for
+    /// the same link; once the loops have started (progress stage `loops`, `stoppable`
+    /// false) they run to the end. Returns the progress as `reshape_step` does.
     pub fn reshape_stop(&mut self) -> Result<String, JsError> {
         if let Some(reshaping) = self.passes.reshaping.as_mut() {
             if !reshaping.done() {
@@ -852,6 +904,15 @@ impl Simulation {
 
     /// The derived view of the network as it stands, computed once per change of the network.
     fn view(&mut self) -> Result<&RunView, JsError> {
+        if let Some(conducted) = self
+            .passes
+            .loops
+            .take()
+            .filter(|_| self.view_cache.is_none())
+        {
+            // The loop pass in progress (stepwise passes): what is left of it runs now.
+            self.view_cache = Some(conducted.finish(&self.params));
+        }
         if self.view_cache.is_none() {
             // A network read from a record is measured as it is, never reshaped again.
             let fixed = matches!(self.source, Source::Fixed(_));

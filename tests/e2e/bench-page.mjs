@@ -233,10 +233,27 @@ async function leafFigures(page) {
     if (made.error) throw new Error(JSON.stringify(made.error));
     return made.link;
   });
+  // The page's longest tasks (Long Tasks API: every task over 50 ms) while the passes after
+  // growth run: the longest is the longest the page did not answer.
+  await page.evaluate(() => {
+    window.benchLongTasks = [];
+    new PerformanceObserver((list) => {
+      for (const entry of list.getEntries()) window.benchLongTasks.push({ start: entry.startTime, ms: entry.duration });
+    }).observe({ type: 'longtask' });
+  });
   const leaf = await timedRun(page, leafLink);
+  const tasks = await page.evaluate(() => {
+    const { startedAt } = window.ramulusPage.afterGrowth;
+    return window.benchLongTasks.filter((task) => task.start >= startedAt).map((task) => task.ms);
+  });
   const cells = await page.evaluate(() => window.ramulusPage.state.simulation.cells());
   console.log(`looped-leaf preset scaled to 100,000 cells (${cells} grown; target under 5 s):`);
   console.log(`  whole run ${(leaf.ms / 1000).toFixed(2)} s: growth ${(leaf.grownMs / 1000).toFixed(2)} s, passes after growth (loops, widths, readings) ${(leaf.passesMs / 1000).toFixed(2)} s = ${((100 * leaf.passesMs) / leaf.ms).toFixed(0)} %, of it the last slice ${leaf.progress.finish_ms.toFixed(0)} ms`);
+  const loops = leaf.progress.loop_figures;
+  if (loops) {
+    console.log(`  loop pass: set-up ${loops.setup_ms.toFixed(0)} ms, ${loops.slices} slices taking ${(loops.ms / 1000).toFixed(2)} s, longest slice ${loops.longest_slice_ms.toFixed(0)} ms`);
+  }
+  console.log(`  longest tasks during the passes (over 50 ms): ${tasks.length ? [...tasks].sort((a, b) => b - a).slice(0, 5).map((ms) => `${ms.toFixed(0)} ms`).join(', ') : 'none'}`);
 }
 
 /// Median, 95th percentile and maximum (nearest rank), and how many.

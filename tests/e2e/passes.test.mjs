@@ -174,3 +174,67 @@ test('a leaf run relaxes its vein junctions a sweep at a time, in leaf words', a
   await screenshot(page, 'passes-leaf');
   await page.close();
 });
+
+/// The looped-leaf preset scaled to `cells` cells (lattice and blade outline scaled, cell size
+/// kept), as `scaled_looped_leaf` in crate-cli/src/bench.rs and tests/e2e/bench-page.mjs.
+async function scaledLoopedLeafLink(page, cells) {
+  return page.evaluate((target) => {
+    const { core } = window.ramulusPage.state.session;
+    const { params } = JSON.parse(core.presets_json()).find((p) => p.name === 'looped-leaf');
+    let twice = 0;
+    params.outline.forEach(([x, y], index) => {
+      const [nx, ny] = params.outline[(index + 1) % params.outline.length];
+      twice += x * ny - nx * y;
+    });
+    const scale = Math.sqrt(target / (Math.abs(twice) / 2)) * 1.02;
+    params.width = Math.ceil(params.width * scale);
+    params.height = Math.ceil(params.height * scale);
+    for (const root of params.roots) {
+      root.x = Math.floor((root.x + 0.5) * scale);
+      root.y = Math.floor((root.y + 0.5) * scale);
+    }
+    params.outline = params.outline.map(([x, y]) => [x * scale, y * scale]);
+    params.cells = target;
+    const made = JSON.parse(core.link_from_params(JSON.stringify(params)));
+    if (made.error) throw new Error(JSON.stringify(made.error));
+    return made.link;
+  }, cells);
+}
+
+test('a large looped leaf closes its loops a slice at a time: progress shown, the page answers', async () => {
+  const page = await newPage(context);
+  await page.addInitScript(() => localStorage.setItem('ramulus.animate', 'no'));
+  await page.goto(site.url);
+  await finishedDigest(page);
+  const link = await scaledLoopedLeafLink(page, 100000);
+  await page.evaluate((fragment) => { location.hash = fragment; }, link);
+  // The loop stage's status line, in leaf words.
+  await page.waitForFunction(
+    () => /^Closing vein loops: level \d of 6, [\d,]+ of [\d,]+ free vein ends/.test(document.querySelector('#passes-text').textContent),
+    null, { timeout: 300000, polling: 10 });
+  // The page answers between slices: this evaluation runs while the loop pass is not done.
+  const during = await page.evaluate(() => JSON.parse(window.ramulusPage.state.simulation.reshape_progress()));
+  const text = await page.textContent('#passes-text');
+  await screenshot(page, 'passes-loops-during');
+  await page.screenshot({ path: path.join(artifacts, 'passes-loops-during-run.png'), clip: { x: 330, y: 200, width: 1070, height: 800 } });
+  assert.equal(during.stage, 'loops', `answered during the loop pass (${during.text})`);
+  assert.equal(during.loop.levels, 6);
+  assert.ok(during.loop.ends_done <= during.loop.ends, JSON.stringify(during.loop));
+  assert.equal(await page.isHidden('#passes-stop'), true, 'no Stop while loops close (they run to the end)');
+  assert.match(text, /loops run to the end once started/, text);
+  // A later answer, still during the loop pass or after it: the slices go on by themselves.
+  const digest = await finishedDigest(page, 300000);
+  const progress = await page.evaluate(() => JSON.parse(window.ramulusPage.state.simulation.reshape_progress()));
+  assert.ok(progress.loop_figures.slices >= 2, `the loop pass ran in slices (${progress.loop_figures.slices})`);
+  assert.match(progress.text, /^[\d,]+ vein loops closed\.$/, progress.text);
+  assert.equal(Number(progress.text.split(' ')[0].replaceAll(',', '')),
+    await page.evaluate(() => JSON.parse(window.ramulusPage.state.simulation.metrics_json()).loop_count),
+    'the loops counted are the independent loops measured');
+  // The page's slices close the loops the command line closes in one go.
+  const fragment = await page.evaluate(() => window.ramulusPage.state.simulation.link());
+  assert.equal(nativeRun(fragment).digest, digest);
+  assert.deepEqual(page.errors, [], 'no console errors');
+  await screenshot(page, 'passes-loops-after');
+  await page.screenshot({ path: path.join(artifacts, 'passes-loops-after-run.png'), clip: { x: 330, y: 200, width: 1070, height: 800 } });
+  await page.close();
+});

@@ -171,3 +171,57 @@ test('a stop after whole channel energy sweeps equals the native run of those sw
   assert.match(simulation.link(), /energy_sweeps=1(&|$)/);
   simulation.free();
 });
+
+// The loop pass a slice at a time (`reshape_step` with a budget of 0 ms: every slice runs one
+// part of the loop pass) closes the loops the native command line closes in one go: the same
+// digest, and the progress names the loop stage in leaf words while it runs.
+test('a looped leaf stepped in tiny slices equals the native digest', () => {
+  const preset = presets.find((p) => p.name === 'looped-leaf');
+  const params = { ...preset.params, cells: 12000, seed: 5 };
+  const expected = nativeRun(params, 'stepwise looped leaf');
+  const simulation = new glue.Simulation(expected.link);
+  simulation.set_stepwise_passes(true);
+  while (!simulation.finished()) simulation.step(997);
+  let progress;
+  const loopSlices = [];
+  let slices = 0;
+  do {
+    progress = JSON.parse(simulation.reshape_step(0));
+    slices += 1;
+    assert.ok(slices < 100000, 'the passes end');
+    if (progress.stage === 'loops') loopSlices.push(progress);
+  } while (!progress.done);
+  assert.ok(loopSlices.length >= 3, `the loops took several slices (${loopSlices.length})`);
+  const middle = loopSlices[Math.floor(loopSlices.length / 2)];
+  assert.match(middle.text, /^Closing vein loops: level \d of \d, [\d,]+ of [\d,]+ free vein ends, [\d,]+ loops? closed so far/, middle.text);
+  assert.equal(middle.stoppable, false, 'loops run to the end');
+  assert.ok(middle.loop.ends_done <= middle.loop.ends, JSON.stringify(middle.loop));
+  assert.equal(middle.loop.levels, preset.params.loop_levels + 1);
+  assert.equal(simulation.digest(), expected.digest);
+  assert.ok(expected.metrics.loop_count > 0, 'the native run closed loops');
+  assert.equal(JSON.parse(simulation.metrics_json()).loop_count, expected.metrics.loop_count);
+  simulation.free();
+});
+
+// A site closing loops shows the loop stage in drainage words: channel loops and channel dead
+// ends, never the word "vein" (site pages use drainage words only).
+test('a site closing loops a slice at a time says so in drainage words', () => {
+  const params = { ...base, joining: 'weighted', seed: 24, units: 'm', cell_size: 0.5, vein_area: 0.5, reconnect: 6, loop_levels: 2 };
+  const expected = nativeRun(params, 'stepwise site loops');
+  const simulation = new glue.Simulation(expected.link);
+  simulation.set_stepwise_passes(true);
+  while (!simulation.finished()) simulation.step(997);
+  const texts = [];
+  let progress;
+  do {
+    progress = JSON.parse(simulation.reshape_step(0));
+    texts.push(progress.text);
+    assert.ok(texts.length < 100000, 'the passes end');
+  } while (!progress.done);
+  const during = texts.filter((text) => /^Closing channel loops: level \d of 3, [\d,]+ of [\d,]+ channel dead ends/.test(text));
+  assert.ok(during.length >= 1, texts.join('\n'));
+  for (const text of texts) assert.doesNotMatch(text, /vein|leaf|areole/i, text);
+  assert.ok(expected.metrics.loop_count > 0, 'the native run closed loops');
+  assert.equal(simulation.digest(), expected.digest);
+  simulation.free();
+});
