@@ -6,13 +6,13 @@
 //! with the new segments, counted by Euler's formula for graphs (cyclomatic number
 //! E - V + C; Bondy & Murty 2008, Graph Theory, section 4.3) with petgraph's union-find for C.
 
-use petgraph::unionfind::UnionFind;
 use ramulus_core::growth::Growth;
 use ramulus_core::network::Network;
 use ramulus_core::params::Params;
 use ramulus_core::presets::preset;
 use ramulus_core::reconnection::{close_loops, GrownVeins, LoopClosing, LoopProgress};
 use ramulus_core::run::{conducting_pass, loop_rule, topology_pass, Conducted, Reshaped, RunView};
+use ramulus_tests::euler::independent_cycles;
 
 /// The looped-leaf preset, `seed`, at most `cells` cells, loops as given, grown.
 fn grown(seed: u64, cells: u64, nest: bool, arches: bool) -> (Params, Network) {
@@ -24,18 +24,6 @@ fn grown(seed: u64, cells: u64, nest: bool, arches: bool) -> (Params, Network) {
     let mut growth = Growth::new(&params).expect("valid parameters");
     growth.run();
     (params, growth.network())
-}
-
-/// Edges - vertices + components, the components by petgraph's union-find.
-fn independent_cycles(network: &Network) -> u64 {
-    let mut sets = UnionFind::new(network.nodes.len());
-    for segment in &network.segments {
-        sets.union(segment.from as usize, segment.to as usize);
-    }
-    let mut labels = sets.into_labeling();
-    labels.sort_unstable();
-    labels.dedup();
-    network.segments.len() as u64 + labels.len() as u64 - network.nodes.len() as u64
 }
 
 const CASES: [(u64, bool, bool); 4] = [

@@ -16,12 +16,12 @@
 //!   of the segments than with the shortest joins tried first, on every seed; the comparison
 //!   is against the old rule on the same seeds.
 
-use petgraph::unionfind::UnionFind;
 use ramulus_core::growth::Growth;
-use ramulus_core::network::{Network, NetworkKind};
+use ramulus_core::network::NetworkKind;
 use ramulus_core::params::Params;
 use ramulus_core::presets::preset;
 use ramulus_core::run::RunView;
+use ramulus_tests::euler::independent_cycles;
 use ramulus_tests::plane_check::conflicting_pairs;
 use ramulus_tests::wide_veins::at_least_as_wide;
 
@@ -45,18 +45,6 @@ fn grow(params: &Params) -> RunView {
     RunView::new(growth.network(), params).expect("a valid network")
 }
 
-/// Edges - vertices + components, the components by petgraph's union-find.
-fn euler_faces(network: &Network) -> u64 {
-    let mut sets = UnionFind::new(network.nodes.len());
-    for segment in &network.segments {
-        sets.union(segment.from as usize, segment.to as usize);
-    }
-    let mut labels = sets.into_labeling();
-    labels.sort_unstable();
-    labels.dedup();
-    network.segments.len() as u64 + labels.len() as u64 - network.nodes.len() as u64
-}
-
 /// Walls that split faces one at a time: a plane graph obeying Euler's formula, and loops that
 /// nest more than those closed in one pass per level, seed by seed.
 #[test]
@@ -68,7 +56,7 @@ fn loops_split_one_at_a_time_are_plane_and_nest_more() {
         let measured = &loops.network;
         assert_eq!(after.metrics.kind, NetworkKind::LoopedOnTree, "seed {seed}");
         assert_eq!(conflicting_pairs(measured), 0, "seed {seed}: crossings");
-        let faces = euler_faces(measured);
+        let faces = independent_cycles(measured);
         assert!(faces > 50, "seed {seed}: {faces} loops");
         assert_eq!(after.metrics.areoles, Some(faces), "seed {seed}: Euler");
         // The same tree grew under both: only the loop pass differs.
@@ -126,7 +114,7 @@ fn loops_among_widest(view: &RunView, share: f64) -> u64 {
     let mut sorted = loops.widths.clone();
     sorted.sort_by(|a, b| b.total_cmp(a));
     let cut = sorted[((sorted.len() as f64 * share) as usize).min(sorted.len() - 1)];
-    euler_faces(&at_least_as_wide(&loops.network, &loops.widths, cut))
+    independent_cycles(&at_least_as_wide(&loops.network, &loops.widths, cut))
 }
 
 /// Arches (`arches`): a tip's tries go only to joins whose loop could pass the ratio, so ends
@@ -149,7 +137,7 @@ fn arches_close_more_loops_among_the_major_veins() {
             0,
             "seed {seed}: crossings"
         );
-        let faces = euler_faces(&loops.network);
+        let faces = independent_cycles(&loops.network);
         assert_eq!(after.metrics.areoles, Some(faces), "seed {seed}: Euler");
         let links = loops.reconnection.links.len();
         let links_before = before

@@ -14,13 +14,13 @@
 //!   one decade.
 //! - Areole density and size against published ranges.
 
-use petgraph::unionfind::UnionFind;
 use ramulus_core::growth::Growth;
 use ramulus_core::metrics::measure;
-use ramulus_core::network::{Network, NetworkKind};
+use ramulus_core::network::NetworkKind;
 use ramulus_core::params::Params;
 use ramulus_core::presets::preset;
 use ramulus_core::run::RunView;
+use ramulus_tests::euler::independent_cycles;
 use ramulus_tests::plane_check::conflicting_pairs;
 use ramulus_tests::wide_veins::at_least_as_wide;
 
@@ -43,18 +43,6 @@ fn grow(params: &Params) -> RunView {
     RunView::new(growth.network(), params).expect("a valid network")
 }
 
-/// Edges - vertices + components, the components by petgraph's union-find.
-fn euler_faces(network: &Network) -> u64 {
-    let mut sets = UnionFind::new(network.nodes.len());
-    for segment in &network.segments {
-        sets.union(segment.from as usize, segment.to as usize);
-    }
-    let mut labels = sets.into_labeling();
-    labels.sort_unstable();
-    labels.dedup();
-    network.segments.len() as u64 + labels.len() as u64 - network.nodes.len() as u64
-}
-
 #[test]
 fn looped_leaves_are_plane_graphs_obeying_euler() {
     for name in ["broad-leaf", "narrow-leaf", "filled-outline"] {
@@ -68,7 +56,7 @@ fn looped_leaves_are_plane_graphs_obeying_euler() {
                 "{name} seed {seed}"
             );
             assert_eq!(conflicting_pairs(measured), 0, "{name} seed {seed}");
-            let faces = euler_faces(measured);
+            let faces = independent_cycles(measured);
             assert!(faces > 50, "{name} seed {seed}: {faces} loops");
             assert_eq!(view.metrics.areoles, Some(faces), "{name} seed {seed}");
             // The whole network (tissue included) holds the same new segments.
@@ -90,7 +78,7 @@ fn without_reconnection_the_network_stays_a_tree() {
         assert_eq!(view.metrics.loop_count, 0);
         // A tree: every non-root node has one downstream segment and E = V - roots.
         assert!(view.network.topology().is_ok());
-        assert_eq!(euler_faces(&view.network), 0);
+        assert_eq!(independent_cycles(&view.network), 0);
     }
 }
 
@@ -259,7 +247,11 @@ fn looped_leaves_keep_the_readings_of_their_grown_tree() {
         assert_eq!(a.transport_cost, b.transport_cost, "{label}");
         // The loop readings are the looped network's: areoles by Euler's formula.
         let loops = looped.loops.as_ref().expect("loops closed");
-        assert_eq!(a.areoles, Some(euler_faces(&loops.network)), "{label}");
+        assert_eq!(
+            a.areoles,
+            Some(independent_cycles(&loops.network)),
+            "{label}"
+        );
         assert!(
             a.areoles.unwrap_or(0) > 10,
             "{label}: {:?} areoles",
