@@ -595,27 +595,22 @@ impl RunView {
                     params.costs.alpha,
                     Some(&loops.widths),
                 );
-                // The forest-only readings come from the grown vein tree, before the loops.
-                let alpha = params.costs.alpha;
-                match (veins, &forest) {
-                    (Some(veins), _) => with_tree_readings(
+                // The forest-only readings come from the grown vein tree, before the loops:
+                // they read node positions and the forest view only, never the segment list,
+                // so the whole network (tree plus new segments) serves without a copy.
+                let tree = match (veins, &forest) {
+                    (Some(veins), _) => Some((&veins.network, &veins.forest)),
+                    (None, Some(view)) => Some((&network, view)),
+                    (None, None) => None,
+                };
+                match tree {
+                    Some((nodes, view)) => with_tree_readings(
                         looped,
-                        &veins.network,
-                        (&veins.forest.topology, veins.forest.orders.as_slice()),
-                        alpha,
+                        nodes,
+                        (&view.topology, view.orders.as_slice()),
+                        params.costs.alpha,
                     ),
-                    (None, Some(view)) => {
-                        let mut tree = network.clone();
-                        tree.segments
-                            .truncate(tree.segments.len() - loops.reconnection.links.len());
-                        with_tree_readings(
-                            looped,
-                            &tree,
-                            (&view.topology, view.orders.as_slice()),
-                            alpha,
-                        )
-                    }
-                    (None, None) => looped,
+                    None => looped,
                 }
             }
             (None, Some(veins)) => measure_with(

@@ -295,8 +295,9 @@ pub fn measure_weighted(
 /// The metrics of a looped network grown as a tree whose loops closed after growth: `looped`
 /// (measured with `measure_weighted`, no forest view) gains the forest-only readings of `tree`,
 /// the grown vein tree before its loops closed, with its forest view and Strahler orders; the
-/// kind becomes `NetworkKind::LoopedOnTree`. A forest view that does not fit the tree leaves
-/// `looped` as it was.
+/// kind becomes `NetworkKind::LoopedOnTree`. Only `tree`'s nodes are read (the forest view
+/// holds the tree's links), so the looped network itself may stand for it. A forest view that
+/// does not fit the nodes leaves `looped` as it was.
 pub fn with_tree_readings(
     mut looped: Metrics,
     tree: &Network,
