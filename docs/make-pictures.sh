@@ -10,7 +10,7 @@ for preset in ovate-leaf elliptic-leaf lanceolate-leaf filled-outline drainage-s
   target/release/ramulus grow --preset "$preset" --svg "$work/$preset.svg" > /dev/null
   rsvg-convert -w 420 "$work/$preset.svg" -o "docs/presets/$preset.png"
 done
-# The looped leaf as a cleared leaf looks: every vein alike, width to scale, so loops show.
-target/release/ramulus grow --preset looped-leaf --colour plain --svg "$work/looped-leaf.svg" > /dev/null
-rsvg-convert -w 840 "$work/looped-leaf.svg" -o docs/presets/looped-leaf.png
+# The ovate leaf as a cleared leaf looks: every vein alike, width to scale, so loops show.
+target/release/ramulus grow --preset ovate-leaf --colour plain --svg "$work/ovate-leaf-veins.svg" > /dev/null
+rsvg-convert -w 840 "$work/ovate-leaf-veins.svg" -o docs/presets/ovate-leaf-veins.png
 rm -rf "$work"

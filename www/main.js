@@ -54,7 +54,7 @@ async function start() {
   runner = new Runner({
     redraw, refill, draw, drawPart, segments: () => state.session.count, progress: showProgress, paused: onPaused, finished: onFinished, playing: showPlaying, failed: onFailure,
   });
-  afterGrowth = new AfterGrowth();
+  afterGrowth = new AfterGrowth(view);
   window.ramulusPage = { runner, view, state, afterGrowth };
 
   // ---- specimens (issue 10, page side): its own modules (specimen*.js), sharing the session;

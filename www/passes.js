@@ -3,7 +3,8 @@
 // sweeps and the loop pass run in parts, so the page answers within a slice, and a Stop control
 // keeps the network as the last whole sweep left it (loops, once started, run to the end). The
 // status line and the figures come from Rust (`Simulation::reshape_step`); this module only
-// schedules the slices and lists the per-sweep figures.
+// schedules the slices, lists the per-sweep figures and draws the loops as they close
+// (`Simulation::loop_lines`) over the network as grown, until the passes end.
 
 // Milliseconds of work per slice: a slice runs parts of sweeps (a few hundred nodes or
 // junctions each) or of the loop pass (a few dozen free ends), at least one part, until this
@@ -11,12 +12,22 @@
 // page responsive, no source).
 const SLICE_BUDGET_MS = 40;
 
+// The colour of loop walls drawn as they close, and their width in CSS pixels: apart from the
+// order colours (Okabe & Ito) so new walls stand out; the status line names it.
+const LOOP_INK = '#d1007a';
+const LOOP_WIDTH_PX = 1.25;
+
 const byId = (id) => document.getElementById(id);
 
 export class AfterGrowth {
-  constructor() {
+  /// `view`: the network view (draw.js) the loops are drawn on as they close.
+  constructor(view) {
+    this.view = view;
     this.simulation = null;
     this.generation = 0;
+    // The loop walls closed so far (Float32Array chunks of x0, y0, x1, y1) and their count.
+    this.loopLines = [];
+    this.loopCount = 0;
     byId('passes-stop').addEventListener('click', () => this.stop());
   }
 
@@ -34,6 +45,10 @@ export class AfterGrowth {
     byId('passes-stop').disabled = false;
     byId('passes-stop').textContent = site ? 'Stop the sweeps' : 'Stop';
     this.showFigures(null);
+    this.loopLines = [];
+    this.loopCount = 0;
+    // A whole redraw meanwhile (zoom, pan, resize) keeps the loops closed so far.
+    this.view.overlays.set('loops-forming', (ctx, place) => this.strokeLoops(ctx, place, this.loopLines));
     const slice = () => {
       if (generation !== this.generation || this.simulation !== simulation) return;
       let progress;
@@ -45,10 +60,14 @@ export class AfterGrowth {
         return;
       }
       this.show(progress);
+      // The loops closed in this slice (none outside the loop pass, and none once done).
+      if (!progress.done) this.drawNewLoops(simulation);
       if (progress.done) {
-        // The line stays with the passes' outcome; nothing is left to stop.
+        // The line stays with the passes' outcome; nothing is left to stop. The finished
+        // network, redrawn by `done`, holds the loops.
         byId('passes-stop').hidden = true;
         this.simulation = null;
+        this.dropLoops();
         done();
         return;
       }
@@ -65,10 +84,48 @@ export class AfterGrowth {
     byId('passes-stop').disabled = true;
   }
 
+  /// Draws the loop walls closed since the last slice straight onto the canvas, over the
+  /// picture already there (no whole redraw per slice).
+  drawNewLoops(simulation) {
+    const lines = simulation.loop_lines(this.loopCount);
+    if (lines.length === 0) return;
+    this.loopLines.push(lines);
+    this.loopCount += lines.length / 4;
+    const view = this.view;
+    const ctx = view.context;
+    ctx.save();
+    ctx.setTransform(1, 0, 0, 1, 0, 0);
+    this.strokeLoops(ctx, { scale: view.scale, offsetX: view.offsetX, offsetY: view.offsetY, ratio: view.ratio() }, [lines]);
+    ctx.restore();
+  }
+
+  /// Strokes `chunks` of loop walls in the network's frame placed by `place`.
+  strokeLoops(ctx, { scale, offsetX, offsetY, ratio }, chunks) {
+    ctx.strokeStyle = LOOP_INK;
+    ctx.lineWidth = LOOP_WIDTH_PX * ratio;
+    ctx.lineCap = 'round';
+    ctx.beginPath();
+    for (const lines of chunks) {
+      for (let k = 0; k < lines.length; k += 4) {
+        ctx.moveTo(lines[k] * scale + offsetX, lines[k + 1] * scale + offsetY);
+        ctx.lineTo(lines[k + 2] * scale + offsetX, lines[k + 3] * scale + offsetY);
+      }
+    }
+    ctx.stroke();
+  }
+
+  /// Forgets the loops drawn as they formed.
+  dropLoops() {
+    this.loopLines = [];
+    this.loopCount = 0;
+    this.view.overlays.delete('loops-forming');
+  }
+
   /// Drops the passes of a run that is being replaced (a new run, a reset).
   forget() {
     this.generation += 1;
     this.simulation = null;
+    this.dropLoops();
     byId('passes-row').hidden = true;
     byId('site-energy').hidden = true;
   }

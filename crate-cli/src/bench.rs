@@ -235,14 +235,14 @@ pub fn run(options: BenchOptions) -> Result<(), CliError> {
     spanning_tree_figures(side, 3)
 }
 
-/// The `looped-leaf` preset scaled to `cells` cells: its lattice, blade outline and petiole
+/// The `ovate-leaf` preset scaled to `cells` cells: its lattice, blade outline and petiole
 /// scaled about the lattice corner so the blade holds 2 % more than `cells` cells (the leaf
 /// grows until its blade is full, so the budget ends the run), the cell size, growth reach and
 /// vein threshold kept (so the blade is larger, not finer). The page benchmark
 /// (tests/e2e/bench-page.mjs, `leafFigures`) scales the preset the same way.
 pub fn scaled_looped_leaf(cells: u64) -> Result<Params, CliError> {
-    let mut params = ramulus_core::presets::preset("looped-leaf")
-        .ok_or_else(|| CliError::Failed("preset looped-leaf is missing".into()))?;
+    let mut params = ramulus_core::presets::preset("ovate-leaf")
+        .ok_or_else(|| CliError::Failed("preset ovate-leaf is missing".into()))?;
     // The blade's area in cells (shoelace formula), summed as the page benchmark sums it.
     let outline = params.domain.outline.clone().unwrap_or_default();
     let mut twice = 0.0;
@@ -268,7 +268,7 @@ pub fn scaled_looped_leaf(cells: u64) -> Result<Params, CliError> {
     Ok(params)
 }
 
-/// The `looped-leaf` preset scaled to each size (`scaled_looped_leaf`): growth, then the
+/// The `ovate-leaf` preset scaled to each size (`scaled_looped_leaf`): growth, then the
 /// pipeline after growth with its loop pass, best of 3, and the loop pass's share of the whole.
 fn looped_preset_figures(sizes: [u64; 2]) -> Result<(), CliError> {
     let mut wholes = Vec::new();
@@ -321,7 +321,7 @@ fn looped_preset_figures(sizes: [u64; 2]) -> Result<(), CliError> {
         let whole = best.0 + best.2;
         let loops = (best.2 - best.1).max(0.0);
         say!(
-            "looped-leaf preset scaled to {cells} cells ({grown_cells} grown), best of 3: \
+            "ovate-leaf preset scaled to {cells} cells ({grown_cells} grown), best of 3: \
              growth {:.2} s, pipeline with loops {:.2} s (without {:.2} s; with nest_loops \
              {:.2} s), whole {:.2} s; loop pass {:.2} s = {:.0} % \
              of the whole ({links} loop segments)",
@@ -355,7 +355,7 @@ fn looped_preset_figures(sizes: [u64; 2]) -> Result<(), CliError> {
     }
     if let [(small, a), (large, b)] = wholes[..] {
         say!(
-            "looped-leaf: {:.1} x the cells took {:.2} x the time (growth and loop pass)",
+            "ovate-leaf: {:.1} x the cells took {:.2} x the time (growth and loop pass)",
             large as f64 / small as f64,
             b / a
         );

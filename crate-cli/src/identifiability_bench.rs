@@ -19,19 +19,19 @@ use ramulus_core::run::RunView;
 
 use crate::options::CliError;
 
-/// The presets studied: the leaves, the one closing loops among them (the drainage sites and the
-/// shortest-tree reference are left out). A name no preset answers to stops the study with an
+/// The presets studied: the leaves, each with veins apart from tissue and closing loops (the
+/// drainage sites and the shortest-tree reference are left out). A name no preset answers to stops the study with an
 /// error, so a renamed preset is never silently left out.
-const LEAF_PRESETS: [&str; 5] = [
+const LEAF_PRESETS: [&str; 4] = [
     "ovate-leaf",
     "elliptic-leaf",
     "lanceolate-leaf",
-    "looped-leaf",
     "filled-outline",
 ];
 
-/// The conducting threshold every studied preset gets, in cell areas: enough that vein density
-/// measures veins, not the lattice (with 0 every cell is a vein).
+/// The conducting threshold a studied preset without one gets, in cell areas: enough that vein
+/// density measures veins, not the lattice (with 0 every cell is a vein). A preset with its
+/// own threshold keeps it.
 const VEIN_CELLS: f64 = 20.0;
 
 /// Seeds per level: 5, or 2 with `--quick`.
@@ -50,7 +50,9 @@ pub fn run(quick: bool, as_json: bool) -> Result<(), CliError> {
         let started = Instant::now();
         let mut base = preset(name)
             .ok_or_else(|| CliError::Failed(format!("the study names no preset {name:?}")))?;
-        base.widths.vein_area = VEIN_CELLS * base.domain.cell_size * base.domain.cell_size;
+        if base.widths.vein_area <= 0.0 {
+            base.widths.vein_area = VEIN_CELLS * base.domain.cell_size * base.domain.cell_size;
+        }
         if quick {
             base.run.cells = base.run.cells.min(QUICK_CELLS);
         }
@@ -117,8 +119,9 @@ fn print_study(
 ) {
     let units = &base.domain.units;
     println!(
-        "{name}: vein_area {} {units}\u{b2} ({VEIN_CELLS} cells), budget {} cells, {LEVELS} levels x {seeds} seeds, {runs} runs in {seconds:.1} s",
+        "{name}: vein_area {} {units}\u{b2} ({:.1} cells), budget {} cells, {LEVELS} levels x {seeds} seeds, {runs} runs in {seconds:.1} s",
         short(base.widths.vein_area),
+        base.widths.vein_area / (base.domain.cell_size * base.domain.cell_size),
         base.run.cells
     );
     println!("change of each metric per parameter step / its seed-to-seed spread (pooled sample SD); |value| >= {SEEN_RATIO} marked *");

@@ -299,7 +299,7 @@ pub struct BenchOptions {
     #[arg(long, verbatim_doc_comment, conflicts_with_all = ["fit", "image"])]
     pub refill: bool,
     /// Time the passes after growth instead: channel energy sweeps on
-    /// the 2-hectare sloping field at 0.5 m cells, and the looped-leaf
+    /// the 2-hectare sloping field at 0.5 m cells, and the ovate-leaf
     /// preset scaled to 100,000 and 400,000 cells (growth and loops;
     /// 25,000 and 100,000 with --quick)
     #[arg(long, verbatim_doc_comment, conflicts_with_all = ["fit", "image", "refill"])]

@@ -389,6 +389,11 @@ impl Conducted {
         self.closing.as_ref().map(LoopClosing::progress)
     }
 
+    /// The new segments the loop pass has closed so far, in order (empty when there is none).
+    pub fn loop_links(&self) -> &[Segment] {
+        self.closing.as_ref().map_or(&[], LoopClosing::links)
+    }
+
     /// The reshaped network and what the reshaping passes did.
     pub fn reshaped(&self) -> &Reshaped {
         &self.reshaped

@@ -33,7 +33,7 @@ pub struct ScreenGeometry {
     pub conducts: Vec<bool>,
     /// Number of entries that do not conduct (tissue).
     pub tissue_count: usize,
-    /// Smallest and largest positive flow (0, 0 when none).
+    /// Smallest and largest positive flow of the conducting entries (0, 0 when none).
     pub flow_range: (f64, f64),
     /// Highest order present.
     pub max_order: u32,
@@ -107,11 +107,13 @@ impl ScreenGeometry {
             debug_assert!(conducts || at(&table.width, index) == 0.0);
             self.conducts.push(conducts);
             self.tissue_count += usize::from(!conducts);
+            // The flow ramp spans the veins' flows (the SVG export's rule): tissue drains less
+            // than any vein, and is drawn faint, hidden, or at the ramp's low end.
             // Comparisons, not `f64::min` and `f64::max` (library calls on wasm32).
-            if flow > 0.0 && flow < low {
+            if conducts && flow > 0.0 && flow < low {
                 low = flow;
             }
-            if flow > high {
+            if conducts && flow > high {
                 high = flow;
             }
             self.max_order = self.max_order.max(order);
@@ -463,6 +465,43 @@ mod tests {
         let facts = screen.legend_facts(Colouring::ByFlow, TissueView::Faint, "mm");
         assert_eq!(facts.flow_range, Some((1.0, 2.0)));
         assert!(facts.roots_drawn);
+    }
+
+    /// The flow ramp spans the veins' flows: with the chain above conducting from 1.5 (so the
+    /// tip segment, flow 1, is tissue), the key reads the vein's flow alone, as the SVG
+    /// export's does, and the tissue takes the ramp's low end.
+    #[test]
+    fn the_flow_key_spans_the_veins_alone() {
+        let node = |x: f64| Node {
+            x,
+            y: 0.0,
+            weight: 1.0,
+        };
+        let network = Network {
+            nodes: vec![node(0.0), node(1.0), node(2.0), node(1.0)],
+            segments: segments_from_parents(&[NO_PARENT, 0, 1, 0]),
+            area: 1.0,
+            units: "mm".to_string(),
+            cell_size: 1.0,
+            cells: CellSet::default(),
+        };
+        let mut params = ramulus_core::params::Params::default();
+        params.widths.vein_area = 1.5;
+        let forest = topology_pass(&network).unwrap();
+        let conducting = conducting_network(&network, forest.as_ref(), &params);
+        let table = widths_pass(
+            &network,
+            forest.as_ref(),
+            &conducting,
+            WidthRule::single(2.0, 0.1, 1.0),
+        );
+        assert_eq!(table.conducts, [true, false, false]);
+        let mut screen = ScreenGeometry::default();
+        screen.fill(&network, &table);
+        let facts = screen.legend_facts(Colouring::ByFlow, TissueView::Faint, "mm");
+        assert_eq!(facts.flow_range, Some((2.0, 2.0)));
+        let drawing = crate::svg::Drawing::collect(&network, &table, TissueView::AsVeins);
+        assert_eq!(drawing.flow_range, facts.flow_range);
     }
 
     /// A raster drawn a slice at a time, in slices of any size, ends with the very pixels of

@@ -365,8 +365,8 @@ fn status_text(s: &Status) -> String {
                 ("closing vein loops", "free vein ends")
             };
             let figures = format!(
-                "{what}: level {} of {}, {} of {} {ends}, {} loop{} closed so far \
-                 (loops run to the end once started)\u{2026}",
+                "{what}: level {} of {}, {} of {} {ends}, {} loop{} closed so far, drawn in \
+                 magenta as they close (loops run to the end once started)\u{2026}",
                 progress.level + 1,
                 progress.levels,
                 grouped(progress.ends_done as u64),

@@ -282,6 +282,25 @@ impl Simulation {
         Ok(self.passes_progress())
     }
 
+    /// The loops the loop pass has closed so far from the `first` on (0 for all), as
+    /// `x0, y0, x1, y1` per new segment in the network's frame, so the page draws loops as
+    /// they form; empty when no loop pass is running.
+    pub fn loop_lines(&self, first: u32) -> js_sys::Float32Array {
+        let Some(conducted) = self.passes.loops.as_ref() else {
+            return js_sys::Float32Array::new_with_length(0);
+        };
+        let nodes = &conducted.reshaped().network.nodes;
+        let links = conducted.loop_links();
+        let mut lines = Vec::with_capacity(4 * links.len().saturating_sub(first as usize));
+        for link in links.iter().skip(first as usize) {
+            if let (Some(a), Some(b)) = (nodes.get(link.from as usize), nodes.get(link.to as usize))
+            {
+                lines.extend_from_slice(&[a.x as f32, a.y as f32, b.x as f32, b.y as f32]);
+            }
+        }
+        js_sys::Float32Array::from(lines.as_slice())
+    }
+
     /// Stops the sweeps: a sweep stopped midway is taken back, and the network stays as the
     /// last whole sweep left it (the pass's sweep count in the run's link and record becomes
     /// the whole sweeps run; later sweeping passes do not run); the next `reshape_step` runs
@@ -344,10 +363,14 @@ impl Simulation {
         }
     }
 
-    /// The cell budget.
+    /// The cell budget in grown cells: `cells` times `refine` squared (a refined lattice
+    /// keeps the budget's area, so it grows that many of its smaller cells).
     pub fn budget(&self) -> f64 {
         match &self.source {
-            Source::Growing(_) => self.params.run.cells as f64,
+            Source::Growing(_) => {
+                let refine = f64::from(self.params.domain.refine.max(1));
+                self.params.run.cells as f64 * refine * refine
+            }
             Source::Fixed(network) => network.nodes.len() as f64,
         }
     }

@@ -13,7 +13,7 @@
 //  4. The passes after growth (run a slice at a time, www/passes.js): the 2-hectare sloping
 //     field (examples/sites/sloping-field.geojson at 0.5 m cells, 80,000 cells) grown and sized
 //     in the page (target under 5 s), then grown with 10 channel energy sweeps: time and energy
-//     drop per sweep; and the looped-leaf preset scaled to 100,000 cells (its lattice and blade
+//     drop per sweep; and the ovate-leaf preset scaled to 100,000 cells (its lattice and blade
 //     outline scaled so the blade holds the budget, as `ramulus bench` scales it), growth plus the loop pass (target under
 //     5 s), with the loop pass's share.
 // Prints figures; never fails on slowness. Usage: node tests/e2e/bench-page.mjs [--frames |
@@ -212,7 +212,7 @@ async function siteFigures(page) {
 async function leafFigures(page) {
   const leafLink = await page.evaluate(() => {
     const { core } = window.ramulusPage.state.session;
-    const preset = JSON.parse(core.presets_json()).find((p) => p.name === 'looped-leaf');
+    const preset = JSON.parse(core.presets_json()).find((p) => p.name === 'ovate-leaf');
     const { params } = preset;
     // As `scaled_looped_leaf` in crate-cli/src/bench.rs.
     let twice = 0;
@@ -247,7 +247,7 @@ async function leafFigures(page) {
     return window.benchLongTasks.filter((task) => task.start >= startedAt).map((task) => task.ms);
   });
   const cells = await page.evaluate(() => window.ramulusPage.state.simulation.cells());
-  console.log(`looped-leaf preset scaled to 100,000 cells (${cells} grown; target under 5 s):`);
+  console.log(`ovate-leaf preset scaled to 100,000 cells (${cells} grown; target under 5 s):`);
   console.log(`  whole run ${(leaf.ms / 1000).toFixed(2)} s: growth ${(leaf.grownMs / 1000).toFixed(2)} s, passes after growth (loops, widths, readings) ${(leaf.passesMs / 1000).toFixed(2)} s = ${((100 * leaf.passesMs) / leaf.ms).toFixed(0)} %, of it the last slice ${leaf.progress.finish_ms.toFixed(0)} ms`);
   const loops = leaf.progress.loop_figures;
   if (loops) {

@@ -68,12 +68,16 @@ test('the SVG export parses as XML and holds one segment element per segment', a
       error: document.getElementsByTagName('parsererror').length,
       root: document.documentElement.localName,
       segments: document.querySelectorAll('.segment').length,
+      tissue: document.querySelectorAll('g.tissue line').length,
       width: document.documentElement.getAttribute('width'),
     };
   }, text);
   assert.equal(parsed.error, 0);
   assert.equal(parsed.root, 'svg');
-  assert.equal(parsed.segments, native.segments);
+  // The leaf's veins, and under them its tissue drawn faint (the page's default): together
+  // every segment the command line grows.
+  assert.ok(parsed.tissue > 0, 'the leaf has tissue below its vein threshold');
+  assert.equal(parsed.segments + parsed.tissue, native.segments);
   assert.match(parsed.width, /mm$/, 'a leaf is drawn at true size in millimetres');
   assert.deepEqual(page.errors, []);
   await page.close();
@@ -270,8 +274,9 @@ test('the colour key on the page is the SVG export\'s, and the probe reads a seg
   }, svg);
   // Both come from one Rust function, root markers included (a leaf's root is its petiole).
   assert.deepEqual(svgKey, pageKey);
-  assert.equal(pageKey.length, 4, 'title, least and most flow, the root');
-  assert.equal(pageKey[3], 'petiole (root)');
+  assert.equal(pageKey.length, 5, 'title, least and most flow, tissue, the root');
+  assert.equal(pageKey[3], 'tissue: drains less than the vein threshold');
+  assert.equal(pageKey[4], 'petiole (root)');
   assert.equal(pageKey[0], 'flow (mm²)');
   assert.ok(Number(pageKey[1]) > 0 && Number(pageKey[2]) > Number(pageKey[1]), pageKey.join(' '));
   for (let i = 0; i < 4; i += 1) await page.click('#zoom-in');

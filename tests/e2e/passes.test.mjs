@@ -155,7 +155,7 @@ test('a leaf run relaxes its vein junctions a sweep at a time, in leaf words', a
   await finishedDigest(page);
   const link = await page.evaluate(() => {
     const { core } = window.ramulusPage.state.session;
-    const preset = JSON.parse(core.presets_json()).find((p) => p.name === 'looped-leaf');
+    const preset = JSON.parse(core.presets_json()).find((p) => p.name === 'ovate-leaf');
     const set = JSON.parse(core.set_link_field(preset.link, 'relax_junctions', '4'));
     return JSON.parse(core.set_link_field(set.link, 'cells', '20000')).link;
   });
@@ -175,12 +175,12 @@ test('a leaf run relaxes its vein junctions a sweep at a time, in leaf words', a
   await page.close();
 });
 
-/// The looped-leaf preset scaled to `cells` cells (lattice and blade outline scaled, cell size
+/// The ovate-leaf preset scaled to `cells` cells (lattice and blade outline scaled, cell size
 /// kept), as `scaled_looped_leaf` in crate-cli/src/bench.rs and tests/e2e/bench-page.mjs.
 async function scaledLoopedLeafLink(page, cells) {
   return page.evaluate((target) => {
     const { core } = window.ramulusPage.state.session;
-    const { params } = JSON.parse(core.presets_json()).find((p) => p.name === 'looped-leaf');
+    const { params } = JSON.parse(core.presets_json()).find((p) => p.name === 'ovate-leaf');
     let twice = 0;
     params.outline.forEach(([x, y], index) => {
       const [nx, ny] = params.outline[(index + 1) % params.outline.length];
@@ -207,6 +207,24 @@ test('a large looped leaf closes its loops a slice at a time: progress shown, th
   await page.goto(site.url);
   await finishedDigest(page);
   const link = await scaledLoopedLeafLink(page, 100000);
+  // After each slice of the loop pass: how many loop walls the page has drawn, how many the
+  // core says are closed, and how many canvas pixels carry the loop ink (#d1007a, blended).
+  await page.evaluate(() => {
+    const after = window.ramulusPage.afterGrowth;
+    const drawNew = after.drawNewLoops.bind(after);
+    window.loopsSeen = [];
+    after.drawNewLoops = (simulation) => {
+      drawNew(simulation);
+      const { width, height } = after.view.canvas;
+      const pixels = after.view.context.getImageData(0, 0, width, height).data;
+      let ink = 0;
+      for (let at = 0; at < pixels.length; at += 4) {
+        if (pixels[at] > 150 && pixels[at + 1] < 70 && pixels[at + 2] > 60 && pixels[at + 2] < 180) ink += 1;
+      }
+      const closed = JSON.parse(simulation.reshape_progress()).loop?.loops ?? null;
+      window.loopsSeen.push({ drawn: after.loopCount, closed, ink });
+    };
+  });
   await page.evaluate((fragment) => { location.hash = fragment; }, link);
   // The loop stage's status line, in leaf words.
   await page.waitForFunction(
@@ -230,6 +248,18 @@ test('a large looped leaf closes its loops a slice at a time: progress shown, th
   assert.equal(Number(progress.text.split(' ')[0].replaceAll(',', '')),
     await page.evaluate(() => JSON.parse(window.ramulusPage.state.simulation.metrics_json()).loop_count),
     'the loops counted are the independent loops measured');
+  // Loops drawn as they form: after every slice the page has drawn each loop closed so far,
+  // in the loop ink, and the finished drawing (the network with its loops) replaces them.
+  const seen = await page.evaluate(() => window.loopsSeen);
+  assert.ok(seen.length >= 2, `loops drawn over ${seen.length} slices`);
+  for (const slice of seen) {
+    if (slice.closed !== null) assert.equal(slice.drawn, slice.closed, JSON.stringify(slice));
+  }
+  const closedAll = Number(progress.text.split(' ')[0].replaceAll(',', ''));
+  assert.ok(seen.some((slice) => slice.drawn > 0 && slice.drawn < closedAll), 'some loops shown before the pass ended');
+  assert.equal(seen.at(-1).drawn, closedAll, 'every loop drawn before the finished drawing');
+  assert.ok(seen.at(-1).ink > 0, `the loop ink shows on the canvas: ${JSON.stringify(seen.at(-1))}`);
+  assert.equal(await page.evaluate(() => window.ramulusPage.view.overlays.has('loops-forming')), false);
   // The page's slices close the loops the command line closes in one go.
   const fragment = await page.evaluate(() => window.ramulusPage.state.simulation.link());
   assert.equal(nativeRun(fragment).digest, digest);

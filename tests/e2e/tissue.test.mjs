@@ -91,8 +91,11 @@ test('tissue drawn faint, hidden or like veins on the canvas and in the SVG', as
   await finishedDigest(page);
   await page.selectOption('#start-from', 'elliptic-leaf');
   await finishedDigest(page);
-  // Without a threshold every cell is a vein: no tissue control, and the readings that only
-  // follow the cell size say so (the core's mark).
+  // The preset has veins apart from tissue: the tissue control shows. Without a threshold
+  // every cell is a vein: no tissue control, and the readings that only follow the cell size
+  // say so (the core's mark).
+  assert.equal(await page.isVisible('#tissue'), true, 'the elliptic leaf has tissue');
+  await setField(page, 'vein_area', '0');
   assert.equal(await page.isVisible('#tissue'), false, 'no tissue control without a threshold');
   const marked = await page.locator('#metrics tr.says-little').allTextContents();
   assert.ok(marked.some((row) => row.startsWith('vein density')), `marked rows: ${marked}`);

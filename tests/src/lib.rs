@@ -7,4 +7,5 @@ pub mod fuzz;
 pub mod hand_built;
 pub mod param_strategy;
 pub mod plane_check;
+pub mod tree_presets;
 pub mod wide_veins;

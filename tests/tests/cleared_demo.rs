@@ -9,10 +9,10 @@ use ramulus_core::cleared::decode::decode_image;
 use ramulus_core::cleared::{build_cleared_specimen, ClearedOptions};
 use ramulus_core::growth::Growth;
 use ramulus_core::params::{Params, Root};
-use ramulus_core::presets::preset;
 use ramulus_core::run::RunView;
 use ramulus_core::specimen::SpecimenOptions;
 use ramulus_tests::cleared_drawing::{cleared_leaf_from_network, encode_grey_png, photograph};
+use ramulus_tests::tree_presets::tree_preset;
 
 /// Pixels per millimetre of the demo image (stated in its pHYs chunk as pixels per metre).
 const PIXELS_PER_MM: f64 = 50.0;
@@ -28,7 +28,7 @@ fn demo_path() -> std::path::PathBuf {
 fn grown() -> (RunView, Params) {
     // The open-growth broad leaf of earlier releases (the demo image was drawn from it): the
     // ovate preset's costs without its outline, petiole rule and outline-sized lattice.
-    let mut params = preset("ovate-leaf").expect("preset");
+    let mut params = tree_preset("ovate-leaf").expect("preset");
     params.domain.width = 220;
     params.domain.height = 300;
     params.domain.roots = vec![Root {

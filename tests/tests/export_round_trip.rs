@@ -10,12 +10,12 @@ use ramulus_core::metrics::Metrics;
 use ramulus_core::network::{CellSet, Network, Node, Segment};
 use ramulus_core::network_export::{cells_outline, network_edge_csv, network_geojson};
 use ramulus_core::params::Params;
-use ramulus_core::presets::preset;
 use ramulus_core::run::RunView;
 use ramulus_core::specimen::{
     build_specimen, read_trace, ring_area, Repair, ScaleRule, Specimen, SpecimenOptions,
 };
 use ramulus_draw::{run_svg, Colouring};
+use ramulus_tests::tree_presets::tree_preset;
 
 fn options(units: &str) -> SpecimenOptions {
     SpecimenOptions {
@@ -27,7 +27,7 @@ fn options(units: &str) -> SpecimenOptions {
 }
 
 fn grown(seed: u64, cells: u64) -> RunView {
-    let mut params = preset("broad-leaf").expect("preset");
+    let mut params = tree_preset("broad-leaf").expect("preset");
     params.run.cells = cells;
     params.run.seed = seed;
     let mut growth = Growth::new(&params).expect("valid");

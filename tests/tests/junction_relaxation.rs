@@ -7,9 +7,9 @@ use ramulus_core::growth::Growth;
 use ramulus_core::junctions::relax_junctions;
 use ramulus_core::network::{CellSet, Network, Node, Segment};
 use ramulus_core::params::Params;
-use ramulus_core::presets::preset;
 use ramulus_core::run::RunView;
 use ramulus_tests::plane_check::conflicting_pairs;
+use ramulus_tests::tree_presets::tree_preset;
 
 /// A Y: root 0 at the origin, junction 1 started at (0, 10), upstream tips 2 at (-5, 40) and 3
 /// at (5, 40) carrying `q1` and `q2`. The triangle's angles (14 degrees at the root, 83 at each
@@ -168,7 +168,7 @@ fn a_junction_never_collapses_into_a_neighbour() {
 // Grown networks.
 
 fn grown(name: &str, seed: u64, cells: u64) -> (Params, Network) {
-    let mut params = preset(name).expect("a preset");
+    let mut params = tree_preset(name).expect("a preset");
     params.run.seed = seed;
     params.run.cells = params.run.cells.min(cells);
     let mut growth = Growth::new(&params).expect("valid parameters");
@@ -235,7 +235,7 @@ fn no_sweeps_move_nothing() {
 #[ignore]
 fn relaxation_figures() {
     for (name, seed) in [("broad-leaf", 1), ("broad-leaf", 2), ("drainage-site", 1)] {
-        let mut params = preset(name).expect("a preset");
+        let mut params = tree_preset(name).expect("a preset");
         params.run.seed = seed;
         let mut growth = Growth::new(&params).expect("valid");
         growth.run();

@@ -66,14 +66,17 @@ fn leaf_vein_density_is_in_the_angiosperm_range() {
             (2.0..=25.0).contains(&density),
             "{name}: vein density {density} mm/mm^2 outside the loose range 2-25"
         );
-        // Independently: total segment length over the occupied area (n cells of h^2).
+        // Independently: the length of the conducting segments (the veins; below the
+        // threshold the cells are tissue) over the occupied area (n cells of h^2).
         let h = view.network.cell_size;
         let area = view.network.cells.occupied.len() as f64 * h * h;
         let length: f64 = view
             .network
             .segments
             .iter()
-            .map(|segment| {
+            .enumerate()
+            .filter(|&(index, _)| view.table.conducts.get(index).copied().unwrap_or(true))
+            .map(|(_, segment)| {
                 let node = &view.network.nodes[segment.from as usize];
                 let parent = &view.network.nodes[segment.to as usize];
                 ((node.x - parent.x).powi(2) + (node.y - parent.y).powi(2)).sqrt()

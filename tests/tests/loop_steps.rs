@@ -14,9 +14,9 @@ use ramulus_core::reconnection::{close_loops, GrownVeins, LoopClosing, LoopProgr
 use ramulus_core::run::{conducting_pass, loop_rule, topology_pass, Conducted, Reshaped, RunView};
 use ramulus_tests::euler::independent_cycles;
 
-/// The looped-leaf preset, `seed`, at most `cells` cells, loops as given, grown.
+/// The ovate-leaf preset, `seed`, at most `cells` cells, loops as given, grown.
 fn grown(seed: u64, cells: u64, nest: bool, arches: bool) -> (Params, Network) {
-    let mut params = preset("looped-leaf").expect("the looped-leaf preset");
+    let mut params = preset("ovate-leaf").expect("the ovate-leaf preset");
     params.run.seed = seed;
     params.run.cells = params.run.cells.min(cells);
     params.widths.nest_loops = nest;

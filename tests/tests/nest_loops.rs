@@ -25,9 +25,9 @@ use ramulus_tests::euler::independent_cycles;
 use ramulus_tests::plane_check::conflicting_pairs;
 use ramulus_tests::wide_veins::at_least_as_wide;
 
-/// The looped-leaf preset with `nest_loops` as given, grown to `cells` cells.
+/// The ovate-leaf preset with `nest_loops` as given, grown to `cells` cells.
 fn looped_leaf(seed: u64, cells: Option<u64>, nest: bool) -> Params {
-    let mut params = preset("looped-leaf").expect("the looped-leaf preset");
+    let mut params = preset("ovate-leaf").expect("the ovate-leaf preset");
     // The threshold these checks were first measured at (the preset's until 2026-12-03): under
     // one cell's area, so every cell conducts and the loops are the densest the rule makes.
     params.widths.vein_area = 0.02;
@@ -78,7 +78,7 @@ fn loops_split_one_at_a_time_are_plane_and_nest_more() {
     }
 }
 
-/// Figures for README (not a check): the looped-leaf preset, seeds 1-5, with and without
+/// Figures for README (not a check): the ovate-leaf preset, seeds 1-5, with and without
 /// `nest_loops`. `cargo test --release -p ramulus-tests --test nest_loops -- --ignored
 /// --nocapture`.
 #[test]
@@ -161,7 +161,7 @@ fn arches_close_more_loops_among_the_major_veins() {
     }
 }
 
-/// Figures for README (not a check): the looped-leaf preset, seeds 1-5, with and without
+/// Figures for README (not a check): the ovate-leaf preset, seeds 1-5, with and without
 /// `arches`. `cargo test --release -p ramulus-tests --test nest_loops print_arch_figures --
 /// --ignored --nocapture`.
 #[test]

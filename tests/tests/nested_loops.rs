@@ -267,28 +267,44 @@ fn looped_leaves_keep_the_readings_of_their_grown_tree() {
     }
 }
 
-/// The `looped-leaf` preset as shipped grows veins apart from tissue (some cells drain less than
+/// Every leaf preset as shipped grows veins apart from tissue (some cells drain less than
 /// its threshold and are not veins, so its vein density is not the lattice's), with a vein
 /// density in the band of angiosperm leaves (Boyce et al. 2009, Proc. R. Soc. B 276: most
 /// between about 2 and 25 mm/mm^2; LOOSE band) and areoles in the dicot range used above (from
 /// memory: about 1 to 100 per mm^2, mean 0.01 to 1 mm^2).
 #[test]
-fn the_looped_leaf_preset_has_veins_apart_from_tissue_in_leaf_ranges() {
-    let view = grow(&preset("looped-leaf").expect("preset"));
-    let tissue = view.conducting.tissue_count();
-    let segments = view.conducting.conducts.len();
-    assert!(
-        tissue * 10 >= segments,
-        "only {tissue} of {segments} segments are tissue: the lattice sets vein density"
-    );
-    let m = &view.metrics;
-    let density = m.vein_density.expect("an area");
-    assert!((2.0..=25.0).contains(&density), "vein density {density}");
-    let areoles = m.areole_density.expect("areoles");
-    let mean = m.mean_areole_area.expect("areoles");
-    assert!((1.0..=100.0).contains(&areoles), "areole density {areoles}");
-    assert!((0.01..=1.0).contains(&mean), "mean areole {mean}");
-    // Areole areas span at least one decade (nested loops, not a mesh of one size).
-    let decades = m.areole_area_decades.expect("areoles");
-    assert!(decades >= 1.0, "areole areas span {decades} decades");
+fn every_leaf_preset_has_veins_apart_from_tissue_in_leaf_ranges() {
+    for name in [
+        "ovate-leaf",
+        "elliptic-leaf",
+        "lanceolate-leaf",
+        "filled-outline",
+    ] {
+        let view = grow(&preset(name).expect("preset"));
+        let tissue = view.conducting.tissue_count();
+        let segments = view.conducting.conducts.len();
+        assert!(
+            tissue * 10 >= segments,
+            "{name}: only {tissue} of {segments} segments are tissue: the lattice sets vein density"
+        );
+        let m = &view.metrics;
+        let density = m.vein_density.expect("an area");
+        assert!(
+            (2.0..=25.0).contains(&density),
+            "{name}: vein density {density}"
+        );
+        let areoles = m.areole_density.expect("areoles");
+        let mean = m.mean_areole_area.expect("areoles");
+        assert!(
+            (1.0..=100.0).contains(&areoles),
+            "{name}: areole density {areoles}"
+        );
+        assert!((0.01..=1.0).contains(&mean), "{name}: mean areole {mean}");
+        // Areole areas span at least one decade (nested loops, not a mesh of one size).
+        let decades = m.areole_area_decades.expect("areoles");
+        assert!(
+            decades >= 1.0,
+            "{name}: areole areas span {decades} decades"
+        );
+    }
 }

@@ -59,7 +59,7 @@ fn sweep_by_sweep_equals_the_pass_in_one_go() {
     for (name, energy, relax) in [
         ("drainage-site", 4, 0),
         ("drainage-site", 3, 2),
-        ("looped-leaf", 0, 3),
+        ("ovate-leaf", 0, 3),
         ("garden-site", 2, 0),
     ] {
         let (params, network) = grown(name, 3_000, energy, relax);
@@ -135,7 +135,7 @@ fn a_stop_before_any_sweep_changes_nothing() {
 /// state as whole sweeps: the network is the one the passes give in one go, digest for digest.
 #[test]
 fn sweeps_in_parts_equal_the_pass_in_one_go() {
-    for (name, energy, relax) in [("drainage-site", 3, 2), ("looped-leaf", 0, 3)] {
+    for (name, energy, relax) in [("drainage-site", 3, 2), ("ovate-leaf", 0, 3)] {
         let (params, network) = grown(name, 3_000, energy, relax);
         let whole = RunView::new(network.clone(), &params).expect("a valid network");
         for items in [1, 7, 256, 1_000] {
@@ -199,7 +199,7 @@ fn a_stop_midway_takes_the_sweep_back() {
 /// where the last whole sweep left it.
 #[test]
 fn a_stop_midway_puts_the_junctions_back() {
-    let (params, network) = grown("looped-leaf", 3_000, 0, 4);
+    let (params, network) = grown("ovate-leaf", 3_000, 0, 4);
     for k in [0u32, 1] {
         let mut reshaping = Reshaping::new(network.clone(), &params).expect("a valid network");
         for _ in 0..k {

@@ -10,13 +10,13 @@
 
 use ramulus_core::growth::Growth;
 use ramulus_core::metrics::Measured;
-use ramulus_core::presets::preset;
 use ramulus_core::run::RunView;
 use ramulus_core::specimen::{build_specimen, ScaleRule, SpecimenOptions};
 use ramulus_draw::{run_svg_with, Colouring, TissueView};
+use ramulus_tests::tree_presets::tree_preset;
 
 fn grown(name: &str, cells: u64, vein_cells: f64) -> (RunView, ramulus_core::params::Params) {
-    let mut params = preset(name).expect("preset");
+    let mut params = tree_preset(name).expect("preset");
     params.run.cells = cells;
     params.widths.vein_area = vein_cells * params.domain.cell_size * params.domain.cell_size;
     let mut growth = Growth::new(&params).expect("valid");

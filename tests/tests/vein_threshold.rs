@@ -9,12 +9,12 @@ use petgraph::algo::toposort;
 use petgraph::graph::{DiGraph, NodeIndex};
 use petgraph::visit::{Dfs, Reversed};
 use ramulus_core::growth::Growth;
-use ramulus_core::presets::preset;
 use ramulus_core::run::RunView;
+use ramulus_tests::tree_presets::tree_preset;
 
 /// A grown broad-leaf run of a few thousand cells with a conducting threshold.
 fn grown_view(vein_area: f64) -> RunView {
-    let mut params = preset("broad-leaf").expect("preset");
+    let mut params = tree_preset("broad-leaf").expect("preset");
     params.run.cells = 4000;
     params.widths.vein_area = vein_area;
     let mut growth = Growth::new(&params).expect("valid");
@@ -62,7 +62,7 @@ fn drained_areas(graph: &DiGraph<f64, f64>, nodes: &[NodeIndex]) -> Vec<f64> {
 #[test]
 fn veins_are_the_segments_draining_the_threshold() {
     let cell_area = {
-        let params = preset("broad-leaf").expect("preset");
+        let params = tree_preset("broad-leaf").expect("preset");
         params.domain.cell_size * params.domain.cell_size
     };
     let threshold = 12.0 * cell_area;
@@ -106,7 +106,7 @@ fn veins_are_the_segments_draining_the_threshold() {
 #[test]
 fn vein_orders_follow_strahlers_rule_on_the_veins_alone() {
     let cell_area = {
-        let params = preset("broad-leaf").expect("preset");
+        let params = tree_preset("broad-leaf").expect("preset");
         params.domain.cell_size * params.domain.cell_size
     };
     let view = grown_view(6.0 * cell_area);

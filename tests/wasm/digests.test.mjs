@@ -176,7 +176,7 @@ test('a stop after whole channel energy sweeps equals the native run of those sw
 // part of the loop pass) closes the loops the native command line closes in one go: the same
 // digest, and the progress names the loop stage in leaf words while it runs.
 test('a looped leaf stepped in tiny slices equals the native digest', () => {
-  const preset = presets.find((p) => p.name === 'looped-leaf');
+  const preset = presets.find((p) => p.name === 'ovate-leaf');
   const params = { ...preset.params, cells: 12000, seed: 5 };
   const expected = nativeRun(params, 'stepwise looped leaf');
   const simulation = new glue.Simulation(expected.link);

@@ -397,6 +397,12 @@ impl LoopClosing {
         }
     }
 
+    /// The new segments closed so far, in the order they closed (each joins a free end `from`
+    /// to a vein node `to`); a caller may draw them as they form.
+    pub fn links(&self) -> &[Segment] {
+        &self.out.links
+    }
+
     /// The loops closed: the pass run to its end on `veins` first.
     pub fn finish(mut self, veins: GrownVeins) -> Reconnection {
         while !self.done() {

@@ -169,7 +169,7 @@ struct Segment {
 }
 
 /// The drawable parts of a network and their extent.
-struct Drawing {
+pub(crate) struct Drawing {
     nodes: Vec<(f64, f64)>,
     segments: Vec<Segment>,
     /// Tissue drawn faint (under the veins), with the stroke width they all share.
@@ -182,12 +182,12 @@ struct Drawing {
     bounds: Option<[f64; 4]>,
     widest: f64,
     max_order: u32,
-    /// Smallest and largest positive flow over segments.
-    flow_range: Option<(f64, f64)>,
+    /// Smallest and largest positive flow over the conducting segments.
+    pub(crate) flow_range: Option<(f64, f64)>,
 }
 
 impl Drawing {
-    fn collect(network: &Network, table: &SegmentTable, tissue: TissueView) -> Drawing {
+    pub(crate) fn collect(network: &Network, table: &SegmentTable, tissue: TissueView) -> Drawing {
         let nodes: Vec<(f64, f64)> = network.nodes.iter().map(|node| (node.x, node.y)).collect();
         let finite = |index: usize| {
             nodes
@@ -205,6 +205,7 @@ impl Drawing {
         let mut segments = Vec::new();
         let mut faint = Vec::new();
         let mut tissue_count = 0;
+        let mut flow_range: Option<(f64, f64)> = None;
         // The thinnest vein's width: faint tissue is drawn thinner, tissue drawn like the
         // veins as wide (the cell size stands in when no vein has a width).
         let thinnest = (0..network.segments.len())
@@ -241,6 +242,14 @@ impl Drawing {
                 order: table.order.get(index).copied().unwrap_or(1).max(1),
             };
             if conducts {
+                // The flow ramp spans the veins' flows (tissue drawn like veins takes its low
+                // end): the page's screen geometry keeps the same rule.
+                if segment.flow > 0.0 {
+                    flow_range = Some(match flow_range {
+                        None => (segment.flow, segment.flow),
+                        Some((low, high)) => (low.min(segment.flow), high.max(segment.flow)),
+                    });
+                }
                 segments.push(segment);
                 continue;
             }
@@ -282,15 +291,6 @@ impl Drawing {
             .map(|segment| segment.order)
             .max()
             .unwrap_or(0);
-        let mut flow_range: Option<(f64, f64)> = None;
-        for segment in &segments {
-            if segment.flow > 0.0 {
-                flow_range = Some(match flow_range {
-                    None => (segment.flow, segment.flow),
-                    Some((low, high)) => (low.min(segment.flow), high.max(segment.flow)),
-                });
-            }
-        }
         Drawing {
             nodes,
             segments,
