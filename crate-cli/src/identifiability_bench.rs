@@ -20,8 +20,8 @@ use ramulus_core::run::RunView;
 use crate::options::CliError;
 
 /// The presets studied: the leaves, each with veins apart from tissue and closing loops (the
-/// drainage sites and the shortest-tree reference are left out). A name no preset answers to stops the study with an
-/// error, so a renamed preset is never silently left out.
+/// drainage sites and the shortest-tree reference are left out). A name no preset answers to
+/// stops the study with an error, so a renamed preset is never silently left out.
 const LEAF_PRESETS: [&str; 4] = [
     "ovate-leaf",
     "elliptic-leaf",

@@ -467,9 +467,9 @@ mod tests {
         assert!(facts.roots_drawn);
     }
 
-    /// The flow ramp spans the veins' flows: with the chain above conducting from 1.5 (so the
-    /// tip segment, flow 1, is tissue), the key reads the vein's flow alone, as the SVG
-    /// export's does, and the tissue takes the ramp's low end.
+    /// The flow ramp spans the veins' flows: a root with a chain of two segments and a lone
+    /// tip beside it, conducting from 1.5, has one vein (flow 2) and two tips of tissue (flow
+    /// 1); the page's key reads the vein's flow alone, as the SVG export's does.
     #[test]
     fn the_flow_key_spans_the_veins_alone() {
         let node = |x: f64| Node {
