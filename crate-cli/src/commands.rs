@@ -245,8 +245,11 @@ fn measure_record(path: &str) -> Result<Measured, CliError> {
         .params
         .as_ref()
         .map_or(0.5, |params| params.costs.alpha);
-    let metrics = ramulus_core::metrics::measure(&network, alpha)
-        .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+    let metrics = match crate::record_readings::regrown_metrics(&record, &network) {
+        Some(metrics) => metrics,
+        None => ramulus_core::metrics::measure(&network, alpha)
+            .map_err(|error| CliError::Failed(format!("{path}: {error}")))?,
+    };
     let digest = ramulus_core::digest::digest_hex(&network);
     Ok(Measured {
         path: path.to_string(),

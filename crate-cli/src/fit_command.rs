@@ -479,6 +479,9 @@ fn measure_specimen(
                 network.units, network.units
             )));
         }
+        if let Some(metrics) = crate::record_readings::regrown_metrics(&record, &network) {
+            return Ok(metrics);
+        }
         let alpha = record.params.as_ref().map_or(0.5, |p| p.costs.alpha);
         return ramulus_core::metrics::measure(&network, alpha)
             .map_err(|error| CliError::Failed(format!("{path}: {error}")));

@@ -19,6 +19,7 @@ mod image_bench;
 mod interrupt;
 mod options;
 mod output;
+mod record_readings;
 mod refill_bench;
 mod specimens;
 

@@ -256,8 +256,9 @@ fn measure_one(
     }
     if is_record(&bytes) {
         let text = String::from_utf8_lossy(&bytes);
-        let (_, network) =
+        let (record, network) =
             read_record(&text).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+        let regrown = crate::record_readings::regrown_metrics(&record, &network);
         let view = RunView::new(network, &params)
             .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
         return Ok(Measured {
@@ -267,7 +268,7 @@ fn measure_one(
             units: view.network.units.clone(),
             nodes: view.network.nodes.len(),
             segments: view.network.segment_count(),
-            metrics: view.metrics,
+            metrics: regrown.unwrap_or(view.metrics),
             image: None,
         });
     }

@@ -1941,3 +1941,84 @@ fn drain_reads_an_svg_site_plan_and_reports_its_low_spots() {
     ]);
     check_failure(&outcome, &["no width or height in mm"]);
 }
+
+/// A record of a run that conducted from a threshold and closed loops is measured as the run
+/// measured itself: `measure` grows it again from its parameters, so vein density counts the
+/// veins alone (not the tissue the record also holds) and the readings of the grown tree
+/// (branching angles, transport cost) are there, equal to `grow --json`'s; a record whose
+/// network was edited is measured as it stands. Then `fit` takes the record as its specimen
+/// with those readings (README's fitting example asks for them).
+#[test]
+fn a_looped_leaf_record_keeps_its_run_readings() {
+    let record = TempFile::new("looped", "json");
+    let grown = grow_json(&[
+        "grow",
+        "--preset",
+        "ovate-leaf",
+        "--set",
+        "cells=3000",
+        "--record",
+        record.path(),
+        "--json",
+    ]);
+    let outcome = ramulus(&["measure", record.path(), "--json"]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    let measured: Value = serde_json::from_str(&outcome.stdout).expect("JSON");
+    assert_eq!(measured["digest_matches"], Value::Bool(true));
+    for key in [
+        "vein_density",
+        "areoles",
+        "branching_angle_mean",
+        "transport_cost",
+        "kind",
+    ] {
+        assert!(!grown["metrics"][key].is_null(), "grow gives {key}");
+        assert_eq!(measured["metrics"][key], grown["metrics"][key], "{key}");
+    }
+    // An edited record (one node moved) is no longer the run's network: measured as it stands,
+    // every segment counts and the tree readings are gone.
+    let text = std::fs::read_to_string(record.path()).expect("the record");
+    let mut edited: Value = serde_json::from_str(&text).expect("JSON");
+    let x = edited["nodes"][5][0].as_f64().expect("a node");
+    edited["nodes"][5][0] = serde_json::json!(x + 0.01);
+    let moved = TempFile::new("looped-edited", "json");
+    std::fs::write(moved.path(), edited.to_string()).expect("write");
+    let outcome = ramulus(&["measure", moved.path(), "--json"]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    let as_it_stands: Value = serde_json::from_str(&outcome.stdout).expect("JSON");
+    assert!(as_it_stands["metrics"]["branching_angle_mean"].is_null());
+    assert!(
+        as_it_stands["metrics"]["vein_density"].as_f64()
+            > grown["metrics"]["vein_density"].as_f64(),
+        "the tissue counts once the record is not the run's"
+    );
+    let outcome = ramulus(&[
+        "fit",
+        "--specimen",
+        record.path(),
+        "--preset",
+        "ovate-leaf",
+        "--set",
+        "cells=800",
+        "--fit",
+        "alpha=0.3:0.9",
+        "--match",
+        "transport_cost",
+        "--match",
+        "branching_angle_mean",
+        "--method",
+        "quick",
+        "--simulations",
+        "10",
+        "--accept",
+        "5",
+        "--predictive",
+        "2",
+        "--replicates",
+        "1",
+        "--json",
+    ]);
+    assert!(outcome.success, "{}", outcome.stderr);
+    let fitted: Value = serde_json::from_str(&outcome.stdout).expect("JSON");
+    assert!(fitted.is_object(), "{}", outcome.stdout);
+}
