@@ -258,17 +258,28 @@ fn measure_one(
         let text = String::from_utf8_lossy(&bytes);
         let (record, network) =
             read_record(&text).map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
-        let regrown = crate::record_readings::regrown_metrics(&record, &network);
-        let view = RunView::new(network, &params)
-            .map_err(|error| CliError::Failed(format!("{path}: {error}")))?;
+        let (units, nodes, segments) = (
+            network.units.clone(),
+            network.nodes.len(),
+            network.segment_count(),
+        );
+        // The run's own readings when it is grown again; else the network as it stands.
+        let metrics = match crate::record_readings::regrown_metrics(&record, &network) {
+            Some(metrics) => metrics,
+            None => {
+                RunView::new(network, &params)
+                    .map_err(|error| CliError::Failed(format!("{path}: {error}")))?
+                    .metrics
+            }
+        };
         return Ok(Measured {
             file: path.to_string(),
             format: "record".to_string(),
             specimen: None,
-            units: view.network.units.clone(),
-            nodes: view.network.nodes.len(),
-            segments: view.network.segment_count(),
-            metrics: regrown.unwrap_or(view.metrics),
+            units,
+            nodes,
+            segments,
+            metrics,
             image: None,
         });
     }

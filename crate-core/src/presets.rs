@@ -162,33 +162,37 @@ fn shaped_leaf(shape: LeafShape) -> Params {
         96,
     );
     let cells = (shape.length * shape.width) as u64;
-    cleared_leaf_veins(Params {
-        domain: Domain {
-            width,
-            height,
-            roots: vec![Root {
-                x: width / 2,
-                y: root_y,
-                outflow: [0.0, 1.0],
-            }],
-            outline: Some(outline),
-            front_only: true,
-            midrib: LEAF_MIDRIB,
-            ..leaf_base().domain
+    cleared_leaf_veins(
+        Params {
+            domain: Domain {
+                width,
+                height,
+                roots: vec![Root {
+                    x: width / 2,
+                    y: root_y,
+                    outflow: [0.0, 1.0],
+                }],
+                outline: Some(outline),
+                front_only: true,
+                midrib: LEAF_MIDRIB,
+                ..leaf_base().domain
+            },
+            costs: CostWeights {
+                elongation: shape.elongation,
+                rear_cost: 3.0,
+                branch_angle: Some(shape.branch_angle),
+                ..leaf_base().costs
+            },
+            run: RunControl {
+                seed: shape.seed,
+                cells,
+                ..leaf_base().run
+            },
+            ..leaf_base()
         },
-        costs: CostWeights {
-            elongation: shape.elongation,
-            rear_cost: 3.0,
-            branch_angle: Some(shape.branch_angle),
-            ..leaf_base().costs
-        },
-        run: RunControl {
-            seed: shape.seed,
-            cells,
-            ..leaf_base().run
-        },
-        ..leaf_base()
-    })
+        LEAF_VEIN_AREA,
+        LEAF_RECONNECT,
+    )
 }
 
 /// A blade outline, base at `(centre_x, base_y)`, apex `length` cells up the page, as `points`
@@ -225,26 +229,28 @@ fn blade_outline(
 }
 
 /// Veins apart from tissue and nested loops, as a cleared leaf shows them: every leaf preset
-/// has them. Veins drain at least 0.1 mm² (about 4.4 cells of 0.15 mm): the smallest threshold
-/// at which vein density, areole density, branching angle and free-ending veinlet density
-/// change by under 15 % when the lattice is refined (0.05 mm² moved areole density by 39 %;
-/// below 0.0225 mm², one cell, every cell is a vein and vein density measures the lattice).
-/// The veins measure about 3 mm/mm², at the low end of angiosperm leaves (most between about
-/// 2 and 25 mm/mm², Boyce et al. 2009, Proc. R. Soc. B 276), with areoles of about 0.6 mm².
-/// Five coarser scales of loops with `arches`, so that ends of secondary veins close loops
+/// has them. The shaped leaves' veins drain at least 0.1 mm² (`LEAF_VEIN_AREA`, about 4.4
+/// cells of 0.15 mm): the smallest threshold at which vein density, areole density, branching
+/// angle and free-ending veinlet density change by under 15 % when the lattice is refined
+/// (0.05 mm² moved areole density by 39 %; below 0.0225 mm², one cell, every cell is a vein
+/// and vein density measures the lattice). The veins measure about 3 mm/mm², at the low end of
+/// angiosperm leaves (most between about 2 and 25 mm/mm², Boyce et al. 2009, Proc. R. Soc. B
+/// 276), with areoles of about 0.6 mm². Loops close where the way round is `reconnect` times
+/// the gap, at five coarser scales with `arches`, so that ends of secondary veins close loops
 /// with the next secondary.
-fn cleared_leaf_veins(params: Params) -> Params {
-    cleared_leaf_veins_from(params, 0.1)
-}
-
-/// `cleared_leaf_veins` with veins draining at least `vein_area` (mm²).
-fn cleared_leaf_veins_from(mut params: Params, vein_area: f64) -> Params {
+fn cleared_leaf_veins(mut params: Params, vein_area: f64, reconnect: f64) -> Params {
     params.widths.vein_area = vein_area;
-    params.widths.reconnect = Some(6.0);
+    params.widths.reconnect = Some(reconnect);
     params.widths.loop_levels = 5;
     params.widths.arches = true;
     params
 }
+
+/// Conducting threshold of the shaped leaves, mm² (`cleared_leaf_veins`).
+const LEAF_VEIN_AREA: f64 = 0.1;
+
+/// Loop ratio of the shaped leaves (`cleared_leaf_veins`).
+const LEAF_RECONNECT: f64 = 6.0;
 
 fn ovate_leaf() -> Params {
     shaped_leaf(LeafShape {
@@ -288,7 +294,7 @@ fn lanceolate_leaf() -> Params {
 /// its areoles stay in the range of dicot leaves at that threshold (about 1.2 per mm² against
 /// 0.8 at 6).
 fn filled_outline() -> Params {
-    let mut params = cleared_leaf_veins_from(
+    cleared_leaf_veins(
         Params {
             domain: Domain {
                 width: 200,
@@ -315,9 +321,8 @@ fn filled_outline() -> Params {
             ..leaf_base()
         },
         0.15,
-    );
-    params.widths.reconnect = Some(4.0);
-    params
+        4.0,
+    )
 }
 
 /// A heart-shaped (cordate) outline with its notch at `(centre_x, notch_y)`, `half_width` wide
