@@ -21,13 +21,13 @@ impl Growth {
         let (node_x, node_y) = (node_anchor.x, node_anchor.y);
         // Away from the lattice's edges (nearly every offer) no neighbour needs a bounds test.
         let inside = self.lattice.reaches_inside(column, row);
-        for offset_index in 0..self.lattice.offsets.len() {
+        // Taken out for the walk, so that the walk may change the lattice's states.
+        let spots = std::mem::take(&mut self.lattice.spots);
+        for spot in &spots {
             let (cell, cell_column, cell_row) = if inside {
-                self.lattice
-                    .step_from(centre_cell, column, row, offset_index)
+                self.lattice.step_from(centre_cell, column, row, spot)
             } else {
-                let (dx, dy) = self.lattice.offsets[offset_index];
-                match self.lattice.neighbour_at(column, row, dx, dy) {
+                match self.lattice.neighbour_at(column, row, spot.dx, spot.dy) {
                     Some(found) => found,
                     None => continue,
                 }
@@ -36,13 +36,26 @@ impl Growth {
             if state == BLOCKED || state < FRONTIER_TAG {
                 continue;
             }
-            if let Some(floor) = floor.filter(|_| state != FREE) {
-                let kept = self.frontier.slots[(state & !FRONTIER_TAG) as usize].cost;
-                if floor.at(self.lattice.length_floors[offset_index]) >= kept {
+            let kept = match floor.filter(|_| state != FREE) {
+                Some(floor) => {
+                    let kept = self.frontier.slots[(state & !FRONTIER_TAG) as usize].cost;
+                    if floor.at(spot.length_floor) >= kept {
+                        continue;
+                    }
+                    Some((floor, kept))
+                }
+                None => None,
+            };
+            let (cx, cy) = self.lattice.position_at(cell, cell_column, cell_row);
+            if let Some((floor, kept)) = kept {
+                // The floor again at the very length the cost takes (the same expression from
+                // the same positions): it passes over most kept attachments without pricing
+                // the turn.
+                let (vx, vy) = (node_x - cx, node_y - cy);
+                if floor.at((vx * vx + vy * vy).sqrt()) >= kept {
                     continue;
                 }
             }
-            let (cx, cy) = self.lattice.position_at(cell, cell_column, cell_row);
             let ground = self.cell_ground_remembered(cell, cx, cy);
             let node_clear = !check_clear || !self.meets_blocked((cx, cy), (node_x, node_y));
             let mut found = node_clear.then(|| {
@@ -83,6 +96,7 @@ impl Growth {
                 }
             }
         }
+        self.lattice.spots = spots;
     }
 
     pub(super) fn node_anchor(&self, node: u32) -> Anchor {

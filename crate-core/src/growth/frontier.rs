@@ -3,8 +3,10 @@
 //! in O(log n) and is rebuilt (never patched by subtraction) so sums do not drift.
 //!
 //! Leaf changes are applied to the tree's inner nodes lazily, just before the tree is next
-//! read (`settle`): the inner nodes are a function of the leaves alone, so the answers are the
-//! same as with every change applied at once.
+//! read (`settle_sums`, `settle_costs`): the inner nodes are a function of the leaves alone, so
+//! the answers are the same as with every change applied at once. Weighted and uniform joining
+//! read the sums at every pick but the cheapest cost seldom (`cost_floor` stands in for it), so
+//! the two trees are settled apart.
 
 /// No attachment yet / not a node.
 pub(crate) const NONE: u32 = u32::MAX;
@@ -54,8 +56,14 @@ pub(crate) struct Frontier {
     pub slots: Vec<Slot>,
     free: Vec<u32>,
     live: usize,
-    /// Leaves changed since the inner nodes were last brought up to date.
-    unsettled: Vec<u32>,
+    /// Leaves whose weight changed since the sum tree was last brought up to date (only when
+    /// weights are kept).
+    unsettled_sums: Vec<u32>,
+    /// Leaves whose cost changed since the min tree was last brought up to date.
+    unsettled_costs: Vec<u32>,
+    /// No greater than the cost of any live slot: the cheapest cost when the min tree was last
+    /// settled, lowered by every cost set since (a removal leaves it a floor).
+    cost_floor: f64,
 }
 
 impl Frontier {
@@ -70,7 +78,9 @@ impl Frontier {
             slots: Vec::new(),
             free: Vec::new(),
             live: 0,
-            unsettled: Vec::new(),
+            unsettled_sums: Vec::new(),
+            unsettled_costs: Vec::new(),
+            cost_floor: f64::INFINITY,
         };
         frontier.resize(64);
         frontier
@@ -120,8 +130,13 @@ impl Frontier {
         if self.live == 0 {
             return None;
         }
-        self.settle();
+        self.settle_costs();
         Some((self.cheapest[1].slot, self.cheapest[1].cost))
+    }
+
+    /// A cost no greater than `cheapest()`'s, without settling the min tree.
+    pub fn cost_floor(&self) -> f64 {
+        self.cost_floor
     }
 
     /// Sum of all weights (0 when weights are not kept).
@@ -129,7 +144,7 @@ impl Frontier {
         if !self.keeps_weights {
             return 0.0;
         }
-        self.settle();
+        self.settle_sums();
         self.weights[1]
     }
 
@@ -139,7 +154,7 @@ impl Frontier {
         if !self.keeps_weights {
             return 0;
         }
-        self.settle();
+        self.settle_sums();
         let mut node = 1;
         while node < self.capacity {
             let left = 2 * node;
@@ -177,69 +192,95 @@ impl Frontier {
     fn set_leaf(&mut self, index: u32, cost: f64, weight: f64) {
         let node = self.capacity + index as usize;
         self.cheapest[node] = Cheapest { cost, slot: index };
+        self.cost_floor = self.cost_floor.min(cost);
+        self.unsettled_costs.push(index);
+        if self.unsettled_costs.len() > self.capacity {
+            // A rule that never asks for the cheapest slot would let the list grow without
+            // end: past one entry per slot, recombining the whole tree costs no more.
+            self.rebuild_costs();
+        }
         if self.keeps_weights {
             self.weights[node] = weight;
+            self.unsettled_sums.push(index);
         }
-        self.unsettled.push(index);
     }
 
-    /// Brings the inner nodes up to date: walks from each changed leaf to the root,
-    /// recombining every node on the way. A node's last recombination comes after both of its
-    /// children are final (the last walk through it passes through one child, whose walks are
-    /// all among its own, and every walk through the other child came earlier), so the trees
-    /// are exactly what recombining every inner node would give. A min-tree walk stops at the
-    /// first node whose cheapest cost and slot come out as they were: every walk that changes a
-    /// node (or sets a leaf) goes on to recombine its parent, so the last change to a node's
-    /// children is still followed by its recombination from final children. Sums change
-    /// nearly always, so their walks go to the root without testing.
-    fn settle(&mut self) {
-        if self.unsettled.is_empty() {
+    /// Brings the sum tree up to date: walks from each changed leaf to the root, recombining
+    /// every node on the way. A node's last recombination comes after both of its children are
+    /// final (the last walk through it passes through one child, whose walks are all among its
+    /// own, and every walk through the other child came earlier), so the tree is exactly what
+    /// recombining every inner node would give.
+    fn settle_sums(&mut self) {
+        let capacity = self.capacity;
+        let weights = &mut self.weights[..2 * capacity];
+        for &index in &self.unsettled_sums {
+            // The walk carries the node's new sum up and reads only its sibling: a sum is the
+            // same whichever addend comes first (IEEE 754 addition commutes), so each node gets
+            // the bits of its left child's sum plus its right child's.
+            let mut node = capacity + index as usize;
+            let mut sum = weights[node];
+            while node > 1 {
+                sum += weights[node ^ 1];
+                node /= 2;
+                weights[node] = sum;
+            }
+        }
+        self.unsettled_sums.clear();
+    }
+
+    /// Brings the min tree up to date as `settle_sums` does the sums, except that a walk stops
+    /// at the first node whose cheapest cost and slot come out as they were: every walk that
+    /// changes a node (or sets a leaf) goes on to recombine its parent, so the last change to
+    /// a node's children is still followed by its recombination from final children.
+    fn settle_costs(&mut self) {
+        if self.unsettled_costs.is_empty() {
             return;
         }
         let capacity = self.capacity;
-        if self.keeps_weights {
-            let weights = &mut self.weights;
-            for &index in &self.unsettled {
-                let mut node = (capacity + index as usize) / 2;
-                while node > 0 {
-                    weights[node] = weights[2 * node] + weights[2 * node + 1];
-                    node /= 2;
-                }
-            }
-        }
-        let cheapest = &mut self.cheapest;
-        for &index in &self.unsettled {
-            let mut node = (capacity + index as usize) / 2;
-            while node > 0 {
-                let (left, right) = (cheapest[2 * node], cheapest[2 * node + 1]);
-                let best = if right.cost < left.cost { right } else { left };
+        let cheapest = &mut self.cheapest[..2 * capacity];
+        for &index in &self.unsettled_costs {
+            let mut node = capacity + index as usize;
+            let mut best = cheapest[node];
+            while node > 1 {
+                let sibling = cheapest[node ^ 1];
+                // The left child (the lower slots) wins on equal costs.
+                let (left, right) = if node % 2 == 0 {
+                    (best, sibling)
+                } else {
+                    (sibling, best)
+                };
+                best = if right.cost < left.cost { right } else { left };
+                node /= 2;
                 let before = cheapest[node];
                 if before.cost.to_bits() == best.cost.to_bits() && before.slot == best.slot {
                     break;
                 }
                 cheapest[node] = best;
-                node /= 2;
             }
         }
-        self.unsettled.clear();
+        self.unsettled_costs.clear();
+        self.cost_floor = self.cheapest[1].cost;
     }
 
-    /// The cheapest of a node's two children (the left one, lower slots, on equal costs) and
-    /// the sum of their weights.
-    #[inline]
-    fn combine(&mut self, node: usize) {
-        let (left, right) = (self.cheapest[2 * node], self.cheapest[2 * node + 1]);
-        self.cheapest[node] = if right.cost < left.cost { right } else { left };
-        if self.keeps_weights {
-            self.weights[node] = self.weights[2 * node] + self.weights[2 * node + 1];
-        }
-    }
-
-    fn rebuild_internal(&mut self) {
-        self.unsettled.clear();
+    /// Recombines every inner node of the min tree.
+    fn rebuild_costs(&mut self) {
         for node in (1..self.capacity).rev() {
-            self.combine(node);
+            let (left, right) = (self.cheapest[2 * node], self.cheapest[2 * node + 1]);
+            self.cheapest[node] = if right.cost < left.cost { right } else { left };
         }
+        self.unsettled_costs.clear();
+        self.cost_floor = self.cheapest[1].cost;
+    }
+
+    /// Recombines every inner node of both trees.
+    fn rebuild_internal(&mut self) {
+        self.rebuild_costs();
+        if self.keeps_weights {
+            for node in (1..self.capacity).rev() {
+                self.weights[node] = self.weights[2 * node] + self.weights[2 * node + 1];
+            }
+        }
+        self.unsettled_sums.clear();
     }
 
     fn resize(&mut self, capacity: usize) {

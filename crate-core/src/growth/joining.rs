@@ -48,27 +48,50 @@ impl Growth {
         });
     }
 
+    /// Whether the cheapest cost lies so far below the weights' reference cost that the
+    /// weights must be rescaled. A floor of the cheapest cost that does not lie so far below
+    /// settles it without the cheapest slot: subtracting a greater number and dividing by the
+    /// same positive temperature never gives more (rounding is monotone).
+    fn weights_drifted(&mut self) -> bool {
+        let temperature = self.refined.run.temperature;
+        let far_below = |cheapest: f64, reference: f64| {
+            (reference - cheapest) / temperature > WEIGHT_CEILING_EXPONENT * 0.5
+        };
+        if !far_below(self.frontier.cost_floor(), self.weight_reference) {
+            return false;
+        }
+        match self.frontier.cheapest() {
+            Some((_, cost)) => far_below(cost, self.weight_reference),
+            None => false,
+        }
+    }
+
     /// Picks the next cell by the joining rule, re-checking stale attachments.
     pub(super) fn pick(&mut self) -> Result<(u32, Attachment), StopReason> {
         loop {
-            let Some((cheapest_slot, cheapest_cost)) = self.frontier.cheapest() else {
+            if self.frontier.len() == 0 {
                 return Err(StopReason::Full);
-            };
-            if self
-                .refined
-                .run
-                .threshold
-                .is_some_and(|threshold| cheapest_cost >= threshold)
-            {
-                return Err(StopReason::Threshold);
             }
-            let slot_index = match self.refined.run.joining {
-                Joining::Cheapest => cheapest_slot,
-                Joining::Uniform | Joining::Weighted => {
+            let joining = self.refined.run.joining;
+            let threshold = self.refined.run.threshold;
+            // The cheapest slot is needed by the cheapest rule and by a threshold; weighted
+            // joining needs only to know that weights have not drifted far from the cheapest
+            // cost, which a floor of it tells nearly always.
+            let cheapest = if joining == Joining::Cheapest || threshold.is_some() {
+                self.frontier.cheapest()
+            } else {
+                None
+            };
+            if let (Some((_, cheapest_cost)), Some(threshold)) = (cheapest, threshold) {
+                if cheapest_cost >= threshold {
+                    return Err(StopReason::Threshold);
+                }
+            }
+            let slot_index = match (joining, cheapest) {
+                (Joining::Cheapest, Some((cheapest_slot, _))) => cheapest_slot,
+                _ => {
                     let mut total = self.frontier.total_weight();
-                    let drifted = self.refined.run.joining == Joining::Weighted
-                        && (self.weight_reference - cheapest_cost) / self.refined.run.temperature
-                            > WEIGHT_CEILING_EXPONENT * 0.5;
+                    let drifted = joining == Joining::Weighted && self.weights_drifted();
                     if total <= WEIGHT_FLOOR || !total.is_finite() || drifted {
                         self.reweigh();
                         total = self.frontier.total_weight();

@@ -25,13 +25,22 @@ pub(crate) struct Lattice {
     jitter: Vec<[f32; 2]>,
     /// Offsets `(dx, dy)` with `dx^2 + dy^2 <= radius^2`, nearest first, excluding `(0, 0)`.
     pub offsets: Vec<(i32, i32)>,
-    /// For each offset, the step `dy * width + dx` between the two cells' row-major indices.
-    steps: Vec<isize>,
+    /// `offsets` again, in the same order, with what an offer needs of each (`Spot`).
+    pub spots: Vec<Spot>,
     /// The largest `|dx|` and `|dy|` of the offsets.
     reach: i32,
-    /// For each offset, a length (in cells) no greater than the computed distance between a
-    /// cell's position and any node in the cell at that offset from it (`length_floor`).
-    pub length_floors: Vec<f64>,
+}
+
+/// One offset of the search radius as an offer walks it.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Spot {
+    /// The step `dy * width + dx` between the two cells' row-major indices.
+    pub step: isize,
+    pub dx: i32,
+    pub dy: i32,
+    /// A length (in cells) no greater than the computed distance between a cell's position
+    /// and any node in the cell at this offset from it (`length_floor`).
+    pub length_floor: f64,
 }
 
 impl Lattice {
@@ -82,13 +91,14 @@ impl Lattice {
             params.domain.jitter
         };
         let slack = params.domain.jitter + node_slack;
-        let length_floors = offsets
+        let spots = offsets
             .iter()
-            .map(|&(dx, dy)| length_floor(dx, dy, slack))
-            .collect();
-        let steps = offsets
-            .iter()
-            .map(|&(dx, dy)| dy as isize * width as isize + dx as isize)
+            .map(|&(dx, dy)| Spot {
+                step: dy as isize * width as isize + dx as isize,
+                dx,
+                dy,
+                length_floor: length_floor(dx, dy, slack),
+            })
             .collect();
         Lattice {
             width,
@@ -96,9 +106,8 @@ impl Lattice {
             state,
             jitter,
             offsets,
-            steps,
+            spots,
             reach,
-            length_floors,
         }
     }
 
@@ -159,22 +168,21 @@ impl Lattice {
             && ((row + self.reach) as usize) < self.height
     }
 
-    /// `neighbour_at(column, row, dx, dy)` for offset `offsets[offset_index]` from `cell`, at
-    /// `(column, row)`, when `reaches_inside(column, row)`: no bounds to test.
+    /// `neighbour_at(column, row, spot.dx, spot.dy)` from `cell`, at `(column, row)`, when
+    /// `reaches_inside(column, row)`: no bounds to test.
     #[inline]
     pub fn step_from(
         &self,
         cell: usize,
         column: i32,
         row: i32,
-        offset_index: usize,
+        spot: &Spot,
     ) -> (usize, usize, usize) {
-        let (dx, dy) = self.offsets[offset_index];
         debug_assert!(self.reaches_inside(column, row));
         (
-            cell.wrapping_add_signed(self.steps[offset_index]),
-            (column + dx) as usize,
-            (row + dy) as usize,
+            cell.wrapping_add_signed(spot.step),
+            (column + spot.dx) as usize,
+            (row + spot.dy) as usize,
         )
     }
 
