@@ -5,8 +5,8 @@
 //! Leaf changes are applied to the tree's inner nodes lazily, just before the tree is next
 //! read (`settle_sums`, `settle_costs`): the inner nodes are a function of the leaves alone, so
 //! the answers are the same as with every change applied at once. Weighted and uniform joining
-//! read the sums at every pick but the cheapest cost seldom (`cost_floor` stands in for it), so
-//! the two trees are settled apart.
+//! without a threshold read the sums at every pick but the cheapest slot seldom (`cost_floor`
+//! stands in for it): they keep no min tree and find the cheapest slot by reading every leaf.
 
 /// No attachment yet / not a node.
 pub(crate) const NONE: u32 = u32::MAX;
@@ -52,6 +52,8 @@ pub(crate) struct Frontier {
     weights: Vec<f64>,
     /// Whether weights are kept.
     keeps_weights: bool,
+    /// Whether the min tree's inner nodes are kept; without them `cheapest` reads the leaves.
+    keeps_min_tree: bool,
     /// Slots by index; a free slot has `cell == NONE`.
     pub slots: Vec<Slot>,
     free: Vec<u32>,
@@ -68,13 +70,16 @@ pub(crate) struct Frontier {
 
 impl Frontier {
     /// An empty frontier; `keeps_weights` is false when every weight will be 0 (the cheapest
-    /// rule), so the sum tree is left out and `total_weight` stays 0.
-    pub fn new(keeps_weights: bool) -> Frontier {
+    /// rule), so the sum tree is left out and `total_weight` stays 0; `keeps_min_tree` is false
+    /// when the cheapest slot is asked for seldom, so that reading every leaf then costs less
+    /// than keeping the tree at every change.
+    pub fn new(keeps_weights: bool, keeps_min_tree: bool) -> Frontier {
         let mut frontier = Frontier {
             capacity: 0,
             cheapest: Vec::new(),
             weights: Vec::new(),
             keeps_weights,
+            keeps_min_tree,
             slots: Vec::new(),
             free: Vec::new(),
             live: 0,
@@ -129,6 +134,11 @@ impl Frontier {
     pub fn cheapest(&mut self) -> Option<(u32, f64)> {
         if self.live == 0 {
             return None;
+        }
+        if !self.keeps_min_tree {
+            let best = self.least_leaf();
+            self.cost_floor = best.cost;
+            return Some((best.slot, best.cost));
         }
         self.settle_costs();
         Some((self.cheapest[1].slot, self.cheapest[1].cost))
@@ -193,11 +203,8 @@ impl Frontier {
         let node = self.capacity + index as usize;
         self.cheapest[node] = Cheapest { cost, slot: index };
         self.cost_floor = self.cost_floor.min(cost);
-        self.unsettled_costs.push(index);
-        if self.unsettled_costs.len() > self.capacity {
-            // A rule that never asks for the cheapest slot would let the list grow without
-            // end: past one entry per slot, recombining the whole tree costs no more.
-            self.rebuild_costs();
+        if self.keeps_min_tree {
+            self.unsettled_costs.push(index);
         }
         if self.keeps_weights {
             self.weights[node] = weight;
@@ -244,7 +251,7 @@ impl Frontier {
             while node > 1 {
                 let sibling = cheapest[node ^ 1];
                 // The left child (the lower slots) wins on equal costs.
-                let (left, right) = if node % 2 == 0 {
+                let (left, right) = if node.is_multiple_of(2) {
                     (best, sibling)
                 } else {
                     (sibling, best)
@@ -262,8 +269,23 @@ impl Frontier {
         self.cost_floor = self.cheapest[1].cost;
     }
 
-    /// Recombines every inner node of the min tree.
+    /// The leftmost least leaf, as the min tree's root holds it (ties go left).
+    fn least_leaf(&self) -> Cheapest {
+        let mut best = self.cheapest[self.capacity];
+        for &leaf in &self.cheapest[self.capacity + 1..] {
+            if leaf.cost < best.cost {
+                best = leaf;
+            }
+        }
+        best
+    }
+
+    /// Recombines every inner node of the min tree (when it is kept).
     fn rebuild_costs(&mut self) {
+        if !self.keeps_min_tree {
+            self.cost_floor = self.least_leaf().cost;
+            return;
+        }
         for node in (1..self.capacity).rev() {
             let (left, right) = (self.cheapest[2 * node], self.cheapest[2 * node + 1]);
             self.cheapest[node] = if right.cost < left.cost { right } else { left };
@@ -328,7 +350,7 @@ mod tests {
 
     #[test]
     fn cheapest_follows_updates_and_removals() {
-        let mut frontier = Frontier::new(true);
+        let mut frontier = Frontier::new(true, true);
         let mut ids = Vec::new();
         for cell in 0..100u32 {
             ids.push(frontier.insert(slot(cell, 100.0 - cell as f64), 1.0));
@@ -346,8 +368,8 @@ mod tests {
     /// equal costs, and the sum of the (whole-number, so exactly summed) weights.
     #[test]
     fn lazy_tree_matches_a_direct_scan() {
-        for keeps_weights in [false, true] {
-            let mut frontier = Frontier::new(keeps_weights);
+        for (keeps_weights, keeps_min_tree) in [(false, true), (true, true), (true, false)] {
+            let mut frontier = Frontier::new(keeps_weights, keeps_min_tree);
             let mut weights: Vec<f64> = Vec::new();
             let mut state = 0x9e37_79b9_7f4a_7c15u64;
             let mut next = |bound: u64| {
@@ -413,7 +435,7 @@ mod tests {
     /// whichever leaves changed between reads.
     #[test]
     fn weight_sums_are_pairwise_sums_to_the_bit() {
-        let mut frontier = Frontier::new(true);
+        let mut frontier = Frontier::new(true, true);
         let mut weights: Vec<f64> = Vec::new();
         let mut live: Vec<u32> = Vec::new();
         let mut state = 0x2545_f491_4f6c_dd1du64;
@@ -458,7 +480,7 @@ mod tests {
 
     #[test]
     fn weighted_pick_skips_zero_weights() {
-        let mut frontier = Frontier::new(true);
+        let mut frontier = Frontier::new(true, true);
         for cell in 0..10u32 {
             frontier.insert(slot(cell, 0.0), if cell == 7 { 2.0 } else { 0.0 });
         }

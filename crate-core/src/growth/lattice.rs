@@ -196,8 +196,10 @@ impl Lattice {
     #[inline]
     pub fn position_at(&self, cell: usize, column: usize, row: usize) -> (f64, f64) {
         debug_assert_eq!(cell, row * self.width + column);
-        let column = column as f64 + 0.5;
-        let row = row as f64 + 0.5;
+        // Width and height are `u32`s: through `u32` the conversion to `f64` is one
+        // instruction and exact, as it is from `usize`.
+        let column = f64::from(column as u32) + 0.5;
+        let row = f64::from(row as u32) + 0.5;
         match self.jitter.get(cell) {
             Some(&[dx, dy]) => (column + dx as f64, row + dy as f64),
             None => (column, row),

@@ -89,6 +89,11 @@ pub struct Growth {
     /// Length of each node's segment to its parent as computed when the node was added (0 for
     /// a root), read by the flow refresh while `only_appends` (no split has moved a parent).
     segment_length: Vec<f64>,
+    /// `segment_length` times the marginal transport cost of each node's flow, and the flow
+    /// it was priced at (NaN until first priced), read by the same refresh: a flow that has not
+    /// changed since keeps its product's bits without pricing it again.
+    segment_price: Vec<f64>,
+    priced_flow: Vec<f64>,
     cell_of: Vec<u32>,
     /// Junctions (nodes off the cell centres) in each cell, as linked lists (segments only).
     junction_head: Vec<u32>,
@@ -143,8 +148,10 @@ impl Growth {
             // Errors name the given cells, not the refined ones.
             check_start(given, &allowed_cells(given))?;
         }
-        let params = &refine::refined(given);
-        let allowed = allowed_cells(params);
+        let mut fine = refine::refined(given);
+        let allowed = allowed_cells(&fine);
+        refine::move_roots_inside(&mut fine, given, &allowed);
+        let params = &fine;
         check_start(params, &allowed)?;
         let lattice = Lattice::new(params, &allowed);
         let mut random = ChaCha8Rng::seed_from_u64(params.run.seed);
@@ -154,7 +161,11 @@ impl Growth {
             refined: params.clone(),
             model: CostModel::new(params, given.domain.refine),
             lattice,
-            frontier: Frontier::new(params.run.joining != Joining::Cheapest),
+            frontier: Frontier::new(
+                params.run.joining != Joining::Cheapest,
+                // `pick` asks for the cheapest slot at every step only under these.
+                params.run.joining == Joining::Cheapest || params.run.threshold.is_some(),
+            ),
             random,
             x: Vec::new(),
             y: Vec::new(),
@@ -167,6 +178,8 @@ impl Growth {
             root_of: Vec::new(),
             child_count: Vec::new(),
             segment_length: Vec::new(),
+            segment_price: Vec::new(),
+            priced_flow: Vec::new(),
             cell_of: Vec::new(),
             junction_head: Vec::new(),
             junction_next: Vec::new(),
@@ -391,6 +404,10 @@ impl Growth {
         self.root_of.reserve_exact(count);
         self.child_count.reserve_exact(count);
         self.segment_length.reserve_exact(count);
+        if self.refined.costs.w_flow > 0.0 {
+            self.segment_price.reserve_exact(count);
+            self.priced_flow.reserve_exact(count);
+        }
         self.cell_of.reserve_exact(count);
         if self.refined.run.attach_to_segments {
             self.junction_next.reserve_exact(count);
@@ -442,6 +459,10 @@ impl Growth {
             (vx * vx + vy * vy).sqrt()
         };
         self.segment_length.push(length);
+        if self.refined.costs.w_flow > 0.0 {
+            self.segment_price.push(0.0);
+            self.priced_flow.push(f64::NAN);
+        }
         node
     }
 

@@ -67,6 +67,50 @@ pub(crate) fn refined(params: &Params) -> Params {
     fine
 }
 
+/// Moves each root of `fine` (`refined(given)`) whose fine cell is not allowed to the allowed
+/// fine cell of its coarse cell nearest the coarse centre (ties: the upper row, then the left
+/// column), when there is one. A region edge may cross a coarse root cell so that its centre
+/// cell lies outside while the coarse cell itself counts as inside (its centre is in); such a
+/// run would otherwise be refused only because it is refined. A root whose fine cell is
+/// allowed stays, so every run that started before starts from the same cell.
+pub(crate) fn move_roots_inside(fine: &mut Params, given: &Params, allowed: &[bool]) {
+    let factor = given.domain.refine.max(1);
+    if factor == 1 {
+        return;
+    }
+    let width = fine.domain.width as usize;
+    let is_allowed = |x: u32, y: u32| {
+        allowed
+            .get(y as usize * width + x as usize)
+            .copied()
+            .unwrap_or(false)
+    };
+    for (root, coarse) in fine.domain.roots.iter_mut().zip(&given.domain.roots) {
+        if is_allowed(root.x, root.y) {
+            continue;
+        }
+        let centre = f64::from(factor) / 2.0;
+        let mut nearest: Option<(f64, u32, u32)> = None;
+        for dy in 0..factor {
+            for dx in 0..factor {
+                let (x, y) = (coarse.x * factor + dx, coarse.y * factor + dy);
+                if !is_allowed(x, y) {
+                    continue;
+                }
+                let (ox, oy) = (f64::from(dx) + 0.5 - centre, f64::from(dy) + 0.5 - centre);
+                let distance = ox * ox + oy * oy;
+                if nearest.is_none_or(|(best, _, _)| distance < best) {
+                    nearest = Some((distance, x, y));
+                }
+            }
+        }
+        if let Some((_, x, y)) = nearest {
+            root.x = x;
+            root.y = y;
+        }
+    }
+}
+
 /// A mask whose every pixel becomes `factor x factor` pixels.
 fn upsample(mask: &MaskGrid, bits: &[bool], factor: u32) -> MaskGrid {
     let (width, height) = (mask.width as usize, mask.height as usize);
@@ -116,5 +160,34 @@ mod tests {
             mask.to_bits(),
             Some(vec![true, true, false, false, true, true, false, false])
         );
+    }
+
+    /// A triangle whose long edge runs just above a root's coarse centre, below the centre of
+    /// the fine cell that usually takes the root: the root moves to the nearest allowed fine
+    /// cell of its coarse cell, and the run starts, as it does unrefined.
+    #[test]
+    fn a_root_whose_centre_cell_falls_outside_moves_within_its_cell() {
+        let mut params = Params::default();
+        params.domain.width = 48;
+        params.domain.height = 43;
+        params.domain.jitter = 0.0;
+        params.domain.outline = Some(vec![[1e6, 0.0], [0.0, 41.58], [0.0, 0.0]]);
+        params.domain.roots = vec![Root {
+            x: 0,
+            y: 41,
+            outflow: [0.0, 1.0],
+        }];
+        params.run.cells = 10;
+        assert!(crate::growth::Growth::new(&params).is_ok());
+        params.domain.refine = 4;
+        let mut fine = refined(&params);
+        // Fine cell (2, 166) has its centre at y = 166.5 / 4 = 41.625, above the edge.
+        assert_eq!((fine.domain.roots[0].x, fine.domain.roots[0].y), (2, 166));
+        let allowed = crate::region::allowed_cells(&fine);
+        move_roots_inside(&mut fine, &params, &allowed);
+        // Row 165 (centre 41.375) is inside; of its cells 0..3, 1 and 2 are nearest the
+        // coarse centre (2, 166) and the left one wins the tie.
+        assert_eq!((fine.domain.roots[0].x, fine.domain.roots[0].y), (1, 165));
+        assert!(crate::growth::Growth::new(&params).is_ok());
     }
 }

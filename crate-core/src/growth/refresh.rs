@@ -109,7 +109,8 @@ impl Growth {
     /// order adds them (a parent's children are listed there together, by increasing index).
     /// Transport costs: each node needs only its parent's, which comes first either way; the
     /// segment lengths are those computed when the nodes were added, by the same expression
-    /// from the same positions (no parent has changed since).
+    /// from the same positions (no parent has changed since), and a segment whose flow has the
+    /// bits it was last priced at keeps that price (`segment_price`).
     fn refresh_flows_in_index_order(&mut self) {
         let count = self.x.len();
         if self.zone_of.is_empty() {
@@ -126,23 +127,31 @@ impl Growth {
                 };
             }
         }
+        let parents = &self.parent[..count];
+        let flow = &mut self.flow[..count];
         for node in (0..count).rev() {
-            let parent = self.parent[node];
+            let parent = parents[node];
             if parent != NO_PARENT {
-                self.flow[parent as usize] += self.flow[node];
+                flow[parent as usize] += flow[node];
             }
         }
         let mut marginals = MarginalMemo::new(self.cell_weight, self.refined.costs.alpha);
+        let lengths = &self.segment_length[..count];
+        let prices = &mut self.segment_price[..count];
+        let priced = &mut self.priced_flow[..count];
+        let transport = &mut self.transport[..count];
         for node in 0..count {
-            let parent = self.parent[node];
+            let parent = parents[node];
             debug_assert!(parent == NO_PARENT || (parent as usize) < node);
             if parent == NO_PARENT {
-                self.transport[node] = 0.0;
+                transport[node] = 0.0;
                 continue;
             }
-            let length = self.segment_length[node];
-            self.transport[node] =
-                self.transport[parent as usize] + length * marginals.marginal(self.flow[node]);
+            if flow[node].to_bits() != priced[node].to_bits() {
+                prices[node] = lengths[node] * marginals.marginal(flow[node]);
+                priced[node] = flow[node];
+            }
+            transport[node] = transport[parent as usize] + prices[node];
         }
     }
 }
