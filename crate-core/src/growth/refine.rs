@@ -6,7 +6,8 @@
 //!   the same area), `radius` (by `r`, the same reach), outline, obstacle, runoff-zone and
 //!   spot-level points (by `r`; a level's elevation is kept),
 //!   each mask pixel (becomes `r x r` cells), each root (the fine cell holding the coarse cell's
-//!   centre);
+//!   centre, or, when that one is outside the region, the allowed fine cell of the coarse cell
+//!   nearest its centre: `move_roots_inside`);
 //! - physical already, so kept: `cell_size * width`, grades, runoff, angles, the cost weights,
 //!   `alpha`, `elongation`, `rear_cost`, `threshold`, `temperature`, `vein_area`, the widths
 //!   (`RunView` takes the given parameters, whose `tip_width` and `cell_size` give the same
