@@ -63,8 +63,9 @@ pub(crate) struct Frontier {
     unsettled_sums: Vec<u32>,
     /// Leaves whose cost changed since the min tree was last brought up to date.
     unsettled_costs: Vec<u32>,
-    /// No greater than the cost of any live slot: the cheapest cost when the min tree was last
-    /// settled, lowered by every cost set since (a removal leaves it a floor).
+    /// No greater than the cost of any live slot: the cheapest cost when it was last known
+    /// (the min tree settled or rebuilt, or the leaves read), lowered by every cost set since
+    /// (a removal leaves it a floor).
     cost_floor: f64,
 }
 
@@ -198,7 +199,8 @@ impl Frontier {
         self.rebuild_internal();
     }
 
-    /// Sets one leaf; its ancestors are recombined by the next `settle`.
+    /// Sets one leaf; its ancestors are recombined when their tree is next read (`settle_sums`,
+    /// `settle_costs`).
     fn set_leaf(&mut self, index: u32, cost: f64, weight: f64) {
         let node = self.capacity + index as usize;
         self.cheapest[node] = Cheapest { cost, slot: index };

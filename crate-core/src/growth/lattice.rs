@@ -196,8 +196,8 @@ impl Lattice {
     #[inline]
     pub fn position_at(&self, cell: usize, column: usize, row: usize) -> (f64, f64) {
         debug_assert_eq!(cell, row * self.width + column);
-        // Width and height are `u32`s: through `u32` the conversion to `f64` is one
-        // instruction and exact, as it is from `usize`.
+        // Width and height are `u32`s: through `u32` the conversion to `f64` is shorter than
+        // from `usize` (an unsigned 64-bit integer) and as exact.
         let column = f64::from(column as u32) + 0.5;
         let row = f64::from(row as u32) + 0.5;
         match self.jitter.get(cell) {
