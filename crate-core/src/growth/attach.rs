@@ -220,8 +220,8 @@ impl Growth {
         let (column, row) = self.lattice.column_row(cell);
         let (cx, cy) = self.lattice.position(cell);
         let ground = self.cell_ground(cell, cx, cy);
-        for &(dx, dy) in &self.lattice.offsets {
-            let Some(other) = self.lattice.neighbour(column, row, dx, dy) else {
+        for spot in &self.lattice.spots {
+            let Some(other) = self.lattice.neighbour(column, row, spot.dx, spot.dy) else {
                 continue;
             };
             let state = self.lattice.state[other];

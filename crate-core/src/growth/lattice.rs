@@ -23,9 +23,8 @@ pub(crate) struct Lattice {
     pub state: Vec<u32>,
     /// Jitter of each cell in cells, `[dx, dy]`, each in `[-jitter, jitter)`.
     jitter: Vec<[f32; 2]>,
-    /// Offsets `(dx, dy)` with `dx^2 + dy^2 <= radius^2`, nearest first, excluding `(0, 0)`.
-    pub offsets: Vec<(i32, i32)>,
-    /// `offsets` again, in the same order, with what an offer needs of each (`Spot`).
+    /// The offsets `(dx, dy)` with `dx^2 + dy^2 <= radius^2`, nearest first, excluding
+    /// `(0, 0)`, with what an offer needs of each (`Spot`).
     pub spots: Vec<Spot>,
     /// The largest `|dx|` and `|dy|` of the offsets.
     reach: i32,
@@ -105,7 +104,6 @@ impl Lattice {
             height,
             state,
             jitter,
-            offsets,
             spots,
             reach,
         }
