@@ -14,6 +14,7 @@ mod commands;
 mod drain;
 mod fit_bench;
 mod fit_command;
+mod heap;
 mod identifiability_bench;
 mod image_bench;
 mod interrupt;
@@ -69,6 +70,7 @@ enum Command {
 }
 
 fn main() -> ExitCode {
+    heap::keep_freed_blocks();
     // clap prints help and version on stdout (exit 0) and usage errors on stderr (exit 2).
     let command_line = CommandLine::try_parse().unwrap_or_else(|error| error.exit());
     interrupt::install();
