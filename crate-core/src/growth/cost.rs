@@ -109,6 +109,20 @@ impl CostModel {
         let vx = anchor.x - x;
         let vy = anchor.y - y;
         let length = (vx * vx + vy * vy).sqrt();
+        self.cost_at_length(vx, vy, length, ground, anchor)
+    }
+
+    /// `cost` of a cell from which the anchor lies at `(vx, vy)` = `(anchor.x - x, anchor.y -
+    /// y)`, `length` = `sqrt(vx^2 + vy^2)` apart, as computed by the caller (the same bits).
+    #[inline]
+    pub fn cost_at_length(
+        &self,
+        vx: f64,
+        vy: f64,
+        length: f64,
+        ground: f64,
+        anchor: &Anchor,
+    ) -> f64 {
         let mut cost = self.w_len * (length * self.length_unit);
         if self.length_only {
             return cost;

@@ -4,12 +4,18 @@
 //!
 //! Leaf changes are applied to the tree's inner nodes lazily, just before the tree is next
 //! read (`settle_sums`, `settle_costs`): the inner nodes are a function of the leaves alone, so
-//! the answers are the same as with every change applied at once. Weighted and uniform joining
+//! the answers are the same as with every change applied at once. A leaf's weight is a function
+//! of its cost given by whoever reads the sums (the joining rule), so it too is computed only
+//! then, for every changed leaf in one loop whose exponentials do not wait on each other. Weighted and uniform joining
 //! without a threshold read the sums at every pick but the cheapest slot seldom (`cost_floor`
 //! stands in for it): they keep no min tree and find the cheapest slot by reading every leaf.
 
 /// No attachment yet / not a node.
 pub(crate) const NONE: u32 = u32::MAX;
+
+/// Marks a removed slot in `Frontier::unsettled_sums`: its weight is 0 whatever the rule gives
+/// its cost. Slot indices stay below it (a lattice state holds one beside `FRONTIER_TAG`).
+const REMOVED: u32 = 1 << 31;
 
 /// Where a frontier cell would attach.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -58,8 +64,8 @@ pub(crate) struct Frontier {
     pub slots: Vec<Slot>,
     free: Vec<u32>,
     live: usize,
-    /// Leaves whose weight changed since the sum tree was last brought up to date (only when
-    /// weights are kept).
+    /// Leaves whose cost changed since the sum tree was last brought up to date, in order, a
+    /// removed slot's with `REMOVED` set (only when weights are kept).
     unsettled_sums: Vec<u32>,
     /// Leaves whose cost changed since the min tree was last brought up to date.
     unsettled_costs: Vec<u32>,
@@ -98,7 +104,7 @@ impl Frontier {
     }
 
     /// Adds a cell; returns its slot.
-    pub fn insert(&mut self, slot: Slot, weight: f64) -> u32 {
+    pub fn insert(&mut self, slot: Slot) -> u32 {
         let index = match self.free.pop() {
             Some(index) => index,
             None => {
@@ -111,16 +117,16 @@ impl Frontier {
         };
         self.slots[index as usize] = slot;
         self.live += 1;
-        self.set_leaf(index, slot.cost, weight);
+        self.set_leaf(index, slot.cost);
         index
     }
 
-    /// Changes a slot's attachment, cost and weight.
-    pub fn update(&mut self, index: u32, cost: f64, best: Attachment, weight: f64) {
+    /// Changes a slot's attachment and cost.
+    pub fn update(&mut self, index: u32, cost: f64, best: Attachment) {
         let slot = &mut self.slots[index as usize];
         slot.cost = cost;
         slot.best = best;
-        self.set_leaf(index, cost, weight);
+        self.set_leaf(index, cost);
     }
 
     /// Removes a slot.
@@ -128,7 +134,10 @@ impl Frontier {
         self.slots[index as usize].cell = NONE;
         self.free.push(index);
         self.live -= 1;
-        self.set_leaf(index, f64::INFINITY, 0.0);
+        self.set_leaf(index, f64::INFINITY);
+        if let Some(last) = self.unsettled_sums.last_mut() {
+            *last |= REMOVED;
+        }
     }
 
     /// Cheapest live slot and its cost (ties: lowest slot index).
@@ -150,46 +159,52 @@ impl Frontier {
         self.cost_floor
     }
 
-    /// Sum of all weights (0 when weights are not kept).
-    pub fn total_weight(&mut self) -> f64 {
+    /// Sum of all weights (0 when weights are not kept), a live slot's weight being
+    /// `weight_of(its cost)` (which must not change between reads of the sums but at
+    /// `reweigh`) and an emptied slot's 0.
+    pub fn total_weight(&mut self, weight_of: impl Fn(f64) -> f64) -> f64 {
         if !self.keeps_weights {
             return 0.0;
         }
-        self.settle_sums();
+        self.settle_sums(weight_of);
         self.weights[1]
     }
 
-    /// The slot where the cumulative weight passes `target` (0 <= target < total).
-    /// Never lands on a zero-weight slot while the total is positive.
-    pub fn pick_by_weight(&mut self, mut target: f64) -> u32 {
+    /// The slot where the cumulative weight passes `target` (0 <= target < total), weights
+    /// as `total_weight` gives them. Never lands on a zero-weight slot while the total is
+    /// positive.
+    pub fn pick_by_weight(&mut self, mut target: f64, weight_of: impl Fn(f64) -> f64) -> u32 {
         if !self.keeps_weights {
             return 0;
         }
-        self.settle_sums();
+        self.settle_sums(weight_of);
+        let weights = &self.weights[..2 * self.capacity];
         let mut node = 1;
+        // Without branches: which way the walk turns follows no pattern, and a processor that
+        // guesses a turn wrong throws away the work after it. Turning left takes the left sum
+        // times 0 from the target: +0 (the sum is positive and, below a finite total, finite),
+        // which leaves the target as it is. (A choice between the sum and 0, by `if` or by
+        // masking its bits, is compiled as a branch again.)
         while node < self.capacity {
             let left = 2 * node;
-            let right = left + 1;
-            let left_sum = self.weights[left];
-            if left_sum > 0.0 && (target < left_sum || self.weights[right] <= 0.0) {
-                node = left;
-            } else {
-                target -= left_sum;
-                node = right;
-            }
+            let left_sum = weights[left];
+            let turn_left = (left_sum > 0.0) & ((target < left_sum) | (weights[left + 1] <= 0.0));
+            target -= left_sum * f64::from(u8::from(!turn_left));
+            node = left + usize::from(!turn_left);
         }
         (node - self.capacity) as u32
     }
 
-    /// Sets every leaf's weight from `weight_of(slot)` and rebuilds the trees.
-    pub fn reweigh(&mut self, mut weight_of: impl FnMut(&Slot) -> f64) {
+    /// Sets every live leaf's weight to `weight_of(its cost)` (the rule the sums are read
+    /// with from now on) and rebuilds the trees.
+    pub fn reweigh(&mut self, weight_of: impl Fn(f64) -> f64) {
         for index in 0..self.slots.len() {
             let slot = self.slots[index];
             let leaf = self.capacity + index;
             let (cost, weight) = if slot.cell == NONE {
                 (f64::INFINITY, 0.0)
             } else {
-                (slot.cost, weight_of(&slot))
+                (slot.cost, weight_of(slot.cost))
             };
             self.cheapest[leaf].cost = cost;
             if self.keeps_weights {
@@ -199,9 +214,9 @@ impl Frontier {
         self.rebuild_internal();
     }
 
-    /// Sets one leaf; its ancestors are recombined when their tree is next read (`settle_sums`,
-    /// `settle_costs`).
-    fn set_leaf(&mut self, index: u32, cost: f64, weight: f64) {
+    /// Sets one leaf's cost; its weight is set and its ancestors are recombined when their
+    /// tree is next read (`settle_sums`, `settle_costs`).
+    fn set_leaf(&mut self, index: u32, cost: f64) {
         let node = self.capacity + index as usize;
         self.cheapest[node] = Cheapest { cost, slot: index };
         self.cost_floor = self.cost_floor.min(cost);
@@ -209,20 +224,30 @@ impl Frontier {
             self.unsettled_costs.push(index);
         }
         if self.keeps_weights {
-            self.weights[node] = weight;
             self.unsettled_sums.push(index);
         }
     }
 
-    /// Brings the sum tree up to date: walks from each changed leaf to the root, recombining
-    /// every node on the way. A node's last recombination comes after both of its children are
+    /// Brings the sum tree up to date: sets each changed leaf's weight from its cost, then
+    /// walks from each changed leaf to the root, recombining every node on the way. The last
+    /// change of a leaf decides its weight: an emptied slot's is 0, any other's is its cost's,
+    /// the cost it has now. A node's last recombination comes after both of its children are
     /// final (the last walk through it passes through one child, whose walks are all among its
     /// own, and every walk through the other child came earlier), so the tree is exactly what
     /// recombining every inner node would give.
-    fn settle_sums(&mut self) {
+    fn settle_sums(&mut self, weight_of: impl Fn(f64) -> f64) {
         let capacity = self.capacity;
         let weights = &mut self.weights[..2 * capacity];
-        for &index in &self.unsettled_sums {
+        for &entry in &self.unsettled_sums {
+            let leaf = capacity + (entry & !REMOVED) as usize;
+            weights[leaf] = if entry & REMOVED != 0 {
+                0.0
+            } else {
+                weight_of(self.cheapest[leaf].cost)
+            };
+        }
+        for &entry in &self.unsettled_sums {
+            let index = entry & !REMOVED;
             // The walk carries the node's new sum up and reads only its sibling: a sum is the
             // same whichever addend comes first (IEEE 754 addition commutes), so each node gets
             // the bits of its left child's sum plus its right child's.
@@ -330,7 +355,11 @@ impl Frontier {
         }
         self.capacity = capacity;
         self.cheapest = cheapest;
+        // Changed leaves keep their place in the list (a slot keeps its index): their weights
+        // are set, and the sums on their way to the root recombined, at the next read.
+        let pending = std::mem::take(&mut self.unsettled_sums);
         self.rebuild_internal();
+        self.unsettled_sums = pending;
     }
 }
 
@@ -355,21 +384,49 @@ mod tests {
         let mut frontier = Frontier::new(true, true);
         let mut ids = Vec::new();
         for cell in 0..100u32 {
-            ids.push(frontier.insert(slot(cell, 100.0 - cell as f64), 1.0));
+            ids.push(frontier.insert(slot(cell, 100.0 - cell as f64)));
         }
         assert_eq!(frontier.cheapest().unwrap().1, 1.0);
         frontier.remove(ids[99]);
         assert_eq!(frontier.cheapest().unwrap().1, 2.0);
-        frontier.update(ids[5], -3.0, slot(5, 0.0).best, 1.0);
+        frontier.update(ids[5], -3.0, slot(5, 0.0).best);
         assert_eq!(frontier.cheapest().unwrap(), (ids[5], -3.0));
-        assert_eq!(frontier.total_weight(), 99.0);
+        assert_eq!(frontier.total_weight(|_| 1.0), 99.0);
+    }
+
+    /// Weights are set when the sums are read, from the last change of each slot: a slot
+    /// emptied and filled again in between weighs what its new cost gives, one filled and
+    /// emptied weighs nothing, though the rule gives every cost (an emptied slot's infinite
+    /// one too) a weight of 1.
+    #[test]
+    fn a_slot_weighs_what_its_last_change_gives() {
+        let mut frontier = Frontier::new(true, false);
+        let first = frontier.insert(slot(0, 1.0));
+        let second = frontier.insert(slot(1, 2.0));
+        assert_eq!(frontier.total_weight(|cost| cost), 3.0);
+        frontier.remove(first);
+        let again = frontier.insert(slot(2, 5.0));
+        assert_eq!(again, first, "the emptied slot is taken again");
+        frontier.update(second, 7.0, slot(1, 0.0).best);
+        frontier.remove(second);
+        assert_eq!(frontier.total_weight(|cost| cost), 5.0);
+        assert_eq!(
+            frontier.total_weight(|_| 1.0),
+            5.0,
+            "settled sums stay as read"
+        );
+        frontier.reweigh(|_| 1.0);
+        assert_eq!(frontier.total_weight(|_| 1.0), 1.0);
     }
 
     /// After any mix of inserts, updates and removals, read at any moment, the tree answers
     /// what a direct scan of the live slots gives: the cheapest cost, the lowest slot among
-    /// equal costs, and the sum of the (whole-number, so exactly summed) weights.
+    /// equal costs, and the sum of the (whole-number, so exactly summed) weights. Each cost
+    /// carries its weight in its tens (`weight_of`), so an emptied slot's infinite cost would
+    /// weigh infinitely if it were weighed.
     #[test]
     fn lazy_tree_matches_a_direct_scan() {
+        let weight_of = |cost: f64| (cost / 10.0).floor();
         for (keeps_weights, keeps_min_tree) in [(false, true), (true, true), (true, false)] {
             let mut frontier = Frontier::new(keeps_weights, keeps_min_tree);
             let mut weights: Vec<f64> = Vec::new();
@@ -382,18 +439,18 @@ mod tests {
             };
             let mut live: Vec<u32> = Vec::new();
             for step in 0..5_000u32 {
-                let cost = [1.0, 2f64.sqrt(), 3.0][next(3) as usize];
                 let weight = next(4) as f64;
+                let cost = [1.0, 2f64.sqrt(), 3.0][next(3) as usize] + 10.0 * weight;
                 match next(5) {
                     0 | 1 => {
-                        let index = frontier.insert(slot(step, cost), weight);
+                        let index = frontier.insert(slot(step, cost));
                         weights.resize(weights.len().max(index as usize + 1), 0.0);
                         weights[index as usize] = weight;
                         live.push(index);
                     }
                     2 if !live.is_empty() => {
                         let index = live[next(live.len() as u64) as usize];
-                        frontier.update(index, cost, slot(0, 0.0).best, weight);
+                        frontier.update(index, cost, slot(0, 0.0).best);
                         weights[index as usize] = weight;
                     }
                     3 if !live.is_empty() => {
@@ -416,7 +473,7 @@ mod tests {
                 );
                 let total: f64 = live.iter().map(|&index| weights[index as usize]).sum();
                 let expected_total = if keeps_weights { total } else { 0.0 };
-                assert_eq!(frontier.total_weight(), expected_total);
+                assert_eq!(frontier.total_weight(weight_of), expected_total);
             }
         }
     }
@@ -451,14 +508,14 @@ mod tests {
             let weight = 0.1 * (1 + next(1_000)) as f64 / 7.0;
             match next(4) {
                 0 | 1 => {
-                    let index = frontier.insert(slot(step, 1.0), weight);
+                    let index = frontier.insert(slot(step, weight));
                     weights.resize(weights.len().max(index as usize + 1), 0.0);
                     weights[index as usize] = weight;
                     live.push(index);
                 }
                 2 if !live.is_empty() => {
                     let index = live[next(live.len() as u64) as usize];
-                    frontier.update(index, 1.0, slot(0, 0.0).best, weight);
+                    frontier.update(index, weight, slot(0, 0.0).best);
                     weights[index as usize] = weight;
                 }
                 _ if !live.is_empty() => {
@@ -474,7 +531,7 @@ mod tests {
             let mut padded = weights.clone();
             padded.resize(frontier.capacity, 0.0);
             assert_eq!(
-                frontier.total_weight().to_bits(),
+                frontier.total_weight(|cost| cost).to_bits(),
                 pairwise_sum(&padded).to_bits()
             );
         }
@@ -484,10 +541,10 @@ mod tests {
     fn weighted_pick_skips_zero_weights() {
         let mut frontier = Frontier::new(true, true);
         for cell in 0..10u32 {
-            frontier.insert(slot(cell, 0.0), if cell == 7 { 2.0 } else { 0.0 });
+            frontier.insert(slot(cell, if cell == 7 { 2.0 } else { 0.0 }));
         }
         for step in 0..20 {
-            assert_eq!(frontier.pick_by_weight(step as f64 * 0.1), 7);
+            assert_eq!(frontier.pick_by_weight(step as f64 * 0.1, |cost| cost), 7);
         }
     }
 }

@@ -3,24 +3,60 @@
 
 use super::*;
 
-impl Growth {
-    /// Joining weight of a cost under the current rule (0 when not eligible).
-    pub(super) fn weight(&mut self, cost: f64) -> f64 {
-        if let Some(threshold) = self.refined.run.threshold {
+/// How a frontier cell's cost turns into its joining weight: the joining rule, the threshold
+/// and, for weighted joining, the temperature and the reference cost the weights are taken
+/// against (`exp((reference - cost) / temperature)`).
+#[derive(Clone, Copy)]
+pub(super) struct WeightRule {
+    joining: Joining,
+    threshold: Option<f64>,
+    temperature: f64,
+    reference: f64,
+}
+
+impl WeightRule {
+    /// Joining weight of a cost (0 when not eligible).
+    #[inline]
+    pub fn weight(&self, cost: f64) -> f64 {
+        if let Some(threshold) = self.threshold {
             if cost >= threshold {
                 return 0.0;
             }
         }
-        match self.refined.run.joining {
+        match self.joining {
             Joining::Cheapest => 0.0,
             Joining::Uniform => 1.0,
             Joining::Weighted => {
-                if self.weight_reference.is_nan() {
-                    self.weight_reference = cost;
-                }
-                let exponent = (self.weight_reference - cost) / self.refined.run.temperature;
+                let exponent = (self.reference - cost) / self.temperature;
                 libm::exp(exponent.min(WEIGHT_CEILING_EXPONENT))
             }
+        }
+    }
+}
+
+impl Growth {
+    /// The weight rule as it stands (the frontier weighs its cells by it when it is read).
+    fn weight_rule(&self) -> WeightRule {
+        WeightRule {
+            joining: self.refined.run.joining,
+            threshold: self.refined.run.threshold,
+            temperature: self.refined.run.temperature,
+            reference: self.weight_reference,
+        }
+    }
+
+    /// Notes a cost a frontier cell is about to take (inserted or changed): the first eligible
+    /// one (below the threshold, if any) becomes the weights' reference cost.
+    #[inline]
+    pub(super) fn note_cost(&mut self, cost: f64) {
+        if self.weight_reference.is_nan()
+            && !self
+                .refined
+                .run
+                .threshold
+                .is_some_and(|threshold| cost >= threshold)
+        {
+            self.weight_reference = cost;
         }
     }
 
@@ -30,22 +66,8 @@ impl Growth {
             Some((_, cost)) => cost,
             None => return,
         };
-        let reference = self.weight_reference;
-        let temperature = self.refined.run.temperature;
-        let threshold = self.refined.run.threshold;
-        let joining = self.refined.run.joining;
-        self.frontier.reweigh(|slot| {
-            if threshold.is_some_and(|threshold| slot.cost >= threshold) {
-                return 0.0;
-            }
-            match joining {
-                Joining::Cheapest => 0.0,
-                Joining::Uniform => 1.0,
-                Joining::Weighted => {
-                    libm::exp(((reference - slot.cost) / temperature).min(WEIGHT_CEILING_EXPONENT))
-                }
-            }
-        });
+        let rule = self.weight_rule();
+        self.frontier.reweigh(|cost| rule.weight(cost));
     }
 
     /// Whether the cheapest cost lies so far below the weights' reference cost that the
@@ -90,17 +112,21 @@ impl Growth {
             let slot_index = match (joining, cheapest) {
                 (Joining::Cheapest, Some((cheapest_slot, _))) => cheapest_slot,
                 _ => {
-                    let mut total = self.frontier.total_weight();
+                    let rule = self.weight_rule();
+                    let mut total = self.frontier.total_weight(|cost| rule.weight(cost));
                     let drifted = joining == Joining::Weighted && self.weights_drifted();
                     if total <= WEIGHT_FLOOR || !total.is_finite() || drifted {
                         self.reweigh();
-                        total = self.frontier.total_weight();
+                        let rule = self.weight_rule();
+                        total = self.frontier.total_weight(|cost| rule.weight(cost));
                     }
                     if total <= 0.0 {
                         return Err(StopReason::Threshold);
                     }
                     let target = unit_interval(&mut self.random) * total;
-                    self.frontier.pick_by_weight(target)
+                    let rule = self.weight_rule();
+                    self.frontier
+                        .pick_by_weight(target, |cost| rule.weight(cost))
                 }
             };
             let slot = self.frontier.slots[slot_index as usize];
@@ -139,8 +165,8 @@ impl Growth {
             {
                 return Ok((slot_index, attachment));
             }
-            let weight = self.weight(cost);
-            self.frontier.update(slot_index, cost, attachment, weight);
+            self.note_cost(cost);
+            self.frontier.update(slot_index, cost, attachment);
         }
     }
 }

@@ -14,6 +14,7 @@ mod frontier;
 mod joining;
 mod lattice;
 mod midrib;
+mod offer;
 mod planar;
 mod refine;
 mod refresh;
@@ -128,6 +129,8 @@ pub struct Growth {
     scratch_children: crate::network::Children,
     /// Candidate attachments of one cell, reused by plane growth.
     scratch_candidates: Vec<(f64, Attachment)>,
+    /// The cells within reach of an offered node (`offer`).
+    scratch_reached: Vec<offer::Reached>,
     /// Every segment by the buckets its bounding box touches (plane growth only).
     segment_grid: Option<SegmentGrid>,
     /// The cells near blocked ones (`keep_clear` only, and only when some cell is blocked).
@@ -201,6 +204,7 @@ impl Growth {
             scratch_order: Vec::new(),
             scratch_children: Default::default(),
             scratch_candidates: Vec::new(),
+            scratch_reached: Vec::new(),
             segment_grid: params
                 .run
                 .planar

@@ -1,0 +1,222 @@
+//! Offering a new node to the cells within reach, in three sweeps over the search radius's
+//! spots (nearest first): a sweep without branches keeps the cells that may take the node (free
+//! cells, and frontier cells whose kept cost the node's cost floor at the spot's least length
+//! does not already reach); a second, also without branches, passes over the frontier cells
+//! that the floor at their very length reaches; the last prices the node for the cells left and
+//! inserts or updates them, in the order of the spots.
+//!
+//! Which cells a step of the walk keeps depends only on cell states and kept costs, and no
+//! cell's changes an offer makes touch another cell's, so reading them all first decides the
+//! very cells, in the very order, that deciding cell by cell does. Deciding without branches
+//! matters because the decisions follow no pattern (about half the cells within reach are
+//! taken, and a kept cost is beaten or not as the geometry falls), and a processor that
+//! guesses a branch wrong throws away the work after it.
+
+use super::cost::CostFloor;
+use super::lattice::Spot;
+use super::*;
+
+/// A cell within reach that may take the offered node.
+#[derive(Clone, Copy, Debug, Default)]
+pub(super) struct Reached {
+    cell: u32,
+    state: u32,
+    column: u32,
+    row: u32,
+    /// The cost a frontier cell keeps (its slot's); unused for a free cell.
+    kept: f64,
+    /// The cell's position and its computed distance to the node, once the second sweep has
+    /// computed them.
+    x: f64,
+    y: f64,
+    length: f64,
+}
+
+impl Growth {
+    /// Offers `node` (and its segment, when segments may be joined) to the cells within the
+    /// search radius of `centre_cell`.
+    pub(super) fn offer(&mut self, centre_cell: usize, node: u32) {
+        let node_anchor = self.node_anchor(node);
+        let segment =
+            self.refined.run.attach_to_segments && self.parent[node as usize] != NO_PARENT;
+        // A frontier cell keeps its attachment unless the node is strictly cheaper, so when a
+        // floor of the node's cost is already no cheaper its cost need not be computed.
+        let floor = (!segment && self.model.has_floor()).then(|| self.model.floor(&node_anchor));
+        // Taken out for the sweeps, so that the last may change the lattice's states.
+        let spots = std::mem::take(&mut self.lattice.spots);
+        let mut reached = std::mem::take(&mut self.scratch_reached);
+        reached.resize(spots.len(), Reached::default());
+        let mut count = self.reach_cells(centre_cell, &spots, floor, &mut reached);
+        if let Some(floor) = floor {
+            count = self.pass_reached_floors(&node_anchor, floor, &mut reached[..count]);
+        }
+        let positioned = floor.is_some();
+        self.price_reached(
+            centre_cell,
+            node,
+            &node_anchor,
+            positioned,
+            segment,
+            &reached[..count],
+        );
+        self.scratch_reached = reached;
+        self.lattice.spots = spots;
+    }
+
+    /// The first sweep: writes the cells within reach that may take the node to the front of
+    /// `reached`, in the order of `spots`, and returns how many. A free cell may; a frontier
+    /// cell may unless `floor` at the spot's least length is no cheaper than its kept cost.
+    fn reach_cells(
+        &self,
+        centre_cell: usize,
+        spots: &[Spot],
+        floor: Option<CostFloor>,
+        reached: &mut [Reached],
+    ) -> usize {
+        let (column, row) = self.lattice.column_row(centre_cell);
+        // Away from the lattice's edges (nearly every offer) no neighbour needs a bounds test.
+        let inside = self.lattice.reaches_inside(column, row);
+        let states = &self.lattice.state;
+        let slots = &self.frontier.slots;
+        let mut count = 0;
+        for spot in spots {
+            let (cell, cell_column, cell_row) = if inside {
+                self.lattice.step_from(centre_cell, column, row, spot)
+            } else {
+                match self.lattice.neighbour_at(column, row, spot.dx, spot.dy) {
+                    Some(found) => found,
+                    None => continue,
+                }
+            };
+            let state = states[cell];
+            let free = state == FREE;
+            let frontier = (FRONTIER_TAG..FREE).contains(&state);
+            // Slot 0 stands in for cells that are not on the frontier (read, never used).
+            let slot = if frontier {
+                (state & !FRONTIER_TAG) as usize
+            } else {
+                0
+            };
+            let kept = slots.get(slot).map_or(f64::INFINITY, |slot| slot.cost);
+            let reached_by_floor = match floor {
+                Some(floor) => floor.at(spot.length_floor) >= kept,
+                None => false,
+            };
+            reached[count] = Reached {
+                cell: cell as u32,
+                state,
+                column: cell_column as u32,
+                row: cell_row as u32,
+                kept,
+                ..Reached::default()
+            };
+            count += usize::from(free | (frontier & !reached_by_floor));
+        }
+        count
+    }
+
+    /// The second sweep, with a cost floor: computes each kept cell's position and distance to
+    /// the node and passes over the frontier cells whose kept cost the floor at that very
+    /// length (the length the cost takes, by the same expression from the same positions)
+    /// already reaches; returns how many are left at the front of `reached`.
+    fn pass_reached_floors(
+        &self,
+        node_anchor: &Anchor,
+        floor: CostFloor,
+        reached: &mut [Reached],
+    ) -> usize {
+        let mut count = 0;
+        for index in 0..reached.len() {
+            let cell = reached[index];
+            let (x, y) = self.lattice.position_at(
+                cell.cell as usize,
+                cell.column as usize,
+                cell.row as usize,
+            );
+            let (vx, vy) = (node_anchor.x - x, node_anchor.y - y);
+            let length = (vx * vx + vy * vy).sqrt();
+            let passed = cell.state != FREE && floor.at(length) >= cell.kept;
+            reached[count] = Reached {
+                x,
+                y,
+                length,
+                ..cell
+            };
+            count += usize::from(!passed);
+        }
+        count
+    }
+
+    /// The last sweep: prices the node (and its segment) for each cell left, inserts the free
+    /// ones into the frontier and updates the frontier cells it beats. `positioned` tells
+    /// that the second sweep has computed the cells' positions and lengths.
+    fn price_reached(
+        &mut self,
+        centre_cell: usize,
+        node: u32,
+        node_anchor: &Anchor,
+        positioned: bool,
+        segment: bool,
+        reached: &[Reached],
+    ) {
+        // A copy the loop's writes cannot touch, so its fields stay in registers.
+        let model = self.model;
+        // With `keep_clear`, segments near blocked cells are walked (`meets_blocked`).
+        let check_clear = self.clear_checks(centre_cell);
+        let (node_x, node_y) = (node_anchor.x, node_anchor.y);
+        for cell in reached {
+            let (cx, cy) = if positioned {
+                (cell.x, cell.y)
+            } else {
+                self.lattice.position_at(
+                    cell.cell as usize,
+                    cell.column as usize,
+                    cell.row as usize,
+                )
+            };
+            let ground = self.cell_ground_remembered(cell.cell as usize, cx, cy);
+            let node_clear = !check_clear || !self.meets_blocked((cx, cy), (node_x, node_y));
+            let mut found = node_clear.then(|| {
+                let attachment = Attachment {
+                    target: node,
+                    segment_parent: NONE,
+                    along: 0.0,
+                };
+                let cost = if positioned {
+                    let (vx, vy) = (node_x - cx, node_y - cy);
+                    model.cost_at_length(vx, vy, cell.length, ground, node_anchor)
+                } else {
+                    model.cost(cx, cy, ground, node_anchor)
+                };
+                (cost, attachment)
+            });
+            if segment {
+                if let Some((cost, attachment)) =
+                    self.best_on_segment(cx, cy, ground, node, check_clear)
+                {
+                    if found.is_none_or(|(best_cost, _)| cost < best_cost) {
+                        found = Some((cost, attachment));
+                    }
+                }
+            }
+            // Every way to the node passes over blocked ground: nothing is offered.
+            let Some((best_cost, best)) = found else {
+                continue;
+            };
+            if cell.state == FREE {
+                let slot = Slot {
+                    cell: cell.cell,
+                    cost: best_cost,
+                    best,
+                };
+                self.note_cost(best_cost);
+                let index = self.frontier.insert(slot);
+                self.lattice.state[cell.cell as usize] = FRONTIER_TAG | index;
+            } else if best_cost < cell.kept {
+                self.note_cost(best_cost);
+                self.frontier
+                    .update(cell.state & !FRONTIER_TAG, best_cost, best);
+            }
+        }
+    }
+}
