@@ -135,7 +135,7 @@ impl Growth {
             );
             let (vx, vy) = (node_anchor.x - x, node_anchor.y - y);
             let length = (vx * vx + vy * vy).sqrt();
-            let passed = cell.state != FREE && floor.at(length) >= cell.kept;
+            let passed = (cell.state != FREE) & (floor.at(length) >= cell.kept);
             reached[count] = Reached {
                 x,
                 y,
