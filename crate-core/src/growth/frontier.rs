@@ -198,6 +198,9 @@ impl Frontier {
     /// Sets every live leaf's weight to `weight_of(its cost)` (the rule the sums are read
     /// with from now on) and rebuilds the trees.
     pub fn reweigh(&mut self, weight_of: impl Fn(f64) -> f64) {
+        // The least leaf cost as `least_leaf` finds it (the first leaf's, then any strictly
+        // less), taken on the way; the leaves past the slots are unused (infinite), never less.
+        let mut least = f64::INFINITY;
         for index in 0..self.slots.len() {
             let slot = self.slots[index];
             let leaf = self.capacity + index;
@@ -207,11 +210,17 @@ impl Frontier {
                 (slot.cost, weight_of(slot.cost))
             };
             self.cheapest[leaf].cost = cost;
+            least = if index == 0 || cost < least {
+                cost
+            } else {
+                least
+            };
             if self.keeps_weights {
                 self.weights[leaf] = weight;
             }
         }
-        self.rebuild_internal();
+        self.rebuild_costs_knowing(Some(least));
+        self.rebuild_sums();
     }
 
     /// Sets one leaf's cost; its weight is set and its ancestors are recombined when their
@@ -309,8 +318,13 @@ impl Frontier {
 
     /// Recombines every inner node of the min tree (when it is kept).
     fn rebuild_costs(&mut self) {
+        self.rebuild_costs_knowing(None);
+    }
+
+    /// `rebuild_costs`, given the least leaf cost when it is known (`least_leaf`'s).
+    fn rebuild_costs_knowing(&mut self, least: Option<f64>) {
         if !self.keeps_min_tree {
-            self.cost_floor = self.least_leaf().cost;
+            self.cost_floor = least.unwrap_or_else(|| self.least_leaf().cost);
             return;
         }
         for node in (1..self.capacity).rev() {
@@ -324,6 +338,11 @@ impl Frontier {
     /// Recombines every inner node of both trees.
     fn rebuild_internal(&mut self) {
         self.rebuild_costs();
+        self.rebuild_sums();
+    }
+
+    /// Recombines every inner node of the sum tree (when it is kept).
+    fn rebuild_sums(&mut self) {
         if self.keeps_weights {
             for node in (1..self.capacity).rev() {
                 self.weights[node] = self.weights[2 * node] + self.weights[2 * node + 1];
