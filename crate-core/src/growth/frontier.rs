@@ -6,9 +6,10 @@
 //! read (`settle_sums`, `settle_costs`): the inner nodes are a function of the leaves alone, so
 //! the answers are the same as with every change applied at once. A leaf's weight is a function
 //! of its cost given by whoever reads the sums (the joining rule), so it too is computed only
-//! then, for every changed leaf in one loop whose exponentials do not wait on each other. Weighted and uniform joining
-//! without a threshold read the sums at every pick but the cheapest slot seldom (`cost_floor`
-//! stands in for it): they keep no min tree and find the cheapest slot by reading every leaf.
+//! then, for every changed leaf in one loop whose exponentials do not wait on each other.
+//! Weighted and uniform joining without a threshold read the sums at every pick but the
+//! cheapest slot seldom (`cost_floor` stands in for it): they keep no min tree and find the
+//! cheapest slot by reading every leaf.
 
 /// No attachment yet / not a node.
 pub(crate) const NONE: u32 = u32::MAX;

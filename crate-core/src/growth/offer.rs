@@ -5,9 +5,9 @@
 //! that the floor at their very length reaches; the last prices the node for the cells left and
 //! inserts or updates them, in the order of the spots.
 //!
-//! Which cells a step of the walk keeps depends only on cell states and kept costs, and no
-//! cell's changes an offer makes touch another cell's, so reading them all first decides the
-//! very cells, in the very order, that deciding cell by cell does. Deciding without branches
+//! Which cells are kept depends only on their states and kept costs, and what the last sweep
+//! changes in one cell touches no other cell's, so reading them all first keeps the very
+//! cells, in the very order, that deciding cell by cell does. Deciding without branches
 //! matters because the decisions follow no pattern (about half the cells within reach are
 //! taken, and a kept cost is beaten or not as the geometry falls), and a processor that
 //! guesses a branch wrong throws away the work after it.
