@@ -112,19 +112,18 @@ impl Growth {
             let slot_index = match (joining, cheapest) {
                 (Joining::Cheapest, Some((cheapest_slot, _))) => cheapest_slot,
                 _ => {
-                    let rule = self.weight_rule();
+                    let mut rule = self.weight_rule();
                     let mut total = self.frontier.total_weight(|cost| rule.weight(cost));
                     let drifted = joining == Joining::Weighted && self.weights_drifted();
                     if total <= WEIGHT_FLOOR || !total.is_finite() || drifted {
                         self.reweigh();
-                        let rule = self.weight_rule();
+                        rule = self.weight_rule();
                         total = self.frontier.total_weight(|cost| rule.weight(cost));
                     }
                     if total <= 0.0 {
                         return Err(StopReason::Threshold);
                     }
                     let target = unit_interval(&mut self.random) * total;
-                    let rule = self.weight_rule();
                     self.frontier
                         .pick_by_weight(target, |cost| rule.weight(cost))
                 }

@@ -1,9 +1,10 @@
 //! Offering a new node to the cells within reach, in three sweeps over the search radius's
 //! spots (nearest first): a sweep without branches keeps the cells that may take the node (free
 //! cells, and frontier cells whose kept cost the node's cost floor at the spot's least length
-//! does not already reach); a second, also without branches, passes over the frontier cells
-//! that the floor at their very length reaches; the last prices the node for the cells left and
-//! inserts or updates them, in the order of the spots.
+//! does not already reach); a second, also without branches, computes their positions and
+//! distances to the node and passes over the frontier cells that the floor at their very
+//! length reaches; the last prices the node for the cells left and inserts or updates them, in
+//! the order of the spots.
 //!
 //! Which cells are kept depends only on their states and kept costs, and what the last sweep
 //! changes in one cell touches no other cell's, so reading them all first keeps the very
@@ -25,8 +26,7 @@ pub(super) struct Reached {
     row: u32,
     /// The cost a frontier cell keeps (its slot's); unused for a free cell.
     kept: f64,
-    /// The cell's position and its computed distance to the node, once the second sweep has
-    /// computed them.
+    /// The cell's position and its computed distance to the node (set by the second sweep).
     x: f64,
     y: f64,
     length: f64,
@@ -46,19 +46,9 @@ impl Growth {
         let spots = std::mem::take(&mut self.lattice.spots);
         let mut reached = std::mem::take(&mut self.scratch_reached);
         reached.resize(spots.len(), Reached::default());
-        let mut count = self.reach_cells(centre_cell, &spots, floor, &mut reached);
-        if let Some(floor) = floor {
-            count = self.pass_reached_floors(&node_anchor, floor, &mut reached[..count]);
-        }
-        let positioned = floor.is_some();
-        self.price_reached(
-            centre_cell,
-            node,
-            &node_anchor,
-            positioned,
-            segment,
-            &reached[..count],
-        );
+        let count = self.reach_cells(centre_cell, &spots, floor, &mut reached);
+        let count = self.place_reached(&node_anchor, floor, &mut reached[..count]);
+        self.price_reached(centre_cell, node, &node_anchor, segment, &reached[..count]);
         self.scratch_reached = reached;
         self.lattice.spots = spots;
     }
@@ -115,14 +105,14 @@ impl Growth {
         count
     }
 
-    /// The second sweep, with a cost floor: computes each kept cell's position and distance to
-    /// the node and passes over the frontier cells whose kept cost the floor at that very
+    /// The second sweep: computes each kept cell's position and distance to the node and, with
+    /// a cost floor, passes over the frontier cells whose kept cost the floor at that very
     /// length (the length the cost takes, by the same expression from the same positions)
     /// already reaches; returns how many are left at the front of `reached`.
-    fn pass_reached_floors(
+    fn place_reached(
         &self,
         node_anchor: &Anchor,
-        floor: CostFloor,
+        floor: Option<CostFloor>,
         reached: &mut [Reached],
     ) -> usize {
         let mut count = 0;
@@ -135,7 +125,11 @@ impl Growth {
             );
             let (vx, vy) = (node_anchor.x - x, node_anchor.y - y);
             let length = (vx * vx + vy * vy).sqrt();
-            let passed = (cell.state != FREE) & (floor.at(length) >= cell.kept);
+            let reached_by_floor = match floor {
+                Some(floor) => floor.at(length) >= cell.kept,
+                None => false,
+            };
+            let passed = (cell.state != FREE) & reached_by_floor;
             reached[count] = Reached {
                 x,
                 y,
@@ -148,14 +142,12 @@ impl Growth {
     }
 
     /// The last sweep: prices the node (and its segment) for each cell left, inserts the free
-    /// ones into the frontier and updates the frontier cells it beats. `positioned` tells
-    /// that the second sweep has computed the cells' positions and lengths.
+    /// ones into the frontier and updates the frontier cells it beats.
     fn price_reached(
         &mut self,
         centre_cell: usize,
         node: u32,
         node_anchor: &Anchor,
-        positioned: bool,
         segment: bool,
         reached: &[Reached],
     ) {
@@ -165,15 +157,7 @@ impl Growth {
         let check_clear = self.clear_checks(centre_cell);
         let (node_x, node_y) = (node_anchor.x, node_anchor.y);
         for cell in reached {
-            let (cx, cy) = if positioned {
-                (cell.x, cell.y)
-            } else {
-                self.lattice.position_at(
-                    cell.cell as usize,
-                    cell.column as usize,
-                    cell.row as usize,
-                )
-            };
+            let (cx, cy) = (cell.x, cell.y);
             let ground = self.cell_ground_remembered(cell.cell as usize, cx, cy);
             let node_clear = !check_clear || !self.meets_blocked((cx, cy), (node_x, node_y));
             let mut found = node_clear.then(|| {
@@ -182,12 +166,8 @@ impl Growth {
                     segment_parent: NONE,
                     along: 0.0,
                 };
-                let cost = if positioned {
-                    let (vx, vy) = (node_x - cx, node_y - cy);
-                    model.cost_at_length(vx, vy, cell.length, ground, node_anchor)
-                } else {
-                    model.cost(cx, cy, ground, node_anchor)
-                };
+                let (vx, vy) = (node_x - cx, node_y - cy);
+                let cost = model.cost_at_length(vx, vy, cell.length, ground, node_anchor);
                 (cost, attachment)
             });
             if segment {
