@@ -115,9 +115,8 @@ pub fn grow(options: GrowOptions) -> Result<(), CliError> {
     let mut growth = Growth::new(&params).map_err(|error| CliError::Failed(error.to_string()))?;
     let stopped = growth.run();
     let cell_count = growth.cell_count();
-    let network = growth.network();
     // The grower's lattice and node arrays are not needed past this point.
-    drop(growth);
+    let network = growth.into_network();
     let view = RunView::new(network, &params).map_err(|error| {
         CliError::Failed(format!("internal: grown network is not a forest: {error}"))
     })?;

@@ -179,7 +179,7 @@ pub fn drain(options: DrainOptions) -> Result<(), CliError> {
     }
     let mut growth = Growth::new(&params).map_err(|error| CliError::Failed(error.to_string()))?;
     growth.run();
-    let view = RunView::new(growth.network(), &params)
+    let view = RunView::new(growth.into_network(), &params)
         .map_err(|error| CliError::Failed(format!("internal: {error}")))?;
     let sized =
         size_run(&view, &params, &design).map_err(|error| CliError::Failed(error.to_string()))?;

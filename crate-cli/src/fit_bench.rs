@@ -33,8 +33,8 @@ fn plan(cells: u64, simulations: u32) -> Result<FitPlan, CliError> {
     specimen.run.seed = 3;
     let mut growth = Growth::new(&specimen).map_err(|e| CliError::Failed(e.to_string()))?;
     growth.run();
-    let view =
-        RunView::new(growth.network(), &specimen).map_err(|e| CliError::Failed(e.to_string()))?;
+    let view = RunView::new(growth.into_network(), &specimen)
+        .map_err(|e| CliError::Failed(e.to_string()))?;
     let targets = METRICS
         .iter()
         .map(|key| {

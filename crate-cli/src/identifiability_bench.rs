@@ -105,7 +105,7 @@ pub fn run(quick: bool, as_json: bool) -> Result<(), CliError> {
 fn grow_and_measure(params: &Params, metrics: &[&str]) -> Option<Vec<Option<f64>>> {
     let mut growth = Growth::new(params).ok()?;
     growth.run();
-    let view = RunView::new(growth.network(), params).ok()?;
+    let view = RunView::new(growth.into_network(), params).ok()?;
     Some(metric_values(&view.metrics, metrics))
 }
 

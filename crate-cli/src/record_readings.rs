@@ -24,6 +24,6 @@ pub fn regrown_metrics(record: &RunRecord, network: &Network) -> Option<Metrics>
     }
     let mut growth = Growth::new(params).ok()?;
     growth.run();
-    let view = RunView::new(growth.network(), params).ok()?;
+    let view = RunView::new(growth.into_network(), params).ok()?;
     (view.digest == digest_hex(network)).then_some(view.metrics)
 }

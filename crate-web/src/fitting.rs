@@ -734,7 +734,7 @@ pub fn fit_run_svg(link: &str, colouring: &str) -> Result<String, JsError> {
     let params = decode_link(link).params;
     let mut growth = ramulus_core::growth::Growth::new(&params).map_err(fit_error)?;
     growth.run();
-    let view = RunView::new(growth.network(), &params).map_err(fit_error)?;
+    let view = RunView::new(growth.into_network(), &params).map_err(fit_error)?;
     Ok(ramulus_draw::run_svg(
         &view,
         &params,
@@ -799,7 +799,7 @@ impl FitPicture {
         let params = decode_link(link).params;
         let mut growth = ramulus_core::growth::Growth::new(&params).map_err(fit_error)?;
         growth.run();
-        let view = RunView::new(growth.network(), &params).map_err(fit_error)?;
+        let view = RunView::new(growth.into_network(), &params).map_err(fit_error)?;
         Ok(FitPicture::of_view(&view))
     }
 

@@ -372,6 +372,12 @@ proptest! {
         let mut again = Growth::new(&params).expect("valid parameters are accepted");
         again.run();
         prop_assert_eq!(digest_hex(&again.network()), digest_hex(&a));
+        // Consuming the grower (it frees the lattice and the growth-only arrays first) gives
+        // the very network `network()` gives.
+        let consumed = again.into_network();
+        prop_assert_eq!(node_bits(&consumed), node_bits(&a));
+        prop_assert_eq!(&consumed.cells, &a.cells);
+        prop_assert_eq!(consumed.area.to_bits(), a.area.to_bits());
 
         // A stopped grower stays stopped and adds nothing.
         let report = whole.step(5);

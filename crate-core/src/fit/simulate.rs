@@ -16,7 +16,7 @@ pub fn run_job(plan: &FitPlan, job: &Job) -> Outcome {
             let params = plan.params_for(&job.values, seed);
             let measured = Growth::new(&params).ok().and_then(|mut growth| {
                 growth.run();
-                RunView::new(growth.network(), &params).ok()
+                RunView::new(growth.into_network(), &params).ok()
             });
             plan.targets
                 .iter()

@@ -26,6 +26,9 @@ pub(crate) struct Lattice {
     /// The offsets `(dx, dy)` with `dx^2 + dy^2 <= radius^2`, nearest first, excluding
     /// `(0, 0)`, with what an offer needs of each (`Spot`).
     pub spots: Vec<Spot>,
+    /// The distinct length floors of the offsets (`Spot::floor_index`), nearest first: an
+    /// offer works out its node's cost floor once for each.
+    pub spot_floors: Vec<f64>,
     /// The largest `|dx|` and `|dy|` of the offsets.
     reach: i32,
 }
@@ -37,12 +40,22 @@ pub(crate) struct Spot {
     pub step: isize,
     pub dx: i32,
     pub dy: i32,
-    /// A length (in cells) no greater than the computed distance between a cell's position
-    /// and any node in the cell at this offset from it (`length_floor`).
-    pub length_floor: f64,
+    /// Where `Lattice::spot_floors` holds this offset's length floor: a length (in cells) no
+    /// greater than the computed distance between a cell's position and any node in the cell
+    /// at this offset from it (`length_floor`). Offsets that differ only in sign or order
+    /// share one.
+    pub floor_index: u32,
 }
 
 impl Lattice {
+    /// Frees the states, jitters and offsets (growth is over; `Growth::into_network`).
+    pub fn release(&mut self) {
+        self.state = Vec::new();
+        self.jitter = Vec::new();
+        self.spots = Vec::new();
+        self.spot_floors = Vec::new();
+    }
+
     /// Builds the lattice; the jitter comes from ChaCha8 stream 0 of the seed, in row-major
     /// order, two draws a cell.
     pub fn new(params: &Params, allowed: &[bool]) -> Lattice {
@@ -90,13 +103,27 @@ impl Lattice {
             params.domain.jitter
         };
         let slack = params.domain.jitter + node_slack;
+        let mut spot_floors: Vec<f64> = Vec::new();
         let spots = offsets
             .iter()
-            .map(|&(dx, dy)| Spot {
-                step: dy as isize * width as isize + dx as isize,
-                dx,
-                dy,
-                length_floor: length_floor(dx, dy, slack),
+            .map(|&(dx, dy)| {
+                let floor = length_floor(dx, dy, slack);
+                let floor_index = match spot_floors
+                    .iter()
+                    .position(|known| known.to_bits() == floor.to_bits())
+                {
+                    Some(index) => index,
+                    None => {
+                        spot_floors.push(floor);
+                        spot_floors.len() - 1
+                    }
+                };
+                Spot {
+                    step: dy as isize * width as isize + dx as isize,
+                    dx,
+                    dy,
+                    floor_index: floor_index as u32,
+                }
             })
             .collect();
         Lattice {
@@ -105,6 +132,7 @@ impl Lattice {
             state,
             jitter,
             spots,
+            spot_floors,
             reach,
         }
     }

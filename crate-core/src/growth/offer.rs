@@ -42,11 +42,20 @@ impl Growth {
         // A frontier cell keeps its attachment unless the node is strictly cheaper, so when a
         // floor of the node's cost is already no cheaper its cost need not be computed.
         let floor = (!segment && self.model.has_floor()).then(|| self.model.floor(&node_anchor));
+        // The floor at each distinct least length of the spots; NaN, which no comparison
+        // finds reached, without a floor.
+        let mut floor_costs = std::mem::take(&mut self.scratch_floor_costs);
+        floor_costs.clear();
+        floor_costs.extend(self.lattice.spot_floors.iter().map(|&length| match floor {
+            Some(floor) => floor.at(length),
+            None => f64::NAN,
+        }));
         // Taken out for the sweeps, so that the last may change the lattice's states.
         let spots = std::mem::take(&mut self.lattice.spots);
         let mut reached = std::mem::take(&mut self.scratch_reached);
         reached.resize(spots.len(), Reached::default());
-        let count = self.reach_cells(centre_cell, &spots, floor, &mut reached);
+        let count = self.reach_cells(centre_cell, &spots, &floor_costs, &mut reached);
+        self.scratch_floor_costs = floor_costs;
         let count = self.place_reached(&node_anchor, floor, &mut reached[..count]);
         self.price_reached(centre_cell, node, &node_anchor, segment, &reached[..count]);
         self.scratch_reached = reached;
@@ -55,12 +64,13 @@ impl Growth {
 
     /// The first sweep: writes the cells within reach that may take the node to the front of
     /// `reached`, in the order of `spots`, and returns how many. A free cell may; a frontier
-    /// cell may unless `floor` at the spot's least length is no cheaper than its kept cost.
+    /// cell may unless the node's cost floor at the spot's least length (`floor_costs`, by
+    /// `Spot::floor_index`) is no cheaper than its kept cost.
     fn reach_cells(
         &self,
         centre_cell: usize,
         spots: &[Spot],
-        floor: Option<CostFloor>,
+        floor_costs: &[f64],
         reached: &mut [Reached],
     ) -> usize {
         let (column, row) = self.lattice.column_row(centre_cell);
@@ -88,10 +98,7 @@ impl Growth {
                 0
             };
             let kept = slots.get(slot).map_or(f64::INFINITY, |slot| slot.cost);
-            let reached_by_floor = match floor {
-                Some(floor) => floor.at(spot.length_floor) >= kept,
-                None => false,
-            };
+            let reached_by_floor = floor_costs[spot.floor_index as usize] >= kept;
             reached[count] = Reached {
                 cell: cell as u32,
                 state,
