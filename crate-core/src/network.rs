@@ -344,11 +344,23 @@ impl Network {
             return Err(TopologyError::Cycle { node });
         }
         let mut flow: Vec<f64> = self.nodes.iter().map(|node| node.weight).collect();
-        for &node in order.iter().rev() {
-            let down = parent[node as usize];
+        // Each parent receives its children's flows, each final, in decreasing index order:
+        // the reversed breadth-first order lists a parent's children together in that order
+        // after everything upstream of them. When every parent comes before its children, so
+        // does plain decreasing index order, to the same bits, reading the arrays in turn.
+        let mut add_into_parent = |node: usize| {
+            let down = parent[node];
             if down != NO_PARENT {
-                flow[down as usize] += flow[node as usize];
+                flow[down as usize] += flow[node];
             }
+        };
+        if parents_first(&parent) {
+            (0..count).rev().for_each(&mut add_into_parent);
+        } else {
+            order
+                .iter()
+                .rev()
+                .for_each(|&node| add_into_parent(node as usize));
         }
         let length = (0..count)
             .map(|index| match parent[index] {
@@ -384,6 +396,21 @@ impl Topology {
     pub fn is_root(&self, node: usize) -> bool {
         self.parent.get(node).is_none_or(|&up| up == NO_PARENT)
     }
+
+    /// Whether every node's parent has a lower index (as in a grown tree whose segments were
+    /// never split): then increasing index order is also a parents-first order, and a pass
+    /// may walk the arrays in turn instead of in `order`, where that gives the same bits.
+    pub fn parents_first(&self) -> bool {
+        parents_first(&self.parent)
+    }
+}
+
+/// `Topology::parents_first` of a parent list.
+fn parents_first(parent: &[u32]) -> bool {
+    parent
+        .iter()
+        .enumerate()
+        .all(|(node, &up)| up == NO_PARENT || (up as usize) < node)
 }
 
 #[cfg(test)]

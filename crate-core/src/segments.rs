@@ -250,9 +250,10 @@ pub fn strahler_orders(network: &Network, topology: &Topology) -> Vec<u32> {
     let mut upstream = vec![0u32; count];
     // Children come after parents in `topology.order`, so the reverse visits every child
     // before its parent: each node's own order is settled when it is reached, and it passes
-    // it to its parent at once.
-    for &node in topology.order.iter().rev() {
-        let node = node as usize;
+    // it to its parent at once. What a parent is passed does not depend on the order its
+    // children come in, so with every parent before its children by index, decreasing index
+    // order serves as well and reads the arrays in turn.
+    let mut settle = |node: usize| {
         let seen = upstream[node];
         let own = match (seen >> 2, seen & 3) {
             (0, _) => 1,
@@ -261,7 +262,7 @@ pub fn strahler_orders(network: &Network, topology: &Topology) -> Vec<u32> {
         };
         order[node] = own;
         let Some(&parent) = topology.parent.get(node) else {
-            continue;
+            return;
         };
         if let Some(slot) = upstream.get_mut(parent as usize) {
             let highest = *slot >> 2;
@@ -270,6 +271,13 @@ pub fn strahler_orders(network: &Network, topology: &Topology) -> Vec<u32> {
             } else if own == highest {
                 *slot = own << 2 | 2;
             }
+        }
+    };
+    if topology.parents_first() && topology.parent.len() == count {
+        (0..count).rev().for_each(&mut settle);
+    } else {
+        for &node in topology.order.iter().rev() {
+            settle(node as usize);
         }
     }
     order

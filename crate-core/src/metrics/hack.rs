@@ -2,7 +2,7 @@
 //! area, fitted on logarithms over every segment.
 
 use super::regression::fit_line;
-use crate::network::{Network, Topology};
+use crate::network::{Network, Topology, NO_PARENT};
 
 /// Least-squares slope of `ln(longest upstream length)` on `ln(upstream area)`.
 ///
@@ -69,6 +69,9 @@ impl LogMemo {
 /// Longest path length from any upstream tip down to the downstream end of each segment
 /// (for a root: down to the root itself).
 fn longest_upstream_lengths(network: &Network, topology: &Topology) -> Vec<f64> {
+    if topology.parents_first() {
+        return longest_upstream_lengths_by_index(network, topology);
+    }
     let mut longest = vec![0.0f64; network.nodes.len()];
     // Children follow their parents in `topology.order`, so the reverse visits them first.
     for &node in topology.order.iter().rev() {
@@ -82,6 +85,28 @@ fn longest_upstream_lengths(network: &Network, topology: &Topology) -> Vec<f64> 
         let own_length = topology.length.get(node).copied().unwrap_or(0.0);
         if let Some(slot) = longest.get_mut(node) {
             *slot = own_length + upstream;
+        }
+    }
+    longest
+}
+
+/// `longest_upstream_lengths` when every parent has a lower index: walking nodes from the
+/// last down, each node's children (higher indices) are done before it, and each hands its
+/// length up to its parent by `max`. The largest of the children's lengths is the same
+/// whichever order they come in (`f64::max` passes over NaN either way, and no length is -0:
+/// lengths are sums of `hypot`s from +0), so the lengths have the very bits of the walk in
+/// reverse breadth-first order.
+fn longest_upstream_lengths_by_index(network: &Network, topology: &Topology) -> Vec<f64> {
+    let count = network.nodes.len();
+    // The largest upstream length handed in so far, then the node's own longest length.
+    let mut longest = vec![0.0f64; count];
+    for node in (0..count).rev() {
+        let own_length = topology.length.get(node).copied().unwrap_or(0.0);
+        let value = own_length + longest[node];
+        longest[node] = value;
+        let parent = topology.parent.get(node).copied().unwrap_or(NO_PARENT);
+        if let Some(slot) = longest.get_mut(parent as usize) {
+            *slot = slot.max(value);
         }
     }
     longest

@@ -28,7 +28,9 @@ pub(crate) fn streams_by_order(
     topology: &Topology,
     orders: &[u32],
 ) -> Vec<StreamOrder> {
-    // Order -> (stream count, total length of segments).
+    // Order -> (stream count, total length of segments): by index for the orders a network
+    // can have (order w needs at least 2^(w - 1) tips), in a map for any others.
+    let mut low_orders = [(0u64, 0.0f64); LOW_ORDERS];
     let mut per_order: BTreeMap<u32, (u64, f64)> = BTreeMap::new();
     for index in 0..network.nodes.len() {
         if topology.is_root(index) {
@@ -42,14 +44,19 @@ pub(crate) fn streams_by_order(
                 .iter()
                 .any(|&child| orders.get(child as usize) == Some(&order))
         });
-        let entry = per_order.entry(order).or_insert((0, 0.0));
+        let entry = match low_orders.get_mut(order as usize) {
+            Some(entry) => entry,
+            None => per_order.entry(order).or_insert((0, 0.0)),
+        };
         if !continues_a_stream {
             entry.0 += 1;
         }
         entry.1 += topology.length.get(index).copied().unwrap_or(0.0);
     }
-    per_order
-        .into_iter()
+    // Lowest first: the orders kept by index all lie below those in the map.
+    (0u32..)
+        .zip(low_orders)
+        .chain(per_order)
         .filter(|&(_, (stream_count, _))| stream_count > 0)
         .map(|(order, (stream_count, total_length))| StreamOrder {
             order,
@@ -58,6 +65,9 @@ pub(crate) fn streams_by_order(
         })
         .collect()
 }
+
+/// Orders counted by index in `streams_by_order` (0 to 63).
+const LOW_ORDERS: usize = 64;
 
 /// Fits `log10 N_w` and `log10 L_w` against `w` by least squares over the given orders.
 pub(crate) fn horton_ratios(streams: &[StreamOrder]) -> HortonRatios {

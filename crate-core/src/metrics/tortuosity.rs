@@ -5,15 +5,48 @@ use crate::network::{Network, Topology};
 
 /// Mean over nodes with positive weight and positive straight distance to their root of
 /// `path length to the root / straight distance to the root`; `None` when no node qualifies.
+/// The ratios are summed in `topology.order`.
 pub(crate) fn mean_tortuosity(network: &Network, topology: &Topology) -> Option<f64> {
+    let node_count = network.nodes.len();
+    // Each node's ratio does not depend on the order nodes are visited in, as long as parents
+    // come first: with parents first by index, the arrays are read in turn.
+    let ratios = if topology.parents_first() {
+        ratios_visiting(network, topology, 0..node_count)
+    } else {
+        ratios_visiting(
+            network,
+            topology,
+            topology.order.iter().map(|&node| node as usize),
+        )
+    };
+    let mut ratio_sum = 0.0;
+    let mut ratio_count = 0u64;
+    for &node in &topology.order {
+        let ratio = ratios.get(node as usize).copied().unwrap_or(NOT_COUNTED);
+        if ratio != NOT_COUNTED {
+            ratio_sum += ratio;
+            ratio_count += 1;
+        }
+    }
+    (ratio_count > 0).then(|| ratio_sum / ratio_count as f64)
+}
+
+/// Marks a node whose ratio does not count (a root, no weight, or no straight distance); a
+/// ratio itself is never negative (a length over a positive distance), though it may be NaN.
+const NOT_COUNTED: f64 = -1.0;
+
+/// Each node's ratio (or `NOT_COUNTED`), visiting the nodes in `visit`, which must list every
+/// parent before its children.
+fn ratios_visiting(
+    network: &Network,
+    topology: &Topology,
+    visit: impl Iterator<Item = usize>,
+) -> Vec<f64> {
     let node_count = network.nodes.len();
     let mut path_length = vec![0.0f64; node_count];
     let mut root_of: Vec<usize> = (0..node_count).collect();
-    let mut ratio_sum = 0.0;
-    let mut ratio_count = 0u64;
-    // Parents come before children in `topology.order`, so each parent is final when read.
-    for &node in &topology.order {
-        let node = node as usize;
+    let mut ratios = vec![NOT_COUNTED; node_count];
+    for node in visit {
         let Some(current) = network.nodes.get(node) else {
             continue;
         };
@@ -31,9 +64,8 @@ pub(crate) fn mean_tortuosity(network: &Network, topology: &Topology) -> Option<
         };
         let straight = crate::fast_libm::hypot(current.x - root_node.x, current.y - root_node.y);
         if current.weight > 0.0 && straight > 0.0 {
-            ratio_sum += path_length[node] / straight;
-            ratio_count += 1;
+            ratios[node] = path_length[node] / straight;
         }
     }
-    (ratio_count > 0).then(|| ratio_sum / ratio_count as f64)
+    ratios
 }
