@@ -413,6 +413,27 @@ fn parents_first(parent: &[u32]) -> bool {
         .all(|(node, &up)| up == NO_PARENT || (up as usize) < node)
 }
 
+/// Grown networks for tests of the passes over a forest.
+#[cfg(test)]
+pub(crate) mod grown_for_tests {
+    use super::Network;
+
+    /// The network of the ovate leaf preset grown to `cells` cells with `seed`: a tree whose
+    /// parents all have lower indices than their children (no segment is split).
+    pub(crate) fn leaf_tree(cells: u64, seed: u64) -> Network {
+        let mut params = crate::presets::preset("ovate-leaf").unwrap_or_default();
+        params.run.cells = cells;
+        params.run.seed = seed;
+        match crate::growth::Growth::new(&params) {
+            Ok(mut growth) => {
+                growth.run();
+                growth.into_network()
+            }
+            Err(error) => panic!("the preset is valid: {error}"),
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -491,5 +512,26 @@ mod tests {
             circle.topology(),
             Err(TopologyError::Cycle { .. })
         ));
+    }
+
+    /// On a grown tree (parents before children by index) the flows walked by index are the
+    /// flows walked in reverse breadth-first order, the definition, bit for bit: each parent
+    /// receives its children's final flows in decreasing index order either way.
+    #[test]
+    fn flows_by_index_equal_flows_by_order_on_a_grown_tree() {
+        for seed in [1, 2] {
+            let network = super::grown_for_tests::leaf_tree(3_000, seed);
+            let topology = network.topology().unwrap_or_else(|error| panic!("{error}"));
+            assert!(topology.parents_first());
+            let mut by_order: Vec<f64> = network.nodes.iter().map(|node| node.weight).collect();
+            for &node in topology.order.iter().rev() {
+                let down = topology.parent[node as usize];
+                if down != NO_PARENT {
+                    by_order[down as usize] += by_order[node as usize];
+                }
+            }
+            let bits = |flows: &[f64]| flows.iter().map(|flow| flow.to_bits()).collect::<Vec<_>>();
+            assert_eq!(bits(&topology.flow), bits(&by_order));
+        }
     }
 }

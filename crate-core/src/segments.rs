@@ -303,4 +303,38 @@ mod tests {
             );
         }
     }
+
+    /// Strahler orders do not depend on how nodes are numbered: on a grown tree (walked by
+    /// index) and on the same tree numbered backwards (no parent before its children, so walked
+    /// in reverse breadth-first order) every segment gets the same order.
+    #[test]
+    fn strahler_orders_do_not_depend_on_numbering() {
+        let network = crate::network::grown_for_tests::leaf_tree(3_000, 1);
+        let topology = network.topology().unwrap_or_else(|error| panic!("{error}"));
+        assert!(topology.parents_first());
+        let count = network.nodes.len() as u32;
+        let renumber = |node: u32| count - 1 - node;
+        let mut backwards = network.clone();
+        backwards.nodes.reverse();
+        for segment in &mut backwards.segments {
+            *segment = crate::network::Segment {
+                from: renumber(segment.from),
+                to: renumber(segment.to),
+            };
+        }
+        let backwards_topology = backwards
+            .topology()
+            .unwrap_or_else(|error| panic!("{error}"));
+        assert!(!backwards_topology.parents_first());
+        let orders = strahler_orders(&network, &topology);
+        let backwards_orders = strahler_orders(&backwards, &backwards_topology);
+        for node in 0..count {
+            assert_eq!(
+                orders[node as usize],
+                backwards_orders[renumber(node) as usize]
+            );
+        }
+        // The tree branches to order 3 at least, so the comparison covers merging orders.
+        assert!(orders.iter().copied().max().unwrap_or(0) >= 3);
+    }
 }

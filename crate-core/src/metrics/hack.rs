@@ -70,8 +70,14 @@ impl LogMemo {
 /// (for a root: down to the root itself).
 fn longest_upstream_lengths(network: &Network, topology: &Topology) -> Vec<f64> {
     if topology.parents_first() {
-        return longest_upstream_lengths_by_index(network, topology);
+        longest_upstream_lengths_by_index(network, topology)
+    } else {
+        longest_upstream_lengths_by_order(network, topology)
     }
+}
+
+/// `longest_upstream_lengths` in reverse breadth-first order (any forest).
+fn longest_upstream_lengths_by_order(network: &Network, topology: &Topology) -> Vec<f64> {
     let mut longest = vec![0.0f64; network.nodes.len()];
     // Children follow their parents in `topology.order`, so the reverse visits them first.
     for &node in topology.order.iter().rev() {
@@ -126,5 +132,22 @@ mod tests {
             assert_eq!(memo.ln(value).to_bits(), libm::log(value).to_bits());
         }
         assert_eq!(memo.ln(0.0), f64::NEG_INFINITY);
+    }
+
+    /// On grown trees the lengths handed up by index have the bits of the walk in reverse
+    /// breadth-first order (the definition).
+    #[test]
+    fn longest_lengths_by_index_equal_those_by_order() {
+        for seed in [1, 2] {
+            let network = crate::network::grown_for_tests::leaf_tree(3_000, seed);
+            let topology = network.topology().unwrap_or_else(|error| panic!("{error}"));
+            assert!(topology.parents_first());
+            let bits = |lengths: Vec<f64>| lengths.iter().map(|l| l.to_bits()).collect::<Vec<_>>();
+            let by_index = bits(longest_upstream_lengths_by_index(&network, &topology));
+            let by_order = bits(longest_upstream_lengths_by_order(&network, &topology));
+            assert_eq!(by_index, by_order);
+            // A tip's longest length is its own segment's; the root's covers the network.
+            assert!(by_index.iter().any(|&l| f64::from_bits(l) > 0.0));
+        }
     }
 }

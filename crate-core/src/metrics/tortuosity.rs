@@ -69,3 +69,35 @@ fn ratios_visiting(
     }
     ratios
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// On grown trees each node's ratio comes out with the same bits whether the nodes are
+    /// visited by index or in breadth-first order (both put parents first).
+    #[test]
+    fn ratios_by_index_equal_ratios_by_order() {
+        for seed in [1, 2] {
+            let network = crate::network::grown_for_tests::leaf_tree(3_000, seed);
+            let topology = network.topology().unwrap_or_else(|error| panic!("{error}"));
+            assert!(topology.parents_first());
+            let count = network.nodes.len();
+            let bits = |ratios: Vec<f64>| ratios.iter().map(|r| r.to_bits()).collect::<Vec<_>>();
+            let by_index = bits(ratios_visiting(&network, &topology, 0..count));
+            let order = topology.order.iter().map(|&node| node as usize);
+            let by_order = bits(ratios_visiting(&network, &topology, order));
+            assert_eq!(by_index, by_order);
+            // Every node but the root counts (each carries a cell's weight and lies away from
+            // the root), and no path is shorter than the straight line (the triangle
+            // inequality: ratio at least 1, to rounding).
+            let counted: Vec<f64> = by_index
+                .iter()
+                .map(|&r| f64::from_bits(r))
+                .filter(|&r| r != NOT_COUNTED)
+                .collect();
+            assert_eq!(counted.len(), count - 1);
+            assert!(counted.iter().all(|&r| r >= 1.0 - 1e-12));
+        }
+    }
+}
