@@ -413,23 +413,50 @@ fn parents_first(parent: &[u32]) -> bool {
         .all(|(node, &up)| up == NO_PARENT || (up as usize) < node)
 }
 
-/// Grown networks for tests of the passes over a forest.
+/// Trees for tests of the passes over a forest, built without the growth engine (which the
+/// modules those passes live in do not use).
 #[cfg(test)]
-pub(crate) mod grown_for_tests {
-    use super::Network;
+pub(crate) mod trees_for_tests {
+    use super::{segments_from_parents, CellSet, Network, Node, NO_PARENT};
 
-    /// The network of the ovate leaf preset grown to `cells` cells with `seed`: a tree whose
-    /// parents all have lower indices than their children (no segment is split).
-    pub(crate) fn leaf_tree(cells: u64, seed: u64) -> Network {
-        let mut params = crate::presets::preset("ovate-leaf").unwrap_or_default();
-        params.run.cells = cells;
-        params.run.seed = seed;
-        match crate::growth::Growth::new(&params) {
-            Ok(mut growth) => {
-                growth.run();
-                growth.into_network()
-            }
-            Err(error) => panic!("the preset is valid: {error}"),
+    /// A tree of `count` nodes whose parents all have lower indices, as growth makes them:
+    /// node 0 is the root at the origin; each later node hangs off one of the 40 nodes before
+    /// it (picked by a 64-bit linear congruential generator from `seed`, Knuth's MMIX
+    /// constants), one step away, always to the right, so no node lies on the root. Weights
+    /// lie between 0.5 and 1.5 and are not whole, so sums of them round differently in
+    /// different orders.
+    pub(crate) fn parents_first_tree(count: usize, seed: u64) -> Network {
+        let mut state = seed;
+        let mut draw = move || {
+            state = state
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1_442_695_040_888_963_407);
+            (state >> 33) as f64 / (1u64 << 31) as f64
+        };
+        let mut nodes = vec![Node {
+            x: 0.0,
+            y: 0.0,
+            weight: 0.5 + draw(),
+        }];
+        let mut parents = vec![NO_PARENT];
+        for index in 1..count {
+            let back = 1 + (draw() * index.min(40) as f64) as usize;
+            let parent = index - back.min(index);
+            let (dx, dy) = (0.2 + draw(), draw() - 0.5);
+            nodes.push(Node {
+                x: nodes[parent].x + dx,
+                y: nodes[parent].y + dy,
+                weight: 0.5 + draw(),
+            });
+            parents.push(parent as u32);
+        }
+        Network {
+            nodes,
+            segments: segments_from_parents(&parents),
+            area: count as f64,
+            units: "mm".into(),
+            cell_size: 0.0,
+            cells: CellSet::default(),
         }
     }
 }
@@ -514,13 +541,13 @@ mod tests {
         ));
     }
 
-    /// On a grown tree (parents before children by index) the flows walked by index are the
+    /// On a tree with parents before children by index, the flows walked by index are the
     /// flows walked in reverse breadth-first order, the definition, bit for bit: each parent
     /// receives its children's final flows in decreasing index order either way.
     #[test]
-    fn flows_by_index_equal_flows_by_order_on_a_grown_tree() {
+    fn flows_by_index_equal_flows_by_order_on_a_parents_first_tree() {
         for seed in [1, 2] {
-            let network = super::grown_for_tests::leaf_tree(3_000, seed);
+            let network = super::trees_for_tests::parents_first_tree(3_000, seed);
             let topology = network.topology().unwrap_or_else(|error| panic!("{error}"));
             assert!(topology.parents_first());
             let mut by_order: Vec<f64> = network.nodes.iter().map(|node| node.weight).collect();

@@ -304,12 +304,12 @@ mod tests {
         }
     }
 
-    /// Strahler orders do not depend on how nodes are numbered: on a grown tree (walked by
-    /// index) and on the same tree numbered backwards (no parent before its children, so walked
+    /// Strahler orders do not depend on how nodes are numbered: on a parents-first tree (walked
+    /// by index) and on the same tree numbered backwards (no parent before its children, so walked
     /// in reverse breadth-first order) every segment gets the same order.
     #[test]
     fn strahler_orders_do_not_depend_on_numbering() {
-        let network = crate::network::grown_for_tests::leaf_tree(3_000, 1);
+        let network = crate::network::trees_for_tests::parents_first_tree(3_000, 1);
         let topology = network.topology().unwrap_or_else(|error| panic!("{error}"));
         assert!(topology.parents_first());
         let count = network.nodes.len() as u32;

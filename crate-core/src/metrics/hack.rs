@@ -134,12 +134,12 @@ mod tests {
         assert_eq!(memo.ln(0.0), f64::NEG_INFINITY);
     }
 
-    /// On grown trees the lengths handed up by index have the bits of the walk in reverse
+    /// On trees with parents first by index, the lengths handed up by index have the bits of the walk in reverse
     /// breadth-first order (the definition).
     #[test]
     fn longest_lengths_by_index_equal_those_by_order() {
         for seed in [1, 2] {
-            let network = crate::network::grown_for_tests::leaf_tree(3_000, seed);
+            let network = crate::network::trees_for_tests::parents_first_tree(3_000, seed);
             let topology = network.topology().unwrap_or_else(|error| panic!("{error}"));
             assert!(topology.parents_first());
             let bits = |lengths: Vec<f64>| lengths.iter().map(|l| l.to_bits()).collect::<Vec<_>>();

@@ -74,12 +74,12 @@ fn ratios_visiting(
 mod tests {
     use super::*;
 
-    /// On grown trees each node's ratio comes out with the same bits whether the nodes are
+    /// On trees with parents first by index, each node's ratio comes out with the same bits whether the nodes are
     /// visited by index or in breadth-first order (both put parents first).
     #[test]
     fn ratios_by_index_equal_ratios_by_order() {
         for seed in [1, 2] {
-            let network = crate::network::grown_for_tests::leaf_tree(3_000, seed);
+            let network = crate::network::trees_for_tests::parents_first_tree(3_000, seed);
             let topology = network.topology().unwrap_or_else(|error| panic!("{error}"));
             assert!(topology.parents_first());
             let count = network.nodes.len();
@@ -88,8 +88,7 @@ mod tests {
             let order = topology.order.iter().map(|&node| node as usize);
             let by_order = bits(ratios_visiting(&network, &topology, order));
             assert_eq!(by_index, by_order);
-            // Every node but the root counts (each carries a cell's weight and lies away from
-            // the root), and no path is shorter than the straight line (the triangle
+            // Every node but the root counts (each has weight and lies right of the root), and no path is shorter than the straight line (the triangle
             // inequality: ratio at least 1, to rounding).
             let counted: Vec<f64> = by_index
                 .iter()
