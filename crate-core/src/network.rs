@@ -417,7 +417,20 @@ fn parents_first(parent: &[u32]) -> bool {
 /// modules those passes live in do not use).
 #[cfg(test)]
 pub(crate) mod trees_for_tests {
-    use super::{segments_from_parents, CellSet, Network, Node, NO_PARENT};
+    use super::{segments_from_parents, CellSet, Network, Node, Topology, NO_PARENT};
+
+    /// `parents_first_tree` and its forest view, which must find the parents first.
+    pub(crate) fn parents_first_forest(count: usize, seed: u64) -> (Network, Topology) {
+        let network = parents_first_tree(count, seed);
+        let topology = network.topology().unwrap_or_else(|error| panic!("{error}"));
+        assert!(topology.parents_first());
+        (network, topology)
+    }
+
+    /// The bits of each value, to compare results bit for bit.
+    pub(crate) fn bits(values: &[f64]) -> Vec<u64> {
+        values.iter().map(|value| value.to_bits()).collect()
+    }
 
     /// A tree of `count` nodes whose parents all have lower indices, as growth makes them:
     /// node 0 is the root at the origin; each later node hangs off one of the 40 nodes before
@@ -547,9 +560,7 @@ mod tests {
     #[test]
     fn flows_by_index_equal_flows_by_order_on_a_parents_first_tree() {
         for seed in [1, 2] {
-            let network = super::trees_for_tests::parents_first_tree(3_000, seed);
-            let topology = network.topology().unwrap_or_else(|error| panic!("{error}"));
-            assert!(topology.parents_first());
+            let (network, topology) = super::trees_for_tests::parents_first_forest(3_000, seed);
             let mut by_order: Vec<f64> = network.nodes.iter().map(|node| node.weight).collect();
             for &node in topology.order.iter().rev() {
                 let down = topology.parent[node as usize];
@@ -557,8 +568,10 @@ mod tests {
                     by_order[down as usize] += by_order[node as usize];
                 }
             }
-            let bits = |flows: &[f64]| flows.iter().map(|flow| flow.to_bits()).collect::<Vec<_>>();
-            assert_eq!(bits(&topology.flow), bits(&by_order));
+            assert_eq!(
+                super::trees_for_tests::bits(&topology.flow),
+                super::trees_for_tests::bits(&by_order)
+            );
         }
     }
 }

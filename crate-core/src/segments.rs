@@ -309,9 +309,7 @@ mod tests {
     /// in reverse breadth-first order) every segment gets the same order.
     #[test]
     fn strahler_orders_do_not_depend_on_numbering() {
-        let network = crate::network::trees_for_tests::parents_first_tree(3_000, 1);
-        let topology = network.topology().unwrap_or_else(|error| panic!("{error}"));
-        assert!(topology.parents_first());
+        let (network, topology) = crate::network::trees_for_tests::parents_first_forest(3_000, 1);
         let count = network.nodes.len() as u32;
         let renumber = |node: u32| count - 1 - node;
         let mut backwards = network.clone();

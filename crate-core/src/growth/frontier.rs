@@ -317,12 +317,8 @@ impl Frontier {
         best
     }
 
-    /// Recombines every inner node of the min tree (when it is kept).
-    fn rebuild_costs(&mut self) {
-        self.rebuild_costs_knowing(None);
-    }
-
-    /// `rebuild_costs`, given the least leaf cost when it is known (`least_leaf`'s).
+    /// Recombines every inner node of the min tree (when it is kept); `least` is the least
+    /// leaf cost when it is already known (`least_leaf`'s).
     fn rebuild_costs_knowing(&mut self, least: Option<f64>) {
         if !self.keeps_min_tree {
             self.cost_floor = least.unwrap_or_else(|| self.least_leaf().cost);
@@ -338,7 +334,7 @@ impl Frontier {
 
     /// Recombines every inner node of both trees.
     fn rebuild_internal(&mut self) {
-        self.rebuild_costs();
+        self.rebuild_costs_knowing(None);
         self.rebuild_sums();
     }
 

@@ -134,17 +134,15 @@ mod tests {
         assert_eq!(memo.ln(0.0), f64::NEG_INFINITY);
     }
 
-    /// On trees with parents first by index, the lengths handed up by index have the bits of the walk in reverse
-    /// breadth-first order (the definition).
+    /// On trees with parents first by index, the lengths handed up by index have the bits of
+    /// the walk in reverse breadth-first order (the definition).
     #[test]
     fn longest_lengths_by_index_equal_those_by_order() {
+        use crate::network::trees_for_tests::{bits, parents_first_forest};
         for seed in [1, 2] {
-            let network = crate::network::trees_for_tests::parents_first_tree(3_000, seed);
-            let topology = network.topology().unwrap_or_else(|error| panic!("{error}"));
-            assert!(topology.parents_first());
-            let bits = |lengths: Vec<f64>| lengths.iter().map(|l| l.to_bits()).collect::<Vec<_>>();
-            let by_index = bits(longest_upstream_lengths_by_index(&network, &topology));
-            let by_order = bits(longest_upstream_lengths_by_order(&network, &topology));
+            let (network, topology) = parents_first_forest(3_000, seed);
+            let by_index = bits(&longest_upstream_lengths_by_index(&network, &topology));
+            let by_order = bits(&longest_upstream_lengths_by_order(&network, &topology));
             assert_eq!(by_index, by_order);
             // A tip's longest length is its own segment's; the root's covers the network.
             assert!(by_index.iter().any(|&l| f64::from_bits(l) > 0.0));

@@ -74,22 +74,22 @@ fn ratios_visiting(
 mod tests {
     use super::*;
 
-    /// On trees with parents first by index, each node's ratio comes out with the same bits whether the nodes are
-    /// visited by index or in breadth-first order (both put parents first).
+    /// On trees with parents first by index, each node's ratio comes out with the same bits
+    /// whether the nodes are visited by index or in breadth-first order (both put parents
+    /// first).
     #[test]
     fn ratios_by_index_equal_ratios_by_order() {
+        use crate::network::trees_for_tests::{bits, parents_first_forest};
         for seed in [1, 2] {
-            let network = crate::network::trees_for_tests::parents_first_tree(3_000, seed);
-            let topology = network.topology().unwrap_or_else(|error| panic!("{error}"));
-            assert!(topology.parents_first());
+            let (network, topology) = parents_first_forest(3_000, seed);
             let count = network.nodes.len();
-            let bits = |ratios: Vec<f64>| ratios.iter().map(|r| r.to_bits()).collect::<Vec<_>>();
-            let by_index = bits(ratios_visiting(&network, &topology, 0..count));
+            let by_index = bits(&ratios_visiting(&network, &topology, 0..count));
             let order = topology.order.iter().map(|&node| node as usize);
-            let by_order = bits(ratios_visiting(&network, &topology, order));
+            let by_order = bits(&ratios_visiting(&network, &topology, order));
             assert_eq!(by_index, by_order);
-            // Every node but the root counts (each has weight and lies right of the root), and no path is shorter than the straight line (the triangle
-            // inequality: ratio at least 1, to rounding).
+            // Every node but the root counts (each has weight and lies right of the root), and
+            // no path is shorter than the straight line (the triangle inequality: ratio at
+            // least 1, to rounding).
             let counted: Vec<f64> = by_index
                 .iter()
                 .map(|&r| f64::from_bits(r))
