@@ -6,17 +6,18 @@ use super::*;
 impl Growth {
     pub(super) fn node_anchor(&self, node: u32) -> Anchor {
         let index = node as usize;
-        let (axis_x, axis_y) = self.axes[self.root_of[index] as usize];
+        let record = &self.nodes[index];
+        let (axis_x, axis_y) = self.axes[record.root as usize];
         Anchor {
-            x: self.x[index],
-            y: self.y[index],
-            down_x: self.down_x[index],
-            down_y: self.down_y[index],
-            dist: self.dist[index],
+            x: record.x,
+            y: record.y,
+            down_x: record.down_x,
+            down_y: record.down_y,
+            dist: record.dist,
             transport: self.transport[index],
             axis_x,
             axis_y,
-            is_tip: self.child_count[index] == 0,
+            is_tip: record.children == 0,
             ground: self.node_ground.get(index).copied().unwrap_or(0.0),
         }
     }
@@ -25,18 +26,19 @@ impl Growth {
     pub(super) fn segment_anchor(&self, node: u32, along: f64) -> Anchor {
         let index = node as usize;
         let parent = self.parent[index] as usize;
-        let x = self.x[index] + along * (self.x[parent] - self.x[index]);
-        let y = self.y[index] + along * (self.y[parent] - self.y[index]);
-        let (axis_x, axis_y) = self.axes[self.root_of[index] as usize];
-        let to_parent_x = self.x[parent] - x;
-        let to_parent_y = self.y[parent] - y;
+        let (near, far) = (&self.nodes[index], &self.nodes[parent]);
+        let x = near.x + along * (far.x - near.x);
+        let y = near.y + along * (far.y - near.y);
+        let (axis_x, axis_y) = self.axes[near.root as usize];
+        let to_parent_x = far.x - x;
+        let to_parent_y = far.y - y;
         let rest = (to_parent_x * to_parent_x + to_parent_y * to_parent_y).sqrt();
         Anchor {
             x,
             y,
-            down_x: self.down_x[index],
-            down_y: self.down_y[index],
-            dist: self.dist[parent]
+            down_x: near.down_x,
+            down_y: near.down_y,
+            dist: far.dist
                 + self
                     .model
                     .supply_length(to_parent_x, to_parent_y, axis_x, axis_y),
@@ -69,8 +71,8 @@ impl Growth {
         if parent == NO_PARENT {
             return None;
         }
-        let (ax, ay) = (self.x[index], self.y[index]);
-        let (bx, by) = (self.x[parent as usize], self.y[parent as usize]);
+        let (ax, ay) = (self.nodes[index].x, self.nodes[index].y);
+        let (bx, by) = (self.nodes[parent as usize].x, self.nodes[parent as usize].y);
         let (sx, sy) = (bx - ax, by - ay);
         let squared = sx * sx + sy * sy;
         if squared <= 0.0 {
@@ -142,11 +144,10 @@ impl Growth {
             for (kind, &first) in candidates.iter().enumerate() {
                 let mut node = first;
                 while node != NONE {
-                    let index = node as usize;
-                    if !check_clear || !self.meets_blocked((cx, cy), (self.x[index], self.y[index]))
-                    {
+                    let (x, y) = (self.nodes[node as usize].x, self.nodes[node as usize].y);
+                    if !check_clear || !self.meets_blocked((cx, cy), (x, y)) {
                         let cost = if self.model.length_only {
-                            self.model.length_cost(cx, cy, self.x[index], self.y[index])
+                            self.model.length_cost(cx, cy, x, y)
                         } else {
                             self.model.cost(cx, cy, ground, &self.node_anchor(node))
                         };

@@ -7,8 +7,8 @@ impl Growth {
     /// The point a cell would join for `attachment`: a node, or a point inside a segment.
     pub(super) fn attachment_point(&self, attachment: Attachment) -> (f64, f64) {
         if attachment.segment_parent == NONE {
-            let index = attachment.target as usize;
-            (self.x[index], self.y[index])
+            let node = &self.nodes[attachment.target as usize];
+            (node.x, node.y)
         } else {
             let anchor = self.segment_anchor(attachment.target, attachment.along);
             (anchor.x, anchor.y)
@@ -46,8 +46,8 @@ impl Growth {
         if parent == NO_PARENT {
             return false;
         }
-        let near = (self.x[node as usize], self.y[node as usize]);
-        let far = (self.x[parent as usize], self.y[parent as usize]);
+        let (near, far) = (&self.nodes[node as usize], &self.nodes[parent as usize]);
+        let (near, far) = ((near.x, near.y), (far.x, far.y));
         if attachment.segment_parent != NONE {
             // The split segment is the one joined; after the split its two halves end at the
             // junction, which lies on the new segment's end.
@@ -105,7 +105,8 @@ impl Growth {
             return;
         }
         let (n, p) = (node as usize, parent as usize);
-        grid.insert(node, (self.x[n], self.y[n]), (self.x[p], self.y[p]));
+        let (near, far) = (&self.nodes[n], &self.nodes[p]);
+        grid.insert(node, (near.x, near.y), (far.x, far.y));
     }
 }
 

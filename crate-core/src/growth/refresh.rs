@@ -10,7 +10,7 @@ impl Growth {
         if self.refined.costs.w_flow == 0.0 {
             return;
         }
-        let nodes = self.x.len();
+        let nodes = self.nodes.len();
         let due = self.last_refresh_nodes as f64 * (1.0 + self.refined.run.refresh);
         if (nodes as f64) < due.max(self.last_refresh_nodes as f64 + 8.0) {
             return;
@@ -56,7 +56,7 @@ impl Growth {
             self.refresh_flows_in_index_order();
             return;
         }
-        let count = self.x.len();
+        let count = self.nodes.len();
         // Children in compressed rows, then a breadth-first order from the roots.
         self.scratch_children
             .rebuild(self.parent.iter().copied(), count);
@@ -94,7 +94,8 @@ impl Growth {
                 continue;
             }
             let parent = parent as usize;
-            let (vx, vy) = (self.x[parent] - self.x[node], self.y[parent] - self.y[node]);
+            let (near, far) = (&self.nodes[node], &self.nodes[parent]);
+            let (vx, vy) = (far.x - near.x, far.y - near.y);
             let length = (vx * vx + vy * vy).sqrt();
             self.transport[node] =
                 self.transport[parent] + length * marginals.marginal(self.flow[node]);
@@ -112,7 +113,7 @@ impl Growth {
     /// from the same positions (no parent has changed since), and a segment whose flow has the
     /// bits it was last priced at keeps that price (`segment_price`).
     fn refresh_flows_in_index_order(&mut self) {
-        let count = self.x.len();
+        let count = self.nodes.len();
         if self.zone_of.is_empty() {
             // Every cell weighs `cell_weight` (`own_weight`): a plain fill.
             let weight = self.cell_weight;
