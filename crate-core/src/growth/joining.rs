@@ -135,7 +135,7 @@ impl Growth {
             let mut found = if self.stale_costs {
                 self.best_from_scratch(slot.cell as usize)
             } else {
-                Some((slot.cost, slot.best))
+                Some((self.frontier.costs[slot_index as usize], slot.best))
             };
             if self.refined.run.planar {
                 let cell = slot.cell as usize;
@@ -154,7 +154,7 @@ impl Growth {
                 }
                 return Ok((slot_index, slot.best));
             };
-            let still_valid = cost <= slot.cost + 1e-12;
+            let still_valid = cost <= self.frontier.costs[slot_index as usize] + 1e-12;
             if still_valid
                 && !self
                     .refined

@@ -77,7 +77,7 @@ impl Growth {
         // Away from the lattice's edges (nearly every offer) no neighbour needs a bounds test.
         let inside = self.lattice.reaches_inside(column, row);
         let states = &self.lattice.state;
-        let slots = &self.frontier.slots;
+        let costs = &self.frontier.costs;
         let mut count = 0;
         for spot in spots {
             let (cell, cell_column, cell_row) = if inside {
@@ -97,16 +97,15 @@ impl Growth {
             } else {
                 0
             };
-            let kept = slots.get(slot).map_or(f64::INFINITY, |slot| slot.cost);
+            let kept = costs.get(slot).copied().unwrap_or(f64::INFINITY);
             let reached_by_floor = floor_costs[spot.floor_index as usize] >= kept;
-            reached[count] = Reached {
-                cell: cell as u32,
-                state,
-                column: cell_column as u32,
-                row: cell_row as u32,
-                kept,
-                ..Reached::default()
-            };
+            // Only what this sweep knows: the second sweep sets the rest.
+            let entry = &mut reached[count];
+            entry.cell = cell as u32;
+            entry.state = state;
+            entry.column = cell_column as u32;
+            entry.row = cell_row as u32;
+            entry.kept = kept;
             count += usize::from(free | (frontier & !reached_by_floor));
         }
         count
@@ -193,11 +192,10 @@ impl Growth {
             if cell.state == FREE {
                 let slot = Slot {
                     cell: cell.cell,
-                    cost: best_cost,
                     best,
                 };
                 self.note_cost(best_cost);
-                let index = self.frontier.insert(slot);
+                let index = self.frontier.insert(slot, best_cost);
                 self.lattice.state[cell.cell as usize] = FRONTIER_TAG | index;
             } else if best_cost < cell.kept {
                 self.note_cost(best_cost);

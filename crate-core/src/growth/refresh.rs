@@ -46,7 +46,7 @@ impl Growth {
                     &self.segment_anchor(best.target, best.along),
                 )
             };
-            self.frontier.slots[index].cost = cost;
+            self.frontier.costs[index] = cost;
         }
         self.reweigh();
     }
