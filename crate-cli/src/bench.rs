@@ -36,6 +36,20 @@ unsafe impl GlobalAlloc for CountingAllocator {
         unsafe { System.dealloc(pointer, layout) };
         CURRENT.fetch_sub(layout.size(), Ordering::Relaxed);
     }
+
+    /// The system's own `realloc`, which grows a block in place or remaps it where it can,
+    /// instead of the default's new block, copy and free (a growing vector's every doubling
+    /// would touch fresh pages and copy). The peak counts both blocks for the moment, as a move
+    /// would hold both.
+    unsafe fn realloc(&self, pointer: *mut u8, layout: Layout, new_size: usize) -> *mut u8 {
+        let moved = unsafe { System.realloc(pointer, layout, new_size) };
+        if !moved.is_null() {
+            let now = CURRENT.fetch_add(new_size, Ordering::Relaxed) + new_size;
+            PEAK.fetch_max(now, Ordering::Relaxed);
+            CURRENT.fetch_sub(layout.size(), Ordering::Relaxed);
+        }
+        moved
+    }
 }
 
 struct Case {
@@ -516,7 +530,7 @@ fn full_model_command_figures(cells: u64, rounds: usize) -> Result<(), CliError>
     let names = [
         "set-up (Growth::new: lattice, jitter, frontier)",
         "growth (Growth::run)",
-        "network handed over (Growth::network)",
+        "network handed over (Growth::into_network)",
         "pipeline (topology, widths, metrics, digest)",
         "JSON text",
         "whole",
@@ -530,8 +544,7 @@ fn full_model_command_figures(cells: u64, rounds: usize) -> Result<(), CliError>
         let stopped = growth.run();
         let grown = start.elapsed().as_secs_f64();
         let cell_count = growth.cell_count();
-        let network = growth.network();
-        drop(growth);
+        let network = growth.into_network();
         let handed = start.elapsed().as_secs_f64();
         let view = ramulus_core::run::RunView::new(network, &params)
             .map_err(|error| CliError::Failed(error.to_string()))?;
