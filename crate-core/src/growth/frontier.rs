@@ -409,6 +409,18 @@ impl Frontier {
 mod tests {
     use super::*;
 
+    /// Marsaglia's xorshift64 (2003, "Xorshift RNGs", J. Stat. Softw. 8(14); the shifts 13, 7
+    /// and 17 from memory): numbers below `bound` from `seed`, the same in every run.
+    fn xorshift(seed: u64) -> impl FnMut(u64) -> u64 {
+        let mut state = seed;
+        move |bound| {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            state % bound
+        }
+    }
+
     fn slot(cell: u32) -> Slot {
         Slot {
             cell,
@@ -471,13 +483,7 @@ mod tests {
         for (keeps_weights, keeps_min_tree) in [(false, true), (true, true), (true, false)] {
             let mut frontier = Frontier::new(keeps_weights, keeps_min_tree);
             let mut weights: Vec<f64> = Vec::new();
-            let mut state = 0x9e37_79b9_7f4a_7c15u64;
-            let mut next = |bound: u64| {
-                state ^= state << 13;
-                state ^= state >> 7;
-                state ^= state << 17;
-                state % bound
-            };
+            let mut next = xorshift(0x9e37_79b9_7f4a_7c15u64);
             let mut live: Vec<u32> = Vec::new();
             for step in 0..5_000u32 {
                 let weight = next(4) as f64;
@@ -526,13 +532,7 @@ mod tests {
     #[test]
     fn settled_sums_equal_a_full_rebuild_at_every_node() {
         let mut frontier = Frontier::new(true, false);
-        let mut state = 0x9e37_79b9_7f4a_7c15u64;
-        let mut next = |bound: u64| {
-            state ^= state << 13;
-            state ^= state >> 7;
-            state ^= state << 17;
-            state % bound
-        };
+        let mut next = xorshift(0x9e37_79b9_7f4a_7c15u64);
         // Weights that are not whole numbers, so that sums in another order round otherwise.
         let weight_of = |cost: f64| cost * 1.5 + 0.01;
         let mut live: Vec<u32> = (0..200u32)
@@ -597,13 +597,7 @@ mod tests {
         let mut frontier = Frontier::new(true, true);
         let mut weights: Vec<f64> = Vec::new();
         let mut live: Vec<u32> = Vec::new();
-        let mut state = 0x2545_f491_4f6c_dd1du64;
-        let mut next = |bound: u64| {
-            state ^= state << 13;
-            state ^= state >> 7;
-            state ^= state << 17;
-            state % bound
-        };
+        let mut next = xorshift(0x2545_f491_4f6c_dd1du64);
         for step in 0..3_000u32 {
             let weight = 0.1 * (1 + next(1_000)) as f64 / 7.0;
             match next(4) {

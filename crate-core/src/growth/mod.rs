@@ -491,10 +491,10 @@ impl Growth {
         let length = if parent == NO_PARENT {
             0.0
         } else {
-            let parent = &mut self.nodes[parent as usize];
-            parent.children += 1;
+            let downstream = &mut self.nodes[parent as usize];
+            downstream.children += 1;
             // The expression of `refresh_flows`, so the same bits.
-            let (vx, vy) = (parent.x - x, parent.y - y);
+            let (vx, vy) = (downstream.x - x, downstream.y - y);
             (vx * vx + vy * vy).sqrt()
         };
         self.segment_length.push(length);
