@@ -112,6 +112,8 @@ pub struct Topology {
     pub flow: Vec<f64>,
     /// Length of node `i`'s downstream segment, 0 for roots.
     pub length: Vec<f64>,
+    /// Whether every parent has a lower index (`parents_first`), found with the rest.
+    parents_first: bool,
 }
 
 /// The children of every node in compressed rows: one list of child indices, grouped by
@@ -354,7 +356,11 @@ impl Network {
                 flow[down as usize] += flow[node];
             }
         };
-        if parents_first(&parent) {
+        let parents_first = parent
+            .iter()
+            .enumerate()
+            .all(|(node, &up)| up == NO_PARENT || (up as usize) < node);
+        if parents_first {
             (0..count).rev().for_each(&mut add_into_parent);
         } else {
             order
@@ -375,6 +381,7 @@ impl Network {
             order,
             flow,
             length,
+            parents_first,
         })
     }
 
@@ -401,16 +408,8 @@ impl Topology {
     /// never split): then increasing index order is also a parents-first order, and a pass
     /// may walk the arrays in turn instead of in `order`, where that gives the same bits.
     pub fn parents_first(&self) -> bool {
-        parents_first(&self.parent)
+        self.parents_first
     }
-}
-
-/// `Topology::parents_first` of a parent list.
-fn parents_first(parent: &[u32]) -> bool {
-    parent
-        .iter()
-        .enumerate()
-        .all(|(node, &up)| up == NO_PARENT || (up as usize) < node)
 }
 
 /// Trees for tests of the passes over a forest, built without the growth engine (which the
